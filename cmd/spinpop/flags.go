@@ -1,0 +1,65 @@
+package main
+
+import (
+	"flag"
+	"fmt"
+	"io"
+	"strconv"
+	"strings"
+)
+
+// newFlagSet makes a flag set whose --help prints the command's usage and
+// whose parse errors are usage errors (exit status 2).
+func newFlagSet(name, synopsis, about string, stdout io.Writer) *flag.FlagSet {
+	fs := flag.NewFlagSet(name, flag.ContinueOnError)
+	fs.SetOutput(io.Discard)
+	fs.Usage = func() {
+		fmt.Fprintf(stdout, "Usage: spinpop %s\n\n%s\n\nOptions:\n", synopsis, about)
+		fs.SetOutput(stdout)
+		fs.PrintDefaults()
+		fs.SetOutput(io.Discard)
+	}
+	return fs
+}
+
+// parseInterleaved lets flags come before or after positional arguments
+// (spinpop simulate SCENARIO --out DIR), which the flag package alone does
+// not.
+func parseInterleaved(fs *flag.FlagSet, args []string) ([]string, error) {
+	var pos []string
+	for {
+		if err := fs.Parse(args); err != nil {
+			if err == flag.ErrHelp {
+				fs.Usage()
+				return nil, errHelp
+			}
+			return nil, usageErrorf("%s: %v (see spinpop %s --help)", fs.Name(), err, fs.Name())
+		}
+		args = fs.Args()
+		if len(args) == 0 {
+			return pos, nil
+		}
+		pos = append(pos, args[0])
+		args = args[1:]
+	}
+}
+
+// floatList parses "0.3,0.6,1" into numbers.
+func floatList(s, flagName string) ([]float64, error) {
+	var out []float64
+	for _, f := range strings.Split(s, ",") {
+		f = strings.TrimSpace(f)
+		if f == "" {
+			continue
+		}
+		v, err := strconv.ParseFloat(f, 64)
+		if err != nil {
+			return nil, usageErrorf("--%s: %q is not a number (want a comma-separated list such as 0.3,0.6,1)", flagName, f)
+		}
+		out = append(out, v)
+	}
+	if len(out) == 0 {
+		return nil, usageErrorf("--%s: empty list (want a comma-separated list such as 0.3,0.6,1)", flagName)
+	}
+	return out, nil
+}

@@ -1,0 +1,40 @@
+package main
+
+import (
+	"os"
+	"strings"
+
+	"spinpop/scenarios"
+)
+
+// loadScenario reads a scenario file, or a built-in example named
+// "example:NAME".
+func loadScenario(arg string) (*scenarios.Resolved, error) {
+	if name, ok := strings.CutPrefix(arg, "example:"); ok {
+		res, err := scenarios.LoadExample(name)
+		if err != nil {
+			return nil, inputError{err}
+		}
+		return res, nil
+	}
+	if _, err := os.Stat(arg); err != nil {
+		for _, ex := range scenarios.Examples() {
+			if strings.TrimSuffix(ex, ".toml") == strings.TrimSuffix(arg, ".toml") {
+				return nil, usageErrorf("scenario file %s not found; for the built-in example write example:%s", arg, strings.TrimSuffix(ex, ".toml"))
+			}
+		}
+		return nil, usageErrorf("scenario file %s cannot be read: %v", arg, err)
+	}
+	res, err := scenarios.Load(arg)
+	if err != nil {
+		return nil, inputError{err}
+	}
+	return res, nil
+}
+
+func oneScenarioArg(pos []string, cmd string) (string, error) {
+	if len(pos) != 1 {
+		return "", usageErrorf("%s takes one scenario file (or example:NAME); got %d arguments (see spinpop %s --help)", cmd, len(pos), cmd)
+	}
+	return pos[0], nil
+}

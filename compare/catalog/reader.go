@@ -1,0 +1,507 @@
+package catalog
+
+import (
+	"bufio"
+	"bytes"
+	"compress/gzip"
+	"crypto/sha256"
+	"encoding/hex"
+	"errors"
+	"fmt"
+	"hash"
+	"io"
+	"math"
+	"os"
+	"strconv"
+)
+
+// Options control Read.
+type Options struct {
+	// Mapping names the columns; see Mapping.
+	Mapping Mapping
+	// ZSunPc is the Sun's height above the Galactic plane (pc), added to
+	// d sin b when heights are derived from parallax and position.
+	ZSunPc float64
+	// Rejects receives every unusable row. If nil, rejected rows are only
+	// counted in the Summary.
+	Rejects RejectSink
+	// Name is the file name used in messages; ReadFile sets it.
+	Name string
+}
+
+// Summary reports on a read. Bytes and SHA256 cover the whole input only
+// when Read returned without error (or with ErrNoRows).
+type Summary struct {
+	Format      string // "csv" or "ecsv"
+	ECSVVersion string
+	Compressed  bool // gzip, detected from the first two bytes
+	Delimiter   byte
+	HeaderLine  int // line of the column-name row
+	Columns     []Column
+	Rows        int // data rows seen, accepted or rejected
+	Accepted    int
+	Rejected    map[Reason]int
+	Bytes       int64    // bytes of the input as stored (compressed, if it is)
+	SHA256      [32]byte // of those bytes
+}
+
+// SHA256Hex returns the SHA-256 in lower-case hexadecimal, the form
+// scenario files state.
+func (s Summary) SHA256Hex() string { return hex.EncodeToString(s.SHA256[:]) }
+
+// RejectedTotal returns the number of rejected rows.
+func (s Summary) RejectedTotal() int {
+	n := 0
+	for _, c := range s.Rejected {
+		n += c
+	}
+	return n
+}
+
+// ReadFile opens path and reads it with Read, naming the file in messages.
+func ReadFile(path string, opt Options, fn func(line int, s Star) error) (Summary, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return Summary{}, err
+	}
+	defer f.Close()
+	if opt.Name == "" {
+		opt.Name = path
+	}
+	return Read(f, opt, fn)
+}
+
+// Read streams a CSV or ECSV catalog from r, gzip-compressed or not, and
+// calls fn with the line number and the Star of every usable row, in file
+// order. Unusable rows go to opt.Rejects and are counted in the Summary.
+// An error from fn or from the sink stops the reading and is returned
+// (wrapped with the line). Errors in the file itself are *Error values
+// wrapping one of the sentinel errors (ErrEmpty, ErrNoRows, ErrDelimiter,
+// ErrColumn, ErrUnit, ErrMapping, ErrFormat).
+func Read(r io.Reader, opt Options, fn func(line int, s Star) error) (Summary, error) {
+	name := opt.Name
+	if name == "" {
+		name = "catalog"
+	}
+	rd := &reader{name: name, opt: opt, fn: fn}
+	rd.sum.Rejected = map[Reason]int{}
+	rd.hr = &hashReader{r: r, h: sha256.New()}
+	err := rd.run()
+	rd.sum.Bytes = rd.hr.n
+	copy(rd.sum.SHA256[:], rd.hr.h.Sum(nil))
+	return rd.sum, err
+}
+
+type hashReader struct {
+	r io.Reader
+	h hash.Hash
+	n int64
+}
+
+func (h *hashReader) Read(p []byte) (int, error) {
+	n, err := h.r.Read(p)
+	h.h.Write(p[:n])
+	h.n += int64(n)
+	return n, err
+}
+
+type reader struct {
+	name string
+	opt  Options
+	fn   func(int, Star) error
+	hr   *hashReader
+	lr   lineReader
+	sp   splitter
+	sum  Summary
+}
+
+func (rd *reader) errorf(line int, sentinel error, format string, args ...any) error {
+	return &Error{Name: rd.name, Line: line, Msg: fmt.Sprintf(format, args...), Err: sentinel}
+}
+
+func (rd *reader) run() error {
+	raw := bufio.NewReaderSize(rd.hr, 256<<10)
+	text := raw
+	if magic, _ := raw.Peek(2); len(magic) == 2 && magic[0] == 0x1f && magic[1] == 0x8b {
+		gz, err := gzip.NewReader(raw)
+		if err != nil {
+			return rd.errorf(0, ErrFormat, "starts like a gzip file but its gzip header is unreadable: %v", err)
+		}
+		rd.sum.Compressed = true
+		text = bufio.NewReaderSize(gz, 256<<10)
+	}
+	rd.lr.br = text
+
+	header, err := rd.readHeader()
+	if err != nil {
+		return err
+	}
+	if err := rd.readRows(header); err != nil {
+		return err
+	}
+	// Hash whatever follows the last line (e.g. the gzip trailer).
+	if _, err := io.Copy(io.Discard, raw); err != nil {
+		return rd.errorf(0, ErrFormat, "reading past the last line: %v", err)
+	}
+	if rd.sum.Rows == 0 {
+		return rd.errorf(rd.sum.HeaderLine, ErrNoRows,
+			"the header row is here but no data row follows; a catalog needs at least one star")
+	}
+	return nil
+}
+
+// next wraps lineReader.next with the file's name and line in errors.
+func (rd *reader) next() ([]byte, error) {
+	b, err := rd.lr.next()
+	switch {
+	case err == nil, err == io.EOF:
+		return b, err
+	case errors.Is(err, errLineTooLong):
+		return nil, rd.errorf(rd.lr.line+1, ErrFormat, "line longer than %d bytes; is this a text table?", maxLineBytes)
+	default:
+		return nil, rd.errorf(rd.lr.line+1, ErrFormat, "reading: %v", err)
+	}
+}
+
+// readHeader finds the format and the column-name row, and resolves the
+// Mapping against it.
+func (rd *reader) readHeader() (*plan, error) {
+	var line []byte
+	var err error
+	for {
+		line, err = rd.next()
+		if err == io.EOF {
+			return nil, rd.errorf(0, ErrEmpty, "file is empty; expected a header row naming the columns")
+		}
+		if err != nil {
+			return nil, err
+		}
+		if bytes.IndexByte(line, 0) >= 0 {
+			return nil, rd.errorf(rd.lr.line, ErrFormat, "contains NUL bytes, so it is not a text table (only plain or gzip-compressed CSV/ECSV are read)")
+		}
+		if !isBlank(line) {
+			break
+		}
+	}
+
+	var ecsv *ecsvHeader
+	if bytes.HasPrefix(line, []byte("# %ECSV")) {
+		hl := []headerLine{{rd.lr.line, string(bytes.TrimPrefix(line, []byte("# ")))}}
+		for {
+			line, err = rd.next()
+			if err == io.EOF {
+				return nil, rd.errorf(rd.lr.line, ErrEmpty, "ECSV header ends without a row of column names")
+			}
+			if err != nil {
+				return nil, err
+			}
+			if len(line) > 0 && line[0] == '#' {
+				t := line[1:]
+				t = bytes.TrimPrefix(t, []byte(" "))
+				hl = append(hl, headerLine{rd.lr.line, string(t)})
+				continue
+			}
+			if isBlank(line) {
+				continue
+			}
+			break
+		}
+		var lerr *lineError
+		ecsv, lerr = parseECSVHeader(hl)
+		if lerr != nil {
+			return nil, rd.errorf(lerr.line, ErrFormat, "%s", lerr.msg)
+		}
+		rd.sum.Format = "ecsv"
+		rd.sum.ECSVVersion = ecsv.version
+		rd.sp.delim = ecsv.delimiter
+	} else {
+		for isBlank(line) || isComment(line) {
+			line, err = rd.next()
+			if err == io.EOF {
+				return nil, rd.errorf(0, ErrEmpty, "file holds only comments; expected a header row naming the columns")
+			}
+			if err != nil {
+				return nil, err
+			}
+		}
+		rd.sum.Format = "csv"
+		rd.sp.delim = ','
+	}
+	rd.sum.Delimiter = rd.sp.delim
+	rd.sum.HeaderLine = rd.lr.line
+
+	fields, err := rd.sp.split(line)
+	if err != nil {
+		return nil, rd.errorf(rd.lr.line, ErrFormat, "header row: %v", err)
+	}
+	if len(fields) == 1 {
+		if d, ok := otherDelimiter(line, rd.sp.delim); ok {
+			return nil, rd.errorf(rd.lr.line, ErrDelimiter,
+				"header row %q reads as a single column but contains %s; this %s file must be %s-separated%s",
+				truncate(string(line), 80), delimName(d), rd.sum.Format, delimName(rd.sp.delim), delimHint(rd.sum.Format, d))
+		}
+	}
+	names := make([]string, len(fields))
+	for i, f := range fields {
+		names[i] = string(f)
+	}
+	if ecsv != nil {
+		if err := checkECSVNames(names, ecsv.columns); err != nil {
+			return nil, rd.errorf(rd.lr.line, ErrFormat, "%v", err)
+		}
+		rd.sum.Columns = ecsv.columns
+	} else {
+		rd.sum.Columns = make([]Column, len(names))
+		for i, n := range names {
+			rd.sum.Columns[i] = Column{Name: n}
+		}
+	}
+	p, err := rd.opt.Mapping.resolve(rd.sum.Columns, rd.opt.ZSunPc)
+	if err != nil {
+		sentinel := ErrMapping
+		for _, s := range []error{ErrColumn, ErrUnit} {
+			if errors.Is(err, s) {
+				sentinel = s
+			}
+		}
+		line := rd.lr.line
+		if sentinel == ErrMapping {
+			line = 0
+		}
+		return nil, &Error{Name: rd.name, Line: line, Msg: err.Error(), Err: sentinel}
+	}
+	return p, nil
+}
+
+func checkECSVNames(names []string, cols []Column) error {
+	same := len(names) == len(cols)
+	for i := 0; same && i < len(names); i++ {
+		same = names[i] == cols[i].Name
+	}
+	if same {
+		return nil
+	}
+	declared := make([]string, len(cols))
+	for i, c := range cols {
+		declared[i] = c.Name
+	}
+	return fmt.Errorf("the column-name row (%s) does not match the ECSV header's datatype list (%s)",
+		listColumns(names), listColumns(declared))
+}
+
+// otherDelimiter reports a likely delimiter other than the expected one
+// found in a line that split into a single field.
+func otherDelimiter(line []byte, expected byte) (byte, bool) {
+	for _, d := range []byte{';', '\t', '|', ','} {
+		if d != expected && bytes.IndexByte(line, d) >= 0 {
+			return d, true
+		}
+	}
+	return 0, false
+}
+
+func delimName(d byte) string {
+	switch d {
+	case ',':
+		return "comma"
+	case ';':
+		return "semicolon"
+	case '\t':
+		return "tab"
+	case '|':
+		return "pipe"
+	case ' ':
+		return "space"
+	}
+	return strconv.Quote(string(d))
+}
+
+func delimHint(format string, found byte) string {
+	if format == "ecsv" && found == ',' {
+		return ` (declare "# delimiter: ','" in the ECSV header for a comma-separated body)`
+	}
+	return " (convert the file, e.g. replace the " + delimName(found) + "s by commas)"
+}
+
+func truncate(s string, n int) string {
+	if len(s) <= n {
+		return s
+	}
+	return s[:n] + "…"
+}
+
+// readRows streams the data rows.
+func (rd *reader) readRows(p *plan) error {
+	ncols := len(rd.sum.Columns)
+	first := true
+	for {
+		line, err := rd.next()
+		if err == io.EOF {
+			return nil
+		}
+		if err != nil {
+			return err
+		}
+		if isBlank(line) || isComment(line) {
+			continue
+		}
+		rd.sum.Rows++
+		num := rd.lr.line
+		fields, serr := rd.sp.split(line)
+		if serr != nil {
+			var se *splitError
+			col := ""
+			if errors.As(serr, &se) && se.col-1 < ncols {
+				col = rd.sum.Columns[se.col-1].Name
+			}
+			if err := rd.reject(num, ReasonQuoting, col, "", line); err != nil {
+				return err
+			}
+			continue
+		}
+		if first && len(fields) == 1 && ncols > 1 {
+			if d, ok := otherDelimiter(line, rd.sp.delim); ok {
+				return rd.errorf(num, ErrDelimiter,
+					"first data row reads as a single field but contains %s; the rows must be %s-separated like the header%s",
+					delimName(d), delimName(rd.sp.delim), delimHint(rd.sum.Format, d))
+			}
+		}
+		first = false
+		if len(fields) != ncols {
+			if err := rd.reject(num, ReasonFieldCount, "", strconv.Itoa(len(fields))+" fields, header has "+strconv.Itoa(ncols), line); err != nil {
+				return err
+			}
+			continue
+		}
+		s, bad, reason := p.convert(fields)
+		if bad != nil {
+			if err := rd.reject(num, reason, bad.column, string(fields[bad.index]), line); err != nil {
+				return err
+			}
+			continue
+		}
+		rd.sum.Accepted++
+		if rd.fn != nil {
+			if err := rd.fn(num, s); err != nil {
+				return fmt.Errorf("%s:%d: %w", rd.name, num, err)
+			}
+		}
+	}
+}
+
+func (rd *reader) reject(line int, why Reason, column, value string, raw []byte) error {
+	rd.sum.Rejected[why]++
+	if rd.opt.Rejects == nil {
+		return nil
+	}
+	err := rd.opt.Rejects.Reject(Rejection{Line: line, Reason: why, Column: column, Value: value, Raw: string(raw)})
+	if err != nil {
+		return fmt.Errorf("%s:%d: reject sink: %w", rd.name, line, err)
+	}
+	return nil
+}
+
+// nullMarkers are values that mean "no value" in common table writers.
+var nullMarkers = [][]byte{[]byte("NA"), []byte("N/A"), []byte("na"), []byte("null"),
+	[]byte("NULL"), []byte("None"), []byte("--")}
+
+// parseValue reads one numeric field.
+func parseValue(b []byte) (float64, Reason, bool) {
+	b = bytes.TrimSpace(b)
+	if len(b) == 0 {
+		return 0, ReasonMissing, false
+	}
+	for _, m := range nullMarkers {
+		if bytes.Equal(b, m) {
+			return 0, ReasonMissing, false
+		}
+	}
+	v, err := strconv.ParseFloat(string(b), 64)
+	if err != nil && !errors.Is(err, strconv.ErrRange) {
+		return 0, ReasonNotNumeric, false
+	}
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return 0, ReasonNotFinite, false
+	}
+	return v, 0, true
+}
+
+// convert turns the mapped fields of one row into a Star, or reports the
+// first field that makes the row unusable.
+func (p *plan) convert(fields [][]byte) (Star, *fieldRef, Reason) {
+	s := Star{DistPc: math.NaN(), LDeg: math.NaN(), BDeg: math.NaN()}
+	get := func(f *fieldRef) (float64, Reason, bool) { return parseValue(fields[f.index]) }
+
+	var ok bool
+	var why Reason
+	if s.PeriodD, why, ok = get(&p.period); !ok {
+		return s, &p.period, why
+	}
+	if s.PeriodD <= 0 {
+		return s, &p.period, ReasonPeriod
+	}
+	if s.Color, why, ok = get(&p.color); !ok {
+		return s, &p.color, why
+	}
+	if p.absMag != nil {
+		if s.AbsMag, why, ok = get(p.absMag); !ok {
+			return s, p.absMag, why
+		}
+	}
+	if p.height != nil {
+		if s.ZPc, why, ok = get(p.height); !ok {
+			return s, p.height, why
+		}
+	}
+	var appMag float64
+	if p.appMag != nil && p.absMag == nil {
+		if appMag, why, ok = get(p.appMag); !ok {
+			return s, p.appMag, why
+		}
+	}
+	if p.parallax != nil {
+		plx, why, ok := get(p.parallax)
+		if !ok {
+			return s, p.parallax, why
+		}
+		if plx <= 0 {
+			return s, p.parallax, ReasonParallax
+		}
+		s.DistPc = 1000 / plx
+	}
+	switch {
+	case p.l != nil:
+		l, why, ok := get(p.l)
+		if !ok {
+			return s, p.l, why
+		}
+		b, why, ok := get(p.b)
+		if !ok {
+			return s, p.b, why
+		}
+		if b < -90 || b > 90 {
+			return s, p.b, ReasonPosition
+		}
+		s.LDeg, s.BDeg = math.Mod(math.Mod(l, 360)+360, 360), b
+	case p.ra != nil:
+		ra, why, ok := get(p.ra)
+		if !ok {
+			return s, p.ra, why
+		}
+		dec, why, ok := get(p.dec)
+		if !ok {
+			return s, p.dec, why
+		}
+		if dec < -90 || dec > 90 {
+			return s, p.dec, ReasonPosition
+		}
+		s.LDeg, s.BDeg = ICRSToGalactic(ra, dec)
+	}
+	if p.absMag == nil {
+		s.AbsMag = appMag - 5*math.Log10(s.DistPc/10)
+	}
+	if p.height == nil {
+		s.ZPc = s.DistPc*math.Sin(s.BDeg*math.Pi/180) + p.zSunPc
+	}
+	return s, nil, 0
+}

@@ -1,0 +1,110 @@
+package catalog
+
+import (
+	"encoding/csv"
+	"io"
+	"strconv"
+)
+
+// Reason says why a row was rejected.
+type Reason int
+
+const (
+	// ReasonFieldCount: the row has a different number of fields than the header.
+	ReasonFieldCount Reason = iota
+	// ReasonMissing: a needed value is empty or a null marker (NA, null, None, --).
+	ReasonMissing
+	// ReasonNotNumeric: a needed value is not a number.
+	ReasonNotNumeric
+	// ReasonNotFinite: a needed value is NaN or infinite.
+	ReasonNotFinite
+	// ReasonPeriod: the rotation period is not positive.
+	ReasonPeriod
+	// ReasonParallax: the parallax is not positive, so no distance follows.
+	ReasonParallax
+	// ReasonPosition: a latitude or declination lies outside [−90°, 90°].
+	ReasonPosition
+	// ReasonQuoting: a quoted field is not closed, or text follows its
+	// closing quote.
+	ReasonQuoting
+	numReasons
+)
+
+var reasonText = [numReasons]string{
+	ReasonFieldCount: "wrong number of fields",
+	ReasonMissing:    "missing value",
+	ReasonNotNumeric: "not a number",
+	ReasonNotFinite:  "NaN or infinite",
+	ReasonPeriod:     "period not positive",
+	ReasonParallax:   "parallax not positive",
+	ReasonPosition:   "latitude or declination out of range",
+	ReasonQuoting:    "malformed quoting",
+}
+
+func (r Reason) String() string {
+	if r >= 0 && r < numReasons {
+		return reasonText[r]
+	}
+	return "reason " + strconv.Itoa(int(r))
+}
+
+// Reasons returns every Reason, in order, for reports that list all counts.
+func Reasons() []Reason {
+	out := make([]Reason, numReasons)
+	for i := range out {
+		out[i] = Reason(i)
+	}
+	return out
+}
+
+// Rejection describes one unusable row.
+type Rejection struct {
+	Line   int    // line number in the (decompressed) text, from 1
+	Reason Reason //
+	Column string // the offending column, "" for ReasonFieldCount
+	Value  string // the offending value as written
+	Raw    string // the whole line as written
+}
+
+// RejectSink receives every rejected row. An error it returns stops the
+// reading and is returned by Read.
+type RejectSink interface {
+	Reject(r Rejection) error
+}
+
+// CSVRejectWriter is a RejectSink that writes rejected rows as CSV with the
+// columns line, reason, column, value, raw. Call Flush when done.
+type CSVRejectWriter struct {
+	w      *csv.Writer
+	header bool
+}
+
+// NewCSVRejectWriter returns a CSVRejectWriter writing to w.
+func NewCSVRejectWriter(w io.Writer) *CSVRejectWriter {
+	return &CSVRejectWriter{w: csv.NewWriter(w)}
+}
+
+// Reject writes one rejected row (and the header before the first).
+func (c *CSVRejectWriter) Reject(r Rejection) error {
+	if !c.header {
+		c.header = true
+		if err := c.w.Write([]string{"line", "reason", "column", "value", "raw"}); err != nil {
+			return err
+		}
+	}
+	return c.w.Write([]string{strconv.Itoa(r.Line), r.Reason.String(), r.Column, r.Value, r.Raw})
+}
+
+// Flush writes any buffered rows and reports a write error, if any. It
+// writes the header even when no row was rejected, so an empty reject file
+// still says what it is.
+func (c *CSVRejectWriter) Flush() error {
+	if !c.header {
+		c.header = true
+		if err := c.w.Write([]string{"line", "reason", "column", "value", "raw"}); err != nil {
+			return err
+		}
+	}
+	c.w.Flush()
+	return c.w.Error()
+}

@@ -1,0 +1,69 @@
+package disk
+
+import (
+	"math/bits"
+	"math/rand/v2"
+)
+
+// aliasEntry is one column of Walker's alias table together with the
+// envelope of the block it stands for, so that a draw touches one cache
+// line when it keeps its column.
+type aliasEntry struct {
+	prob   float32 // probability of keeping column i rather than its alias
+	alias  uint32
+	envMax float32 // upper bound of ν/ν(0) over the block (rounded up)
+	envMin float32 // lower bound of ν/ν(0) over the block (rounded down)
+}
+
+// buildAlias sets prob and alias of e from the non-negative weights w with
+// Vose's (1991) construction of Walker's alias table, so that pickAlias draws
+// index i with probability w[i]/Σw in constant time. At least one weight
+// must be positive.
+func buildAlias(w []float64, e []aliasEntry) {
+	n := len(w)
+	sum := 0.0
+	for _, x := range w {
+		sum += x
+	}
+	scaled := make([]float64, n)
+	small := make([]uint32, 0, n)
+	large := make([]uint32, 0, n)
+	for i, x := range w {
+		scaled[i] = x * float64(n) / sum
+		if scaled[i] < 1 {
+			small = append(small, uint32(i))
+		} else {
+			large = append(large, uint32(i))
+		}
+	}
+	for len(small) > 0 && len(large) > 0 {
+		s := small[len(small)-1]
+		small = small[:len(small)-1]
+		l := large[len(large)-1]
+		e[s].prob, e[s].alias = float32(scaled[s]), l
+		scaled[l] -= 1 - scaled[s]
+		if scaled[l] < 1 {
+			large = large[:len(large)-1]
+			small = append(small, l)
+		}
+	}
+	// What is left has scaled weight 1 up to rounding.
+	for _, i := range large {
+		e[i].prob, e[i].alias = 1, i
+	}
+	for _, i := range small {
+		e[i].prob, e[i].alias = 1, i
+	}
+}
+
+// pickAlias draws an index from the alias table e with one 64-bit variate:
+// the high word of x·n is a uniform index (bias below n/2⁶⁴) and the top 24
+// bits of the low word a uniform coin for that column.
+func pickAlias(r *rand.Rand, e []aliasEntry) int {
+	hi, lo := bits.Mul64(r.Uint64(), uint64(len(e)))
+	coin := float32(lo>>40) * (1.0 / (1 << 24))
+	if coin < e[hi].prob {
+		return int(hi)
+	}
+	return int(e[hi].alias)
+}

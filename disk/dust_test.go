@@ -1,0 +1,65 @@
+package disk
+
+import (
+	"math"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+)
+
+func TestDustClosedFormAgainstQuadrature(t *testing.T) {
+	dl := DefaultDustLayer()
+	require.NoError(t, dl.Validate())
+	for _, sun := range []Sun{DefaultSun(), {RKpc: 8, ZPc: -15}, {RKpc: 8, ZPc: 0}} {
+		for _, b := range []float64{-90, -30, -2, -0.01, -1e-9, 0, 1e-9, 0.3, 5, 45, 90} {
+			for _, d := range []float64{1, 50, 400, 2500, 8000} {
+				sinB := math.Sin(b * degToRad)
+				f := func(s float64) float64 {
+					return dl.MidplaneAvPerKpc / 1000 * math.Exp(-math.Abs(sun.ZPc+s*sinB)/dl.ScaleHeightPc)
+				}
+				// Split at the midplane crossing so Simpson sees smooth pieces.
+				num := 0.0
+				if s0 := -sun.ZPc / sinB; s0 > 0 && s0 < d {
+					num = simpson(f, 0, s0, 20000) + simpson(f, s0, d, 20000)
+				} else {
+					num = simpson(f, 0, d, 20000)
+				}
+				got := dl.AV(123, b, d, sun)
+				assert.InDelta(t, num, got, 1e-9*(1+num), "sun %v b %v d %v", sun, b, d)
+			}
+		}
+	}
+}
+
+func TestDustLimits(t *testing.T) {
+	dl := DustLayer{ScaleHeightPc: 100, MidplaneAvPerKpc: 1}
+	sun := Sun{RKpc: 8, ZPc: 0}
+	// In the plane: a0 d. Toward the pole to infinity: a0 H. Common practice,
+	// no source (the integrals of an exponential).
+	assert.InDelta(t, 2.0, dl.AV(0, 0, 2000, sun), 1e-12)
+	assert.InDelta(t, 0.1, dl.AV(0, 90, 1e6, sun), 1e-12)
+	assert.InDelta(t, 0.1, dl.AV(0, -90, 1e6, sun), 1e-12)
+	// From 20.8 pc above the plane, looking down through it.
+	up := DefaultSun()
+	assert.Greater(t, dl.AV(0, -90, 1e6, up), dl.AV(0, 90, 1e6, up))
+	assert.Equal(t, 0.0, NoDust{}.AV(10, 10, 1000, up))
+	assert.ErrorContains(t, DustLayer{ScaleHeightPc: 0, MidplaneAvPerKpc: 1}.Validate(), "ScaleHeightPc")
+	assert.ErrorContains(t, DustLayer{ScaleHeightPc: 100, MidplaneAvPerKpc: -1}.Validate(), "MidplaneAvPerKpc")
+	var _ Extinction = dl
+	var _ Extinction = NoDust{}
+}
+
+func BenchmarkDustAV(b *testing.B) {
+	dl := DefaultDustLayer()
+	sun := DefaultSun()
+	bb, sum := -80.0, 0.0
+	for b.Loop() {
+		sum += dl.AV(30, bb, 700, sun)
+		bb += 0.01
+		if bb > 80 {
+			bb = -80
+		}
+	}
+	_ = sum
+}

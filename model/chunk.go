@@ -1,0 +1,92 @@
+package model
+
+// Flag bits record what happened to a star on its way through the survey.
+// A star carries every flag that applies, so a catalog row says why a star
+// was or was not kept.
+type Flag uint16
+
+const (
+	FlagBinary         Flag = 1 << iota // has an unresolved companion
+	FlagEvolved                         // past its main-sequence lifetime, brightened
+	FlagGone                            // evolved beyond a dwarf sample (giant or remnant)
+	FlagOutsideLaw                      // outside the spin-down law's calibrated range: no period
+	FlagTidalLock                       // close binary, period set by the orbit
+	FlagInMagRange                      // apparent magnitude within the survey limits
+	FlagInColorRange                    // observed color inside the catalogue cut
+	FlagOnMainSeq                       // inside the band around the single-star main sequence
+	FlagDetected                        // the survey measured a period
+	FlagInPeriodWindow                  // measured period inside the catalogue's period window
+	FlagHalfAlias                       // measured period is half the true one
+	FlagDoubleAlias                     // measured period is twice the true one
+)
+
+// Selected reports whether a star ends in the observed catalogue: every
+// selection step passed.
+func (f Flag) Selected() bool {
+	const all = FlagInMagRange | FlagInColorRange | FlagOnMainSeq | FlagDetected | FlagInPeriodWindow
+	return f&all == all && f&(FlagGone|FlagOutsideLaw) == 0
+}
+
+// Chunk holds a block of stars in struct-of-arrays form: one slice per
+// quantity, all of length N. Workers fill chunks in place; the arrays are
+// reused from chunk to chunk, so the hot path allocates nothing.
+type Chunk struct {
+	Index int // position in the run; fixes the chunk's random stream
+	N     int
+
+	AgeBin        []int32
+	AgeGyr        []float64
+	MassMsun      []float64
+	CompanionMsun []float64 // 0 when single
+	FeH           []float64
+	TeffK         []float64
+	BV            []float64 // intrinsic system color (companion included)
+	VKs           []float64
+	AbsMagV       []float64 // system absolute V (companion and evolution included)
+	AbsMagBand    []float64 // in the survey band
+	LDeg          []float64
+	BDeg          []float64
+	DistPc        []float64
+	ZPc           []float64
+	AV            []float64 // extinction in V
+	AppMag        []float64 // apparent magnitude in the survey band
+	ObsBV         []float64 // reddened color as a catalogue would list it
+	ObsAbsMag     []float64 // m - 5 log10(d/10 pc): absolute magnitude as derived from parallax
+	PeriodD       []float64 // true rotation period (NaN outside the law's range)
+	MeasPeriodD   []float64 // period the survey reports (NaN if not detected)
+	Rossby        []float64
+	AmpPpm        []float64 // spot modulation amplitude
+	NoisePpm      []float64 // survey noise per cadence at the star's magnitude
+	DetectProb    []float64
+	Flags         []Flag
+}
+
+// NewChunk allocates a chunk for up to n stars.
+func NewChunk(n int) *Chunk {
+	c := &Chunk{}
+	c.grow(n)
+	return c
+}
+
+func (c *Chunk) grow(n int) {
+	f := func(s *[]float64) {
+		if cap(*s) < n {
+			*s = make([]float64, n)
+		}
+		*s = (*s)[:n]
+	}
+	for _, s := range []*[]float64{&c.AgeGyr, &c.MassMsun, &c.CompanionMsun, &c.FeH, &c.TeffK, &c.BV, &c.VKs,
+		&c.AbsMagV, &c.AbsMagBand, &c.LDeg, &c.BDeg, &c.DistPc, &c.ZPc, &c.AV, &c.AppMag, &c.ObsBV, &c.ObsAbsMag,
+		&c.PeriodD, &c.MeasPeriodD, &c.Rossby, &c.AmpPpm, &c.NoisePpm, &c.DetectProb} {
+		f(s)
+	}
+	if cap(c.AgeBin) < n {
+		c.AgeBin = make([]int32, n)
+	}
+	c.AgeBin = c.AgeBin[:n]
+	if cap(c.Flags) < n {
+		c.Flags = make([]Flag, n)
+	}
+	c.Flags = c.Flags[:n]
+	c.N = n
+}

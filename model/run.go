@@ -1,0 +1,128 @@
+package model
+
+import (
+	"context"
+	"errors"
+	"math/rand/v2"
+	"runtime"
+	"sync"
+)
+
+// ChunkStream returns the random stream of chunk i of a run with the given
+// seed. Every random number a chunk uses comes from here, so a chunk's stars
+// depend only on (seed, chunk index): never on which worker made them or on
+// how many workers there were.
+func ChunkStream(seed uint64, chunk int) *rand.Rand {
+	// splitmix64 decorrelates neighbouring seeds and chunk indices before
+	// they seed PCG (O'Neill 2014); PCG is fast and has 128 bits of state.
+	a := splitmix64(seed ^ 0x9e3779b97f4a7c15)
+	b := splitmix64(a ^ uint64(chunk)*0xbf58476d1ce4e5b9)
+	return rand.New(rand.NewPCG(a, b))
+}
+
+func splitmix64(x uint64) uint64 {
+	x += 0x9e3779b97f4a7c15
+	x = (x ^ (x >> 30)) * 0xbf58476d1ce4e5b9
+	x = (x ^ (x >> 27)) * 0x94d049bb133111eb
+	return x ^ (x >> 31)
+}
+
+// FillFunc fills chunk c (c.Index and c.N already set) from stream r.
+type FillFunc func(c *Chunk, r *rand.Rand)
+
+// RunChunks makes nStars stars in chunks of chunkStars with a pool of
+// workers, and hands the chunks to visit one at a time, in chunk order, on
+// the calling goroutine. Memory is bounded by the number of chunks in
+// flight (two per worker), not by nStars. visit must not keep the chunk: it
+// is reused once visit returns.
+func RunChunks(ctx context.Context, seed uint64, nStars int64, chunkStars, workers int, fill FillFunc, visit func(*Chunk) error) error {
+	if nStars < 0 || chunkStars <= 0 {
+		return errors.New("model: star count must be ≥ 0 and chunk size > 0")
+	}
+	if workers <= 0 {
+		workers = runtime.GOMAXPROCS(0)
+	}
+	nChunks := int((nStars + int64(chunkStars) - 1) / int64(chunkStars))
+	if nChunks == 0 {
+		return nil
+	}
+	window := 2 * workers
+	free := make(chan *Chunk, window)
+	for range window {
+		free <- NewChunk(chunkStars)
+	}
+	ready := make([]chan *Chunk, nChunks)
+	for i := range ready {
+		ready[i] = make(chan *Chunk, 1)
+	}
+	ctx, cancel := context.WithCancel(ctx)
+	defer cancel()
+
+	next := make(chan int)
+	var wg sync.WaitGroup
+	for range workers {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for {
+				// Take a free chunk before taking an index: then every index
+				// handed out already has memory to fill, and the in-order
+				// visitor can never wait on an index starved of chunks.
+				var c *Chunk
+				select {
+				case c = <-free:
+				case <-ctx.Done():
+					return
+				}
+				i, ok := <-next
+				if !ok {
+					return
+				}
+				n := chunkStars
+				if rem := nStars - int64(i)*int64(chunkStars); rem < int64(n) {
+					n = int(rem)
+				}
+				c.grow(n)
+				c.Index = i
+				fill(c, ChunkStream(seed, i))
+				ready[i] <- c
+			}
+		}()
+	}
+	go func() {
+		defer close(next)
+		for i := range nChunks {
+			select {
+			case next <- i:
+			case <-ctx.Done():
+				return
+			}
+		}
+	}()
+
+	var err error
+	for i := range nChunks {
+		var c *Chunk
+		select {
+		case c = <-ready[i]:
+		case <-ctx.Done():
+			err = ctx.Err()
+		}
+		if err != nil {
+			break
+		}
+		if err = visit(c); err != nil {
+			break
+		}
+		free <- c
+	}
+	cancel()
+	// Drain so workers blocked on a full ready slot or free list can exit.
+	go func() {
+		for range free {
+		}
+	}()
+	wg.Wait()
+	close(free)
+	return err
+}

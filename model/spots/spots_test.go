@@ -1,0 +1,211 @@
+package spots
+
+import (
+	"math"
+	"math/rand/v2"
+	"slices"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+)
+
+func TestAmplitudeFallsWithRossby(t *testing.T) {
+	a := DefaultAmplitudeModel()
+	require.NoError(t, a.Validate())
+	// Saturated: flat below RoSat.
+	assert.Equal(t, a.AmpSatPpm, a.MedianPpm(0.01))
+	assert.Equal(t, a.AmpSatPpm, a.MedianPpm(a.RoSat))
+	prev := a.AmpSatPpm
+	for ro := 0.2; ro < 4; ro += 0.1 {
+		amp := a.MedianPpm(ro)
+		assert.Less(t, amp, prev, "Ro %g", ro)
+		prev = amp
+	}
+	// Power law: one decade in Ro is Slope decades in amplitude.
+	assert.InDelta(t, a.Slope, math.Log10(a.MedianPpm(0.3)/a.MedianPpm(3)), 1e-12)
+	// From memory of García et al. (2014), A&A 572, A34: the Sun's
+	// rotational photometric variability is ~170 ppm, at Ro ≈ 2; a factor
+	// of 3 either way reflects that.
+	sun := a.MedianPpm(2)
+	assert.Greater(t, sun, 170.0/3)
+	assert.Less(t, sun, 170.0*3)
+	assert.True(t, math.IsNaN(a.MedianPpm(0)))
+	assert.True(t, math.IsNaN(a.MedianPpm(math.NaN())))
+}
+
+func TestAmplitudeScatter(t *testing.T) {
+	a := DefaultAmplitudeModel()
+	r := rand.New(rand.NewPCG(5, 6))
+	const n = 40000
+	logs := make([]float64, n)
+	var sum, sum2 float64
+	for i := range logs {
+		x := math.Log10(a.Draw(1, r) / a.MedianPpm(1))
+		logs[i] = x
+		sum += x
+		sum2 += x * x
+	}
+	slices.Sort(logs)
+	mean := sum / n
+	sd := math.Sqrt(sum2/n - mean*mean)
+	assert.InDelta(t, 0, logs[n/2], 0.01, "median star sits on the relation")
+	assert.InDelta(t, a.ScatterDex, sd, 0.005)
+}
+
+func TestNoiseModel(t *testing.T) {
+	n := NoiseModel{FloorPpm: 0, RefMag: 12, PpmAtRefMag: 100}
+	assert.InDelta(t, 100, n.PpmPerCadence(12), 1e-9)
+	// Fact of photometry (Pogson's scale): 5 mag is a factor 100 in flux,
+	// so photon noise grows tenfold.
+	assert.InDelta(t, 1000, n.PpmPerCadence(17), 1e-9)
+	n.FloorPpm = 30
+	assert.InDelta(t, math.Sqrt(30*30+100*100), n.PpmPerCadence(12), 1e-9)
+	assert.InDelta(t, 30, n.PpmPerCadence(0), 0.01, "bright stars hit the floor")
+	require.NoError(t, n.Validate())
+	assert.Error(t, NoiseModel{FloorPpm: -1, PpmAtRefMag: 1}.Validate())
+	assert.Error(t, NoiseModel{PpmAtRefMag: 0}.Validate())
+	assert.Error(t, NoiseModel{PpmAtRefMag: 1, RefMag: math.Inf(1)}.Validate())
+}
+
+// TestSinusoidAmplitudeError checks the S/N convention against a
+// simulation: the least-squares amplitude of a sinusoid in N points of
+// white noise σ has standard error σ sqrt(2/N). Common practice, no source;
+// the simulation is the check.
+func TestSinusoidAmplitudeError(t *testing.T) {
+	const nPts, trials, period = 400, 3000, 37.3
+	r := rand.New(rand.NewPCG(9, 10))
+	s, c := make([]float64, nPts), make([]float64, nPts)
+	var ss, cc, sc float64
+	for i := range nPts {
+		ph := 2 * math.Pi * float64(i) / period
+		s[i], c[i] = math.Sin(ph), math.Cos(ph)
+		ss += s[i] * s[i]
+		cc += c[i] * c[i]
+		sc += s[i] * c[i]
+	}
+	det := ss*cc - sc*sc
+	var sum2 float64
+	for range trials {
+		var ys, yc float64
+		for i := range nPts {
+			y := r.NormFloat64() // σ = 1, no signal
+			ys += y * s[i]
+			yc += y * c[i]
+		}
+		a := (cc*ys - sc*yc) / det // sine coefficient
+		sum2 += a * a
+	}
+	got := math.Sqrt(sum2 / trials)
+	assert.InDelta(t, math.Sqrt(2.0/nPts), got, 0.04*math.Sqrt(2.0/nPts))
+
+	// And Detection.SNR uses exactly that convention.
+	d := Detection{Noise: NoiseModel{RefMag: 10, PpmAtRefMag: 1000}, BaselineD: 400, CadenceD: 1}
+	assert.InDelta(t, 500/(1000*math.Sqrt(2.0/nPts)), d.SNR(500, 10), 1e-9)
+}
+
+func TestDetectionProbability(t *testing.T) {
+	d := DefaultDetection()
+	require.NoError(t, d.Validate())
+	a := DefaultAmplitudeModel()
+
+	// At the threshold the probability is one half, by construction.
+	noise := d.Noise.PpmPerCadence(14)
+	ampAtThreshold := d.ThresholdSNR * noise / math.Sqrt(0.5*d.Cadences())
+	assert.InDelta(t, 0.5, d.Probability(ampAtThreshold, 14, 10), 1e-12)
+
+	// Common practice, no source: a young, active star (Ro = 0.1, saturated
+	// 1 % spots) is found even at magnitude 15 ...
+	assert.Greater(t, d.Probability(a.MedianPpm(0.1), 15, 3), 0.99)
+	// ... while an old, slow, quiet one (Ro = 2.5, ~150 ppm) at magnitude
+	// 18 is almost never found, and never with fewer than 3 cycles.
+	assert.Less(t, d.Probability(a.MedianPpm(2.5), 18, 28), 0.05)
+	assert.Zero(t, d.Probability(1e6, 10, 35), "90-d baseline holds < 3 cycles of 35 d")
+
+	// Monotone: brighter and larger signals are easier.
+	prev := 1.0
+	for mag := 10.0; mag <= 20; mag += 0.5 {
+		p := d.Probability(300, mag, 10)
+		assert.LessOrEqual(t, p, prev)
+		prev = p
+	}
+	prev = 0
+	for amp := 10.0; amp < 1e5; amp *= 1.5 {
+		p := d.Probability(amp, 16, 10)
+		assert.GreaterOrEqual(t, p, prev)
+		prev = p
+	}
+	for _, bad := range [][3]float64{{0, 12, 10}, {100, 12, 0}, {math.NaN(), 12, 10}, {100, 12, math.NaN()}} {
+		assert.Zero(t, d.Probability(bad[0], bad[1], bad[2]), "%v", bad)
+	}
+}
+
+func TestDetectionValidate(t *testing.T) {
+	for name, edit := range map[string]func(*Detection){
+		"BaselineD":    func(d *Detection) { d.BaselineD = 0 },
+		"CadenceD":     func(d *Detection) { d.CadenceD = 200 },
+		"ThresholdSNR": func(d *Detection) { d.ThresholdSNR = -1 },
+		"Sharpness":    func(d *Detection) { d.Sharpness = 0 },
+		"MinCycles":    func(d *Detection) { d.MinCycles = math.NaN() },
+		"PpmAtRefMag":  func(d *Detection) { d.Noise.PpmAtRefMag = 0 },
+	} {
+		d := DefaultDetection()
+		edit(&d)
+		assert.ErrorContains(t, d.Validate(), name)
+	}
+	a := DefaultAmplitudeModel()
+	a.Slope = -1
+	assert.ErrorContains(t, a.Validate(), "Slope")
+}
+
+func TestRecover(t *testing.T) {
+	opts := DefaultRecoveryOptions()
+	require.NoError(t, opts.Validate())
+	r := rand.New(rand.NewPCG(11, 12))
+	const n = 100000
+	var counts [3]int
+	var sum, sum2 float64
+	for range n {
+		p, alias := Recover(10, r, opts)
+		counts[alias]++
+		x := math.Log(p / 10)
+		switch alias {
+		case AliasHalf:
+			x -= math.Log(0.5)
+		case AliasDouble:
+			x -= math.Log(2)
+		}
+		sum += x
+		sum2 += x * x
+	}
+	// Binomial standard errors are ≈ 0.0007 and 0.0004; allow ~5σ.
+	assert.InDelta(t, opts.HalfProb, float64(counts[AliasHalf])/n, 0.0035)
+	assert.InDelta(t, opts.DoubleProb, float64(counts[AliasDouble])/n, 0.002)
+	mean := sum / n
+	assert.InDelta(t, 0, mean, 0.001)
+	assert.InDelta(t, opts.RelScatter, math.Sqrt(sum2/n-mean*mean), 0.001)
+
+	// No scatter, no aliases: the truth comes back.
+	p, alias := Recover(7.5, r, RecoveryOptions{})
+	assert.Equal(t, 7.5, p)
+	assert.Equal(t, AliasNone, alias)
+	// Same seed, same numbers.
+	a, b := rand.New(rand.NewPCG(1, 1)), rand.New(rand.NewPCG(1, 1))
+	for range 50 {
+		pa, la := Recover(3, a, opts)
+		pb, lb := Recover(3, b, opts)
+		require.Equal(t, pa, pb)
+		require.Equal(t, la, lb)
+	}
+	p, _ = Recover(-1, r, opts)
+	assert.True(t, math.IsNaN(p))
+	assert.Error(t, RecoveryOptions{HalfProb: 0.7, DoubleProb: 0.5}.Validate())
+	assert.Error(t, RecoveryOptions{RelScatter: -0.1}.Validate())
+}
+
+func TestSpotsHotPathsDoNotAllocate(t *testing.T) {
+	a, d, o := DefaultAmplitudeModel(), DefaultDetection(), DefaultRecoveryOptions()
+	r := rand.New(rand.NewPCG(1, 2))
+	assert.Zero(t, testing.AllocsPerRun(100, func() { d.Probability(a.Draw(0.5, r), 14, 8) }))
+	assert.Zero(t, testing.AllocsPerRun(100, func() { Recover(8, r, o) }))
+}

@@ -1,0 +1,129 @@
+package model
+
+import "math"
+
+// Step names the selection steps in the order a star meets them. Counts
+// are cumulative: a star counted at a step passed every step before it.
+var Steps = []string{"generated", "dwarf", "magnitude_range", "color_range", "main_sequence", "period_detected", "period_window"}
+
+// Tally accumulates what a run needs to summarise and plot, chunk by chunk,
+// in memory independent of the number of stars. Merge order is chunk
+// order, so sums are bit-identical for any worker count.
+type Tally struct {
+	StepCounts []int64 // len(Steps)
+
+	AgeEdgesGyr  []float64
+	AgeGenerated []int64 // per age bin, all generated dwarfs
+	AgeSelected  []int64 // per age bin, stars in the final catalogue
+	AgeMagRange  []int64 // per age bin, dwarfs inside the magnitude limits (before period detection)
+	AgeDetected  []int64 // per age bin, of AgeMagRange those with a detected period
+
+	// Period–color density of catalogue stars.
+	ColorEdges  []float64
+	LogPerEdges []float64
+	PeriodColor [][]int64 // [color bin][log-period bin]
+	// |z| of catalogue stars.
+	AbsZEdgesPc []float64
+	AbsZ        []int64
+
+	Binaries, Evolved, Aliased int64
+	// OutsideLaw counts dwarfs that pass the magnitude, color and
+	// main-sequence cuts but lie outside the spin-down law's calibrated
+	// range, so they have no period.
+	OutsideLaw int64
+}
+
+// NewTally prepares empty histograms on the given edges.
+func NewTally(ageEdges, colorEdges, logPerEdges, absZEdges []float64) *Tally {
+	t := &Tally{
+		StepCounts:   make([]int64, len(Steps)),
+		AgeEdgesGyr:  ageEdges,
+		AgeGenerated: make([]int64, len(ageEdges)-1),
+		AgeSelected:  make([]int64, len(ageEdges)-1),
+		AgeMagRange:  make([]int64, len(ageEdges)-1),
+		AgeDetected:  make([]int64, len(ageEdges)-1),
+		ColorEdges:   colorEdges,
+		LogPerEdges:  logPerEdges,
+		AbsZEdgesPc:  absZEdges,
+		AbsZ:         make([]int64, len(absZEdges)-1),
+	}
+	t.PeriodColor = make([][]int64, len(colorEdges)-1)
+	for i := range t.PeriodColor {
+		t.PeriodColor[i] = make([]int64, len(logPerEdges)-1)
+	}
+	return t
+}
+
+// Add counts the stars of one chunk.
+func (t *Tally) Add(c *Chunk) {
+	for i := 0; i < c.N; i++ {
+		f := c.Flags[i]
+		t.StepCounts[0]++
+		if f&FlagGone != 0 {
+			continue
+		}
+		k := c.AgeBin[i]
+		t.AgeGenerated[k]++
+		step := 1
+		for _, need := range []Flag{FlagInMagRange, FlagInColorRange, FlagOnMainSeq, FlagDetected, FlagInPeriodWindow} {
+			if f&need == 0 || (need == FlagDetected && f&FlagOutsideLaw != 0) {
+				break
+			}
+			t.StepCounts[step+1]++
+			step++
+		}
+		t.StepCounts[1]++
+		if f&FlagInMagRange != 0 {
+			t.AgeMagRange[k]++
+			if f&FlagDetected != 0 {
+				t.AgeDetected[k]++
+			}
+		}
+		if f&(FlagOutsideLaw|FlagInMagRange|FlagInColorRange|FlagOnMainSeq) == FlagOutsideLaw|FlagInMagRange|FlagInColorRange|FlagOnMainSeq {
+			t.OutsideLaw++ // would have been in the catalogue but for the law's range
+		}
+		if !f.Selected() {
+			continue
+		}
+		t.AgeSelected[k]++
+		if f&FlagBinary != 0 {
+			t.Binaries++
+		}
+		if f&FlagEvolved != 0 {
+			t.Evolved++
+		}
+		if f&(FlagHalfAlias|FlagDoubleAlias) != 0 {
+			t.Aliased++
+		}
+		ci := bin(t.ColorEdges, c.ObsBV[i])
+		pi := bin(t.LogPerEdges, math.Log10(c.MeasPeriodD[i]))
+		if ci >= 0 && pi >= 0 {
+			t.PeriodColor[ci][pi]++
+		}
+		if zi := bin(t.AbsZEdgesPc, math.Abs(c.ZPc[i])); zi >= 0 {
+			t.AbsZ[zi]++
+		}
+	}
+}
+
+// Selected is the number of stars in the final catalogue.
+func (t *Tally) Selected() int64 { return t.StepCounts[len(Steps)-1] }
+
+// bin returns the index of the half-open bin [e_i, e_i+1) holding x (the
+// last bin is closed), or -1 outside the edges.
+func bin(edges []float64, x float64) int {
+	n := len(edges) - 1
+	if n < 1 || !(x >= edges[0] && x <= edges[n]) {
+		return -1
+	}
+	lo, hi := 0, n
+	for hi-lo > 1 {
+		mid := (lo + hi) / 2
+		if x >= edges[mid] {
+			lo = mid
+		} else {
+			hi = mid
+		}
+	}
+	return lo
+}

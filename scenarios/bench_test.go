@@ -1,0 +1,24 @@
+package scenarios
+
+import "testing"
+
+// Loading happens once per run, so these are for regressions, not a hot path.
+
+func BenchmarkLoadExample(b *testing.B) {
+	for b.Loop() {
+		if _, err := LoadExample("burst"); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+func BenchmarkHash(b *testing.B) {
+	r, err := LoadExample("burst")
+	if err != nil {
+		b.Fatal(err)
+	}
+	b.ReportAllocs()
+	for b.Loop() {
+		_ = r.Hash()
+	}
+}

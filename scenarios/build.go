@@ -1,0 +1,291 @@
+package scenarios
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"sort"
+
+	"spinpop/disk"
+	"spinpop/model"
+	"spinpop/model/spin"
+	"spinpop/model/spots"
+	"spinpop/sfh"
+)
+
+// Built is a scenario turned into the objects a run uses. Tables inside are
+// built once and shared read-only by all workers.
+type Built struct {
+	Scenario    *Scenario
+	History     *sfh.History
+	AgeEdgesGyr []float64
+	Sampler     *disk.Sampler // the field's per-age-bin line-of-sight tables
+	Population  *model.Population
+	Relations   *model.Relations
+	Law         spin.Law
+	Sun         disk.Sun
+
+	binSamplers []*sfh.RangeSampler
+}
+
+// Build makes the run objects of a resolved scenario. Errors here come from
+// combinations the loader cannot see alone (for instance a mass range
+// beyond the relation table); they name the keys involved.
+func Build(s *Scenario) (*Built, error) {
+	b := &Built{Scenario: s, AgeEdgesGyr: s.Disk.AgeBinEdgesGyr}
+	var err error
+	if b.History, err = BuildHistory(s); err != nil {
+		return nil, err
+	}
+	if b.Relations, err = model.DwarfSequence(); err != nil {
+		return nil, err
+	}
+	lo, hi := b.Relations.MassRange()
+	if s.IMF.MassMinMsun < lo || s.IMF.MassMaxMsun > hi {
+		return nil, fmt.Errorf("imf.mass_min_msun/mass_max_msun = %g–%g M☉ reaches beyond the main-sequence relation table (%g–%g M☉): narrow the range", s.IMF.MassMinMsun, s.IMF.MassMaxMsun, lo, hi)
+	}
+	imf, err := model.NewIMF(s.IMF.Form, s.IMF.MassMinMsun, s.IMF.MassMaxMsun)
+	if err != nil {
+		return nil, fmt.Errorf("imf: %w", err)
+	}
+	if b.Law, err = BuildLaw(s, b.Relations); err != nil {
+		return nil, err
+	}
+	turn, err := spin.TurnoverByName(s.Spin.Turnover)
+	if err != nil {
+		return nil, fmt.Errorf("spin.turnover: %w", err)
+	}
+
+	b.Sun = disk.Sun{RKpc: s.Disk.SunRadiusKpc, ZPc: s.Disk.SunHeightPc}
+	if b.Sampler, err = b.sampler(); err != nil {
+		return nil, err
+	}
+	// Ages inside each bin follow the history exactly.
+	nb := len(b.AgeEdgesGyr) - 1
+	b.binSamplers = make([]*sfh.RangeSampler, nb)
+	mass := b.History.BinWeights(b.AgeEdgesGyr)
+	prob := make([]float64, nb)
+	for k := range nb {
+		prob[k] = mass[k] * b.Sampler.BinIntegral(k)
+		if mass[k] > 0 {
+			if b.binSamplers[k], err = b.History.RangeSampler(b.AgeEdgesGyr[k], b.AgeEdgesGyr[k+1]); err != nil {
+				return nil, fmt.Errorf("history: age bin %d: %w", k, err)
+			}
+		}
+	}
+
+	det := spots.Detection{
+		Noise:        spots.NoiseModel{FloorPpm: s.Survey.NoiseFloorPpm, RefMag: s.Survey.NoiseRefMag, PpmAtRefMag: s.Survey.NoisePpmAtRefMag},
+		BaselineD:    s.Survey.BaselineD,
+		CadenceD:     s.Survey.CadenceD,
+		ThresholdSNR: s.Survey.DetectionSNR,
+		Sharpness:    4,
+		MinCycles:    s.Survey.MinCycles,
+	}
+	if err := det.Validate(); err != nil {
+		return nil, fmt.Errorf("survey: %w", err)
+	}
+	rec := spots.RecoveryOptions{RelScatter: s.Survey.PeriodScatterRel, HalfProb: s.Survey.HalfAliasProb, DoubleProb: s.Survey.DoubleAliasProb}
+	if err := rec.Validate(); err != nil {
+		return nil, fmt.Errorf("survey: %w", err)
+	}
+	band, err := model.ParseBand(s.Survey.Band)
+	if err != nil {
+		return nil, fmt.Errorf("survey.band: %w", err)
+	}
+	var amp *spots.AmplitudeModel
+	if s.Spin.Spots.Enabled {
+		amp = &spots.AmplitudeModel{RoSat: s.Spin.Spots.RoSat, AmpSatPpm: s.Spin.Spots.AmpSatPpm, Slope: s.Spin.Spots.Slope, ScatterDex: s.Spin.Spots.ScatterDex}
+		if err := amp.Validate(); err != nil {
+			return nil, fmt.Errorf("spin.spots: %w", err)
+		}
+	}
+	var dust model.Extinction
+	if s.Dust.Model == "exponential" {
+		dl := disk.DustLayer{ScaleHeightPc: s.Dust.ScaleHeightPc, MidplaneAvPerKpc: s.Dust.MidplaneAvPerKpc}
+		if err := dl.Validate(); err != nil {
+			return nil, fmt.Errorf("dust: %w", err)
+		}
+		sun := b.Sun
+		dust = func(l, bb, d float64) float64 { return dl.AV(l, bb, d, sun) }
+	}
+
+	b.Population = &model.Population{
+		BinProb:   prob,
+		Age:       b.ageInBin,
+		Place:     b.Sampler,
+		Dust:      dust,
+		IMF:       imf,
+		Relations: b.Relations,
+		Law:       b.Law,
+		Turnover:  turn,
+		Spots:     amp,
+		Evolved:   s.Stars.Evolved,
+		Binaries: model.Binaries{
+			FractionScale:     s.Stars.BinaryFractionScale,
+			MassRatioMin:      s.Stars.BinaryMassRatioMin,
+			TidalLockFraction: s.Stars.TidalLockFraction,
+			TidalLockMaxD:     s.Stars.TidalLockPeriodMaxD,
+		},
+		Metals: model.Metallicity{SigmaDex: s.Stars.MetallicitySigmaDex, ColorPerDex: s.Stars.ColorPerDex, AbsMagPerDex: s.Stars.AbsMagPerDex},
+		Survey: model.Survey{Band: band, BrightLimitMag: s.Survey.BrightLimitMag, FaintLimitMag: s.Survey.FaintLimitMag, Detect: det, Recovery: rec},
+		Cuts:   CutsOf(s),
+	}
+	if err := b.Population.Prepare(); err != nil {
+		return nil, err
+	}
+	return b, nil
+}
+
+func (b *Built) ageInBin(k int, r *rand.Rand) float64 { return b.binSamplers[k].Sample(r) }
+
+// sampler builds the field's line-of-sight tables: each age bin's vertical
+// profile is the mixture of tracer profiles over the ages inside the bin,
+// formed at a constant rate within the bin (so the tables do not depend on
+// the history, and templates built from them serve any history).
+func (b *Built) sampler() (*disk.Sampler, error) {
+	s := b.Scenario
+	avr := disk.AVR{Sigma10Kms: s.Disk.Sigma10GyrKms, Tau1Gyr: s.Disk.HeatingTau1Gyr, Beta: s.Disk.HeatingBeta}
+	mixes := make([]disk.Mixture, len(b.AgeEdgesGyr)-1)
+	for k := range mixes {
+		m, err := avr.BinMixture(b.AgeEdgesGyr[k], b.AgeEdgesGyr[k+1], 4)
+		if err != nil {
+			return nil, fmt.Errorf("disk: %w", err)
+		}
+		mixes[k] = m
+	}
+	field, err := FieldOf(s)
+	if err != nil {
+		return nil, err
+	}
+	sheet := disk.Sheet{SheetSigmaKms: s.Disk.SheetSigmaKms, SurfaceDensityMsunPc2: s.Disk.SurfaceDensityMsunPc2}
+	radial := disk.Radial{ScaleLengthKpc: s.Disk.ScaleLengthKpc}
+	smp, err := disk.NewMixtureSampler(field, b.Sun, sheet, radial, mixes, disk.SamplerOptions{})
+	if err != nil {
+		return nil, fmt.Errorf("disk/survey.field: %w", err)
+	}
+	return smp, nil
+}
+
+// FieldOf turns survey.field into a disk.Field.
+func FieldOf(s *Scenario) (disk.Field, error) {
+	f := s.Survey.Field
+	var field disk.Field
+	switch f.Kind {
+	case "cone":
+		field = disk.Cone{LDeg: f.LDeg, BDeg: f.BDeg, RadiusDeg: f.RadiusDeg, DistMinPc: f.DistanceMinPc, DistMaxPc: f.DistanceMaxPc}
+	case "sphere":
+		field = disk.Sphere{RadiusPc: f.DistanceMaxPc, DistMinPc: f.DistanceMinPc}
+	case "cones":
+		cl := make(disk.ConeList, len(f.Cones))
+		for i, c := range f.Cones {
+			cl[i] = disk.Cone{LDeg: c.LDeg, BDeg: c.BDeg, RadiusDeg: c.RadiusDeg, DistMinPc: c.DistanceMinPc, DistMaxPc: c.DistanceMaxPc}
+		}
+		field = cl
+	default:
+		return nil, fmt.Errorf("survey.field.kind = %q: want cone, sphere or cones", f.Kind)
+	}
+	if err := field.Validate(); err != nil {
+		return nil, fmt.Errorf("survey.field: %w", err)
+	}
+	return field, nil
+}
+
+// CutsOf gives the catalogue cuts, shared by model and data.
+func CutsOf(s *Scenario) model.Cuts {
+	c := s.Cuts
+	return model.Cuts{BVMin: c.BVMin, BVMax: c.BVMax, MSBandBrightMag: c.MSBandBrightMag, MSBandFaintMag: c.MSBandFaintMag,
+		PeriodMinD: c.PeriodMinD, PeriodMaxD: c.PeriodMaxD, HeightMaxPc: c.HeightMaxPc}
+}
+
+// BuildHistory builds the star-formation history of a scenario. Parts are taken
+// in name order so the same file always builds the same history.
+func BuildHistory(s *Scenario) (*sfh.History, error) {
+	names := make([]string, 0, len(s.History.Parts))
+	for n := range s.History.Parts {
+		names = append(names, n)
+	}
+	sort.Strings(names)
+	parts := make([]sfh.Part, 0, len(names))
+	for _, n := range names {
+		p := s.History.Parts[n]
+		var c sfh.Component
+		w := 0.0
+		switch p.Kind {
+		case "constant":
+			c, w = sfh.Constant{}, p.Weight
+		case "exponential":
+			c, w = sfh.Exponential{TimescaleGyr: p.TimescaleGyr}, p.Weight
+		case "bins":
+			c, w = sfh.Piecewise{EdgesGyr: p.EdgesGyr, Rates: p.Rates}, p.Weight
+		case "burst":
+			c = sfh.Burst{AgeGyr: p.AgeGyr, WidthGyr: p.WidthGyr, MassFraction: p.MassFraction}
+		case "dip":
+			c = sfh.Dip{AgeGyr: p.AgeGyr, WidthGyr: p.WidthGyr, Depth: p.Depth}
+		default:
+			return nil, fmt.Errorf("history.%s.kind = %q: want constant, exponential, bins, burst or dip", n, p.Kind)
+		}
+		parts = append(parts, sfh.Part{Name: n, Component: c, Weight: w})
+	}
+	h, err := sfh.New(s.History.MaxAgeGyr, parts)
+	if err != nil {
+		return nil, fmt.Errorf("history: %w", err)
+	}
+	return h, nil
+}
+
+// BuildLaw builds the scenario's spin-down law. The torque law takes stellar
+// radius and temperature from the relation table.
+func BuildLaw(s *Scenario, rel *model.Relations) (spin.Law, error) {
+	if s.Spin.Law != "torque" {
+		if s.Spin.Stall.Enabled || s.Spin.Weakened.Enabled {
+			return nil, fmt.Errorf("spin.stall / spin.weakened_braking are options of the torque law; spin.law = %q cannot use them (set spin.law = \"torque\" or disable them)", s.Spin.Law)
+		}
+		l, err := spin.ByName(s.Spin.Law)
+		if err != nil {
+			return nil, fmt.Errorf("spin.law: %w", err)
+		}
+		return l, nil
+	}
+	t := s.Spin.Torque
+	o := spin.DefaultTorqueOptions()
+	turn, err := spin.TurnoverByName(s.Spin.Turnover)
+	if err != nil {
+		return nil, fmt.Errorf("spin.turnover: %w", err)
+	}
+	o.Turnover = turn
+	// The torque scalings were tuned with R = M^0.8 (spin.PowerLawRadius);
+	// the relation table supplies T_eff for the Cranmer & Saar turnover.
+	o.TeffOfMass = func(m float64) float64 {
+		if p, ok := rel.At(m); ok {
+			return p.TeffK
+		}
+		return 5772 * math.Pow(m, 0.5)
+	}
+	o.SolarPeriodD = t.SolarPeriodD
+	o.SaturationRatio = t.SaturationChi
+	o.StartAgeGyr = t.StartAgeGyr
+	switch t.InitialPeriodDist {
+	case "log-uniform":
+		o.Initial = spin.InitialPeriods{Shape: spin.LogUniform, MinD: t.InitialPeriodMinD, MaxD: t.InitialPeriodMaxD}
+	case "lognormal":
+		o.Initial = spin.InitialPeriods{Shape: spin.LogNormal, MedianD: t.InitialPeriodMedD, SigmaDex: t.InitialPeriodSigDex}
+	default:
+		return nil, fmt.Errorf("spin.torque.initial_period_dist = %q: want log-uniform or lognormal", t.InitialPeriodDist)
+	}
+	if s.Spin.Weakened.Enabled {
+		o.RoCrit = s.Spin.Weakened.RoCrit
+	}
+	st := s.Spin.Stall
+	if st.Enabled {
+		// The scenario writes start ∝ (m/0.8)^slope; spin.StallOptions
+		// writes (m/0.8)^(−slope).
+		o.Stall = spin.StallOptions{Enabled: true, PivotMsun: 0.8, StartGyrAtPivot: st.StartGyrAt08, DurationGyrAtPivot: st.DurationGyrAt08,
+			StartMassSlope: -st.StartSlope, DurationMassSlope: -st.DurationSlope, CutoffMsun: st.MassMaxMsun}
+	}
+	l, err := spin.NewTorqueLaw(o)
+	if err != nil {
+		return nil, fmt.Errorf("spin.torque: %w", err)
+	}
+	return l, nil
+}

@@ -1,0 +1,172 @@
+package scenarios
+
+import "math"
+
+// builtinDefaults is the bottom layer of every scenario: each key with a
+// default, written the way a user would. Keys whose default depends on
+// other keys (name, cuts.period_min_d, cuts.period_max_d,
+// disk.age_bin_edges_gyr, a smooth part's weight) are filled after the
+// merge by fillDerived. Values marked [memory] are recalled, not read; see
+// DESIGN.md's physics menu.
+const builtinDefaults = `
+description = ""
+
+[run]
+seed = 1
+stars_generated = 2_000_000
+chunk_stars = 65536
+
+[imf]
+form = "kroupa2001"
+mass_min_msun = 0.2
+mass_max_msun = 1.4
+
+[history]
+max_age_gyr = 10.0
+
+[disk]
+sigma_10gyr_kms = 25.0           # [memory]
+heating_tau1_gyr = 0.5           # [memory]
+heating_beta = 0.45              # [memory] thin-disk range 0.3-0.55
+sheet_sigma_kms = 20.0
+surface_density_msun_pc2 = 70.0  # [memory]
+scale_length_kpc = 2.6           # [memory]
+sun_radius_kpc = 8.122           # [memory]
+sun_height_pc = 20.8             # [memory]
+
+[dust]
+model = "none"
+scale_height_pc = 110.0          # [memory] 100-130 pc
+midplane_av_per_kpc = 0.8        # [memory] 0.7-1 mag/kpc
+
+[stars]
+relations = "mean-dwarf-sequence"
+binary_fraction_scale = 1.0
+binary_mass_ratio_min = 0.1
+tidal_lock_fraction = 0.0
+tidal_lock_period_max_d = 7.0
+evolved = true
+metallicity_sigma_dex = 0.0
+color_per_dex = 0.2              # [memory]
+abs_mag_per_dex = 1.0            # [memory]
+
+[spin]
+law = "barnes2007"
+turnover = "wright2018"
+
+[spin.torque]
+solar_period_d = 25.4            # [memory]
+saturation_chi = 10.0            # [memory] Matt et al. (2015)
+initial_period_dist = "lognormal"
+initial_period_min_d = 1.0
+initial_period_max_d = 10.0
+initial_period_median_d = 2.0
+initial_period_sigma_dex = 0.3
+start_age_gyr = 0.01
+
+[spin.stall]                     # illustrative, not a calibration
+enabled = false
+start_gyr_at_0p8msun = 0.5
+duration_gyr_at_0p8msun = 0.6
+start_mass_slope = -2.0
+duration_mass_slope = -2.0
+mass_max_msun = 1.0
+
+[spin.weakened_braking]
+enabled = false
+ro_crit = 2.0                    # [memory] van Saders et al. (2016)
+
+[spin.spots]                     # [memory] all four values, approximate
+enabled = true
+ro_sat = 0.15
+amp_sat_ppm = 10000.0
+slope = 1.0
+scatter_dex = 0.3
+
+[survey]
+name = ""
+band = "V"
+bright_limit_mag = 9.0
+faint_limit_mag = 16.0
+noise_floor_ppm = 60.0
+noise_ref_mag = 12.0
+noise_ppm_at_ref_mag = 250.0
+cadence_d = 0.0204
+baseline_d = 1400.0
+min_cycles = 3.0
+detection_snr = 10.0
+period_scatter_rel = 0.03
+half_alias_prob = 0.02
+double_alias_prob = 0.01
+
+[survey.field]
+kind = "cone"
+
+[cuts]
+b_v_min = 0.45
+b_v_max = 1.6
+ms_band_bright_mag = 0.4
+ms_band_faint_mag = 0.4
+height_max_pc = 0.0
+
+[output]
+catalog = true
+catalog_max_stars = 5_000_000
+plots = true
+gyrochrone_ages_gyr = [0.3, 0.6, 1.0, 2.0, 4.0]
+`
+
+// DefaultAgeBinEdges returns the default population age bins for a history
+// reaching maxAgeGyr: 40 bins, 0.05 Gyr wide up to 1 Gyr (where spin-down
+// changes fastest and a burst would sit), then 20 bins evenly spaced in log
+// age up to maxAgeGyr, rounded to 1e-6 Gyr so that canonical files stay
+// readable. A history younger than 2 Gyr gets 40 equal bins instead, all
+// narrower than 0.05 Gyr.
+func DefaultAgeBinEdges(maxAgeGyr float64) []float64 {
+	const bins, young = 40, 20
+	edges := make([]float64, bins+1)
+	if !(maxAgeGyr >= 2) {
+		for i := range edges {
+			edges[i] = maxAgeGyr * float64(i) / bins
+		}
+		edges[bins] = maxAgeGyr
+		return edges
+	}
+	for i := 0; i <= young; i++ {
+		edges[i] = float64(i) / young // exact: i/20 rounds like the decimal i*0.05
+	}
+	for i := 1; i < bins-young; i++ {
+		e := math.Pow(maxAgeGyr, float64(i)/(bins-young))
+		edges[young+i] = math.Round(e*1e6) / 1e6 // log steps ≥ 2^(1/20): rounding cannot merge edges
+	}
+	edges[bins] = maxAgeGyr
+	return edges
+}
+
+// fillDerived sets the defaults that depend on other keys, for keys no
+// layer set, and records them as defaults so errors about them say so.
+func (d *decoder) fillDerived(s *Scenario, name string) {
+	if !d.present("name") {
+		s.Name = name
+		d.origins["name"] = origin{note: "default: the file name"}
+	}
+	// A default derived from a bad key is bad too, and not reported twice.
+	if !d.present("cuts.period_min_d") && d.errs.isBad("survey.cadence_d") {
+		d.errs.markBad("cuts.period_min_d")
+	}
+	if !d.present("cuts.period_max_d") && (d.errs.isBad("survey.baseline_d") || d.errs.isBad("survey.min_cycles")) {
+		d.errs.markBad("cuts.period_max_d")
+	}
+	if !d.present("cuts.period_min_d") {
+		s.Cuts.PeriodMinD = 2 * s.Survey.CadenceD
+		d.origins["cuts.period_min_d"] = origin{note: "default: 2 × survey.cadence_d"}
+	}
+	if !d.present("cuts.period_max_d") && s.Survey.MinCycles > 0 {
+		s.Cuts.PeriodMaxD = s.Survey.BaselineD / s.Survey.MinCycles
+		d.origins["cuts.period_max_d"] = origin{note: "default: survey.baseline_d / survey.min_cycles"}
+	}
+	if !d.present("disk.age_bin_edges_gyr") && s.History.MaxAgeGyr > 0 && !math.IsInf(s.History.MaxAgeGyr, 0) {
+		s.Disk.AgeBinEdgesGyr = DefaultAgeBinEdges(s.History.MaxAgeGyr)
+		d.origins["disk.age_bin_edges_gyr"] = origin{note: "default: 40 bins from 0 to history.max_age_gyr"}
+	}
+}

@@ -1,0 +1,184 @@
+package scenarios
+
+import (
+	"math"
+	"os"
+	"reflect"
+	"regexp"
+	"strconv"
+	"strings"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+)
+
+func loadMinimal(t *testing.T, extra string) *Resolved {
+	t.Helper()
+	r, err := LoadBytes("minimal.toml", []byte(minimal+extra), nil)
+	require.NoError(t, err)
+	return r
+}
+
+func TestDefaultsFilled(t *testing.T) {
+	s := loadMinimal(t, "").Scenario
+	// Project defaults as documented in schema.go.
+	assert.Equal(t, "minimal", s.Name, "name defaults to the file name")
+	assert.Equal(t, Run{Seed: 1, StarsGenerated: 2_000_000, ChunkStars: 65536}, s.Run)
+	assert.Equal(t, IMF{Form: "kroupa2001", MassMinMsun: 0.2, MassMaxMsun: 1.4}, s.IMF)
+	assert.Equal(t, 10.0, s.History.MaxAgeGyr)
+	assert.Equal(t, map[string]Part{"smooth": {Kind: "constant", Weight: 1}}, s.History.Parts)
+	assert.Equal(t, Dust{Model: "none", ScaleHeightPc: 110, MidplaneAvPerKpc: 0.8}, s.Dust)
+	assert.Equal(t, "barnes2007", s.Spin.Law)
+	assert.Equal(t, "wright2018", s.Spin.Turnover)
+	assert.True(t, s.Spin.Spots.Enabled)
+	assert.False(t, s.Spin.Stall.Enabled)
+	assert.True(t, s.Stars.Evolved)
+	assert.True(t, s.Output.Catalog)
+	assert.True(t, s.Output.Plots)
+	assert.Equal(t, []float64{0.3, 0.6, 1, 2, 4}, s.Output.GyrochroneAgesGyr)
+	assert.Equal(t, Field{Kind: "sphere", DistanceMaxPc: 500}, s.Survey.Field)
+
+	// Derived defaults.
+	// Source: Nyquist sampling: a period needs at least two samples per cycle.
+	assert.Equal(t, 2*0.0204, s.Cuts.PeriodMinD)
+	assert.Equal(t, 1400.0/3, s.Cuts.PeriodMaxD, "baseline holds min_cycles cycles")
+	assert.Equal(t, DefaultAgeBinEdges(10), s.Disk.AgeBinEdgesGyr)
+}
+
+func TestDerivedDefaultsFollowTheirSources(t *testing.T) {
+	s := loadMinimal(t, "[survey]\ncadence_d = 0.5\nbaseline_d = 100.0\nmin_cycles = 4.0\n[history]\nmax_age_gyr = 12.0\n").Scenario
+	assert.Equal(t, 1.0, s.Cuts.PeriodMinD)
+	assert.Equal(t, 25.0, s.Cuts.PeriodMaxD)
+	assert.Equal(t, DefaultAgeBinEdges(12), s.Disk.AgeBinEdgesGyr)
+	assert.Equal(t, 12.0, s.Disk.AgeBinEdgesGyr[40])
+
+	s = loadMinimal(t, "[cuts]\nperiod_min_d = 0.3\nperiod_max_d = 70.0\n").Scenario
+	assert.Equal(t, 0.3, s.Cuts.PeriodMinD, "explicit values win")
+	assert.Equal(t, 70.0, s.Cuts.PeriodMaxD)
+}
+
+func TestDefaultAgeBinEdges(t *testing.T) {
+	e := DefaultAgeBinEdges(10)
+	require.Len(t, e, 41)
+	for i := 0; i <= 20; i++ {
+		assert.InDelta(t, 0.05*float64(i), e[i], 1e-15, "0.05 Gyr bins up to 1 Gyr")
+	}
+	for i := 21; i <= 40; i++ {
+		assert.InDelta(t, math.Pow(10, float64(i-20)/20), e[i], 1e-6, "log-spaced above 1 Gyr")
+		assert.Greater(t, e[i]-e[i-1], e[i-1]-e[i-2]-1e-9, "bins widen with age")
+	}
+	assert.Equal(t, 10.0, e[40])
+
+	for _, maxAge := range []float64{0.8, 1.000001, 1.9} {
+		e = DefaultAgeBinEdges(maxAge)
+		require.Len(t, e, 41)
+		assert.Equal(t, 0.0, e[0])
+		assert.Equal(t, maxAge, e[40])
+		for i := 1; i <= 40; i++ {
+			assert.InDelta(t, maxAge/40, e[i]-e[i-1], 1e-12, "a young history gets equal bins")
+		}
+	}
+	// Just old enough for the split: the log bins stay distinct after rounding.
+	e = DefaultAgeBinEdges(2)
+	for i := 1; i < len(e); i++ {
+		assert.Greater(t, e[i], e[i-1])
+	}
+}
+
+// TestEveryKeyHasADefaultOrIsRequired guards the defaults layer: each key of
+// the canonical form comes from builtinDefaults, unless it is derived or
+// belongs to the parts a user must give.
+func TestEveryKeyHasADefaultOrIsRequired(t *testing.T) {
+	def, err := parseLayer("", []byte(builtinDefaults))
+	require.NoError(t, err)
+	derived := map[string]bool{"name": true, "cuts.period_min_d": true, "cuts.period_max_d": true, "disk.age_bin_edges_gyr": true}
+	tree := toTree(reflect.ValueOf(loadMinimal(t, "").Scenario))
+	var walk func(path string, tree, defs map[string]any)
+	walk = func(path string, tree, defs map[string]any) {
+		for k, v := range tree {
+			p := joinKey(path, k)
+			if derived[p] || p == "history.smooth" || (path == "survey.field" && k != "kind") {
+				continue
+			}
+			dv, ok := defs[k]
+			if !assert.True(t, ok, "%s has no built-in default", p) {
+				continue
+			}
+			if sub, isTable := v.(map[string]any); isTable {
+				walk(p, sub, dv.(map[string]any))
+			}
+		}
+		for k := range defs {
+			_, ok := tree[k]
+			assert.True(t, ok, "default for unknown key %s", joinKey(path, k))
+		}
+	}
+	walk("", tree, def.data)
+}
+
+// TestSchemaCommentsMatchDefaults keeps schema.go's "default X" comments in
+// step with the defaults the loader applies.
+func TestSchemaCommentsMatchDefaults(t *testing.T) {
+	src, err := os.ReadFile("schema.go")
+	require.NoError(t, err)
+	tables := map[string]string{
+		"Run": "run", "IMF": "imf", "History": "history", "Disk": "disk", "Dust": "dust",
+		"Stars": "stars", "Spin": "spin", "TorqueLaw": "spin.torque", "Stall": "spin.stall",
+		"Weakened": "spin.weakened_braking", "Spots": "spin.spots", "Survey": "survey",
+		"Field": "survey.field", "Cuts": "cuts", "Output": "output",
+	}
+	typeRe := regexp.MustCompile(`^type (\w+) struct`)
+	fieldRe := regexp.MustCompile("`toml:\"(\\w+)\"`\\s*//(.*)$")
+	numRe := regexp.MustCompile(`default (-?[0-9][0-9_.]*)\s*(?:$|;|\()`)
+	strRe := regexp.MustCompile(`"([^"]+)" \(default`)
+	boolRe := regexp.MustCompile(`default (true|false)`)
+	// A cone field without an explicit kind, so the field's default kind shows.
+	r, err := LoadBytes("x.toml", []byte("[history.s]\nkind = \"constant\"\n[survey.field]\nl_deg = 1.0\nb_deg = 2.0\nradius_deg = 3.0\ndistance_max_pc = 4.0\n"), nil)
+	require.NoError(t, err)
+	tree := toTree(reflect.ValueOf(r.Scenario))
+	table := ""
+	checked := 0
+	for _, line := range strings.Split(string(src), "\n") {
+		if m := typeRe.FindStringSubmatch(line); m != nil {
+			table = tables[m[1]]
+			continue
+		}
+		m := fieldRe.FindStringSubmatch(line)
+		if m == nil || table == "" {
+			continue
+		}
+		var node any = tree
+		for _, k := range strings.Split(table, ".") {
+			node = node.(map[string]any)[k]
+		}
+		got, ok := node.(map[string]any)[m[1]]
+		if !ok {
+			continue // a field key of another kind
+		}
+		comment := m[2]
+		switch {
+		case numRe.MatchString(comment):
+			want, err := strconv.ParseFloat(strings.ReplaceAll(strings.TrimSuffix(numRe.FindStringSubmatch(comment)[1], "."), "_", ""), 64)
+			require.NoError(t, err, line)
+			var x float64
+			switch g := got.(type) {
+			case float64:
+				x = g
+			case int64:
+				x = float64(g)
+			case uint64:
+				x = float64(g)
+			}
+			assert.Equal(t, want, x, "%s.%s", table, m[1])
+			checked++
+		case strRe.MatchString(comment):
+			assert.Equal(t, strRe.FindStringSubmatch(comment)[1], got, "%s.%s", table, m[1])
+			checked++
+		case boolRe.MatchString(comment):
+			assert.Equal(t, boolRe.FindStringSubmatch(comment)[1] == "true", got, "%s.%s", table, m[1])
+			checked++
+		}
+	}
+	assert.Greater(t, checked, 60, "the comment scan found too few defaults; has schema.go's layout changed?")
+}

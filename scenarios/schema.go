@@ -1,0 +1,227 @@
+package scenarios
+
+// This file is the scenario format: every key a scenario file may hold, its
+// unit (in the key's name) and its default. The loader is strict: a key that
+// is not declared here is an error, so the struct tags below are the format's
+// single source of truth. The built-in defaults live in defaults.go as a TOML
+// layer under every scenario; keep the comments here in step with it and with
+// README.md's scenario reference.
+
+// Scenario is one fully resolved run description.
+type Scenario struct {
+	Name        string `toml:"name"`        // default: the loaded file's name without ".toml"
+	Description string `toml:"description"` // free text; default ""
+
+	Run     Run     `toml:"run"`
+	IMF     IMF     `toml:"imf"`
+	History History `toml:"history"`
+	Disk    Disk    `toml:"disk"`
+	Dust    Dust    `toml:"dust"`
+	Stars   Stars   `toml:"stars"`
+	Spin    Spin    `toml:"spin"`
+	Survey  Survey  `toml:"survey"`
+	Cuts    Cuts    `toml:"cuts"`
+	Output  Output  `toml:"output"`
+}
+
+// Run fixes the random seed and the size of the synthetic population.
+type Run struct {
+	Seed           uint64 `toml:"seed"`            // default 1
+	StarsGenerated int64  `toml:"stars_generated"` // stars drawn before any selection; default 2_000_000
+	ChunkStars     int    `toml:"chunk_stars"`     // stars per chunk (one random stream each); default 65536
+}
+
+// IMF chooses the initial mass function and the mass range drawn.
+type IMF struct {
+	Form        string  `toml:"form"`          // "kroupa2001" (default) or "chabrier2003"
+	MassMinMsun float64 `toml:"mass_min_msun"` // default 0.2
+	MassMaxMsun float64 `toml:"mass_max_msun"` // default 1.4
+}
+
+// History is the star-formation history over lookback age. Besides
+// max_age_gyr, every sub-table is a named part, e.g.
+//
+//	[history.smooth]
+//	kind = "constant"
+//	[history.burst]
+//	kind = "burst"
+//	age_gyr = 0.6
+//
+// so that fit parameters have paths like "history.burst.age_gyr". Part
+// names are bare TOML keys (letters, digits, '_' and '-'). A scenario needs
+// at least one part; there is no default history.
+type History struct {
+	MaxAgeGyr float64         `toml:"max_age_gyr"` // default 10
+	Parts     map[string]Part `toml:"-"`           // decoded by hand from the sub-tables
+}
+
+// Part is one component of a star-formation history. Which keys apply
+// depends on Kind; a key that does not apply to the kind is an error:
+//
+//	constant     weight
+//	exponential  weight, timescale_gyr (required)
+//	burst        age_gyr, width_gyr, mass_fraction (all required)
+//	dip          age_gyr, width_gyr, depth (all required)
+//	bins         weight, edges_gyr, rates (both required)
+//
+// In a file that extends another, kind = "none" removes an inherited part.
+type Part struct {
+	Kind         string    `toml:"kind"`          // constant | exponential | burst | dip | bins
+	Weight       float64   `toml:"weight"`        // smooth parts: relative share of non-burst mass; default 1
+	TimescaleGyr float64   `toml:"timescale_gyr"` // exponential: e-folding time in cosmic time, > 0 (declining rate)
+	AgeGyr       float64   `toml:"age_gyr"`       // burst, dip: centre in lookback age
+	WidthGyr     float64   `toml:"width_gyr"`     // burst, dip: Gaussian sigma
+	MassFraction float64   `toml:"mass_fraction"` // burst: share of all mass formed, in [0,1]
+	Depth        float64   `toml:"depth"`         // dip: fractional suppression at its centre, in [0,1]
+	EdgesGyr     []float64 `toml:"edges_gyr"`     // bins: increasing lookback-age edges
+	Rates        []float64 `toml:"rates"`         // bins: relative rate per bin (len(edges)-1)
+}
+
+// Disk places stars: heating with age, the vertical potential, the radial
+// profile and the Sun.
+type Disk struct {
+	Sigma10GyrKms         float64   `toml:"sigma_10gyr_kms"`          // AVR: sigma_z at 10 Gyr; default 25
+	HeatingTau1Gyr        float64   `toml:"heating_tau1_gyr"`         // AVR offset; default 0.5
+	HeatingBeta           float64   `toml:"heating_beta"`             // AVR exponent; default 0.45
+	SheetSigmaKms         float64   `toml:"sheet_sigma_kms"`          // dispersion of the self-gravitating sheet; default 20
+	SurfaceDensityMsunPc2 float64   `toml:"surface_density_msun_pc2"` // sheet surface density; default 70
+	ScaleLengthKpc        float64   `toml:"scale_length_kpc"`         // radial exponential; default 2.6
+	SunRadiusKpc          float64   `toml:"sun_radius_kpc"`           // default 8.122
+	SunHeightPc           float64   `toml:"sun_height_pc"`            // default 20.8
+	AgeBinEdgesGyr        []float64 `toml:"age_bin_edges_gyr"`        // population age bins, from 0 to history.max_age_gyr; default DefaultAgeBinEdges
+}
+
+// Dust is the extinction model.
+type Dust struct {
+	Model            string  `toml:"model"`               // "none" (default) or "exponential"
+	ScaleHeightPc    float64 `toml:"scale_height_pc"`     // default 110
+	MidplaneAvPerKpc float64 `toml:"midplane_av_per_kpc"` // default 0.8
+}
+
+// Stars sets the stellar-population realism switches.
+type Stars struct {
+	Relations           string  `toml:"relations"`               // "mean-dwarf-sequence" (default, only choice for now)
+	BinaryFractionScale float64 `toml:"binary_fraction_scale"`   // multiplies the mass-dependent binary fraction, in [0,2]; 0 = no binaries; default 1
+	BinaryMassRatioMin  float64 `toml:"binary_mass_ratio_min"`   // flat q in [min,1]; default 0.1
+	TidalLockFraction   float64 `toml:"tidal_lock_fraction"`     // share of binaries that are close, tidally locked; default 0
+	TidalLockPeriodMaxD float64 `toml:"tidal_lock_period_max_d"` // their periods are log-uniform in [1, max] d; default 7
+	Evolved             bool    `toml:"evolved"`                 // keep post-main-sequence stars (brightened); default true
+	MetallicitySigmaDex float64 `toml:"metallicity_sigma_dex"`   // [Fe/H] scatter; default 0
+	ColorPerDex         float64 `toml:"color_per_dex"`           // B-V shift per dex [Fe/H]; default 0.2
+	AbsMagPerDex        float64 `toml:"abs_mag_per_dex"`         // M_V shift per dex [Fe/H]; default 1.0
+}
+
+// Spin chooses the spin-down law and its parameters.
+type Spin struct {
+	Law      string    `toml:"law"`      // barnes2007 (default) | mamajek2008 | angus2015 | torque
+	Turnover string    `toml:"turnover"` // wright2018 (default) | cranmer-saar2011
+	Torque   TorqueLaw `toml:"torque"`
+	Stall    Stall     `toml:"stall"`
+	Weakened Weakened  `toml:"weakened_braking"`
+	Spots    Spots     `toml:"spots"`
+}
+
+// TorqueLaw parameterises the wind-torque law with saturation.
+type TorqueLaw struct {
+	SolarPeriodD        float64 `toml:"solar_period_d"`           // calibration target at 4.57 Gyr; default 25.4
+	SaturationChi       float64 `toml:"saturation_chi"`           // Ro_sun / Ro_sat; default 10
+	InitialPeriodDist   string  `toml:"initial_period_dist"`      // "lognormal" (default) | "log-uniform"
+	InitialPeriodMinD   float64 `toml:"initial_period_min_d"`     // log-uniform; default 1
+	InitialPeriodMaxD   float64 `toml:"initial_period_max_d"`     // log-uniform; default 10
+	InitialPeriodMedD   float64 `toml:"initial_period_median_d"`  // lognormal; default 2
+	InitialPeriodSigDex float64 `toml:"initial_period_sigma_dex"` // lognormal; default 0.3
+	StartAgeGyr         float64 `toml:"start_age_gyr"`            // age the initial periods refer to; default 0.01
+}
+
+// Stall is the parameterised spin-down stall (core–envelope recoupling).
+// The defaults are an illustrative starting point for fits, not a
+// calibration.
+type Stall struct {
+	Enabled         bool    `toml:"enabled"`                 // default false
+	StartGyrAt08    float64 `toml:"start_gyr_at_0p8msun"`    // stall start age for 0.8 Msun; default 0.5
+	DurationGyrAt08 float64 `toml:"duration_gyr_at_0p8msun"` // stall duration for 0.8 Msun; default 0.6
+	StartSlope      float64 `toml:"start_mass_slope"`        // start ∝ (m/0.8)^slope; default -2
+	DurationSlope   float64 `toml:"duration_mass_slope"`     // duration ∝ (m/0.8)^slope; default -2
+	MassMaxMsun     float64 `toml:"mass_max_msun"`           // no stall above this mass; default 1.0
+}
+
+// Weakened is weakened magnetic braking above a critical Rossby number.
+type Weakened struct {
+	Enabled bool    `toml:"enabled"` // default false
+	RoCrit  float64 `toml:"ro_crit"` // default 2
+}
+
+// Spots sets photometric spot amplitude versus Rossby number.
+type Spots struct {
+	Enabled    bool    `toml:"enabled"`     // default true
+	RoSat      float64 `toml:"ro_sat"`      // saturation Rossby number; default 0.15
+	AmpSatPpm  float64 `toml:"amp_sat_ppm"` // saturated amplitude; default 10000
+	Slope      float64 `toml:"slope"`       // amplitude ∝ Ro^-slope above RoSat; default 1
+	ScatterDex float64 `toml:"scatter_dex"` // lognormal scatter; default 0.3
+}
+
+// Survey describes the invented survey: where it looks, how deep, how well
+// it measures.
+type Survey struct {
+	Name             string  `toml:"name"`                 // default ""
+	Band             string  `toml:"band"`                 // "V" (default) or "Ks"
+	BrightLimitMag   float64 `toml:"bright_limit_mag"`     // default 9
+	FaintLimitMag    float64 `toml:"faint_limit_mag"`      // default 16
+	NoiseFloorPpm    float64 `toml:"noise_floor_ppm"`      // per cadence; default 60
+	NoiseRefMag      float64 `toml:"noise_ref_mag"`        // default 12
+	NoisePpmAtRefMag float64 `toml:"noise_ppm_at_ref_mag"` // default 250
+	CadenceD         float64 `toml:"cadence_d"`            // default 0.0204 (about 30 min)
+	BaselineD        float64 `toml:"baseline_d"`           // default 1400
+	MinCycles        float64 `toml:"min_cycles"`           // default 3
+	DetectionSNR     float64 `toml:"detection_snr"`        // default 10
+	PeriodScatterRel float64 `toml:"period_scatter_rel"`   // default 0.03
+	HalfAliasProb    float64 `toml:"half_alias_prob"`      // default 0.02
+	DoubleAliasProb  float64 `toml:"double_alias_prob"`    // default 0.01
+	Field            Field   `toml:"field"`
+}
+
+// Field is the survey footprint: a cone, an all-sky sphere or a list of
+// cones. Which keys apply depends on Kind:
+//
+//	cone    l_deg, b_deg, radius_deg, distance_max_pc (required), distance_min_pc (default 0)
+//	sphere  distance_max_pc (required), distance_min_pc (default 0)
+//	cones   cones (at least one; each cone as for kind "cone")
+//
+// There is no default footprint.
+type Field struct {
+	Kind          string  `toml:"kind"`  // "cone" (default) | "sphere" | "cones"
+	LDeg          float64 `toml:"l_deg"` // cone centre, Galactic longitude in [0,360]
+	BDeg          float64 `toml:"b_deg"` // Galactic latitude in [-90,90]
+	RadiusDeg     float64 `toml:"radius_deg"`
+	DistanceMinPc float64 `toml:"distance_min_pc"`
+	DistanceMaxPc float64 `toml:"distance_max_pc"`
+	Cones         []Cone  `toml:"cones"` // kind = "cones"
+}
+
+// Cone is one line of sight of a multi-cone field.
+type Cone struct {
+	LDeg          float64 `toml:"l_deg"`
+	BDeg          float64 `toml:"b_deg"`
+	RadiusDeg     float64 `toml:"radius_deg"`
+	DistanceMinPc float64 `toml:"distance_min_pc"` // default 0
+	DistanceMaxPc float64 `toml:"distance_max_pc"`
+}
+
+// Cuts are the catalogue cuts; the same ones apply to model and data.
+type Cuts struct {
+	BVMin           float64 `toml:"b_v_min"`            // default 0.45
+	BVMax           float64 `toml:"b_v_max"`            // default 1.6
+	MSBandBrightMag float64 `toml:"ms_band_bright_mag"` // keep stars up to this much brighter than the single-star sequence; default 0.4
+	MSBandFaintMag  float64 `toml:"ms_band_faint_mag"`  // and this much fainter; default 0.4
+	PeriodMinD      float64 `toml:"period_min_d"`       // default 2 × survey.cadence_d (two samples per cycle)
+	PeriodMaxD      float64 `toml:"period_max_d"`       // default survey.baseline_d / survey.min_cycles
+	HeightMaxPc     float64 `toml:"height_max_pc"`      // 0 = no cut (default)
+}
+
+// Output chooses what a run writes.
+type Output struct {
+	Catalog           bool      `toml:"catalog"`             // write catalog.csv; default true
+	CatalogMaxStars   int64     `toml:"catalog_max_stars"`   // refuse bigger catalogs; default 5_000_000
+	Plots             bool      `toml:"plots"`               // default true
+	GyrochroneAgesGyr []float64 `toml:"gyrochrone_ages_gyr"` // default [0.3, 0.6, 1, 2, 4]
+}

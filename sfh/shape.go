@@ -1,0 +1,91 @@
+package sfh
+
+import "math"
+
+// shape is a component's age distribution, normalised to unit mass on
+// [0, MaxAgeGyr], with closed forms for everything the History needs.
+// Callers pass 0 ≤ lo ≤ hi ≤ MaxAgeGyr.
+type shape interface {
+	// pdf is the density at age, zero outside [0, MaxAgeGyr].
+	pdf(age float64) float64
+	// mass is the probability of [lo, hi].
+	mass(lo, hi float64) float64
+	// mean is the mean age on [lo, hi]; NaN when that range has no mass.
+	mean(lo, hi float64) float64
+	// span precomputes the inverse CDF restricted to [lo, hi].
+	span(lo, hi float64) span
+	// breaks appends ages where the density changes character (edges,
+	// centres, a few widths out) so quadrature panels can start there.
+	breaks(dst []float64) []float64
+}
+
+// spanKind selects the inverse CDF a span evaluates.
+type spanKind uint8
+
+const (
+	spanUniform spanKind = iota
+	spanExp
+	spanNormal
+	spanSteps
+)
+
+// span holds the constants of one component's inverse CDF restricted to
+// [lo, hi]. It is a plain value with a switch instead of an interface so that
+// drawing through it never allocates.
+type span struct {
+	kind   spanKind
+	lo, hi float64
+	mass   float64 // the component's probability of [lo, hi]
+
+	// Exponential: density ∝ exp(−rate·r), r measured from the heavy end.
+	rate      float64
+	heavyHigh bool    // the density is largest at hi
+	em1       float64 // expm1(−rate·(hi−lo))
+
+	// Burst: age = mu + sigma·z with z from tn.
+	mu, sigma float64
+	tn        truncNormal
+
+	// Piecewise: invert the cumulative between cumLo and cumHi.
+	steps        *stepShape
+	cumLo, cumHi float64
+}
+
+// quantile maps u in [0, 1) to an age in [lo, hi] distributed as the component
+// restricted to that range.
+func (s *span) quantile(u float64) float64 {
+	var age float64
+	switch s.kind {
+	case spanUniform:
+		age = s.lo + u*(s.hi-s.lo)
+	case spanExp:
+		// Distance from the heavy end at which the mass beyond it is v:
+		// r = −log1p(v·expm1(−rate·w))/rate. With the heavy end at hi the
+		// mass below the age is 1 − v, so v = 1 − u keeps u ↦ age increasing.
+		if s.heavyHigh {
+			age = s.hi + math.Log1p((1-u)*s.em1)/s.rate
+		} else {
+			age = s.lo - math.Log1p(u*s.em1)/s.rate
+		}
+	case spanNormal:
+		age = s.mu + s.sigma*s.tn.quantile(u)
+	case spanSteps:
+		age = s.steps.quantile(s.cumLo + u*(s.cumHi-s.cumLo))
+	}
+	return clamp(age, s.lo, s.hi)
+}
+
+// newShape builds the shape of a validated smooth component or burst.
+func newShape(c Component, maxAge float64) shape {
+	switch v := c.(type) {
+	case Constant:
+		return &uniformShape{maxAge: maxAge}
+	case Exponential:
+		return newExpShape(v.TimescaleGyr, maxAge)
+	case Burst:
+		return newNormalShape(v.AgeGyr, v.WidthGyr, maxAge)
+	case Piecewise:
+		return newStepShape(v.EdgesGyr, v.Rates)
+	}
+	return nil
+}
