@@ -26,6 +26,12 @@ type Tally struct {
 	AbsZEdgesPc []float64
 	AbsZ        []int64
 
+	// Per color bin (ColorEdges), dwarfs inside the magnitude limits, the
+	// color cut and the main-sequence band, and of those the ones whose
+	// period was detected: the survey's detection efficiency by color.
+	ColorEligible []int64
+	ColorDetected []int64
+
 	Binaries, Evolved, Aliased int64
 	// OutsideLaw counts dwarfs that pass the magnitude, color and
 	// main-sequence cuts but lie outside the spin-down law's calibrated
@@ -36,16 +42,18 @@ type Tally struct {
 // NewTally prepares empty histograms on the given edges.
 func NewTally(ageEdges, colorEdges, logPerEdges, absZEdges []float64) *Tally {
 	t := &Tally{
-		StepCounts:   make([]int64, len(Steps)),
-		AgeEdgesGyr:  ageEdges,
-		AgeGenerated: make([]int64, len(ageEdges)-1),
-		AgeSelected:  make([]int64, len(ageEdges)-1),
-		AgeMagRange:  make([]int64, len(ageEdges)-1),
-		AgeDetected:  make([]int64, len(ageEdges)-1),
-		ColorEdges:   colorEdges,
-		LogPerEdges:  logPerEdges,
-		AbsZEdgesPc:  absZEdges,
-		AbsZ:         make([]int64, len(absZEdges)-1),
+		StepCounts:    make([]int64, len(Steps)),
+		AgeEdgesGyr:   ageEdges,
+		AgeGenerated:  make([]int64, len(ageEdges)-1),
+		AgeSelected:   make([]int64, len(ageEdges)-1),
+		AgeMagRange:   make([]int64, len(ageEdges)-1),
+		AgeDetected:   make([]int64, len(ageEdges)-1),
+		ColorEdges:    colorEdges,
+		LogPerEdges:   logPerEdges,
+		AbsZEdgesPc:   absZEdges,
+		AbsZ:          make([]int64, len(absZEdges)-1),
+		ColorEligible: make([]int64, len(colorEdges)-1),
+		ColorDetected: make([]int64, len(colorEdges)-1),
 	}
 	t.PeriodColor = make([][]int64, len(colorEdges)-1)
 	for i := range t.PeriodColor {

@@ -5,8 +5,9 @@ import "math"
 // builtinDefaults is the bottom layer of every scenario: each key with a
 // default, written the way a user would. Keys whose default depends on
 // other keys (name, cuts.period_min_d, cuts.period_max_d,
-// disk.age_bin_edges_gyr, a smooth part's weight) are filled after the
-// merge by fillDerived. Values marked [memory] are recalled, not read; see
+// disk.age_bin_edges_gyr, a smooth part's weight, compare.period_min_d,
+// compare.period_max_d, compare.free and each free parameter's prior) are
+// filled after the merge by fillDerived. Values marked [memory] are recalled, not read; see
 // DESIGN.md's physics menu.
 const builtinDefaults = `
 description = ""
@@ -114,6 +115,34 @@ catalog = true
 catalog_max_stars = 5_000_000
 plots = true
 gyrochrone_ages_gyr = [0.3, 0.6, 1.0, 2.0, 4.0]
+
+[data]                           # no observed catalog unless a file names one
+file = ""
+sha256 = ""
+format = "auto"
+
+[data.columns]                   # "" = the catalog has no such column
+period_d = "period_d"
+b_v = "b_v"
+abs_mag_v = ""
+z_pc = ""
+app_mag_v = ""
+parallax_mas = ""
+ra_deg = ""
+dec_deg = ""
+l_deg = ""
+b_deg = ""
+
+[compare]
+color_bins = 23
+log_period_bins = 30
+height_edges_pc = [0.0, 100.0, 200.0, 300.0, 450.0, 700.0, 1000.0, 1500.0]
+template_stars = 20_000_000
+normalisation = "free"
+template_noise = "barlow-beeston-lite"
+bootstrap = 1000
+split_age_gyr = 0.0
+burst_part = "burst"
 `
 
 // DefaultAgeBinEdges returns the default population age bins for a history

@@ -22,6 +22,8 @@ type Scenario struct {
 	Survey  Survey  `toml:"survey"`
 	Cuts    Cuts    `toml:"cuts"`
 	Output  Output  `toml:"output"`
+	Data    Data    `toml:"data"`    // the observed catalog; optional
+	Compare Compare `toml:"compare"` // how model and data are compared; optional
 }
 
 // Run fixes the random seed and the size of the synthetic population.
@@ -224,4 +226,52 @@ type Output struct {
 	CatalogMaxStars   int64     `toml:"catalog_max_stars"`   // refuse bigger catalogs; default 5_000_000
 	Plots             bool      `toml:"plots"`               // default true
 	GyrochroneAgesGyr []float64 `toml:"gyrochrone_ages_gyr"` // default [0.3, 0.6, 1, 2, 4]
+}
+
+// Data names an observed rotation catalog and maps its columns. Give either
+// abs_mag and height, or app_mag, parallax and a sky position (ra/dec in
+// ICRS degrees, or l/b in Galactic degrees).
+type Data struct {
+	File    string      `toml:"file"`    // path relative to the scenario file that names it; "" = no data
+	SHA256  string      `toml:"sha256"`  // optional: hex SHA-256 the file must have
+	Format  string      `toml:"format"`  // "auto" (default: by content) | "csv" | "ecsv"
+	Columns DataColumns `toml:"columns"` // column names in the file
+}
+
+// DataColumns maps quantities to column names. Empty means not given.
+type DataColumns struct {
+	PeriodD     string `toml:"period_d"`     // rotation period (d); default "period_d"
+	BV          string `toml:"b_v"`          // B−V color (mag); default "b_v"
+	AbsMagV     string `toml:"abs_mag_v"`    // absolute V magnitude
+	HeightPc    string `toml:"z_pc"`         // height above the Galactic plane (pc)
+	AppMagV     string `toml:"app_mag_v"`    // apparent V magnitude
+	ParallaxMas string `toml:"parallax_mas"` // parallax (mas)
+	RADeg       string `toml:"ra_deg"`       // ICRS right ascension (deg)
+	DecDeg      string `toml:"dec_deg"`      // ICRS declination (deg)
+	LDeg        string `toml:"l_deg"`        // Galactic longitude (deg)
+	BDeg        string `toml:"b_deg"`        // Galactic latitude (deg)
+}
+
+// Compare sets the comparison space, the templates and the statistics.
+type Compare struct {
+	ColorBins     int         `toml:"color_bins"`      // B−V bins between cuts.b_v_min and b_v_max; default 23
+	LogPeriodBins int         `toml:"log_period_bins"` // log10-period bins; default 30
+	PeriodMinD    float64     `toml:"period_min_d"`    // comparison range; default max(cuts.period_min_d, 0.5)
+	PeriodMaxD    float64     `toml:"period_max_d"`    // default min(cuts.period_max_d, 100)
+	HeightEdgesPc []float64   `toml:"height_edges_pc"` // |z| edges for the height check; default [0, 100, 200, 300, 450, 700, 1000, 1500]
+	TemplateStars int64       `toml:"template_stars"`  // stars drawn to build templates; default 20_000_000
+	Normalisation string      `toml:"normalisation"`   // "free" (default: multinomial) | "absolute"
+	TemplateNoise string      `toml:"template_noise"`  // "barlow-beeston-lite" (default) | "ignore"
+	Bootstrap     int         `toml:"bootstrap"`       // parametric-bootstrap replicates; default 1000
+	SplitAgeGyr   float64     `toml:"split_age_gyr"`   // young/old split for the height check; 0 = fitted burst age (default)
+	BurstPart     string      `toml:"burst_part"`      // history part tested as the burst; default "burst"
+	Free          []FreeParam `toml:"free"`            // parameters fitted; default: the burst's age, width and mass fraction
+}
+
+// FreeParam is one fitted parameter, named by its scenario path.
+type FreeParam struct {
+	Path  string  `toml:"path"`  // e.g. "history.burst.age_gyr"
+	Min   float64 `toml:"min"`   // lower bound
+	Max   float64 `toml:"max"`   // upper bound
+	Prior string  `toml:"prior"` // "uniform" (default) | "log-uniform"
 }

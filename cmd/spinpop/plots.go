@@ -264,3 +264,26 @@ func writeGrid(path string, grid [][]*plot.Plot, w, h vg.Length) error {
 		return err
 	})
 }
+
+// detectedByColorPlot is the fraction of eligible dwarfs (in the magnitude
+// limits, color cut and main-sequence band) whose period was detected,
+// against color.
+func detectedByColorPlot(t *model.Tally) (*plot.Plot, error) {
+	p := plot.New()
+	p.Title.Text = "Period detected, by color"
+	p.X.Label.Text = "B−V (mag, as observed)"
+	p.Y.Label.Text = "detected fraction"
+	y := make([]float64, len(t.ColorEligible))
+	for k := range y {
+		if t.ColorEligible[k] > 0 {
+			y[k] = float64(t.ColorDetected[k]) / float64(t.ColorEligible[k])
+		}
+	}
+	l, err := stepLine(t.ColorEdges, y, overlayColors[2])
+	if err != nil {
+		return nil, err
+	}
+	p.Add(l)
+	p.Y.Min, p.Y.Max = 0, 1.02
+	return p, nil
+}

@@ -75,13 +75,13 @@ type summary struct {
 	Aliased        int64           `json:"catalog_aliased_periods"`
 	MedianAgeGyr   ageMedians      `json:"median_age_gyr"`
 	DetectedByAge  []binFraction   `json:"detected_fraction_by_age"`
+	DetectedByBV   []colorFraction `json:"detected_fraction_by_color"`
 	Warnings       []string        `json:"warnings"`
 	Outputs        []string        `json:"outputs"`
 	Seconds        float64         `json:"seconds"`
 	StarsPerSecond float64         `json:"stars_per_second"`
 	Resolved       string          `json:"resolved_scenario,omitempty"`
 	Gyrochrones    []gyroCurveJSON `json:"gyrochrones,omitempty"`
-	extra          map[string]any
 }
 
 type stepCount struct {
@@ -98,6 +98,13 @@ type binFraction struct {
 	AgeLoGyr float64 `json:"age_lo_gyr"`
 	AgeHiGyr float64 `json:"age_hi_gyr"`
 	InRange  int64   `json:"dwarfs_in_magnitude_range"`
+	Detected int64   `json:"period_detected"`
+}
+
+type colorFraction struct {
+	BVLo     float64 `json:"b_v_lo"`
+	BVHi     float64 `json:"b_v_hi"`
+	Eligible int64   `json:"dwarfs_passing_cuts"`
 	Detected int64   `json:"period_detected"`
 }
 
@@ -200,6 +207,9 @@ func simulate(res *scenarios.Resolved, path, dir string, workers int, stderr io.
 	for k := range tally.AgeMagRange {
 		sum.DetectedByAge = append(sum.DetectedByAge, binFraction{tally.AgeEdgesGyr[k], tally.AgeEdgesGyr[k+1], tally.AgeMagRange[k], tally.AgeDetected[k]})
 	}
+	for k := range tally.ColorEligible {
+		sum.DetectedByBV = append(sum.DetectedByBV, colorFraction{tally.ColorEdges[k], tally.ColorEdges[k+1], tally.ColorEligible[k], tally.ColorDetected[k]})
+	}
 	sum.Warnings = append(sum.Warnings, rangeWarnings(s, built, tally)...)
 
 	curves := model.Gyrochrones(built.Law, built.Relations, s.Output.GyrochroneAgesGyr, s.Cuts.BVMin, s.Cuts.BVMax, 60)
@@ -298,7 +308,11 @@ func writeSimulationPlots(dir string, s *scenarios.Scenario, t *model.Tally, gc 
 	if err != nil {
 		return nil, err
 	}
-	if err := writeGrid(filepath.Join(dir, "age_selection.png"), [][]*plot.Plot{{ap, dp}}, 27*vg.Centimeter, 11*vg.Centimeter); err != nil {
+	cp, err := detectedByColorPlot(t)
+	if err != nil {
+		return nil, err
+	}
+	if err := writeGrid(filepath.Join(dir, "age_selection.png"), [][]*plot.Plot{{ap, dp, cp}}, 36*vg.Centimeter, 11*vg.Centimeter); err != nil {
 		return nil, err
 	}
 	names = append(names, "age_selection.png")

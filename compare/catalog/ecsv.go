@@ -70,8 +70,9 @@ func parseECSVHeader(lines []headerLine) (*ecsvHeader, *lineError) {
 	rest = rest[1:]
 
 	topKey := ""
-	var cur *Column // block-style item being filled
-	itemIndent := -1
+	var cur *Column  // block-style item being filled
+	itemIndent := -1 // column of the "-" of the datatype items
+	keyIndent := -1  // column of the first key of the current block item
 	for _, hl := range rest {
 		text := hl.text
 		if strings.TrimSpace(text) == "" || strings.HasPrefix(strings.TrimSpace(text), "#") {
@@ -113,6 +114,8 @@ func parseECSVHeader(lines []headerLine) (*ecsvHeader, *lineError) {
 				continue
 			}
 			itemIndent = indent
+			afterDash := strings.TrimPrefix(body, "-")
+			keyIndent = indent + 1 + len(afterDash) - len(strings.TrimLeft(afterDash, " "))
 			h.columns = append(h.columns, Column{})
 			cur = &h.columns[len(h.columns)-1]
 			if strings.HasPrefix(item, "{") {
@@ -123,6 +126,7 @@ func parseECSVHeader(lines []headerLine) (*ecsvHeader, *lineError) {
 				continue
 			}
 			if item == "" {
+				keyIndent = -1 // the keys start on the next line
 				continue
 			}
 			if err := setColumnKey(item, cur); err != nil {
@@ -133,7 +137,10 @@ func parseECSVHeader(lines []headerLine) (*ecsvHeader, *lineError) {
 		// A continuation line of a block-style item: only the item's own
 		// keys, aligned under its first key, count; deeper lines are
 		// nested values.
-		if cur == nil || indent != itemIndent+2 {
+		if cur != nil && keyIndent < 0 && indent > itemIndent {
+			keyIndent = indent
+		}
+		if cur == nil || indent != keyIndent {
 			continue
 		}
 		if err := setColumnKey(body, cur); err != nil {

@@ -37,6 +37,9 @@ func TestParseECSVBlockStyle(t *testing.T) {
 # -   name: 'it''s'
 #     datatype: int32
 # - {name: plain}
+# -
+#   name: dash-alone
+#   unit: pc
 # meta: !!omap
 # - {name: table-meta-not-a-column}
 # schema: astropy-2.0
@@ -44,10 +47,11 @@ func TestParseECSVBlockStyle(t *testing.T) {
 	require.Nil(t, err)
 	assert.Equal(t, byte(','), h.delimiter)
 	assert.Equal(t, "1.0", h.version)
-	require.Len(t, h.columns, 3)
+	require.Len(t, h.columns, 4)
 	assert.Equal(t, Column{Name: "period", Unit: "d", Datatype: "float64"}, h.columns[0])
 	assert.Equal(t, Column{Name: "it's", Datatype: "int32"}, h.columns[1])
 	assert.Equal(t, Column{Name: "plain"}, h.columns[2])
+	assert.Equal(t, Column{Name: "dash-alone", Unit: "pc"}, h.columns[3])
 }
 
 func TestParseECSVFlowQuoting(t *testing.T) {

@@ -6,15 +6,16 @@ import "math"
 //
 // The matrix is built the way astropy 5.2 builds its ICRS → Galactic
 // transform (read from astropy/coordinates/builtin_frames/galactic.py,
-// galactic_transforms.py and icrs_fk5_transforms.py): first the frame bias
-// from ICRS to the FK5 J2000 frame (the B-matrix of USNO Circular 179:
-// η₀ = −19.9 mas, ξ₀ = 9.1 mas, dα₀ = −22.9 mas), then the FK5 J2000 →
-// Galactic rotation defined by the north Galactic pole at
-// (α, δ) = (192.8594812065348°, 27.12825118085622°) and the longitude of the
-// north celestial pole l = 122.9319185680026°. The frame bias moves
-// positions by ~20 mas, far below any catalog's astrometric error, but
-// including it makes the result agree with astropy to rounding, which the
-// tests check against testdata/icrs_galactic_reference.csv.
+// galactic_transforms.py and icrs_fk5_transforms.py). First the frame bias
+// from ICRS to the FK5 J2000 frame, the B-matrix with η₀ = −19.9 mas,
+// ξ₀ = 9.1 mas, dα₀ = −22.9 mas (values from the astropy source; they are
+// those of Kaplan 2005 [memory for the attribution]). Then the FK5 J2000 →
+// Galactic rotation fixed by the north Galactic pole at
+// (α, δ) = (192.8594812065348°, 27.12825118085622°) and the Galactic
+// longitude of the north celestial pole, 122.9319185680026°. The frame
+// bias moves positions by ~20 mas, far below any catalog's astrometric
+// error, but including it makes the result agree with astropy to rounding,
+// which the tests check against testdata/icrs_galactic_reference.csv.
 
 var icrsToGalactic = buildICRSToGalactic()
 

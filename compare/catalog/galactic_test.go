@@ -51,9 +51,9 @@ func TestICRSToGalacticAgainstAstropy(t *testing.T) {
 }
 
 func TestICRSToGalacticLandmarks(t *testing.T) {
-	// From memory of the IAU 1958 system as realised in ICRS (Galactic
-	// centre near ra 266.405°, dec −28.936°; north Galactic pole near ra
-	// 192.859°, dec 27.128°); tolerance 0.01° reflects that.
+	// From memory of the 1958 Galactic system as realised in ICRS
+	// (Galactic centre near ra 266.405°, dec −28.936°; north Galactic pole
+	// near ra 192.859°, dec 27.128°); tolerance 0.01° reflects that.
 	l, b := ICRSToGalactic(266.405, -28.936)
 	require.InDelta(t, 0, math.Min(l, 360-l), 0.01)
 	require.InDelta(t, 0, b, 0.01)

@@ -23,9 +23,9 @@ func cpuid(eaxArg, ecxArg uint32) (eax, ebx, ecx, edx uint32)
 func xgetbv() (eax, edx uint32)
 
 // haveAVXFMA reports whether the processor has AVX, AVX2 and FMA3 and the
-// operating system saves the YMM registers (CPUID leaf 1 ECX bits 12, 27,
-// 28; leaf 7 EBX bit 5; XCR0 bits 1 and 2: Intel SDM vol. 1 §14.3 and
-// vol. 2 CPUID, common practice).
+// operating system saves the YMM registers: CPUID leaf 1 ECX bits 12
+// (FMA), 27 (OSXSAVE) and 28 (AVX), leaf 7 EBX bit 5 (AVX2), and XCR0 bits
+// 1 and 2 (the x86 architecture manuals; common practice).
 func haveAVXFMA() bool {
 	maxID, _, _, _ := cpuid(0, 0)
 	if maxID < 7 {

@@ -22,11 +22,13 @@ import (
 // Empty data bins contribute only −μ_i: their ln term is skipped.
 //
 // Evaluation runs over blocks of mixtureBlock bins: μ for the block is one
-// matrix–vector product (kernel.go: AVX+FMA assembly where available), the
-// per-bin factors c_i = n_i/μ_i − 1 overwrite μ in place, and the block's
-// share of the gradient is one transposed product accumulated into grad.
-// A block of 64 bins × 40 templates is 20 KiB, so the second pass reads it
-// from L1. The block buffer lives on the stack: nothing is allocated.
+// matrix–vector product, the per-bin logarithms and factors
+// c_i = n_i/μ_i − 1 (which overwrite μ in place) are one vectorised pass,
+// and the block's share of the gradient is one transposed product
+// accumulated into grad (kernel.go; AVX2+FMA assembly where the processor
+// has it, plain Go elsewhere). A block of 64 bins × 40 templates is 20 KiB,
+// so the second pass reads it from L1. The block buffer lives on the
+// stack: nothing is allocated, and concurrent calls share nothing.
 
 // mixtureBlock is the number of bins per block; see above.
 const mixtureBlock = 64
@@ -106,10 +108,7 @@ func mixtureBlocks(grad, weights, rows, counts, scratch []float64, withMu bool) 
 		}
 		s += sumNLog
 		if withMu {
-			s -= sumMu
-			for _, n := range cnt {
-				s -= LnFactorial(n)
-			}
+			s -= sumMu + sumLnFactorial(cnt)
 		}
 		if grad != nil {
 			gemvRowsTAdd(block, m, k, mu, grad)
@@ -160,15 +159,14 @@ func blockTermsGo(mu, n []float64, sub float64) (sumNLog, sumMu float64, ok bool
 // non-empty bins (compacted, bins-major), the template totals S_k = Σ_i T_ki,
 // which give Σ_i μ_i = Σ_k w_k S_k and the constant part of the gradient,
 // and the data-only constant Σ ln n_i!, so an evaluation touches non-empty
-// bins only. A Mixture is not safe for concurrent use (it owns a scratch
-// buffer); make one per goroutine.
+// bins only. A Mixture is read-only after NewMixture, so concurrent
+// evaluations are safe.
 type Mixture struct {
 	k       int
 	rows    []float64 // non-empty bins only, bins-major
 	n       []float64 // their counts
 	colSum  []float64 // S_k over all bins
 	lnFactN float64   // Σ ln n_i!
-	scratch []float64
 }
 
 // NewMixture prepares templates (bins-major, length len(counts)·nTemplates)
@@ -176,7 +174,7 @@ type Mixture struct {
 func NewMixture(templates []float64, nTemplates int, counts []float64) *Mixture {
 	checkMixture(nTemplates, templates, counts)
 	k := nTemplates
-	m := &Mixture{k: k, colSum: make([]float64, k), scratch: make([]float64, mixtureBlock)}
+	m := &Mixture{k: k, colSum: make([]float64, k)}
 	nonEmpty := 0
 	for _, n := range counts {
 		if n != 0 {
@@ -193,8 +191,8 @@ func NewMixture(templates []float64, nTemplates int, counts []float64) *Mixture 
 		}
 		m.rows = append(m.rows, row...)
 		m.n = append(m.n, n)
-		m.lnFactN += LnFactorial(n)
 	}
+	m.lnFactN = sumLnFactorial(m.n)
 	return m
 }
 
@@ -209,7 +207,8 @@ func (m *Mixture) LogL(weights []float64) float64 {
 	if len(weights) != m.k {
 		panic("stats: Mixture.LogL weights length mismatch")
 	}
-	s := mixtureBlocks(nil, weights, m.rows, m.n, m.scratch, false)
+	var buf [mixtureBlock]float64
+	s := mixtureBlocks(nil, weights, m.rows, m.n, buf[:], false)
 	return s - floats.Dot(weights, m.colSum) - m.lnFactN
 }
 
@@ -223,6 +222,7 @@ func (m *Mixture) LogLGrad(grad, weights []float64) float64 {
 	for j, c := range m.colSum {
 		grad[j] = -c
 	}
-	s := mixtureBlocks(grad, weights, m.rows, m.n, m.scratch, false)
+	var buf [mixtureBlock]float64
+	s := mixtureBlocks(grad, weights, m.rows, m.n, buf[:], false)
 	return s - floats.Dot(weights, m.colSum) - m.lnFactN
 }

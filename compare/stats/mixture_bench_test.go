@@ -63,3 +63,17 @@ func BenchmarkMixturePreparedLogLGrad40x2500HalfEmpty(b *testing.B) {
 		m.LogLGrad(grad, w)
 	}
 }
+
+// BenchmarkMixtureLogLGrad40x2500GoKernels measures the path taken on
+// processors without AVX2 and FMA.
+func BenchmarkMixtureLogLGrad40x2500GoKernels(b *testing.B) {
+	saved := useAsmKernels
+	useAsmKernels = false
+	defer func() { useAsmKernels = saved }()
+	w, t, n := benchMixture(40, 2500, 0)
+	grad := make([]float64, len(w))
+	b.ReportAllocs()
+	for b.Loop() {
+		MixtureLogLGrad(grad, w, t, n)
+	}
+}

@@ -15,19 +15,29 @@ func init() {
 }
 
 // LnFactorial returns ln Γ(n+1), which is ln n! for integer n. Integer n
-// below 1024 come from a table (this is small enough to inline, since the
-// free mixture likelihood calls it once per bin); other n, including
-// non-integer weighted counts, use math.Lgamma. n must be ≥ 0.
+// below 1024 come from a table; other n, including non-integer weighted
+// counts, use math.Lgamma. n must be ≥ 0.
 func LnFactorial(n float64) float64 {
 	if i := int(n); float64(i) == n && uint(i) < lnFactN {
-		return lnFactTable[i&(lnFactN-1)] // the mask only spares a bounds check
+		return lnFactTable[i]
 	}
 	return lnGammaPlusOne(n)
 }
 
-// lnGammaPlusOne is kept out of line so that LnFactorial inlines.
-//
-//go:noinline
+// sumLnFactorial returns Σ ln n_i!, the data-only term of a Poisson
+// likelihood, with the table lookup written out for the hot loop.
+func sumLnFactorial(n []float64) float64 {
+	var s float64
+	for _, v := range n {
+		if i := int(v); float64(i) == v && uint(i) < lnFactN {
+			s += lnFactTable[i]
+		} else {
+			s += lnGammaPlusOne(v)
+		}
+	}
+	return s
+}
+
 func lnGammaPlusOne(n float64) float64 {
 	v, _ := math.Lgamma(n + 1)
 	return v
