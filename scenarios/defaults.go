@@ -198,4 +198,6 @@ func (d *decoder) fillDerived(s *Scenario, name string) {
 		s.Disk.AgeBinEdgesGyr = DefaultAgeBinEdges(s.History.MaxAgeGyr)
 		d.origins["disk.age_bin_edges_gyr"] = origin{note: "default: 40 bins from 0 to history.max_age_gyr"}
 	}
+	d.fillData(&s.Data)
+	d.fillCompare(s)
 }

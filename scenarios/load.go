@@ -20,6 +20,21 @@ type Resolved struct {
 	// Files lists the files merged, the most basic ancestor first and the
 	// loaded file last, with paths as the loader resolved them.
 	Files []string
+	// DataPath is data.file resolved relative to the scenario file that
+	// set it (which may be an ancestor in the extends chain): a path in
+	// the operating system's file system after Load and after LoadBytes
+	// without a file system, a slash-separated path within DataFS after
+	// LoadFS, LoadExample and LoadBytes with a file system. It is "" when
+	// the scenario names no data. Loading does not open the file; see
+	// OpenData. DataPath is not part of the canonical form, which keeps
+	// data.file as written, so that a collaborator's copy of a scenario
+	// in another directory has the same hash.
+	DataPath string
+	// DataFS is the file system DataPath lies in; nil means the operating
+	// system's.
+	DataFS fs.FS
+
+	dataAt, shaAt origin // where data.file and data.sha256 were set, for messages
 }
 
 // maxChain bounds an extends chain. Cycles are caught by name; this catches
@@ -88,10 +103,12 @@ func load(name string, data []byte, src source) (*Resolved, error) {
 	d.decodeStruct("", m.root, &s)
 	d.fillDerived(&s, stem(name))
 	d.validate(&s)
+	dataPath, dataFS, dataAt := d.resolveData(s.Data.File, src)
 	if err := d.errs.result(); err != nil {
 		return nil, err
 	}
-	return &Resolved{Scenario: s, Files: files}, nil
+	return &Resolved{Scenario: s, Files: files, DataPath: dataPath, DataFS: dataFS,
+		dataAt: dataAt, shaAt: d.locate("data.sha256")}, nil
 }
 
 // layer is one parsed scenario file.
