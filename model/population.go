@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"sync"
 
 	"spinpop/model/spin"
 	"spinpop/model/spots"
@@ -108,28 +109,106 @@ const (
 )
 
 // Fill makes and observes the stars of chunk c from stream r.
+//
+// It works in two passes. The first places every star, grouped by age bin
+// (see place), so that each bin's line-of-sight tables stay in cache while
+// they are used; the second makes and observes the stars one by one. The
+// stars come out in slot order, a deterministic function of r.
 func (p *Population) Fill(c *Chunk, r *rand.Rand) {
+	s := placeScratch.Get().(*placeBuf)
+	p.place(c, r, s)
+	placeScratch.Put(s)
 	for i := 0; i < c.N; i++ {
 		p.star(c, i, r)
 	}
 }
 
+// placeBuf is a worker's scratch for place; pooled so that Fill allocates
+// nothing once warm.
+type placeBuf struct {
+	pending []int32 // slots still to place, ascending
+	order   []int32 // the pending slots grouped by age bin
+	count   []int32 // per-bin counts, then running offsets into order
+	ok      []bool  // per slot: the last proposal was kept
+}
+
+var placeScratch = sync.Pool{New: func() any { return new(placeBuf) }}
+
+func growInt32(s []int32, n int) []int32 {
+	if cap(s) < n {
+		return make([]int32, n)
+	}
+	return s[:n]
+}
+
+// place draws the age bin, position and age of every star of c.
+//
+// Each slot repeats the joint proposal of the population's definition —
+// an age bin from BinProb, then a position from Place.Draw(k) — until a
+// proposal is kept, so the kept (bin, position) of every slot follows the
+// exact joint distribution and slots are independent. Only the order in
+// which proposals are made differs from a star-by-star loop: in each round
+// every pending slot first draws its bin, then the slots are visited bin by
+// bin, and the slots whose proposal was rejected wait for the next round.
+// Which random numbers go to which proposal is decided by earlier random
+// numbers only, never by the values a proposal will produce, so each
+// proposal still sees fresh independent uniforms.
+func (p *Population) place(c *Chunk, r *rand.Rand, s *placeBuf) {
+	n, nb := c.N, len(p.binAlias.prob)
+	s.pending = growInt32(s.pending, n)
+	s.order = growInt32(s.order, n)
+	s.count = growInt32(s.count, nb+1)
+	if cap(s.ok) < n {
+		s.ok = make([]bool, n)
+	}
+	s.ok = s.ok[:n]
+	pending := s.pending
+	for i := range pending {
+		pending[i] = int32(i)
+	}
+	for len(pending) > 0 {
+		count := s.count
+		clear(count)
+		for _, j := range pending {
+			k := p.binAlias.draw(r)
+			c.AgeBin[j] = int32(k)
+			count[k+1]++
+		}
+		for k := 1; k <= nb; k++ {
+			count[k] += count[k-1]
+		}
+		order := s.order[:len(pending)]
+		for _, j := range pending {
+			k := c.AgeBin[j]
+			order[count[k]] = j
+			count[k]++
+		}
+		for _, j := range order {
+			k := int(c.AgeBin[j])
+			l, b, d, z, ok := p.Place.Draw(k, r)
+			s.ok[j] = ok
+			if ok {
+				c.LDeg[j], c.BDeg[j], c.DistPc[j], c.ZPc[j] = l, b, d, z
+				c.AgeGyr[j] = p.Age(k, r)
+			}
+		}
+		// Keep the rejected slots, in slot order, for the next round.
+		left := pending[:0]
+		for _, j := range pending {
+			if !s.ok[j] {
+				left = append(left, j)
+			}
+		}
+		pending = left
+	}
+}
+
 func (p *Population) star(c *Chunk, i int, r *rand.Rand) {
 	var flags Flag
-	// Age bin and position: redraw both on a radial rejection (exact joint draw).
-	var k int
-	var l, b, d, z float64
-	for {
-		k = p.binAlias.draw(r)
-		var ok bool
-		if l, b, d, z, ok = p.Place.Draw(k, r); ok {
-			break
-		}
-	}
-	age := p.Age(k, r)
+	age := c.AgeGyr[i]
+	l, b, d, z := c.LDeg[i], c.BDeg[i], c.DistPc[i], c.ZPc[i]
 	m := p.IMF.Sample(r)
-	c.AgeBin[i], c.AgeGyr[i], c.MassMsun[i] = int32(k), age, m
-	c.LDeg[i], c.BDeg[i], c.DistPc[i], c.ZPc[i] = l, b, d, z
+	c.MassMsun[i] = m
 
 	pt, _ := p.Relations.At(m)
 	bv, absV, absKs := pt.BV, pt.AbsMagV, pt.AbsMagKs

@@ -15,8 +15,8 @@ type Tally struct {
 	AgeEdgesGyr  []float64
 	AgeGenerated []int64 // per age bin, all generated dwarfs
 	AgeSelected  []int64 // per age bin, stars in the final catalogue
-	AgeMagRange  []int64 // per age bin, dwarfs inside the magnitude limits (before period detection)
-	AgeDetected  []int64 // per age bin, of AgeMagRange those with a detected period
+	AgeEligible  []int64 // per age bin, dwarfs passing the magnitude, color and main-sequence cuts
+	AgeDetected  []int64 // per age bin, of AgeEligible those with a detected period
 
 	// Period–color density of catalogue stars.
 	ColorEdges  []float64
@@ -46,7 +46,7 @@ func NewTally(ageEdges, colorEdges, logPerEdges, absZEdges []float64) *Tally {
 		AgeEdgesGyr:   ageEdges,
 		AgeGenerated:  make([]int64, len(ageEdges)-1),
 		AgeSelected:   make([]int64, len(ageEdges)-1),
-		AgeMagRange:   make([]int64, len(ageEdges)-1),
+		AgeEligible:   make([]int64, len(ageEdges)-1),
 		AgeDetected:   make([]int64, len(ageEdges)-1),
 		ColorEdges:    colorEdges,
 		LogPerEdges:   logPerEdges,
@@ -81,14 +81,26 @@ func (t *Tally) Add(c *Chunk) {
 			step++
 		}
 		t.StepCounts[1]++
-		if f&FlagInMagRange != 0 {
-			t.AgeMagRange[k]++
-			if f&FlagDetected != 0 {
+		// Detection efficiency among stars a catalogue could hold: those
+		// passing the magnitude, color and main-sequence cuts. Stars outside
+		// the law's range count as undetected: the survey sees them, the
+		// model gives them no period.
+		const eligible = FlagInMagRange | FlagInColorRange | FlagOnMainSeq
+		if f&eligible == eligible {
+			t.AgeEligible[k]++
+			det := f&FlagDetected != 0
+			if det {
 				t.AgeDetected[k]++
 			}
-		}
-		if f&(FlagOutsideLaw|FlagInMagRange|FlagInColorRange|FlagOnMainSeq) == FlagOutsideLaw|FlagInMagRange|FlagInColorRange|FlagOnMainSeq {
-			t.OutsideLaw++ // would have been in the catalogue but for the law's range
+			if ci := bin(t.ColorEdges, c.ObsBV[i]); ci >= 0 {
+				t.ColorEligible[ci]++
+				if det {
+					t.ColorDetected[ci]++
+				}
+			}
+			if f&FlagOutsideLaw != 0 {
+				t.OutsideLaw++ // would have been in the catalogue but for the law's range
+			}
 		}
 		if !f.Selected() {
 			continue

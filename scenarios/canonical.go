@@ -156,8 +156,15 @@ func writeTable(b *bytes.Buffer, path string, t map[string]any) {
 		b.WriteString("[" + path + "]\n")
 	}
 	for _, k := range keys {
-		switch t[k].(type) {
-		case map[string]any, []map[string]any:
+		switch c := t[k].(type) {
+		case map[string]any:
+		case []map[string]any:
+			if len(c) == 0 {
+				// An empty array of tables has no [[...]] header to
+				// write; "k = []" keeps it distinct from a missing key,
+				// which would take the default.
+				b.WriteString(quoteKey(k) + " = []\n")
+			}
 		default:
 			b.WriteString(quoteKey(k) + " = " + tomlValue(t[k]) + "\n")
 		}

@@ -38,6 +38,14 @@ func TestDefaultsFilled(t *testing.T) {
 	assert.True(t, s.Output.Plots)
 	assert.Equal(t, []float64{0.3, 0.6, 1, 2, 4}, s.Output.GyrochroneAgesGyr)
 	assert.Equal(t, Field{Kind: "sphere", DistanceMaxPc: 500}, s.Survey.Field)
+	assert.Equal(t, Data{Format: "auto", Columns: DataColumns{PeriodD: "period_d", BV: "b_v"}}, s.Data, "no data unless a file names it")
+	assert.Equal(t, Compare{
+		ColorBins: 23, LogPeriodBins: 30, PeriodMinD: 0.5, PeriodMaxD: 100,
+		HeightEdgesPc: []float64{0, 100, 200, 300, 450, 700, 1000, 1500},
+		TemplateStars: 20_000_000, Normalisation: "free", TemplateNoise: "barlow-beeston-lite",
+		Bootstrap: 1000, SplitAgeGyr: 0, BurstPart: "burst",
+		Free: nil, // no part named "burst": nothing to free by default
+	}, s.Compare)
 
 	// Derived defaults.
 	// Source: Nyquist sampling: a period needs at least two samples per cycle.
@@ -53,9 +61,18 @@ func TestDerivedDefaultsFollowTheirSources(t *testing.T) {
 	assert.Equal(t, DefaultAgeBinEdges(12), s.Disk.AgeBinEdgesGyr)
 	assert.Equal(t, 12.0, s.Disk.AgeBinEdgesGyr[40])
 
+	assert.Equal(t, 1.0, s.Compare.PeriodMinD, "max(cuts.period_min_d, 0.5)")
+	assert.Equal(t, 25.0, s.Compare.PeriodMaxD, "min(cuts.period_max_d, 100)")
+
 	s = loadMinimal(t, "[cuts]\nperiod_min_d = 0.3\nperiod_max_d = 70.0\n").Scenario
 	assert.Equal(t, 0.3, s.Cuts.PeriodMinD, "explicit values win")
 	assert.Equal(t, 70.0, s.Cuts.PeriodMaxD)
+	assert.Equal(t, 0.5, s.Compare.PeriodMinD)
+	assert.Equal(t, 70.0, s.Compare.PeriodMaxD)
+
+	s = loadMinimal(t, "[compare]\nperiod_min_d = 2.0\nperiod_max_d = 50.0\n").Scenario
+	assert.Equal(t, 2.0, s.Compare.PeriodMinD, "explicit values win")
+	assert.Equal(t, 50.0, s.Compare.PeriodMaxD)
 }
 
 func TestDefaultAgeBinEdges(t *testing.T) {
@@ -92,7 +109,8 @@ func TestDefaultAgeBinEdges(t *testing.T) {
 func TestEveryKeyHasADefaultOrIsRequired(t *testing.T) {
 	def, err := parseLayer("", []byte(builtinDefaults))
 	require.NoError(t, err)
-	derived := map[string]bool{"name": true, "cuts.period_min_d": true, "cuts.period_max_d": true, "disk.age_bin_edges_gyr": true}
+	derived := map[string]bool{"name": true, "cuts.period_min_d": true, "cuts.period_max_d": true, "disk.age_bin_edges_gyr": true,
+		"compare.period_min_d": true, "compare.period_max_d": true, "compare.free": true}
 	tree := toTree(reflect.ValueOf(loadMinimal(t, "").Scenario))
 	var walk func(path string, tree, defs map[string]any)
 	walk = func(path string, tree, defs map[string]any) {
@@ -127,12 +145,15 @@ func TestSchemaCommentsMatchDefaults(t *testing.T) {
 		"Stars": "stars", "Spin": "spin", "TorqueLaw": "spin.torque", "Stall": "spin.stall",
 		"Weakened": "spin.weakened_braking", "Spots": "spin.spots", "Survey": "survey",
 		"Field": "survey.field", "Cuts": "cuts", "Output": "output",
+		"Data": "data", "DataColumns": "data.columns", "Compare": "compare",
 	}
 	typeRe := regexp.MustCompile(`^type (\w+) struct`)
 	fieldRe := regexp.MustCompile("`toml:\"(\\w+)\"`\\s*//(.*)$")
 	numRe := regexp.MustCompile(`default (-?[0-9][0-9_.]*)\s*(?:$|;|\()`)
 	strRe := regexp.MustCompile(`"([^"]+)" \(default`)
 	boolRe := regexp.MustCompile(`default (true|false)`)
+	quotedRe := regexp.MustCompile(`default "([^"]*)"`)
+	arrayRe := regexp.MustCompile(`default \[([^\]]*)\]`)
 	// A cone field without an explicit kind, so the field's default kind shows.
 	r, err := LoadBytes("x.toml", []byte("[history.s]\nkind = \"constant\"\n[survey.field]\nl_deg = 1.0\nb_deg = 2.0\nradius_deg = 3.0\ndistance_max_pc = 4.0\n"), nil)
 	require.NoError(t, err)
@@ -178,7 +199,19 @@ func TestSchemaCommentsMatchDefaults(t *testing.T) {
 		case boolRe.MatchString(comment):
 			assert.Equal(t, boolRe.FindStringSubmatch(comment)[1] == "true", got, "%s.%s", table, m[1])
 			checked++
+		case quotedRe.MatchString(comment):
+			assert.Equal(t, quotedRe.FindStringSubmatch(comment)[1], got, "%s.%s", table, m[1])
+			checked++
+		case arrayRe.MatchString(comment):
+			var want []float64
+			for _, f := range strings.Split(arrayRe.FindStringSubmatch(comment)[1], ",") {
+				x, err := strconv.ParseFloat(strings.TrimSpace(f), 64)
+				require.NoError(t, err, line)
+				want = append(want, x)
+			}
+			assert.Equal(t, want, got, "%s.%s", table, m[1])
+			checked++
 		}
 	}
-	assert.Greater(t, checked, 60, "the comment scan found too few defaults; has schema.go's layout changed?")
+	assert.Greater(t, checked, 85, "the comment scan found too few defaults; has schema.go's layout changed?")
 }

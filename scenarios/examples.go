@@ -7,7 +7,11 @@ import (
 	"strings"
 )
 
-//go:embed examples/*.toml
+// The data directory is embedded too, so that an example's data.file
+// resolves within the same file system (Resolved.DataFS) and opens with
+// Resolved.OpenData wherever the program runs.
+//
+//go:embed examples/*.toml examples/data
 var examplesRoot embed.FS
 
 // exampleFS is the examples directory itself, so that example names and

@@ -1,9 +1,12 @@
 package scenarios
 
 import (
+	"io/fs"
 	"os"
 	"path/filepath"
 	"reflect"
+	"slices"
+	"strings"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -11,7 +14,7 @@ import (
 )
 
 func TestExamplesList(t *testing.T) {
-	assert.Equal(t, []string{"base", "burst", "smooth", "stall"}, Examples())
+	assert.Equal(t, []string{"base", "burst", "fit", "smooth", "stall"}, Examples())
 }
 
 func TestExamplesLoad(t *testing.T) {
@@ -50,21 +53,85 @@ func TestExamplesLoad(t *testing.T) {
 }
 
 // TestBaseSetsEverySection checks that base.toml, the example a user learns
-// from, shows every section of the format.
+// from, shows every section of the format but the two about observed data,
+// which fit.toml shows.
 func TestBaseSetsEverySection(t *testing.T) {
 	text, err := ExampleText("base")
 	require.NoError(t, err)
 	l, err := parseLayer("base.toml", text)
 	require.NoError(t, err)
+	dataSections := []string{"compare", "data"}
 	for _, sec := range fieldsOf(reflectTypeScenario()).names {
+		if slices.Contains(dataSections, sec) {
+			assert.NotContains(t, l.data, sec, "base.toml simulates only; %s belongs in fit.toml", sec)
+			continue
+		}
 		assert.Contains(t, l.data, sec, "base.toml lacks %s", sec)
+	}
+	text, err = ExampleText("fit")
+	require.NoError(t, err)
+	l, err = parseLayer("fit.toml", text)
+	require.NoError(t, err)
+	for _, sec := range dataSections {
+		assert.Contains(t, l.data, sec, "fit.toml lacks %s", sec)
+	}
+	// fit.toml spells out every [data] and [compare] key but the checksum
+	// (no data file yet) and the free list, which it sets itself.
+	for sec, typ := range map[string]reflect.Type{"data": reflect.TypeFor[Data](), "compare": reflect.TypeFor[Compare](), "data.columns": reflect.TypeFor[DataColumns]()} {
+		var node any = l.data
+		for _, k := range strings.Split(sec, ".") {
+			node = node.(map[string]any)[k]
+		}
+		for _, k := range fieldsOf(typ).names {
+			if sec == "data" && k == "sha256" || sec == "data.columns" {
+				continue // the columns name only what the catalog has
+			}
+			assert.Contains(t, node, k, "fit.toml lacks %s.%s", sec, k)
+		}
+	}
+}
+
+func TestFitExample(t *testing.T) {
+	fit, err := LoadExample("fit")
+	require.NoError(t, err)
+	burst, err := LoadExample("burst")
+	require.NoError(t, err)
+	assert.Equal(t, []string{"base.toml", "burst.toml", "fit.toml"}, fit.Files)
+	assert.Equal(t, burst.Scenario.History, fit.Scenario.History, "the model is burst.toml's")
+
+	d := fit.Scenario.Data
+	assert.Equal(t, "data/larkspur-rotation.csv", d.File)
+	assert.Equal(t, DataColumns{PeriodD: "prot_d", BV: "bv_mag", AppMagV: "vmag", ParallaxMas: "plx_mas", RADeg: "ra_deg", DecDeg: "dec_deg"}, d.Columns)
+	assert.Equal(t, "data/larkspur-rotation.csv", fit.DataPath)
+	assert.Equal(t, ExamplesFS(), fit.DataFS, "an example's data resolve within the embedded examples")
+	assert.Empty(t, burst.DataPath, "no data named, none resolved")
+	assert.Nil(t, burst.DataFS)
+
+	// The [compare] values written out in fit.toml are the defaults: burst,
+	// which sets none, resolves to the same, free list aside.
+	fc, bc := fit.Scenario.Compare, burst.Scenario.Compare
+	require.Len(t, fc.Free, 4)
+	assert.Equal(t, DefaultFree("burst", 10), bc.Free, "burst.toml gets the default free list")
+	assert.Equal(t, bc.Free, fc.Free[:3], "fit.toml spells the default list out")
+	assert.Equal(t, FreeParam{Path: "history.decline.timescale_gyr", Min: 2, Max: 20, Prior: "log-uniform"}, fc.Free[3])
+	fc.Free, bc.Free = nil, nil
+	assert.Equal(t, bc, fc)
+
+	// The catalog itself is generated later; until then opening it fails
+	// cleanly, naming the file, and loading did not need it.
+	f, err := fit.OpenData()
+	if err == nil {
+		require.NoError(t, f.Close())
+	} else {
+		assert.ErrorIs(t, err, fs.ErrNotExist)
+		assert.Contains(t, err.Error(), `fit.toml:15: data.file = "data/larkspur-rotation.csv": cannot open data/larkspur-rotation.csv`)
 	}
 }
 
 func TestExampleErrors(t *testing.T) {
 	_, err := LoadExample("nope")
 	require.Error(t, err)
-	assert.Contains(t, err.Error(), "no such example; the examples are base, burst, smooth, stall")
+	assert.Contains(t, err.Error(), "no such example; the examples are base, burst, fit, smooth, stall")
 	_, err = ExampleText("nope")
 	require.Error(t, err)
 }
@@ -78,6 +145,10 @@ func TestExamplesOnDiskMatchEmbedded(t *testing.T) {
 		emb, err := LoadExample(name)
 		require.NoError(t, err)
 		assert.Equal(t, emb.Hash(), disk.Hash(), name)
+		if emb.DataPath != "" {
+			assert.Equal(t, filepath.Join("examples", filepath.FromSlash(emb.DataPath)), disk.DataPath, "the same file, on disk")
+			assert.Nil(t, disk.DataFS, "on disk: the operating system's file system")
+		}
 		want, err := os.ReadFile(filepath.Join("examples", name+".toml"))
 		require.NoError(t, err)
 		got, err := ExampleText(name)

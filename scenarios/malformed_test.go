@@ -21,6 +21,9 @@ kind = "sphere"
 distance_max_pc = 500.0
 `
 
+// burstPart is a burst named "b", for cases about free parameters.
+const burstPart = "[history.b]\nkind = \"burst\"\nage_gyr = 0.6\nwidth_gyr = 0.05\nmass_fraction = 0.2\n"
+
 // malformedCase is a scenario with a problem and what its error must say.
 // lineOf, when set, is a snippet of the text whose line the error must
 // name as "x.toml:<line>:".
@@ -240,6 +243,219 @@ var malformedCases = []malformedCase{
 		text:   "extends = 3\n" + minimal,
 		lineOf: "extends",
 		want:   []string{"extends must be a string naming another scenario file"},
+	},
+	{
+		name:   "unknown key in [data.columns] suggests the nearest",
+		text:   minimal + "[data]\nfile = \"c.csv\"\n[data.columns]\nabs_mag_v = \"mv\"\nz_pc = \"z\"\nbv = \"color\"\n",
+		lineOf: "bv =",
+		want:   []string{`unknown key "bv" in [data.columns]; did you mean "b_v"?`},
+	},
+	{
+		name:   "checksum of the wrong length",
+		text:   minimal + "[data]\nfile = \"c.csv\"\nsha256 = \"3a7bd3e2360a3d\"\n[data.columns]\nabs_mag_v = \"mv\"\nz_pc = \"z\"\n",
+		lineOf: "sha256",
+		want:   []string{`data.sha256 = "3a7bd3e2360a3d" is not a SHA-256 checksum (14 characters); give its 64 hexadecimal digits`},
+	},
+	{
+		name:   "checksum with a non-hex digit",
+		text:   minimal + "[data]\nfile = \"c.csv\"\nsha256 = \"" + strings.Repeat("ab", 31) + "zz\"\n[data.columns]\nabs_mag_v = \"mv\"\nz_pc = \"z\"\n",
+		lineOf: "sha256",
+		want:   []string{"is not a SHA-256 checksum (64 characters)"},
+	},
+	{
+		name:   "checksum without a file",
+		text:   minimal + "[data]\nsha256 = \"" + strings.Repeat("ab", 32) + "\"\n",
+		lineOf: "sha256",
+		want:   []string{"data.sha256 is set but data.file is empty"},
+	},
+	{
+		name:   "unknown data format",
+		text:   minimal + "[data]\nfile = \"c.csv\"\nformat = \"tsv\"\n[data.columns]\nabs_mag_v = \"mv\"\nz_pc = \"z\"\n",
+		lineOf: "format",
+		want:   []string{`data.format = "tsv" is not allowed; use one of: auto, csv, ecsv`},
+	},
+	{
+		name:   "columns that give neither magnitude nor height",
+		text:   minimal + "[data]\nfile = \"c.csv\"\n[data.columns]\napp_mag_v = \"v\"\n",
+		lineOf: "[data.columns]",
+		want: []string{"data.columns cannot give the absolute magnitude: name abs_mag_v, or app_mag_v and parallax_mas to derive it (missing: abs_mag_v, or parallax_mas); " +
+			"nor the height above the plane: name z_pc, or parallax_mas and a sky position (ra_deg and dec_deg, or l_deg and b_deg) to derive it (missing: z_pc, or parallax_mas and ra_deg and dec_deg (or l_deg and b_deg))"},
+	},
+	{
+		name:   "missing columns blamed on the file when no columns are mapped",
+		text:   minimal + "[data]\nfile = \"c.csv\"\n",
+		lineOf: "file =",
+		want:   []string{"data.columns cannot give the absolute magnitude", "(missing: abs_mag_v, or app_mag_v and parallax_mas)"},
+	},
+	{
+		name:   "height only: magnitude missing",
+		text:   minimal + "[data]\nfile = \"c.csv\"\n[data.columns]\nz_pc = \"z\"\napp_mag_v = \"v\"\n",
+		lineOf: "[data.columns]",
+		want:   []string{"data.columns cannot give the absolute magnitude: name abs_mag_v, or app_mag_v and parallax_mas to derive it (missing: abs_mag_v, or parallax_mas)"},
+	},
+	{
+		name:   "half a sky position",
+		text:   minimal + "[data]\nfile = \"c.csv\"\n[data.columns]\napp_mag_v = \"v\"\nparallax_mas = \"plx\"\nra_deg = \"ra\"\n",
+		lineOf: "ra_deg",
+		want:   []string{"data.columns.ra_deg is set but data.columns.dec_deg is not; a sky position needs both ra_deg and dec_deg"},
+	},
+	{
+		name:   "one column for two quantities",
+		text:   minimal + "[data]\nfile = \"c.csv\"\n[data.columns]\nabs_mag_v = \"mv\"\nz_pc = \"mv\"\n",
+		lineOf: "z_pc",
+		want:   []string{`data.columns.z_pc = "mv" names the same column as data.columns.abs_mag_v`},
+	},
+	{
+		name:   "empty period column",
+		text:   minimal + "[data]\nfile = \"c.csv\"\n[data.columns]\nperiod_d = \"\"\nabs_mag_v = \"mv\"\nz_pc = \"z\"\n",
+		lineOf: "period_d",
+		want:   []string{"data.columns.period_d is empty; with data.file set, name the column that holds the rotation period"},
+	},
+	{
+		name:   "free path naming no parameter lists the valid paths",
+		text:   minimal + burstPart + "[[compare.free]]\npath = \"history.b.age\"\nmin = 0.1\nmax = 1.0\n",
+		lineOf: "path =",
+		want: []string{`compare.free[0].path = "history.b.age" does not name a parameter a fit can move; a free parameter is "history.<part>.<key>" with a key its part's kind takes (did you mean "history.b.age_gyr"?); ` +
+			"the valid paths are: history.b.age_gyr, history.b.mass_fraction, history.b.width_gyr, history.smooth.weight"},
+	},
+	{
+		name:   "free path naming a key of another kind",
+		text:   minimal + burstPart + "[[compare.free]]\npath = \"history.smooth.timescale_gyr\"\nmin = 1.0\nmax = 10.0\n",
+		lineOf: "path =",
+		want:   []string{`compare.free[0].path = "history.smooth.timescale_gyr" does not name a parameter a fit can move`, "the valid paths are: history.b.age_gyr,"},
+	},
+	{
+		name:   "log-uniform prior from zero",
+		text:   minimal + burstPart + "[[compare.free]]\npath = \"history.b.mass_fraction\"\nmin = 0.0\nmax = 0.5\nprior = \"log-uniform\"\n",
+		lineOf: "min =",
+		want:   []string{"compare.free[0].min = 0 must be > 0 for a log-uniform prior"},
+	},
+	{
+		name: "duplicate free path",
+		text: minimal + burstPart + "[[compare.free]]\npath = \"history.b.age_gyr\"\nmin = 0.1\nmax = 1.0\n" +
+			"[[compare.free]]\npath = \"history.b.age_gyr\"\nmin = 0.2\nmax = 2.0\n",
+		lineOf: "path =",
+		want:   []string{`compare.free[1].path = "history.b.age_gyr" repeats compare.free[0]; a parameter can be free only once`},
+	},
+	{
+		name:   "free range empty",
+		text:   minimal + burstPart + "[[compare.free]]\npath = \"history.b.age_gyr\"\nmin = 1.0\nmax = 0.5\n",
+		lineOf: "max =",
+		want:   []string{"compare.free[0].max = 0.5 must be greater than compare.free[0].min = 1 (empty range)"},
+	},
+	{
+		name:   "free range beyond the key's values",
+		text:   minimal + burstPart + "[[compare.free]]\npath = \"history.b.mass_fraction\"\nmin = 0.1\nmax = 1.5\n",
+		lineOf: "max =",
+		want:   []string{"compare.free[0].max = 1.5 must be ≤ 1: history.b.mass_fraction takes values in [0, 1]"},
+	},
+	{
+		name:   "free width from zero",
+		text:   minimal + burstPart + "[[compare.free]]\npath = \"history.b.width_gyr\"\nmin = 0.0\nmax = 0.5\n",
+		lineOf: "min =",
+		want:   []string{"compare.free[0].min = 0 must be > 0: history.b.width_gyr takes values in (0, ∞)"},
+	},
+	{
+		name:   "free parameter without a path",
+		text:   minimal + burstPart + "[[compare.free]]\nmin = 0.1\nmax = 1.0\n",
+		lineOf: "[[compare.free]]",
+		want:   []string{"compare.free[0].path is missing; each [[compare.free]] parameter needs max, min, path"},
+	},
+	{
+		name:   "unknown key in a free parameter",
+		text:   minimal + burstPart + "[[compare.free]]\npath = \"history.b.age_gyr\"\nmin = 0.1\nmax = 1.0\nprio = \"uniform\"\n",
+		lineOf: "prio =",
+		want:   []string{`unknown key "prio" in [compare.free[0]]; did you mean "prior"?`},
+	},
+	{
+		name:   "unknown prior",
+		text:   minimal + burstPart + "[[compare.free]]\npath = \"history.b.age_gyr\"\nmin = 0.1\nmax = 1.0\nprior = \"loguniform\"\n",
+		lineOf: "prior =",
+		want:   []string{`compare.free[0].prior = "loguniform" is not allowed; use one of: uniform, log-uniform (did you mean "log-uniform"?)`},
+	},
+	{
+		name:   "free list that is not an array of tables",
+		text:   minimal + "[compare]\nfree = \"history.b.age_gyr\"\n",
+		lineOf: "free =",
+		want:   []string{`compare.free must be an array of tables ([[...]] sections), not a string`},
+	},
+	{
+		name:   "too few color bins",
+		text:   minimal + "[compare]\ncolor_bins = 1\n",
+		lineOf: "color_bins",
+		want:   []string{"compare.color_bins = 1 is out of range; it must be in [2, 500]"},
+	},
+	{
+		name:   "too many period bins",
+		text:   minimal + "[compare]\nlog_period_bins = 501\n",
+		lineOf: "log_period_bins",
+		want:   []string{"compare.log_period_bins = 501 is out of range; it must be in [2, 500]"},
+	},
+	{
+		name:   "comparison period range outside the cuts",
+		text:   minimal + "[cuts]\nperiod_max_d = 60.0\n[compare]\nperiod_max_d = 80.0\n",
+		lineOf: "period_max_d = 80",
+		want:   []string{"compare.period_max_d = 80 lies above cuts.period_max_d = 60 (the comparison range must lie inside the cuts"},
+	},
+	{
+		name:   "comparison period range below the cuts",
+		text:   minimal + "[cuts]\nperiod_min_d = 1.0\n[compare]\nperiod_min_d = 0.7\n",
+		lineOf: "period_min_d = 0.7",
+		want:   []string{"compare.period_min_d = 0.7 lies below cuts.period_min_d = 1"},
+	},
+	{
+		name:   "empty comparison period range",
+		text:   minimal + "[compare]\nperiod_min_d = 20.0\nperiod_max_d = 10.0\n",
+		lineOf: "period_max_d",
+		want:   []string{"compare.period_max_d = 10 must be greater than compare.period_min_d = 20 (empty period range)"},
+	},
+	{
+		name:   "height edges not from zero",
+		text:   minimal + "[compare]\nheight_edges_pc = [50.0, 100.0]\n",
+		lineOf: "height_edges_pc",
+		want:   []string{"compare.height_edges_pc starts at 50 pc; it must start at 0"},
+	},
+	{
+		name:   "height edges not increasing",
+		text:   minimal + "[compare]\nheight_edges_pc = [0.0, 300.0, 200.0]\n",
+		lineOf: "height_edges_pc",
+		want:   []string{"compare.height_edges_pc must be strictly increasing, but element 3 (200) is not above element 2 (300)"},
+	},
+	{
+		name:   "too few template stars",
+		text:   minimal + "[compare]\ntemplate_stars = 50_000\n",
+		lineOf: "template_stars",
+		want:   []string{"compare.template_stars = 50000 must be ≥ 100000"},
+	},
+	{
+		name:   "unknown normalisation",
+		text:   minimal + "[compare]\nnormalisation = \"fixed\"\n",
+		lineOf: "normalisation",
+		want:   []string{`compare.normalisation = "fixed" is not allowed; use one of: free, absolute`},
+	},
+	{
+		name:   "unknown template noise treatment",
+		text:   minimal + "[compare]\ntemplate_noise = \"barlow-beeston\"\n",
+		lineOf: "template_noise",
+		want:   []string{`compare.template_noise = "barlow-beeston" is not allowed; use one of: barlow-beeston-lite, ignore (did you mean "barlow-beeston-lite"?)`},
+	},
+	{
+		name:   "too many bootstrap replicates",
+		text:   minimal + "[compare]\nbootstrap = 2_000_000\n",
+		lineOf: "bootstrap",
+		want:   []string{"compare.bootstrap = 2000000 is out of range; it must be in [0, 1000000]"},
+	},
+	{
+		name:   "negative split age",
+		text:   minimal + "[compare]\nsplit_age_gyr = -1.0\n",
+		lineOf: "split_age_gyr",
+		want:   []string{"compare.split_age_gyr = -1 is out of range; it must be in [0, 10]"},
+	},
+	{
+		name:   "burst part of the wrong kind",
+		text:   minimal + burstPart + "[compare]\nburst_part = \"smooth\"\n",
+		lineOf: "burst_part",
+		want:   []string{`compare.burst_part = "smooth" names a part of kind "constant"; it must name a part of kind "burst" (the part a burst-versus-smooth test frees); the history's bursts are: b`},
 	},
 	{
 		name: "derived default blamed on its source",

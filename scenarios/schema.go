@@ -228,12 +228,16 @@ type Output struct {
 	GyrochroneAgesGyr []float64 `toml:"gyrochrone_ages_gyr"` // default [0.3, 0.6, 1, 2, 4]
 }
 
-// Data names an observed rotation catalog and maps its columns. Give either
-// abs_mag and height, or app_mag, parallax and a sky position (ra/dec in
-// ICRS degrees, or l/b in Galactic degrees).
+// Data names an observed rotation catalog and maps its columns. Besides
+// the period and the color, each star needs an absolute magnitude (abs_mag_v,
+// or app_mag_v and parallax_mas to derive it) and a height above the plane
+// (z_pc, or parallax_mas and a sky position: ra/dec in ICRS degrees or l/b
+// in Galactic degrees), the rule compare/catalog applies when it reads the
+// file. Loading a scenario resolves the file's path (Resolved.DataPath)
+// but does not open it.
 type Data struct {
-	File    string      `toml:"file"`    // path relative to the scenario file that names it; "" = no data
-	SHA256  string      `toml:"sha256"`  // optional: hex SHA-256 the file must have
+	File    string      `toml:"file"`    // path relative to the scenario file that names it; default "" (no data)
+	SHA256  string      `toml:"sha256"`  // optional: hex SHA-256 the file must have (64 digits); default ""
 	Format  string      `toml:"format"`  // "auto" (default: by content) | "csv" | "ecsv"
 	Columns DataColumns `toml:"columns"` // column names in the file
 }
@@ -242,17 +246,29 @@ type Data struct {
 type DataColumns struct {
 	PeriodD     string `toml:"period_d"`     // rotation period (d); default "period_d"
 	BV          string `toml:"b_v"`          // B−V color (mag); default "b_v"
-	AbsMagV     string `toml:"abs_mag_v"`    // absolute V magnitude
-	HeightPc    string `toml:"z_pc"`         // height above the Galactic plane (pc)
-	AppMagV     string `toml:"app_mag_v"`    // apparent V magnitude
-	ParallaxMas string `toml:"parallax_mas"` // parallax (mas)
-	RADeg       string `toml:"ra_deg"`       // ICRS right ascension (deg)
-	DecDeg      string `toml:"dec_deg"`      // ICRS declination (deg)
-	LDeg        string `toml:"l_deg"`        // Galactic longitude (deg)
-	BDeg        string `toml:"b_deg"`        // Galactic latitude (deg)
+	AbsMagV     string `toml:"abs_mag_v"`    // absolute V magnitude; default ""
+	HeightPc    string `toml:"z_pc"`         // height above the Galactic plane (pc); default ""
+	AppMagV     string `toml:"app_mag_v"`    // apparent V magnitude; default ""
+	ParallaxMas string `toml:"parallax_mas"` // parallax (mas); default ""
+	RADeg       string `toml:"ra_deg"`       // ICRS right ascension (deg); default ""
+	DecDeg      string `toml:"dec_deg"`      // ICRS declination (deg); default ""
+	LDeg        string `toml:"l_deg"`        // Galactic longitude (deg); default ""
+	BDeg        string `toml:"b_deg"`        // Galactic latitude (deg); default ""
 }
 
 // Compare sets the comparison space, the templates and the statistics.
+//
+// The comparison's period range defaults to max(cuts.period_min_d, 0.5) to
+// min(cuts.period_max_d, 100), or to the cuts' own range when that would
+// leave none; given values must lie within the cuts.
+//
+// Free lists the parameters a fit moves. Left out, it defaults to
+// DefaultFree: when the history has a part of kind "burst" named
+// burst_part, that part's age_gyr in [0.1, min(3, history.max_age_gyr)],
+// width_gyr in [0.02, 0.5] and mass_fraction in [0, 0.6], uniform priors;
+// otherwise nothing. The resolved scenario holds the list filled in, so
+// the canonical form shows it; "free = []" says explicitly that nothing is
+// free.
 type Compare struct {
 	ColorBins     int         `toml:"color_bins"`      // B−V bins between cuts.b_v_min and b_v_max; default 23
 	LogPeriodBins int         `toml:"log_period_bins"` // log10-period bins; default 30
@@ -263,15 +279,15 @@ type Compare struct {
 	Normalisation string      `toml:"normalisation"`   // "free" (default: multinomial) | "absolute"
 	TemplateNoise string      `toml:"template_noise"`  // "barlow-beeston-lite" (default) | "ignore"
 	Bootstrap     int         `toml:"bootstrap"`       // parametric-bootstrap replicates; default 1000
-	SplitAgeGyr   float64     `toml:"split_age_gyr"`   // young/old split for the height check; 0 = fitted burst age (default)
+	SplitAgeGyr   float64     `toml:"split_age_gyr"`   // young/old split for the height check; default 0 (the fitted burst age)
 	BurstPart     string      `toml:"burst_part"`      // history part tested as the burst; default "burst"
-	Free          []FreeParam `toml:"free"`            // parameters fitted; default: the burst's age, width and mass fraction
+	Free          []FreeParam `toml:"free"`            // parameters fitted; default: see above
 }
 
 // FreeParam is one fitted parameter, named by its scenario path.
 type FreeParam struct {
-	Path  string  `toml:"path"`  // e.g. "history.burst.age_gyr"
-	Min   float64 `toml:"min"`   // lower bound
-	Max   float64 `toml:"max"`   // upper bound
-	Prior string  `toml:"prior"` // "uniform" (default) | "log-uniform"
+	Path  string  `toml:"path"`  // "history.<part>.<key>", e.g. "history.burst.age_gyr"; required
+	Min   float64 `toml:"min"`   // lower bound, a value the key can take; required
+	Max   float64 `toml:"max"`   // upper bound, > min; required
+	Prior string  `toml:"prior"` // "uniform" (default) | "log-uniform" (needs min > 0)
 }

@@ -70,6 +70,9 @@ func (v *decoder) validate(s *Scenario) {
 			break
 		}
 	}
+
+	v.validateData(&s.Data)
+	v.validateCompare(s)
 }
 
 func (v *decoder) validateDisk(dk *Disk, maxAgeGyr float64) {

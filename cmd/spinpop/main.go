@@ -8,6 +8,7 @@
 //	spinpop simulate SCENARIO --out DIR [--seed N] [--json] [--force]
 //	spinpop gyrochrones SCENARIO [--ages-gyr 0.3,0.6,1,2,4] [--csv]
 //	spinpop laws SCENARIO --out DIR
+//	spinpop mock SCENARIO --out FILE --stars N
 //	spinpop demo --out DIR
 //
 // Exit status: 0 on success, 2 for bad input (scenario, flags, folders),
@@ -44,6 +45,7 @@ func commands() []command {
 		{"check", "validate a scenario; print its resolved form and hash", runCheck},
 		{"simulate", "make and observe a synthetic population; write catalog, manifest, plots", runSimulate},
 		{"gyrochrones", "tabulate period against color and mass at chosen ages for the scenario's spin-down law", runGyrochrones},
+		{"mock", "draw a mock observed catalog of N stars from a scenario", runMock},
 		{"laws", "the same population under each spin-down law, side by side", runLaws},
 		{"demo", "the whole job on the built-in example scenario", runDemo},
 		{"examples", "list the built-in example scenarios, or print one", runExamples},

@@ -215,13 +215,13 @@ func ageBiasPlot(t *model.Tally) (*plot.Plot, error) {
 // limits whose period the survey detected, against age.
 func detectedFractionPlot(t *model.Tally) (*plot.Plot, error) {
 	p := plot.New()
-	p.Title.Text = "Period detected, fraction of dwarfs in magnitude range"
+	p.Title.Text = "Period detected, by age"
 	p.X.Label.Text = "age (Gyr)"
 	p.Y.Label.Text = "detected fraction"
-	y := make([]float64, len(t.AgeMagRange))
+	y := make([]float64, len(t.AgeEligible))
 	for k := range y {
-		if t.AgeMagRange[k] > 0 {
-			y[k] = float64(t.AgeDetected[k]) / float64(t.AgeMagRange[k])
+		if t.AgeEligible[k] > 0 {
+			y[k] = float64(t.AgeDetected[k]) / float64(t.AgeEligible[k])
 		}
 	}
 	l, err := stepLine(t.AgeEdgesGyr, y, overlayColors[1])

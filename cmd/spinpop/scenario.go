@@ -1,6 +1,7 @@
 package main
 
 import (
+	"fmt"
 	"os"
 	"strings"
 
@@ -37,4 +38,14 @@ func oneScenarioArg(pos []string, cmd string) (string, error) {
 		return "", usageErrorf("%s takes one scenario file (or example:NAME); got %d arguments (see spinpop %s --help)", cmd, len(pos), cmd)
 	}
 	return pos[0], nil
+}
+
+// scenariosBuild builds a scenario's run objects; its errors are the
+// user's (combinations of keys the loader cannot judge alone).
+func scenariosBuild(s *scenarios.Scenario, path string) (*scenarios.Built, error) {
+	b, err := scenarios.Build(s)
+	if err != nil {
+		return nil, inputError{fmt.Errorf("%s: %w", path, err)}
+	}
+	return b, nil
 }

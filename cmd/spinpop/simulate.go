@@ -97,7 +97,7 @@ type ageMedians struct {
 type binFraction struct {
 	AgeLoGyr float64 `json:"age_lo_gyr"`
 	AgeHiGyr float64 `json:"age_hi_gyr"`
-	InRange  int64   `json:"dwarfs_in_magnitude_range"`
+	InRange  int64   `json:"dwarfs_passing_cuts"`
 	Detected int64   `json:"period_detected"`
 }
 
@@ -204,8 +204,8 @@ func simulate(res *scenarios.Resolved, path, dir string, workers int, stderr io.
 		sum.Counts = append(sum.Counts, stepCount{name, tally.StepCounts[i]})
 	}
 	sum.MedianAgeGyr = ageMedians{medianFromBins(tally.AgeEdgesGyr, tally.AgeGenerated), medianFromBins(tally.AgeEdgesGyr, tally.AgeSelected)}
-	for k := range tally.AgeMagRange {
-		sum.DetectedByAge = append(sum.DetectedByAge, binFraction{tally.AgeEdgesGyr[k], tally.AgeEdgesGyr[k+1], tally.AgeMagRange[k], tally.AgeDetected[k]})
+	for k := range tally.AgeEligible {
+		sum.DetectedByAge = append(sum.DetectedByAge, binFraction{tally.AgeEdgesGyr[k], tally.AgeEdgesGyr[k+1], tally.AgeEligible[k], tally.AgeDetected[k]})
 	}
 	for k := range tally.ColorEligible {
 		sum.DetectedByBV = append(sum.DetectedByBV, colorFraction{tally.ColorEdges[k], tally.ColorEdges[k+1], tally.ColorEligible[k], tally.ColorDetected[k]})

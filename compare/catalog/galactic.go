@@ -75,3 +75,24 @@ func ICRSToGalactic(raDeg, decDeg float64) (lDeg, bDeg float64) {
 	bDeg = math.Atan2(g[2], math.Hypot(g[0], g[1])) * 180 / math.Pi
 	return lDeg, bDeg
 }
+
+// GalacticToICRS is the inverse of ICRSToGalactic: the transpose of the
+// same rotation. Used to give invented mock catalogs sky positions.
+func GalacticToICRS(lDeg, bDeg float64) (raDeg, decDeg float64) {
+	l, b := lDeg*math.Pi/180, bDeg*math.Pi/180
+	cb := math.Cos(b)
+	g := [3]float64{cb * math.Cos(l), cb * math.Sin(l), math.Sin(b)}
+	var v [3]float64
+	for i := range v {
+		v[i] = icrsToGalactic[0][i]*g[0] + icrsToGalactic[1][i]*g[1] + icrsToGalactic[2][i]*g[2]
+	}
+	raDeg = math.Atan2(v[1], v[0]) * 180 / math.Pi
+	if raDeg < 0 {
+		raDeg += 360
+	}
+	if raDeg >= 360 {
+		raDeg -= 360
+	}
+	decDeg = math.Atan2(v[2], math.Hypot(v[0], v[1])) * 180 / math.Pi
+	return raDeg, decDeg
+}

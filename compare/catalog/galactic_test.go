@@ -60,3 +60,21 @@ func TestICRSToGalacticLandmarks(t *testing.T) {
 	_, b = ICRSToGalactic(192.859, 27.128)
 	require.InDelta(t, 90, b, 0.01)
 }
+
+// The inverse rotation takes astropy's Galactic positions back to the ICRS
+// positions they came from.
+func TestGalacticToICRSAgainstAstropy(t *testing.T) {
+	recs := readCSVRecords(t, "../../testdata/icrs_galactic_reference.csv")
+	for _, r := range recs {
+		v := make([]float64, 4)
+		for i := range v {
+			x, err := strconv.ParseFloat(r[i], 64)
+			require.NoError(t, err)
+			v[i] = x
+		}
+		// Source: astropy 5.2 SkyCoord(ra, dec, frame='icrs').galactic,
+		// testdata/icrs_galactic_reference.py, read in reverse.
+		ra, dec := GalacticToICRS(v[2], v[3])
+		require.Less(t, angSepDeg(ra, dec, v[0], v[1]), 1e-9, "l=%g b=%g", v[2], v[3])
+	}
+}

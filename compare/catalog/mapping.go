@@ -26,13 +26,17 @@ type Mapping struct {
 	Period, Color, AbsMag, Height, AppMag, Parallax, RA, Dec, L, B string
 }
 
-// ExpectedUnits are the units each mapped quantity must have. ECSV columns
+// ExpectedUnit returns the unit the named Mapping quantity ("Period",
+// "Parallax", …) must have, or "" for an unknown quantity.
+func ExpectedUnit(quantity string) string { return expectedUnits[quantity] }
+
+// expectedUnits are the units each mapped quantity must have. ECSV columns
 // that declare another unit are refused (ErrUnit) rather than converted:
 // a parallax in arcseconds read as milliarcseconds would put every star a
 // thousand times too far, and a silent conversion would hide which file
 // was meant. Columns without a declared unit (all of plain CSV) are taken
 // to be in these units.
-var ExpectedUnits = map[string]string{
+var expectedUnits = map[string]string{
 	"Period":   "d",
 	"Color":    "mag",
 	"AbsMag":   "mag",
@@ -145,7 +149,7 @@ func (m Mapping) resolve(cols []Column, zSunPc float64) (*plan, error) {
 			return nil, fmt.Errorf("%w: %s column %q appears more than once in the header; rename one", ErrColumn, f.quantity, f.column)
 		}
 		c := cols[i]
-		if want := ExpectedUnits[f.quantity]; c.Unit != "" && canonicalUnit(c.Unit) != want {
+		if want := expectedUnits[f.quantity]; c.Unit != "" && canonicalUnit(c.Unit) != want {
 			return nil, fmt.Errorf("%w: column %q (%s) has unit %q, but %q is required; convert the column or map another",
 				ErrUnit, c.Name, f.quantity, c.Unit, want)
 		}

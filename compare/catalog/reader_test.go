@@ -350,3 +350,10 @@ func TestMalformedFiles(t *testing.T) {
 		})
 	require.ErrorContains(t, err, "catalog:3: enough")
 }
+
+func TestExpectedUnit(t *testing.T) {
+	// Common practice, no source: parallaxes in milliarcseconds, periods in days.
+	assert.Equal(t, "mas", ExpectedUnit("Parallax"))
+	assert.Equal(t, "d", ExpectedUnit("Period"))
+	assert.Equal(t, "", ExpectedUnit("Mass"))
+}

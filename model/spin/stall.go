@@ -21,6 +21,14 @@ import (
 // dwarfs up at one period over an age range and can open a gap in the
 // period–color plane.
 //
+// With CatchUpFraction = c > 0 the pause is followed by a catch-up of
+// length c·DurationGyr(m) during which the effective age runs (1 + 1/c)
+// times faster than the age, so the star rejoins the unpaused track: a
+// fast transit in period, the prescribed counterpart of the rapid spin-down
+// that follows recoupling in two-zone models. A pile-up during the pause
+// and a sparse band during the catch-up together open a gap above the
+// stalled sequence.
+//
 // Because the pause multiplies the braking by a factor that depends on time
 // only, the spin evolution stays separable: a paused star is exactly the
 // unpaused star at the effective age τ(t) = t − (time spent paused by t).
@@ -34,6 +42,11 @@ type StallOptions struct {
 	StartMassSlope     float64 // start ∝ m^(−slope); ≥ 0 so it grows toward low mass
 	DurationMassSlope  float64 // duration ∝ m^(−slope); ≥ 0 so it grows toward low mass
 	CutoffMsun         float64 // no pause at or above this mass (M☉)
+	// CatchUpFraction, when > 0, makes the star regain the lost time after
+	// the pause: over CatchUpFraction × DurationGyr(m) its effective age
+	// runs faster than its age, until it rejoins the unpaused track. 0 means
+	// the star stays behind by the pause length for good.
+	CatchUpFraction float64
 }
 
 // DefaultStallOptions returns a stall (disabled) whose window at 0.75–0.8 M☉
@@ -71,6 +84,8 @@ func (o StallOptions) Validate() error {
 		return fmt.Errorf("spin: stall StartMassSlope must be finite and ≥ 0 (the pause starts later at low mass), got %g", o.StartMassSlope)
 	case !(o.DurationMassSlope >= 0) || math.IsInf(o.DurationMassSlope, 1):
 		return fmt.Errorf("spin: stall DurationMassSlope must be finite and ≥ 0 (the pause lasts longer at low mass), got %g", o.DurationMassSlope)
+	case !(o.CatchUpFraction >= 0) || math.IsInf(o.CatchUpFraction, 1):
+		return fmt.Errorf("spin: stall CatchUpFraction must be finite and ≥ 0, got %g", o.CatchUpFraction)
 	}
 	return nil
 }
@@ -108,11 +123,18 @@ func (o StallOptions) effectiveAge(massMsun, ageGyr float64) float64 {
 	}
 	lnM := math.Log(massMsun / o.PivotMsun)
 	start := o.StartGyrAtPivot * math.Exp(-o.StartMassSlope*lnM)
-	switch {
-	case ageGyr <= start:
+	if ageGyr <= start {
 		return ageGyr
-	case ageGyr <= start+o.duration(massMsun, lnM):
+	}
+	d := o.duration(massMsun, lnM)
+	if ageGyr <= start+d {
 		return start
 	}
-	return ageGyr - o.duration(massMsun, lnM)
+	if c := o.CatchUpFraction * d; c > 0 {
+		if ageGyr <= start+d+c {
+			return start + (ageGyr-start-d)*(d+c)/c
+		}
+		return ageGyr
+	}
+	return ageGyr - d
 }

@@ -227,6 +227,43 @@ func TestStall(t *testing.T) {
 	assert.Zero(t, o.DurationGyr(1.2))
 }
 
+// With a catch-up the stalled star rejoins the unpaused track after the
+// pause, passing quickly through the periods in between: the prescribed
+// fast transit that opens a gap above the stalled sequence.
+func TestStallCatchUp(t *testing.T) {
+	stall := defaultTorque(t, func(o *TorqueOptions) { o.Stall.Enabled = true; o.Stall.CatchUpFraction = 0.25 })
+	plain := defaultTorque(t, nil)
+	o := stall.Options().Stall
+	const m = 0.75
+	s, d := o.StartGyr(m), o.DurationGyr(m)
+	c := 0.25 * d
+	// Before the pause and after the catch-up: identical to the plain law.
+	for _, age := range []float64{0.5 * s, s + d + c + 0.01, s + d + c + 2} {
+		a, _ := stall.PeriodAt(m, age, 0.5)
+		b, _ := plain.PeriodAt(m, age, 0.5)
+		assert.InDelta(t, b, a, 1e-9*b, "age %g", age)
+	}
+	// Continuous at both ends of the catch-up.
+	p0, _ := stall.PeriodAt(m, s+d, 0.5)
+	p0b, _ := stall.PeriodAt(m, s+d+1e-9, 0.5)
+	assert.InDelta(t, p0, p0b, 1e-6*p0)
+	// During the catch-up the period grows (1 + 1/c) times faster than
+	// the plain law's at the same effective age.
+	mid := s + d + c/2
+	pa, _ := stall.PeriodAt(m, mid, 0.5)
+	pb, _ := stall.PeriodAt(m, mid+1e-4, 0.5)
+	eff := s + (mid-s-d)*(d+c)/c
+	qa, _ := plain.PeriodAt(m, eff, 0.5)
+	qb, _ := plain.PeriodAt(m, eff+1e-4, 0.5)
+	assert.InDelta(t, (1+1/0.25)*(qb-qa), pb-pa, 0.02*(pb-pa))
+
+	bad := DefaultTorqueOptions()
+	bad.Stall.Enabled = true
+	bad.Stall.CatchUpFraction = -1
+	_, err := NewTorqueLaw(bad)
+	assert.ErrorContains(t, err, "CatchUpFraction")
+}
+
 func TestInitialPeriods(t *testing.T) {
 	lu := InitialPeriods{Shape: LogUniform, MinD: 1, MaxD: 16}
 	require.NoError(t, lu.Validate())

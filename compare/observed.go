@@ -1,0 +1,99 @@
+package compare
+
+import (
+	"errors"
+	"fmt"
+	"io"
+	"strings"
+
+	"spinpop/compare/catalog"
+	"spinpop/model"
+)
+
+// DataSpec says where an observed catalog is and how to read and cut it.
+type DataSpec struct {
+	Path      string          // the catalog file (CSV or ECSV, optionally gzip-compressed)
+	SHA256    string          // expected hex SHA-256 of the file's bytes; "" skips the check
+	Mapping   catalog.Mapping // column names; Color is B−V, AbsMag is M_V
+	SunZPc    float64         // z☉ added to d sin b when heights are derived from parallax
+	Cuts      model.Cuts      // the catalogue cuts, the same the model applies
+	Relations *model.Relations
+}
+
+// ObservedStar is one star that passed every cut and lies in the space.
+type ObservedStar struct {
+	BV, AbsMagV, PeriodD, ZPc float64
+}
+
+// Observed is an observed catalog binned in a Space.
+type Observed struct {
+	Counts   []float64      // per Space bin (3-D)
+	N        int            // stars counted: Σ Counts
+	Rows     int            // data rows read, usable or not
+	Rejected map[string]int // unusable rows, by reason (catalog.Reason text)
+	CutAway  map[string]int // usable rows removed by each cut (CutNames)
+	SHA256   string         // hex SHA-256 of the file's bytes
+	Stars    []ObservedStar // the counted stars, in file order
+}
+
+// ReadObserved reads the catalog of spec, cuts it as the model is cut
+// (KeepStar), and bins the kept stars in space; stars that pass the cuts
+// but fall outside the space are counted under CutOutsideSpace. Unusable
+// rows (missing or malformed values) are counted by reason and written to
+// rejects as CSV with the columns line, reason, column, value, raw (nil
+// discards them). A file whose SHA-256 differs from spec.SHA256 is an
+// error naming the file and both hashes.
+func ReadObserved(spec DataSpec, space Space, rejects io.Writer) (*Observed, error) {
+	if spec.Relations == nil {
+		return nil, errors.New("compare: ReadObserved needs the main-sequence relations for the color–magnitude cut")
+	}
+	obs := &Observed{
+		Counts:   make([]float64, space.NumBins()),
+		Rejected: map[string]int{},
+		CutAway:  map[string]int{},
+	}
+	for _, c := range CutNames {
+		obs.CutAway[c] = 0
+	}
+	opt := catalog.Options{Mapping: spec.Mapping, ZSunPc: spec.SunZPc}
+	var sink *catalog.CSVRejectWriter
+	if rejects != nil {
+		sink = catalog.NewCSVRejectWriter(rejects)
+		opt.Rejects = sink
+	}
+	sum, err := catalog.ReadFile(spec.Path, opt, func(_ int, s catalog.Star) error {
+		ok, why := KeepStar(spec.Cuts, spec.Relations, s.Color, s.AbsMag, s.PeriodD, s.ZPc)
+		if !ok {
+			obs.CutAway[why]++
+			return nil
+		}
+		i := space.Index(s.Color, s.PeriodD, s.ZPc)
+		if i < 0 {
+			obs.CutAway[CutOutsideSpace]++
+			return nil
+		}
+		obs.Counts[i]++
+		obs.N++
+		obs.Stars = append(obs.Stars, ObservedStar{BV: s.Color, AbsMagV: s.AbsMag, PeriodD: s.PeriodD, ZPc: s.ZPc})
+		return nil
+	})
+	if err != nil {
+		return nil, fmt.Errorf("compare: reading observed catalog: %w", err)
+	}
+	if sink != nil {
+		if err := sink.Flush(); err != nil {
+			return nil, fmt.Errorf("compare: writing rejected rows of %s: %w", spec.Path, err)
+		}
+	}
+	obs.SHA256 = sum.SHA256Hex()
+	if want := strings.ToLower(strings.TrimSpace(spec.SHA256)); want != "" && want != obs.SHA256 {
+		return nil, fmt.Errorf("compare: observed catalog %s has SHA-256 %s, but the scenario expects %s; point data.file at the intended catalog or update data.sha256", spec.Path, obs.SHA256, want)
+	}
+	obs.Rows = sum.Rows
+	for r, n := range sum.Rejected {
+		if n > 0 {
+			obs.Rejected[r.String()] = n
+		}
+	}
+	return obs, nil
+}
