@@ -1,24 +1,17 @@
 package disk
 
-import (
-	"math/bits"
-	"math/rand/v2"
-)
+import "math/bits"
 
-// aliasEntry is one column of Walker's alias table together with the
-// envelope of the block it stands for, so that a draw touches one cache
-// line when it keeps its column.
+// aliasEntry is one column of Walker's alias table.
 type aliasEntry struct {
-	prob   float32 // probability of keeping column i rather than its alias
-	alias  uint32
-	envMax float32 // upper bound of ν/ν(0) over the block (rounded up)
-	envMin float32 // lower bound of ν/ν(0) over the block (rounded down)
+	prob  float32 // probability of keeping column i rather than its alias
+	alias uint32
 }
 
-// buildAlias sets prob and alias of e from the non-negative weights w with
-// Vose's (1991) construction of Walker's alias table, so that pickAlias draws
-// index i with probability w[i]/Σw in constant time. At least one weight
-// must be positive.
+// buildAlias sets e from the non-negative weights w with Vose's (1991)
+// construction of Walker's alias table, so that pickAlias draws index i with
+// probability w[i]/Σw in constant time. At least one weight must be
+// positive.
 func buildAlias(w []float64, e []aliasEntry) {
 	n := len(w)
 	sum := 0.0
@@ -56,11 +49,11 @@ func buildAlias(w []float64, e []aliasEntry) {
 	}
 }
 
-// pickAlias draws an index from the alias table e with one 64-bit variate:
-// the high word of x·n is a uniform index (bias below n/2⁶⁴) and the top 24
-// bits of the low word a uniform coin for that column.
-func pickAlias(r *rand.Rand, e []aliasEntry) int {
-	hi, lo := bits.Mul64(r.Uint64(), uint64(len(e)))
+// pickAlias draws an index from the alias table e with one 64-bit variate
+// x: the high word of x·n is a uniform index (bias below n/2⁶⁴) and the top
+// 24 bits of the low word a uniform coin for that column.
+func pickAlias(x uint64, e []aliasEntry) int {
+	hi, lo := bits.Mul64(x, uint64(len(e)))
 	coin := float32(lo>>40) * (1.0 / (1 << 24))
 	if coin < e[hi].prob {
 		return int(hi)

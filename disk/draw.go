@@ -9,11 +9,13 @@ import (
 // longitude and latitude in degrees, distance and height above the midplane
 // (ZPc) in pc. k must lie in [0, NumBins()).
 //
-// It picks a block with probability ∝ its upper bound on ν_k (alias table),
-// a point uniform in the block's volume, and keeps it with probability
-// ν_k(z)/bound, repeating until one is kept: the result follows the bin's
-// density ν_k(z) over the field exactly, with no error from the block
-// size. A lower bound squeezes out most evaluations of ν_k.
+// It picks a height class with probability ∝ its upper bound on ν_k times
+// its volume, a block of the class by volume, a point uniform in the
+// block's volume, and keeps it with probability ν_k(z)/bound, repeating
+// until one is kept: the result follows the bin's density ν_k(z) over the
+// field exactly, with no error from the block size or the height grid. The
+// grid's brackets on ν_k decide almost every acceptance without evaluating
+// ν_k.
 //
 // The radial profile is then applied by rejection: accepted is true with
 // probability exp(−(R − R0)/h)/RadialAcceptanceMax(), R the Galactocentric
@@ -28,9 +30,11 @@ func (s *Sampler) Draw(k int, r *rand.Rand) (lDeg, bDeg, dPc, zPc float64, accep
 	var uc, phi float64 // cos ρ and azimuth in the cell's frame
 	var u vec3          // direction, for cells not about the Galactic pole
 	for {
-		j := pickAlias(r, t.entries)
-		e := &t.entries[j]
-		b := &s.blocks[j]
+		ci := pickAlias(r.Uint64(), t.classes)
+		env := float64(t.bounds[ci].hi)
+		first := s.classStart[ci]
+		bi := int(first) + pickAlias(r.Uint64(), s.blockAlias[first:s.classStart[ci+1]])
+		b := &s.blocks[bi]
 		c = &s.cells[b.cell]
 		x := r.Uint64()
 		uc = c.cMin + unit32(x>>32)*(c.cMax-c.cMin)
@@ -43,8 +47,18 @@ func (s *Sampler) Draw(k int, r *rand.Rand) (lDeg, bDeg, dPc, zPc float64, accep
 		x = r.Uint64()
 		dPc = math.Cbrt(b.d3Lo + unit32(x>>32)*b.d3Range)
 		zPc = dPc*sinB + s.zSunPc
-		y := unit32(x) * float64(e.envMax)
-		if y <= float64(e.envMin) || y <= t.prof.rel(zPc) {
+		y := unit32(x) * env
+		// ν_k falls with |z|: between grid nodes i and i+1 it lies within
+		// [lo(i+1), hi(i)].
+		if i := int(math.Abs(zPc) * s.invZStepPc); i+1 < len(t.bounds) {
+			if y <= float64(t.bounds[i+1].lo) {
+				break
+			}
+			if y > float64(t.bounds[i].hi) {
+				continue
+			}
+		}
+		if y <= t.prof.rel(zPc) {
 			break
 		}
 	}

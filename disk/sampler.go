@@ -57,12 +57,18 @@ type block struct {
 	d3Lo, d3Range float64 // d_lo³ and d_hi³ − d_lo³, pc³
 }
 
-// binTable is what a Sampler keeps for one age bin.
+// bound brackets an age bin's relative density ν/ν(0) at one node of the
+// height grid: hi is rounded up, lo down.
+type bound struct{ hi, lo float32 }
+
+// binTable is what a Sampler keeps for one age bin: a few kB, whatever the
+// number of blocks.
 type binTable struct {
 	prof       profile
-	integral   float64 // ∫ν dV over the field, pc²
-	envelope   float64 // ∫ of the block-wise upper bound, pc²
-	entries    []aliasEntry
+	integral   float64      // ∫ν dV over the field, pc²
+	envelope   float64      // ∫ of the class-wise upper bound, pc²
+	classes    []aliasEntry // height classes, by upper bound × class volume
+	bounds     []bound      // ν/ν(0) at |z| = i·zStepPc
 	components int
 }
 
@@ -83,13 +89,34 @@ type binTable struct {
 // corners). Draws are therefore exact for any block size, the block size
 // setting only the acceptance rate, and no inverse CDF is interpolated.
 //
+// The blocks are sorted into height classes by the height |z| nearest to
+// the midplane that they reach, on a grid of step zStepPc (1 pc for fields
+// within ≈ 1 kpc of the plane). Every point of a block in class c lies at
+// |z| ≥ c·zStepPc, where the bin's density is at most ν_k(c·zStepPc), so
+// Draw picks a class from a small per-bin table weighted by that bound
+// times the class volume, then a block of the class by volume from a table
+// shared by all bins. The per-bin tables hold a few thousand numbers, so
+// the tables of tens of bins stay in cache together; the bound loses
+// under one grid step of height against a per-block bound. The same grid
+// brackets ν_k between its nodes, which decides almost every acceptance
+// without evaluating the profile.
+//
 // A Sampler is read-only once built: goroutines may call Draw concurrently,
-// each with its own *rand.Rand. Draw touches one bin's tables, so a
-// generator that groups its draws by age bin keeps them in cache.
+// each with its own *rand.Rand.
 type Sampler struct {
 	cells  []Cell
-	blocks []block
+	blocks []block // sorted by height class
 	bins   []binTable
+
+	// Height classes: class c holds blocks[classStart[c]:classStart[c+1]],
+	// whose volumes (pc³) sum to classVolPc3[c]; blockAlias, indexed like
+	// blocks, draws a block of a class by volume (aliases relative to the
+	// class's first block).
+	classStart  []int32
+	classVolPc3 []float64
+	blockAlias  []aliasEntry
+	zStepPc     float64
+	invZStepPc  float64
 
 	zSunPc     float64
 	r0Pc       float64
@@ -152,6 +179,7 @@ func NewMixtureSampler(field Field, sun Sun, sheet Sheet, radial Radial, bins []
 
 	s := &Sampler{zSunPc: sun.ZPc, r0Pc: sun.RKpc * 1000}
 	s.cutField(field, opts)
+	s.classify()
 	s.setRadial(radial)
 
 	lc, nodeW := s.nodes(1 / sheet.Z0Pc())
@@ -162,7 +190,7 @@ func NewMixtureSampler(field Field, sun Sun, sheet Sheet, radial Radial, bins []
 	next := make(chan int)
 	for range min(runtime.GOMAXPROCS(0), len(bins)) {
 		wg.Go(func() {
-			w := make([]float64, len(s.blocks))
+			w := make([]float64, len(s.classVolPc3))
 			for k := range next {
 				s.bins[k] = s.buildBin(newProfile(sheet, bins[k]), len(bins[k]), lc, nodeW, nodesPerBlock, w)
 			}
@@ -256,33 +284,93 @@ func (s *Sampler) nodes(invZ0Pc float64) (lc, weight []float64) {
 	return lc, weight
 }
 
-// buildBin integrates and bounds one bin's profile over every block and
-// builds its alias table. w is scratch of one float64 per block.
-func (s *Sampler) buildBin(p profile, components int, lc, nodeW []float64, perBlock int, w []float64) binTable {
-	t := binTable{prof: p, entries: make([]aliasEntry, len(s.blocks)), components: components}
-	integral := 0.0
-	envelope := 0.0
+// maxHeightClasses caps the height grid, and so the per-bin tables.
+const maxHeightClasses = 1024
+
+// classify sorts the blocks into height classes by the height nearest to
+// the midplane that each reaches, and builds the shared tables that draw a
+// block of a class by volume.
+func (s *Sampler) classify() {
+	zNear := make([]float64, len(s.blocks))
+	zFarMax := 0.0
 	for i, b := range s.blocks {
+		c := &s.cells[b.cell]
+		lo := math.Cbrt(b.d3Lo)
+		hi := math.Cbrt(b.d3Lo + b.d3Range)
+		zn, zf := heightExtremes(lo, hi, c.sinBMin, c.sinBMax, s.zSunPc)
+		zNear[i] = math.Abs(zn)
+		zFarMax = math.Max(zFarMax, zf)
+	}
+	s.zStepPc = math.Max(1, zFarMax/maxHeightClasses)
+	s.invZStepPc = 1 / s.zStepPc
+	// Nodes 0 … n−1 cover every height in the field with one to spare, so
+	// a point at |z| in [i, i+1) steps always has both nodes.
+	nNodes := int(math.Ceil(zFarMax*s.invZStepPc)) + 2
+	nClasses := nNodes - 1
+	class := make([]int32, len(s.blocks))
+	s.classStart = make([]int32, nClasses+1)
+	for i, z := range zNear {
+		c := min(int(z*s.invZStepPc), nClasses-1)
+		for c > 0 && float64(c)*s.zStepPc > z { // rounding must never raise the bound's height
+			c--
+		}
+		class[i] = int32(c)
+		s.classStart[c+1]++
+	}
+	for c := 1; c <= nClasses; c++ {
+		s.classStart[c] += s.classStart[c-1]
+	}
+	sorted := make([]block, len(s.blocks))
+	next := append([]int32(nil), s.classStart[:nClasses]...)
+	for i, b := range s.blocks { // stable: blocks keep their order within a class
+		sorted[next[class[i]]] = b
+		next[class[i]]++
+	}
+	s.blocks = sorted
+	s.classVolPc3 = make([]float64, nClasses)
+	s.blockAlias = make([]aliasEntry, len(s.blocks))
+	w := make([]float64, len(s.blocks))
+	for c := range nClasses {
+		lo, hi := s.classStart[c], s.classStart[c+1]
+		for i := lo; i < hi; i++ {
+			b := &s.blocks[i]
+			w[i] = s.cells[b.cell].SolidAngleSr() * b.d3Range / 3
+			s.classVolPc3[c] += w[i]
+		}
+		if hi > lo {
+			buildAlias(w[lo:hi], s.blockAlias[lo:hi])
+		}
+	}
+}
+
+// buildBin integrates one bin's profile over every block, brackets it on
+// the height grid and builds its alias table over height classes. w is
+// scratch of one float64 per class.
+func (s *Sampler) buildBin(p profile, components int, lc, nodeW []float64, perBlock int, w []float64) binTable {
+	t := binTable{prof: p, components: components}
+	integral := 0.0
+	for i := range s.blocks {
 		sum := 0.0
 		for j := i * perBlock; j < (i+1)*perBlock; j++ {
 			sum += nodeW[j] * p.relLogCosh(lc[j])
 		}
 		integral += sum
-
-		c := &s.cells[b.cell]
-		lo := math.Cbrt(b.d3Lo)
-		hi := math.Cbrt(b.d3Lo + b.d3Range)
-		zNear, zFar := heightExtremes(lo, hi, c.sinBMin, c.sinBMax, s.zSunPc)
-		envMax := roundUp32(p.rel(zNear))
-		envMin := roundDown32(p.rel(zFar))
-		t.entries[i].envMax, t.entries[i].envMin = envMax, min(envMin, envMax)
-		w[i] = float64(envMax) * c.SolidAngleSr() * b.d3Range / 3
-		envelope += w[i]
+	}
+	t.bounds = make([]bound, len(s.classVolPc3)+1)
+	for i := range t.bounds {
+		v := p.rel(float64(i) * s.zStepPc)
+		t.bounds[i] = bound{hi: roundUp32(v), lo: roundDown32(v)}
+	}
+	envelope := 0.0
+	for c, v := range s.classVolPc3 {
+		w[c] = float64(t.bounds[c].hi) * v
+		envelope += w[c]
 	}
 	t.integral = integral * p.peakPc
 	t.envelope = envelope * p.peakPc
+	t.classes = make([]aliasEntry, len(w))
 	if envelope > 0 {
-		buildAlias(w, t.entries)
+		buildAlias(w, t.classes)
 	}
 	return t
 }

@@ -36,7 +36,7 @@ func baseLike(tb testing.TB) *Sampler {
 func TestZZDiag(t *testing.T) {
 	s := baseLike(t)
 	dz, sh := s.BlockSizePc()
-	fmt.Println("cells", len(s.cells), "blocks", len(s.blocks), "dz", dz, "shell", sh, "radialMax", s.radialMax)
+	fmt.Println("cells", len(s.cells), "blocks", len(s.blocks), "classes", len(s.classVolPc3), "zstep", s.zStepPc, "dz", dz, "shell", sh, "radialMax", s.radialMax)
 	r := rand.New(rand.NewPCG(1, 2))
 	for _, k := range []int{0, 5, 10, 20, 30, 39} {
 		n, acc := 0, 0
@@ -48,9 +48,6 @@ func TestZZDiag(t *testing.T) {
 			}
 		}
 		sq := 0.0
-		for _, e := range s.bins[k].entries {
-			sq += float64(e.envMin / e.envMax)
-		}
 		fmt.Printf("bin %d eff %.3f radialAcc %.3f mean squeeze %.3f\n", k, s.ProposalEfficiency(k), float64(acc)/float64(n), sq/float64(len(s.blocks)))
 	}
 }

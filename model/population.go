@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"os"
 	"sync"
 
 	"spinpop/model/spin"
@@ -154,6 +155,21 @@ func growInt32(s []int32, n int) []int32 {
 // numbers only, never by the values a proposal will produce, so each
 // proposal still sees fresh independent uniforms.
 func (p *Population) place(c *Chunk, r *rand.Rand, s *placeBuf) {
+	if os.Getenv("NOGROUP") != "" {
+		for j := range c.N {
+			for {
+				k := p.binAlias.draw(r)
+				l, b, d, z, ok := p.Place.Draw(k, r)
+				if ok {
+					c.AgeBin[j] = int32(k)
+					c.LDeg[j], c.BDeg[j], c.DistPc[j], c.ZPc[j] = l, b, d, z
+					c.AgeGyr[j] = p.Age(k, r)
+					break
+				}
+			}
+		}
+		return
+	}
 	n, nb := c.N, len(p.binAlias.prob)
 	s.pending = growInt32(s.pending, n)
 	s.order = growInt32(s.order, n)

@@ -22,3 +22,13 @@ func BenchmarkHash(b *testing.B) {
 		_ = r.Hash()
 	}
 }
+
+// BenchmarkLoadFit loads the example with [data] and [compare]: free
+// parameters checked against the history, the data path resolved.
+func BenchmarkLoadFit(b *testing.B) {
+	for b.Loop() {
+		if _, err := LoadExample("fit"); err != nil {
+			b.Fatal(err)
+		}
+	}
+}

@@ -281,7 +281,7 @@ func BuildLaw(s *Scenario, rel *model.Relations) (spin.Law, error) {
 		// The scenario writes start ∝ (m/0.8)^slope; spin.StallOptions
 		// writes (m/0.8)^(−slope).
 		o.Stall = spin.StallOptions{Enabled: true, PivotMsun: 0.8, StartGyrAtPivot: st.StartGyrAt08, DurationGyrAtPivot: st.DurationGyrAt08,
-			StartMassSlope: -st.StartSlope, DurationMassSlope: -st.DurationSlope, CutoffMsun: st.MassMaxMsun, CatchUpFraction: 0.25}
+			StartMassSlope: -st.StartSlope, DurationMassSlope: -st.DurationSlope, CutoffMsun: st.MassMaxMsun, CatchUpFraction: st.CatchUpFraction}
 	}
 	l, err := spin.NewTorqueLaw(o)
 	if err != nil {

@@ -72,6 +72,7 @@ duration_gyr_at_0p8msun = 0.6
 start_mass_slope = -2.0
 duration_mass_slope = -2.0
 mass_max_msun = 1.0
+catch_up_fraction = 0.25
 
 [spin.weakened_braking]
 enabled = false

@@ -29,6 +29,9 @@ func FuzzLoadBytes(f *testing.F) {
 	f.Add([]byte("extends = \"../base.toml\"\n"))
 	f.Add([]byte(minimal + "[[survey.field.cones]]\nl_deg = 1.0\n"))
 	f.Add([]byte("[history.s]\nkind = \"constant\"\n[survey.field]\nkind = \"cones\"\n[[survey.field.cones]]\nl_deg = 1.0\nb_deg = 2.0\nradius_deg = 3.0\ndistance_max_pc = 4.0\n"))
+	f.Add([]byte(minimal + withData + burstPart + "[compare]\nburst_part = \"b\"\n[[compare.free]]\npath = \"history.b.age_gyr\"\nmin = 0.1\nmax = 2.0\nprior = \"log-uniform\"\n"))
+	f.Add([]byte(minimal + "[compare]\nfree = []\n[data]\nfile = \"../x.csv\"\n"))
+	f.Add([]byte("extends = \"fit.toml\"\n[data]\nsha256 = \"" + strings.Repeat("Ab", 32) + "\"\n"))
 	f.Add([]byte("[history.b]\nkind = \"bins\"\nedges_gyr = [0.0, 1.0, 10.0]\nrates = [2.0, 1.0]\n[survey.field]\nkind = \"sphere\"\ndistance_max_pc = 9e300\n"))
 
 	f.Fuzz(func(t *testing.T, data []byte) {

@@ -42,8 +42,9 @@ type Resolved struct {
 const maxChain = 32
 
 // Load reads the scenario file at path, follows its extends chain (paths
-// relative to the file naming them), fills defaults and validates. Every
-// problem found is reported at once, as ValidationErrors.
+// relative to the file naming them), fills defaults, validates and
+// resolves data.file (relative to the file that set it; not opened).
+// Every problem found is reported at once, as ValidationErrors.
 func Load(path string) (*Resolved, error) {
 	data, err := osSource{}.read(path)
 	if err != nil {
@@ -56,6 +57,8 @@ func Load(path string) (*Resolved, error) {
 // Its extends paths are resolved within fsys, relative to name's
 // directory there; fsys may be nil for a scenario that extends nothing.
 // When no name is given in the scenario, name without ".toml" becomes it.
+// data.file is resolved within fsys too, or, when fsys is nil, in the
+// operating system's file system relative to name's directory.
 func LoadBytes(name string, data []byte, fsys fs.FS) (*Resolved, error) {
 	var src source = noSource{}
 	if fsys != nil {
@@ -68,7 +71,7 @@ func LoadBytes(name string, data []byte, fsys fs.FS) (*Resolved, error) {
 }
 
 // LoadFS reads the scenario name from fsys and resolves it like Load,
-// with extends paths resolved within fsys.
+// with extends and data.file paths resolved within fsys.
 func LoadFS(fsys fs.FS, name string) (*Resolved, error) {
 	data, err := fsSource{fsys}.read(name)
 	if err != nil {

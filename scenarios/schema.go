@@ -145,6 +145,7 @@ type Stall struct {
 	StartSlope      float64 `toml:"start_mass_slope"`        // start ∝ (m/0.8)^slope; default -2
 	DurationSlope   float64 `toml:"duration_mass_slope"`     // duration ∝ (m/0.8)^slope; default -2
 	MassMaxMsun     float64 `toml:"mass_max_msun"`           // no stall above this mass; default 1.0
+	CatchUpFraction float64 `toml:"catch_up_fraction"`       // after the pause the star regains the lost time over this fraction of the pause (fast spin-down); 0 = stays behind; default 0.25
 }
 
 // Weakened is weakened magnetic braking above a critical Rossby number.

@@ -107,7 +107,10 @@ func (v *decoder) validateSpin(sp *Spin) {
 	if sp.Stall.Enabled {
 		v.positive("spin.stall.start_gyr_at_0p8msun", sp.Stall.StartGyrAt08)
 		v.positive("spin.stall.duration_gyr_at_0p8msun", sp.Stall.DurationGyrAt08)
-		v.positive("spin.stall.mass_max_msun", sp.Stall.MassMaxMsun)
+		v.inRange("spin.stall.mass_max_msun", sp.Stall.MassMaxMsun, 0.8, false, 120, true, "the stall is quoted at 0.8 Msun, so stars up to a mass above it must stall")
+		v.inRange("spin.stall.start_mass_slope", sp.Stall.StartSlope, -10, true, 0, true, "the stall starts later toward low mass")
+		v.inRange("spin.stall.duration_mass_slope", sp.Stall.DurationSlope, -10, true, 0, true, "the stall lasts longer toward low mass")
+		v.inRange("spin.stall.catch_up_fraction", sp.Stall.CatchUpFraction, 0, true, 10, true, "0 = never catch up")
 	}
 	v.positive("spin.weakened_braking.ro_crit", sp.Weakened.RoCrit)
 

@@ -1,0 +1,140 @@
+package compare
+
+import (
+	"context"
+	"errors"
+	"math"
+	"slices"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"spinpop/compare/stats"
+	"spinpop/sfh"
+)
+
+// ksUniform returns the one-sample KS statistic of x against U(0, 1) and
+// its p-value (stats.KolmogorovSF, exact for n).
+func ksUniform(x []float64) (d, p float64) {
+	s := append([]float64(nil), x...)
+	slices.Sort(s)
+	n := float64(len(s))
+	for i, v := range s {
+		d = math.Max(d, math.Max(float64(i+1)/n-v, v-float64(i)/n))
+	}
+	return d, stats.KolmogorovSF(len(s), d)
+}
+
+// chernoffSetup is the small calibration problem: 10 age bins × 200
+// comparison bins of computed templates; the null is a fixed constant
+// history, the alternative adds a burst at a fixed age whose mass
+// fraction (one parameter, on its boundary 0 under the null) is fitted.
+func chernoffSetup(t testing.TB) (tpl *Templates, smooth, burst HistoryModel) {
+	edges := make([]float64, 11)
+	for i := range edges {
+		edges[i] = float64(i)
+	}
+	tpl = gyroTemplates(t, edges, 10, 20, 1e4, 0.08)
+	h, err := sfh.New(10, []sfh.Part{
+		{Name: "smooth", Component: sfh.Constant{}, Weight: 1},
+		{Name: "burst", Component: sfh.Burst{AgeGyr: 2.5, WidthGyr: 0.4, MassFraction: 0}},
+	})
+	require.NoError(t, err)
+	smooth = HistoryModel{Base: h, AgeEdgesGyr: edges}
+	burst = HistoryModel{Base: h, AgeEdgesGyr: edges, Free: []FreeParam{{Name: "burst.mass_fraction", Min: 0, Max: 0.5}}}
+	return tpl, smooth, burst
+}
+
+// Under the null the bootstrap p-value is uniform, and the LR follows
+// Chernoff's ½χ²₀ + ½χ²₁.
+// Source: Chernoff (1954), Ann. Math. Stat. 25, 573 — the boundary law;
+// Davison & Hinkley (1997), Bootstrap Methods, §4.2 — Monte Carlo
+// p-values with random tie-breaking are exactly uniform under a simple
+// null [memory]. Tolerances: KS p-values must exceed 0.001 and binomial
+// fractions lie within 3.5σ; the seeds are fixed, so the test is
+// deterministic.
+func TestBootstrapPValueUniformUnderNull(t *testing.T) {
+	tpl, smooth, burst := chernoffSetup(t)
+	w, err := smooth.Weights(nil)
+	require.NoError(t, err)
+	const mocks, reps, nStars = 300, 19, 3000
+	base, err := NewLikelihood(tpl, asimov(tpl, w, nStars), LikeOptions{TemplateNoise: NoiseIgnore})
+	require.NoError(t, err)
+	mu := base.Expected(w, nil)
+	counts := make([]float64, len(mu))
+	var pRand, pCons, lrs []float64
+	for i := range mocks {
+		drawMock(counts, mu, nStars, true, replicateStream(99, i))
+		l, err := base.WithCounts(counts)
+		require.NoError(t, err)
+		res, err := BurstTest(context.Background(), l, smooth, burst, TestOptions{Replicates: reps, Seed: uint64(1000 + i), Workers: 2, NoProfile: true, NoEvidence: true})
+		require.NoError(t, err)
+		pRand = append(pRand, res.PValueRandomised)
+		pCons = append(pCons, res.PValue)
+		lrs = append(lrs, res.LR)
+	}
+	d, p := ksUniform(pRand)
+	t.Logf("randomised p: KS D = %.3f, p = %.3f", d, p)
+	assert.Greater(t, p, 0.001, "randomised bootstrap p-values are not uniform (KS D = %.3f)", d)
+
+	// The conservative p-value never rejects more often than its level.
+	sd := math.Sqrt(0.05 * 0.95 / mocks)
+	frac := 0.0
+	for _, v := range pCons {
+		if v <= 0.05 {
+			frac++
+		}
+	}
+	assert.LessOrEqual(t, frac/mocks, 0.05+3.5*sd)
+
+	// Chernoff: half the LRs sit at 0; the rest are χ²₁, so 2·ChernoffSF(LR) is uniform.
+	var zeros float64
+	var u []float64
+	for _, v := range lrs {
+		if v <= lrTieTol {
+			zeros++
+		} else {
+			u = append(u, 2*stats.ChernoffSF(v))
+		}
+	}
+	t.Logf("LR = 0 in %.0f of %d mocks", zeros, mocks)
+	assert.InDelta(t, 0.5, zeros/mocks, 3.5*math.Sqrt(0.25/mocks))
+	d, p = ksUniform(u)
+	t.Logf("positive LRs vs χ²₁: KS D = %.3f, p = %.3f", d, p)
+	assert.Greater(t, p, 0.001)
+}
+
+// BurstTest gives identical numbers for any number of workers, and a
+// cancelled context returns its error and no result.
+func TestBurstTestDeterministicAndCancellable(t *testing.T) {
+	tpl, smooth, burst := chernoffSetup(t)
+	w, err := burst.Weights([]float64{0.1})
+	require.NoError(t, err)
+	like, err := NewLikelihood(tpl, poissonData(tpl, w, 2000/tpl.totalStars(w), 5), LikeOptions{})
+	require.NoError(t, err)
+	opts := TestOptions{Replicates: 40, Seed: 7, Workers: 1}
+	r1, err := BurstTest(context.Background(), like, smooth, burst, opts)
+	require.NoError(t, err)
+	opts.Workers = 2
+	var calls int
+	opts.Progress = func(done, total int) { calls++; assert.Equal(t, 40, total) }
+	r2, err := BurstTest(context.Background(), like, smooth, burst, opts)
+	require.NoError(t, err)
+	assert.Equal(t, r1.LRReplicates, r2.LRReplicates)
+	assert.Equal(t, r1.PValue, r2.PValue)
+	assert.Equal(t, 40, calls)
+	assert.True(t, r1.HasEvidence)
+	assert.NotEmpty(t, r1.Verdict)
+	t.Logf("%s (ln B = %.2f; %s)", r1.Verdict, r1.LogBayesFactor, r1.EvidenceNote)
+
+	ctx, cancel := context.WithCancel(context.Background())
+	opts.Progress = func(done, total int) {
+		if done == 3 {
+			cancel()
+		}
+	}
+	r3, err := BurstTest(ctx, like, smooth, burst, opts)
+	assert.Nil(t, r3)
+	assert.True(t, errors.Is(err, context.Canceled), "got %v", err)
+}

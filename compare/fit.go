@@ -1,0 +1,421 @@
+package compare
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"slices"
+	"sort"
+	"strings"
+
+	"spinpop/model"
+)
+
+// FitOptions control Fit.
+type FitOptions struct {
+	// Starts is the number of starting points (0: 4). The first is the
+	// model's Default; the others are the best local maxima of a scan of
+	// the first "age_gyr" parameter over the template age bins, or, for a
+	// model without one, points drawn from a stream of Seed.
+	Starts int
+	Seed   uint64
+	// Init holds extra starting points (θ, inside the bounds), tried
+	// before the others, e.g. a previous fit's answer.
+	Init [][]float64
+}
+
+// FitResult is a maximum-likelihood fit.
+type FitResult struct {
+	Theta       []float64 // best-fitting free parameters
+	Names       []string
+	Weights     []float64 // the age-bin mass fractions at Theta
+	LogL        float64
+	Evaluations int  // likelihood evaluations, all starts
+	Converged   bool // the best start ended on a convergence criterion
+}
+
+// Fit maximises the likelihood over the model's free parameters.
+//
+// It runs BFGS (minimizeBFGS) on the bounded transform of the parameters (see
+// HistoryModel.ToInternal) with the exact gradient by the chain rule,
+// dlnL/dθ_j = Σ_k (∂lnL/∂w_k)(dw_k/dθ_j), where ∂lnL/∂w comes from
+// Likelihood.LogLGrad and dw/dθ from finite differences of the history's
+// bin weights (cheap: closed forms, one history per parameter and side).
+// Burst-age likelihoods have several maxima (one per gyrochrone ridge the
+// burst can sit on), so several starts are run and the best kept; see
+// FitOptions. A model without free parameters is simply evaluated.
+func Fit(like *Likelihood, m HistoryModel, opts FitOptions) (FitResult, error) {
+	if err := m.Validate(); err != nil {
+		return FitResult{}, err
+	}
+	if len(m.AgeEdgesGyr)-1 != like.NumAgeBins() {
+		return FitResult{}, fmt.Errorf("compare: the history model has %d age bins, the templates %d; use the templates' age edges", len(m.AgeEdgesGyr)-1, like.NumAgeBins())
+	}
+	if opts.Starts <= 0 {
+		opts.Starts = 4
+	}
+	res := FitResult{Names: m.Names(), LogL: math.Inf(-1)}
+	if m.Dim() == 0 {
+		w, err := m.Weights(nil)
+		if err != nil {
+			return res, err
+		}
+		res.Theta, res.Weights, res.LogL, res.Evaluations, res.Converged = []float64{}, w, like.LogL(w), 1, true
+		return res, nil
+	}
+	obj := newObjective(like, m)
+	starts := append([][]float64(nil), opts.Init...)
+	starts = append(starts, m.Default())
+	starts = append(starts, scanStarts(obj, m, opts.Starts-1, opts.Seed)...)
+	var firstErr error
+	for _, s := range dedupe(starts) {
+		theta, logL, conv, err := obj.maximise(interior(m, s))
+		if err != nil {
+			if firstErr == nil {
+				firstErr = err
+			}
+			continue
+		}
+		if logL > res.LogL {
+			res.Theta, res.LogL, res.Converged = theta, logL, conv
+		}
+	}
+	res.Evaluations = obj.evals
+	if res.Theta == nil {
+		if firstErr == nil {
+			firstErr = errors.New("no start reached a finite likelihood")
+		}
+		return res, fmt.Errorf("compare: fit of %s failed: %w", strings.Join(res.Names, ", "), firstErr)
+	}
+	w, err := m.Weights(res.Theta)
+	if err != nil {
+		return res, err
+	}
+	res.Weights = w
+	return res, nil
+}
+
+// objective is −ln L on the optimiser's unbounded coordinates.
+type objective struct {
+	like  *Likelihood
+	m     HistoryModel
+	evals int
+
+	theta, dtheta, gw []float64
+	jac               [][]float64
+	lastX             []float64
+	lastF             float64
+	lastG             []float64
+	err               error
+}
+
+func newObjective(like *Likelihood, m HistoryModel) *objective {
+	d := m.Dim()
+	o := &objective{like: like, m: m, theta: make([]float64, d), dtheta: make([]float64, d),
+		gw: make([]float64, like.NumAgeBins()), lastG: make([]float64, d)}
+	o.jac = make([][]float64, d)
+	for j := range o.jac {
+		o.jac[j] = make([]float64, like.NumAgeBins())
+	}
+	return o
+}
+
+// logL evaluates ln L at theta (no gradient).
+func (o *objective) logL(theta []float64) float64 {
+	w, err := o.m.Weights(theta)
+	if err != nil {
+		return math.Inf(-1)
+	}
+	o.evals++
+	return o.like.LogL(w)
+}
+
+// eval computes f = −ln L and its gradient at x, caching the last point.
+func (o *objective) eval(x []float64) {
+	if o.lastX != nil && slices.Equal(x, o.lastX) {
+		return
+	}
+	o.lastX = append(o.lastX[:0], x...)
+	o.m.FromInternal(x, o.theta, o.dtheta)
+	w, err := o.m.Weights(o.theta)
+	if err != nil {
+		o.err = err
+		o.lastF = math.Inf(1)
+		for j := range o.lastG {
+			o.lastG[j] = math.NaN()
+		}
+		return
+	}
+	o.evals++
+	l := o.like.LogLGrad(w, o.gw)
+	if math.IsInf(l, -1) || math.IsNaN(l) {
+		o.lastF = math.Inf(1)
+		for j := range o.lastG {
+			o.lastG[j] = math.NaN()
+		}
+		return
+	}
+	if err := o.m.weightJacobian(o.theta, o.jac); err != nil {
+		o.err = err
+	}
+	o.lastF = -l
+	for j := range o.lastG {
+		var s float64
+		for k, g := range o.gw {
+			s += g * o.jac[j][k]
+		}
+		o.lastG[j] = -s * o.dtheta[j]
+	}
+}
+
+// maximise runs BFGS from theta0 and returns the best point.
+func (o *objective) maximise(theta0 []float64) (theta []float64, logL float64, converged bool, err error) {
+	x0 := o.m.ToInternal(theta0)
+	fg := func(x, g []float64) float64 {
+		o.eval(x)
+		copy(g, o.lastG)
+		return o.lastF
+	}
+	x, f, conv := minimizeBFGS(fg, x0, 400)
+	if math.IsInf(f, 1) || math.IsNaN(f) {
+		if o.err != nil {
+			return nil, 0, false, o.err
+		}
+		return nil, 0, false, errors.New("the likelihood is zero at the start")
+	}
+	theta = make([]float64, o.m.Dim())
+	o.m.FromInternal(x, theta, nil)
+	return theta, -f, conv, nil
+}
+
+// interior moves a start off the bounds, where the transform is flat.
+func interior(m HistoryModel, theta []float64) []float64 {
+	out := append([]float64(nil), theta...)
+	for i, f := range m.Free {
+		eps := 1e-3 * (f.Max - f.Min)
+		out[i] = math.Min(math.Max(out[i], f.Min+eps), f.Max-eps)
+	}
+	return out
+}
+
+func dedupe(starts [][]float64) [][]float64 {
+	var out [][]float64
+	for _, s := range starts {
+		dup := false
+		for _, o := range out {
+			if slices.Equal(o, s) {
+				dup = true
+				break
+			}
+		}
+		if !dup {
+			out = append(out, s)
+		}
+	}
+	return out
+}
+
+// scanStarts returns up to n starting points. With an "age_gyr" free
+// parameter it scans that parameter over the centres of the template age
+// bins inside its bounds (the templates' own resolution), the others at
+// their defaults, and returns the best local maxima of the scan; otherwise
+// points uniform (or log-uniform) inside the bounds from a stream of seed.
+func scanStarts(o *objective, m HistoryModel, n int, seed uint64) [][]float64 {
+	if n <= 0 {
+		return nil
+	}
+	def := m.Default()
+	ageIdx := -1
+	for i, f := range m.Free {
+		if strings.HasSuffix(f.Name, "age_gyr") {
+			ageIdx = i
+			break
+		}
+	}
+	if ageIdx < 0 {
+		r := model.ChunkStream(seed, 0x5eed)
+		out := make([][]float64, n)
+		for s := range out {
+			out[s] = randomPoint(m, r)
+		}
+		return out
+	}
+	f := m.Free[ageIdx]
+	var ages []float64
+	e := m.AgeEdgesGyr
+	for k := 0; k+1 < len(e); k++ {
+		if c := 0.5 * (e[k] + e[k+1]); c > f.Min && c < f.Max {
+			ages = append(ages, c)
+		}
+	}
+	if len(ages) < 8 {
+		ages = ages[:0]
+		for i := range 16 {
+			ages = append(ages, f.Min+(f.Max-f.Min)*(float64(i)+0.5)/16)
+		}
+	}
+	ll := make([]float64, len(ages))
+	theta := append([]float64(nil), def...)
+	for i, a := range ages {
+		theta[ageIdx] = a
+		ll[i] = o.logL(theta)
+	}
+	var peaks []int
+	for i := range ages {
+		if (i == 0 || ll[i] >= ll[i-1]) && (i == len(ages)-1 || ll[i] >= ll[i+1]) && !math.IsInf(ll[i], -1) {
+			peaks = append(peaks, i)
+		}
+	}
+	sort.SliceStable(peaks, func(a, b int) bool { return ll[peaks[a]] > ll[peaks[b]] })
+	var out [][]float64
+	for _, i := range peaks {
+		if len(out) == n {
+			break
+		}
+		t := append([]float64(nil), def...)
+		t[ageIdx] = ages[i]
+		out = append(out, t)
+	}
+	return out
+}
+
+func randomPoint(m HistoryModel, r *rand.Rand) []float64 {
+	t := make([]float64, m.Dim())
+	for i, f := range m.Free {
+		u := 0.05 + 0.9*r.Float64()
+		if f.LogPrior {
+			t[i] = math.Exp(math.Log(f.Min) + u*(math.Log(f.Max)-math.Log(f.Min)))
+		} else {
+			t[i] = f.Min + u*(f.Max-f.Min)
+		}
+	}
+	return t
+}
+
+// ProfilePoint is one point of a profile likelihood.
+type ProfilePoint struct {
+	Value float64 // the profiled parameter
+	LogL  float64 // ln L maximised over the other free parameters
+}
+
+// Interval is a profile-likelihood interval: where ln L falls by 0.5
+// (68 %) and 1.92 (95 %) below its maximum, the one-parameter Wilks
+// levels (χ²₁ quantiles 1 and 3.84, halved). An end that the likelihood
+// does not reach inside the scanned range is set to the range's end and
+// flagged open.
+type Interval struct {
+	Best           float64
+	Lo68, Hi68     float64
+	Lo95, Hi95     float64
+	LoOpen, HiOpen bool // the 95 % interval reaches the scanned range's end
+}
+
+// Δ ln L levels of the 68.27 % and 95 % intervals of one parameter.
+const (
+	dLogL68 = 0.5
+	dLogL95 = 1.920729410347062 // ½ χ²₁(0.95) = ½ · 3.841458820694124
+)
+
+// Profile returns the profile likelihood of param over grid (each point
+// a fit of the other free parameters, started from its neighbour's
+// answer) and the interval it implies, with crossings interpolated
+// linearly between grid points. The maximum is the best of the global
+// fit and the grid.
+func Profile(like *Likelihood, m HistoryModel, param string, grid []float64) ([]ProfilePoint, Interval, error) {
+	if len(grid) < 2 {
+		return nil, Interval{}, fmt.Errorf("compare: profile of %q needs at least two grid values", param)
+	}
+	if !sort.Float64sAreSorted(grid) {
+		return nil, Interval{}, fmt.Errorf("compare: profile grid of %q must be increasing", param)
+	}
+	best, err := Fit(like, m, FitOptions{})
+	if err != nil {
+		return nil, Interval{}, err
+	}
+	idx := slices.Index(m.Names(), param)
+	if idx < 0 {
+		return nil, Interval{}, fmt.Errorf("compare: %q is not a free parameter; free are %s", param, strings.Join(m.Names(), ", "))
+	}
+	pts := make([]ProfilePoint, len(grid))
+	var prev []float64
+	for i, v := range grid {
+		l, th, err := profileAt(like, m, param, idx, v, best.Theta, prev)
+		if err != nil {
+			return nil, Interval{}, err
+		}
+		prev = th
+		pts[i] = ProfilePoint{Value: v, LogL: l}
+	}
+	maxL, bestV := best.LogL, best.Theta[idx]
+	for _, p := range pts {
+		if p.LogL > maxL {
+			maxL, bestV = p.LogL, p.Value
+		}
+	}
+	return pts, intervalFrom(pts, maxL, bestV), nil
+}
+
+// profileAt fits the model with param fixed at v; start values come from
+// the global best and the previous grid point.
+func profileAt(like *Likelihood, m HistoryModel, param string, idx int, v float64, best, prev []float64) (float64, []float64, error) {
+	fixed, err := m.WithFixed(param, v)
+	if err != nil {
+		return 0, nil, err
+	}
+	drop := func(t []float64) []float64 {
+		if t == nil {
+			return nil
+		}
+		return append(append([]float64(nil), t[:idx]...), t[idx+1:]...)
+	}
+	init := [][]float64{drop(best)}
+	if prev != nil {
+		init = append(init, prev)
+	}
+	r, err := Fit(like, fixed, FitOptions{Starts: 1, Init: init})
+	if err != nil {
+		return 0, nil, err
+	}
+	return r.LogL, r.Theta, nil
+}
+
+func intervalFrom(pts []ProfilePoint, maxL, best float64) Interval {
+	iv := Interval{Best: best}
+	cross := func(level float64, dir int) (float64, bool) {
+		// Start at the grid point nearest the best value, walk outward.
+		start := 0
+		for i, p := range pts {
+			if math.Abs(p.Value-best) < math.Abs(pts[start].Value-best) {
+				start = i
+			}
+		}
+		prevV, prevD := best, 0.0
+		for i := start; i >= 0 && i < len(pts); i += dir {
+			p := pts[i]
+			if (dir > 0 && p.Value < best) || (dir < 0 && p.Value > best) {
+				continue
+			}
+			d := maxL - p.LogL
+			if d >= level {
+				if d == prevD {
+					return p.Value, true
+				}
+				return prevV + (p.Value-prevV)*(level-prevD)/(d-prevD), true
+			}
+			prevV, prevD = p.Value, d
+		}
+		if dir > 0 {
+			return pts[len(pts)-1].Value, false
+		}
+		return pts[0].Value, false
+	}
+	var ok bool
+	iv.Lo68, _ = cross(dLogL68, -1)
+	iv.Hi68, _ = cross(dLogL68, 1)
+	iv.Lo95, ok = cross(dLogL95, -1)
+	iv.LoOpen = !ok
+	iv.Hi95, ok = cross(dLogL95, 1)
+	iv.HiOpen = !ok
+	return iv
+}

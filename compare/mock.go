@@ -1,0 +1,79 @@
+package compare
+
+import (
+	"math"
+	"math/rand/v2"
+
+	"gonum.org/v1/gonum/stat/distuv"
+)
+
+// drawMock fills dst with a mock catalog's counts: for a free
+// normalisation a multinomial draw of n stars over the bins with
+// probabilities ∝ mu (the catalog size is fixed, as the free
+// normalisation conditions on it), by successive conditional binomials;
+// for an absolute one, independent Poisson counts of mean mu.
+func drawMock(dst, mu []float64, n int, free bool, r *rand.Rand) {
+	if !free {
+		for i, m := range mu {
+			dst[i] = 0
+			if m > 0 {
+				dst[i] = distuv.Poisson{Lambda: m, Src: r}.Rand()
+			}
+		}
+		return
+	}
+	var rest float64
+	for _, m := range mu {
+		rest += m
+	}
+	left := n
+	for i, m := range mu {
+		dst[i] = 0
+		if left == 0 || !(m > 0) {
+			rest -= math.Max(m, 0)
+			continue
+		}
+		p := m / rest
+		if p >= 1 || i == len(mu)-1 {
+			dst[i] = float64(left)
+			left = 0
+			continue
+		}
+		k := distuv.Binomial{N: float64(left), P: p, Src: r}.Rand()
+		dst[i] = k
+		left -= int(k)
+		rest -= m
+	}
+}
+
+// replicateStream is the random stream of bootstrap or mock replicate i
+// of a run seeded with seed: like model.ChunkStream, a function of
+// (seed, i) only, so results do not depend on the number of workers.
+func replicateStream(seed uint64, i int) *rand.Rand {
+	a := splitmix(seed ^ 0x243f6a8885a308d3)
+	b := splitmix(a ^ uint64(i)*0x9e3779b97f4a7c15)
+	return rand.New(rand.NewPCG(a, b))
+}
+
+func splitmix(x uint64) uint64 {
+	x += 0x9e3779b97f4a7c15
+	x = (x ^ (x >> 30)) * 0xbf58476d1ce4e5b9
+	x = (x ^ (x >> 27)) * 0x94d049bb133111eb
+	return x ^ (x >> 31)
+}
+
+// Asimov returns the templates' expected counts under weights, summed to
+// n stars: the "Asimov" dataset whose counts equal their expectation
+// (Cowan et al. 2011, EPJC 71, 1554), used to size layouts and to find
+// the median sensitivity of a test.
+func Asimov(tpl *Templates, weights []float64, n float64) []float64 {
+	mu := tpl.Expected(weights, nil)
+	var s float64
+	for _, v := range mu {
+		s += v
+	}
+	for i := range mu {
+		mu[i] *= n / s
+	}
+	return mu
+}
