@@ -55,7 +55,8 @@ type BurstResult struct {
 	// U·(1 + #{LR* = LR}))/(1 + B), U uniform. Exactly uniform under a
 	// simple null hypothesis, so it is what calibration checks test.
 	PValueRandomised float64
-	// Significance is the one-sided normal equivalent Φ⁻¹(1 − PValue).
+	// Significance is the one-sided normal equivalent Φ⁻¹(1 − PValue),
+	// floored at 0 (so that it is always finite).
 	Significance float64
 
 	// ChernoffP is ChernoffSF(LR), the asymptotic ½χ²₀ + ½χ²₁ reference;
@@ -142,7 +143,7 @@ func BurstTest(ctx context.Context, like *Likelihood, smooth, burst HistoryModel
 	}
 	res.LRReplicates = lrs
 	res.PValue, res.PValueRandomised = bootstrapP(res.LR, lrs, opts.Seed)
-	res.Significance = distuv.UnitNormal.Quantile(1 - res.PValue)
+	res.Significance = math.Max(0, distuv.UnitNormal.Quantile(1-res.PValue))
 
 	res.ChernoffP = stats.ChernoffSF(res.LR)
 	extra := burstOnly(smooth, burst)

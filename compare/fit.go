@@ -221,11 +221,24 @@ func dedupe(starts [][]float64) [][]float64 {
 // bins inside its bounds (the templates' own resolution), the others at
 // their defaults, and returns the best local maxima of the scan; otherwise
 // points uniform (or log-uniform) inside the bounds from a stream of seed.
+// The scan is what finds a burst far from the default age: the likelihood
+// has a maximum on every gyrochrone ridge, and a descent started on the
+// wrong one stays there.
 func scanStarts(o *objective, m HistoryModel, n int, seed uint64) [][]float64 {
 	if n <= 0 {
 		return nil
 	}
+	// A parameter on its bound (a burst fraction of 0) would make the scan
+	// flat: the scan holds such parameters a tenth of the way inside.
 	def := m.Default()
+	for i, f := range m.Free {
+		rng := f.Max - f.Min
+		if def[i] <= f.Min+0.01*rng {
+			def[i] = f.Min + 0.1*rng
+		} else if def[i] >= f.Max-0.01*rng {
+			def[i] = f.Max - 0.1*rng
+		}
+	}
 	ageIdx := -1
 	for i, f := range m.Free {
 		if strings.HasSuffix(f.Name, "age_gyr") {

@@ -6,6 +6,7 @@ import (
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
+	"gonum.org/v1/gonum/stat/distuv"
 
 	"spinpop/sfh"
 )
@@ -115,4 +116,12 @@ func TestHistoryModelValidate(t *testing.T) {
 	burst.FromInternal(burst.ToInternal(theta), back, nil)
 	assert.InDeltaSlice(t, theta, back, 1e-12)
 	assert.False(t, math.IsNaN(back[0]))
+}
+
+// The interval levels are half the χ²₁ quantiles at 68.27 % and 95 %.
+// Source: Wilks (1938), Ann. Math. Stat. 9, 60; quantiles from gonum's
+// χ² distribution.
+func TestIntervalLevels(t *testing.T) {
+	assert.InDelta(t, 0.5*distuv.ChiSquared{K: 1}.Quantile(0.95), dLogL95, 1e-9)
+	assert.InDelta(t, 0.5*distuv.ChiSquared{K: 1}.Quantile(math.Erf(1/math.Sqrt2)), dLogL68, 1e-9)
 }

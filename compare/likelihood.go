@@ -118,7 +118,7 @@ func NewLikelihood(tpl *Templates, counts []float64, opts LikeOptions) (*Likelih
 	if !opts.Use3D && tpl.Space.NumHeight() > 1 {
 		t = tpl.Collapse2D()
 	}
-	if opts.Use3D && tpl.Space.NumHeight() == 1 && len(tpl.Space.HeightEdgesPc) == 2 && math.IsInf(tpl.Space.HeightEdgesPc[1], 1) {
+	if opts.Use3D && tpl.Space.NumHeight() == 1 {
 		return nil, fmt.Errorf("compare: a 3-D comparison needs templates with |z| bins; these have none (give height edges to the space)")
 	}
 	nb, nk := t.Space.NumBins(), t.NumAgeBins()

@@ -64,7 +64,7 @@ func splitmix(x uint64) uint64 {
 
 // Asimov returns the templates' expected counts under weights, summed to
 // n stars: the "Asimov" dataset whose counts equal their expectation
-// (Cowan et al. 2011, EPJC 71, 1554), used to size layouts and to find
+// (Cowan et al. 2011, EPJC 71, 1554) [memory], used to size layouts and to find
 // the median sensitivity of a test.
 func Asimov(tpl *Templates, weights []float64, n float64) []float64 {
 	mu := tpl.Expected(weights, nil)

@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"os"
 	"strings"
 
 	"spinpop/compare/catalog"
@@ -12,7 +13,10 @@ import (
 
 // DataSpec says where an observed catalog is and how to read and cut it.
 type DataSpec struct {
-	Path      string          // the catalog file (CSV or ECSV, optionally gzip-compressed)
+	Path      string          // the catalog file (CSV or ECSV, optionally gzip-compressed), as named in messages
+	// Open, if not nil, opens the catalog instead of os.Open(Path): for
+	// catalogs inside an embedded file system.
+	Open func() (io.ReadCloser, error)
 	SHA256    string          // expected hex SHA-256 of the file's bytes; "" skips the check
 	Mapping   catalog.Mapping // column names; Color is B−V, AbsMag is M_V
 	SunZPc    float64         // z☉ added to d sin b when heights are derived from parallax
@@ -61,7 +65,17 @@ func ReadObserved(spec DataSpec, space Space, rejects io.Writer) (*Observed, err
 		sink = catalog.NewCSVRejectWriter(rejects)
 		opt.Rejects = sink
 	}
-	sum, err := catalog.ReadFile(spec.Path, opt, func(_ int, s catalog.Star) error {
+	open := spec.Open
+	if open == nil {
+		open = func() (io.ReadCloser, error) { return os.Open(spec.Path) }
+	}
+	f, err := open()
+	if err != nil {
+		return nil, fmt.Errorf("compare: observed catalog %s cannot be opened: %w", spec.Path, err)
+	}
+	defer f.Close()
+	opt.Name = spec.Path
+	sum, err := catalog.Read(f, opt, func(_ int, s catalog.Star) error {
 		ok, why := KeepStar(spec.Cuts, spec.Relations, s.Color, s.AbsMag, s.PeriodD, s.ZPc)
 		if !ok {
 			obs.CutAway[why]++

@@ -18,6 +18,12 @@ type Cell struct {
 
 	sinBMin, sinBMax     float64 // bounds on sin b over the cell (exact for galactic cells)
 	distMinPc, distMaxPc float64
+
+	// The frame at the middle azimuth φm, mid = cos φm e1 + sin φm e2 and
+	// side = −sin φm e1 + cos φm e2, and the half-width of the azimuth
+	// range: Draw turns from mid by at most halfPhi.
+	mid, side vec3
+	halfPhi   float64
 }
 
 // newCell returns the cell between angular radii rho1 < rho2 and azimuths
@@ -30,6 +36,11 @@ func newCell(pole, e1, e2 vec3, rho1, rho2, phi1, phi2, distMinPc, distMaxPc flo
 		galactic:  galactic,
 		distMinPc: distMinPc, distMaxPc: distMaxPc,
 	}
+	phiM := 0.5 * (phi1 + phi2)
+	sm, cm := math.Sincos(phiM)
+	c.mid = e1.scale(cm).add(e2.scale(sm))
+	c.side = e1.scale(-sm).add(e2.scale(cm))
+	c.halfPhi = 0.5 * (phi2 - phi1)
 	if galactic {
 		c.sinBMin, c.sinBMax = c.cMin, c.cMax
 		return c
@@ -94,13 +105,46 @@ func (c *Cell) SinBRange() (lo, hi float64) { return c.sinBMin, c.sinBMax }
 
 // directionAt returns the unit vector at cos ρ = cr and azimuth phi.
 func (c *Cell) directionAt(cr, phi float64) vec3 {
-	sr := math.Sqrt(math.Max(0, 1-cr*cr))
+	sr := math.Sqrt(nonNeg(1 - cr*cr))
 	sp, cp := math.Sincos(phi)
 	return vec3{
 		cr*c.pole.x + sr*(cp*c.e1.x+sp*c.e2.x),
 		cr*c.pole.y + sr*(cp*c.e1.y+sp*c.e2.y),
 		cr*c.pole.z + sr*(cp*c.e1.z+sp*c.e2.z),
 	}
+}
+
+// drawDirection returns the unit vector at cos ρ = cr and the azimuth a
+// fraction v ∈ [0, 1) of the way across the cell. Cells narrower than
+// 2 smallAngleRad in azimuth turn from their middle azimuth with sinCosSmall,
+// which costs a few multiplications against math.Sincos's argument
+// reduction.
+func (c *Cell) drawDirection(cr, v float64) vec3 {
+	if c.halfPhi > smallAngleRad {
+		return c.directionAt(cr, c.phi1+v*(c.phi2-c.phi1))
+	}
+	sr := math.Sqrt(nonNeg(1 - cr*cr))
+	sx, cx := sinCosSmall((2*v - 1) * c.halfPhi)
+	sc, ss := sr*cx, sr*sx
+	return vec3{
+		cr*c.pole.x + sc*c.mid.x + ss*c.side.x,
+		cr*c.pole.y + sc*c.mid.y + ss*c.side.y,
+		cr*c.pole.z + sc*c.mid.z + ss*c.side.z,
+	}
+}
+
+// smallAngleRad bounds the arguments of sinCosSmall.
+const smallAngleRad = 0.25
+
+// sinCosSmall returns sin x and cos x for |x| ≤ smallAngleRad from their
+// Taylor series in Horner form, with constant reciprocals so that nothing
+// divides. The first omitted terms, x¹³/13! and x¹⁴/14!, are below 3e−18
+// there, under the rounding of the result.
+func sinCosSmall(x float64) (sin, cos float64) {
+	x2 := x * x
+	sin = x * (1 - x2*(1.0/6)*(1-x2*(1.0/20)*(1-x2*(1.0/42)*(1-x2*(1.0/72)*(1-x2*(1.0/110))))))
+	cos = 1 - x2*0.5*(1-x2*(1.0/12)*(1-x2*(1.0/30)*(1-x2*(1.0/56)*(1-x2*(1.0/90)*(1-x2*(1.0/132))))))
+	return sin, cos
 }
 
 // Gauss–Legendre rules on [−1, 1].

@@ -22,73 +22,120 @@ import (
 // radius (RPc). Because that probability differs between bins, a caller that
 // wants the joint (age, position) distribution must, on accepted == false,
 // discard the point and redraw the age bin too, not just call Draw again.
+// A rejected point is never used, so its angles are not worked out: lDeg
+// and bDeg are then NaN.
 //
 // Draw allocates nothing; r is the only source of randomness.
 func (s *Sampler) Draw(k int, r *rand.Rand) (lDeg, bDeg, dPc, zPc float64, accepted bool) {
+	p := s.propose(k, r)
+	if s.invScalePc != 0 && !expNegBelow(r.Float64(), s.radialExcess(&p)) {
+		return math.NaN(), math.NaN(), p.dPc, p.zPc, false
+	}
+	lDeg, bDeg = p.angles()
+	return lDeg, bDeg, p.dPc, p.zPc, true
+}
+
+// proposal is a point drawn from a bin's vertical density over the field,
+// before the radial rejection.
+type proposal struct {
+	galactic bool    // cell about the Galactic pole: sin b = uc, l = phi
+	uc, phi  float64 // for galactic cells
+	u        vec3    // direction, for other cells
+	dPc, zPc float64
+}
+
+// propose draws a point from bin k's density ν_k(z) over the field, exactly
+// (see Draw).
+func (s *Sampler) propose(k int, r *rand.Rand) proposal {
 	t := &s.bins[k]
-	var c *Cell
-	var uc, phi float64 // cos ρ and azimuth in the cell's frame
-	var u vec3          // direction, for cells not about the Galactic pole
+	var p proposal
 	for {
 		ci := pickAlias(r.Uint64(), t.classes)
 		env := float64(t.bounds[ci].hi)
 		first := s.classStart[ci]
-		bi := int(first) + pickAlias(r.Uint64(), s.blockAlias[first:s.classStart[ci+1]])
-		b := &s.blocks[bi]
-		c = &s.cells[b.cell]
+		b := &s.blocks[int(first)+pickAlias(r.Uint64(), s.blockAlias[first:s.classStart[ci+1]])]
+		c := &s.cells[b.cell]
 		x := r.Uint64()
-		uc = c.cMin + unit32(x>>32)*(c.cMax-c.cMin)
-		phi = c.phi1 + unit32(x)*(c.phi2-c.phi1)
-		sinB := uc
-		if !c.galactic {
-			u = c.directionAt(uc, phi)
-			sinB = u.z
+		sinB := c.cMin + unit32(x>>32)*(c.cMax-c.cMin)
+		if c.galactic {
+			p.galactic, p.uc = true, sinB
+			p.phi = c.phi1 + unit32(x)*(c.phi2-c.phi1)
+		} else {
+			p.galactic = false
+			p.u = c.drawDirection(sinB, unit32(x))
+			sinB = p.u.z
 		}
+		// Distance: a mixture of the largest of one, two or three uniforms
+		// (see block).
 		x = r.Uint64()
-		dPc = math.Cbrt(b.d3Lo + unit32(x>>32)*b.d3Range)
-		zPc = dPc*sinB + s.zSunPc
-		y := unit32(x) * env
+		x2 := r.Uint64()
+		f := unit32(x)
+		if sel := uint32(x >> 32); sel >= b.flatBelow {
+			f = max(f, unit32(x2))
+			if sel >= b.linBelow {
+				f = max(f, unit32(r.Uint64()))
+			}
+		}
+		p.dPc = b.dLoPc + f*b.dSpanPc
+		p.zPc = p.dPc*sinB + s.zSunPc
+		y := unit32(x2>>32) * env
 		// ν_k falls with |z|: between grid nodes i and i+1 it lies within
 		// [lo(i+1), hi(i)].
-		if i := int(math.Abs(zPc) * s.invZStepPc); i+1 < len(t.bounds) {
+		if i := int(math.Abs(p.zPc) * s.invZStepPc); i+1 < len(t.bounds) {
 			if y <= float64(t.bounds[i+1].lo) {
-				break
+				return p
 			}
 			if y > float64(t.bounds[i].hi) {
 				continue
 			}
 		}
-		if y <= t.prof.rel(zPc) {
-			break
+		if y <= t.prof.rel(p.zPc) {
+			return p
 		}
 	}
-	var sinB, cosBCosL float64
-	if c.galactic {
-		// About the Galactic pole cos ρ = sin b and φ = l.
-		sinB = uc
-		lDeg = phi * radToDeg
-		if s.invScalePc != 0 {
-			cosBCosL = math.Sqrt(math.Max(0, 1-uc*uc)) * math.Cos(phi)
-		}
+}
+
+// sinB returns the sine of the proposal's Galactic latitude.
+func (p *proposal) sinB() float64 {
+	if p.galactic {
+		return p.uc
+	}
+	return clampUnit(p.u.z)
+}
+
+// radialExcess returns (R − R_min)/h for the proposal, R its Galactocentric
+// radius, so that exp(−radialExcess) is its radial weight over the largest
+// one in the field.
+func (s *Sampler) radialExcess(p *proposal) float64 {
+	sinB := p.sinB()
+	var cosBCosL float64
+	if p.galactic {
+		cosBCosL = math.Sqrt(nonNeg(1-sinB*sinB)) * math.Cos(p.phi)
 	} else {
-		sinB = clamp(u.z, -1, 1)
-		lDeg = math.Atan2(u.y, u.x) * radToDeg
+		cosBCosL = p.u.x
+	}
+	// R² = R0² − 2 R0 d cos b cos l + d² cos² b.
+	d := p.dPc
+	rho2 := s.r0Pc*s.r0Pc - 2*s.r0Pc*d*cosBCosL + d*d*(1-sinB*sinB)
+	return (math.Sqrt(nonNeg(rho2)) - s.rMinPc) * s.invScalePc
+}
+
+// angles returns the proposal's Galactic longitude in [0, 360) and
+// latitude, in degrees.
+func (p *proposal) angles() (lDeg, bDeg float64) {
+	if p.galactic {
+		// About the Galactic pole cos ρ = sin b and φ = l.
+		lDeg = p.phi * radToDeg
+	} else {
+		lDeg = math.Atan2(p.u.y, p.u.x) * radToDeg
 		if lDeg < 0 {
 			lDeg += 360
 		}
-		cosBCosL = u.x
 	}
 	if lDeg >= 360 {
 		lDeg = 0
 	}
-	bDeg = math.Asin(sinB) * radToDeg
-	if s.invScalePc == 0 {
-		return lDeg, bDeg, dPc, zPc, true
-	}
-	// R² = R0² − 2 R0 d cos b cos l + d² cos² b.
-	rho2 := s.r0Pc*s.r0Pc - 2*s.r0Pc*dPc*cosBCosL + dPc*dPc*(1-sinB*sinB)
-	xr := (math.Sqrt(math.Max(rho2, 0)) - s.rMinPc) * s.invScalePc
-	return lDeg, bDeg, dPc, zPc, expNegBelow(r.Float64(), xr)
+	return lDeg, math.Asin(p.sinB()) * radToDeg
 }
 
 // unit32 maps the low 32 bits of x to [0, 1).

@@ -50,11 +50,36 @@ func (o SamplerOptions) withDefaults() (SamplerOptions, error) {
 	return o, nil
 }
 
-// block is a cell times a distance shell; distances inside it are drawn
-// uniform in d³, which is uniform in volume.
+// block is a cell times a distance shell [dLoPc, dLoPc + dSpanPc].
+//
+// Uniform in volume, distance has density ∝ d² over the shell. Written as
+// d = d_lo + Δ t, t ∈ [0, 1], that density is ∝ d_lo² + 2 d_lo Δ t + Δ² t²,
+// a mixture with weights d_lo², d_lo Δ and Δ²/3 of a uniform t, the larger
+// of two uniforms (density 2t) and the largest of three (density 3t²). Draw
+// picks the component by comparing a 32-bit uniform with flatBelow and
+// linBelow, which saves a cube root per point: far shells are almost flat,
+// so one uniform usually does.
 type block struct {
-	cell          int32
-	d3Lo, d3Range float64 // d_lo³ and d_hi³ − d_lo³, pc³
+	cell                int32
+	flatBelow, linBelow uint32
+	dLoPc, dSpanPc      float64
+}
+
+func newBlock(cell int, loPc, hiPc float64) block {
+	span := hiPc - loPc
+	w0, w1, w2 := loPc*loPc, loPc*span, span*span/3
+	sum := w0 + w1 + w2
+	threshold := func(p float64) uint32 { return uint32(math.Min(math.Floor(p*(1<<32)), math.MaxUint32)) }
+	return block{cell: int32(cell), flatBelow: threshold(w0 / sum), linBelow: threshold((w0 + w1) / sum), dLoPc: loPc, dSpanPc: span}
+}
+
+// dHiPc returns the outer distance of the block's shell.
+func (b *block) dHiPc() float64 { return b.dLoPc + b.dSpanPc }
+
+// volumePc3 returns the block's volume.
+func (s *Sampler) volumePc3(b *block) float64 {
+	lo, hi := b.dLoPc, b.dHiPc()
+	return s.cells[b.cell].SolidAngleSr() * (hi*hi*hi - lo*lo*lo) / 3
 }
 
 // bound brackets an age bin's relative density ν/ν(0) at one node of the
@@ -236,7 +261,7 @@ func (s *Sampler) cutField(field Field, opts SamplerOptions) {
 			if j == m-1 {
 				hi = c.distMaxPc
 			}
-			s.blocks = append(s.blocks, block{cell: int32(i), d3Lo: lo * lo * lo, d3Range: hi*hi*hi - lo*lo*lo})
+			s.blocks = append(s.blocks, newBlock(i, lo, hi))
 		}
 	}
 }
@@ -270,8 +295,7 @@ func (s *Sampler) nodes(invZ0Pc float64) (lc, weight []float64) {
 	for _, b := range s.blocks {
 		c := &s.cells[b.cell]
 		q = c.quadrature(q)
-		lo := math.Cbrt(b.d3Lo)
-		hi := math.Cbrt(b.d3Lo + b.d3Range)
+		lo, hi := b.dLoPc, b.dHiPc()
 		mid, half := 0.5*(hi+lo), 0.5*(hi-lo)
 		for _, nd := range q {
 			for j, x := range gl4x {
@@ -295,9 +319,7 @@ func (s *Sampler) classify() {
 	zFarMax := 0.0
 	for i, b := range s.blocks {
 		c := &s.cells[b.cell]
-		lo := math.Cbrt(b.d3Lo)
-		hi := math.Cbrt(b.d3Lo + b.d3Range)
-		zn, zf := heightExtremes(lo, hi, c.sinBMin, c.sinBMax, s.zSunPc)
+		zn, zf := heightExtremes(b.dLoPc, b.dHiPc(), c.sinBMin, c.sinBMax, s.zSunPc)
 		zNear[i] = math.Abs(zn)
 		zFarMax = math.Max(zFarMax, zf)
 	}
@@ -334,7 +356,7 @@ func (s *Sampler) classify() {
 		lo, hi := s.classStart[c], s.classStart[c+1]
 		for i := lo; i < hi; i++ {
 			b := &s.blocks[i]
-			w[i] = s.cells[b.cell].SolidAngleSr() * b.d3Range / 3
+			w[i] = s.volumePc3(b)
 			s.classVolPc3[c] += w[i]
 		}
 		if hi > lo {

@@ -377,11 +377,15 @@ func TestRadialAcceptanceMaxCone(t *testing.T) {
 	want := math.Exp(2000 * math.Cos(20*degToRad) / 2600)
 	assert.InEpsilon(t, want, toward.RadialAcceptanceMax(), 1e-3)
 	assert.GreaterOrEqual(t, toward.RadialAcceptanceMax(), want)
-	// Every draw's acceptance probability stays ≤ 1: R ≥ R_min.
+	// Every proposal's acceptance probability stays ≤ 1: R ≥ R_min. Draw
+	// gives no angles for rejected points, so look at the proposals.
 	rng := rand.New(rand.NewPCG(1, 1))
 	for range 20000 {
-		l, b, d, _, _ := toward.Draw(0, rng)
-		assert.LessOrEqual(t, radial.Weight(RPc(sun, l, b, d)/1000, sun.RKpc), toward.RadialAcceptanceMax()*(1+1e-12))
+		p := toward.propose(0, rng)
+		l, b := p.angles()
+		w := radial.Weight(RPc(sun, l, b, p.dPc)/1000, sun.RKpc)
+		assert.LessOrEqual(t, w, toward.RadialAcceptanceMax()*(1+1e-12))
+		assert.InEpsilon(t, w/toward.RadialAcceptanceMax(), math.Exp(-toward.radialExcess(&p)), 1e-9)
 	}
 }
 
@@ -393,8 +397,13 @@ func TestDrawDeterministic(t *testing.T) {
 	for range 1000 {
 		l1, b1, d1, z1, ok1 := s.Draw(1, a)
 		l2, b2, d2, z2, ok2 := s.Draw(1, b)
-		require.Equal(t, [4]float64{l1, b1, d1, z1}, [4]float64{l2, b2, d2, z2})
 		require.Equal(t, ok1, ok2)
+		require.Equal(t, [2]float64{d1, z1}, [2]float64{d2, z2})
+		if ok1 {
+			require.Equal(t, [2]float64{l1, b1}, [2]float64{l2, b2})
+		} else {
+			require.True(t, math.IsNaN(l1) && math.IsNaN(b1) && math.IsNaN(l2) && math.IsNaN(b2), "rejected points have no angles")
+		}
 	}
 }
 

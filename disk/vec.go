@@ -27,3 +27,23 @@ func angleBetween(a, b vec3) float64 { return math.Atan2(a.cross(b).norm(), a.do
 func latitudeOf(v vec3) float64 { return math.Asin(clamp(v.z, -1, 1)) }
 
 func clamp(x, lo, hi float64) float64 { return math.Max(lo, math.Min(hi, x)) }
+
+// nonNeg returns x, or 0 if x < 0; for the hot path, where math.Max is a
+// call (it sorts out NaN and signed zeros, which cannot occur there).
+func nonNeg(x float64) float64 {
+	if x < 0 {
+		return 0
+	}
+	return x
+}
+
+// clampUnit returns x clamped to [−1, 1]; for the hot path, like nonNeg.
+func clampUnit(x float64) float64 {
+	if x > 1 {
+		return 1
+	}
+	if x < -1 {
+		return -1
+	}
+	return x
+}

@@ -67,3 +67,16 @@ func BenchmarkZZDrawOneBin(b *testing.B) {
 		s.Draw(5, r)
 	}
 }
+
+func BenchmarkZZDrawTinyTables(b *testing.B) {
+	s, err := NewSampler(Cone{LDeg: 58, BDeg: 21, RadiusDeg: 11, DistMaxPc: 1500}, Sun{RKpc: 8.122, ZPc: 20.8},
+		Sheet{SheetSigmaKms: 20, SurfaceDensityMsunPc2: 70}, Radial{ScaleLengthKpc: 2.6}, []float64{20}, SamplerOptions{MaxBlocks: 300})
+	if err != nil {
+		b.Fatal(err)
+	}
+	fmt.Println("blocks", len(s.blocks), "eff", s.ProposalEfficiency(0))
+	r := rand.New(rand.NewPCG(1, 2))
+	for b.Loop() {
+		s.Draw(0, r)
+	}
+}

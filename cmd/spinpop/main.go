@@ -47,6 +47,7 @@ func commands() []command {
 		{"gyrochrones", "tabulate period against color and mass at chosen ages for the scenario's spin-down law", runGyrochrones},
 		{"mock", "draw a mock observed catalog of N stars from a scenario", runMock},
 		{"laws", "the same population under each spin-down law, side by side", runLaws},
+		{"test-burst", "does the catalog demand a burst? likelihood ratio, bootstrap, evidence, height check", runTestBurst},
 		{"demo", "the whole job on the built-in example scenario", runDemo},
 		{"examples", "list the built-in example scenarios, or print one", runExamples},
 	}

@@ -5,6 +5,7 @@ import (
 	"os"
 	"strings"
 
+	"spinpop/model/spin"
 	"spinpop/scenarios"
 )
 
@@ -48,4 +49,8 @@ func scenariosBuild(s *scenarios.Scenario, path string) (*scenarios.Built, error
 		return nil, inputError{fmt.Errorf("%s: %w", path, err)}
 	}
 	return b, nil
+}
+
+func spinStar(m, age, bv, teff float64) spin.Star {
+	return spin.Star{MassMsun: m, AgeGyr: age, BV: bv, TeffK: teff}
 }

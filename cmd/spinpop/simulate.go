@@ -384,3 +384,9 @@ func printSummary(w io.Writer, s *summary, asJSON bool) error {
 	}
 	return nil
 }
+
+func printJSON(w io.Writer, v any) error {
+	enc := json.NewEncoder(w)
+	enc.SetIndent("", "  ")
+	return enc.Encode(v)
+}

@@ -1,0 +1,125 @@
+package compare
+
+import (
+	"bytes"
+	"crypto/sha256"
+	"encoding/hex"
+	"fmt"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"spinpop/compare/catalog"
+	"spinpop/model"
+)
+
+// KeepStar makes the same decision as the model's selection flags, star by
+// star, for every generated star that was detected within the magnitude
+// limits (the steps a catalogue row has already passed). Common practice,
+// no source: data and model must be cut alike.
+func TestKeepStarAgreesWithModelFlags(t *testing.T) {
+	world := newTestWorld(t, piecewiseHistory(t, []float64{2, 1, 1, 1, 1, 1, 1, 1, 1}), tplEdges)
+	pop := *world.pop
+	pop.Cuts.HeightMaxPc = 150 // exercise the height cut too
+	pop.Cuts.PeriodMinD, pop.Cuts.PeriodMaxD = 1, 40
+	pop.Cuts.BVMin, pop.Cuts.BVMax = 0.6, 1.3
+	require.NoError(t, pop.Prepare())
+	c := model.NewChunk(60000)
+	pop.Fill(c, model.ChunkStream(5, 0))
+	checked, kept := 0, 0
+	reasons := map[string]int{}
+	for i := 0; i < c.N; i++ {
+		f := c.Flags[i]
+		if f&model.FlagDetected == 0 || f&model.FlagInMagRange == 0 || f&(model.FlagGone|model.FlagOutsideLaw) != 0 {
+			continue
+		}
+		checked++
+		ok, why := KeepStar(pop.Cuts, world.rel, c.ObsBV[i], c.ObsAbsMag[i], c.MeasPeriodD[i], c.ZPc[i])
+		require.Equal(t, f.Selected(), ok, "star %d: flags %b, KeepStar says %v (%s)", i, f, ok, why)
+		if ok {
+			kept++
+		} else {
+			reasons[why]++
+		}
+	}
+	t.Logf("%d detected stars checked, %d kept, removed by %v", checked, kept, reasons)
+	require.Greater(t, checked, 2000)
+	for _, r := range []string{CutColor, CutMainSequence, CutPeriodWindow, CutHeight} {
+		assert.Positive(t, reasons[r], "cut %s never exercised", r)
+	}
+}
+
+func writeCatalog(t *testing.T, rows []string) (path, sha string) {
+	dir := t.TempDir()
+	path = filepath.Join(dir, "cat.csv")
+	body := "period_d,b_v,abs_mag_v,z_pc\n" + strings.Join(rows, "\n") + "\n"
+	require.NoError(t, os.WriteFile(path, []byte(body), 0o644))
+	s := sha256.Sum256([]byte(body))
+	return path, hex.EncodeToString(s[:])
+}
+
+func TestReadObservedCutsRejectsAndHash(t *testing.T) {
+	rel, err := model.DwarfSequence()
+	require.NoError(t, err)
+	cuts := model.Cuts{BVMin: 0.45, BVMax: 1.6, MSBandBrightMag: 0.4, MSBandFaintMag: 0.4, PeriodMinD: 0.5, PeriodMaxD: 100, HeightMaxPc: 600}
+	ms := func(bv float64) float64 { m, ok := rel.AbsMagVAtBV(bv); require.True(t, ok); return m }
+	rows := []string{
+		fmt.Sprintf("12,0.8,%.4f,50", ms(0.8)),       // kept
+		fmt.Sprintf("20,1.0,%.4f,-120", ms(1.0)+0.1), // kept (|z| used)
+		fmt.Sprintf("12,0.3,%.4f,50", ms(0.8)),       // color
+		fmt.Sprintf("12,0.8,%.4f,50", ms(0.8)-1.0),   // main sequence (too bright)
+		fmt.Sprintf("150,0.8,%.4f,50", ms(0.8)),      // period window
+		fmt.Sprintf("12,0.8,%.4f,900", ms(0.8)),      // height
+		fmt.Sprintf("0.7,0.8,%.4f,50", ms(0.8)),      // outside the space's periods (1–60 d)
+		"NA,0.8,5,50",                                // missing
+		"12,abc,5,50",                                // not a number
+		"-3,0.8,5,50",                                // period not positive
+		"12,0.8,5",                                   // wrong number of fields
+	}
+	path, sha := writeCatalog(t, rows)
+	sp, err := NewSpace(0.45, 1.6, 8, 1, 60, 10, []float64{0, 100, 200, 400, 800})
+	require.NoError(t, err)
+	spec := DataSpec{Path: path, SHA256: strings.ToUpper(sha), Mapping: catalog.Mapping{Period: "period_d", Color: "b_v", AbsMag: "abs_mag_v", Height: "z_pc"}, Cuts: cuts, Relations: rel}
+	var rej bytes.Buffer
+	obs, err := ReadObserved(spec, sp, &rej)
+	require.NoError(t, err)
+	assert.Equal(t, 2, obs.N)
+	assert.Len(t, obs.Stars, 2)
+	var total float64
+	for _, v := range obs.Counts {
+		total += v
+	}
+	assert.Equal(t, 2.0, total)
+	assert.Equal(t, 1.0, obs.Counts[sp.Index(1.0, 20, 120)])
+	assert.Equal(t, map[string]int{CutColor: 1, CutMainSequence: 1, CutPeriodWindow: 1, CutHeight: 1, CutOutsideSpace: 1}, obs.CutAway)
+	assert.Equal(t, map[string]int{"missing value": 1, "not a number": 1, "period not positive": 1, "wrong number of fields": 1}, obs.Rejected)
+	assert.Equal(t, 11, obs.Rows)
+	assert.Equal(t, sha, obs.SHA256)
+	lines := strings.Split(strings.TrimSpace(rej.String()), "\n")
+	assert.Len(t, lines, 5)
+	assert.True(t, strings.HasPrefix(lines[0], "line,reason"))
+	assert.True(t, strings.HasPrefix(lines[1], "9,missing value"), lines[1])
+
+	// Every kept row agrees with KeepStar, and the cut-away ones do not.
+	for _, s := range obs.Stars {
+		ok, _ := KeepStar(cuts, rel, s.BV, s.AbsMagV, s.PeriodD, s.ZPc)
+		assert.True(t, ok)
+	}
+
+	spec.SHA256 = strings.Repeat("0", 64)
+	_, err = ReadObserved(spec, sp, nil)
+	require.Error(t, err)
+	assert.Contains(t, err.Error(), path)
+	assert.Contains(t, err.Error(), sha)
+	assert.Contains(t, err.Error(), strings.Repeat("0", 64))
+
+	spec.Relations = nil
+	_, err = ReadObserved(spec, sp, nil)
+	assert.ErrorContains(t, err, "relations")
+	assert.False(t, math.IsNaN(total))
+}
