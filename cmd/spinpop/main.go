@@ -47,7 +47,9 @@ func commands() []command {
 		{"gyrochrones", "tabulate period against color and mass at chosen ages for the scenario's spin-down law", runGyrochrones},
 		{"mock", "draw a mock observed catalog of N stars from a scenario", runMock},
 		{"laws", "the same population under each spin-down law, side by side", runLaws},
+		{"compare", "score a scenario against its observed catalog: likelihood, residuals, marginal tests", runCompare},
 		{"test-burst", "does the catalog demand a burst? likelihood ratio, bootstrap, evidence, height check", runTestBurst},
+		{"heights", "young fraction against height above the plane, data against each hypothesis", runHeights},
 		{"demo", "the whole job on the built-in example scenario", runDemo},
 		{"examples", "list the built-in example scenarios, or print one", runExamples},
 	}

@@ -2,6 +2,7 @@ package main
 
 import (
 	"fmt"
+	"math/rand/v2"
 	"os"
 	"strings"
 
@@ -54,3 +55,5 @@ func scenariosBuild(s *scenarios.Scenario, path string) (*scenarios.Built, error
 func spinStar(m, age, bv, teff float64) spin.Star {
 	return spin.Star{MassMsun: m, AgeGyr: age, BV: bv, TeffK: teff}
 }
+
+type randRand = rand.Rand

@@ -1,0 +1,111 @@
+package main
+
+import (
+	"context"
+	"fmt"
+	"io"
+	"os"
+	"os/signal"
+	"path/filepath"
+
+	"gonum.org/v1/plot/vg"
+
+	"spinpop/compare"
+)
+
+func runHeights(args []string, stdout, stderr io.Writer) error {
+	fs := newFlagSet("heights", "heights SCENARIO --out DIR [--split-age-gyr X] [--json] [--templates DIR] [--force]",
+		"Check ages against height above the plane: split the catalog at the gyrochrone of one age\n"+
+			"(default compare.split_age_gyr, or the fitted burst age), count the young fraction in |z|\n"+
+			"bins (Wilson 68 % intervals), and compare it with what the fitted smooth history and the\n"+
+			"fitted history with a burst predict, by binomial likelihood. Young stars sit in a thinner\n"+
+			"layer than old ones, so the young fraction falls with height; a burst changes how fast.", stdout)
+	cf := addCompareFlags(fs)
+	split := fs.Float64("split-age-gyr", 0, "age of the splitting gyrochrone in Gyr (0: compare.split_age_gyr, else the fitted burst age)")
+	pos, err := parseInterleaved(fs, args)
+	if err != nil {
+		return err
+	}
+	path, err := oneScenarioArg(pos, "heights")
+	if err != nil {
+		return err
+	}
+	if *split < 0 || *split > 14 {
+		return usageErrorf("--split-age-gyr must be an age in (0, 14] Gyr")
+	}
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
+	defer stop()
+	c, err := setupComparison(ctx, path, cf, stderr)
+	if err != nil {
+		return err
+	}
+	fs0, err := compare.Fit(c.like, c.smooth, compare.FitOptions{Seed: c.s.Run.Seed})
+	if err != nil {
+		return err
+	}
+	fb, err := compare.Fit(c.like, c.burst, compare.FitOptions{Seed: c.s.Run.Seed})
+	if err != nil {
+		return err
+	}
+	age := *split
+	if age == 0 {
+		age = c.s.Compare.SplitAgeGyr
+	}
+	if age == 0 {
+		age = 0.6
+		for i, n := range fb.Names {
+			if n == c.s.Compare.BurstPart+".age_gyr" {
+				age = fb.Theta[i]
+			}
+		}
+	}
+	h, err := compare.HeightCheck(c.tpl, c.obs, age, c.gyroAt(age), map[string][]float64{
+		"smooth history (fit)": fs0.Weights,
+		"with burst (fit)":     fb.Weights,
+	})
+	if err != nil {
+		return err
+	}
+	p, err := heightPlotFit(h)
+	if err != nil {
+		return err
+	}
+	if err := writePlot(filepath.Join(*cf.out, "height_check.png"), p, 16*vg.Centimeter, 11*vg.Centimeter); err != nil {
+		return err
+	}
+	hyp := map[string]any{}
+	for _, x := range h.Hypotheses {
+		hyp[x.Name] = map[string]any{"young_fraction": finiteAll(x.Fraction), "log_l": finite(x.LogL)}
+	}
+	out := map[string]any{
+		"tool": "spinpop", "version": version, "scenario": path, "scenario_sha256": c.res.Hash(), "data": c.dataSummary(),
+		"split_age_gyr": h.SplitAgeGyr, "z_edges_pc": finiteAll(h.ZEdgesPc), "young": h.Young, "total": h.Total,
+		"fraction": finiteAll(h.Fraction), "lo68": finiteAll(h.Lo68), "hi68": finiteAll(h.Hi68), "hypotheses": hyp,
+		"outputs": []string{"rejected.csv", "height_check.png", "heights.json"},
+	}
+	if err := writeJSON(filepath.Join(*cf.out, "heights.json"), out); err != nil {
+		return err
+	}
+	if *cf.asJSON {
+		return printJSON(stdout, out)
+	}
+	printDataSummary(stdout, c.dataSummary())
+	fmt.Fprintf(stdout, "\nyoung fraction (period below the %.2f Gyr gyrochrone) against |z|:\n", h.SplitAgeGyr)
+	fmt.Fprintf(stdout, "  %-13s %7s %7s %9s", "|z| (pc)", "young", "total", "fraction")
+	for _, x := range h.Hypotheses {
+		fmt.Fprintf(stdout, "  %22s", x.Name)
+	}
+	fmt.Fprintln(stdout)
+	for i := range h.Total {
+		fmt.Fprintf(stdout, "  %5.0f–%-7.0f %7d %7d %9.3f", h.ZEdgesPc[i], h.ZEdgesPc[i+1], h.Young[i], h.Total[i], finite(h.Fraction[i]))
+		for _, x := range h.Hypotheses {
+			fmt.Fprintf(stdout, "  %22.3f", finite(x.Fraction[i]))
+		}
+		fmt.Fprintln(stdout)
+	}
+	for _, x := range h.Hypotheses {
+		fmt.Fprintf(stdout, "binomial ln L, %s: %.1f\n", x.Name, x.LogL)
+	}
+	fmt.Fprintln(stdout, "wrote: [rejected.csv height_check.png heights.json]")
+	return nil
+}
