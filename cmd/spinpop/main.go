@@ -50,6 +50,8 @@ func commands() []command {
 		{"compare", "score a scenario against its observed catalog: likelihood, residuals, marginal tests", runCompare},
 		{"test-burst", "does the catalog demand a burst? likelihood ratio, bootstrap, evidence, height check", runTestBurst},
 		{"heights", "young fraction against height above the plane, data against each hypothesis", runHeights},
+		{"inject", "injection–recovery: how often the burst test finds bursts of each age and size in a catalog like yours", runInject},
+		{"posterior", "posterior of the burst model's free parameters: corner plot, star-formation history band, chain", runPosterior},
 		{"demo", "the whole job on the built-in example scenario", runDemo},
 		{"examples", "list the built-in example scenarios, or print one", runExamples},
 	}

@@ -1,0 +1,355 @@
+package main
+
+import (
+	"bufio"
+	"context"
+	"encoding/json"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"os/signal"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"time"
+
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/vg"
+
+	"spinpop/compare"
+)
+
+func runPosterior(args []string, stdout, stderr io.Writer) error {
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
+	defer stop()
+	return posteriorCmd(ctx, args, stdout, stderr)
+}
+
+// posteriorCmd is the command with its context: cancelling ctx (Ctrl-C) stops it
+// and leaves no partial output.
+func posteriorCmd(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+	fs := newFlagSet("posterior", "posterior SCENARIO --out DIR [--walkers 32] [--steps 3000] [--burn 1000] [--seed N]\n"+
+		"         [--json] [--templates DIR] [--force] [--threads N]",
+		"Sample the posterior of the burst model's free parameters (compare.free) given the observed\n"+
+			"catalog, with the affine-invariant ensemble sampler (Goodman & Weare 2010) and priors uniform or\n"+
+			"log-uniform inside the compare.free ranges. Writes into DIR: posterior.json (medians, 16/84 %\n"+
+			"quantiles, the best sample, acceptance, autocorrelation times, convergence), chain.csv (every\n"+
+			"walker's position after burn-in), corner.png (marginal and pairwise densities) and sfh.png (the\n"+
+			"star-formation history with its 16–84 % band). SCENARIO needs a [data] section (see spinpop\n"+
+			"examples fit). --threads only speeds up building templates; the sampler is serial.", stdout)
+	cf := addCompareFlags(fs)
+	walkers := fs.Int("walkers", 32, "walkers of the ensemble (even; more than twice the number of free parameters)")
+	steps := fs.Int("steps", 4000, "steps per walker")
+	burn := fs.Int("burn", 1000, "first steps of each walker dropped as burn-in")
+	seed := fs.Uint64("seed", 0, "random seed of the sampler (0: run.seed); the templates always use run.seed")
+	pos, err := parseInterleaved(fs, args)
+	if err != nil {
+		return err
+	}
+	path, err := oneScenarioArg(pos, "posterior")
+	if err != nil {
+		return err
+	}
+	if *walkers < 2 || *walkers%2 != 0 {
+		return usageErrorf("--walkers %d: want an even number of walkers, at least twice the number of free parameters (32 is usual)", *walkers)
+	}
+	if *steps < 2 {
+		return usageErrorf("--steps must be at least 2 (thousands are usual)")
+	}
+	if *burn < 1 || *burn >= *steps {
+		return usageErrorf("--burn %d: want at least 1 and fewer than --steps (%d) steps of burn-in", *burn, *steps)
+	}
+
+	c, err := setupComparison(ctx, path, cf, stderr)
+	if err != nil {
+		return err
+	}
+	d := c.burst.Dim()
+	if d == 0 {
+		return usageErrorf("%s: the burst model has no free parameter; list some in [[compare.free]]", path)
+	}
+	if *walkers < 2*d {
+		return usageErrorf("--walkers %d is too few for %d free parameters; use at least %d", *walkers, d, 2*d)
+	}
+	opts := compare.PosteriorOptions{Walkers: *walkers, Steps: *steps, Burn: *burn, Seed: c.s.Run.Seed}
+	if *seed != 0 {
+		opts.Seed = *seed
+	}
+	bar := newProgressBar("sampling", int64(*steps))
+	opts.Progress = func(done, _ int) { bar.Update(int64(done)) }
+	start := time.Now()
+	post, err := compare.SamplePosterior(ctx, c.like, c.burst, opts)
+	bar.Done()
+	if err != nil {
+		if ctx.Err() != nil {
+			return fmt.Errorf("interrupted; nothing but rejected.csv was written to %s", *cf.out)
+		}
+		return fmt.Errorf("posterior: %w", err)
+	}
+	rep, err := newPosteriorReport(c, post, opts.Seed)
+	if err != nil {
+		return err
+	}
+	rep.Seconds = time.Since(start).Seconds()
+
+	dir := *cf.out
+	if err := writeChainCSV(filepath.Join(dir, "chain.csv"), post); err != nil {
+		return err
+	}
+	first := post.Burn * post.Walkers * d
+	grid, err := cornerGrid(rep, post.Chain[first:])
+	if err != nil {
+		return err
+	}
+	side := vg.Length(max(14, 6.5*float64(d))) * vg.Centimeter
+	if err := writeGrid(filepath.Join(dir, "corner.png"), grid, side, side); err != nil {
+		return err
+	}
+	sp, err := sfhPlots(c, post, rep)
+	if err != nil {
+		return err
+	}
+	if err := writeGrid(filepath.Join(dir, "sfh.png"), [][]*plot.Plot{sp}, 32*vg.Centimeter, 12*vg.Centimeter); err != nil {
+		return err
+	}
+	rep.Outputs = []string{"rejected.csv", "chain.csv", "corner.png", "sfh.png", "posterior.json"}
+	if err := writeJSON(filepath.Join(dir, "posterior.json"), rep); err != nil {
+		return err
+	}
+	if *cf.asJSON {
+		enc := json.NewEncoder(stdout)
+		enc.SetIndent("", "  ")
+		return enc.Encode(rep)
+	}
+	printPosteriorReport(stdout, rep)
+	return nil
+}
+
+// notConvergedWarning is printed, and recorded, when any parameter's chain
+// is shorter than 50 autocorrelation times.
+const notConvergedWarning = "chain shorter than 50 autocorrelation times: run longer (--steps)"
+
+// posteriorReport is what posterior writes to posterior.json and prints.
+type posteriorReport struct {
+	Tool               string           `json:"tool"`
+	Version            string           `json:"version"`
+	Scenario           string           `json:"scenario"`
+	ScenarioName       string           `json:"scenario_name"`
+	ScenarioHash       string           `json:"scenario_sha256"`
+	Data               dataSummary      `json:"data"`
+	Seed               uint64           `json:"seed"`
+	Walkers            int              `json:"walkers"`
+	Steps              int              `json:"steps"`
+	Burn               int              `json:"burn"`
+	Parameters         []posteriorParam `json:"parameters"`
+	AcceptanceMean     float64          `json:"acceptance_fraction_mean"`
+	AcceptanceFraction []float64        `json:"acceptance_fraction_per_walker"`
+	Converged          bool             `json:"converged"`
+	MAPLogPosterior    float64          `json:"map_log_posterior"`
+	SFH                sfhBand          `json:"star_formation_history"`
+	Warnings           []string         `json:"warnings"`
+	Seconds            float64          `json:"seconds"`
+	Outputs            []string         `json:"outputs"`
+}
+
+// posteriorParam summarises one free parameter.
+type posteriorParam struct {
+	Name      string   `json:"name"`
+	PriorMin  float64  `json:"prior_min"`
+	PriorMax  float64  `json:"prior_max"`
+	Prior     string   `json:"prior"`
+	Median    float64  `json:"median"`
+	Q16       float64  `json:"q16"`
+	Q84       float64  `json:"q84"`
+	MAP       float64  `json:"map"`
+	Tau       *float64 `json:"autocorr_time_steps"` // null when it cannot be estimated
+	Converged bool     `json:"converged"`
+}
+
+// sfhBand is the star-formation rate's posterior on an age grid (share of
+// all mass formed per Gyr).
+type sfhBand struct {
+	AgeGyr  []float64 `json:"age_gyr"`
+	Median  []float64 `json:"rate_median_per_gyr"`
+	Q16     []float64 `json:"rate_q16_per_gyr"`
+	Q84     []float64 `json:"rate_q84_per_gyr"`
+	MAPRate []float64 `json:"rate_map_per_gyr"`
+}
+
+func newPosteriorReport(c *comparison, post *compare.Posterior, seed uint64) (*posteriorReport, error) {
+	rep := &posteriorReport{
+		Tool: "spinpop", Version: version, Scenario: c.path, ScenarioName: c.s.Name, ScenarioHash: c.res.Hash(),
+		Data: c.dataSummary(), Seed: seed, Walkers: post.Walkers, Steps: post.Steps, Burn: post.Burn,
+		AcceptanceFraction: post.AcceptanceFraction, Converged: true, Warnings: []string{},
+		MAPLogPosterior: math.Inf(-1),
+	}
+	for _, a := range post.AcceptanceFraction {
+		rep.AcceptanceMean += a / float64(len(post.AcceptanceFraction))
+	}
+	for _, lp := range post.LogProb {
+		rep.MAPLogPosterior = math.Max(rep.MAPLogPosterior, lp)
+	}
+	var unconverged []string
+	for i, f := range c.burst.Free {
+		prior := "uniform"
+		if f.LogPrior {
+			prior = "log-uniform"
+		}
+		p := posteriorParam{Name: f.Name, PriorMin: f.Min, PriorMax: f.Max, Prior: prior,
+			Median: post.Median[i], Q16: post.Q16[i], Q84: post.Q84[i], MAP: post.MAP[i], Converged: post.Converged[i]}
+		if t := post.AutocorrTime[i]; !math.IsNaN(t) && !math.IsInf(t, 0) {
+			p.Tau = &t
+		} else {
+			p.Converged = false
+		}
+		if !p.Converged {
+			rep.Converged = false
+			unconverged = append(unconverged, f.Name)
+		}
+		rep.Parameters = append(rep.Parameters, p)
+	}
+	if !rep.Converged {
+		rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s (%s); the quantiles may be wrong", notConvergedWarning, strings.Join(unconverged, ", ")))
+	}
+	if rep.AcceptanceMean < 0.1 || rep.AcceptanceMean > 0.9 {
+		rep.Warnings = append(rep.Warnings, fmt.Sprintf("mean acceptance fraction %.2f lies outside 0.1–0.9, where the ensemble sampler moves poorly; check chain.csv", rep.AcceptanceMean))
+	}
+	ages := linspace(0, c.s.History.MaxAgeGyr, 801)
+	band, err := sfhBandAt(c, post, ages)
+	if err != nil {
+		return nil, err
+	}
+	rep.SFH = band
+	return rep, nil
+}
+
+// sfhBandAt is the posterior's star-formation-rate band and the best
+// sample's rate at ages.
+func sfhBandAt(c *comparison, post *compare.Posterior, ages []float64) (sfhBand, error) {
+	med, lo, hi, err := post.SFHBand(c.burst, ages)
+	if err != nil {
+		return sfhBand{}, err
+	}
+	h, err := c.burst.History(post.MAP)
+	if err != nil {
+		return sfhBand{}, err
+	}
+	mr := make([]float64, len(ages))
+	for i, a := range ages {
+		mr[i] = h.Rate(a)
+	}
+	return sfhBand{AgeGyr: ages, Median: med, Q16: lo, Q84: hi, MAPRate: mr}, nil
+}
+
+// sfhPlots are two panels: the whole history, on a logarithmic rate axis
+// so the smooth part and the burst both show, and a zoom on the burst on a
+// linear one.
+func sfhPlots(c *comparison, post *compare.Posterior, rep *posteriorReport) ([]*plot.Plot, error) {
+	b := rep.SFH
+	logY := true
+	for i := range b.AgeGyr {
+		if !(b.Q16[i] > 0 && b.MAPRate[i] > 0) {
+			logY = false
+		}
+	}
+	whole, err := sfhBandPlot("Star-formation history: the whole disk age", b.AgeGyr, b.Median, b.Q16, b.Q84, b.MAPRate, logY)
+	if err != nil {
+		return nil, err
+	}
+	// The zoom spans the burst age's 16–84 % range widened by four burst
+	// widths (its 84 % quantile when free, else the fixed value) each side.
+	part := c.s.Compare.BurstPart
+	var age, width posteriorParam
+	var haveAge, haveWidth bool
+	for _, p := range rep.Parameters {
+		switch p.Name {
+		case part + ".age_gyr":
+			age, haveAge = p, true
+		case part + ".width_gyr":
+			width, haveWidth = p, true
+		}
+	}
+	if !haveAge {
+		return []*plot.Plot{whole}, nil
+	}
+	w := 0.05
+	if haveWidth {
+		w = width.Q84
+	} else {
+		for _, p := range c.burst.Base.Params() {
+			if p.Name == part+".width_gyr" {
+				w = p.Value
+			}
+		}
+	}
+	lo := math.Max(0, age.Q16-4*w)
+	hi := math.Min(c.s.History.MaxAgeGyr, age.Q84+4*w)
+	zb, err := sfhBandAt(c, post, linspace(lo, hi, 401))
+	if err != nil {
+		return nil, err
+	}
+	zoom, err := sfhBandPlot(fmt.Sprintf("Around the burst: age %s Gyr", formatInterval(age.Median, age.Q16, age.Q84)),
+		zb.AgeGyr, zb.Median, zb.Q16, zb.Q84, zb.MAPRate, false)
+	if err != nil {
+		return nil, err
+	}
+	return []*plot.Plot{whole, zoom}, nil
+}
+
+// writeChainCSV writes every walker's position after burn-in, one row per
+// walker and step, with its log-posterior.
+func writeChainCSV(path string, post *compare.Posterior) error {
+	d := len(post.Names)
+	return writeFileAtomic(path, func(w io.Writer) error {
+		bw := bufio.NewWriter(w)
+		bw.WriteString("walker,step")
+		for _, n := range post.Names {
+			bw.WriteString("," + n)
+		}
+		bw.WriteString(",log_posterior\n")
+		var buf []byte
+		for s := post.Burn; s < post.Steps; s++ {
+			for wk := range post.Walkers {
+				j := s*post.Walkers + wk
+				buf = strconv.AppendInt(buf[:0], int64(wk), 10)
+				buf = append(buf, ',')
+				buf = strconv.AppendInt(buf, int64(s), 10)
+				for i := range d {
+					buf = append(buf, ',')
+					buf = strconv.AppendFloat(buf, post.Chain[j*d+i], 'g', -1, 64)
+				}
+				buf = append(buf, ',')
+				buf = strconv.AppendFloat(buf, post.LogProb[j], 'g', -1, 64)
+				buf = append(buf, '\n')
+				if _, err := bw.Write(buf); err != nil {
+					return err
+				}
+			}
+		}
+		return bw.Flush()
+	})
+}
+
+func printPosteriorReport(w io.Writer, r *posteriorReport) {
+	fmt.Fprintf(w, "spinpop %s — posterior of the burst model, scenario %q (sha256 %s…), seed %d\n", r.Version, r.ScenarioName, r.ScenarioHash[:16], r.Seed)
+	printDataSummary(w, r.Data)
+	fmt.Fprintf(w, "%d walkers × %d steps (first %d dropped) in %.1f s; mean acceptance %.2f\n\n", r.Walkers, r.Steps, r.Burn, r.Seconds, r.AcceptanceMean)
+	fmt.Fprintf(w, "  %-32s %-28s %-10s %-22s %-9s %s\n", "parameter", "median +q84 −q16", "MAP", "prior", "τ (steps)", "converged")
+	for _, p := range r.Parameters {
+		tau := "—"
+		if p.Tau != nil {
+			tau = fmt.Sprintf("%.0f", *p.Tau)
+		}
+		conv := "yes"
+		if !p.Converged {
+			conv = "no"
+		}
+		fmt.Fprintf(w, "  %-32s %-28s %-10.4g %-22s %-9s %s\n", paramLabel(p.Name), formatInterval(p.Median, p.Q16, p.Q84), p.MAP,
+			fmt.Sprintf("%s [%g, %g]", p.Prior, p.PriorMin, p.PriorMax), tau, conv)
+	}
+	for _, warn := range r.Warnings {
+		fmt.Fprintln(w, "warning:", warn)
+	}
+	fmt.Fprintf(w, "wrote: %v\n", r.Outputs)
+}
