@@ -13,10 +13,10 @@ import (
 
 // DataSpec says where an observed catalog is and how to read and cut it.
 type DataSpec struct {
-	Path      string          // the catalog file (CSV or ECSV, optionally gzip-compressed), as named in messages
+	Path string // the catalog file (CSV or ECSV, optionally gzip-compressed), as named in messages
 	// Open, if not nil, opens the catalog instead of os.Open(Path): for
 	// catalogs inside an embedded file system.
-	Open func() (io.ReadCloser, error)
+	Open      func() (io.ReadCloser, error)
 	SHA256    string          // expected hex SHA-256 of the file's bytes; "" skips the check
 	Mapping   catalog.Mapping // column names; Color is B−V, AbsMag is M_V
 	SunZPc    float64         // z☉ added to d sin b when heights are derived from parallax
