@@ -5,6 +5,8 @@ import (
 	"math/rand/v2"
 
 	"gonum.org/v1/gonum/stat/distuv"
+
+	"spinpop/model"
 )
 
 // drawMock fills dst with a mock catalog's counts: for a free
@@ -50,16 +52,9 @@ func drawMock(dst, mu []float64, n int, free bool, r *rand.Rand) {
 // of a run seeded with seed: like model.ChunkStream, a function of
 // (seed, i) only, so results do not depend on the number of workers.
 func replicateStream(seed uint64, i int) *rand.Rand {
-	a := splitmix(seed ^ 0x243f6a8885a308d3)
-	b := splitmix(a ^ uint64(i)*0x9e3779b97f4a7c15)
-	return rand.New(rand.NewPCG(a, b))
-}
-
-func splitmix(x uint64) uint64 {
-	x += 0x9e3779b97f4a7c15
-	x = (x ^ (x >> 30)) * 0xbf58476d1ce4e5b9
-	x = (x ^ (x >> 27)) * 0x94d049bb133111eb
-	return x ^ (x >> 31)
+	// A different seed from the run's own chunk streams, so replicates
+	// never reuse the numbers that made the templates.
+	return model.ChunkStream(seed^0x243f6a8885a308d3, i)
 }
 
 // Asimov returns the templates' expected counts under weights, summed to

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"spinpop/model"
 )
 
 // Space is the comparison space: B−V color × log10 rotation period (days) ×
@@ -179,19 +180,4 @@ func (s Space) validate() error {
 }
 
 // binOf returns the half-open bin of x (last bin closed) or −1.
-func binOf(edges []float64, x float64) int {
-	n := len(edges) - 1
-	if n < 1 || !(x >= edges[0] && x <= edges[n]) {
-		return -1
-	}
-	lo, hi := 0, n
-	for hi-lo > 1 {
-		mid := (lo + hi) / 2
-		if x >= edges[mid] {
-			lo = mid
-		} else {
-			hi = mid
-		}
-	}
-	return lo
-}
+func binOf(edges []float64, x float64) int { return model.BinIndex(edges, x) }

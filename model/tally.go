@@ -92,7 +92,7 @@ func (t *Tally) Add(c *Chunk) {
 			if det {
 				t.AgeDetected[k]++
 			}
-			if ci := bin(t.ColorEdges, c.ObsBV[i]); ci >= 0 {
+			if ci := BinIndex(t.ColorEdges, c.ObsBV[i]); ci >= 0 {
 				t.ColorEligible[ci]++
 				if det {
 					t.ColorDetected[ci]++
@@ -115,12 +115,12 @@ func (t *Tally) Add(c *Chunk) {
 		if f&(FlagHalfAlias|FlagDoubleAlias) != 0 {
 			t.Aliased++
 		}
-		ci := bin(t.ColorEdges, c.ObsBV[i])
-		pi := bin(t.LogPerEdges, math.Log10(c.MeasPeriodD[i]))
+		ci := BinIndex(t.ColorEdges, c.ObsBV[i])
+		pi := BinIndex(t.LogPerEdges, math.Log10(c.MeasPeriodD[i]))
 		if ci >= 0 && pi >= 0 {
 			t.PeriodColor[ci][pi]++
 		}
-		if zi := bin(t.AbsZEdgesPc, math.Abs(c.ZPc[i])); zi >= 0 {
+		if zi := BinIndex(t.AbsZEdgesPc, math.Abs(c.ZPc[i])); zi >= 0 {
 			t.AbsZ[zi]++
 		}
 	}
@@ -129,9 +129,10 @@ func (t *Tally) Add(c *Chunk) {
 // Selected is the number of stars in the final catalogue.
 func (t *Tally) Selected() int64 { return t.StepCounts[len(Steps)-1] }
 
-// bin returns the index of the half-open bin [e_i, e_i+1) holding x (the
-// last bin is closed), or -1 outside the edges.
-func bin(edges []float64, x float64) int {
+// BinIndex returns the index of the half-open bin [e_i, e_i+1) holding x
+// (the last bin is closed), or -1 outside the edges or for NaN. edges must
+// increase.
+func BinIndex(edges []float64, x float64) int {
 	n := len(edges) - 1
 	if n < 1 || !(x >= edges[0] && x <= edges[n]) {
 		return -1

@@ -44,9 +44,9 @@ func TestTallyCountsFollowFlags(t *testing.T) {
 
 func TestBinEdges(t *testing.T) {
 	e := []float64{0, 1, 2}
-	assert.Equal(t, 0, bin(e, 0))
-	assert.Equal(t, 1, bin(e, 1))
-	assert.Equal(t, 1, bin(e, 2), "the last edge belongs to the last bin")
-	assert.Equal(t, -1, bin(e, 2.0001))
-	assert.Equal(t, -1, bin(e, -1e-9))
+	assert.Equal(t, 0, BinIndex(e, 0))
+	assert.Equal(t, 1, BinIndex(e, 1))
+	assert.Equal(t, 1, BinIndex(e, 2), "the last edge belongs to the last bin")
+	assert.Equal(t, -1, BinIndex(e, 2.0001))
+	assert.Equal(t, -1, BinIndex(e, -1e-9))
 }

@@ -211,26 +211,32 @@ func ageBiasPlot(t *model.Tally) (*plot.Plot, error) {
 	return p, nil
 }
 
-// detectedFractionPlot is the fraction of dwarfs inside the magnitude
-// limits whose period the survey detected, against age.
-func detectedFractionPlot(t *model.Tally) (*plot.Plot, error) {
+// fractionPlot draws num/den per bin as a step line (0 where den is 0).
+func fractionPlot(title, xLabel string, edges []float64, num, den []int64, c color.Color) (*plot.Plot, error) {
 	p := plot.New()
-	p.Title.Text = "Period detected, by age"
-	p.X.Label.Text = "age (Gyr)"
+	p.Title.Text = title
+	p.X.Label.Text = xLabel
 	p.Y.Label.Text = "detected fraction"
-	y := make([]float64, len(t.AgeEligible))
+	y := make([]float64, len(den))
 	for k := range y {
-		if t.AgeEligible[k] > 0 {
-			y[k] = float64(t.AgeDetected[k]) / float64(t.AgeEligible[k])
+		if den[k] > 0 {
+			y[k] = float64(num[k]) / float64(den[k])
 		}
 	}
-	l, err := stepLine(t.AgeEdgesGyr, y, overlayColors[1])
+	l, err := stepLine(edges, y, c)
 	if err != nil {
 		return nil, err
 	}
 	p.Add(l)
 	p.Y.Min, p.Y.Max = 0, 1.02
 	return p, nil
+}
+
+// detectedFractionPlot is the fraction of eligible dwarfs (in the
+// magnitude limits, color cut and main-sequence band) whose period the
+// survey detected, against age.
+func detectedFractionPlot(t *model.Tally) (*plot.Plot, error) {
+	return fractionPlot("Period detected, by age", "age (Gyr)", t.AgeEdgesGyr, t.AgeDetected, t.AgeEligible, overlayColors[1])
 }
 
 // writePlot renders one plot to PNG.
@@ -265,25 +271,7 @@ func writeGrid(path string, grid [][]*plot.Plot, w, h vg.Length) error {
 	})
 }
 
-// detectedByColorPlot is the fraction of eligible dwarfs (in the magnitude
-// limits, color cut and main-sequence band) whose period was detected,
-// against color.
+// detectedByColorPlot is the same against observed color.
 func detectedByColorPlot(t *model.Tally) (*plot.Plot, error) {
-	p := plot.New()
-	p.Title.Text = "Period detected, by color"
-	p.X.Label.Text = "B−V (mag, as observed)"
-	p.Y.Label.Text = "detected fraction"
-	y := make([]float64, len(t.ColorEligible))
-	for k := range y {
-		if t.ColorEligible[k] > 0 {
-			y[k] = float64(t.ColorDetected[k]) / float64(t.ColorEligible[k])
-		}
-	}
-	l, err := stepLine(t.ColorEdges, y, overlayColors[2])
-	if err != nil {
-		return nil, err
-	}
-	p.Add(l)
-	p.Y.Min, p.Y.Max = 0, 1.02
-	return p, nil
+	return fractionPlot("Period detected, by color", "B−V (mag, as observed)", t.ColorEdges, t.ColorDetected, t.ColorEligible, overlayColors[2])
 }
