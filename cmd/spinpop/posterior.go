@@ -29,7 +29,7 @@ func runPosterior(args []string, stdout, stderr io.Writer) error {
 // posteriorCmd is the command with its context: cancelling ctx (Ctrl-C) stops it
 // and leaves no partial output.
 func posteriorCmd(ctx context.Context, args []string, stdout, stderr io.Writer) error {
-	fs := newFlagSet("posterior", "posterior SCENARIO --out DIR [--walkers 32] [--steps 3000] [--burn 1000] [--seed N]\n"+
+	fs := newFlagSet("posterior", "posterior SCENARIO --out DIR [--walkers 32] [--steps 4000] [--burn 1000] [--seed N]\n"+
 		"         [--json] [--templates DIR] [--force] [--threads N]",
 		"Sample the posterior of the burst model's free parameters (compare.free) given the observed\n"+
 			"catalog, with the affine-invariant ensemble sampler (Goodman & Weare 2010) and priors uniform or\n"+
