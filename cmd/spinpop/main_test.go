@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 	"os"
 	"path/filepath"
+	"runtime"
 	"strconv"
 	"strings"
 	"testing"
@@ -104,8 +105,11 @@ func TestSimulateRefusesNonEmptyFolder(t *testing.T) {
 func TestSimulateSameBytesForAnyThreadCount(t *testing.T) {
 	sc := smallScenario(t, 120000)
 	d1, d2 := filepath.Join(t.TempDir(), "a"), filepath.Join(t.TempDir(), "b")
+	prev := runtime.GOMAXPROCS(1)
+	defer runtime.GOMAXPROCS(prev)
 	code, _, errs := runCLI("simulate", sc, "--out", d1, "--threads", "1")
 	require.Equal(t, 0, code, errs)
+	runtime.GOMAXPROCS(2)
 	code, _, errs = runCLI("simulate", sc, "--out", d2, "--threads", "2")
 	require.Equal(t, 0, code, errs)
 	c1, err := os.ReadFile(filepath.Join(d1, "catalog.csv"))
