@@ -42,10 +42,10 @@ parallax_mas = "plx_mas"
 ra_deg = "ra_deg"
 dec_deg = "dec_deg"
 [compare]
-template_stars = 3_000_000
+template_stars = 4_000_000
 bootstrap = 30
-color_bins = 10
-log_period_bins = 20
+color_bins = 8
+log_period_bins = 16
 ` + extra
 	p := filepath.Join(dir, "fit-small.toml")
 	require.NoError(t, os.WriteFile(p, []byte(text), 0o644))
