@@ -60,3 +60,35 @@ func pickAlias(x uint64, e []aliasEntry) int {
 	}
 	return int(e[hi].alias)
 }
+
+// classEntry is a column of an alias table over height classes that also
+// carries the density bound of the column's class and of its alias, so a
+// draw reads one entry for both.
+type classEntry struct {
+	prob          float32
+	alias         uint32
+	env, envAlias float32
+}
+
+// classTable builds the alias table over classes of weights w, with the
+// bounds env of each class.
+func classTable(w []float64, env []bound) []classEntry {
+	a := make([]aliasEntry, len(w))
+	buildAlias(w, a)
+	e := make([]classEntry, len(w))
+	for i, x := range a {
+		e[i] = classEntry{prob: x.prob, alias: x.alias, env: env[i].hi, envAlias: env[x.alias].hi}
+	}
+	return e
+}
+
+// pickClass draws a class from e as pickAlias does, and returns its bound.
+func pickClass(x uint64, e []classEntry) (int, float64) {
+	hi, lo := bits.Mul64(x, uint64(len(e)))
+	coin := float32(lo>>40) * (1.0 / (1 << 24))
+	c := &e[hi]
+	if coin < c.prob {
+		return int(hi), float64(c.env)
+	}
+	return int(c.alias), float64(c.envAlias)
+}

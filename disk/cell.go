@@ -11,19 +11,19 @@ import "math"
 // A direction uniform in solid angle over the cell has cos ρ and φ uniform
 // over their ranges, which makes drawing one cheap.
 type Cell struct {
-	pole, e1, e2 vec3    // pole and two unit vectors completing a right-handed frame
-	cMin, cMax   float64 // range of cos ρ
-	phi1, phi2   float64 // azimuth range in radians, from e1 toward e2
-	galactic     bool    // pole is the north Galactic pole and e1 points to l = 0
+	// What Draw reads comes first, in two cache lines. mid and side
+	// complete the frame at the middle azimuth φm, mid = cos φm e1 +
+	// sin φm e2 and side = −sin φm e1 + cos φm e2; Draw turns from mid by
+	// at most halfPhi.
+	pole, mid, side vec3
+	cMin, cMax      float64 // range of cos ρ
+	halfPhi         float64
+	phi1, phi2      float64 // azimuth range in radians, from e1 toward e2
+	galactic        bool    // pole is the north Galactic pole and e1 points to l = 0
 
+	e1, e2               vec3    // with pole, a right-handed frame
 	sinBMin, sinBMax     float64 // bounds on sin b over the cell (exact for galactic cells)
 	distMinPc, distMaxPc float64
-
-	// The frame at the middle azimuth φm, mid = cos φm e1 + sin φm e2 and
-	// side = −sin φm e1 + cos φm e2, and the half-width of the azimuth
-	// range: Draw turns from mid by at most halfPhi.
-	mid, side vec3
-	halfPhi   float64
 }
 
 // newCell returns the cell between angular radii rho1 < rho2 and azimuths
@@ -133,8 +133,12 @@ func (c *Cell) drawDirection(cr, v float64) vec3 {
 	}
 }
 
-// smallAngleRad bounds the arguments of sinCosSmall.
-const smallAngleRad = 0.25
+// smallAngleRad bounds the arguments of sinCosSmall; below tinyAngleRad it
+// needs fewer terms.
+const (
+	smallAngleRad = 0.25
+	tinyAngleRad  = 0.02
+)
 
 // sinCosSmall returns sin x and cos x for |x| ≤ smallAngleRad from their
 // Taylor series in Horner form, with constant reciprocals so that nothing
@@ -142,6 +146,13 @@ const smallAngleRad = 0.25
 // there, under the rounding of the result.
 func sinCosSmall(x float64) (sin, cos float64) {
 	x2 := x * x
+	if x2 <= tinyAngleRad*tinyAngleRad {
+		// Fewer terms for the usual narrow cell: the first omitted,
+		// x⁹/9! and x¹⁰/10!, are below 2e−21 for |x| ≤ tinyAngleRad.
+		sin = x * (1 - x2*(1.0/6)*(1-x2*(1.0/20)*(1-x2*(1.0/42))))
+		cos = 1 - x2*0.5*(1-x2*(1.0/12)*(1-x2*(1.0/30)*(1-x2*(1.0/56))))
+		return sin, cos
+	}
 	sin = x * (1 - x2*(1.0/6)*(1-x2*(1.0/20)*(1-x2*(1.0/42)*(1-x2*(1.0/72)*(1-x2*(1.0/110))))))
 	cos = 1 - x2*0.5*(1-x2*(1.0/12)*(1-x2*(1.0/30)*(1-x2*(1.0/56)*(1-x2*(1.0/90)*(1-x2*(1.0/132))))))
 	return sin, cos

@@ -9,7 +9,10 @@
 // inside a field depends on height. A Sampler tabulates, once per scenario,
 // how much of each age bin's unit surface density falls inside a field
 // (BinIntegral) and draws exact positions from that bin's density inside the
-// field (Draw).
+// field (Draw). A JointSampler (Sampler.Joint) draws the age bin and the
+// position together, which a population generator prefers: the same law as
+// drawing a bin and then a position, without losing the points that the
+// radial profile rejects.
 //
 // Conventions. Distances and heights are in pc, Galactocentric radii of the
 // Sun and scale lengths in kpc, angles in degrees, velocity dispersions in

@@ -28,7 +28,7 @@ import (
 // Draw allocates nothing; r is the only source of randomness.
 func (s *Sampler) Draw(k int, r *rand.Rand) (lDeg, bDeg, dPc, zPc float64, accepted bool) {
 	p := s.propose(k, r)
-	if s.invScalePc != 0 && !expNegBelow(r.Float64(), s.radialExcess(&p)) {
+	if s.invScalePc != 0 && !expNegBelow(p.radialUniform(r), s.radialExcess(&p)) {
 		return math.NaN(), math.NaN(), p.dPc, p.zPc, false
 	}
 	lDeg, bDeg = p.angles()
@@ -42,6 +42,22 @@ type proposal struct {
 	uc, phi  float64 // for galactic cells
 	u        vec3    // direction, for other cells
 	dPc, zPc float64
+
+	// spare is 32 random bits the proposal drew but did not use, when
+	// hasSpare: a fresh uniform for the radial rejection.
+	spare    uint32
+	hasSpare bool
+}
+
+// radialUniform returns a uniform number in [0, 1) independent of the
+// proposal: its spare bits if it has them, otherwise fresh ones from r.
+// Whether the spare bits were used depends only on other bits, so either
+// way the number is uniform and independent of the point.
+func (p *proposal) radialUniform(r *rand.Rand) float64 {
+	if p.hasSpare {
+		return unit32(uint64(p.spare))
+	}
+	return unit32(r.Uint64())
 }
 
 // propose draws a point from bin k's density ν_k(z) over the field, exactly
@@ -50,49 +66,62 @@ func (s *Sampler) propose(k int, r *rand.Rand) proposal {
 	t := &s.bins[k]
 	var p proposal
 	for {
-		ci := pickAlias(r.Uint64(), t.classes)
-		env := float64(t.bounds[ci].hi)
+		ci, env := pickClass(r.Uint64(), t.classes)
 		first := s.classStart[ci]
 		b := &s.blocks[int(first)+pickAlias(r.Uint64(), s.blockAlias[first:s.classStart[ci+1]])]
-		c := &s.cells[b.cell]
-		x := r.Uint64()
-		sinB := c.cMin + unit32(x>>32)*(c.cMax-c.cMin)
-		if c.galactic {
-			p.galactic, p.uc = true, sinB
-			p.phi = c.phi1 + unit32(x)*(c.phi2-c.phi1)
-		} else {
-			p.galactic = false
-			p.u = c.drawDirection(sinB, unit32(x))
-			sinB = p.u.z
-		}
-		// Distance: a mixture of the largest of one, two or three uniforms
-		// (see block).
-		x = r.Uint64()
-		x2 := r.Uint64()
-		f := unit32(x)
-		if sel := uint32(x >> 32); sel >= b.flatBelow {
-			f = max(f, unit32(x2))
-			if sel >= b.linBelow {
-				f = max(f, unit32(r.Uint64()))
-			}
-		}
-		p.dPc = b.dLoPc + f*b.dSpanPc
-		p.zPc = p.dPc*sinB + s.zSunPc
-		y := unit32(x2>>32) * env
-		// ν_k falls with |z|: between grid nodes i and i+1 it lies within
-		// [lo(i+1), hi(i)].
-		if i := int(math.Abs(p.zPc) * s.invZStepPc); i+1 < len(t.bounds) {
-			if y <= float64(t.bounds[i+1].lo) {
-				return p
-			}
-			if y > float64(t.bounds[i].hi) {
-				continue
-			}
-		}
-		if y <= t.prof.rel(p.zPc) {
+		if s.trial(t, env, b, r, &p) {
 			return p
 		}
 	}
+}
+
+// trial draws a point uniform in block b into p and keeps it with
+// probability ν(z)/(ν(0) env) for the profile of t; env must bound ν/ν(0)
+// over the block. It reports whether the point was kept.
+func (s *Sampler) trial(t *binTable, env float64, b *block, r *rand.Rand, p *proposal) (kept bool) {
+	c := &s.cells[b.cell]
+	x := r.Uint64()
+	sinB := c.cMin + unit32(x>>32)*(c.cMax-c.cMin)
+	p.galactic = c.galactic
+	if c.galactic {
+		p.uc = sinB
+		p.phi = c.phi1 + unit32(x)*(c.phi2-c.phi1)
+	} else {
+		p.u = c.drawDirection(sinB, unit32(x))
+		sinB = p.u.z
+	}
+	x = r.Uint64()
+	x2 := r.Uint64()
+	p.dPc, p.hasSpare = s.shells[b.shell].distance(x, uint32(x2), r)
+	p.spare = uint32(x2)
+	p.zPc = p.dPc*sinB + s.zSunPc
+	y := unit32(x2>>32) * env
+	// ν falls with |z|: between grid nodes i and i+1 it lies within
+	// [lo(i+1), hi(i)].
+	if i := int(math.Abs(p.zPc) * s.invZStepPc); i+1 < len(t.bounds) {
+		if y <= float64(t.bounds[i+1].lo) {
+			return true
+		}
+		if y > float64(t.bounds[i].hi) {
+			return false
+		}
+	}
+	return y <= t.prof.rel(p.zPc)
+}
+
+// distance draws a distance in the shell, uniform in volume, from the
+// random bits x and, when the mixture needs them (see shell), spare and
+// then r. unused reports that spare was not needed.
+func (sh *shell) distance(x uint64, spare uint32, r *rand.Rand) (dPc float64, unused bool) {
+	f := unit32(x)
+	if sel := uint32(x >> 32); sel >= sh.flatBelow {
+		f = max(f, unit32(uint64(spare)))
+		if sel >= sh.linBelow {
+			f = max(f, unit32(r.Uint64()))
+		}
+		return sh.dLoPc + f*sh.dSpanPc, false
+	}
+	return sh.dLoPc + f*sh.dSpanPc, true
 }
 
 // sinB returns the sine of the proposal's Galactic latitude.
@@ -107,6 +136,12 @@ func (p *proposal) sinB() float64 {
 // radius, so that exp(−radialExcess) is its radial weight over the largest
 // one in the field.
 func (s *Sampler) radialExcess(p *proposal) float64 {
+	return (math.Sqrt(nonNeg(s.r2Pc2(p))) - s.rMinPc) * s.invScalePc
+}
+
+// r2Pc2 returns the square of the proposal's Galactocentric radius,
+// R² = R0² − 2 R0 d cos b cos l + d² cos² b.
+func (s *Sampler) r2Pc2(p *proposal) float64 {
 	sinB := p.sinB()
 	var cosBCosL float64
 	if p.galactic {
@@ -114,10 +149,8 @@ func (s *Sampler) radialExcess(p *proposal) float64 {
 	} else {
 		cosBCosL = p.u.x
 	}
-	// R² = R0² − 2 R0 d cos b cos l + d² cos² b.
 	d := p.dPc
-	rho2 := s.r0Pc*s.r0Pc - 2*s.r0Pc*d*cosBCosL + d*d*(1-sinB*sinB)
-	return (math.Sqrt(nonNeg(rho2)) - s.rMinPc) * s.invScalePc
+	return s.r0Pc*s.r0Pc - 2*s.r0Pc*d*cosBCosL + d*d*(1-sinB*sinB)
 }
 
 // angles returns the proposal's Galactic longitude in [0, 360) and

@@ -14,9 +14,13 @@ import (
 // of distance — and draws from each block by rejection against the largest
 // density in it, so draws are exact whatever the block size; finer blocks
 // only raise the acceptance rate (see ProposalEfficiency) at the cost of
-// memory, 16 bytes per block and age bin. The defaults keep the rate above
-// ≈ 0.9 for vertical dispersions down to ≈ 5 km/s in a 1 kpc sphere, and
-// the tables of 40 bins within 10.5 MB.
+// memory, 16 bytes per block shared by all age bins (36 with a
+// JointSampler). An age bin's own tables are indexed by height, not by
+// block: at most 1025 entries of 24 bytes (and 16 more in a
+// JointSampler). The defaults keep the rate above ≈ 0.9 for vertical
+// dispersions down to ≈ 5 km/s in a 1 kpc sphere, with all tables of 40
+// bins in ≈ 1.2 MB (≈ 2.2 MB with a JointSampler), about a core's
+// level-2 cache.
 type SamplerOptions struct {
 	// CellDzPc is the height span across a cell at its largest distance
 	// (default 10 pc).
@@ -50,35 +54,42 @@ func (o SamplerOptions) withDefaults() (SamplerOptions, error) {
 	return o, nil
 }
 
-// block is a cell times a distance shell [dLoPc, dLoPc + dSpanPc].
+// block is a cell times a distance shell, both by index: the cells of a
+// field share their shells (all of them for a cone or a sphere), so blocks
+// stay small and a draw reads little memory.
+type block struct {
+	cell, shell int32
+}
+
+// shell is a distance range [dLoPc, dLoPc + dSpanPc].
 //
 // Uniform in volume, distance has density ∝ d² over the shell. Written as
 // d = d_lo + Δ t, t ∈ [0, 1], that density is ∝ d_lo² + 2 d_lo Δ t + Δ² t²,
 // a mixture with weights d_lo², d_lo Δ and Δ²/3 of a uniform t, the larger
-// of two uniforms (density 2t) and the largest of three (density 3t²). Draw
-// picks the component by comparing a 32-bit uniform with flatBelow and
-// linBelow, which saves a cube root per point: far shells are almost flat,
-// so one uniform usually does.
-type block struct {
-	cell                int32
+// of two uniforms (density 2t) and the largest of three (density 3t²).
+// distance picks the component by comparing a 32-bit uniform with
+// flatBelow and linBelow, which saves a cube root per point: far shells
+// are almost flat, so one uniform usually does.
+type shell struct {
 	flatBelow, linBelow uint32
 	dLoPc, dSpanPc      float64
 }
 
-func newBlock(cell int, loPc, hiPc float64) block {
+func newShell(loPc, hiPc float64) shell {
 	span := hiPc - loPc
 	w0, w1, w2 := loPc*loPc, loPc*span, span*span/3
 	sum := w0 + w1 + w2
 	threshold := func(p float64) uint32 { return uint32(math.Min(math.Floor(p*(1<<32)), math.MaxUint32)) }
-	return block{cell: int32(cell), flatBelow: threshold(w0 / sum), linBelow: threshold((w0 + w1) / sum), dLoPc: loPc, dSpanPc: span}
+	return shell{flatBelow: threshold(w0 / sum), linBelow: threshold((w0 + w1) / sum), dLoPc: loPc, dSpanPc: span}
 }
 
-// dHiPc returns the outer distance of the block's shell.
-func (b *block) dHiPc() float64 { return b.dLoPc + b.dSpanPc }
+// dHiPc returns the outer distance of the shell.
+func (sh *shell) dHiPc() float64 { return sh.dLoPc + sh.dSpanPc }
 
 // volumePc3 returns the block's volume.
 func (s *Sampler) volumePc3(b *block) float64 {
-	lo, hi := b.dLoPc, b.dHiPc()
+	sh := &s.shells[b.shell]
+	lo, hi := sh.dLoPc, sh.dHiPc()
 	return s.cells[b.cell].SolidAngleSr() * (hi*hi*hi - lo*lo*lo) / 3
 }
 
@@ -92,7 +103,7 @@ type binTable struct {
 	prof       profile
 	integral   float64      // ∫ν dV over the field, pc²
 	envelope   float64      // ∫ of the class-wise upper bound, pc²
-	classes    []aliasEntry // height classes, by upper bound × class volume
+	classes    []classEntry // height classes, by upper bound × class volume
 	bounds     []bound      // ν/ν(0) at |z| = i·zStepPc
 	components int
 }
@@ -130,6 +141,7 @@ type binTable struct {
 // each with its own *rand.Rand.
 type Sampler struct {
 	cells  []Cell
+	shells []shell
 	blocks []block // sorted by height class
 	bins   []binTable
 
@@ -170,9 +182,9 @@ func NewSampler(field Field, sun Sun, sheet Sheet, radial Radial, sigmasKms []fl
 //
 // For every block and bin it integrates ν_k(z) d² over the block with a
 // Gauss–Legendre product rule (3 or 3×3 nodes over the solid angle, 4 in
-// distance) and bounds ν_k from above and below at the block's extreme
-// heights. The integrals sum to BinIntegral; the upper bounds weight the
-// alias table from which Draw picks a block.
+// distance); the integrals sum to BinIntegral. For every bin it brackets ν_k
+// on the height grid; the upper brackets times the class volumes weight the
+// alias table from which Draw picks a height class.
 func NewMixtureSampler(field Field, sun Sun, sheet Sheet, radial Radial, bins []Mixture, opts SamplerOptions) (*Sampler, error) {
 	if field == nil {
 		return nil, fmt.Errorf("disk: NewSampler got a nil field; want a Sphere, Cone or ConeList")
@@ -252,16 +264,27 @@ func (s *Sampler) cutField(field Field, opts SamplerOptions) {
 		f := math.Max(1.02, math.Cbrt(float64(n)/float64(opts.MaxBlocks)))
 		dz, shell = dz*f, shell*f
 	}
+	// Cells with the same distance range share one set of shells.
+	first := map[[2]float64]int{}
 	for i := range s.cells {
 		c := &s.cells[i]
 		m := shellCount(c, s.shellPc)
-		for j := range m {
-			lo := c.distMinPc + (c.distMaxPc-c.distMinPc)*float64(j)/float64(m)
-			hi := c.distMinPc + (c.distMaxPc-c.distMinPc)*float64(j+1)/float64(m)
-			if j == m-1 {
-				hi = c.distMaxPc
+		key := [2]float64{c.distMinPc, c.distMaxPc}
+		base, ok := first[key]
+		if !ok {
+			base = len(s.shells)
+			first[key] = base
+			for j := range m {
+				lo := c.distMinPc + (c.distMaxPc-c.distMinPc)*float64(j)/float64(m)
+				hi := c.distMinPc + (c.distMaxPc-c.distMinPc)*float64(j+1)/float64(m)
+				if j == m-1 {
+					hi = c.distMaxPc
+				}
+				s.shells = append(s.shells, newShell(lo, hi))
 			}
-			s.blocks = append(s.blocks, newBlock(i, lo, hi))
+		}
+		for j := range m {
+			s.blocks = append(s.blocks, block{cell: int32(i), shell: int32(base + j)})
 		}
 	}
 }
@@ -295,7 +318,8 @@ func (s *Sampler) nodes(invZ0Pc float64) (lc, weight []float64) {
 	for _, b := range s.blocks {
 		c := &s.cells[b.cell]
 		q = c.quadrature(q)
-		lo, hi := b.dLoPc, b.dHiPc()
+		sh := &s.shells[b.shell]
+		lo, hi := sh.dLoPc, sh.dHiPc()
 		mid, half := 0.5*(hi+lo), 0.5*(hi-lo)
 		for _, nd := range q {
 			for j, x := range gl4x {
@@ -319,7 +343,8 @@ func (s *Sampler) classify() {
 	zFarMax := 0.0
 	for i, b := range s.blocks {
 		c := &s.cells[b.cell]
-		zn, zf := heightExtremes(b.dLoPc, b.dHiPc(), c.sinBMin, c.sinBMax, s.zSunPc)
+		sh := &s.shells[b.shell]
+		zn, zf := heightExtremes(sh.dLoPc, sh.dHiPc(), c.sinBMin, c.sinBMax, s.zSunPc)
 		zNear[i] = math.Abs(zn)
 		zFarMax = math.Max(zFarMax, zf)
 	}
@@ -390,9 +415,8 @@ func (s *Sampler) buildBin(p profile, components int, lc, nodeW []float64, perBl
 	}
 	t.integral = integral * p.peakPc
 	t.envelope = envelope * p.peakPc
-	t.classes = make([]aliasEntry, len(w))
 	if envelope > 0 {
-		buildAlias(w, t.classes)
+		t.classes = classTable(w, t.bounds)
 	}
 	return t
 }

@@ -302,11 +302,40 @@ func TestDrawRadialRejection(t *testing.T) {
 	const sigma = 20.0
 	s, err := NewSampler(Sphere{RadiusPc: R}, sun, testSheet, radial, []float64{sigma}, SamplerOptions{})
 	require.NoError(t, err)
+	assert.InEpsilon(t, math.Exp(R/(radial.ScaleLengthKpc*1000)), s.RadialAcceptanceMax(), 1e-12)
+
+	nu := func(z float64) float64 { return testSheet.TracerDensity(z, sigma) }
+	weighted, inner := radialReference(sun, R, radial, nu)
+	wantAcc := weighted / (s.RadialAcceptanceMax() * s.BinIntegral(0))
+	wantInner := inner / weighted
+
+	rng := rand.New(rand.NewPCG(61, 62))
+	const n = 200000
+	kept, keptInner := 0, 0
+	for range n {
+		l, _, _, _, ok := s.Draw(0, rng)
+		if ok {
+			kept++
+			if math.Cos(l*degToRad) > 0 {
+				keptInner++
+			}
+		}
+	}
+	acc := float64(kept) / n
+	assert.InDelta(t, wantAcc, acc, 4*math.Sqrt(wantAcc*(1-wantAcc)/n))
+	fin := float64(keptInner) / float64(kept)
+	assert.InDelta(t, wantInner, fin, 4*math.Sqrt(wantInner*(1-wantInner)/float64(kept)))
+	assert.Greater(t, fin, 0.5)
+}
+
+// radialReference returns ∫ν w dV over a sphere of radius R about the Sun,
+// w = exp(−(R_gc − R0)/h), and the part of it on the inner half-space
+// (toward the Galactic centre), by cylindrical quadrature about the Sun:
+// G(ρ) = ∫₀^ρ ρ' dρ' ∫ dφ w over all φ and over the inner half (cos φ > 0),
+// then Simpson in height. Common practice, no source.
+func radialReference(sun Sun, R float64, radial Radial, nu func(z float64) float64) (weighted, inner float64) {
 	h := radial.ScaleLengthKpc * 1000
 	r0 := sun.RKpc * 1000
-	assert.InEpsilon(t, math.Exp(R/h), s.RadialAcceptanceMax(), 1e-12)
-
-	// G(ρ) = ∫₀^ρ ρ' dρ' ∫ dφ w, all φ and the inner half (cos φ > 0).
 	const nRho, nPhi = 2000, 720
 	gAll := make([]float64, nRho+1)
 	gIn := make([]float64, nRho+1)
@@ -335,33 +364,13 @@ func TestDrawRadialRejection(t *testing.T) {
 		i := min(int(x), nRho-1)
 		return g[i] + (x-float64(i))*(g[i+1]-g[i])
 	}
-	nu := func(z float64) float64 { return testSheet.TracerDensity(z, sigma) }
-	weighted := simpson(func(hz float64) float64 {
+	weighted = simpson(func(hz float64) float64 {
 		return nu(sun.ZPc+hz) * interp(gAll, math.Sqrt(math.Max(0, R*R-hz*hz)))
 	}, -R, R, 4000)
-	inner := simpson(func(hz float64) float64 {
+	inner = simpson(func(hz float64) float64 {
 		return nu(sun.ZPc+hz) * interp(gIn, math.Sqrt(math.Max(0, R*R-hz*hz)))
 	}, -R, R, 4000)
-	wantAcc := weighted / (s.RadialAcceptanceMax() * s.BinIntegral(0))
-	wantInner := inner / weighted
-
-	rng := rand.New(rand.NewPCG(61, 62))
-	const n = 200000
-	kept, keptInner := 0, 0
-	for range n {
-		l, _, _, _, ok := s.Draw(0, rng)
-		if ok {
-			kept++
-			if math.Cos(l*degToRad) > 0 {
-				keptInner++
-			}
-		}
-	}
-	acc := float64(kept) / n
-	assert.InDelta(t, wantAcc, acc, 4*math.Sqrt(wantAcc*(1-wantAcc)/n))
-	fin := float64(keptInner) / float64(kept)
-	assert.InDelta(t, wantInner, fin, 4*math.Sqrt(wantInner*(1-wantInner)/float64(kept)))
-	assert.Greater(t, fin, 0.5)
+	return weighted, inner
 }
 
 func TestRadialAcceptanceMaxCone(t *testing.T) {

@@ -40,6 +40,15 @@ var binaryFractionNodes = [...]struct{ massMsun, frac float64 }{
 	{2.0, 0.50},
 }
 
+// binaryFractionInvLogStep[i] is 1/ln(m_{i+1}/m_i) between the nodes.
+var binaryFractionInvLogStep = func() (inv [len(binaryFractionNodes) - 1]float64) {
+	n := binaryFractionNodes
+	for i := range inv {
+		inv[i] = 1 / math.Log(n[i+1].massMsun/n[i].massMsun)
+	}
+	return inv
+}()
+
 // BinaryFraction is the approximate fraction of primaries of the given mass
 // that have a companion (see binaryFractionNodes for the sources). It rises
 // monotonically from 0.22 below 0.08 M☉ to 0.5 above 2 M☉ and is 0.44 at
@@ -52,7 +61,7 @@ func BinaryFraction(primaryMassMsun float64) float64 {
 	for i := 1; i < len(n); i++ {
 		if primaryMassMsun <= n[i].massMsun {
 			a, b := n[i-1], n[i]
-			t := math.Log(primaryMassMsun/a.massMsun) / math.Log(b.massMsun/a.massMsun)
+			t := math.Log(primaryMassMsun/a.massMsun) * binaryFractionInvLogStep[i-1]
 			return a.frac + t*(b.frac-a.frac)
 		}
 	}
@@ -88,10 +97,27 @@ func Companion(primary float64, r *rand.Rand, frac FracFunc, qMin float64) (mass
 	} else {
 		f = frac(primary)
 	}
+	return companionFrom(primary, u, v, f, qMin)
+}
+
+// companionFrom is Companion given its two uniform numbers u and v and the
+// companion fraction f: a companion exists when u < f, with mass ratio
+// qMin + v (1 − qMin). A caller that knows f lies in [fLo, fHi] may pass
+// fLo whenever u < fLo or u ≥ fHi, which decides alike.
+func companionFrom(primary, u, v, f, qMin float64) (massMsun float64, has bool) {
 	if !(u < f) {
 		return 0, false
 	}
-	qMin = math.Min(math.Max(qMin, 0), 1)
+	qMin = min(max(qMin, 0), 1)
 	q := qMin + v*(1-qMin)
 	return q * primary, true
+}
+
+// binaryFractionRange returns the smallest and largest BinaryFraction.
+func binaryFractionRange() (lo, hi float64) {
+	lo, hi = math.Inf(1), math.Inf(-1)
+	for _, n := range binaryFractionNodes {
+		lo, hi = min(lo, n.frac), max(hi, n.frac)
+	}
+	return lo, hi
 }

@@ -122,6 +122,36 @@ func TestCompanionDefaultsAndStream(t *testing.T) {
 	assert.Equal(t, a.Float64(), b.Float64(), "streams stay in step whatever the outcome")
 }
 
+// The generator decides companions with companionFrom and the fraction
+// worked out only where u could depend on it; that must decide exactly as
+// Companion's rule u < f with the full fraction. BinaryFraction with its
+// precomputed node spacings must stay the log-linear interpolation.
+func TestCompanionShortcut(t *testing.T) {
+	r := rand.New(rand.NewPCG(12, 13))
+	for _, scale := range []float64{0.5, 1, 1.7, 3} {
+		fLo, fHi := min(1, scale*binaryFractionMin), min(1, scale*binaryFractionMax)
+		for range 50000 {
+			m := 0.05 * math.Pow(60, r.Float64())
+			u, v := r.Float64(), r.Float64()
+			full := min(1, scale*BinaryFraction(m))
+			require.True(t, full >= fLo && full <= fHi)
+			f := fLo
+			if u >= fLo && u < fHi {
+				f = full
+			}
+			m1, h1 := companionFrom(m, u, v, f, 0.1)
+			m2, h2 := companionFrom(m, u, v, full, 0.1)
+			require.Equal(t, h2, h1, "scale %v mass %v u %v", scale, m, u)
+			require.Equal(t, m2, m1)
+		}
+	}
+	n := binaryFractionNodes
+	for i := 1; i < len(n); i++ {
+		m := math.Sqrt(n[i-1].massMsun * n[i].massMsun) // halfway in log mass
+		assert.InDelta(t, 0.5*(n[i-1].frac+n[i].frac), BinaryFraction(m), 1e-15)
+	}
+}
+
 func TestCheckQMin(t *testing.T) {
 	assert.NoError(t, CheckQMin(0))
 	assert.NoError(t, CheckQMin(0.1))

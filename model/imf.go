@@ -139,6 +139,7 @@ type imfPieces struct {
 	maxMsun      float64
 	total        float64 // unnormalised number of stars over the range
 	meanMassMsun float64
+	table        massTable // for sampleByRejection
 }
 
 type imfKind uint8
@@ -213,6 +214,7 @@ func (f *imfPieces) build(shape []imfSegment, minMsun, maxMsun float64) {
 	}
 	f.cumShare[f.n-1] = 1
 	f.meanMassMsun = massSum / f.total
+	f.buildMassTable()
 }
 
 // number is the unnormalised number of stars in [s.lo, m].

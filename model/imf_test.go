@@ -301,5 +301,79 @@ func BenchmarkIMFSample(b *testing.B) {
 			}
 			_ = s
 		})
+		b.Run(name+"/rejection", func(b *testing.B) {
+			ms := f.(massSampler)
+			r := rand.New(rand.NewPCG(1, 2))
+			s := 0.0
+			for b.Loop() {
+				s += ms.sampleByRejection(r)
+			}
+			_ = s
+		})
+	}
+}
+
+// rejectionIMFs adds to testIMFs a range around the peak of the
+// lognormal's dN/dm (at 10^(μ − σ² ln10) ≈ 0.0063 M☉), where the rejection
+// bounds need the mode.
+func rejectionIMFs(t *testing.T) []IMF {
+	c, err := NewChabrier2003(0.002, 0.05)
+	require.NoError(t, err)
+	return append(testIMFs(t), c)
+}
+
+// The population's rejection sampler must follow the same CDF as Sample
+// (same KS criterion and mean check as TestIMFSampleFollowsCDF), including
+// ranges where dN/dm rises, and must not allocate.
+func TestIMFSampleByRejectionFollowsCDF(t *testing.T) {
+	const n = 200000
+	for i, f := range rejectionIMFs(t) {
+		ms, ok := f.(massSampler)
+		require.True(t, ok, f.Name())
+		require.True(t, ms.rejectionReady(), f.Name())
+		r := rand.New(rand.NewPCG(8, uint64(i)))
+		lo, hi := imfRange(f)
+		xs := make([]float64, n)
+		for j := range xs {
+			xs[j] = ms.sampleByRejection(r)
+			require.True(t, xs[j] >= lo && xs[j] <= hi, "%s sample %g outside [%g, %g]", f.Name(), xs[j], lo, hi)
+		}
+		sort.Float64s(xs)
+		d := 0.0
+		for j, x := range xs {
+			c := f.CDF(x)
+			d = math.Max(d, math.Max(math.Abs(c-float64(j)/n), math.Abs(c-float64(j+1)/n)))
+		}
+		assert.Less(t, d, 1.95/math.Sqrt(n), "%s [%g, %g]: KS distance", f.Name(), lo, hi)
+		mean, std := stat.MeanStdDev(xs, nil)
+		assert.InDelta(t, f.MeanMass(), mean, 5*std/math.Sqrt(n), "%s [%g, %g]: sample mean", f.Name(), lo, hi)
+		assert.Zero(t, testing.AllocsPerRun(1000, func() { ms.sampleByRejection(r) }), f.Name())
+	}
+}
+
+// The rejection is exact only if every interval's bounds bracket dN/dm
+// over it: checked on a fine grid inside each interval.
+func TestIMFRejectionBoundsBracketPDF(t *testing.T) {
+	for _, f := range rejectionIMFs(t) {
+		var p *imfPieces
+		switch g := f.(type) {
+		case *Kroupa2001:
+			p = &g.imfPieces
+		case *Chabrier2003:
+			p = &g.imfPieces
+		}
+		require.NotNil(t, p)
+		covered := 0.0
+		for _, iv := range p.table.intervals {
+			s := &p.seg[iv.seg]
+			require.True(t, iv.loMsun >= s.lo && iv.loMsun+iv.widthMsun <= s.hi*(1+1e-15), "interval inside its segment")
+			for j := 0; j <= 50; j++ {
+				v := s.pdf(iv.loMsun + iv.widthMsun*float64(j)/50)
+				require.True(t, v <= iv.upper && v >= iv.lower, "%s at %g: %g not in [%g, %g]", f.Name(), iv.loMsun, v, iv.lower, iv.upper)
+			}
+			covered += iv.widthMsun
+		}
+		lo, hi := imfRange(f)
+		assert.InEpsilon(t, hi-lo, covered, 1e-12, "%s: intervals tile the range", f.Name())
 	}
 }

@@ -5,9 +5,8 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
-	"os"
-	"sync"
 
+	"spinpop/disk"
 	"spinpop/model/spin"
 	"spinpop/model/spots"
 )
@@ -82,6 +81,16 @@ type Population struct {
 	Cuts      Cuts
 
 	binAlias alias
+	joint    *disk.JointSampler // when Place is a *disk.Sampler: bins and positions in one draw
+	masses   massSampler        // when IMF is one of this package's: exact rejection, faster than inversion
+}
+
+// jointPlacer is a Placer that can also draw the age bin and the position
+// together (disk.Sampler): see disk.JointSampler.
+type jointPlacer interface {
+	Placer
+	BinIntegral(k int) float64
+	Joint(binWeights []float64) (*disk.JointSampler, error)
 }
 
 // Prepare checks the population and builds its lookup tables.
@@ -99,7 +108,35 @@ func (p *Population) Prepare() error {
 		return fmt.Errorf("model: age-bin probabilities: %w", err)
 	}
 	p.binAlias = a
+	p.masses = nil
+	if ms, ok := p.IMF.(massSampler); ok && ms.rejectionReady() {
+		p.masses = ms
+	}
+	p.joint = nil
+	if jp, ok := p.Place.(jointPlacer); ok {
+		p.joint = p.jointOf(jp)
+	}
 	return nil
+}
+
+// jointOf returns jp's joint sampler for the bin probabilities, which draws
+// the law of the bin-then-Draw loop in place (see disk.JointSampler), or
+// nil if a bin integral is unusable or the probabilities do not match jp's
+// bins; place then runs that loop.
+func (p *Population) jointOf(jp jointPlacer) *disk.JointSampler {
+	w := make([]float64, len(p.BinProb))
+	for k, pk := range p.BinProb {
+		integral := jp.BinIntegral(k)
+		if !(integral > 0) || math.IsInf(integral, 0) {
+			return nil
+		}
+		w[k] = pk / integral
+	}
+	j, err := jp.Joint(w)
+	if err != nil {
+		return nil
+	}
+	return j
 }
 
 // Extinction ratios A_band/A_V and E(B−V)/A_V for the diffuse interstellar
@@ -111,124 +148,65 @@ const (
 
 // Fill makes and observes the stars of chunk c from stream r.
 //
-// It works in two passes. The first places every star, grouped by age bin
-// (see place), so that each bin's line-of-sight tables stay in cache while
-// they are used; the second makes and observes the stars one by one. The
-// stars come out in slot order, a deterministic function of r.
+// It places every star of the chunk first (age bin, position, age), then
+// makes and observes them one by one: each loop keeps its own tables in
+// cache. Two draws take faster routes to the same laws: when Place is a
+// *disk.Sampler, the age bin and the position come from its JointSampler
+// (with bin weights BinProb[k]/BinIntegral(k)), which loses no radially
+// rejected points; and masses from this package's IMFs come from an exact
+// rejection sampler instead of inverting the CDF, which costs a logarithm
+// and an exponential. Either way the stars follow the same distributions,
+// drawn with different random numbers.
 func (p *Population) Fill(c *Chunk, r *rand.Rand) {
-	s := placeScratch.Get().(*placeBuf)
-	p.place(c, r, s)
-	placeScratch.Put(s)
+	for i := 0; i < c.N; i++ {
+		p.place(c, i, r)
+	}
 	for i := 0; i < c.N; i++ {
 		p.star(c, i, r)
 	}
 }
 
-// placeBuf is a worker's scratch for place; pooled so that Fill allocates
-// nothing once warm.
-type placeBuf struct {
-	pending []int32 // slots still to place, ascending
-	order   []int32 // the pending slots grouped by age bin
-	count   []int32 // per-bin counts, then running offsets into order
-	ok      []bool  // per slot: the last proposal was kept
-}
-
-var placeScratch = sync.Pool{New: func() any { return new(placeBuf) }}
-
-func growInt32(s []int32, n int) []int32 {
-	if cap(s) < n {
-		return make([]int32, n)
-	}
-	return s[:n]
-}
-
-// place draws the age bin, position and age of every star of c.
-//
-// Each slot repeats the joint proposal of the population's definition —
-// an age bin from BinProb, then a position from Place.Draw(k) — until a
-// proposal is kept, so the kept (bin, position) of every slot follows the
-// exact joint distribution and slots are independent. Only the order in
-// which proposals are made differs from a star-by-star loop: in each round
-// every pending slot first draws its bin, then the slots are visited bin by
-// bin, and the slots whose proposal was rejected wait for the next round.
-// Which random numbers go to which proposal is decided by earlier random
-// numbers only, never by the values a proposal will produce, so each
-// proposal still sees fresh independent uniforms.
-func (p *Population) place(c *Chunk, r *rand.Rand, s *placeBuf) {
-	if os.Getenv("NOGROUP") != "" {
-		for j := range c.N {
-			for {
-				k := p.binAlias.draw(r)
-				l, b, d, z, ok := p.Place.Draw(k, r)
-				if ok {
-					c.AgeBin[j] = int32(k)
-					c.LDeg[j], c.BDeg[j], c.DistPc[j], c.ZPc[j] = l, b, d, z
-					c.AgeGyr[j] = p.Age(k, r)
-					break
-				}
-			}
-		}
+// place draws the age bin, position and age of star i.
+func (p *Population) place(c *Chunk, i int, r *rand.Rand) {
+	if p.joint != nil {
+		k, l, b, d, z := p.joint.Draw(r)
+		c.AgeBin[i], c.AgeGyr[i] = int32(k), p.Age(k, r)
+		c.LDeg[i], c.BDeg[i], c.DistPc[i], c.ZPc[i] = l, b, d, z
 		return
 	}
-	n, nb := c.N, len(p.binAlias.prob)
-	s.pending = growInt32(s.pending, n)
-	s.order = growInt32(s.order, n)
-	s.count = growInt32(s.count, nb+1)
-	if cap(s.ok) < n {
-		s.ok = make([]bool, n)
+	// Age bin and position: redraw both on a radial rejection (exact joint draw).
+	var k int
+	var l, b, d, z float64
+	for {
+		k = p.binAlias.draw(r)
+		var ok bool
+		if l, b, d, z, ok = p.Place.Draw(k, r); ok {
+			break
+		}
 	}
-	s.ok = s.ok[:n]
-	pending := s.pending
-	for i := range pending {
-		pending[i] = int32(i)
-	}
-	for len(pending) > 0 {
-		count := s.count
-		clear(count)
-		for _, j := range pending {
-			k := p.binAlias.draw(r)
-			c.AgeBin[j] = int32(k)
-			count[k+1]++
-		}
-		for k := 1; k <= nb; k++ {
-			count[k] += count[k-1]
-		}
-		order := s.order[:len(pending)]
-		for _, j := range pending {
-			k := c.AgeBin[j]
-			order[count[k]] = j
-			count[k]++
-		}
-		for _, j := range order {
-			k := int(c.AgeBin[j])
-			l, b, d, z, ok := p.Place.Draw(k, r)
-			s.ok[j] = ok
-			if ok {
-				c.LDeg[j], c.BDeg[j], c.DistPc[j], c.ZPc[j] = l, b, d, z
-				c.AgeGyr[j] = p.Age(k, r)
-			}
-		}
-		// Keep the rejected slots, in slot order, for the next round.
-		left := pending[:0]
-		for _, j := range pending {
-			if !s.ok[j] {
-				left = append(left, j)
-			}
-		}
-		pending = left
-	}
+	c.AgeBin[i], c.AgeGyr[i] = int32(k), p.Age(k, r)
+	c.LDeg[i], c.BDeg[i], c.DistPc[i], c.ZPc[i] = l, b, d, z
 }
 
+// star makes and observes star i, which place has put in the field.
 func (p *Population) star(c *Chunk, i int, r *rand.Rand) {
 	var flags Flag
-	age := c.AgeGyr[i]
-	l, b, d, z := c.LDeg[i], c.BDeg[i], c.DistPc[i], c.ZPc[i]
-	m := p.IMF.Sample(r)
+	age, l, b, d, z := c.AgeGyr[i], c.LDeg[i], c.BDeg[i], c.DistPc[i], c.ZPc[i]
+	var m float64
+	if p.masses != nil {
+		m = p.masses.sampleByRejection(r)
+	} else {
+		m = p.IMF.Sample(r)
+	}
 	c.MassMsun[i] = m
 
-	pt, _ := p.Relations.At(m)
-	bv, absV, absKs := pt.BV, pt.AbsMagV, pt.AbsMagKs
-	c.TeffK[i] = pt.TeffK
+	// A mass outside the table (never, for a checked scenario) keeps the
+	// zero observables At would give.
+	teff, bvMS, absV, absKs, _ := p.Relations.atMain(m)
+	bv := bvMS
+	c.TeffK[i] = teff
+	// What the spin-down law and the turnover time know of the star.
+	spinStar := spin.Star{MassMsun: m, AgeGyr: age, BV: bvMS, TeffK: teff}
 
 	// Past the main sequence: brighten (subgiant), or leave the dwarf sample.
 	if dMag, gone := EvolvedBrightening(m, age); gone {
@@ -252,16 +230,27 @@ func (p *Population) star(c *Chunk, i int, r *rand.Rand) {
 	c.FeH[i] = feh
 
 	comp := 0.0
-	if p.Binaries.FractionScale > 0 {
+	if scale := p.Binaries.FractionScale; scale > 0 {
+		// Companion, with the mass-dependent fraction worked out only when
+		// u falls where it could decide: below its smallest value there is
+		// a companion whatever the mass, above its largest there is none.
+		// One 64-bit draw gives both 32-bit uniforms.
+		x := r.Uint64()
+		u, v := unit32(x>>32), unit32(x)
+		fLo := min(1, scale*binaryFractionMin)
+		f := fLo
+		if u >= fLo && u < min(1, scale*binaryFractionMax) {
+			f = p.binaryFraction(m)
+		}
 		// A companion below the table's mass range is too faint to matter
 		// and is ignored.
-		if m2, has := Companion(m, r, p.binaryFraction, p.Binaries.MassRatioMin); has {
-			if q, ok := p.Relations.At(m2); ok {
+		if m2, has := companionFrom(m, u, v, f, p.Binaries.MassRatioMin); has {
+			if _, bv2, absV2, absKs2, ok := p.Relations.atMain(m2); ok {
 				comp = m2
 				flags |= FlagBinary
-				absB := CombineMags(absV+bv, q.AbsMagV+q.BV)
-				absV = CombineMags(absV, q.AbsMagV)
-				absKs = CombineMags(absKs, q.AbsMagKs)
+				absB := CombineMags(absV+bv, absV2+bv2)
+				absV = CombineMags(absV, absV2)
+				absKs = CombineMags(absKs, absKs2)
 				bv = absB - absV
 			}
 		}
@@ -284,20 +273,20 @@ func (p *Population) star(c *Chunk, i int, r *rand.Rand) {
 	c.AppMag[i] = app
 	// What a catalogue derives from photometry and parallax alone: reddened
 	// color, and M_V = V − 5 log10(d/10 pc) with the extinction still in.
-	c.ObsBV[i] = bv + ebvPerAV*av
-	c.ObsAbsMag[i] = absV + av
+	obsBV, obsAbs := bv+ebvPerAV*av, absV+av
+	c.ObsBV[i], c.ObsAbsMag[i] = obsBV, obsAbs
 	if app >= p.Survey.BrightLimitMag && app <= p.Survey.FaintLimitMag {
 		flags |= FlagInMagRange
 	}
-	if c.ObsBV[i] >= p.Cuts.BVMin && c.ObsBV[i] <= p.Cuts.BVMax {
+	if obsBV >= p.Cuts.BVMin && obsBV <= p.Cuts.BVMax {
 		flags |= FlagInColorRange
 	}
-	if p.onMainSequence(c.ObsBV[i], c.ObsAbsMag[i]) {
+	if p.onMainSequence(obsBV, obsAbs) {
 		flags |= FlagOnMainSeq
 	}
 
 	// Rotation: the spin-down law, or the orbit for tidally locked pairs.
-	per, ok := p.Law.Period(spin.Star{MassMsun: m, AgeGyr: age, BV: pt.BV, TeffK: pt.TeffK}, r)
+	per, ok := p.Law.Period(spinStar, r)
 	if comp > 0 && p.Binaries.TidalLockFraction > 0 && r.Float64() < p.Binaries.TidalLockFraction {
 		per = math.Exp(r.Float64() * math.Log(p.Binaries.TidalLockMaxD))
 		ok = true
@@ -310,16 +299,17 @@ func (p *Population) star(c *Chunk, i int, r *rand.Rand) {
 		c.Flags[i] = flags
 		return
 	}
-	ro, _ := p.Turnover.Rossby(per, spin.Star{MassMsun: m, AgeGyr: age, BV: pt.BV, TeffK: pt.TeffK})
+	ro, _ := p.Turnover.Rossby(per, spinStar)
 	c.Rossby[i] = ro
-	c.NoisePpm[i] = p.Survey.Detect.Noise.PpmPerCadence(app)
+	noise := p.Survey.Detect.Noise.PpmPerCadence(app)
+	c.NoisePpm[i] = noise
 	prob := 1.0
 	amp := math.NaN()
 	if p.Spots != nil {
 		// A star outside the turnover-time fit has no Rossby number; its
 		// NaN amplitude makes it undetectable, which the catalogue flags.
 		amp = p.Spots.Draw(ro, r)
-		prob = p.Survey.Detect.Probability(amp, app, per)
+		prob = p.Survey.Detect.ProbabilityAtNoise(amp, noise, per)
 	} else if per < 2*p.Survey.Detect.CadenceD || p.Survey.Detect.BaselineD < p.Survey.Detect.MinCycles*per {
 		// No spot model: a period is found whenever the light curve can
 		// hold it (Nyquist at the short end, MinCycles at the long end).
@@ -327,10 +317,12 @@ func (p *Population) star(c *Chunk, i int, r *rand.Rand) {
 	}
 	c.AmpPpm[i], c.DetectProb[i] = amp, prob
 	// Always consume the same random numbers whatever the outcome, so one
-	// star's fate never shifts the stream of the next.
+	// star's fate never shifts the stream of the next: a star that is not
+	// detected draws the uniform and the normal deviate that spots.Recover
+	// would have, without working out a period nobody reads.
 	u := r.Float64()
-	meas, alias := spots.Recover(per, r, p.Survey.Recovery)
 	if u < prob {
+		meas, alias := spots.Recover(per, r, p.Survey.Recovery)
 		flags |= FlagDetected
 		c.MeasPeriodD[i] = meas
 		switch alias {
@@ -343,10 +335,18 @@ func (p *Population) star(c *Chunk, i int, r *rand.Rand) {
 			flags |= FlagInPeriodWindow
 		}
 	} else {
+		r.Float64()
+		r.NormFloat64()
 		c.MeasPeriodD[i] = math.NaN()
 	}
 	c.Flags[i] = flags
 }
+
+// unit32 maps the low 32 bits of x to [0, 1).
+func unit32(x uint64) float64 { return float64(uint32(x)) * (1.0 / (1 << 32)) }
+
+// binaryFractionMin and binaryFractionMax bound BinaryFraction.
+var binaryFractionMin, binaryFractionMax = binaryFractionRange()
 
 func (p *Population) binaryFraction(m float64) float64 {
 	return min(1, p.Binaries.FractionScale*BinaryFraction(m))

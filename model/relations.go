@@ -56,7 +56,12 @@ type Relations struct {
 	bvTop, bvBottom float64
 	bvInvWidth      float64
 	bvStart         []int32
+	// bvMag holds each node's B−V and M_V together, a quarter of the grid's
+	// size, so that color lookups on the hot path stay in cache.
+	bvMag []bvMagNode
 }
+
+type bvMagNode struct{ bv, absMagV float64 }
 
 // relationsGridShift sets the grid: 2^(52−shift) = 512 nodes per octave of
 // mass. A table spanning a decade in mass gets ~1700 nodes.
@@ -224,6 +229,10 @@ func (rel *Relations) indexBV() {
 	bottom, _ := rel.At(rel.maxMsun)
 	rel.bvTop, rel.bvBottom = top.BV, bottom.BV
 	rel.bvInvWidth = relationsBVBuckets / (rel.bvTop - rel.bvBottom)
+	rel.bvMag = make([]bvMagNode, len(rel.grid))
+	for i, g := range rel.grid {
+		rel.bvMag[i] = bvMagNode{bv: g.BV, absMagV: g.AbsMagV}
+	}
 	rel.bvStart = make([]int32, relationsBVBuckets+1)
 	i := 0
 	for k := range rel.bvStart {
@@ -262,6 +271,24 @@ func (rel *Relations) At(massMsun float64) (p Point, ok bool) {
 	return rel.blend(i, f), true
 }
 
+// atMain is At cut down to what the population generator needs, with the
+// same values: T_eff, B−V, M_V and M_Ks. ok is false (and all zero) outside
+// MassRange.
+func (rel *Relations) atMain(massMsun float64) (teffK, bv, absMagV, absMagKs float64, ok bool) {
+	if !(massMsun >= rel.minMsun && massMsun <= rel.maxMsun) {
+		return 0, 0, 0, 0, false
+	}
+	d := math.Float64bits(massMsun) - rel.bitsLo
+	i := int(d >> relationsGridShift)
+	f := float64(d&relationsGridMask) * (1.0 / (1 << relationsGridShift))
+	if i >= len(rel.grid)-1 {
+		i, f = len(rel.grid)-2, 1
+	}
+	a, b := &rel.grid[i], &rel.grid[i+1]
+	g := 1 - f
+	return g*a.TeffK + f*b.TeffK, g*a.BV + f*b.BV, g*a.AbsMagV + f*b.AbsMagV, g*a.AbsMagKs + f*b.AbsMagKs, true
+}
+
 // blend interpolates linearly between grid nodes i and i+1.
 func (rel *Relations) blend(i int, f float64) Point {
 	a, b := &rel.grid[i], &rel.grid[i+1]
@@ -295,12 +322,12 @@ func (rel *Relations) bracketBV(bv float64) (i int, f float64, ok bool) {
 	}
 	k := int((rel.bvTop - bv) * rel.bvInvWidth)
 	k = min(k, relationsBVBuckets)
-	g := rel.grid
+	g := rel.bvMag
 	i = int(rel.bvStart[k])
-	for i+2 < len(g) && g[i+1].BV > bv {
+	for i+2 < len(g) && g[i+1].bv > bv {
 		i++
 	}
-	return i, (g[i].BV - bv) / (g[i].BV - g[i+1].BV), true
+	return i, (g[i].bv - bv) / (g[i].bv - g[i+1].bv), true
 }
 
 // MassFromBV inverts the B−V relation: the mass in M☉ of the main-sequence
@@ -323,7 +350,7 @@ func (rel *Relations) AbsMagVAtBV(bv float64) (absMagV float64, ok bool) {
 	if !ok {
 		return 0, false
 	}
-	return (1-f)*rel.grid[i].AbsMagV + f*rel.grid[i+1].AbsMagV, true
+	return (1-f)*rel.bvMag[i].absMagV + f*rel.bvMag[i+1].absMagV, true
 }
 
 // Band is a photometric band with an absolute magnitude in Point.

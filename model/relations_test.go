@@ -3,6 +3,7 @@ package model
 import (
 	"encoding/csv"
 	"math"
+	"math/rand/v2"
 	"os"
 	"path/filepath"
 	"strconv"
@@ -253,6 +254,24 @@ func TestParseRelationsErrors(t *testing.T) {
 	lo, hi := rel.MassRange()
 	assert.Equal(t, 0.5, lo)
 	assert.Equal(t, 1.0, hi)
+}
+
+// atMain, the generator's cut-down At, must give At's values bit for bit,
+// in range and out of it.
+func TestAtMainMatchesAt(t *testing.T) {
+	rel := dwarfs(t)
+	lo, hi := rel.MassRange()
+	r := rand.New(rand.NewPCG(4, 4))
+	masses := []float64{lo, hi, lo * 0.999, hi * 1.001, math.NaN(), 1}
+	for range 20000 {
+		masses = append(masses, lo*math.Pow(hi/lo, r.Float64()))
+	}
+	for _, m := range masses {
+		p, ok := rel.At(m)
+		teff, bv, absV, absKs, ok2 := rel.atMain(m)
+		require.Equal(t, ok, ok2, "mass %v", m)
+		require.Equal(t, [4]float64{p.TeffK, p.BV, p.AbsMagV, p.AbsMagKs}, [4]float64{teff, bv, absV, absKs}, "mass %v", m)
+	}
 }
 
 func TestRelationsAtAllocationFree(t *testing.T) {

@@ -61,11 +61,19 @@ func (a AmplitudeModel) MedianPpm(ro float64) float64 {
 	if ro <= a.RoSat {
 		return a.AmpSatPpm
 	}
-	return a.AmpSatPpm * math.Exp(-a.Slope*math.Log(ro/a.RoSat))
+	return a.AmpSatPpm / power(ro/a.RoSat, a.Slope)
 }
 
 // Draw returns one star's amplitude (ppm) at Rossby number ro, scattered
-// lognormally about MedianPpm with one normal deviate from r.
+// lognormally about MedianPpm with one normal deviate from r (drawn whatever
+// ro is).
 func (a AmplitudeModel) Draw(ro float64, r *rand.Rand) float64 {
-	return a.MedianPpm(ro) * math.Exp(math.Ln10*a.ScatterDex*r.NormFloat64())
+	amp := a.AmpSatPpm * math.Exp(math.Ln10*a.ScatterDex*r.NormFloat64())
+	if !(ro > 0) {
+		return math.NaN()
+	}
+	if ro > a.RoSat {
+		amp /= power(ro/a.RoSat, a.Slope)
+	}
+	return amp
 }

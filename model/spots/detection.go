@@ -75,13 +75,39 @@ func (d Detection) SNR(ampPpm, mag float64) float64 {
 // ampPpm is detected in a star of magnitude mag. Non-positive or NaN
 // inputs give 0.
 func (d Detection) Probability(ampPpm, mag, periodD float64) float64 {
+	return d.ProbabilityAtNoise(ampPpm, d.Noise.PpmPerCadence(mag), periodD)
+}
+
+// ProbabilityAtNoise is Probability for a star whose noise per cadence,
+// Noise.PpmPerCadence(mag), is already known: a generator that records the
+// noise anyway saves working it out twice.
+func (d Detection) ProbabilityAtNoise(ampPpm, noisePpm, periodD float64) float64 {
 	if !(periodD > 0) || !(ampPpm > 0) || d.BaselineD < d.MinCycles*periodD {
 		return 0
 	}
-	snr := d.SNR(ampPpm, mag)
+	snr := ampPpm / noisePpm * math.Sqrt(0.5*d.BaselineD/d.CadenceD)
 	if !(snr > 0) {
 		return 0
 	}
-	// (T/S)^k = exp(k ln(T/S)); one exp and one log.
-	return 1 / (1 + math.Exp(d.Sharpness*math.Log(d.ThresholdSNR/snr)))
+	return 1 / (1 + power(d.ThresholdSNR/snr, d.Sharpness))
+}
+
+// power returns x^k for x ≥ 0: by repeated squaring (and one square root)
+// when k is a whole or half-whole number in (0, 64] — detection sharpness
+// and amplitude slopes usually are — otherwise as exp(k ln x).
+func power(x, k float64) float64 {
+	if n := int(2 * k); float64(n) == 2*k && n >= 1 && n <= 128 {
+		p := 1.0
+		if n&1 != 0 {
+			p = math.Sqrt(x)
+		}
+		for n >>= 1; n != 0; n >>= 1 {
+			if n&1 != 0 {
+				p *= x
+			}
+			x *= x
+		}
+		return p
+	}
+	return math.Exp(k * math.Log(x))
 }

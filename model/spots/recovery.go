@@ -43,7 +43,9 @@ func (o RecoveryOptions) Validate() error {
 }
 
 // Recover returns the period an analysis would report for a star of true
-// period trueP (d), drawing one uniform and one normal deviate from r, and
+// period trueP (d), drawing one uniform and then one normal deviate from r
+// (r.Float64, then r.NormFloat64: a generator that skips Recover for an
+// undetected star draws the same two to keep its stream aligned), and
 // which alias it picked. Validate opts once, not per star; a non-positive
 // or NaN trueP gives NaN.
 func Recover(trueP float64, r *rand.Rand, opts RecoveryOptions) (measuredP float64, alias int) {

@@ -209,3 +209,71 @@ func TestSpotsHotPathsDoNotAllocate(t *testing.T) {
 	assert.Zero(t, testing.AllocsPerRun(100, func() { d.Probability(a.Draw(0.5, r), 14, 8) }))
 	assert.Zero(t, testing.AllocsPerRun(100, func() { Recover(8, r, o) }))
 }
+
+// power replaces exp(k ln x) for whole and half-whole k; it must agree with
+// math.Pow to rounding, and fall back to it otherwise.
+func TestPowerMatchesPow(t *testing.T) {
+	for _, k := range []float64{0.5, 1, 1.5, 2, 3, 4, 7.5, 64, 0.3, 2.7, 100} {
+		for _, x := range []float64{1e-6, 0.01, 0.37, 1, 1.9, 25, 1e4} {
+			want, got := math.Pow(x, k), power(x, k)
+			switch {
+			case want < 1e-300: // underflow either way
+				assert.Less(t, got, 1e-299, "x %v k %v", x, k)
+			case want > 1e300:
+				assert.Greater(t, got, 1e299, "x %v k %v", x, k)
+			default:
+				assert.InEpsilon(t, want, got, 1e-13, "x %v k %v", x, k)
+			}
+		}
+		assert.Equal(t, 0.0, power(0, k), "k %v", k)
+		assert.True(t, math.IsInf(power(math.Inf(1), k), 1), "k %v", k)
+	}
+}
+
+// ProbabilityAtNoise is Probability with the noise already worked out, and
+// both follow the logistic 1/(1 + (T/SNR)^k) for any sharpness.
+func TestProbabilityAtNoise(t *testing.T) {
+	d := DefaultDetection()
+	for _, k := range []float64{4, 2.5, 3.7} {
+		d.Sharpness = k
+		for _, amp := range []float64{50, 300, 2000} {
+			for _, mag := range []float64{10, 14, 17} {
+				noise := d.Noise.PpmPerCadence(mag)
+				got := d.ProbabilityAtNoise(amp, noise, 12)
+				assert.Equal(t, d.Probability(amp, mag, 12), got)
+				want := 1 / (1 + math.Pow(d.ThresholdSNR/d.SNR(amp, mag), k))
+				assert.InDelta(t, want, got, 1e-14, "k %v amp %v mag %v", k, amp, mag)
+			}
+		}
+	}
+	assert.Zero(t, d.ProbabilityAtNoise(300, 100, 40), "baseline holds < MinCycles")
+	assert.Zero(t, d.ProbabilityAtNoise(math.NaN(), 100, 10))
+}
+
+// Draw is MedianPpm times 10^(ScatterDex z) for the normal deviate z it
+// draws, at any Rossby number and slope.
+func TestAmplitudeDrawIsMedianTimesScatter(t *testing.T) {
+	for _, slope := range []float64{1, 1.5, 2, 0.7} {
+		a := DefaultAmplitudeModel()
+		a.Slope = slope
+		for _, ro := range []float64{0.05, 0.15, 0.4, 2, 9} {
+			r1, r2 := rand.New(rand.NewPCG(3, 3)), rand.New(rand.NewPCG(3, 3))
+			got := a.Draw(ro, r1)
+			want := a.MedianPpm(ro) * math.Pow(10, a.ScatterDex*r2.NormFloat64())
+			assert.InEpsilon(t, want, got, 1e-13, "slope %v ro %v", slope, ro)
+		}
+		assert.InEpsilon(t, a.AmpSatPpm*math.Pow(2/a.RoSat, -slope), a.MedianPpm(2), 1e-13)
+	}
+	r := rand.New(rand.NewPCG(1, 1))
+	assert.True(t, math.IsNaN(DefaultAmplitudeModel().Draw(math.NaN(), r)))
+}
+
+// Recover draws a uniform, then a normal deviate, from r: a generator that
+// skips it must draw the same to stay in step.
+func TestRecoverStreamUse(t *testing.T) {
+	a, b := rand.New(rand.NewPCG(5, 5)), rand.New(rand.NewPCG(5, 5))
+	Recover(10, a, DefaultRecoveryOptions())
+	b.Float64()
+	b.NormFloat64()
+	assert.Equal(t, b.Uint64(), a.Uint64())
+}
