@@ -32,6 +32,46 @@ type comparison struct {
 	burst        compare.HistoryModel
 	workers      int
 	setupSeconds float64
+	// Data stars left out because no template star reached their
+	// (color, period) cell, and how many such cells there were.
+	droppedStars, droppedBins int
+}
+
+// dropUnreachedBins removes from the data counts the (color, period)
+// cells that no template star reached in any age bin. Such cells make
+// every history impossible, and they are almost always the thin edge of
+// the space (rare aliases of the bluest stars) where a finite template run
+// happens to have drawn nothing; comparing on the cells the model reaches
+// is the honest alternative to a spurious rejection. The stars left out
+// are counted and reported, never hidden.
+func dropUnreachedBins(tpl *compare.Templates, obs *compare.Observed) (stars, cells int) {
+	sp := tpl.Space
+	nb, nz := sp.NumBins(), sp.NumHeight()
+	for cell := 0; cell < sp.NumColorPeriod(); cell++ {
+		reached := false
+		for k := 0; k < tpl.NumAgeBins() && !reached; k++ {
+			for z := 0; z < nz; z++ {
+				if tpl.Counts[k*nb+cell*nz+z] > 0 {
+					reached = true
+					break
+				}
+			}
+		}
+		if reached {
+			continue
+		}
+		n := 0
+		for z := 0; z < nz; z++ {
+			n += int(obs.Counts[cell*nz+z])
+			obs.Counts[cell*nz+z] = 0
+		}
+		if n > 0 {
+			stars += n
+			cells++
+		}
+	}
+	obs.N -= stars
+	return stars, cells
 }
 
 // compareFlags are the flags every comparison command takes.
@@ -144,6 +184,7 @@ func setupComparison(ctx context.Context, arg string, f compareFlags, stderr io.
 	if c.obs.N == 0 {
 		return nil, inputError{fmt.Errorf("%s: no star of the catalog passes the cuts and lies in the comparison space (cut away: %v; unusable: %v)", res.DataPath, c.obs.CutAway, c.obs.Rejected)}
 	}
+	c.droppedStars, c.droppedBins = dropUnreachedBins(c.tpl, c.obs)
 	if c.like, err = compare.NewLikelihood(c.tpl, c.obs.Counts, scenarios.LikeOptions(s)); err != nil {
 		return nil, inputError{fmt.Errorf("%s: %w", arg, err)}
 	}
@@ -181,6 +222,7 @@ type dataSummary struct {
 	AgeBins    int            `json:"age_bins"`
 	SpaceBins  int            `json:"comparison_bins"`
 	SetupSecs  float64        `json:"setup_seconds"`
+	Dropped    int            `json:"stars_in_cells_no_template_reached"`
 	ScenarioSH string         `json:"scenario_sha256"`
 }
 
@@ -188,7 +230,7 @@ func (c *comparison) dataSummary() dataSummary {
 	return dataSummary{
 		File: c.res.DataPath, SHA256: c.obs.SHA256, Rows: c.obs.Rows, Compared: c.obs.N, Unusable: c.obs.Rejected, CutAway: c.obs.CutAway,
 		Templates: c.tplFile, TplReused: c.tplReused, TplStars: c.tpl.StarsDrawn, AgeBins: c.tpl.NumAgeBins(),
-		SpaceBins: c.space.NumColorPeriod(), SetupSecs: c.setupSeconds, ScenarioSH: c.res.Hash(),
+		SpaceBins: c.space.NumColorPeriod(), SetupSecs: c.setupSeconds, ScenarioSH: c.res.Hash(), Dropped: c.droppedStars,
 	}
 }
 
@@ -203,4 +245,7 @@ func printDataSummary(w io.Writer, d dataSummary) {
 		reused = "reused"
 	}
 	fmt.Fprintf(w, "templates %s: %d age bins × %d comparison bins from %d stars\n", reused, d.AgeBins, d.SpaceBins, d.TplStars)
+	if d.Dropped > 0 {
+		fmt.Fprintf(w, "warning: %d catalog stars lie in comparison cells that no template star reached; they are left out of the comparison (raise compare.template_stars or use coarser bins to keep them)\n", d.Dropped)
+	}
 }
