@@ -111,3 +111,41 @@ func ReadObserved(spec DataSpec, space Space, rejects io.Writer) (*Observed, err
 	}
 	return obs, nil
 }
+
+// DropUnreached removes from the data counts the (color, period)
+// cells that no template star reached in any age bin. Such cells make
+// every history impossible, and they are almost always the thin edge of
+// the space (rare aliases of the bluest stars) where a finite template run
+// happens to have drawn nothing; comparing on the cells the model reaches
+// is the honest alternative to a spurious rejection. The stars left out
+// are counted for the caller to report, never hidden. Observed.Stars keeps
+// every star that passed the cuts.
+func (obs *Observed) DropUnreached(tpl *Templates) (stars, cells int) {
+	sp := tpl.Space
+	nb, nz := sp.NumBins(), sp.NumHeight()
+	for cell := 0; cell < sp.NumColorPeriod(); cell++ {
+		reached := false
+		for k := 0; k < tpl.NumAgeBins() && !reached; k++ {
+			for z := 0; z < nz; z++ {
+				if tpl.Counts[k*nb+cell*nz+z] > 0 {
+					reached = true
+					break
+				}
+			}
+		}
+		if reached {
+			continue
+		}
+		n := 0
+		for z := 0; z < nz; z++ {
+			n += int(obs.Counts[cell*nz+z])
+			obs.Counts[cell*nz+z] = 0
+		}
+		if n > 0 {
+			stars += n
+			cells++
+		}
+	}
+	obs.N -= stars
+	return stars, cells
+}

@@ -123,3 +123,19 @@ func TestReadObservedCutsRejectsAndHash(t *testing.T) {
 	assert.ErrorContains(t, err, "relations")
 	assert.False(t, math.IsNaN(total))
 }
+
+// Cells no template star reached are left out of the data, counted.
+func TestDropUnreachedBins(t *testing.T) {
+	sp, err := NewSpace(0.5, 1.5, 2, 1, 100, 2, []float64{0, 100, 200})
+	require.NoError(t, err)
+	nb := sp.NumBins() // 2 colors × 2 periods × 2 heights
+	tpl := &Templates{Space: sp, AgeEdgesGyr: []float64{0, 1, 2}, Counts: make([]float64, 2*nb)}
+	tpl.Counts[0*nb+0*2+1] = 3 // cell 0 reached in age bin 0 (upper |z| bin)
+	tpl.Counts[1*nb+2*2+0] = 1 // cell 2 reached in age bin 1
+	obs := &Observed{Counts: []float64{1, 2, 4, 0, 5, 0, 0, 7}, N: 19}
+	stars, cells := obs.DropUnreached(tpl)
+	assert.Equal(t, 11, stars, "cells 1 (4 stars) and 3 (7 stars) were never reached")
+	assert.Equal(t, 2, cells)
+	assert.Equal(t, []float64{1, 2, 0, 0, 5, 0, 0, 0}, obs.Counts)
+	assert.Equal(t, 8, obs.N)
+}

@@ -10,7 +10,6 @@ import (
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
-	"spinpop/compare"
 	"spinpop/scenarios"
 )
 
@@ -142,20 +141,4 @@ func TestComparisonInputErrors(t *testing.T) {
 	code, _, errs = runCLI("compare", sc, "--out", filepath.Join(t.TempDir(), "y"), "--templates", "none")
 	assert.Equal(t, 2, code)
 	assert.Contains(t, errs, "SHA-256")
-}
-
-// Cells no template star reached are left out of the data, counted.
-func TestDropUnreachedBins(t *testing.T) {
-	sp, err := compare.NewSpace(0.5, 1.5, 2, 1, 100, 2, []float64{0, 100, 200})
-	require.NoError(t, err)
-	nb := sp.NumBins() // 2 colors × 2 periods × 2 heights
-	tpl := &compare.Templates{Space: sp, AgeEdgesGyr: []float64{0, 1, 2}, Counts: make([]float64, 2*nb)}
-	tpl.Counts[0*nb+0*2+1] = 3 // cell 0 reached in age bin 0 (upper |z| bin)
-	tpl.Counts[1*nb+2*2+0] = 1 // cell 2 reached in age bin 1
-	obs := &compare.Observed{Counts: []float64{1, 2, 4, 0, 5, 0, 0, 7}, N: 19}
-	stars, cells := dropUnreachedBins(tpl, obs)
-	assert.Equal(t, 11, stars, "cells 1 (4 stars) and 3 (7 stars) were never reached")
-	assert.Equal(t, 2, cells)
-	assert.Equal(t, []float64{1, 2, 0, 0, 5, 0, 0, 0}, obs.Counts)
-	assert.Equal(t, 8, obs.N)
 }

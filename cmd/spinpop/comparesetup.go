@@ -37,43 +37,6 @@ type comparison struct {
 	droppedStars, droppedBins int
 }
 
-// dropUnreachedBins removes from the data counts the (color, period)
-// cells that no template star reached in any age bin. Such cells make
-// every history impossible, and they are almost always the thin edge of
-// the space (rare aliases of the bluest stars) where a finite template run
-// happens to have drawn nothing; comparing on the cells the model reaches
-// is the honest alternative to a spurious rejection. The stars left out
-// are counted and reported, never hidden.
-func dropUnreachedBins(tpl *compare.Templates, obs *compare.Observed) (stars, cells int) {
-	sp := tpl.Space
-	nb, nz := sp.NumBins(), sp.NumHeight()
-	for cell := 0; cell < sp.NumColorPeriod(); cell++ {
-		reached := false
-		for k := 0; k < tpl.NumAgeBins() && !reached; k++ {
-			for z := 0; z < nz; z++ {
-				if tpl.Counts[k*nb+cell*nz+z] > 0 {
-					reached = true
-					break
-				}
-			}
-		}
-		if reached {
-			continue
-		}
-		n := 0
-		for z := 0; z < nz; z++ {
-			n += int(obs.Counts[cell*nz+z])
-			obs.Counts[cell*nz+z] = 0
-		}
-		if n > 0 {
-			stars += n
-			cells++
-		}
-	}
-	obs.N -= stars
-	return stars, cells
-}
-
 // compareFlags are the flags every comparison command takes.
 type compareFlags struct {
 	out, templates *string
@@ -184,7 +147,7 @@ func setupComparison(ctx context.Context, arg string, f compareFlags, stderr io.
 	if c.obs.N == 0 {
 		return nil, inputError{fmt.Errorf("%s: no star of the catalog passes the cuts and lies in the comparison space (cut away: %v; unusable: %v)", res.DataPath, c.obs.CutAway, c.obs.Rejected)}
 	}
-	c.droppedStars, c.droppedBins = dropUnreachedBins(c.tpl, c.obs)
+	c.droppedStars, c.droppedBins = c.obs.DropUnreached(c.tpl)
 	if c.like, err = compare.NewLikelihood(c.tpl, c.obs.Counts, scenarios.LikeOptions(s)); err != nil {
 		return nil, inputError{fmt.Errorf("%s: %w", arg, err)}
 	}
@@ -248,4 +211,31 @@ func printDataSummary(w io.Writer, d dataSummary) {
 	if d.Dropped > 0 {
 		fmt.Fprintf(w, "warning: %d catalog stars lie in comparison cells that no template star reached; they are left out of the comparison (raise compare.template_stars or use coarser bins to keep them)\n", d.Dropped)
 	}
+}
+
+// splitAge is the age whose gyrochrone splits young from old stars: the
+// user's choice, else compare.split_age_gyr, else the fitted burst age,
+// else 0.6 Gyr (the trade's gap; common practice).
+func (c *comparison) splitAge(flag float64, burst compare.FitResult) float64 {
+	if flag > 0 {
+		return flag
+	}
+	if c.s.Compare.SplitAgeGyr > 0 {
+		return c.s.Compare.SplitAgeGyr
+	}
+	for i, n := range burst.Names {
+		if n == c.s.Compare.BurstPart+".age_gyr" {
+			return burst.Theta[i]
+		}
+	}
+	return 0.6
+}
+
+// heightCheck compares the young fraction against |z| with the two fitted
+// hypotheses of the burst test.
+func (c *comparison) heightCheck(split float64, smooth, burst compare.FitResult) (*compare.HeightResult, error) {
+	return compare.HeightCheck(c.tpl, c.obs, split, c.gyroAt(split), map[string][]float64{
+		"smooth history (fit)": smooth.Weights,
+		"with burst (fit)":     burst.Weights,
+	})
 }

@@ -47,22 +47,7 @@ func runHeights(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	age := *split
-	if age == 0 {
-		age = c.s.Compare.SplitAgeGyr
-	}
-	if age == 0 {
-		age = 0.6
-		for i, n := range fb.Names {
-			if n == c.s.Compare.BurstPart+".age_gyr" {
-				age = fb.Theta[i]
-			}
-		}
-	}
-	h, err := compare.HeightCheck(c.tpl, c.obs, age, c.gyroAt(age), map[string][]float64{
-		"smooth history (fit)": fs0.Weights,
-		"with burst (fit)":     fb.Weights,
-	})
+	h, err := c.heightCheck(c.splitAge(*split, fb), fs0, fb)
 	if err != nil {
 		return err
 	}

@@ -135,11 +135,17 @@ func periodHistograms(t *model.Tally, panels int) [][]*plot.Plot {
 		}
 		row = append(row, p)
 	}
-	cols := 3
+	grid := inRows(row, 3)
+	return grid
+}
+
+// inRows lays panels out cols to a row for writeGrid, padding the last row
+// with blanks.
+func inRows(panels []*plot.Plot, cols int) [][]*plot.Plot {
 	var grid [][]*plot.Plot
-	for i := 0; i < len(row); i += cols {
+	for i := 0; i < len(panels); i += cols {
 		r := make([]*plot.Plot, cols)
-		copy(r, row[i:min(i+cols, len(row))])
+		copy(r, panels[i:min(i+cols, len(panels))])
 		grid = append(grid, r)
 	}
 	return grid

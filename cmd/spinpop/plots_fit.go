@@ -153,13 +153,7 @@ func periodHistsDataModel(sp compare.Space, data []float64, models map[string][]
 		}
 		row = append(row, p)
 	}
-	cols := 3
-	var grid [][]*plot.Plot
-	for i := 0; i < len(row); i += cols {
-		r := make([]*plot.Plot, cols)
-		copy(r, row[i:min(i+cols, len(row))])
-		grid = append(grid, r)
-	}
+	grid := inRows(row, 3)
 	return grid, nil
 }
 

@@ -93,21 +93,8 @@ func burstTest(ctx context.Context, c *comparison, replicates int) (*burstOutcom
 			return nil, err
 		}
 	}
-	split := c.s.Compare.SplitAgeGyr
-	if split == 0 {
-		split = 0.6
-		if tr.AgeParam != "" {
-			for i, n := range tr.Burst.Names {
-				if n == tr.AgeParam {
-					split = tr.Burst.Theta[i]
-				}
-			}
-		}
-	}
-	out.heights, err = compare.HeightCheck(c.tpl, c.obs, split, c.gyroAt(split), map[string][]float64{
-		"smooth history (fit)": tr.Smooth.Weights,
-		"with burst (fit)":     tr.Burst.Weights,
-	})
+	split := c.splitAge(0, tr.Burst)
+	out.heights, err = c.heightCheck(split, tr.Smooth, tr.Burst)
 	if err != nil {
 		return nil, err
 	}
