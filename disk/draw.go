@@ -155,12 +155,33 @@ func (s *Sampler) r2Pc2(p *proposal) float64 {
 
 // angles returns the proposal's Galactic longitude in [0, 360) and
 // latitude, in degrees.
-func (p *proposal) angles() (lDeg, bDeg float64) {
+func (p *proposal) angles() (lDeg, bDeg float64) { return p.direction().Angles() }
+
+// direction returns the proposal's direction, angles not yet worked out.
+func (p *proposal) direction() Direction {
 	if p.galactic {
 		// About the Galactic pole cos ρ = sin b and φ = l.
-		lDeg = p.phi * radToDeg
+		return Direction{x: p.phi, sinB: p.uc, galactic: true}
+	}
+	return Direction{x: p.u.x, y: p.u.y, sinB: p.sinB()}
+}
+
+// Direction is a drawn point's direction on the sky in the form the draw
+// produced it. Turning it into Galactic angles costs an arctangent and an
+// arcsine, which a caller that keeps few of its points can leave for the
+// points it keeps.
+type Direction struct {
+	x, y, sinB float64 // unit vector (x, y, sin b); for galactic: x = l in radians
+	galactic   bool
+}
+
+// Angles returns the Galactic longitude in [0, 360) and latitude, in
+// degrees.
+func (d Direction) Angles() (lDeg, bDeg float64) {
+	if d.galactic {
+		lDeg = d.x * radToDeg
 	} else {
-		lDeg = math.Atan2(p.u.y, p.u.x) * radToDeg
+		lDeg = math.Atan2(d.y, d.x) * radToDeg
 		if lDeg < 0 {
 			lDeg += 360
 		}
@@ -168,7 +189,7 @@ func (p *proposal) angles() (lDeg, bDeg float64) {
 	if lDeg >= 360 {
 		lDeg = 0
 	}
-	return lDeg, math.Asin(p.sinB()) * radToDeg
+	return lDeg, math.Asin(d.sinB) * radToDeg
 }
 
 // unit32 maps the low 32 bits of x to [0, 1).

@@ -45,37 +45,66 @@ func (dl DustLayer) Validate() error {
 
 // AV returns the V-band extinction in magnitudes to distance dPc along
 // (l, b): the integral of a(z) along the sight line, whose height is
-// z(s) = z☉ + s sin b as in ZPc. In closed form, for a stretch that stays
-// on one side of the midplane with z going from z1 to z2,
-//
-//	∫ a ds = a0 H (e^(−|z1|/H) − e^(−|z2|/H)) / |sin b|,
-//
-// computed with expm1 so that it tends to a0 Δs e^(−|z|/H) as sin b → 0. A
-// sight line that crosses the midplane is split there.
+// z(s) = z☉ + s sin b as in ZPc. See SunDust.AV.
 func (dl DustLayer) AV(lDeg, bDeg, dPc float64, sun Sun) float64 {
-	a0 := dl.MidplaneAvPerKpc / 1000 // mag/pc
-	h := dl.ScaleHeightPc
-	sinB := math.Sin(bDeg * degToRad)
-	z1 := sun.ZPc
-	z2 := z1 + dPc*sinB
-	if (z1 > 0 && z2 < 0) || (z1 < 0 && z2 > 0) {
-		s0 := -z1 / sinB // path length to the midplane
-		return a0 * (layerPath(z1, s0, sinB, h) + layerPath(0, dPc-s0, sinB, h))
-	}
-	return a0 * layerPath(z1, dPc, sinB, h)
+	return dl.FromSun(sun).AV(dPc, sun.ZPc+dPc*math.Sin(bDeg*degToRad))
 }
 
-// layerPath returns ∫₀^L exp(−|z0 + s k|/H) ds for a stretch that does not
-// cross z = 0 (beyond its ends).
-func layerPath(z0, length, k, h float64) float64 {
-	// On one side of the plane |z0 + s k| = |z0| + s κ, κ = k sign.
-	kappa := k
-	if z0 < 0 || (z0 == 0 && k < 0) {
-		kappa = -k
+// SunDust is a DustLayer seen from the Sun: every sight line starts at
+// z☉, so what they share is worked out once and a star's extinction
+// follows from its distance and height alone.
+type SunDust struct {
+	a0PerPc float64 // midplane extinction per pc
+	invH    float64 // 1/scale height
+	zSunPc  float64
+	eSun    float64 // exp(−|z☉|/H)
+	toPlane float64 // mean of exp(−|z|/H) along a path from z☉ to the midplane
+}
+
+// FromSun returns the layer as seen from sun.
+func (dl DustLayer) FromSun(sun Sun) SunDust {
+	invH := 1 / dl.ScaleHeightPc
+	a := math.Abs(sun.ZPc) * invH
+	return SunDust{
+		a0PerPc: dl.MidplaneAvPerKpc / 1000,
+		invH:    invH,
+		zSunPc:  sun.ZPc,
+		eSun:    math.Exp(-a),
+		// From |z☉| down to 0 the decay runs backwards: mean e^{−|z|/H}
+		// = e^{−a}·meanExpDecay(−a) = (1 − e^{−a})/a.
+		toPlane: math.Exp(-a) * meanExpDecay(-a),
 	}
-	if kappa == 0 {
-		return length * math.Exp(-math.Abs(z0)/h)
+}
+
+// AV returns the V-band extinction in magnitudes to a star at distance dPc
+// and height zPc above the midplane (zPc = z☉ + d sin b, as ZPc gives): the
+// integral of a(z) along the straight sight line. On a stretch that stays
+// on one side of the midplane |z| changes linearly with path length, so
+//
+//	∫ a ds = a0 L e^(−|z1|/H) (1 − e^(−x))/x,  x = (|z2| − |z1|)/H,
+//
+// L the stretch's length, computed with expm1 so that it tends to
+// a0 L e^(−|z1|/H) as x → 0 (a sight line along the plane). A sight line
+// that crosses the midplane is split there.
+func (sd SunDust) AV(dPc, zPc float64) float64 {
+	z1, z2 := sd.zSunPc, zPc
+	if (z1 > 0 && z2 < 0) || (z1 < 0 && z2 > 0) {
+		a1, a2 := math.Abs(z1), math.Abs(z2)
+		s0 := dPc * a1 / (a1 + a2) // path length to the midplane
+		return sd.a0PerPc * (s0*sd.toPlane + (dPc-s0)*meanExpDecay(a2*sd.invH))
 	}
-	x := kappa * length / h
-	return math.Exp(-math.Abs(z0)/h) * h * -math.Expm1(-x) / kappa
+	return sd.a0PerPc * dPc * sd.eSun * meanExpDecay((math.Abs(z2)-math.Abs(z1))*sd.invH)
+}
+
+// meanExpDecay returns the mean of e^(−t x) over t in [0, 1], (1 − e^(−x))/x,
+// which is 1 at x = 0.
+func meanExpDecay(x float64) float64 {
+	if math.Abs(x) < 0.0625 {
+		// Taylor series Σ (−x)ⁿ/(n+1)!; the first omitted term, x⁹/10!, is
+		// below 5e−18. Cheaper than expm1, and exact where 1 − e^(−x)
+		// would cancel.
+		return 1 - x*(1.0/2)*(1-x*(1.0/3)*(1-x*(1.0/4)*(1-x*(1.0/5)*(1-x*(1.0/6)*(1-x*(1.0/7)*(1-x*(1.0/8)*(1-x*(1.0/9))))))))
+	}
+	// Here 1 − e^(−x) loses under 2e−15 of its value to cancellation.
+	return (1 - math.Exp(-x)) / x
 }

@@ -50,6 +50,48 @@ func TestDustLimits(t *testing.T) {
 	var _ Extinction = NoDust{}
 }
 
+// TestSunDustFromHeight checks the height form against the (l, b, d) form
+// on random sight lines, including ones that cross the midplane and ones
+// nearly along it.
+func TestSunDustFromHeight(t *testing.T) {
+	dl := DefaultDustLayer()
+	for _, sun := range []Sun{DefaultSun(), {RKpc: 8, ZPc: -15}, {RKpc: 8, ZPc: 0}} {
+		sd := dl.FromSun(sun)
+		for i := range 2000 {
+			b := -90 + 180*float64(i)/1999
+			if i%7 == 0 {
+				b = 1e-7 * float64(i%13-6)
+			}
+			d := 1 + float64(i%97)*31
+			sinB := math.Sin(b * degToRad)
+			f := func(s float64) float64 {
+				return dl.MidplaneAvPerKpc / 1000 * math.Exp(-math.Abs(sun.ZPc+s*sinB)/dl.ScaleHeightPc)
+			}
+			num := 0.0
+			if s0 := -sun.ZPc / sinB; s0 > 0 && s0 < d {
+				num = simpson(f, 0, s0, 2000) + simpson(f, s0, d, 2000)
+			} else {
+				num = simpson(f, 0, d, 2000)
+			}
+			got := sd.AV(d, sun.ZPc+d*sinB)
+			require.InDelta(t, num, got, 1e-9*(1+num), "sun %v b %v d %v", sun, b, d)
+		}
+	}
+}
+
+func BenchmarkSunDustAV(b *testing.B) {
+	sd := DefaultDustLayer().FromSun(DefaultSun())
+	z, sum := -500.0, 0.0
+	for b.Loop() {
+		sum += sd.AV(700, z)
+		z += 0.1
+		if z > 500 {
+			z = -500
+		}
+	}
+	_ = sum
+}
+
 func BenchmarkDustAV(b *testing.B) {
 	dl := DefaultDustLayer()
 	sun := DefaultSun()
@@ -62,4 +104,18 @@ func BenchmarkDustAV(b *testing.B) {
 		}
 	}
 	_ = sum
+}
+
+// TestMeanExpDecay checks the series and the exp branch of meanExpDecay
+// against −expm1(−x)/x, which has no cancellation (Go's math package).
+func TestMeanExpDecay(t *testing.T) {
+	assert.Equal(t, 1.0, meanExpDecay(0))
+	for i := -3000; i <= 3000; i++ {
+		x := float64(i) * 1e-3
+		if i == 0 {
+			continue
+		}
+		want := -math.Expm1(-x) / x
+		require.InEpsilon(t, want, meanExpDecay(x), 3e-15, "x = %v", x)
+	}
 }

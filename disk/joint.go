@@ -141,6 +141,14 @@ func (s *Sampler) Joint(binWeights []float64) (*JointSampler, error) {
 // Draw returns an age bin and a position drawn from the joint density (see
 // JointSampler). It allocates nothing; r is the only source of randomness.
 func (j *JointSampler) Draw(r *rand.Rand) (k int, lDeg, bDeg, dPc, zPc float64) {
+	k, dir, dPc, zPc := j.DrawDirection(r)
+	lDeg, bDeg = dir.Angles()
+	return k, lDeg, bDeg, dPc, zPc
+}
+
+// DrawDirection is Draw with the direction's angles left to the caller
+// (Direction.Angles): the same draw from the same random numbers.
+func (j *JointSampler) DrawDirection(r *rand.Rand) (k int, dir Direction, dPc, zPc float64) {
 	var p proposal
 	for {
 		k, bi, ok := j.try(r, &p)
@@ -153,8 +161,7 @@ func (j *JointSampler) Draw(r *rand.Rand) (k int, lDeg, bDeg, dPc, zPc float64) 
 				continue
 			}
 		}
-		lDeg, bDeg = p.angles()
-		return k, lDeg, bDeg, p.dPc, p.zPc
+		return k, p.direction(), p.dPc, p.zPc
 	}
 }
 

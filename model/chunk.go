@@ -1,8 +1,16 @@
 package model
 
-// Flag bits record what happened to a star on its way through the survey.
-// A star carries every flag that applies, so a catalog row says why a star
-// was or was not kept.
+import "spinpop/disk"
+
+// Flag bits record what happened to a star on its way through the survey,
+// so a catalog row says why a star was or was not kept. The catalogue's
+// steps are tested in order (magnitude limits, color range, main-sequence
+// band, then rotation and its detection) and a star is not tested beyond
+// the first photometric step it fails: FlagOnMainSeq is set only for stars
+// inside the magnitude and color ranges, and FlagOutsideLaw, FlagTidalLock,
+// FlagDetected, FlagInPeriodWindow and the alias flags only for stars that
+// pass all three photometric steps. The other flags are always set when
+// they apply.
 type Flag uint16
 
 const (
@@ -30,6 +38,12 @@ func (f Flag) Selected() bool {
 // Chunk holds a block of stars in struct-of-arrays form: one slice per
 // quantity, all of length N. Workers fill chunks in place; the arrays are
 // reused from chunk to chunk, so the hot path allocates nothing.
+//
+// Most generated stars fail the survey's magnitude limits, so rotation is
+// worked out only for the stars a catalogue could hold, those that pass the
+// magnitude, color and main-sequence cuts (see Flag). For the others
+// LDeg, BDeg, PeriodD, MeasPeriodD, Rossby, AmpPpm and NoisePpm are NaN
+// and DetectProb is 0; every other column is filled for every star.
 type Chunk struct {
 	Index int // position in the run; fixes the chunk's random stream
 	N     int
@@ -59,6 +73,11 @@ type Chunk struct {
 	NoisePpm      []float64 // survey noise per cadence at the star's magnitude
 	DetectProb    []float64
 	Flags         []Flag
+
+	// dir holds each star's direction as the joint sampler drew it, until
+	// star turns it into LDeg and BDeg (only for stars that pass the
+	// photometric catalogue cuts).
+	dir []disk.Direction
 }
 
 // NewChunk allocates a chunk for up to n stars.
@@ -84,6 +103,10 @@ func (c *Chunk) grow(n int) {
 		c.AgeBin = make([]int32, n)
 	}
 	c.AgeBin = c.AgeBin[:n]
+	if cap(c.dir) < n {
+		c.dir = make([]disk.Direction, n)
+	}
+	c.dir = c.dir[:n]
 	if cap(c.Flags) < n {
 		c.Flags = make([]Flag, n)
 	}

@@ -21,8 +21,10 @@ type Placer interface {
 // AgeInBin draws an age inside age bin k.
 type AgeInBin func(k int, r *rand.Rand) float64
 
-// Extinction gives A_V toward (l, b) out to distance d.
-type Extinction func(lDeg, bDeg, dPc float64) float64
+// Extinction gives A_V to a star at distance dPc and height zPc above the
+// midplane: enough for a plane-parallel dust layer (disk.SunDust), whose
+// extinction along a sight line from the Sun depends on nothing else.
+type Extinction func(dPc, zPc float64) float64
 
 // Survey is how the invented survey sees a star.
 type Survey struct {
@@ -156,7 +158,9 @@ const (
 // rejected points; and masses from this package's IMFs come from an exact
 // rejection sampler instead of inverting the CDF, which costs a logarithm
 // and an exponential. Either way the stars follow the same distributions,
-// drawn with different random numbers.
+// drawn with different random numbers. Rotation, its detection and the
+// sky angles are worked out only for stars that pass the photometric
+// catalogue cuts (see Chunk).
 func (p *Population) Fill(c *Chunk, r *rand.Rand) {
 	for i := 0; i < c.N; i++ {
 		p.place(c, i, r)
@@ -169,9 +173,9 @@ func (p *Population) Fill(c *Chunk, r *rand.Rand) {
 // place draws the age bin, position and age of star i.
 func (p *Population) place(c *Chunk, i int, r *rand.Rand) {
 	if p.joint != nil {
-		k, l, b, d, z := p.joint.Draw(r)
+		k, dir, d, z := p.joint.DrawDirection(r)
 		c.AgeBin[i], c.AgeGyr[i] = int32(k), p.Age(k, r)
-		c.LDeg[i], c.BDeg[i], c.DistPc[i], c.ZPc[i] = l, b, d, z
+		c.dir[i], c.DistPc[i], c.ZPc[i] = dir, d, z
 		return
 	}
 	// Age bin and position: redraw both on a radial rejection (exact joint draw).
@@ -191,7 +195,7 @@ func (p *Population) place(c *Chunk, i int, r *rand.Rand) {
 // star makes and observes star i, which place has put in the field.
 func (p *Population) star(c *Chunk, i int, r *rand.Rand) {
 	var flags Flag
-	age, l, b, d, z := c.AgeGyr[i], c.LDeg[i], c.BDeg[i], c.DistPc[i], c.ZPc[i]
+	age, d, z := c.AgeGyr[i], c.DistPc[i], c.ZPc[i]
 	var m float64
 	if p.masses != nil {
 		m = p.masses.sampleByRejection(r)
@@ -260,7 +264,7 @@ func (p *Population) star(c *Chunk, i int, r *rand.Rand) {
 
 	av := 0.0
 	if p.Dust != nil {
-		av = p.Dust(l, b, d)
+		av = p.Dust(d, z)
 	}
 	c.AV[i] = av
 	absBand, aBand := absV, av
@@ -281,8 +285,25 @@ func (p *Population) star(c *Chunk, i int, r *rand.Rand) {
 	if obsBV >= p.Cuts.BVMin && obsBV <= p.Cuts.BVMax {
 		flags |= FlagInColorRange
 	}
-	if p.onMainSequence(obsBV, obsAbs) {
+	// The band test is left out where the earlier cuts have already
+	// failed (see Chunk): it is the costliest of the three.
+	if flags&(FlagInMagRange|FlagInColorRange) == FlagInMagRange|FlagInColorRange && p.onMainSequence(obsBV, obsAbs) {
 		flags |= FlagOnMainSeq
+	}
+
+	// Rotation and its detection matter only for stars a catalogue could
+	// hold; about nine in ten generated stars fail the magnitude limits
+	// alone, so the rest of the star is skipped for them (see Chunk).
+	if flags&catalogCuts != catalogCuts || flags&FlagGone != 0 {
+		nan := math.NaN()
+		c.LDeg[i], c.BDeg[i] = nan, nan
+		c.PeriodD[i], c.MeasPeriodD[i], c.Rossby[i], c.AmpPpm[i], c.NoisePpm[i], c.DetectProb[i] = nan, nan, nan, nan, nan, 0
+		c.Flags[i] = flags
+		return
+	}
+
+	if p.joint != nil {
+		c.LDeg[i], c.BDeg[i] = c.dir[i].Angles()
 	}
 
 	// Rotation: the spin-down law, or the orbit for tidally locked pairs.
@@ -316,10 +337,10 @@ func (p *Population) star(c *Chunk, i int, r *rand.Rand) {
 		prob = 0
 	}
 	c.AmpPpm[i], c.DetectProb[i] = amp, prob
-	// Always consume the same random numbers whatever the outcome, so one
-	// star's fate never shifts the stream of the next: a star that is not
-	// detected draws the uniform and the normal deviate that spots.Recover
-	// would have, without working out a period nobody reads.
+	// Detected or not, a star consumes the same random numbers: one that
+	// is not detected draws the uniform and the normal deviate that
+	// spots.Recover would have, without working out a period nobody reads.
+	// (Stars that fail a photometric cut, above, draw none of these.)
 	u := r.Float64()
 	if u < prob {
 		meas, alias := spots.Recover(per, r, p.Survey.Recovery)
@@ -341,6 +362,10 @@ func (p *Population) star(c *Chunk, i int, r *rand.Rand) {
 	}
 	c.Flags[i] = flags
 }
+
+// catalogCuts are the photometric catalogue steps. A star that fails one
+// of them can never enter a catalogue, whatever its rotation.
+const catalogCuts = FlagInMagRange | FlagInColorRange | FlagOnMainSeq
 
 // unit32 maps the low 32 bits of x to [0, 1).
 func unit32(x uint64) float64 { return float64(uint32(x)) * (1.0 / (1 << 32)) }

@@ -53,7 +53,7 @@ func testPopulation(tb testing.TB, nBins int) *Population {
 		BinProb:   prob,
 		Age:       func(k int, r *rand.Rand) float64 { return edges[k] + r.Float64()*(edges[k+1]-edges[k]) },
 		Place:     smp,
-		Dust:      func(l, b, d float64) float64 { return dust.AV(l, b, d, sun) },
+		Dust:      dust.FromSun(sun).AV,
 		IMF:       imf,
 		Relations: rel,
 		Law:       spin.Barnes2007(),

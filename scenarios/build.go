@@ -106,8 +106,7 @@ func Build(s *Scenario) (*Built, error) {
 		if err := dl.Validate(); err != nil {
 			return nil, fmt.Errorf("dust: %w", err)
 		}
-		sun := b.Sun
-		dust = func(l, bb, d float64) float64 { return dl.AV(l, bb, d, sun) }
+		dust = dl.FromSun(b.Sun).AV
 	}
 
 	b.Population = &model.Population{
