@@ -140,15 +140,8 @@ func (s *Sampler) Joint(binWeights []float64) (*JointSampler, error) {
 
 // Draw returns an age bin and a position drawn from the joint density (see
 // JointSampler). It allocates nothing; r is the only source of randomness.
+// To draw many, DrawMany is faster.
 func (j *JointSampler) Draw(r *rand.Rand) (k int, lDeg, bDeg, dPc, zPc float64) {
-	k, dir, dPc, zPc := j.DrawDirection(r)
-	lDeg, bDeg = dir.Angles()
-	return k, lDeg, bDeg, dPc, zPc
-}
-
-// DrawDirection is Draw with the direction's angles left to the caller
-// (Direction.Angles): the same draw from the same random numbers.
-func (j *JointSampler) DrawDirection(r *rand.Rand) (k int, dir Direction, dPc, zPc float64) {
 	var p proposal
 	for {
 		k, bi, ok := j.try(r, &p)
@@ -161,7 +154,62 @@ func (j *JointSampler) DrawDirection(r *rand.Rand) (k int, dir Direction, dPc, z
 				continue
 			}
 		}
-		return k, p.direction(), p.dPc, p.zPc
+		lDeg, bDeg = p.angles()
+		return k, lDeg, bDeg, p.dPc, p.zPc
+	}
+}
+
+// jointLanes is how many proposals DrawMany carries through each step
+// together.
+const jointLanes = 8
+
+// DrawMany fills k, dir, dPc and zPc (all of one length) with independent
+// draws from the joint density, as Draw would make them one by one but
+// from other random numbers, and with each direction's angles left to the
+// caller (Direction.Angles). It takes the table lookups of several
+// proposals step by step together, so that their reads from memory
+// overlap instead of waiting on one another. It allocates nothing.
+func (j *JointSampler) DrawMany(r *rand.Rand, k []int32, dir []Direction, dPc, zPc []float64) {
+	n := len(k)
+	if len(dir) != n || len(dPc) != n || len(zPc) != n {
+		panic("disk: DrawMany needs slices of one length")
+	}
+	s := j.s
+	var (
+		pair [jointLanes]int
+		env  [jointLanes]float64
+		bi   [jointLanes]int
+		p    proposal
+	)
+	mask := 1<<j.classShift - 1
+	for filled := 0; filled < n; {
+		for l := range jointLanes {
+			pair[l], env[l] = pickClass(r.Uint64(), j.pairs)
+		}
+		for l := range jointLanes {
+			ci := pair[l] & mask
+			first := int(s.classStart[ci])
+			hi, lo := bits.Mul64(r.Uint64(), uint64(int(s.classStart[ci+1])-first))
+			b := first + int(hi)
+			if coin := float32(lo>>40) * (1.0 / (1 << 24)); !(coin < j.blocks[b].prob) {
+				b = first + int(j.blocks[b].alias)
+			}
+			bi[l] = b
+		}
+		for l := 0; l < jointLanes && filled < n; l++ {
+			kk := pair[l] >> j.classShift
+			if !s.trial(&s.bins[kk], env[l], &j.blocks[bi[l]].block, r, &p) {
+				continue
+			}
+			if s.invScalePc != 0 {
+				rPc := math.Sqrt(nonNeg(s.r2Pc2(&p)))
+				if !expNegBelow(p.radialUniform(r), (rPc-float64(j.rLoPc[bi[l]]))*s.invScalePc) {
+					continue
+				}
+			}
+			k[filled], dir[filled], dPc[filled], zPc[filled] = int32(kk), p.direction(), p.dPc, p.zPc
+			filled++
+		}
 	}
 }
 

@@ -111,7 +111,15 @@ func drawBinThenPlace(s *Sampler, weights []float64, r *rand.Rand) (k int, l, b,
 // 2 degrees of freedom, 0.999 quantile 13.82, from standard tables) and the
 // same distributions of height, distance and longitude within each bin
 // (two-sample KS). Common practice, no source.
+// DrawMany, which carries several proposals through each step together,
+// must draw the same law: it is checked the same way, in batches of
+// lengths that leave groups of proposals part-used.
 func TestJointMatchesBinThenDraw(t *testing.T) {
+	t.Run("Draw", func(t *testing.T) { testJointMatchesBinThenDraw(t, false) })
+	t.Run("DrawMany", func(t *testing.T) { testJointMatchesBinThenDraw(t, true) })
+}
+
+func testJointMatchesBinThenDraw(t *testing.T, many bool) {
 	sun := DefaultSun()
 	cone := Cone{LDeg: 30, BDeg: 12, RadiusDeg: 10, DistMaxPc: 1500}
 	s, err := NewSampler(cone, sun, testSheet, DefaultRadial(), []float64{8, 15, 25}, SamplerOptions{})
@@ -124,8 +132,27 @@ func TestJointMatchesBinThenDraw(t *testing.T) {
 	type sample struct{ z, d, l [3][]float64 }
 	var a, b sample
 	ra, rb := rand.New(rand.NewPCG(5, 6)), rand.New(rand.NewPCG(7, 8))
-	for range n {
-		k, l, _, d, z := j.Draw(ra)
+	var (
+		ks   []int32
+		dirs []Direction
+		ds   []float64
+		zs   []float64
+	)
+	for i := range n {
+		var k int
+		var l, d, z float64
+		if many {
+			if len(ks) == 0 {
+				m := []int{1, 7, 999, 4096}[i%4]
+				ks, dirs, ds, zs = make([]int32, m), make([]Direction, m), make([]float64, m), make([]float64, m)
+				j.DrawMany(ra, ks, dirs, ds, zs)
+			}
+			k, d, z = int(ks[0]), ds[0], zs[0]
+			l, _ = dirs[0].Angles()
+			ks, dirs, ds, zs = ks[1:], dirs[1:], ds[1:], zs[1:]
+		} else {
+			k, l, _, d, z = j.Draw(ra)
+		}
 		require.True(t, cone.Contains(l, math.Asin((z-sun.ZPc)/d)*radToDeg, d))
 		a.z[k], a.d[k], a.l[k] = append(a.z[k], z), append(a.d[k], d), append(a.l[k], math.Mod(l+180, 360))
 		k, l, _, d, z = drawBinThenPlace(s, weights, rb)

@@ -113,6 +113,40 @@ func companionFrom(primary, u, v, f, qMin float64) (massMsun float64, has bool) 
 	return q * primary, true
 }
 
+// binaryFractionCells brackets BinaryFraction on cells of mass 1/64 of an
+// octave wide, from 2⁻⁵ to 2⁵ M☉, indexed by the bits of the mass as in
+// Relations: the generator decides most companions from the bracket of
+// the primary's cell and works the fraction out only when its uniform
+// number falls inside it (a fraction of a per cent of stars).
+const (
+	fracCellShift = 52 - 6
+	fracCellLo    = -5
+	fracCells     = 10 << 6
+)
+
+var (
+	fracCellBitsLo = math.Float64bits(math.Ldexp(1, fracCellLo))
+	fracCellBounds = func() (b [fracCells][2]float64) {
+		for i := range b {
+			lo := math.Float64frombits(fracCellBitsLo + uint64(i)<<fracCellShift)
+			hi := math.Float64frombits(fracCellBitsLo + uint64(i+1)<<fracCellShift)
+			// BinaryFraction rises with mass; the margin covers its
+			// rounding.
+			b[i] = [2]float64{BinaryFraction(lo) - 1e-12, BinaryFraction(hi) + 1e-12}
+		}
+		return b
+	}()
+)
+
+// binaryFractionBounds returns lo ≤ BinaryFraction(m) ≤ hi.
+func binaryFractionBounds(m float64) (lo, hi float64) {
+	if i := (math.Float64bits(m) - fracCellBitsLo) >> fracCellShift; m > 0 && i < fracCells {
+		b := &fracCellBounds[i]
+		return b[0], b[1]
+	}
+	return binaryFractionMin, binaryFractionMax
+}
+
 // binaryFractionRange returns the smallest and largest BinaryFraction.
 func binaryFractionRange() (lo, hi float64) {
 	lo, hi = math.Inf(1), math.Inf(-1)

@@ -129,12 +129,26 @@ func TestCompanionDefaultsAndStream(t *testing.T) {
 func TestCompanionShortcut(t *testing.T) {
 	r := rand.New(rand.NewPCG(12, 13))
 	for _, scale := range []float64{0.5, 1, 1.7, 3} {
-		fLo, fHi := min(1, scale*binaryFractionMin), min(1, scale*binaryFractionMax)
-		for range 50000 {
-			m := 0.05 * math.Pow(60, r.Float64())
+		for i := range 200000 {
+			m := 0.01 * math.Pow(5000, r.Float64())
+			if i%2 == 0 {
+				// Near a node, or on a cell edge of binaryFractionBounds.
+				m = binaryFractionNodes[i/2%len(binaryFractionNodes)].massMsun
+				if i%4 == 0 {
+					m = math.Ldexp(1, fracCellLo+i/4%10) * (1 + float64(i/40%64)/64)
+				}
+				m = math.Nextafter(m, m+float64(i%3-1))
+			}
+			lo, hi := binaryFractionBounds(m)
+			inCells := m >= math.Ldexp(1, fracCellLo) && m < math.Ldexp(1, fracCellLo+10)
+			require.True(t, lo >= binaryFractionMin-1e-12 && hi <= binaryFractionMax+1e-12 && (!inCells || hi-lo < 0.01), "mass %v: bounds [%v, %v]", m, lo, hi)
+			fLo, fHi := min(1, scale*lo), min(1, scale*hi)
 			u, v := r.Float64(), r.Float64()
+			if i%5 == 0 {
+				u = fLo + (fHi-fLo)*v // where the fraction must be worked out
+			}
 			full := min(1, scale*BinaryFraction(m))
-			require.True(t, full >= fLo && full <= fHi)
+			require.True(t, full >= fLo && full <= fHi, "mass %v: %v outside [%v, %v]", m, full, fLo, fHi)
 			f := fLo
 			if u >= fLo && u < fHi {
 				f = full

@@ -153,8 +153,8 @@ const (
 // It places every star of the chunk first (age bin, position, age), then
 // makes and observes them one by one: each loop keeps its own tables in
 // cache. Two draws take faster routes to the same laws: when Place is a
-// *disk.Sampler, the age bin and the position come from its JointSampler
-// (with bin weights BinProb[k]/BinIntegral(k)), which loses no radially
+// *disk.Sampler, the age bins and positions come from its JointSampler
+// (DrawMany, bin weights BinProb[k]/BinIntegral(k)), which loses no radially
 // rejected points; and masses from this package's IMFs come from an exact
 // rejection sampler instead of inverting the CDF, which costs a logarithm
 // and an exponential. Either way the stars follow the same distributions,
@@ -162,23 +162,25 @@ const (
 // sky angles are worked out only for stars that pass the photometric
 // catalogue cuts (see Chunk).
 func (p *Population) Fill(c *Chunk, r *rand.Rand) {
-	for i := 0; i < c.N; i++ {
-		p.place(c, i, r)
+	if p.joint != nil {
+		p.joint.DrawMany(r, c.AgeBin[:c.N], c.dir[:c.N], c.DistPc[:c.N], c.ZPc[:c.N])
+		for i := 0; i < c.N; i++ {
+			c.AgeGyr[i] = p.Age(int(c.AgeBin[i]), r)
+		}
+	} else {
+		for i := 0; i < c.N; i++ {
+			p.place(c, i, r)
+		}
 	}
 	for i := 0; i < c.N; i++ {
 		p.star(c, i, r)
 	}
 }
 
-// place draws the age bin, position and age of star i.
+// place draws the age bin, position and age of star i through the
+// Placer, redrawing both bin and position on a radial rejection, which
+// keeps the joint (age, position) draw exact.
 func (p *Population) place(c *Chunk, i int, r *rand.Rand) {
-	if p.joint != nil {
-		k, dir, d, z := p.joint.DrawDirection(r)
-		c.AgeBin[i], c.AgeGyr[i] = int32(k), p.Age(k, r)
-		c.dir[i], c.DistPc[i], c.ZPc[i] = dir, d, z
-		return
-	}
-	// Age bin and position: redraw both on a radial rejection (exact joint draw).
 	var k int
 	var l, b, d, z float64
 	for {
@@ -236,14 +238,15 @@ func (p *Population) star(c *Chunk, i int, r *rand.Rand) {
 	comp := 0.0
 	if scale := p.Binaries.FractionScale; scale > 0 {
 		// Companion, with the mass-dependent fraction worked out only when
-		// u falls where it could decide: below its smallest value there is
-		// a companion whatever the mass, above its largest there is none.
-		// One 64-bit draw gives both 32-bit uniforms.
+		// u falls where it could decide: below its smallest value near m
+		// there is a companion, above its largest there is none. One
+		// 64-bit draw gives both 32-bit uniforms.
 		x := r.Uint64()
 		u, v := unit32(x>>32), unit32(x)
-		fLo := min(1, scale*binaryFractionMin)
+		lo, hi := binaryFractionBounds(m)
+		fLo := min(1, scale*lo)
 		f := fLo
-		if u >= fLo && u < min(1, scale*binaryFractionMax) {
+		if u >= fLo && u < min(1, scale*hi) {
 			f = p.binaryFraction(m)
 		}
 		// A companion below the table's mass range is too faint to matter

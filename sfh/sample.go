@@ -8,9 +8,11 @@ import (
 
 // RangeSampler draws exact lookback ages from a History restricted to one age
 // range. It holds the per-range constants of every component's inverse CDF,
-// so Sample costs one uniform to pick a component, one to invert its CDF and,
-// with dips, one for the acceptance test, and allocates nothing. A
-// RangeSampler is immutable and may be shared; the *rand.Rand may not.
+// so Sample costs one uniform to pick a component, one to invert its CDF
+// (or two per trial where a narrow exponential is drawn by rejection, see
+// span.sample) and, with dips, one for the acceptance test, and allocates
+// nothing. A RangeSampler is immutable and may be shared; the *rand.Rand
+// may not.
 type RangeSampler struct {
 	h      *History
 	lo, hi float64
@@ -76,7 +78,7 @@ func (s *RangeSampler) Sample(r *rand.Rand) float64 {
 				break
 			}
 		}
-		age := s.spans[k].quantile(r.Float64())
+		age := s.spans[k].sample(r)
 		if len(h.dips) == 0 || r.Float64()*s.dipMax < h.dipFactor(age) {
 			return age
 		}
@@ -130,7 +132,7 @@ func (h *History) SampleInRange(r *rand.Rand, lo, hi float64) float64 {
 				break
 			}
 		}
-		age := sp.quantile(r.Float64())
+		age := sp.sample(r)
 		if len(h.dips) == 0 || r.Float64()*dmax < h.dipFactor(age) {
 			return age
 		}

@@ -54,6 +54,10 @@ var rangeCases = []rangeCase{
 	{"mix-two-dips", 1.2, 1.8},
 	{"steep", 12.5, 20},
 	{"rising", 0, 0.1},
+	// Narrow ranges of an exponential (rate × width ≤ 0.25): drawn by
+	// rejection from the uniform, heavy end low and high.
+	{"declining", 2.0, 2.6},
+	{"rising", 5.0, 5.4},
 }
 
 func historyByName(t *testing.T, name string) *sfh.History {

@@ -1,6 +1,9 @@
 package sfh
 
-import "math"
+import (
+	"math"
+	"math/rand/v2"
+)
 
 // shape is a component's age distribution, normalised to unit mass on
 // [0, MaxAgeGyr], with closed forms for everything the History needs.
@@ -73,6 +76,36 @@ func (s *span) quantile(u float64) float64 {
 		age = s.steps.quantile(s.cumLo + u*(s.cumHi-s.cumLo))
 	}
 	return clamp(age, s.lo, s.hi)
+}
+
+// flatExpMax is the largest decay rate × width for which sample draws an
+// exponential span by rejection from the uniform: at most 1 + 0.25/2
+// trials on average, and no logarithm.
+const flatExpMax = 0.25
+
+// sample draws an age from the span, exactly: the inverse CDF at a uniform
+// number, except for an exponential that changes little across the span
+// (a narrow age bin), drawn uniformly and kept with probability
+// exp(−rate·r), r the distance from the heavy end. The Taylor bounds
+// 1 − x + x²/2 − x³/6 ≤ e^(−x) ≤ 1 − x + x²/2 decide almost every trial
+// without an exponential.
+func (s *span) sample(r *rand.Rand) float64 {
+	if s.kind != spanExp || !(s.rate*(s.hi-s.lo) <= flatExpMax) {
+		return s.quantile(r.Float64())
+	}
+	w := s.hi - s.lo
+	for {
+		t, u := r.Float64(), r.Float64()
+		x := s.rate * w * t
+		upper := 1 - x + 0.5*x*x
+		if u >= upper || (u >= upper-x*x*x*(1.0/6) && u >= math.Exp(-x)) {
+			continue
+		}
+		if s.heavyHigh {
+			return clamp(s.hi-t*w, s.lo, s.hi)
+		}
+		return clamp(s.lo+t*w, s.lo, s.hi)
+	}
 }
 
 // newShape builds the shape of a validated smooth component or burst.
