@@ -172,8 +172,26 @@ func (p *Population) Fill(c *Chunk, r *rand.Rand) {
 			p.place(c, i, r)
 		}
 	}
+	// What star works out only for the few stars that pass the photometric
+	// cuts starts as "not worked out" for all: column by column, which
+	// writes memory faster than eight scattered stores per star.
+	for _, col := range [...][]float64{c.PeriodD, c.MeasPeriodD, c.Rossby, c.AmpPpm, c.NoisePpm} {
+		fillNaN(col[:c.N])
+	}
+	if p.joint != nil {
+		fillNaN(c.LDeg[:c.N])
+		fillNaN(c.BDeg[:c.N])
+	}
+	clear(c.DetectProb[:c.N])
 	for i := 0; i < c.N; i++ {
 		p.star(c, i, r)
+	}
+}
+
+func fillNaN(x []float64) {
+	nan := math.NaN()
+	for i := range x {
+		x[i] = nan
 	}
 }
 
@@ -298,9 +316,11 @@ func (p *Population) star(c *Chunk, i int, r *rand.Rand) {
 	// hold; about nine in ten generated stars fail the magnitude limits
 	// alone, so the rest of the star is skipped for them (see Chunk).
 	if flags&catalogCuts != catalogCuts || flags&FlagGone != 0 {
-		nan := math.NaN()
-		c.LDeg[i], c.BDeg[i] = nan, nan
-		c.PeriodD[i], c.MeasPeriodD[i], c.Rossby[i], c.AmpPpm[i], c.NoisePpm[i], c.DetectProb[i] = nan, nan, nan, nan, nan, 0
+		// Fill has set the rotation columns (and, after a joint draw, the
+		// angles) to NaN and DetectProb to 0.
+		if p.joint == nil {
+			c.LDeg[i], c.BDeg[i] = math.NaN(), math.NaN()
+		}
 		c.Flags[i] = flags
 		return
 	}
