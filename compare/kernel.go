@@ -1,34 +1,24 @@
 package compare
 
-import "gonum.org/v1/gonum/floats"
+import "spinpop/compare/stats"
 
-// Loops of the Barlow–Beeston-lite likelihood, on templates stored
-// age-bin-major (cols[j*nb+i] = T_ji) so that every pass is a long unit-
-// stride axpy or dot product, which gonum runs in SSE2 assembly; on the
-// reference machine that is about twice as fast as a four-row blocked Go
-// loop over the bins-major layout.
+// Matrix–vector passes of the Barlow–Beeston-lite likelihood over the
+// bins-major templates (rows[i*k+j] = T_ji), in the kernels the Poisson
+// mixture uses (stats.MatVec, stats.MatTVecAdd: AVX2 assembly where the
+// processor has it), each a single pass over the block.
 
 // mixMoments sets m[i] = Σ_j T_ji w_j and v[i] = Σ_j T_ji w2_j.
-func mixMoments(cols []float64, w, w2, m, v []float64) {
+func mixMoments(rows []float64, k int, w, w2, m, v []float64) {
 	nb := len(m)
-	for i := range m {
-		m[i], v[i] = 0, 0
-	}
-	for j, wj := range w {
-		c := cols[j*nb : (j+1)*nb]
-		if wj != 0 {
-			floats.AddScaled(m, wj, c)
-			floats.AddScaled(v, w2[j], c)
-		}
-	}
+	stats.MatVec(rows, nb, k, w, m)
+	stats.MatVec(rows, nb, k, w2, v)
 }
 
 // mixGradient sets g[j] = Σ_i T_ji a[i] and h[j] = Σ_i T_ji b[i].
-func mixGradient(cols []float64, a, b, g, h []float64) {
+func mixGradient(rows []float64, k int, a, b, g, h []float64) {
 	nb := len(a)
-	for j := range g {
-		c := cols[j*nb : (j+1)*nb]
-		g[j] = floats.Dot(c, a)
-		h[j] = floats.Dot(c, b)
-	}
+	clear(g)
+	clear(h)
+	stats.MatTVecAdd(rows, nb, k, a, g)
+	stats.MatTVecAdd(rows, nb, k, b, h)
 }

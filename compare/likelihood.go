@@ -87,7 +87,6 @@ type Likelihood struct {
 	space    Space
 	k, nb    int
 	rows     []float64 // bins-major templates, rows[i*k+j] = T_ji; shared, read-only
-	cols     []float64 // the same, age-bin-major: cols[j*nb+i] = T_ji
 	colSum   []float64 // S_k = Σ_i T_ki
 	n        []float64
 	nTot     float64
@@ -97,6 +96,8 @@ type Likelihood struct {
 
 	// scratch
 	w2, ws, m, v, a, b, h []float64
+	t, tLog               []float64 // β_i μ_i of each bin, and a copy stats.LogTerms may overwrite
+	r, c                  []float64 // see bbPrepare
 }
 
 // NewLikelihood prepares the comparison of tpl against counts: 3-D
@@ -135,7 +136,6 @@ func NewLikelihood(tpl *Templates, counts []float64, opts LikeOptions) (*Likelih
 	}
 	l := &Likelihood{opts: opts, space: t.Space, k: nk, nb: nb}
 	l.rows = make([]float64, nb*nk)
-	l.cols = append([]float64(nil), t.Counts...)
 	l.colSum = make([]float64, nk)
 	for j := range nk {
 		for i, v := range t.Counts[j*nb : (j+1)*nb] {
@@ -157,7 +157,7 @@ func (l *Likelihood) WithCounts(counts []float64) (*Likelihood, error) {
 	if len(counts) != l.nb {
 		return nil, fmt.Errorf("compare: %d counts for a comparison space of %d bins", len(counts), l.nb)
 	}
-	c := &Likelihood{opts: l.opts, space: l.space, k: l.k, nb: l.nb, rows: l.rows, cols: l.cols, colSum: l.colSum, free: l.free, bb: l.bb}
+	c := &Likelihood{opts: l.opts, space: l.space, k: l.k, nb: l.nb, rows: l.rows, colSum: l.colSum, free: l.free, bb: l.bb}
 	if err := c.setCounts(counts); err != nil {
 		return nil, err
 	}
@@ -199,6 +199,8 @@ func (l *Likelihood) setCounts(counts []float64) error {
 	l.mix = stats.NewMixture(l.rows, l.k, l.n)
 	l.w2, l.ws, l.h = make([]float64, l.k), make([]float64, l.k), make([]float64, l.k)
 	l.m, l.v, l.a, l.b = make([]float64, l.nb), make([]float64, l.nb), make([]float64, l.nb), make([]float64, l.nb)
+	l.t, l.tLog = make([]float64, l.nb), make([]float64, l.nb)
+	l.r, l.c = make([]float64, l.nb), make([]float64, l.nb)
 	return nil
 }
 
@@ -286,15 +288,31 @@ func (l *Likelihood) poissonLogL(w, grad []float64) float64 {
 	return s + mTot + n*math.Log(n/mTot) - n
 }
 
-// bbBeta is the profiled β of one bin (see stats.BBLiteBin) for count n,
-// expectation mu and relative variance d2.
-func bbBeta(n, mu, d2 float64) float64 {
-	b := mu*d2 - 1
-	c := n * d2
+// bbRoot returns the profiled β of one bin (see stats.BBLiteBin), the
+// positive root of β² + bβ − c = 0 with b = μδ² − 1 and c = nδ² ≥ 0, and
+// D = √(b² + 4c) = 2β + b, computed without cancellation.
+func bbRoot(b, c float64) (beta, d float64) {
+	d = math.Sqrt(b*b + 4*c)
 	if b > 0 {
-		return 2 * c / (b + math.Sqrt(b*b+4*c))
+		return 2 * c / (b + d), d
 	}
-	return (-b + math.Sqrt(b*b+4*c)) / 2
+	return (d - b) / 2, d
+}
+
+// bbPrepare sets, for every bin with template noise (m_i > 0, v_i > 0),
+// r_i = v_i/m_i and c_i = n_i v_i/m_i², so that at scale s the bin's
+// b = s r_i − 1 and c = c_i (δ_i² = v_i/m_i²); r_i = 0 marks a bin
+// without template noise.
+func (l *Likelihood) bbPrepare() {
+	for i, m := range l.m {
+		v := l.v[i]
+		if !(m > 0) || !(v > 0) {
+			l.r[i], l.c[i] = 0, 0
+			continue
+		}
+		r := v / m
+		l.r[i], l.c[i] = r, l.n[i]*r/m
+	}
 }
 
 // bbLogL is the Barlow–Beeston-lite likelihood.
@@ -302,7 +320,8 @@ func (l *Likelihood) bbLogL(w, grad []float64) float64 {
 	for j, v := range w {
 		l.w2[j] = v * v
 	}
-	mixMoments(l.cols, w, l.w2, l.m, l.v)
+	mixMoments(l.rows, l.k, w, l.w2, l.m, l.v)
+	l.bbPrepare()
 	scale := l.opts.MassScale
 	if l.free {
 		var ok bool
@@ -312,45 +331,57 @@ func (l *Likelihood) bbLogL(w, grad []float64) float64 {
 	}
 	var s float64
 	for i, n := range l.n {
-		m, v := l.m[i], l.v[i]
-		if !(m > 0) || !(v > 0) {
+		m, r := l.m[i], l.r[i]
+		if !(r > 0) {
 			// No template noise to profile: the plain Poisson term.
 			if n > 0 && !(m > 0) {
 				return l.outside(grad)
 			}
 			mu := scale * m
 			s -= mu
-			if n > 0 {
-				s += n * math.Log(mu)
-			}
+			l.t[i] = mu // n ln μ, added below
 			l.a[i], l.b[i] = -scale, 0
 			if n > 0 {
 				l.a[i] += n / m
 			}
 			continue
 		}
-		d2 := v / (m * m)
 		mu := scale * m
-		beta := bbBeta(n, mu, d2)
+		beta, _ := bbRoot(scale*r-1, l.c[i])
 		dev := beta - 1
-		s += -beta*mu - dev*dev/(2*d2)
-		if n > 0 {
-			s += n * math.Log(beta*mu)
-		}
+		q := dev * dev / r // (β − 1)²/(m δ²) = (β − 1)² m/v
+		s += -beta*mu - 0.5*q*m
+		l.t[i] = beta * mu // n ln βμ, added below
 		if grad != nil {
-			q := dev * dev * m / v
 			l.a[i] = -beta*scale - q
 			if n > 0 {
 				l.a[i] += n / m
 			}
-			l.b[i] = 0.5 * q * m / v
+			l.b[i] = 0.5 * q / r
 		}
 	}
+	s += l.sumNLog()
 	s -= l.lnFactN
 	if grad != nil {
-		mixGradient(l.cols, l.a, l.b, grad, l.h)
+		mixGradient(l.rows, l.k, l.a, l.b, grad, l.h)
 		for j := range grad {
 			grad[j] += 2 * w[j] * l.h[j]
+		}
+	}
+	return s
+}
+
+// sumNLog returns Σ_{n_i≠0} n_i ln t_i, by the mixture's vectorised pass
+// where it takes the values (they are positive wherever n_i ≠ 0).
+func (l *Likelihood) sumNLog() float64 {
+	copy(l.tLog, l.t)
+	if s, _, ok := stats.LogTerms(l.tLog, l.n, 0); ok {
+		return s
+	}
+	var s float64
+	for i, n := range l.n {
+		if n > 0 {
+			s += n * math.Log(l.t[i])
 		}
 	}
 	return s
@@ -363,9 +394,12 @@ func (l *Likelihood) outside(grad []float64) float64 {
 	return math.Inf(-1)
 }
 
-// bbScale solves s = N / Σ_i β_i(s) m_i for the free normalisation by the
-// secant method from s₀ = N/Σ m_i (the β = 1 answer), which is already
+// bbScale solves s Σ_i β_i(s) m_i = N for the free normalisation by
+// Newton's method from s₀ = N/Σ m_i (the β = 1 answer), which is already
 // close: β departs from 1 only by the templates' relative noise.
+// Differentiating β² + (s r − 1)β − c = 0 gives dβ/ds = −r β/D. A step
+// below 1e−6 of s leaves an error of order its square, so the loop stops
+// there without evaluating again.
 func (l *Likelihood) bbScale() (float64, bool) {
 	var mTot float64
 	for _, m := range l.m {
@@ -374,40 +408,31 @@ func (l *Likelihood) bbScale() (float64, bool) {
 	if !(mTot > 0) {
 		return 0, false
 	}
-	f := func(s float64) float64 {
-		var sum float64
-		for i, n := range l.n {
-			m, v := l.m[i], l.v[i]
-			if !(m > 0) || !(v > 0) {
+	s := l.nTot / mTot
+	for range 40 {
+		var sum, dsum float64
+		for i, m := range l.m {
+			r := l.r[i]
+			if !(r > 0) {
 				sum += m
 				continue
 			}
-			sum += bbBeta(n, s*m, v/(m*m)) * m
+			beta, d := bbRoot(s*r-1, l.c[i])
+			sum += beta * m
+			if d > 0 {
+				dsum -= r * beta / d * m
+			}
 		}
-		return l.nTot / sum
-	}
-	s0 := l.nTot / mTot
-	s1 := f(s0)
-	h0 := s1 - s0
-	for range 40 {
-		if math.Abs(s1-s0) <= 1e-12*s1 {
-			return s1, true
-		}
-		h1 := f(s1) - s1
-		if h1 == 0 {
-			return s1, true
-		}
-		den := h1 - h0
-		next := s1 + h1 // plain fixed-point step if the secant fails
-		if den != 0 {
-			next = s1 - h1*(s1-s0)/den
-		}
+		next := s - (s*sum-l.nTot)/(sum+s*dsum)
 		if !(next > 0) || math.IsInf(next, 0) {
-			next = s1 + h1
+			next = l.nTot / sum // the fixed-point step, if Newton's fails
 		}
-		s0, h0, s1 = s1, h1, next
+		if math.Abs(next-s) <= 1e-6*next {
+			return next, !math.IsNaN(next)
+		}
+		s = next
 	}
-	return s1, !math.IsNaN(s1)
+	return s, !math.IsNaN(s)
 }
 
 // Scale returns the normalisation in force at weights: N/Σ m_i for a free

@@ -122,7 +122,7 @@ func TestBBLiteFreeScaleIsAMaximum(t *testing.T) {
 	s, ok := lf.bbScale()
 	require.True(t, ok)
 	best := lf.LogL(w)
-	for _, f := range []float64{0.98, 0.995, 1, 1.005, 1.02} {
+	for _, f := range []float64{0.98, 0.995, 0.9999, 1, 1.0001, 1.005, 1.02} {
 		la, err := NewLikelihood(tpl, data, LikeOptions{Normalisation: NormAbsolute, MassScale: s * f})
 		require.NoError(t, err)
 		v := la.LogL(w)

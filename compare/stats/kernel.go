@@ -14,6 +14,45 @@ package stats
 // the CPU's feature flags, and tests flip it to exercise both paths.
 var useAsmKernels = haveAVXFMA()
 
+// MatVec sets y[i] = Σ_j a[i*k+j]·x[j] for i < m: the product of an m × k
+// bins-major block with a vector, in the kernel the mixture likelihood
+// uses. It panics if a slice is too short.
+func MatVec(a []float64, m, k int, x, y []float64) {
+	if m < 0 || k < 0 || len(a) < m*k || len(x) < k || len(y) < m {
+		panic("stats: MatVec slice too short for the block")
+	}
+	if k == 0 {
+		clear(y[:m])
+		return
+	}
+	gemvRows(a, m, k, x, y)
+}
+
+// MatTVecAdd adds Σ_i c[i]·a[i*k+j] to g[j] for j < k: the transposed
+// product of an m × k bins-major block. It panics if a slice is too short.
+func MatTVecAdd(a []float64, m, k int, c, g []float64) {
+	if m < 0 || k < 0 || len(a) < m*k || len(c) < m || len(g) < k {
+		panic("stats: MatTVecAdd slice too short for the block")
+	}
+	if k == 0 {
+		return
+	}
+	gemvRowsTAdd(a, m, k, c, g)
+}
+
+// LogTerms returns Σ_{n_i≠0} n_i ln μ_i and Σ_i μ_i, and overwrites μ_i
+// with n_i/μ_i − sub (−sub where n_i = 0): the per-bin part of a Poisson
+// log-likelihood and of its gradient in one pass, in assembly where the
+// processor allows. ok is false when a non-empty bin has a μ_i that pass
+// declines (zero, negative, subnormal, infinite or NaN); μ is then partly
+// overwritten, and the caller must decide those bins itself.
+func LogTerms(mu, n []float64, sub float64) (sumNLog, sumMu float64, ok bool) {
+	if len(n) < len(mu) {
+		panic("stats: LogTerms has fewer counts than expectations")
+	}
+	return blockTerms(mu, n, sub)
+}
+
 // gemvRows sets y[i] = Σ_j a[i*k+j]·x[j] for i < m.
 func gemvRows(a []float64, m, k int, x, y []float64) {
 	if m == 0 {

@@ -154,3 +154,70 @@ func TestMixtureUnusualExpectations(t *testing.T) {
 		require.True(t, math.IsNaN(grad[1]))
 	})
 }
+
+// The exported wrappers check their slices and reach the same kernels:
+// against the plain loops and math.Log (common practice, no source).
+func TestExportedKernels(t *testing.T) {
+	withKernels(t, func(t *testing.T) {
+		r := rand.New(rand.NewPCG(4, 2))
+		const m, k = 37, 11
+		a := make([]float64, m*k)
+		for i := range a {
+			a[i] = r.Float64()
+		}
+		x, c := make([]float64, k), make([]float64, m)
+		for i := range x {
+			x[i] = r.Float64()
+		}
+		for i := range c {
+			c[i] = r.NormFloat64()
+		}
+		y := make([]float64, m)
+		MatVec(a, m, k, x, y)
+		g := make([]float64, k)
+		for j := range g {
+			g[j] = 1
+		}
+		MatTVecAdd(a, m, k, c, g)
+		for i := range m {
+			want := 0.0
+			for j := range k {
+				want += a[i*k+j] * x[j]
+			}
+			require.InDelta(t, want, y[i], 1e-12)
+		}
+		for j := range k {
+			want := 1.0
+			for i := range m {
+				want += c[i] * a[i*k+j]
+			}
+			require.InDelta(t, want, g[j], 1e-12)
+		}
+
+		mu, n := make([]float64, m), make([]float64, m)
+		var wantLog, wantSum float64
+		for i := range mu {
+			mu[i] = 0.1 + 10*r.Float64()
+			if i%3 != 0 {
+				n[i] = float64(1 + i%5)
+				wantLog += n[i] * math.Log(mu[i])
+			}
+			wantSum += mu[i]
+		}
+		orig := append([]float64(nil), mu...)
+		sl, sm, ok := LogTerms(mu, n, 0.5)
+		require.True(t, ok)
+		require.InDelta(t, wantLog, sl, 1e-12*math.Abs(wantLog))
+		require.InDelta(t, wantSum, sm, 1e-12*wantSum)
+		for i := range mu {
+			require.InDelta(t, n[i]/orig[i]-0.5, mu[i], 1e-12, "bin %d", i)
+		}
+		mu[5], n[5] = 0, 2 // a non-empty bin with no expectation
+		_, _, ok = LogTerms(mu, n, 0)
+		require.False(t, ok)
+
+		require.Panics(t, func() { MatVec(a, m, k, x[:k-1], y) })
+		require.Panics(t, func() { MatTVecAdd(a[:m*k-1], m, k, c, g) })
+		require.Panics(t, func() { LogTerms(mu, n[:m-1], 0) })
+	})
+}
