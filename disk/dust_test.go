@@ -8,23 +8,26 @@ import (
 	"github.com/stretchr/testify/require"
 )
 
+// dustByQuadrature integrates the layer's extinction per pc along the
+// sight line with Simpson's rule on n panels, split at the midplane
+// crossing so that each piece is smooth.
+func dustByQuadrature(dl DustLayer, sun Sun, sinB, d float64, n int) float64 {
+	f := func(s float64) float64 {
+		return dl.MidplaneAvPerKpc / 1000 * math.Exp(-math.Abs(sun.ZPc+s*sinB)/dl.ScaleHeightPc)
+	}
+	if s0 := -sun.ZPc / sinB; s0 > 0 && s0 < d {
+		return simpson(f, 0, s0, n) + simpson(f, s0, d, n)
+	}
+	return simpson(f, 0, d, n)
+}
+
 func TestDustClosedFormAgainstQuadrature(t *testing.T) {
 	dl := DefaultDustLayer()
 	require.NoError(t, dl.Validate())
 	for _, sun := range []Sun{DefaultSun(), {RKpc: 8, ZPc: -15}, {RKpc: 8, ZPc: 0}} {
 		for _, b := range []float64{-90, -30, -2, -0.01, -1e-9, 0, 1e-9, 0.3, 5, 45, 90} {
 			for _, d := range []float64{1, 50, 400, 2500, 8000} {
-				sinB := math.Sin(b * degToRad)
-				f := func(s float64) float64 {
-					return dl.MidplaneAvPerKpc / 1000 * math.Exp(-math.Abs(sun.ZPc+s*sinB)/dl.ScaleHeightPc)
-				}
-				// Split at the midplane crossing so Simpson sees smooth pieces.
-				num := 0.0
-				if s0 := -sun.ZPc / sinB; s0 > 0 && s0 < d {
-					num = simpson(f, 0, s0, 20000) + simpson(f, s0, d, 20000)
-				} else {
-					num = simpson(f, 0, d, 20000)
-				}
+				num := dustByQuadrature(dl, sun, math.Sin(b*degToRad), d, 20000)
 				got := dl.AV(123, b, d, sun)
 				assert.InDelta(t, num, got, 1e-9*(1+num), "sun %v b %v d %v", sun, b, d)
 			}
@@ -64,15 +67,7 @@ func TestSunDustFromHeight(t *testing.T) {
 			}
 			d := 1 + float64(i%97)*31
 			sinB := math.Sin(b * degToRad)
-			f := func(s float64) float64 {
-				return dl.MidplaneAvPerKpc / 1000 * math.Exp(-math.Abs(sun.ZPc+s*sinB)/dl.ScaleHeightPc)
-			}
-			num := 0.0
-			if s0 := -sun.ZPc / sinB; s0 > 0 && s0 < d {
-				num = simpson(f, 0, s0, 2000) + simpson(f, s0, d, 2000)
-			} else {
-				num = simpson(f, 0, d, 2000)
-			}
+			num := dustByQuadrature(dl, sun, sinB, d, 2000)
 			got := sd.AV(d, sun.ZPc+d*sinB)
 			require.InDelta(t, num, got, 1e-9*(1+num), "sun %v b %v d %v", sun, b, d)
 		}
