@@ -188,6 +188,7 @@ func (p *Population) Fill(c *Chunk, r *rand.Rand) {
 	}
 }
 
+// fillNaN sets every element of x to NaN.
 func fillNaN(x []float64) {
 	nan := math.NaN()
 	for i := range x {
