@@ -183,7 +183,8 @@ func NewSampler(field Field, sun Sun, sheet Sheet, radial Radial, sigmasKms []fl
 //
 // For every block and bin it integrates ν_k(z) d² over the block with a
 // Gauss–Legendre product rule (3 or 3×3 nodes over the solid angle, 4 in
-// distance); the integrals sum to BinIntegral. For every bin it brackets ν_k
+// distance; ν_k interpolated from a fine table, to ~1e−9); the integrals
+// sum to BinIntegral. For every bin it brackets ν_k
 // on the height grid; the upper brackets times the class volumes weight the
 // alias table from which Draw picks a height class.
 func NewMixtureSampler(field Field, sun Sun, sheet Sheet, radial Radial, bins []Mixture, opts SamplerOptions) (*Sampler, error) {
@@ -222,6 +223,20 @@ func NewMixtureSampler(field Field, sun Sun, sheet Sheet, radial Radial, bins []
 
 	lc, nodeW := s.nodes(1 / sheet.Z0Pc())
 	nodesPerBlock := len(lc) / len(s.blocks)
+	lcMax := 0.0
+	for _, v := range lc {
+		lcMax = math.Max(lcMax, v)
+	}
+	profiles := make([]profile, len(bins))
+	nMax := 0.0
+	for k, m := range bins {
+		profiles[k] = newProfile(sheet, m)
+		nMax = math.Max(nMax, profiles[k].maxExponent())
+	}
+	step, tabulate := lcTableStep(nMax, lcMax)
+	if !tabulate {
+		step = 0
+	}
 
 	s.bins = make([]binTable, len(bins))
 	var wg sync.WaitGroup
@@ -230,7 +245,7 @@ func NewMixtureSampler(field Field, sun Sun, sheet Sheet, radial Radial, bins []
 		wg.Go(func() {
 			w := make([]float64, len(s.classVolPc3))
 			for k := range next {
-				s.bins[k] = s.buildBin(newProfile(sheet, bins[k]), len(bins[k]), lc, nodeW, nodesPerBlock, w)
+				s.bins[k] = s.buildBin(profiles[k], len(bins[k]), lc, lcMax, step, nodeW, nodesPerBlock, w)
 			}
 		})
 	}
@@ -395,15 +410,27 @@ func (s *Sampler) classify() {
 }
 
 // buildBin integrates one bin's profile over every block, brackets it on
-// the height grid and builds its alias table over height classes. w is
-// scratch of one float64 per class.
-func (s *Sampler) buildBin(p profile, components int, lc, nodeW []float64, perBlock int, w []float64) binTable {
+// the height grid and builds its alias table over height classes. The
+// integrals read the profile from a table of the given step in lc (see
+// lcTable), or evaluate it directly when step is 0; the brackets always
+// evaluate it exactly. w is scratch of one float64 per class.
+func (s *Sampler) buildBin(p profile, components int, lc []float64, lcMax, step float64, nodeW []float64, perBlock int, w []float64) binTable {
 	t := binTable{prof: p, components: components}
 	integral := 0.0
+	var tab lcTable
+	if step > 0 {
+		tab = p.table(step, lcMax)
+	}
 	for i := range s.blocks {
 		sum := 0.0
-		for j := i * perBlock; j < (i+1)*perBlock; j++ {
-			sum += nodeW[j] * p.relLogCosh(lc[j])
+		if step > 0 {
+			for j := i * perBlock; j < (i+1)*perBlock; j++ {
+				sum += nodeW[j] * tab.at(lc[j])
+			}
+		} else {
+			for j := i * perBlock; j < (i+1)*perBlock; j++ {
+				sum += nodeW[j] * p.relLogCosh(lc[j])
+			}
 		}
 		integral += sum
 	}
