@@ -148,11 +148,8 @@ func (j *JointSampler) Draw(r *rand.Rand) (k int, lDeg, bDeg, dPc, zPc float64) 
 		if !ok {
 			continue
 		}
-		if s := j.s; s.invScalePc != 0 {
-			rPc := math.Sqrt(nonNeg(s.r2Pc2(&p)))
-			if !expNegBelow(p.radialUniform(r), (rPc-float64(j.rLoPc[bi]))*s.invScalePc) {
-				continue
-			}
+		if !j.keepRadial(&p, bi, r) {
+			continue
 		}
 		lDeg, bDeg = p.angles()
 		return k, lDeg, bDeg, p.dPc, p.zPc
@@ -187,25 +184,12 @@ func (j *JointSampler) DrawMany(r *rand.Rand, k []int32, dir []Direction, dPc, z
 			pair[l], env[l] = pickClass(r.Uint64(), j.pairs)
 		}
 		for l := range jointLanes {
-			ci := pair[l] & mask
-			first := int(s.classStart[ci])
-			hi, lo := bits.Mul64(r.Uint64(), uint64(int(s.classStart[ci+1])-first))
-			b := first + int(hi)
-			if coin := float32(lo>>40) * (1.0 / (1 << 24)); !(coin < j.blocks[b].prob) {
-				b = first + int(j.blocks[b].alias)
-			}
-			bi[l] = b
+			bi[l] = j.pickBlock(pair[l]&mask, r.Uint64())
 		}
 		for l := 0; l < jointLanes && filled < n; l++ {
 			kk := pair[l] >> j.classShift
-			if !s.trial(&s.bins[kk], env[l], &j.blocks[bi[l]].block, r, &p) {
+			if !s.trial(&s.bins[kk], env[l], &j.blocks[bi[l]].block, r, &p) || !j.keepRadial(&p, bi[l], r) {
 				continue
-			}
-			if s.invScalePc != 0 {
-				rPc := math.Sqrt(nonNeg(s.r2Pc2(&p)))
-				if !expNegBelow(p.radialUniform(r), (rPc-float64(j.rLoPc[bi[l]]))*s.invScalePc) {
-					continue
-				}
 			}
 			k[filled], dir[filled], dPc[filled], zPc[filled] = int32(kk), p.direction(), p.dPc, p.zPc
 			filled++
@@ -214,17 +198,35 @@ func (j *JointSampler) DrawMany(r *rand.Rand, k []int32, dir []Direction, dPc, z
 }
 
 // try draws a bin, a class, a block and a point from the envelope into p
-// and makes the height test; the radial test is left to the caller. bi is
-// the block's index.
+// and makes the height test; the radial test (keepRadial) is left to the
+// caller. bi is the block's index.
 func (j *JointSampler) try(r *rand.Rand, p *proposal) (k, bi int, kept bool) {
-	s := j.s
 	pair, env := pickClass(r.Uint64(), j.pairs)
-	k, ci := pair>>j.classShift, pair&(1<<j.classShift-1)
+	k = pair >> j.classShift
+	bi = j.pickBlock(pair&(1<<j.classShift-1), r.Uint64())
+	return k, bi, j.s.trial(&j.s.bins[k], env, &j.blocks[bi].block, r, p)
+}
+
+// pickBlock draws a block of height class ci by V_b Ω_b from the random
+// bits x, and returns its index.
+func (j *JointSampler) pickBlock(ci int, x uint64) int {
+	s := j.s
 	first := int(s.classStart[ci])
-	hi, lo := bits.Mul64(r.Uint64(), uint64(int(s.classStart[ci+1])-first))
-	bi = first + int(hi)
-	if coin := float32(lo>>40) * (1.0 / (1 << 24)); !(coin < j.blocks[bi].prob) {
-		bi = first + int(j.blocks[bi].alias)
+	hi, lo := bits.Mul64(x, uint64(int(s.classStart[ci+1])-first))
+	b := first + int(hi)
+	if coin := float32(lo>>40) * (1.0 / (1 << 24)); !(coin < j.blocks[b].prob) {
+		b = first + int(j.blocks[b].alias)
 	}
-	return k, bi, s.trial(&s.bins[k], env, &j.blocks[bi].block, r, p)
+	return b
+}
+
+// keepRadial makes the radial test of proposal p from block bi: true with
+// probability exp(−(R − R_lo)/h), R_lo the block's bound on R.
+func (j *JointSampler) keepRadial(p *proposal, bi int, r *rand.Rand) bool {
+	s := j.s
+	if s.invScalePc == 0 {
+		return true
+	}
+	rPc := math.Sqrt(nonNeg(s.r2Pc2(p)))
+	return expNegBelow(p.radialUniform(r), (rPc-float64(j.rLoPc[bi]))*s.invScalePc)
 }
