@@ -32,3 +32,23 @@ func BenchmarkLoadFit(b *testing.B) {
 		}
 	}
 }
+
+// BenchmarkBaseResolve is the cost of one sweep point: the fit example's
+// chain, read once, resolved with two overrides and hashed.
+func BenchmarkBaseResolve(b *testing.B) {
+	base, err := ReadBase("example:fit")
+	if err != nil {
+		b.Fatal(err)
+	}
+	o, err := ParseOverrides([]string{"spin.law=torque", "history.burst.age_gyr=0.8"})
+	if err != nil {
+		b.Fatal(err)
+	}
+	for b.Loop() {
+		r, err := base.Resolve(o...)
+		if err != nil {
+			b.Fatal(err)
+		}
+		_ = r.Hash()
+	}
+}

@@ -182,13 +182,7 @@ func (d *decoder) resolveData(file string, src source) (dataPath string, dataFS 
 	if from == "" {
 		from = d.top
 	}
-	var err error
-	if fss, ok := src.(fsSource); ok {
-		dataPath, err = fss.join(from, file)
-		dataFS = fss.fsys
-	} else {
-		dataPath, err = osSource{}.join(from, file)
-	}
+	dataPath, dataFS, err := src.locateData(from, file)
 	if err != nil {
 		d.errAt("data.file", "data.file = %s: %s", quoteString(file), errText(err))
 		return "", nil, origin{}

@@ -46,7 +46,7 @@ func LoadExample(name string) (*Resolved, error) {
 	if !slices.Contains(Examples(), strings.TrimSuffix(name, ".toml")) {
 		return nil, ValidationErrors{{File: exampleFile(name), Msg: "no such example; the examples are " + listWords(Examples())}}
 	}
-	return LoadFS(exampleFS, exampleFile(name))
+	return Resolve(ExamplePrefix + name)
 }
 
 // ExampleText returns the text of the embedded example name, for a user

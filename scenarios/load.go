@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"io/fs"
 	"path"
+	"slices"
 	"strings"
 
 	"github.com/BurntSushi/toml"
@@ -20,6 +21,9 @@ type Resolved struct {
 	// Files lists the files merged, the most basic ancestor first and the
 	// loaded file last, with paths as the loader resolved them.
 	Files []string
+	// Overrides lists the labels of the overrides applied after the
+	// files, in order (e.g. "--set spin.law=torque").
+	Overrides []string
 	// DataPath is data.file resolved relative to the scenario file that
 	// set it (which may be an ancestor in the extends chain): a path in
 	// the operating system's file system after Load and after LoadBytes
@@ -83,34 +87,106 @@ func LoadFS(fsys fs.FS, name string) (*Resolved, error) {
 // load runs the pipeline: chain of files, merge over the built-in
 // defaults, decode, derived defaults, validation.
 func load(name string, data []byte, src source) (*Resolved, error) {
+	b, err := readBase(name, data, src)
+	if err != nil {
+		return nil, err
+	}
+	return b.Resolve()
+}
+
+// Base is a scenario's extends chain, read and parsed once, to be resolved
+// with different overrides (the points of a sweep) without reading or
+// parsing its files again. Resolve may be called from several goroutines.
+type Base struct {
+	name   string
+	src    source
+	layers []*layer // most basic first
+}
+
+// ReadBase reads the scenario ref and its extends chain: a file path, or a
+// built-in example as example:NAME.
+func ReadBase(ref string) (*Base, error) {
+	if name, ok := strings.CutPrefix(ref, ExamplePrefix); ok {
+		if !slices.Contains(Examples(), strings.TrimSuffix(name, ".toml")) {
+			return nil, ValidationErrors{{File: ref, Msg: "no such example; the examples are " + listWords(Examples())}}
+		}
+		src := fsSource{exampleFS}
+		data, err := src.read(exampleFile(name))
+		if err != nil {
+			return nil, ValidationErrors{{File: ref, Msg: "cannot read example: " + errText(err), Err: err}}
+		}
+		return readBase(exampleFile(name), data, src)
+	}
+	data, err := osSource{}.read(ref)
+	if err != nil {
+		return nil, ValidationErrors{{File: ref, Msg: "cannot read scenario: " + errText(err), Err: err}}
+	}
+	return readBase(ref, data, osSource{})
+}
+
+// Resolve reads the scenario ref (a file path or example:NAME) and applies
+// the overrides in order after its files.
+func Resolve(ref string, overrides ...Override) (*Resolved, error) {
+	b, err := ReadBase(ref)
+	if err != nil {
+		return nil, err
+	}
+	return b.Resolve(overrides...)
+}
+
+func readBase(name string, data []byte, src source) (*Base, error) {
+	_, inExamples := src.(fsSource)
+	inExamples = inExamples && src.(fsSource).fsys == exampleFS
+	src = withExamples{base: src, inExamples: inExamples}
 	layers, err := readChain(name, data, src)
 	if err != nil {
 		return nil, err
 	}
-	def, err := parseLayer("", []byte(builtinDefaults))
+	return &Base{name: name, src: src, layers: layers}, nil
+}
+
+// Resolve merges the chain over the built-in defaults, then the overrides
+// in order, fills derived defaults, validates, and resolves data.file.
+func (b *Base) Resolve(overrides ...Override) (*Resolved, error) {
+	def, err := defaults()
 	if err != nil {
 		// The defaults are part of the program; tests keep them valid.
 		return nil, fmt.Errorf("scenarios: built-in defaults do not parse: %w", err)
 	}
-	m := newMerged(name)
-	m.apply(def)
-	files := make([]string, len(layers))
-	for i, l := range layers {
-		m.apply(l)
+	m := newMerged(b.name)
+	m.apply(def.copyLayer())
+	files := make([]string, len(b.layers))
+	for i, l := range b.layers {
+		m.apply(l.copyLayer())
 		files[i] = l.file
+	}
+	src := b.src
+	var labels []string
+	if len(overrides) > 0 {
+		w := b.src.(withExamples)
+		w.overrides = make(map[string]bool, len(overrides))
+		for _, o := range overrides {
+			if o.layer == nil {
+				return nil, fmt.Errorf("scenarios: override %q was not made by ParseOverride or NewOverride", o.Key)
+			}
+			m.apply(o.layer.copyLayer())
+			w.overrides[o.Label] = true
+			labels = append(labels, o.Label)
+		}
+		src = w
 	}
 	m.dropNoneParts()
 
 	d := &decoder{merged: m}
 	var s Scenario
 	d.decodeStruct("", m.root, &s)
-	d.fillDerived(&s, stem(name))
+	d.fillDerived(&s, stem(b.name))
 	d.validate(&s)
 	dataPath, dataFS, dataAt := d.resolveData(s.Data.File, src)
 	if err := d.errs.result(); err != nil {
 		return nil, err
 	}
-	return &Resolved{Scenario: s, Files: files, DataPath: dataPath, DataFS: dataFS,
+	return &Resolved{Scenario: s, Files: files, Overrides: labels, DataPath: dataPath, DataFS: dataFS,
 		dataAt: dataAt, shaAt: d.locate("data.sha256")}, nil
 }
 

@@ -16,10 +16,13 @@ import (
 const maxFileBytes = 1 << 20
 
 // source reads scenario files and resolves an extends path relative to
-// the file that names it.
+// the file that names it. locateData resolves data.file, set in file
+// from, to a path and the file system it lies in (nil: the operating
+// system's).
 type source interface {
 	read(name string) ([]byte, error)
 	join(from, extends string) (string, error)
+	locateData(from, file string) (string, fs.FS, error)
 }
 
 // osSource reads from the operating system's file system.
@@ -42,6 +45,11 @@ func (osSource) join(from, extends string) (string, error) {
 		return filepath.Clean(extends), nil
 	}
 	return filepath.Join(filepath.Dir(from), extends), nil
+}
+
+func (s osSource) locateData(from, file string) (string, fs.FS, error) {
+	p, err := s.join(from, file)
+	return p, nil, err
 }
 
 // fsSource reads from an fs.FS, such as the embedded examples. Paths are
@@ -71,6 +79,11 @@ func (fsSource) join(from, extends string) (string, error) {
 	return p, nil
 }
 
+func (s fsSource) locateData(from, file string) (string, fs.FS, error) {
+	p, err := s.join(from, file)
+	return p, s.fsys, err
+}
+
 // noSource is the source of a scenario given as bytes without a file
 // system: it has nothing to extend.
 type noSource struct{}
@@ -81,6 +94,12 @@ func (noSource) read(name string) ([]byte, error) {
 
 func (noSource) join(from, extends string) (string, error) {
 	return "", errors.New("this scenario was given as bytes without a file system, so it cannot extend another file; load it with Load or give LoadBytes a file system")
+}
+
+// A scenario given as bytes without a file system finds its data in the
+// operating system's file system, relative to the name it was given under.
+func (noSource) locateData(from, file string) (string, fs.FS, error) {
+	return osSource{}.locateData(from, file)
 }
 
 func readLimited(r io.Reader) ([]byte, error) {
