@@ -2,6 +2,7 @@ package main
 
 import (
 	"context"
+	"flag"
 	"fmt"
 	"io"
 	"os"
@@ -42,14 +43,16 @@ type compareFlags struct {
 	out, templates *string
 	force, asJSON  *bool
 	threads        *int
+	sets           *stringList // --set overrides; nil for none
 }
 
-func addCompareFlags(fs interface {
-	String(string, string, string) *string
-	Bool(string, bool, string) *bool
-	Int(string, int, string) *int
-}) compareFlags {
+func addCompareFlags(fs *flag.FlagSet) compareFlags {
+	var sets *stringList
+	if f := fs.Lookup("set"); f != nil {
+		sets, _ = f.Value.(*stringList)
+	}
 	return compareFlags{
+		sets:      sets,
 		out:       fs.String("out", "", "output folder (created if missing; must be empty unless --force)"),
 		templates: fs.String("templates", defaultTemplateDir(), "folder of cached templates (reused while the scenario parts they depend on are unchanged); \"none\" disables the cache"),
 		force:     fs.Bool("force", false, "write into a non-empty folder, replacing this tool's files there"),
@@ -70,7 +73,11 @@ func defaultTemplateDir() string {
 // prepares the likelihood and the hypotheses.
 func setupComparison(ctx context.Context, arg string, f compareFlags, stderr io.Writer) (*comparison, error) {
 	start := time.Now()
-	res, err := loadScenario(arg)
+	var sets []string
+	if f.sets != nil {
+		sets = *f.sets
+	}
+	res, err := loadScenario(arg, sets)
 	if err != nil {
 		return nil, err
 	}

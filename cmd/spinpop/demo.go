@@ -32,7 +32,7 @@ func runDemo(args []string, stdout, stderr io.Writer) error {
 		return err
 	}
 	for _, name := range []string{"smooth", "burst"} {
-		res, err := loadScenario("example:" + name)
+		res, err := loadScenario("example:"+name, nil)
 		if err != nil {
 			return err
 		}

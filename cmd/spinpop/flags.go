@@ -13,6 +13,9 @@ import (
 func newFlagSet(name, synopsis, about string, stdout io.Writer) *flag.FlagSet {
 	fs := flag.NewFlagSet(name, flag.ContinueOnError)
 	fs.SetOutput(io.Discard)
+	if strings.Contains(synopsis, "SCENARIO") {
+		fs.Var(new(stringList), "set", "override a scenario key, validated like the file: key=value, repeatable\n(--set spin.law=torque --set history.burst.age_gyr=0.8; values in TOML syntax, bare words are strings)")
+	}
 	fs.Usage = func() {
 		fmt.Fprintf(stdout, "Usage: spinpop %s\n\n%s\n\nOptions:\n", synopsis, about)
 		fs.SetOutput(stdout)
@@ -22,6 +25,24 @@ func newFlagSet(name, synopsis, about string, stdout io.Writer) *flag.FlagSet {
 	return fs
 }
 
+// stringList is a repeatable string flag.
+type stringList []string
+
+func (l *stringList) String() string { return strings.Join(*l, " ") }
+
+func (l *stringList) Set(s string) error {
+	*l = append(*l, s)
+	return nil
+}
+
+// scenarioSets returns the --set arguments a command's flag set collected.
+func scenarioSets(fs *flag.FlagSet) []string {
+	if f := fs.Lookup("set"); f != nil {
+		return *f.Value.(*stringList)
+	}
+	return nil
+}
+
 // parseInterleaved lets flags come before or after positional arguments
 // (spinpop simulate SCENARIO --out DIR), which the flag package alone does
 // not.
@@ -29,8 +50,7 @@ func parseInterleaved(fs *flag.FlagSet, args []string) ([]string, error) {
 	var pos []string
 	for {
 		if err := fs.Parse(args); err != nil {
-			if err == flag.ErrHelp {
-				fs.Usage()
+			if err == flag.ErrHelp { // the flag package has printed the usage
 				return nil, errHelp
 			}
 			return nil, usageErrorf("%s: %v (see spinpop %s --help)", fs.Name(), err, fs.Name())

@@ -28,7 +28,7 @@ func runGyrochrones(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	res, err := loadScenario(path)
+	res, err := loadScenario(path, scenarioSets(fs))
 	if err != nil {
 		return err
 	}

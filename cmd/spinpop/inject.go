@@ -94,7 +94,7 @@ func injectCmd(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	}
 	// Check the injections against the fit's ranges before any template
 	// is built: a burst the fit cannot reach would be a wasted hour.
-	res, err := loadScenario(path)
+	res, err := loadScenario(path, scenarioSets(fs))
 	if err != nil {
 		return err
 	}

@@ -70,7 +70,7 @@ func runLaws(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	res, err := loadScenario(path)
+	res, err := loadScenario(path, scenarioSets(fs))
 	if err != nil {
 		return err
 	}

@@ -53,7 +53,7 @@ func runMock(args []string, stdout, stderr io.Writer) error {
 	if _, err := os.Stat(*out); err == nil && !*force {
 		return usageErrorf("%s exists; choose another name or pass --force to replace it", *out)
 	}
-	res, err := loadScenario(path)
+	res, err := loadScenario(path, scenarioSets(fs))
 	if err != nil {
 		return err
 	}

@@ -11,10 +11,14 @@ import (
 )
 
 // loadScenario reads a scenario file, or a built-in example named
-// "example:NAME".
-func loadScenario(arg string) (*scenarios.Resolved, error) {
-	if name, ok := strings.CutPrefix(arg, "example:"); ok {
-		res, err := scenarios.LoadExample(name)
+// "example:NAME", and applies the --set overrides.
+func loadScenario(arg string, sets []string) (*scenarios.Resolved, error) {
+	overrides, err := scenarios.ParseOverrides(sets)
+	if err != nil {
+		return nil, inputError{err}
+	}
+	if strings.HasPrefix(arg, scenarios.ExamplePrefix) {
+		res, err := scenarios.Resolve(arg, overrides...)
 		if err != nil {
 			return nil, inputError{err}
 		}
@@ -28,7 +32,7 @@ func loadScenario(arg string) (*scenarios.Resolved, error) {
 		}
 		return nil, usageErrorf("scenario file %s cannot be read: %v", arg, err)
 	}
-	res, err := scenarios.Load(arg)
+	res, err := scenarios.Resolve(arg, overrides...)
 	if err != nil {
 		return nil, inputError{err}
 	}

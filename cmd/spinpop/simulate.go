@@ -37,7 +37,7 @@ func runSimulate(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	res, err := loadScenario(path)
+	res, err := loadScenario(path, scenarioSets(fs))
 	if err != nil {
 		return err
 	}
