@@ -3,6 +3,7 @@ package model
 import (
 	"context"
 	"errors"
+	"fmt"
 	"math/rand/v2"
 	"runtime"
 	"sync"
@@ -39,10 +40,25 @@ func RunChunks(ctx context.Context, seed uint64, nStars int64, chunkStars, worke
 	if nStars < 0 || chunkStars <= 0 {
 		return errors.New("model: star count must be ≥ 0 and chunk size > 0")
 	}
+	return RunChunkRange(ctx, seed, nStars, chunkStars, ChunkRange{0, NumChunks(nStars, chunkStars)}, workers, fill, visit)
+}
+
+// RunChunkRange is RunChunks for the chunks [r.First, r.Last) of the run
+// of nStars stars only: one part of a run split across machines. Each
+// chunk is the same as in the whole run (its stream depends only on seed
+// and index; its size on nStars and chunkStars), so the parts' results,
+// merged in chunk order, are the whole run's.
+func RunChunkRange(ctx context.Context, seed uint64, nStars int64, chunkStars int, r ChunkRange, workers int, fill FillFunc, visit func(*Chunk) error) error {
+	if nStars < 0 || chunkStars <= 0 {
+		return errors.New("model: star count must be ≥ 0 and chunk size > 0")
+	}
+	if n := NumChunks(nStars, chunkStars); r.First < 0 || r.Last < r.First || r.Last > n {
+		return fmt.Errorf("model: chunk range [%d, %d) is not within the run's %d chunks", r.First, r.Last, n)
+	}
 	if workers <= 0 {
 		workers = runtime.GOMAXPROCS(0)
 	}
-	nChunks := int((nStars + int64(chunkStars) - 1) / int64(chunkStars))
+	nChunks := r.Last - r.First
 	if nChunks == 0 {
 		return nil
 	}
@@ -78,13 +94,14 @@ func RunChunks(ctx context.Context, seed uint64, nStars int64, chunkStars, worke
 				if !ok {
 					return
 				}
+				ci := r.First + i
 				n := chunkStars
-				if rem := nStars - int64(i)*int64(chunkStars); rem < int64(n) {
+				if rem := nStars - int64(ci)*int64(chunkStars); rem < int64(n) {
 					n = int(rem)
 				}
 				c.grow(n)
-				c.Index = i
-				fill(c, ChunkStream(seed, i))
+				c.Index = ci
+				fill(c, ChunkStream(seed, ci))
 				ready[i] <- c
 			}
 		}()
