@@ -107,47 +107,85 @@ func (t *Templates) check() error {
 // (a temporary file in dir renamed over the target) and returns it. The
 // key is computed by the caller from everything the templates depend on;
 // it must be a plain file name (letters, digits, '-', '_', '.').
+//
+// Cached is safe for concurrent callers, goroutines or processes on other
+// machines sharing dir over a network file system: a lock file
+// (dir/<key>.tpl.lock, created exclusively) lets one caller build while the
+// others wait for its file and then read it (reused = true). A builder
+// refreshes the lock's time while it works; a lock not refreshed for
+// LockStaleAfter is taken to be left by a dead builder and is broken. Even
+// then two builders cannot corrupt the file: each writes its own temporary
+// file and renames it into place whole, and both write the same bytes.
 func Cached(dir, key string, build func() (*Templates, error)) (*Templates, bool, error) {
 	if err := checkKey(key); err != nil {
 		return nil, false, err
 	}
 	path := filepath.Join(dir, key+".tpl")
-	if f, err := os.Open(path); err == nil {
-		t, lerr := LoadTemplates(f)
-		f.Close()
-		if lerr == nil && t.Key == key {
-			return t, true, nil
-		}
-		// A damaged, outdated or foreign file is rebuilt below.
+	if t := loadCached(path, key); t != nil {
+		return t, true, nil
 	}
-	t, err := build()
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		return nil, false, fmt.Errorf("compare: template cache directory: %w", err)
+	}
+	lk, t, err := lockOrWait(path, key)
+	if err != nil || t != nil {
+		return t, t != nil, err
+	}
+	defer lk.release()
+	// Another caller may have finished between the first look and the lock.
+	if t := loadCached(path, key); t != nil {
+		return t, true, nil
+	}
+	t, err = build()
 	if err != nil {
 		return nil, false, err
 	}
 	t.Key = key
-	if err := os.MkdirAll(dir, 0o755); err != nil {
-		return nil, false, fmt.Errorf("compare: template cache directory: %w", err)
+	if err := writeTemplates(dir, path, t); err != nil {
+		return nil, false, err
 	}
-	tmp, err := os.CreateTemp(dir, key+".tpl.tmp-*")
+	return t, false, nil
+}
+
+// loadCached returns the templates in path when they are intact and made
+// for key; nil when the file is missing, damaged, outdated or foreign (the
+// caller rebuilds it).
+func loadCached(path, key string) *Templates {
+	f, err := os.Open(path)
 	if err != nil {
-		return nil, false, fmt.Errorf("compare: template cache: %w", err)
+		return nil
+	}
+	defer f.Close()
+	t, err := LoadTemplates(f)
+	if err != nil || t.Key != key {
+		return nil
+	}
+	return t
+}
+
+// writeTemplates writes t to a temporary file in dir, syncs it and renames
+// it to path, so that a reader sees the old file or the whole new one.
+func writeTemplates(dir, path string, t *Templates) error {
+	tmp, err := os.CreateTemp(dir, filepath.Base(path)+".tmp-*")
+	if err != nil {
+		return fmt.Errorf("compare: template cache: %w", err)
 	}
 	defer os.Remove(tmp.Name()) // no-op after a successful rename
 	if err := t.Save(tmp); err != nil {
 		tmp.Close()
-		return nil, false, err
+		return err
 	}
 	if err := tmp.Sync(); err != nil {
 		tmp.Close()
-		return nil, false, fmt.Errorf("compare: template cache: %w", err)
+		return fmt.Errorf("compare: template cache: %w", err)
 	}
 	if err := tmp.Close(); err != nil {
-		return nil, false, fmt.Errorf("compare: template cache: %w", err)
+		return fmt.Errorf("compare: template cache: %w", err)
 	}
 	if err := os.Rename(tmp.Name(), path); err != nil {
-		return nil, false, fmt.Errorf("compare: template cache: %w", err)
+		return fmt.Errorf("compare: template cache: %w", err)
 	}
-	return t, false, nil
+	return nil
 }
 
 func checkKey(key string) error {
