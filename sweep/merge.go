@@ -101,8 +101,9 @@ func Merge(out string, plan *Plan) (*Table, error) {
 }
 
 // CSV renders the table: index, hash, status, one column per axis (named
-// by its key), the headline numbers, extra numbers by name, elapsed time,
-// host and error.
+// by its key), the headline numbers, extra numbers by name, and the error.
+// Where and how long a point ran is in results.json only, so that the same
+// sweep run anywhere gives the same CSV, byte for byte.
 func (t *Table) CSV() ([]byte, error) {
 	var extras []string
 	for _, r := range t.Rows {
@@ -119,7 +120,7 @@ func (t *Table) CSV() ([]byte, error) {
 		head = append(head, c.name)
 	}
 	head = append(head, extras...)
-	head = append(head, "elapsed_s", "host", "error")
+	head = append(head, "error")
 
 	var b bytes.Buffer
 	w := csv.NewWriter(&b)
@@ -145,11 +146,7 @@ func (t *Table) CSV() ([]byte, error) {
 				row = append(row, "")
 			}
 		}
-		el := ""
-		if r.ElapsedS > 0 {
-			el = strconv.FormatFloat(r.ElapsedS, 'f', 3, 64)
-		}
-		row = append(row, el, r.Host, firstLine(r.Error))
+		row = append(row, firstLine(r.Error))
 		if err := w.Write(row); err != nil {
 			return nil, err
 		}
