@@ -164,7 +164,7 @@ type ArrayJob struct {
 
 // ArrayIDs are the submitted jobs and their scripts.
 type ArrayIDs struct {
-	ArrayJobID, MergeJobID  string
+	ArrayJobID, MergeJobID   string
 	ArrayScript, MergeScript string
 }
 
