@@ -9,6 +9,7 @@ import (
 	"os/exec"
 	"path/filepath"
 	"strings"
+	"sync"
 	"testing"
 	"time"
 
@@ -79,13 +80,19 @@ func needSlurm(t *testing.T) {
 	if _, err := exec.LookPath("sbatch"); err != nil {
 		skip("skipping: sbatch is not on PATH; start a one-node Slurm with .ci/slurm-up (as root) to run this test")
 	}
-	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
-	defer cancel()
-	out, err := exec.CommandContext(ctx, "sinfo", "-h", "-o", "%T").CombinedOutput()
+	out, err := probeSlurm()
 	if err != nil || !strings.Contains(string(out), "idle") && !strings.Contains(string(out), "mix") && !strings.Contains(string(out), "alloc") {
 		skip("skipping: no Slurm controller answers with a usable node (sinfo: %v %s); start one with .ci/slurm-up", err, strings.TrimSpace(string(out)))
 	}
 }
+
+// probeSlurm asks the controller once per test binary: when none answers,
+// sinfo retries for several seconds.
+var probeSlurm = sync.OnceValues(func() ([]byte, error) {
+	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
+	defer cancel()
+	return exec.CommandContext(ctx, "sinfo", "-h", "-o", "%T").CombinedOutput()
+})
 
 // waitJobs waits until squeue lists none of the jobs.
 func waitJobs(t *testing.T, limit time.Duration, ids ...string) {
