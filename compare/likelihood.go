@@ -3,17 +3,30 @@ package compare
 import (
 	"fmt"
 	"math"
+	"strings"
 
 	"spinpop/compare/stats"
 )
 
 // Normalisation and template-noise choices of LikeOptions.
 const (
-	NormFree           = "free"
-	NormAbsolute       = "absolute"
+	NormFree     = "free"
+	NormAbsolute = "absolute"
+	// NormPerColor profiles one free scale per B−V column: the likelihood
+	// of the period (and height) distribution within each colour column,
+	// conditional on how many stars the column holds. The IMF, the relation
+	// table and any selection in colour alone drop out of it.
+	NormPerColor = "per-color"
+	// NormPerColorHeight profiles one scale per (B−V, |z|) cell: the
+	// period distribution within each cell. It needs a 3-D comparison.
+	NormPerColorHeight = "per-color-height"
+
 	NoiseBarlowBeeston = "barlow-beeston-lite"
 	NoiseIgnore        = "ignore"
 )
+
+// Normalisations lists the Normalisation values, for messages.
+var Normalisations = []string{NormFree, NormAbsolute, NormPerColor, NormPerColorHeight}
 
 // LikeOptions choose the likelihood.
 type LikeOptions struct {
@@ -21,11 +34,14 @@ type LikeOptions struct {
 	// free parameter, profiled out analytically — the multinomial
 	// likelihood of the histogram's shape, reported as the Poisson
 	// likelihood at the best scale — or "absolute": μ_i = MassScale Σ_k
-	// w_k T_ki exactly.
+	// w_k T_ki exactly; or "per-color" / "per-color-height": one free scale
+	// per colour column (per colour × height cell), i.e. the likelihood
+	// conditional on the number of stars in each column (cell).
 	Normalisation string
 	// TemplateNoise is "barlow-beeston-lite" (default) or "ignore". The
 	// templates are counts of simulated stars, Poisson themselves, so a
-	// mixture bin m_i = Σ_k w_k T_ki carries variance Σ_k w_k² T_ki; the
+	// mixture bin m_i = Σ_k w_k T_ki carries variance Σ_k w_k² T_ki (or
+	// Σ_k w_k² V_ki when the templates carry their own variances); the
 	// Barlow–Beeston-lite treatment (stats.BBLiteBin; Conway 2011) gives
 	// every bin one scale factor β_i, constrained by that variance and
 	// profiled out.
@@ -47,13 +63,17 @@ func (o *LikeOptions) fill() error {
 		o.TemplateNoise = NoiseBarlowBeeston
 	}
 	switch o.Normalisation {
-	case NormFree:
+	case NormFree, NormPerColor:
+	case NormPerColorHeight:
+		if !o.Use3D {
+			return fmt.Errorf("compare: normalisation %q needs the 3-D comparison (heights compared); use %q in the (color, period) plane", NormPerColorHeight, NormPerColor)
+		}
 	case NormAbsolute:
 		if !(o.MassScale > 0) || math.IsInf(o.MassScale, 0) {
 			return fmt.Errorf("compare: absolute normalisation needs MassScale > 0 (catalogue stars per template star at unit total mass), got %g", o.MassScale)
 		}
 	default:
-		return fmt.Errorf("compare: normalisation %q: want %q or %q", o.Normalisation, NormFree, NormAbsolute)
+		return fmt.Errorf("compare: normalisation %q: want one of %s", o.Normalisation, quoteList(Normalisations))
 	}
 	switch o.TemplateNoise {
 	case NoiseBarlowBeeston, NoiseIgnore:
@@ -61,6 +81,22 @@ func (o *LikeOptions) fill() error {
 		return fmt.Errorf("compare: template noise %q: want %q or %q", o.TemplateNoise, NoiseBarlowBeeston, NoiseIgnore)
 	}
 	return nil
+}
+
+// quoteList writes "a", "b" or "c".
+func quoteList(xs []string) string {
+	var b strings.Builder
+	for i, x := range xs {
+		switch {
+		case i == 0:
+		case i == len(xs)-1:
+			b.WriteString(" or ")
+		default:
+			b.WriteString(", ")
+		}
+		fmt.Fprintf(&b, "%q", x)
+	}
+	return b.String()
 }
 
 // Likelihood scores histories, as age-bin weights, against one histogram
@@ -75,29 +111,49 @@ func (o *LikeOptions) fill() error {
 // returns that profiled value, and its gradient follows from the envelope
 // theorem: ∂/∂w_k = Σ_i (n_i/m_i − N/M) T_ki.
 //
+// Per-colour normalisation is the same with one scale s_g = N_g/M_g per
+// group g of bins (a colour column, or a colour × height cell): the
+// product of one multinomial per group, the likelihood of the period
+// distribution within each column given the column's count. Groups
+// without data stars contribute nothing.
+//
 // Template noise (Barlow–Beeston lite). Each bin's expectation becomes
 // β_i s m_i with a Gaussian constraint on β_i of relative width
-// δ_i = √(Σ_k w_k² T_ki)/m_i; the β_i are profiled bin by bin in closed
-// form (stats.BBLiteBin) and, with free normalisation, jointly with s by a
-// secant iteration on s = N/Σ_i β_i m_i. The gradient is taken with β and s
-// held at their optimum (envelope theorem: their own derivatives vanish
-// there), differentiating the constraint through δ_i(w).
+// δ_i = √v_i/m_i, v_i = Σ_k w_k² V_ki (V = T for templates of raw counts);
+// the β_i are profiled bin by bin in closed form (stats.BBLiteBin) and,
+// with free normalisation, jointly with each group's s by Newton's method on
+// s = N_g/Σ_{i∈g} β_i m_i. The gradient is taken with β and s held at
+// their optimum (envelope theorem: their own derivatives vanish there),
+// differentiating the constraint through δ_i(w).
 type Likelihood struct {
-	opts     LikeOptions
-	space    Space
-	k, nb    int
-	rows     []float64 // bins-major templates, rows[i*k+j] = T_ji; shared, read-only
-	colSum   []float64 // S_k = Σ_i T_ki
-	n        []float64
-	nTot     float64
-	lnFactN  float64 // Σ ln n_i!
-	mix      *stats.Mixture
-	free, bb bool
+	opts    LikeOptions
+	space   Space
+	k, nb   int
+	rows    []float64 // bins-major templates, rows[i*k+j] = T_ji; shared read-only unless owned
+	varRows []float64 // bins-major template variances; aliases rows for raw counts
+	owned   bool      // rows and varRows belong to this Likelihood (SetTemplates may overwrite them)
+	colSum  []float64 // S_k = Σ_i T_ki
+	n       []float64
+	nTot    float64
+	lnFactN float64 // Σ ln n_i!
+	mix     *stats.Mixture
+	free    bool // scales are profiled (every normalisation but absolute)
+	bb      bool
+
+	// Groups of bins that share one free scale: group[i] for bin i (nil:
+	// one group of all bins), grpSum[g*k+j] = Σ_{i∈g} T_ji, nG[g] = Σ_{i∈g} n_i.
+	ng     int
+	group  []int32
+	grpSum []float64
+	nG     []float64
+	scales []float64 // the scale of each group at the last evaluation
 
 	// scratch
 	w2, ws, m, v, a, b, h []float64
 	t, tLog               []float64 // β_i μ_i of each bin, and a copy stats.LogTerms may overwrite
 	r, c                  []float64 // see bbPrepare
+	mG, sumG, dsumG       []float64 // per-group M_g and Newton sums
+	fresh                 []bool    // per-group: converged
 }
 
 // NewLikelihood prepares the comparison of tpl against counts: 3-D
@@ -115,12 +171,12 @@ func NewLikelihood(tpl *Templates, counts []float64, opts LikeOptions) (*Likelih
 	if err := tpl.check(); err != nil {
 		return nil, err
 	}
+	if opts.Use3D && tpl.Space.NumHeight() == 1 {
+		return nil, fmt.Errorf("compare: a 3-D comparison needs templates with |z| bins; these have none (give height edges to the space)")
+	}
 	t := tpl
 	if !opts.Use3D && tpl.Space.NumHeight() > 1 {
 		t = tpl.Collapse2D()
-	}
-	if opts.Use3D && tpl.Space.NumHeight() == 1 {
-		return nil, fmt.Errorf("compare: a 3-D comparison needs templates with |z| bins; these have none (give height edges to the space)")
 	}
 	nb, nk := t.Space.NumBins(), t.NumAgeBins()
 	switch {
@@ -134,21 +190,92 @@ func NewLikelihood(tpl *Templates, counts []float64, opts LikeOptions) (*Likelih
 		}
 		return nil, fmt.Errorf("compare: %d data counts for a comparison space of %s bins", len(counts), want)
 	}
-	l := &Likelihood{opts: opts, space: t.Space, k: nk, nb: nb}
-	l.rows = make([]float64, nb*nk)
-	l.colSum = make([]float64, nk)
-	for j := range nk {
-		for i, v := range t.Counts[j*nb : (j+1)*nb] {
-			l.rows[i*nk+j] = v
-			l.colSum[j] += v
-		}
-	}
-	l.free = opts.Normalisation == NormFree
+	l := &Likelihood{opts: opts, space: t.Space, k: nk, nb: nb, owned: true}
+	l.free = opts.Normalisation != NormAbsolute
 	l.bb = opts.TemplateNoise == NoiseBarlowBeeston
+	l.setGroups()
+	l.rows = make([]float64, nb*nk)
+	if t.Var != nil {
+		l.varRows = make([]float64, nb*nk)
+	}
+	l.loadRows(t)
 	if err := l.setCounts(counts); err != nil {
 		return nil, err
 	}
 	return l, nil
+}
+
+// setGroups assigns every bin its normalisation group.
+func (l *Likelihood) setGroups() {
+	sp := l.space
+	switch l.opts.Normalisation {
+	case NormPerColor:
+		l.ng = sp.NumColor()
+	case NormPerColorHeight:
+		l.ng = sp.NumColor() * sp.NumHeight()
+	default:
+		l.ng, l.group = 1, nil
+		return
+	}
+	l.group = make([]int32, l.nb)
+	for i := range l.group {
+		c, _, z := sp.Split(i)
+		g := c
+		if l.opts.Normalisation == NormPerColorHeight {
+			g = c*sp.NumHeight() + z
+		}
+		l.group[i] = int32(g)
+	}
+}
+
+// groupOf returns bin i's normalisation group.
+func (l *Likelihood) groupOf(i int) int {
+	if l.group == nil {
+		return 0
+	}
+	return int(l.group[i])
+}
+
+// loadRows copies t (the comparison's space, k-major) into the bins-major
+// rows, and its variances into varRows, and sums the columns.
+func (l *Likelihood) loadRows(t *Templates) {
+	nb, nk := l.nb, l.k
+	for j := range nk {
+		for i, v := range t.Counts[j*nb : (j+1)*nb] {
+			l.rows[i*nk+j] = v
+		}
+	}
+	if t.Var != nil {
+		for j := range nk {
+			for i, v := range t.Var[j*nb : (j+1)*nb] {
+				l.varRows[i*nk+j] = v
+			}
+		}
+	} else {
+		l.varRows = l.rows
+	}
+	l.sumColumns()
+}
+
+// sumColumns sets colSum and grpSum from rows.
+func (l *Likelihood) sumColumns() {
+	nk := l.k
+	if len(l.colSum) != nk {
+		l.colSum = make([]float64, nk)
+	}
+	if len(l.grpSum) != l.ng*nk {
+		l.grpSum = make([]float64, l.ng*nk)
+	}
+	clear(l.colSum)
+	clear(l.grpSum)
+	for i := range l.nb {
+		row := l.rows[i*nk : (i+1)*nk]
+		g := l.grpSum[l.groupOf(i)*nk : (l.groupOf(i)+1)*nk]
+		for j, v := range row {
+			l.colSum[j] += v
+			g[j] += v
+		}
+	}
 }
 
 // WithCounts returns a Likelihood for other counts (same layout as the
@@ -157,22 +284,79 @@ func (l *Likelihood) WithCounts(counts []float64) (*Likelihood, error) {
 	if len(counts) != l.nb {
 		return nil, fmt.Errorf("compare: %d counts for a comparison space of %d bins", len(counts), l.nb)
 	}
-	c := &Likelihood{opts: l.opts, space: l.space, k: l.k, nb: l.nb, rows: l.rows, colSum: l.colSum, free: l.free, bb: l.bb}
+	c := &Likelihood{opts: l.opts, space: l.space, k: l.k, nb: l.nb, rows: l.rows, varRows: l.varRows,
+		colSum: l.colSum, free: l.free, bb: l.bb, ng: l.ng, group: l.group, grpSum: l.grpSum}
+	l.owned = false // the templates are shared now: SetTemplates on either copies first
 	if err := c.setCounts(counts); err != nil {
 		return nil, err
 	}
 	return c, nil
 }
 
+// SetTemplates replaces the templates (same space, heights and age bins as
+// the ones the Likelihood was made with; the data stay). Used when the
+// templates depend on parameters that a fit moves. Bins with data and no
+// template star are allowed here: the likelihood is then −Inf wherever the
+// history cannot reach them, which a fit treats as outside the domain.
+func (l *Likelihood) SetTemplates(tpl *Templates) error {
+	if err := tpl.check(); err != nil {
+		return err
+	}
+	t := tpl
+	if !l.opts.Use3D && tpl.Space.NumHeight() > 1 {
+		t = tpl.Collapse2D()
+	}
+	if t.NumAgeBins() != l.k || !t.Space.Equal(l.space) {
+		return fmt.Errorf("compare: SetTemplates: templates of %d age bins in another space; want %d age bins in the likelihood's space", t.NumAgeBins(), l.k)
+	}
+	l.own(t.Var != nil)
+	l.loadRows(t)
+	l.mix.SetTemplates(l.rows, l.n)
+	return nil
+}
+
+// setRows makes rows (and varRows, nil for raw counts) the templates,
+// bins-major; the Likelihood takes the slices over.
+func (l *Likelihood) setRows(rows, varRows []float64) {
+	l.rows = rows
+	l.varRows = varRows
+	if varRows == nil {
+		l.varRows = rows
+	}
+	l.owned = true
+	l.sumColumns()
+	l.mix.SetTemplates(l.rows, l.n)
+}
+
+// own gives the Likelihood its own template buffers, so that SetTemplates
+// never writes into rows another Likelihood shares.
+func (l *Likelihood) own(withVar bool) {
+	if !l.owned {
+		sepVar := &l.varRows[0] != &l.rows[0]
+		l.rows = make([]float64, l.nb*l.k)
+		l.varRows = l.rows
+		if sepVar {
+			l.varRows = make([]float64, l.nb*l.k)
+		}
+		l.colSum, l.grpSum = nil, nil
+		l.owned = true
+	}
+	if withVar && &l.varRows[0] == &l.rows[0] {
+		l.varRows = make([]float64, l.nb*l.k)
+	}
+}
+
 func (l *Likelihood) setCounts(counts []float64) error {
 	l.n = append([]float64(nil), counts...)
 	l.nTot, l.lnFactN = 0, 0
+	l.nG = make([]float64, l.ng)
 	empty, firstEmpty := 0, -1
 	for i, n := range l.n {
 		if !(n >= 0) || math.IsInf(n, 0) {
 			return fmt.Errorf("compare: count %g in bin %d; counts must be finite and ≥ 0", n, i)
 		}
 		l.nTot += n
+		l.nG[l.groupOf(i)] += n
 		l.lnFactN += stats.LnFactorial(n)
 		if n > 0 {
 			row := l.rows[i*l.k : (i+1)*l.k]
@@ -201,6 +385,8 @@ func (l *Likelihood) setCounts(counts []float64) error {
 	l.m, l.v, l.a, l.b = make([]float64, l.nb), make([]float64, l.nb), make([]float64, l.nb), make([]float64, l.nb)
 	l.t, l.tLog = make([]float64, l.nb), make([]float64, l.nb)
 	l.r, l.c = make([]float64, l.nb), make([]float64, l.nb)
+	l.mG, l.sumG, l.dsumG = make([]float64, l.ng), make([]float64, l.ng), make([]float64, l.ng)
+	l.scales, l.fresh = make([]float64, l.ng), make([]bool, l.ng)
 	return nil
 }
 
@@ -222,6 +408,23 @@ func (l *Likelihood) N() float64 { return l.nTot }
 // Options returns the options in force (defaults filled in).
 func (l *Likelihood) Options() LikeOptions { return l.opts }
 
+// NumScales returns the number of normalisation parameters the likelihood
+// profiles: 0 for an absolute normalisation, 1 for a free one, and the
+// number of colour columns (or cells) holding data for a per-colour one.
+// They count as parameters in AIC and BIC.
+func (l *Likelihood) NumScales() int {
+	if !l.free {
+		return 0
+	}
+	n := 0
+	for _, v := range l.nG {
+		if v > 0 {
+			n++
+		}
+	}
+	return n
+}
+
 // LogL returns the log-likelihood of the data for age-bin weights w.
 func (l *Likelihood) LogL(weights []float64) float64 {
 	return l.LogLGrad(weights, nil)
@@ -241,6 +444,19 @@ func (l *Likelihood) LogLGrad(weights, grad []float64) float64 {
 	return l.poissonLogL(weights, grad)
 }
 
+// groupTotals sets mG[g] = Σ_j w_j S_gj.
+func (l *Likelihood) groupTotals(w []float64) {
+	nk := l.k
+	for g := range l.ng {
+		row := l.grpSum[g*nk : (g+1)*nk]
+		var s float64
+		for j, v := range row {
+			s += v * w[j]
+		}
+		l.mG[g] = s
+	}
+}
+
 // poissonLogL is the likelihood with exact templates.
 func (l *Likelihood) poissonLogL(w, grad []float64) float64 {
 	if !l.free {
@@ -248,6 +464,7 @@ func (l *Likelihood) poissonLogL(w, grad []float64) float64 {
 		for j, v := range w {
 			l.ws[j] = c * v
 		}
+		l.scales[0] = c
 		var s float64
 		if grad == nil {
 			s = l.mix.LogL(l.ws)
@@ -265,27 +482,39 @@ func (l *Likelihood) poissonLogL(w, grad []float64) float64 {
 	} else {
 		s = l.mix.LogLGrad(grad, w)
 	}
-	var mTot float64
-	for j, v := range w {
-		mTot += v * l.colSum[j]
+	if math.IsInf(s, -1) {
+		return l.outside(grad)
 	}
-	if math.IsInf(s, -1) || !(mTot > 0) {
-		if grad != nil {
+	// Σ n ln μ − M − Σ ln n! at s = 1, moved to each group's best scale
+	// N_g/M_g: + M_g + N_g ln(N_g/M_g) − N_g. A group without data stars
+	// takes scale 0 and contributes nothing.
+	l.groupTotals(w)
+	for g, mg := range l.mG {
+		ng := l.nG[g]
+		if ng > 0 && !(mg > 0) {
+			return l.outside(grad)
+		}
+		s += mg
+		l.scales[g] = 0
+		if ng > 0 {
+			s += ng*math.Log(ng/mg) - ng
+			l.scales[g] = ng / mg
+		}
+	}
+	if grad != nil {
+		nk := l.k
+		for g, mg := range l.mG {
+			f := 1.0
+			if l.nG[g] > 0 {
+				f = 1 - l.nG[g]/mg
+			}
+			row := l.grpSum[g*nk : (g+1)*nk]
 			for j := range grad {
-				grad[j] = math.NaN()
+				grad[j] += f * row[j]
 			}
 		}
-		return math.Inf(-1)
 	}
-	// Σ n ln μ − M − Σ ln n! at s = 1, moved to the best scale N/M.
-	n := l.nTot
-	if grad != nil {
-		f := 1 - n/mTot
-		for j := range grad {
-			grad[j] += f * l.colSum[j]
-		}
-	}
-	return s + mTot + n*math.Log(n/mTot) - n
+	return s
 }
 
 // bbRoot returns the profiled β of one bin (see stats.BBLiteBin), the
@@ -320,18 +549,20 @@ func (l *Likelihood) bbLogL(w, grad []float64) float64 {
 	for j, v := range w {
 		l.w2[j] = v * v
 	}
-	mixMoments(l.rows, l.k, w, l.w2, l.m, l.v)
+	stats.MatVec(l.rows, l.nb, l.k, w, l.m)
+	stats.MatVec(l.varRows, l.nb, l.k, l.w2, l.v)
 	l.bbPrepare()
-	scale := l.opts.MassScale
 	if l.free {
-		var ok bool
-		if scale, ok = l.bbScale(); !ok {
+		if !l.bbScales() {
 			return l.outside(grad)
 		}
+	} else {
+		l.scales[0] = l.opts.MassScale
 	}
 	var s float64
 	for i, n := range l.n {
 		m, r := l.m[i], l.r[i]
+		scale := l.scales[l.groupOf(i)]
 		if !(r > 0) {
 			// No template noise to profile: the plain Poisson term.
 			if n > 0 && !(m > 0) {
@@ -352,18 +583,19 @@ func (l *Likelihood) bbLogL(w, grad []float64) float64 {
 		q := dev * dev / r // (β − 1)²/(m δ²) = (β − 1)² m/v
 		s += -beta*mu - 0.5*q*m
 		l.t[i] = beta * mu // n ln βμ, added below
-		if grad != nil {
-			l.a[i] = -beta*scale - q
-			if n > 0 {
-				l.a[i] += n / m
-			}
-			l.b[i] = 0.5 * q / r
+		l.a[i] = -beta*scale - q
+		if n > 0 {
+			l.a[i] += n / m
 		}
+		l.b[i] = 0.5 * q / r
 	}
 	s += l.sumNLog()
 	s -= l.lnFactN
 	if grad != nil {
-		mixGradient(l.rows, l.k, l.a, l.b, grad, l.h)
+		clear(grad)
+		clear(l.h)
+		stats.MatTVecAdd(l.rows, l.nb, l.k, l.a, grad)
+		stats.MatTVecAdd(l.varRows, l.nb, l.k, l.b, l.h)
 		for j := range grad {
 			grad[j] += 2 * w[j] * l.h[j]
 		}
@@ -394,78 +626,182 @@ func (l *Likelihood) outside(grad []float64) float64 {
 	return math.Inf(-1)
 }
 
-// bbScale solves s Σ_i β_i(s) m_i = N for the free normalisation by
-// Newton's method from s₀ = N/Σ m_i (the β = 1 answer), which is already
-// close: β departs from 1 only by the templates' relative noise.
+// bbScales solves s_g Σ_{i∈g} β_i(s_g) m_i = N_g for every group's free
+// scale by Newton's method from s₀ = N_g/Σ m_i (the β = 1 answer), which
+// is already close: β departs from 1 only by the templates' relative noise.
 // Differentiating β² + (s r − 1)β − c = 0 gives dβ/ds = −r β/D. A step
-// below 1e−6 of s leaves an error of order its square, so the loop stops
-// there without evaluating again.
-func (l *Likelihood) bbScale() (float64, bool) {
-	var mTot float64
-	for _, m := range l.m {
-		mTot += m
+// below 1e−6 of s leaves an error of order its square, so a group stops
+// there without evaluating again. A group without data stars has scale 0.
+// It returns false if some group with data has no expected stars.
+func (l *Likelihood) bbScales() bool {
+	clear(l.mG)
+	for i, m := range l.m {
+		l.mG[l.groupOf(i)] += m
 	}
-	if !(mTot > 0) {
-		return 0, false
+	active := 0
+	for g, mg := range l.mG {
+		l.fresh[g] = l.nG[g] == 0
+		switch {
+		case l.nG[g] == 0:
+			l.scales[g] = 0
+		case !(mg > 0):
+			return false
+		default:
+			l.scales[g] = l.nG[g] / mg
+			active++
+		}
 	}
-	s := l.nTot / mTot
 	for range 40 {
-		var sum, dsum float64
+		if active == 0 {
+			return true
+		}
+		clear(l.sumG)
+		clear(l.dsumG)
 		for i, m := range l.m {
-			r := l.r[i]
-			if !(r > 0) {
-				sum += m
+			g := l.groupOf(i)
+			if l.fresh[g] {
 				continue
 			}
-			beta, d := bbRoot(s*r-1, l.c[i])
-			sum += beta * m
+			r := l.r[i]
+			if !(r > 0) {
+				l.sumG[g] += m
+				continue
+			}
+			beta, d := bbRoot(l.scales[g]*r-1, l.c[i])
+			l.sumG[g] += beta * m
 			if d > 0 {
-				dsum -= r * beta / d * m
+				l.dsumG[g] -= r * beta / d * m
 			}
 		}
-		next := s - (s*sum-l.nTot)/(sum+s*dsum)
-		if !(next > 0) || math.IsInf(next, 0) {
-			next = l.nTot / sum // the fixed-point step, if Newton's fails
+		for g := range l.scales {
+			if l.fresh[g] {
+				continue
+			}
+			s, sum := l.scales[g], l.sumG[g]
+			next := s - (s*sum-l.nG[g])/(sum+s*l.dsumG[g])
+			if !(next > 0) || math.IsInf(next, 0) {
+				next = l.nG[g] / sum // the fixed-point step, if Newton's fails
+			}
+			if math.IsNaN(next) {
+				return false
+			}
+			if math.Abs(next-s) <= 1e-6*next {
+				l.fresh[g] = true
+				active--
+			}
+			l.scales[g] = next
 		}
-		if math.Abs(next-s) <= 1e-6*next {
-			return next, !math.IsNaN(next)
-		}
-		s = next
 	}
-	return s, !math.IsNaN(s)
+	return true
+}
+
+// bbScale is bbScales for a single group, returning its scale: kept for
+// the tests that check the free scale is a maximum.
+func (l *Likelihood) bbScale() (float64, bool) {
+	ok := l.bbScales()
+	return l.scales[0], ok
 }
 
 // Scale returns the normalisation in force at weights: N/Σ m_i for a free
-// normalisation (the plain-Poisson best scale), MassScale otherwise.
+// normalisation (the plain-Poisson best scale), MassScale otherwise. With
+// one scale per colour column it returns the data-weighted mean, N/Σ_g M_g
+// over the groups that hold data; Expected uses each group's own.
 func (l *Likelihood) Scale(weights []float64) float64 {
 	if !l.free {
 		return l.opts.MassScale
 	}
+	l.groupTotals(weights)
 	var mTot float64
-	for j, v := range weights {
-		mTot += v * l.colSum[j]
+	for g, mg := range l.mG {
+		if l.nG[g] > 0 {
+			mTot += mg
+		}
 	}
 	return l.nTot / mTot
 }
 
-// Expected writes the expected counts s Σ_k w_k T_ki in the comparison
-// space into dst (resliced or reallocated to NumBins) and returns it; s is
-// Scale(weights), so with free normalisation the total matches the data.
+// Expected writes the expected counts s_g Σ_k w_k T_ki in the comparison
+// space into dst (resliced or reallocated to NumBins) and returns it; s_g
+// is each group's plain-Poisson best scale N_g/M_g (MassScale for an
+// absolute normalisation), so with a free normalisation the total of each
+// group matches the data's.
 func (l *Likelihood) Expected(weights, dst []float64) []float64 {
 	if cap(dst) < l.nb {
 		dst = make([]float64, l.nb)
 	}
 	dst = dst[:l.nb]
-	s := l.Scale(weights)
-	for i := range dst {
-		row := l.rows[i*l.k : (i+1)*l.k]
-		var m float64
-		for j, v := range row {
-			m += v * weights[j]
+	stats.MatVec(l.rows, l.nb, l.k, weights, dst)
+	if !l.free {
+		for i := range dst {
+			dst[i] *= l.opts.MassScale
 		}
-		dst[i] = s * m
+		return dst
+	}
+	l.groupTotals(weights)
+	for i := range dst {
+		g := l.groupOf(i)
+		s := 0.0
+		if l.nG[g] > 0 {
+			s = l.nG[g] / l.mG[g]
+		}
+		dst[i] *= s
 	}
 	return dst
+}
+
+// Fitted writes into dst the expectation the likelihood actually scores at
+// weights: Expected for exact templates, β_i s_g m_i with the profiled
+// Barlow–Beeston factors otherwise. It is what the deviance compares with
+// the data.
+func (l *Likelihood) Fitted(weights, dst []float64) []float64 {
+	if !l.bb {
+		return l.Expected(weights, dst)
+	}
+	if cap(dst) < l.nb {
+		dst = make([]float64, l.nb)
+	}
+	dst = dst[:l.nb]
+	if math.IsInf(l.bbLogL(weights, nil), -1) {
+		for i := range dst {
+			dst[i] = math.NaN()
+		}
+		return dst
+	}
+	copy(dst, l.t)
+	return dst
+}
+
+// binDerivatives writes ∂ln L/∂m_i into dm and ∂ln L/∂v_i into dv (nil
+// for exact templates, where v plays no part) at weights, with
+// m_i = Σ_k w_k T_ki and v_i = Σ_k w_k² V_ki in template units and every
+// profiled scale and β held at its optimum (envelope theorem). A change of
+// the templates themselves then moves ln L by Σ_i dm_i δm_i + dv_i δv_i.
+// It returns ln L.
+func (l *Likelihood) binDerivatives(weights, dm, dv []float64) float64 {
+	if l.bb {
+		v := l.bbLogL(weights, nil)
+		copy(dm, l.a)
+		if dv != nil {
+			copy(dv, l.b)
+		}
+		return v
+	}
+	v := l.poissonLogL(weights, nil)
+	if dv != nil {
+		clear(dv)
+	}
+	if math.IsInf(v, -1) {
+		return v
+	}
+	stats.MatVec(l.rows, l.nb, l.k, weights, l.m)
+	for i, m := range l.m {
+		s := l.scales[l.groupOf(i)]
+		dm[i] = -s
+		if n := l.n[i]; n > 0 {
+			dm[i] += n / m
+		}
+	}
+	return v
 }
 
 // PearsonResiduals returns (n_i − μ_i)/√μ_i per comparison bin, with μ the

@@ -40,9 +40,12 @@ func TestLikelihoodGradientMatchesFiniteDifferences(t *testing.T) {
 	tpl := randomTemplates(t, 6, 5, 8, 3, 4, 1)
 	wTrue := randomWeights(6, 2)
 	data := poissonData(tpl, wTrue, 3, 5)
-	for _, norm := range []string{NormFree, NormAbsolute} {
+	for _, norm := range Normalisations {
 		for _, noise := range []string{NoiseIgnore, NoiseBarlowBeeston} {
 			for _, use3D := range []bool{false, true} {
+				if norm == NormPerColorHeight && !use3D {
+					continue
+				}
 				l, err := NewLikelihood(tpl, data, LikeOptions{Normalisation: norm, TemplateNoise: noise, Use3D: use3D, MassScale: 2.5})
 				require.NoError(t, err)
 				w := randomWeights(6, 9)
@@ -157,7 +160,9 @@ func TestLikelihoodErrors(t *testing.T) {
 	_, err := NewLikelihood(tpl, make([]float64, 5), LikeOptions{})
 	assert.ErrorContains(t, err, "5 data counts")
 	_, err = NewLikelihood(tpl, make([]float64, 16), LikeOptions{Normalisation: "fixed"})
-	assert.ErrorContains(t, err, `"free" or "absolute"`)
+	assert.ErrorContains(t, err, `"free", "absolute", "per-color" or "per-color-height"`)
+	_, err = NewLikelihood(tpl, make([]float64, 16), LikeOptions{Normalisation: NormPerColorHeight})
+	assert.ErrorContains(t, err, "3-D")
 	_, err = NewLikelihood(tpl, make([]float64, 16), LikeOptions{Normalisation: NormAbsolute})
 	assert.ErrorContains(t, err, "MassScale")
 	// A data star where no template star fell.

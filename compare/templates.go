@@ -18,6 +18,12 @@ type Templates struct {
 	Space       Space
 	AgeEdgesGyr []float64
 	Counts      []float64 // k-major: Counts[k*Space.NumBins()+i]
+	// Var, when not nil, holds the variance of each count (k-major, like
+	// Counts): templates made of weighted stars (re-observed with
+	// detection probabilities and period kernels) have Var = Σ weight²
+	// per bin, less than the count. Nil means raw counts of simulated
+	// stars, whose variance is the count itself.
+	Var []float64
 	StarsDrawn  int64     // stars generated in all
 	DrawnPerBin []int64   // stars generated per age bin
 	Key         string    // hash of the scenario parts the templates depend on, set by the caller
@@ -188,6 +194,9 @@ func (t *Templates) Collapse2D() *Templates {
 	nb := t.Space.NumBins()
 	for k := range nk {
 		out.Counts = append(out.Counts, t.Space.Marginal2D(t.Counts[k*nb:(k+1)*nb])...)
+		if t.Var != nil {
+			out.Var = append(out.Var, t.Space.Marginal2D(t.Var[k*nb:(k+1)*nb])...)
+		}
 	}
 	return out
 }

@@ -98,6 +98,9 @@ func (t *Templates) check() error {
 	if len(t.DrawnPerBin) != nk {
 		return fmt.Errorf("compare: templates have %d per-bin draw counts for %d age bins", len(t.DrawnPerBin), nk)
 	}
+	if t.Var != nil && len(t.Var) != len(t.Counts) {
+		return fmt.Errorf("compare: templates hold %d variances for %d counts", len(t.Var), len(t.Counts))
+	}
 	return nil
 }
 

@@ -17,8 +17,17 @@ type Gyrochrone struct {
 
 // GyrochronePeriod returns the period a law gives a typical star: the
 // empirical laws are deterministic; for the torque law it is the star that
-// started from the median initial period.
+// started from the median initial period; a law with intrinsic scatter
+// (spin.Scattered) is drawn without it, at its median.
 func GyrochronePeriod(law spin.Law, s spin.Star) (float64, bool) {
+	// A law with intrinsic scatter is drawn at its median.
+	for {
+		u, ok := law.(interface{ Unwrap() spin.Law })
+		if !ok {
+			break
+		}
+		law = u.Unwrap()
+	}
 	if t, ok := law.(*spin.TorqueLaw); ok {
 		return t.PeriodAt(s.MassMsun, s.AgeGyr, 0.5)
 	}

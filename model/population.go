@@ -33,6 +33,51 @@ type Survey struct {
 	FaintLimitMag  float64
 	Detect         spots.Detection // noise model, cadence, baseline, threshold
 	Recovery       spots.RecoveryOptions
+	Color          ColorCalibration // how the catalogue's B−V scale relates to the model's
+}
+
+// ColorPivotMag is the B−V about which ColorCalibration stretches colors:
+// near the middle of the F–K range that rotation catalogues hold, so that
+// a change of scale moves the catalogue's mean color little and the
+// offset and the scale are nearly independent when both are fitted.
+const ColorPivotMag = 1.0
+
+// ColorCalibration maps the model's B−V onto the catalogue's color scale:
+//
+//	B−V(catalogue) = B−V + OffsetMag + (Scale − 1)(B−V − ColorPivotMag).
+//
+// Two catalogues — or a catalogue and the relation table — rarely share a
+// color zero point and scale to better than a few hundredths of a
+// magnitude; fitted as nuisance parameters they stop a calibration
+// difference from posing as a change in the ages. The zero value (Scale
+// 0 read as 1) is the identity.
+type ColorCalibration struct {
+	OffsetMag float64
+	Scale     float64
+}
+
+// Apply maps a model color onto the catalogue's scale.
+func (c ColorCalibration) Apply(bv float64) float64 {
+	if c.Scale == 0 {
+		return bv + c.OffsetMag
+	}
+	return bv + c.OffsetMag + (c.Scale-1)*(bv-ColorPivotMag)
+}
+
+// Invert maps a catalogue color back onto the model's scale.
+func (c ColorCalibration) Invert(bv float64) float64 {
+	if c.Scale == 0 {
+		return bv - c.OffsetMag
+	}
+	return (bv - c.OffsetMag + (c.Scale-1)*ColorPivotMag) / c.Scale
+}
+
+// Validate reports a calibration that is not a monotonic map.
+func (c ColorCalibration) Validate() error {
+	if !(c.Scale >= 0) || math.IsInf(c.Scale, 0) || math.IsNaN(c.OffsetMag) || math.IsInf(c.OffsetMag, 0) {
+		return fmt.Errorf("model: color calibration offset %g mag, scale %g: want a finite offset and a positive, finite scale", c.OffsetMag, c.Scale)
+	}
+	return nil
 }
 
 // Cuts are the catalogue cuts, applied identically to model and data.
@@ -299,7 +344,7 @@ func (p *Population) star(c *Chunk, i int, r *rand.Rand) {
 	c.AppMag[i] = app
 	// What a catalogue derives from photometry and parallax alone: reddened
 	// color, and M_V = V − 5 log10(d/10 pc) with the extinction still in.
-	obsBV, obsAbs := bv+ebvPerAV*av, absV+av
+	obsBV, obsAbs := p.Survey.Color.Apply(bv+ebvPerAV*av), absV+av
 	c.ObsBV[i], c.ObsAbsMag[i] = obsBV, obsAbs
 	if app >= p.Survey.BrightLimitMag && app <= p.Survey.FaintLimitMag {
 		flags |= FlagInMagRange
@@ -330,37 +375,22 @@ func (p *Population) star(c *Chunk, i int, r *rand.Rand) {
 		c.LDeg[i], c.BDeg[i] = c.dir[i].Angles()
 	}
 
-	// Rotation: the spin-down law, or the orbit for tidally locked pairs.
-	per, ok := p.Law.Period(spinStar, r)
-	if comp > 0 && p.Binaries.TidalLockFraction > 0 && r.Float64() < p.Binaries.TidalLockFraction {
-		per = math.Exp(r.Float64() * math.Log(p.Binaries.TidalLockMaxD))
-		ok = true
+	noise := p.Survey.Detect.Noise.PpmPerCadence(app)
+	rot := p.rotate(spinStar, comp, noise, r, r)
+	c.PeriodD[i] = rot.periodD
+	if rot.locked {
 		flags |= FlagTidalLock
 	}
-	c.PeriodD[i] = per
-	if !ok {
+	if !rot.ok {
 		flags |= FlagOutsideLaw
 		c.Rossby[i], c.AmpPpm[i], c.NoisePpm[i], c.DetectProb[i], c.MeasPeriodD[i] = math.NaN(), math.NaN(), math.NaN(), 0, math.NaN()
 		c.Flags[i] = flags
 		return
 	}
-	ro, _ := p.Turnover.Rossby(per, spinStar)
-	c.Rossby[i] = ro
-	noise := p.Survey.Detect.Noise.PpmPerCadence(app)
+	per, prob := rot.periodD, rot.prob
+	c.Rossby[i] = rot.rossby
 	c.NoisePpm[i] = noise
-	prob := 1.0
-	amp := math.NaN()
-	if p.Spots != nil {
-		// A star outside the turnover-time fit has no Rossby number; its
-		// NaN amplitude makes it undetectable, which the catalogue flags.
-		amp = p.Spots.Draw(ro, r)
-		prob = p.Survey.Detect.ProbabilityAtNoise(amp, noise, per)
-	} else if per < 2*p.Survey.Detect.CadenceD || p.Survey.Detect.BaselineD < p.Survey.Detect.MinCycles*per {
-		// No spot model: a period is found whenever the light curve can
-		// hold it (Nyquist at the short end, MinCycles at the long end).
-		prob = 0
-	}
-	c.AmpPpm[i], c.DetectProb[i] = amp, prob
+	c.AmpPpm[i], c.DetectProb[i] = rot.ampPpm, prob
 	// Detected or not, a star consumes the same random numbers: one that
 	// is not detected draws the uniform and the normal deviate that
 	// spots.Recover would have, without working out a period nobody reads.
@@ -385,6 +415,50 @@ func (p *Population) star(c *Chunk, i int, r *rand.Rand) {
 		c.MeasPeriodD[i] = math.NaN()
 	}
 	c.Flags[i] = flags
+}
+
+// rotation is what the spin-down law and the spots make of a star that
+// passes the photometric cuts.
+type rotation struct {
+	periodD, rossby, ampPpm, prob float64
+	locked                        bool // a tidally locked binary: the period is the orbit's
+	ok                            bool // false outside the law's calibrated range: no period
+}
+
+// rotate gives star s (with a companion of comp solar masses, 0 if
+// single, and survey noise noisePpm per cadence) its period — the
+// spin-down law's, or the orbit's for a tidally locked pair — Rossby
+// number, spot amplitude and detection probability. The law and the
+// tidal-lock choice draw from lawR, the spot amplitude from spotR, in
+// that order; the generator passes its chunk stream for both, the
+// re-observation of stored stars (Bank) a separate stream for each, so
+// that changing one part of the physics leaves the other's random
+// numbers where they were.
+func (p *Population) rotate(s spin.Star, comp, noisePpm float64, lawR, spotR *rand.Rand) rotation {
+	per, ok := p.Law.Period(s, lawR)
+	var rot rotation
+	if comp > 0 && p.Binaries.TidalLockFraction > 0 && lawR.Float64() < p.Binaries.TidalLockFraction {
+		per = math.Exp(lawR.Float64() * math.Log(p.Binaries.TidalLockMaxD))
+		ok = true
+		rot.locked = true
+	}
+	rot.periodD, rot.ok = per, ok
+	if !ok {
+		return rot
+	}
+	rot.rossby, _ = p.Turnover.Rossby(per, s)
+	rot.prob, rot.ampPpm = 1, math.NaN()
+	if p.Spots != nil {
+		// A star outside the turnover-time fit has no Rossby number; its
+		// NaN amplitude makes it undetectable, which the catalogue flags.
+		rot.ampPpm = p.Spots.Draw(rot.rossby, spotR)
+		rot.prob = p.Survey.Detect.ProbabilityAtNoise(rot.ampPpm, noisePpm, per)
+	} else if per < 2*p.Survey.Detect.CadenceD || p.Survey.Detect.BaselineD < p.Survey.Detect.MinCycles*per {
+		// No spot model: a period is found whenever the light curve can
+		// hold it (Nyquist at the short end, MinCycles at the long end).
+		rot.prob = 0
+	}
+	return rot
 }
 
 // catalogCuts are the photometric catalogue steps. A star that fails one

@@ -196,6 +196,25 @@ func NewMixture(templates []float64, nTemplates int, counts []float64) *Mixture 
 	return m
 }
 
+// SetTemplates replaces the templates (bins-major, the same length as
+// before) for the same counts, reusing the Mixture's buffers: for fits in
+// which the templates move with a parameter. It allocates nothing.
+func (m *Mixture) SetTemplates(templates, counts []float64) {
+	k := m.k
+	checkMixture(k, templates, counts)
+	clear(m.colSum)
+	r := 0
+	for i, n := range counts {
+		row := templates[i*k : i*k+k]
+		floats.Add(m.colSum, row)
+		if n == 0 {
+			continue
+		}
+		copy(m.rows[r*k:(r+1)*k], row)
+		r++
+	}
+}
+
 // NumTemplates returns K, the length of the weight vector.
 func (m *Mixture) NumTemplates() int { return m.k }
 

@@ -1,0 +1,430 @@
+package model
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"runtime"
+	"sync"
+	"sync/atomic"
+
+	"spinpop/model/spin"
+)
+
+// Bank holds the stars of a run that a catalogue could hold — those that
+// pass the survey's magnitude limits and the photometric catalogue cuts,
+// and are not evolved out of the dwarf sample — with what it takes to
+// observe them again: mass, age, T_eff, colors, magnitudes, height,
+// companion, and a seed for the star's own random numbers. Re-observing the
+// bank (Observe) under another spin-down law, intrinsic period scatter,
+// spot or detection model, period recovery, color calibration, binary
+// fraction or period window gives the expected catalogue without
+// generating a single new star: what a fit needs to move such
+// parameters (nuisance parameters) at the price of a pass over ~10⁶ stored
+// stars instead of a run of 10⁷–10⁸.
+//
+// Stars are grouped by age bin, in the order the run made them: stars of
+// bin k are [Start[k], Start[k+1]).
+type Bank struct {
+	Start       []int   // len NumAgeBins+1
+	DrawnPerBin []int64 // stars generated per age bin, stored or not
+	Margin      BankMargin
+	Cuts        Cuts             // the run's catalogue cuts
+	Color       ColorCalibration // the run's color calibration
+
+	AgeGyr, MassMsun, TeffK []float32
+	BVMain                  []float32 // single-star main-sequence B−V of the primary's mass: what a spin-down law reads
+	ModelBV                 []float32 // reddened system B−V on the model's own scale (before the color calibration)
+	ObsAbsMag               []float32 // absolute V as derived from parallax (extinction in)
+	AppMag                  []float32 // apparent magnitude in the survey band
+	AbsZPc                  []float32
+	CompanionMsun           []float32 // 0 when single
+	BinaryFrac              []float32 // BinaryFraction of the primary's mass, before the fraction scale
+	Seed                    []uint64
+}
+
+// BankMargin widens the color cut (ColorMag on each side, catalogue scale)
+// and the main-sequence band (BandMag on each side) for the stars a Bank
+// keeps, so that a color calibration moved by up to that much can bring
+// stars in; Observe then applies the exact cuts. Zero keeps exactly the
+// stars that pass the cuts as run.
+type BankMargin struct {
+	ColorMag float64
+	BandMag  float64
+}
+
+// NumAgeBins returns the number of age bins.
+func (b *Bank) NumAgeBins() int { return len(b.Start) - 1 }
+
+// Len returns the number of stored stars.
+func (b *Bank) Len() int { return len(b.Seed) }
+
+// BankBuilder collects a Bank from the chunks of a run, in chunk order.
+type BankBuilder struct {
+	pop    *Population
+	seed   uint64
+	margin BankMargin
+	bins   []Bank // one per age bin, merged by Bank
+	drawn  []int64
+}
+
+// NewBankBuilder starts a bank of the population p (the one the run uses)
+// with nAgeBins age bins; seed is the run's seed, from which every stored
+// star's own seed derives.
+func NewBankBuilder(p *Population, nAgeBins int, seed uint64, margin BankMargin) (*BankBuilder, error) {
+	if nAgeBins < 1 {
+		return nil, fmt.Errorf("model: a bank needs at least one age bin, got %d", nAgeBins)
+	}
+	if !(margin.ColorMag >= 0) || !(margin.BandMag >= 0) || math.IsInf(margin.ColorMag, 0) || math.IsInf(margin.BandMag, 0) {
+		return nil, fmt.Errorf("model: bank margins %g, %g mag: want finite values ≥ 0", margin.ColorMag, margin.BandMag)
+	}
+	return &BankBuilder{pop: p, seed: seed, margin: margin, bins: make([]Bank, nAgeBins), drawn: make([]int64, nAgeBins)}, nil
+}
+
+// Add stores the chunk's catalogue-eligible stars. Chunks must come in
+// chunk order (model.RunChunks hands them over so) for the bank to be the
+// same for any number of workers.
+func (bb *BankBuilder) Add(c *Chunk) {
+	p := bb.pop
+	cuts := p.Cuts
+	wide := cuts
+	wide.BVMin -= bb.margin.ColorMag
+	wide.BVMax += bb.margin.ColorMag
+	wide.MSBandBrightMag += bb.margin.BandMag
+	wide.MSBandFaintMag += bb.margin.BandMag
+	exact := bb.margin == BankMargin{}
+	for i := 0; i < c.N; i++ {
+		k := int(c.AgeBin[i])
+		bb.drawn[k]++
+		f := c.Flags[i]
+		if f&FlagGone != 0 || f&FlagInMagRange == 0 {
+			continue
+		}
+		if cuts.HeightMaxPc > 0 && math.Abs(c.ZPc[i]) > cuts.HeightMaxPc {
+			continue
+		}
+		bv, absV := c.ObsBV[i], c.ObsAbsMag[i]
+		if exact {
+			if f&catalogCuts != catalogCuts {
+				continue
+			}
+		} else if !(bv >= wide.BVMin && bv <= wide.BVMax) || !OnMainSequence(p.Relations, wide, bv, absV) {
+			continue
+		}
+		m := c.MassMsun[i]
+		_, bvMain, _, _, ok := p.Relations.atMain(m)
+		if !ok {
+			continue
+		}
+		b := &bb.bins[k]
+		b.AgeGyr = append(b.AgeGyr, float32(c.AgeGyr[i]))
+		b.MassMsun = append(b.MassMsun, float32(m))
+		b.TeffK = append(b.TeffK, float32(c.TeffK[i]))
+		b.BVMain = append(b.BVMain, float32(bvMain))
+		b.ModelBV = append(b.ModelBV, float32(p.Survey.Color.Invert(bv)))
+		b.ObsAbsMag = append(b.ObsAbsMag, float32(absV))
+		b.AppMag = append(b.AppMag, float32(c.AppMag[i]))
+		b.AbsZPc = append(b.AbsZPc, float32(math.Abs(c.ZPc[i])))
+		b.CompanionMsun = append(b.CompanionMsun, float32(c.CompanionMsun[i]))
+		b.BinaryFrac = append(b.BinaryFrac, float32(BinaryFraction(m)))
+		b.Seed = append(b.Seed, starSeed(bb.seed, c.Index, i))
+	}
+}
+
+// starSeed derives a stored star's own seed from the run's seed and its
+// place in the run (chunk, index in chunk), decorrelated by splitmix64.
+func starSeed(seed uint64, chunk, i int) uint64 {
+	return splitmix64(splitmix64(seed^0x6a09e667f3bcc909^uint64(chunk)*0x9e3779b97f4a7c15) ^ uint64(i))
+}
+
+// Bank returns the collected bank.
+func (bb *BankBuilder) Bank() *Bank {
+	out := &Bank{Start: make([]int, len(bb.bins)+1), DrawnPerBin: append([]int64(nil), bb.drawn...), Margin: bb.margin,
+		Cuts: bb.pop.Cuts, Color: bb.pop.Survey.Color}
+	for k := range bb.bins {
+		b := &bb.bins[k]
+		out.Start[k+1] = out.Start[k] + len(b.Seed)
+		out.AgeGyr = append(out.AgeGyr, b.AgeGyr...)
+		out.MassMsun = append(out.MassMsun, b.MassMsun...)
+		out.TeffK = append(out.TeffK, b.TeffK...)
+		out.BVMain = append(out.BVMain, b.BVMain...)
+		out.ModelBV = append(out.ModelBV, b.ModelBV...)
+		out.ObsAbsMag = append(out.ObsAbsMag, b.ObsAbsMag...)
+		out.AppMag = append(out.AppMag, b.AppMag...)
+		out.AbsZPc = append(out.AbsZPc, b.AbsZPc...)
+		out.CompanionMsun = append(out.CompanionMsun, b.CompanionMsun...)
+		out.BinaryFrac = append(out.BinaryFrac, b.BinaryFrac...)
+		out.Seed = append(out.Seed, b.Seed...)
+		*b = Bank{}
+	}
+	return out
+}
+
+// Grid is the binning Observe fills: B−V edges, log10 period (days)
+// edges and |z| (pc) edges, each strictly increasing; bins are half-open
+// except the last of each axis, and are flattened as
+// ((color·nP) + period)·nZ + height.
+type Grid struct {
+	ColorEdges, LogPeriodEdges, HeightEdgesPc []float64
+}
+
+// NumBins returns the number of flattened bins.
+func (g Grid) NumBins() int {
+	return (len(g.ColorEdges) - 1) * (len(g.LogPeriodEdges) - 1) * (len(g.HeightEdgesPc) - 1)
+}
+
+// ObserveOptions control Bank.Observe.
+type ObserveOptions struct {
+	Workers int // goroutines (0: GOMAXPROCS); results do not depend on it
+	// BaseFractionScale is the binary fraction scale the bank's run used;
+	// a different obs.Binaries.FractionScale re-weights binaries and single
+	// stars by the ratio of their probabilities.
+	BaseFractionScale float64
+	// MinKernelDex is the smallest width (dex) of the period kernel: a
+	// measured period is spread over the period bins by a Gaussian of the
+	// recovery scatter, but never narrower than this, so that templates
+	// move smoothly with the parameters (0: a fifth of the narrowest
+	// period bin).
+	MinKernelDex float64
+}
+
+// Observe returns, for every age bin k and grid bin i, the expected number
+// of the bank's stars that obs's survey catalogues there (counts, k-major)
+// and its Monte Carlo variance Σ weight² (vars). obs must be the bank's
+// population with only the parts that observe stars changed: spin-down law
+// and turnover time, spots, detection, recovery, color calibration, binary
+// fraction scale and tidal locking, catalogue cuts inside the bank's
+// margins.
+//
+// Each star counts with its detection probability (not a random
+// detection), and its measured period is spread over the period bins by
+// the recovery model — a Gaussian in ln P of width RelScatter about P, P/2
+// and 2P with their probabilities — so the templates are smooth functions
+// of the parameters. The star's own random numbers (initial period,
+// intrinsic scatter, tidal locking; spot amplitude) come from two streams
+// seeded by its stored seed, the same for every obs: common random numbers,
+// so that templates at neighbouring parameters differ by the change of
+// the parameter, not by noise. Age bins are processed whole by one worker
+// each: the sums do not depend on the number of workers.
+func (b *Bank) Observe(ctx context.Context, obs *Population, g Grid, opts ObserveOptions) (counts, vars []float64, err error) {
+	if obs == nil || obs.Law == nil || !obs.Turnover.Valid() || obs.Relations == nil {
+		return nil, nil, errors.New("model: Bank.Observe needs a population with a law, a turnover time and relations")
+	}
+	for _, ax := range [][]float64{g.ColorEdges, g.LogPeriodEdges, g.HeightEdgesPc} {
+		if len(ax) < 2 {
+			return nil, nil, errors.New("model: Bank.Observe needs at least two edges on every grid axis")
+		}
+	}
+	if err := obs.Survey.Color.Validate(); err != nil {
+		return nil, nil, err
+	}
+	if err := obs.Survey.Recovery.Validate(); err != nil {
+		return nil, nil, err
+	}
+	cuts := obs.Cuts
+	m := b.Margin
+	if err := b.covers(obs); err != nil {
+		return nil, nil, err
+	}
+	workers := opts.Workers
+	if workers <= 0 {
+		workers = runtime.GOMAXPROCS(0)
+	}
+	minDex := opts.MinKernelDex
+	if minDex <= 0 {
+		minDex = math.Inf(1)
+		for i := 1; i < len(g.LogPeriodEdges); i++ {
+			minDex = math.Min(minDex, g.LogPeriodEdges[i]-g.LogPeriodEdges[i-1])
+		}
+		minDex /= 5
+	}
+	nk, nb := b.NumAgeBins(), g.NumBins()
+	counts = make([]float64, nk*nb)
+	vars = make([]float64, nk*nb)
+	ob := observer{
+		bank: b, obs: obs, g: g, cuts: cuts, recut: m != BankMargin{},
+		baseScale: opts.BaseFractionScale, sigma10: math.Max(obs.Survey.Recovery.RelScatter/math.Ln10, minDex),
+		logPMin: math.Log10(cuts.PeriodMinD), logPMax: math.Log10(cuts.PeriodMaxD),
+		nP: len(g.LogPeriodEdges) - 1, nZ: len(g.HeightEdgesPc) - 1,
+	}
+	if !(cuts.PeriodMaxD > 0) {
+		ob.logPMax = math.Inf(1)
+	}
+	if !(cuts.PeriodMinD > 0) {
+		ob.logPMin = math.Inf(-1)
+	}
+	rec := obs.Survey.Recovery
+	ob.comp = [3]struct{ shift, prob float64 }{
+		{0, 1 - rec.HalfProb - rec.DoubleProb},
+		{-math.Log10(2), rec.HalfProb},
+		{math.Log10(2), rec.DoubleProb},
+	}
+	var next atomic.Int64
+	var wg sync.WaitGroup
+	for range workers {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			var lawSrc, spotSrc rand.PCG
+			lawR, spotR := rand.New(&lawSrc), rand.New(&spotSrc)
+			for {
+				k := int(next.Add(1) - 1)
+				if k >= nk || ctx.Err() != nil {
+					return
+				}
+				ob.bin(k, counts[k*nb:(k+1)*nb], vars[k*nb:(k+1)*nb], &lawSrc, &spotSrc, lawR, spotR)
+			}
+		}()
+	}
+	wg.Wait()
+	if err := ctx.Err(); err != nil {
+		return nil, nil, err
+	}
+	return counts, vars, nil
+}
+
+// covers reports cuts or a color calibration of obs that would need stars
+// the bank did not keep: a color range or main-sequence band reaching past
+// the bank's margins, a calibration that moves a color by more than the
+// color margin, a height cut looser than the run's.
+func (b *Bank) covers(obs *Population) error {
+	c, m := obs.Cuts, b.Margin
+	const tol = 1e-12
+	switch {
+	case c.BVMin < b.Cuts.BVMin-m.ColorMag-tol || c.BVMax > b.Cuts.BVMax+m.ColorMag+tol:
+		return fmt.Errorf("model: color cut [%g, %g] reaches past the stored stars' [%g, %g] (the run's cut widened by the bank's margin of %g mag)", c.BVMin, c.BVMax, b.Cuts.BVMin-m.ColorMag, b.Cuts.BVMax+m.ColorMag, m.ColorMag)
+	case c.MSBandBrightMag > b.Cuts.MSBandBrightMag+m.BandMag+tol || c.MSBandFaintMag > b.Cuts.MSBandFaintMag+m.BandMag+tol:
+		return fmt.Errorf("model: main-sequence band (−%g, +%g mag) is wider than the stored stars' (−%g, +%g)", c.MSBandBrightMag, c.MSBandFaintMag, b.Cuts.MSBandBrightMag+m.BandMag, b.Cuts.MSBandFaintMag+m.BandMag)
+	case b.Cuts.HeightMaxPc > 0 && (c.HeightMaxPc <= 0 || c.HeightMaxPc > b.Cuts.HeightMaxPc):
+		return fmt.Errorf("model: height cut %g pc is looser than the run's %g pc; the bank holds no star beyond it", c.HeightMaxPc, b.Cuts.HeightMaxPc)
+	}
+	// The calibration is linear in B−V, so the largest move over the
+	// color range is at one of its ends.
+	for _, x := range []float64{b.Cuts.BVMin, b.Cuts.BVMax} {
+		model := b.Color.Invert(x)
+		if d := math.Abs(obs.Survey.Color.Apply(model) - x); d > m.ColorMag+tol {
+			return fmt.Errorf("model: the color calibration (offset %g mag, scale %g) moves colors by %.3g mag at B−V %g, more than the bank's color margin of %g mag", obs.Survey.Color.OffsetMag, obs.Survey.Color.Scale, d, x, m.ColorMag)
+		}
+	}
+	return nil
+}
+
+// observer is one Observe call's shared, read-only state.
+type observer struct {
+	bank      *Bank
+	obs       *Population
+	g         Grid
+	cuts      Cuts
+	recut     bool // the bank holds stars beyond the cuts: apply them
+	baseScale float64
+	sigma10   float64 // kernel width in log10 P
+	logPMin   float64 // the catalogue's period window, log10 days
+	logPMax   float64
+	nP, nZ    int
+	comp      [3]struct{ shift, prob float64 } // recovered period: P, P/2, 2P
+}
+
+// bin observes the stars of age bin k into cnt and vr (that bin's rows).
+func (ob *observer) bin(k int, cnt, vr []float64, lawSrc, spotSrc *rand.PCG, lawR, spotR *rand.Rand) {
+	b, p := ob.bank, ob.obs
+	scale := p.Binaries.FractionScale
+	reweight := scale != ob.baseScale && ob.baseScale > 0
+	for s := b.Start[k]; s < b.Start[k+1]; s++ {
+		bv := p.Survey.Color.Apply(float64(b.ModelBV[s]))
+		absV := float64(b.ObsAbsMag[s])
+		if ob.recut && (!(bv >= ob.cuts.BVMin && bv <= ob.cuts.BVMax) || !OnMainSequence(p.Relations, ob.cuts, bv, absV)) {
+			continue
+		}
+		c := BinIndex(ob.g.ColorEdges, bv)
+		if c < 0 {
+			continue
+		}
+		z := BinIndex(ob.g.HeightEdgesPc, float64(b.AbsZPc[s]))
+		if z < 0 {
+			continue
+		}
+		weight := 1.0
+		comp := float64(b.CompanionMsun[s])
+		if reweight {
+			f := float64(b.BinaryFrac[s])
+			f0, f1 := min(1, ob.baseScale*f), min(1, scale*f)
+			if comp > 0 {
+				weight = f1 / f0
+			} else if f0 < 1 {
+				weight = (1 - f1) / (1 - f0)
+			}
+			if !(weight > 0) {
+				continue
+			}
+		}
+		seed := b.Seed[s]
+		lawSrc.Seed(seed, 1)
+		spotSrc.Seed(seed, 2)
+		st := spin.Star{MassMsun: float64(b.MassMsun[s]), AgeGyr: float64(b.AgeGyr[s]), BV: float64(b.BVMain[s]), TeffK: float64(b.TeffK[s])}
+		noise := p.Survey.Detect.Noise.PpmPerCadence(float64(b.AppMag[s]))
+		rot := p.rotate(st, comp, noise, lawR, spotR)
+		if !rot.ok || !(rot.prob > 0) {
+			continue
+		}
+		ob.deposit(cnt, vr, (c*ob.nP)*ob.nZ+z, math.Log10(rot.periodD), weight*rot.prob)
+	}
+}
+
+// deposit spreads weight w of a star of true log10 period lp over the
+// period bins of one (color, height) column starting at flat index base
+// (period bin p at base + p·nZ), by the recovery kernel, inside the period
+// window.
+func (ob *observer) deposit(cnt, vr []float64, base int, lp, w float64) {
+	edges := ob.g.LogPeriodEdges
+	sig := ob.sigma10
+	for _, cp := range ob.comp {
+		if !(cp.prob > 0) {
+			continue
+		}
+		mu := lp + cp.shift
+		lo, hi := mu-kernelReach*sig, mu+kernelReach*sig
+		first := max(0, BinIndexBelow(edges, lo))
+		for pb := first; pb < ob.nP && edges[pb] < hi; pb++ {
+			a, e := math.Max(edges[pb], ob.logPMin), math.Min(edges[pb+1], ob.logPMax)
+			if !(e > a) {
+				continue
+			}
+			frac := NormalCDF((e-mu)/sig) - NormalCDF((a-mu)/sig)
+			if frac <= 0 {
+				continue
+			}
+			x := w * cp.prob * frac
+			i := base + pb*ob.nZ
+			cnt[i] += x
+			vr[i] += x * x
+		}
+	}
+}
+
+// kernelReach is how many widths of the period kernel are spread: beyond
+// 7σ the normal tail holds < 1.3e-12 of the weight.
+const kernelReach = 7
+
+// BinIndexBelow returns the index of the bin holding x, 0 below the first
+// edge and the last bin above the last edge.
+func BinIndexBelow(edges []float64, x float64) int {
+	n := len(edges) - 1
+	if !(x > edges[0]) {
+		return 0
+	}
+	if x >= edges[n] {
+		return n - 1
+	}
+	lo, hi := 0, n
+	for hi-lo > 1 {
+		mid := (lo + hi) / 2
+		if x >= edges[mid] {
+			lo = mid
+		} else {
+			hi = mid
+		}
+	}
+	return lo
+}

@@ -1,0 +1,261 @@
+package model
+
+import (
+	"context"
+	"math"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"spinpop/model/spin"
+)
+
+// bankGrid is a comparison-like grid: 12 colors, 24 log-period bins from
+// 0.5 to 100 d, three height bins.
+func bankGrid() Grid {
+	g := Grid{HeightEdgesPc: []float64{0, 200, 500, 2000}}
+	for i := 0; i <= 12; i++ {
+		g.ColorEdges = append(g.ColorEdges, 0.45+1.15*float64(i)/12)
+	}
+	for i := 0; i <= 24; i++ {
+		g.LogPeriodEdges = append(g.LogPeriodEdges, math.Log10(0.5)+math.Log10(200)*float64(i)/24)
+	}
+	return g
+}
+
+// randomTemplates runs p and bins its catalogue stars (random detection,
+// random recovery) per age bin into g, and collects a bank of the same run.
+func randomTemplatesAndBank(t *testing.T, p *Population, g Grid, nStars int64, margin BankMargin) (counts []float64, bank *Bank) {
+	t.Helper()
+	nk, nb := len(p.BinProb), g.NumBins()
+	counts = make([]float64, nk*nb)
+	bb, err := NewBankBuilder(p, nk, 7, margin)
+	require.NoError(t, err)
+	nP, nZ := len(g.LogPeriodEdges)-1, len(g.HeightEdgesPc)-1
+	err = RunChunks(context.Background(), 7, nStars, 1<<14, 2, p.Fill, func(c *Chunk) error {
+		bb.Add(c)
+		for i := 0; i < c.N; i++ {
+			if !c.Flags[i].Selected() {
+				continue
+			}
+			col := BinIndex(g.ColorEdges, c.ObsBV[i])
+			per := BinIndex(g.LogPeriodEdges, math.Log10(c.MeasPeriodD[i]))
+			z := BinIndex(g.HeightEdgesPc, math.Abs(c.ZPc[i]))
+			if col < 0 || per < 0 || z < 0 {
+				continue
+			}
+			counts[int(c.AgeBin[i])*nb+(col*nP+per)*nZ+z]++
+		}
+		return nil
+	})
+	require.NoError(t, err)
+	return counts, bb.Bank()
+}
+
+// chi2PerBin compares counts n with expectations mu of variance
+// mu + extra over bins with mu > 5, returning χ²/dof and dof.
+func chi2PerBin(n, mu, extraVar []float64) (float64, int) {
+	var chi2 float64
+	dof := 0
+	for i, m := range mu {
+		if m <= 5 {
+			continue
+		}
+		v := m
+		if extraVar != nil {
+			v += extraVar[i]
+		}
+		d := n[i] - m
+		chi2 += d * d / v
+		dof++
+	}
+	return chi2 / float64(dof), dof
+}
+
+// The bank's expectation is the generator's own: templates binned from a
+// run's random detections and random recovered periods scatter about the
+// bank's Observe of the same run's stars as Poisson counts do (χ²/dof near
+// 1; a wrong kernel, alias or detection weight gives χ²/dof ≫ 1).
+// Common practice, no source: a χ² test of counts against expectations.
+func TestBankObserveMatchesGenerator(t *testing.T) {
+	p := testPopulation(t, 4)
+	g := bankGrid()
+	counts, bank := randomTemplatesAndBank(t, p, g, 1_500_000, BankMargin{})
+	exp, vars, err := bank.Observe(context.Background(), p, g, ObserveOptions{BaseFractionScale: 1})
+	require.NoError(t, err)
+	r, dof := chi2PerBin(counts, exp, nil)
+	t.Logf("χ²/dof = %.3f over %d bins", r, dof)
+	assert.Greater(t, dof, 300)
+	assert.Less(t, r, 1.15, "χ²/dof of the generator's templates about the bank's expectation")
+	var sn, se float64
+	for i := range counts {
+		sn += counts[i]
+		se += exp[i]
+	}
+	assert.InDelta(t, se, sn, 4*math.Sqrt(se), "total catalogue stars")
+	// The variance of a weighted count is below its expectation.
+	for i := range vars {
+		assert.LessOrEqual(t, vars[i], exp[i]*(1+1e-12)+1e-300)
+	}
+}
+
+// Re-observing under another spin-down law gives what a run with that law
+// gives. The runs differ in their stars (a star outside a law's calibrated
+// range draws no detection numbers, which moves the rest of the chunk's
+// stream), so each side's noise enters the χ².
+func TestBankObserveOtherLaw(t *testing.T) {
+	p := testPopulation(t, 4)
+	g := bankGrid()
+	_, bank := randomTemplatesAndBank(t, p, g, 1_000_000, BankMargin{})
+	q := *p
+	q.Law = spin.MamajekHillenbrand2008()
+	require.NoError(t, q.Prepare())
+	counts, _ := randomTemplatesAndBank(t, &q, g, 1_000_000, BankMargin{})
+	exp, vars, err := bank.Observe(context.Background(), &q, g, ObserveOptions{BaseFractionScale: 1})
+	require.NoError(t, err)
+	r, dof := chi2PerBin(counts, exp, vars)
+	t.Logf("χ²/dof = %.3f over %d bins", r, dof)
+	assert.Greater(t, dof, 200)
+	assert.Less(t, r, 1.2)
+	// And it is not the old law's expectation.
+	old, oldVar, err := bank.Observe(context.Background(), p, g, ObserveOptions{BaseFractionScale: 1})
+	require.NoError(t, err)
+	r2, _ := chi2PerBin(counts, old, oldVar)
+	assert.Greater(t, r2, 3.0)
+}
+
+// A changed binary fraction re-weights the stored binaries and single stars
+// to what a run with that fraction gives, and a color calibration moves
+// stored stars across the color bins and cuts as a run with it does. The
+// runs differ in their stars here (the photometry decides which stars
+// draw rotation numbers), so each side's noise enters the χ².
+func TestBankObserveBinariesAndColor(t *testing.T) {
+	p := testPopulation(t, 4)
+	g := bankGrid()
+	_, bank := randomTemplatesAndBank(t, p, g, 1_500_000, BankMargin{ColorMag: 0.06, BandMag: 0.1})
+	cases := map[string]func(q *Population){
+		"binary fraction ×0.5": func(q *Population) { q.Binaries.FractionScale = 0.5 },
+		"color offset +0.04":   func(q *Population) { q.Survey.Color = ColorCalibration{OffsetMag: 0.04} },
+		"color scale 1.04":     func(q *Population) { q.Survey.Color = ColorCalibration{Scale: 1.04} },
+	}
+	for name, change := range cases {
+		q := *p
+		change(&q)
+		require.NoError(t, q.Prepare())
+		counts, _ := randomTemplatesAndBank(t, &q, g, 1_500_000, BankMargin{})
+		exp, vars, err := bank.Observe(context.Background(), &q, g, ObserveOptions{BaseFractionScale: 1})
+		require.NoError(t, err, name)
+		r, dof := chi2PerBin(counts, exp, vars)
+		t.Logf("%s: χ²/dof = %.3f over %d bins", name, r, dof)
+		t.Logf("χ²/dof = %.3f over %d bins", r, dof)
+		assert.Greater(t, dof, 200, name)
+		assert.Less(t, r, 1.2, name)
+		old, oldVar, err := bank.Observe(context.Background(), p, g, ObserveOptions{BaseFractionScale: 1})
+		require.NoError(t, err)
+		r2, _ := chi2PerBin(counts, old, oldVar)
+		assert.Greater(t, r2, r+0.3, "%s: the change must be visible", name)
+	}
+}
+
+// The same bank observed with any number of workers gives the same bits;
+// a calibration beyond the bank's margins is refused.
+func TestBankObserveDeterministicAndGuarded(t *testing.T) {
+	p := testPopulation(t, 5)
+	g := bankGrid()
+	_, bank := randomTemplatesAndBank(t, p, g, 300_000, BankMargin{ColorMag: 0.02})
+	a, av, err := bank.Observe(context.Background(), p, g, ObserveOptions{Workers: 1})
+	require.NoError(t, err)
+	b, bv, err := bank.Observe(context.Background(), p, g, ObserveOptions{Workers: 3})
+	require.NoError(t, err)
+	assert.Equal(t, a, b)
+	assert.Equal(t, av, bv)
+	q := *p
+	q.Survey.Color = ColorCalibration{OffsetMag: 0.05}
+	_, _, err = bank.Observe(context.Background(), &q, g, ObserveOptions{})
+	assert.ErrorContains(t, err, "color margin")
+	q = *p
+	q.Cuts.BVMax += 0.1
+	_, _, err = bank.Observe(context.Background(), &q, g, ObserveOptions{})
+	assert.ErrorContains(t, err, "color cut")
+}
+
+// NormalCDF against math.Erfc. Source: Φ(x) = ½ erfc(−x/√2) (Abramowitz &
+// Stegun 1964, 26.2.29).
+func TestNormalCDF(t *testing.T) {
+	worst := 0.0
+	for x := -9.0; x <= 9; x += 0.000731 {
+		want := 0.5 * math.Erfc(-x/math.Sqrt2)
+		worst = math.Max(worst, math.Abs(NormalCDF(x)-want))
+	}
+	assert.Less(t, worst, 5e-7)
+	assert.Equal(t, 0.0, NormalCDF(math.Inf(-1)))
+	assert.Equal(t, 1.0, NormalCDF(math.Inf(1)))
+	assert.True(t, math.IsNaN(NormalCDF(math.NaN())))
+}
+
+// The period kernel spreads a star's whole weight over the period bins
+// when it lies far from the window's edges, and cuts it at a window edge
+// exactly where the normal distribution says.
+// Source: the normal distribution function; analytic.
+func TestDepositKernel(t *testing.T) {
+	g := bankGrid()
+	ob := observer{g: g, sigma10: 0.03, logPMin: math.Inf(-1), logPMax: math.Inf(1), nP: 24, nZ: 3}
+	ob.comp[0].prob = 1
+	cnt, vr := make([]float64, 24*3), make([]float64, 24*3)
+	ob.deposit(cnt, vr, 1, 1.0, 2.5) // height bin 1
+	var sum float64
+	for i, v := range cnt {
+		if i%3 != 1 {
+			assert.Zero(t, v)
+		}
+		sum += v
+	}
+	assert.InDelta(t, 2.5, sum, 1e-9)
+	// A window edge at the star's period keeps half of it.
+	ob.logPMax = 1.0
+	clear(cnt)
+	ob.deposit(cnt, vr, 0, 1.0, 1)
+	sum = 0
+	for _, v := range cnt {
+		sum += v
+	}
+	assert.InDelta(t, 0.5, sum, 1e-6)
+	// Half-period aliases land log10 2 lower.
+	ob.logPMax = math.Inf(1)
+	ob.comp[0].prob, ob.comp[1] = 0, struct{ shift, prob float64 }{-math.Log10(2), 1}
+	clear(cnt)
+	ob.deposit(cnt, vr, 0, 1.5, 1)
+	var mean float64
+	for pb := range 24 {
+		c := 0.5 * (g.LogPeriodEdges[pb] + g.LogPeriodEdges[pb+1])
+		mean += c * cnt[pb*3]
+	}
+	assert.InDelta(t, 1.5-math.Log10(2), mean, 0.01)
+}
+
+// Intrinsic scatter: the scattered law's periods spread lognormally about
+// the law's with the stated width, and a star's deviate is drawn after
+// the law's own numbers. Common practice, no source: sample moments.
+func TestScatteredLaw(t *testing.T) {
+	law := spin.Scattered{Law: spin.Barnes2007(), Dex: 0.08}
+	st := spin.Star{MassMsun: 0.9, AgeGyr: 1, BV: 0.8, TeffK: 5200}
+	p0, ok := spin.Barnes2007().Period(st, nil)
+	require.True(t, ok)
+	r := ChunkStream(3, 1)
+	var s, s2 float64
+	n := 20000
+	for range n {
+		p, ok := law.Period(st, r)
+		require.True(t, ok)
+		d := math.Log10(p / p0)
+		s += d
+		s2 += d * d
+	}
+	mean, sd := s/float64(n), math.Sqrt(s2/float64(n)-(s/float64(n))*(s/float64(n)))
+	assert.InDelta(t, 0, mean, 4*0.08/math.Sqrt(float64(n)))
+	assert.InDelta(t, 0.08, sd, 0.003)
+	g, ok := GyrochronePeriod(law, st)
+	require.True(t, ok)
+	assert.Equal(t, p0, g, "gyrochrones are the median")
+}
