@@ -45,7 +45,7 @@ func ProfileAuto(like *Likelihood, m HistoryModel, param string, best FitResult)
 		return Interval{}, fmt.Errorf("compare: %q is not a free parameter; free are %s", param, strings.Join(m.Names(), ", "))
 	}
 	f := m.Free[idx]
-	o := newObjective(like, m)
+	o := newObjective(like, m, nil, nil)
 	sigma := conditionalSigma(o, m, best.Theta, idx)
 	c := best.Theta[idx]
 	var grid []float64
@@ -127,7 +127,7 @@ func evidence(like *Likelihood, smooth, burst HistoryModel, f0, f1 FitResult, re
 		return nil
 	}
 	nEven, nFine := map[int]int{1: 201, 2: 61, 3: 21}[len(extra)], map[int]int{1: 200, 2: 40, 3: 16}[len(extra)]
-	o := newObjective(like, burst)
+	o := newObjective(like, burst, nil, nil)
 	idx := make([]int, len(extra))
 	nodes := make([][]float64, len(extra))
 	wts := make([][]float64, len(extra))

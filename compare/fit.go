@@ -23,6 +23,9 @@ type FitOptions struct {
 	// Init holds extra starting points (θ, inside the bounds), tried
 	// before the others, e.g. a previous fit's answer.
 	Init [][]float64
+	// NuisanceStart, for FitJoint, is where the nuisance parameters start
+	// and the first expansion is centred (nil: their nominal values).
+	NuisanceStart []float64
 }
 
 // FitResult is a maximum-likelihood fit.
@@ -30,10 +33,27 @@ type FitResult struct {
 	Theta       []float64 // best-fitting free parameters
 	Names       []string
 	Weights     []float64 // the age-bin mass fractions at Theta
+	// LogL is ln L at the fit: the data's log-likelihood plus, with
+	// nuisance parameters, their constraint terms (LogPrior).
 	LogL        float64
 	Evaluations int  // likelihood evaluations, all starts
 	Converged   bool // the best start ended on a convergence criterion
+
+	// With nuisance parameters (FitJoint): their fitted values and names,
+	// the constraint terms at them, the templates made exactly at them
+	// (every expectation of this fit must use these), and how many
+	// expansions the fit needed.
+	Nuisance      []float64
+	NuisanceNames []string
+	LogPrior      float64
+	Templates     *Templates
+	Rounds        int
+	morph         *morph
 }
+
+// LogLData returns the data's log-likelihood at the fit, without the
+// nuisance constraint terms.
+func (f FitResult) LogLData() float64 { return f.LogL - f.LogPrior }
 
 // Fit maximises the likelihood over the model's free parameters.
 //
@@ -55,8 +75,8 @@ func Fit(like *Likelihood, m HistoryModel, opts FitOptions) (FitResult, error) {
 	if opts.Starts <= 0 {
 		opts.Starts = 4
 	}
-	res := FitResult{Names: m.Names(), LogL: math.Inf(-1)}
 	if m.Dim() == 0 {
+		res := FitResult{Names: m.Names()}
 		w, err := m.Weights(nil)
 		if err != nil {
 			return res, err
@@ -64,13 +84,26 @@ func Fit(like *Likelihood, m HistoryModel, opts FitOptions) (FitResult, error) {
 		res.Theta, res.Weights, res.LogL, res.Evaluations, res.Converged = []float64{}, w, like.LogL(w), 1, true
 		return res, nil
 	}
-	obj := newObjective(like, m)
+	obj := newObjective(like, m, nil, nil)
+	return obj.fit(m, opts, nil)
+}
+
+// fit runs the starts of opts (and, with nuisance parameters, from nuStart)
+// and returns the best answer.
+func (o *objective) fit(m HistoryModel, opts FitOptions, nuStart []float64) (FitResult, error) {
+	res := FitResult{Names: m.Names(), LogL: math.Inf(-1), NuisanceNames: o.nu.Names()}
+	if o.mo != nil {
+		o.setNuisance(nuStart)
+	}
 	starts := append([][]float64(nil), opts.Init...)
 	starts = append(starts, m.Default())
-	starts = append(starts, scanStarts(obj, m, opts.Starts-1, opts.Seed)...)
+	starts = append(starts, scanStarts(o, m, opts.Starts-1, opts.Seed)...)
 	var firstErr error
 	for _, s := range dedupe(starts) {
-		theta, logL, conv, err := obj.maximise(interior(m, s))
+		if o.mo != nil {
+			o.setNuisance(nuStart)
+		}
+		theta, nu, logL, conv, err := o.maximise(interior(m, s), nuStart)
 		if err != nil {
 			if firstErr == nil {
 				firstErr = err
@@ -78,50 +111,75 @@ func Fit(like *Likelihood, m HistoryModel, opts FitOptions) (FitResult, error) {
 			continue
 		}
 		if logL > res.LogL {
-			res.Theta, res.LogL, res.Converged = theta, logL, conv
+			res.Theta, res.Nuisance, res.LogL, res.Converged = theta, nu, logL, conv
 		}
 	}
-	res.Evaluations = obj.evals
+	res.Evaluations = o.evals
 	if res.Theta == nil {
 		if firstErr == nil {
 			firstErr = errors.New("no start reached a finite likelihood")
 		}
-		return res, fmt.Errorf("compare: fit of %s failed: %w", strings.Join(res.Names, ", "), firstErr)
+		return res, fmt.Errorf("compare: fit of %s failed: %w", strings.Join(append(res.Names, res.NuisanceNames...), ", "), firstErr)
 	}
 	w, err := m.Weights(res.Theta)
 	if err != nil {
 		return res, err
 	}
 	res.Weights = w
+	if o.nu != nil {
+		res.LogPrior = o.nu.LogPrior(res.Nuisance)
+	}
 	return res, nil
 }
 
-// objective is −ln L on the optimiser's unbounded coordinates.
+// objective is −ln L on the optimiser's unbounded coordinates: the
+// history's free parameters, then the nuisance parameters (if any).
 type objective struct {
 	like  *Likelihood
 	m     HistoryModel
+	nu    *Nuisance // nil: history only
+	mo    *morph    // the expansion of the templates in the nuisance parameters
 	evals int
 
 	theta, dtheta, gw []float64
 	jac               [][]float64
+	nuVals, dnu, gnu  []float64
+	rows, dm, scratch []float64
+	clamped           []bool
 	lastX             []float64
 	lastF             float64
 	lastG             []float64
 	err               error
 }
 
-func newObjective(like *Likelihood, m HistoryModel) *objective {
+func newObjective(like *Likelihood, m HistoryModel, nu *Nuisance, mo *morph) *objective {
 	d := m.Dim()
-	o := &objective{like: like, m: m, theta: make([]float64, d), dtheta: make([]float64, d),
-		gw: make([]float64, like.NumAgeBins()), lastG: make([]float64, d)}
+	o := &objective{like: like, m: m, nu: nu, mo: mo, theta: make([]float64, d), dtheta: make([]float64, d),
+		gw: make([]float64, like.NumAgeBins()), lastG: make([]float64, d+nu.Dim())}
 	o.jac = make([][]float64, d)
 	for j := range o.jac {
 		o.jac[j] = make([]float64, like.NumAgeBins())
 	}
+	if mo != nil {
+		J := nu.Dim()
+		o.nuVals, o.dnu, o.gnu = make([]float64, J), make([]float64, J), make([]float64, J)
+		o.rows = make([]float64, like.nb*like.k)
+		o.clamped = make([]bool, like.nb*like.k)
+		o.dm, o.scratch = make([]float64, like.nb), make([]float64, like.nb*like.k)
+	}
 	return o
 }
 
-// logL evaluates ln L at theta (no gradient).
+// setNuisance puts the templates at nuisance values v into the likelihood.
+func (o *objective) setNuisance(v []float64) {
+	copy(o.nuVals, v)
+	o.mo.apply(o.nuVals, o.rows, o.clamped)
+	o.like.setRows(o.rows, o.mo.var0)
+	o.lastX = nil
+}
+
+// logL evaluates ln L at theta (no gradient), at the nuisance values last
+// set.
 func (o *objective) logL(theta []float64) float64 {
 	w, err := o.m.Weights(theta)
 	if err != nil {
@@ -131,47 +189,90 @@ func (o *objective) logL(theta []float64) float64 {
 	return o.like.LogL(w)
 }
 
+// nuisanceFromInternal maps the optimiser's nuisance coordinates to values
+// inside their bounds (the sine transform of HistoryModel), writing
+// dν/dx into deriv.
+func nuisanceFromInternal(nu *Nuisance, x, v, deriv []float64) {
+	for j, p := range nu.Params {
+		half := 0.5 * (p.Max - p.Min)
+		v[j] = math.Max(p.Min, math.Min(p.Max, p.Min+half*(1+math.Sin(x[j]))))
+		deriv[j] = half * math.Cos(x[j])
+	}
+}
+
+func nuisanceToInternal(nu *Nuisance, v []float64) []float64 {
+	x := make([]float64, len(v))
+	for j, p := range nu.Params {
+		u := 2*(v[j]-p.Min)/(p.Max-p.Min) - 1
+		x[j] = math.Asin(math.Max(-1, math.Min(1, u)))
+	}
+	return x
+}
+
 // eval computes f = −ln L and its gradient at x, caching the last point.
 func (o *objective) eval(x []float64) {
 	if o.lastX != nil && slices.Equal(x, o.lastX) {
 		return
 	}
 	o.lastX = append(o.lastX[:0], x...)
-	o.m.FromInternal(x, o.theta, o.dtheta)
+	d := o.m.Dim()
+	o.m.FromInternal(x[:d], o.theta, o.dtheta)
+	bad := func() {
+		o.lastF = math.Inf(1)
+		for j := range o.lastG {
+			o.lastG[j] = math.NaN()
+		}
+	}
+	if o.mo != nil {
+		nuisanceFromInternal(o.nu, x[d:], o.nuVals, o.dnu)
+		o.mo.apply(o.nuVals, o.rows, o.clamped)
+		o.like.setRows(o.rows, o.mo.var0)
+	}
 	w, err := o.m.Weights(o.theta)
 	if err != nil {
 		o.err = err
-		o.lastF = math.Inf(1)
-		for j := range o.lastG {
-			o.lastG[j] = math.NaN()
-		}
+		bad()
 		return
 	}
 	o.evals++
-	l := o.like.LogLGrad(w, o.gw)
+	var l float64
+	if o.mo != nil {
+		l = o.like.logLFull(w, o.gw, o.dm)
+	} else {
+		l = o.like.LogLGrad(w, o.gw)
+	}
 	if math.IsInf(l, -1) || math.IsNaN(l) {
-		o.lastF = math.Inf(1)
-		for j := range o.lastG {
-			o.lastG[j] = math.NaN()
-		}
+		bad()
 		return
 	}
 	if err := o.m.weightJacobian(o.theta, o.jac); err != nil {
 		o.err = err
 	}
 	o.lastF = -l
-	for j := range o.lastG {
+	for j := range d {
 		var s float64
 		for k, g := range o.gw {
 			s += g * o.jac[j][k]
 		}
 		o.lastG[j] = -s * o.dtheta[j]
 	}
+	if o.mo != nil {
+		clear(o.gnu)
+		o.mo.gradient(o.nuVals, w, o.dm, o.clamped, o.scratch, o.gnu)
+		for j, p := range o.nu.Params {
+			o.lastF -= p.logPrior(o.nuVals[j])
+			o.lastG[d+j] = -(o.gnu[j] + p.logPriorDeriv(o.nuVals[j])) * o.dnu[j]
+		}
+	}
 }
 
-// maximise runs BFGS from theta0 and returns the best point.
-func (o *objective) maximise(theta0 []float64) (theta []float64, logL float64, converged bool, err error) {
+// maximise runs BFGS from theta0 (and nuisance values nu0) and returns the
+// best point.
+func (o *objective) maximise(theta0, nu0 []float64) (theta, nu []float64, logL float64, converged bool, err error) {
 	x0 := o.m.ToInternal(theta0)
+	if o.mo != nil {
+		x0 = append(x0, nuisanceToInternal(o.nu, nu0)...)
+	}
 	fg := func(x, g []float64) float64 {
 		o.eval(x)
 		copy(g, o.lastG)
@@ -180,13 +281,18 @@ func (o *objective) maximise(theta0 []float64) (theta []float64, logL float64, c
 	x, f, conv := minimizeBFGS(fg, x0, 400)
 	if math.IsInf(f, 1) || math.IsNaN(f) {
 		if o.err != nil {
-			return nil, 0, false, o.err
+			return nil, nil, 0, false, o.err
 		}
-		return nil, 0, false, errors.New("the likelihood is zero at the start")
+		return nil, nil, 0, false, errors.New("the likelihood is zero at the start")
 	}
-	theta = make([]float64, o.m.Dim())
-	o.m.FromInternal(x, theta, nil)
-	return theta, -f, conv, nil
+	d := o.m.Dim()
+	theta = make([]float64, d)
+	o.m.FromInternal(x[:d], theta, nil)
+	if o.mo != nil {
+		nu = make([]float64, o.nu.Dim())
+		nuisanceFromInternal(o.nu, x[d:], nu, make([]float64, len(nu)))
+	}
+	return theta, nu, -f, conv, nil
 }
 
 // interior moves a start off the bounds, where the transform is flat.

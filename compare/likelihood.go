@@ -126,19 +126,20 @@ func quoteList(xs []string) string {
 // their optimum (envelope theorem: their own derivatives vanish there),
 // differentiating the constraint through δ_i(w).
 type Likelihood struct {
-	opts    LikeOptions
-	space   Space
-	k, nb   int
-	rows    []float64 // bins-major templates, rows[i*k+j] = T_ji; shared read-only unless owned
-	varRows []float64 // bins-major template variances; aliases rows for raw counts
-	owned   bool      // rows and varRows belong to this Likelihood (SetTemplates may overwrite them)
-	colSum  []float64 // S_k = Σ_i T_ki
-	n       []float64
-	nTot    float64
-	lnFactN float64 // Σ ln n_i!
-	mix     *stats.Mixture
-	free    bool // scales are profiled (every normalisation but absolute)
-	bb      bool
+	opts       LikeOptions
+	space      Space
+	k, nb      int
+	rows       []float64 // bins-major templates, rows[i*k+j] = T_ji; shared read-only unless owned
+	varRows    []float64 // bins-major template variances; aliases rows for raw counts
+	owned      bool      // rows and varRows belong to this Likelihood (SetTemplates may overwrite them)
+	sharedSums bool      // colSum and grpSum are shared with another Likelihood (WithCounts)
+	colSum     []float64 // S_k = Σ_i T_ki
+	n          []float64
+	nTot       float64
+	lnFactN    float64 // Σ ln n_i!
+	mix        *stats.Mixture
+	free       bool // scales are profiled (every normalisation but absolute)
+	bb         bool
 
 	// Groups of bins that share one free scale: group[i] for bin i (nil:
 	// one group of all bins), grpSum[g*k+j] = Σ_{i∈g} T_ji, nG[g] = Σ_{i∈g} n_i.
@@ -286,7 +287,8 @@ func (l *Likelihood) WithCounts(counts []float64) (*Likelihood, error) {
 	}
 	c := &Likelihood{opts: l.opts, space: l.space, k: l.k, nb: l.nb, rows: l.rows, varRows: l.varRows,
 		colSum: l.colSum, free: l.free, bb: l.bb, ng: l.ng, group: l.group, grpSum: l.grpSum}
-	l.owned = false // the templates are shared now: SetTemplates on either copies first
+	c.sharedSums = true
+	l.owned, l.sharedSums = false, true // shared now: either copies before it writes
 	if err := c.setCounts(counts); err != nil {
 		return nil, err
 	}
@@ -316,16 +318,52 @@ func (l *Likelihood) SetTemplates(tpl *Templates) error {
 }
 
 // setRows makes rows (and varRows, nil for raw counts) the templates,
-// bins-major; the Likelihood takes the slices over.
+// bins-major; the Likelihood reads the slices from now on and never
+// writes them.
 func (l *Likelihood) setRows(rows, varRows []float64) {
+	if l.sharedSums {
+		l.colSum, l.grpSum, l.sharedSums = nil, nil, false
+	}
 	l.rows = rows
 	l.varRows = varRows
 	if varRows == nil {
 		l.varRows = rows
 	}
-	l.owned = true
+	l.owned = false // not ours to overwrite: SetTemplates copies first
 	l.sumColumns()
 	l.mix.SetTemplates(l.rows, l.n)
+}
+
+// rowsOf returns t in the likelihood's bins-major layout (heights summed
+// for a 2-D comparison), with its variances (the counts themselves for
+// raw counts).
+func (l *Likelihood) rowsOf(t *Templates) (rows, varRows []float64, err error) {
+	if err := t.check(); err != nil {
+		return nil, nil, err
+	}
+	if !l.opts.Use3D && t.Space.NumHeight() > 1 {
+		t = t.Collapse2D()
+	}
+	if t.NumAgeBins() != l.k || !t.Space.Equal(l.space) {
+		return nil, nil, fmt.Errorf("compare: templates of %d age bins in another space; want %d age bins in the likelihood's space", t.NumAgeBins(), l.k)
+	}
+	nb, nk := l.nb, l.k
+	rows = make([]float64, nb*nk)
+	for j := range nk {
+		for i, v := range t.Counts[j*nb : (j+1)*nb] {
+			rows[i*nk+j] = v
+		}
+	}
+	varRows = rows
+	if t.Var != nil {
+		varRows = make([]float64, nb*nk)
+		for j := range nk {
+			for i, v := range t.Var[j*nb : (j+1)*nb] {
+				varRows[i*nk+j] = v
+			}
+		}
+	}
+	return rows, varRows, nil
 }
 
 // own gives the Likelihood its own template buffers, so that SetTemplates
@@ -338,8 +376,10 @@ func (l *Likelihood) own(withVar bool) {
 		if sepVar {
 			l.varRows = make([]float64, l.nb*l.k)
 		}
-		l.colSum, l.grpSum = nil, nil
 		l.owned = true
+	}
+	if l.sharedSums {
+		l.colSum, l.grpSum, l.sharedSums = nil, nil, false
 	}
 	if withVar && &l.varRows[0] == &l.rows[0] {
 		l.varRows = make([]float64, l.nb*l.k)
@@ -388,6 +428,24 @@ func (l *Likelihood) setCounts(counts []float64) error {
 	l.mG, l.sumG, l.dsumG = make([]float64, l.ng), make([]float64, l.ng), make([]float64, l.ng)
 	l.scales, l.fresh = make([]float64, l.ng), make([]bool, l.ng)
 	return nil
+}
+
+// reachable reports whether every bin holding data stars has template
+// stars, without which every history has likelihood zero.
+func (l *Likelihood) reachable() bool {
+	for i, n := range l.n {
+		if n == 0 {
+			continue
+		}
+		var s float64
+		for _, v := range l.rows[i*l.k : (i+1)*l.k] {
+			s += v
+		}
+		if !(s > 0) {
+			return false
+		}
+	}
+	return true
 }
 
 // NumAgeBins returns the length of the weight vector.
@@ -771,6 +829,34 @@ func (l *Likelihood) Fitted(weights, dst []float64) []float64 {
 	return dst
 }
 
+// logLFull returns ln L at weights with its gradient with respect to the
+// weights (into grad) and to the expectation of each bin in template
+// units (into dm, see binDerivatives), in one pass.
+func (l *Likelihood) logLFull(weights, grad, dm []float64) float64 {
+	v := l.LogLGrad(weights, grad)
+	if math.IsInf(v, -1) {
+		return v
+	}
+	if l.bb {
+		copy(dm, l.a)
+		return v
+	}
+	l.poissonBinDerivs(weights, dm)
+	return v
+}
+
+// poissonBinDerivs writes ∂ln L/∂m_i of the exact-template likelihood,
+// n_i/m_i − s_g(i), with the scales of the last evaluation.
+func (l *Likelihood) poissonBinDerivs(weights, dm []float64) {
+	stats.MatVec(l.rows, l.nb, l.k, weights, l.m)
+	for i, m := range l.m {
+		dm[i] = -l.scales[l.groupOf(i)]
+		if n := l.n[i]; n > 0 {
+			dm[i] += n / m
+		}
+	}
+}
+
 // binDerivatives writes ∂ln L/∂m_i into dm and ∂ln L/∂v_i into dv (nil
 // for exact templates, where v plays no part) at weights, with
 // m_i = Σ_k w_k T_ki and v_i = Σ_k w_k² V_ki in template units and every
@@ -793,14 +879,7 @@ func (l *Likelihood) binDerivatives(weights, dm, dv []float64) float64 {
 	if math.IsInf(v, -1) {
 		return v
 	}
-	stats.MatVec(l.rows, l.nb, l.k, weights, l.m)
-	for i, m := range l.m {
-		s := l.scales[l.groupOf(i)]
-		dm[i] = -s
-		if n := l.n[i]; n > 0 {
-			dm[i] += n / m
-		}
-	}
+	l.poissonBinDerivs(weights, dm)
 	return v
 }
 

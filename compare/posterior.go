@@ -68,7 +68,7 @@ func SamplePosterior(ctx context.Context, like *Likelihood, m HistoryModel, opts
 	if err != nil {
 		return nil, err
 	}
-	o := newObjective(like, m)
+	o := newObjective(like, m, nil, nil)
 	logProb := func(x []float64) float64 {
 		lp := m.logPrior(x)
 		if math.IsInf(lp, -1) {

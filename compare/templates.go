@@ -27,6 +27,9 @@ type Templates struct {
 	StarsDrawn  int64     // stars generated in all
 	DrawnPerBin []int64   // stars generated per age bin
 	Key         string    // hash of the scenario parts the templates depend on, set by the caller
+	// Bank holds the run's catalogue-eligible stars when TemplateOptions.Bank
+	// asked for them (not saved with the templates).
+	Bank *model.Bank
 }
 
 // TemplateOptions control BuildTemplates.
@@ -38,6 +41,10 @@ type TemplateOptions struct {
 	// Progress, if not nil, is called on the calling goroutine after each
 	// chunk with the stars done so far and the total.
 	Progress func(done, total int64)
+	// Bank, if not nil, also keeps the run's catalogue-eligible stars
+	// (Templates.Bank) with these margins, so that nuisance parameters can
+	// be fitted by re-observing them (BankObserver).
+	Bank *model.BankMargin
 }
 
 // NumAgeBins returns the number of templates.
@@ -102,14 +109,9 @@ func BuildTemplates(ctx context.Context, pop *model.Population, binIntegrals, ag
 		return nil, err
 	}
 
-	p := *pop
-	p.BinProb = append([]float64(nil), binIntegrals...)
-	edges := append([]float64(nil), ageEdgesGyr...)
-	p.Age = func(k int, r *rand.Rand) float64 {
-		return edges[k] + (edges[k+1]-edges[k])*r.Float64()
-	}
-	if err := p.Prepare(); err != nil {
-		return nil, fmt.Errorf("compare: template population: %w", err)
+	p, edges, err := templatePopulation(pop, binIntegrals, ageEdgesGyr)
+	if err != nil {
+		return nil, err
 	}
 
 	nb := space.NumBins()
@@ -120,8 +122,17 @@ func BuildTemplates(ctx context.Context, pop *model.Population, binIntegrals, ag
 		DrawnPerBin: make([]int64, nk),
 	}
 	var done int64
-	err := model.RunChunks(ctx, opts.Seed, opts.Stars, opts.ChunkStars, opts.Workers, p.Fill, func(c *model.Chunk) error {
+	var bb *model.BankBuilder
+	if opts.Bank != nil {
+		if bb, err = model.NewBankBuilder(p, nk, opts.Seed, *opts.Bank); err != nil {
+			return nil, err
+		}
+	}
+	err = model.RunChunks(ctx, opts.Seed, opts.Stars, opts.ChunkStars, opts.Workers, p.Fill, func(c *model.Chunk) error {
 		t.add(c)
+		if bb != nil {
+			bb.Add(c)
+		}
 		done += int64(c.N)
 		if opts.Progress != nil {
 			opts.Progress(done, opts.Stars)
@@ -132,7 +143,26 @@ func BuildTemplates(ctx context.Context, pop *model.Population, binIntegrals, ag
 		return nil, err
 	}
 	t.StarsDrawn = done
+	if bb != nil {
+		t.Bank = bb.Bank()
+	}
 	return t, nil
+}
+
+// templatePopulation returns a copy of pop that forms the same mass in
+// every age bin (BinProb = the bins' line-of-sight integrals) with ages
+// uniform inside each bin, prepared; see BuildTemplates.
+func templatePopulation(pop *model.Population, binIntegrals, ageEdgesGyr []float64) (*model.Population, []float64, error) {
+	p := *pop
+	p.BinProb = append([]float64(nil), binIntegrals...)
+	edges := append([]float64(nil), ageEdgesGyr...)
+	p.Age = func(k int, r *rand.Rand) float64 {
+		return edges[k] + (edges[k+1]-edges[k])*r.Float64()
+	}
+	if err := p.Prepare(); err != nil {
+		return nil, nil, fmt.Errorf("compare: template population: %w", err)
+	}
+	return &p, edges, nil
 }
 
 // add counts the stars of one chunk.

@@ -1,0 +1,221 @@
+package compare
+
+import (
+	"context"
+	"fmt"
+	"math"
+)
+
+// maxRounds bounds the expansions a joint fit makes (see FitJoint), and
+// minStepFraction how far its trust region may shrink.
+const (
+	maxRounds       = 12
+	minStepFraction = 1.0 / 32
+)
+
+// FitJoint maximises the likelihood over the history's free parameters and
+// the nuisance parameters together (nu nil or empty: Fit).
+//
+// It is a trust-region search in which the expansion of the templates (see
+// Nuisance) is the model and templates made exactly are the judge. A
+// round expands the templates about the current centre with side points
+// one step away in each parameter, fits history and nuisance parameters
+// together on the expansion, and then scores the centre, every side point
+// and the expansion's proposal with exact templates (the history refitted
+// at each: the profile likelihood). The best of them becomes the next
+// centre. When the centre stays best, the steps halve if the proposal lay
+// more than a tenth of a step away — the expansion misled, as a quadratic
+// in each bin can when a ridge moves across bins — and the search ends when
+// the proposal agrees with the centre or the steps have shrunk 32-fold. The
+// answer is the final centre: Nuisance, Templates, Weights and LogL all
+// belong to that one point, made exactly; like's templates are left there.
+func FitJoint(ctx context.Context, like *Likelihood, m HistoryModel, nu *Nuisance, opts FitOptions) (FitResult, error) {
+	if nu.Dim() == 0 {
+		return Fit(like, m, opts)
+	}
+	if err := m.Validate(); err != nil {
+		return FitResult{}, err
+	}
+	if err := nu.Validate(); err != nil {
+		return FitResult{}, err
+	}
+	if len(m.AgeEdgesGyr)-1 != like.NumAgeBins() {
+		return FitResult{}, fmt.Errorf("compare: the history model has %d age bins, the templates %d; use the templates' age edges", len(m.AgeEdgesGyr)-1, like.NumAgeBins())
+	}
+	if opts.Starts <= 0 {
+		opts.Starts = 4
+	}
+	centre := nu.Nominal()
+	if opts.NuisanceStart != nil {
+		centre = append([]float64(nil), opts.NuisanceStart...)
+	}
+	steps := make([]float64, nu.Dim())
+	for j, p := range nu.Params {
+		steps[j] = p.step()
+	}
+	evals := 0
+	// The centre's profile likelihood, with every history start.
+	best, err := profileAtValues(ctx, like, m, nu, centre, opts)
+	if err != nil {
+		return FitResult{}, err
+	}
+	evals += best.Evaluations
+	var mo *morph
+	round := 0
+	for round < maxRounds {
+		round++
+		if err := ctx.Err(); err != nil {
+			return FitResult{}, err
+		}
+		if mo, err = newMorph(ctx, like, nu, centre, steps); err != nil {
+			return FitResult{}, err
+		}
+		warm := FitOptions{Starts: 1, Init: [][]float64{best.Theta}, Seed: opts.Seed}
+		cand := best
+		// Every side point, scored exactly.
+		for _, sp := range mo.sides {
+			r, err := profileWith(like, m, nu, sp.values, sp.tpl, warm)
+			if err != nil {
+				return FitResult{}, err
+			}
+			evals += r.Evaluations
+			if r.LogL > cand.LogL {
+				cand = r
+			}
+		}
+		// The expansion's proposal.
+		o := newObjective(like, m, nu, mo)
+		prop, err := o.fit(m, FitOptions{Starts: 1, Init: [][]float64{best.Theta}, Seed: opts.Seed}, centre)
+		if err != nil {
+			return FitResult{}, err
+		}
+		evals += prop.Evaluations
+		far := false
+		for j := range steps {
+			if math.Abs(prop.Nuisance[j]-centre[j]) > 0.1*steps[j] {
+				far = true
+			}
+		}
+		if far {
+			r, err := profileAtValues(ctx, like, m, nu, prop.Nuisance, FitOptions{Starts: 1, Init: [][]float64{prop.Theta, best.Theta}, Seed: opts.Seed})
+			if err != nil {
+				return FitResult{}, err
+			}
+			evals += r.Evaluations
+			if r.LogL > cand.LogL {
+				cand = r
+			}
+		}
+		if cand.LogL > best.LogL+1e-9 {
+			best = cand
+			centre = append([]float64(nil), cand.Nuisance...)
+			continue
+		}
+		if !far {
+			break // the expansion agrees: the centre is the maximum
+		}
+		shrunk := true
+		for j, p := range nu.Params {
+			steps[j] *= 0.5
+			if steps[j] > minStepFraction*p.step() {
+				shrunk = false
+			}
+		}
+		if shrunk {
+			break
+		}
+	}
+	// The answer and the expansion about it, for the bootstrap replicates.
+	if mo == nil || !equalValues(mo.centre, centre) {
+		if mo, err = newMorph(ctx, like, nu, centre, steps); err != nil {
+			return FitResult{}, err
+		}
+	}
+	if err := like.SetTemplates(mo.exact); err != nil {
+		return FitResult{}, err
+	}
+	best.Templates = mo.exact
+	best.morph = mo
+	best.Rounds = round
+	best.Evaluations = evals
+	return best, nil
+}
+
+// profileAtValues fits the history with the templates made exactly at
+// nuisance values v, and returns the fit with v, its constraint terms and
+// its templates.
+func profileAtValues(ctx context.Context, like *Likelihood, m HistoryModel, nu *Nuisance, v []float64, opts FitOptions) (FitResult, error) {
+	t, err := nu.Templates(ctx, v)
+	if err != nil {
+		return FitResult{}, err
+	}
+	return profileWith(like, m, nu, v, t, opts)
+}
+
+// profileWith is profileAtValues with the templates given.
+func profileWith(like *Likelihood, m HistoryModel, nu *Nuisance, v []float64, t *Templates, opts FitOptions) (FitResult, error) {
+	if err := like.SetTemplates(t); err != nil {
+		return FitResult{}, err
+	}
+	if !like.reachable() {
+		// Data stars where these templates have none: no history fits.
+		return FitResult{Names: m.Names(), LogL: math.Inf(-1), Nuisance: append([]float64(nil), v...), NuisanceNames: nu.Names(), Templates: t}, nil
+	}
+	r, err := Fit(like, m, opts)
+	if err != nil {
+		return FitResult{}, err
+	}
+	r.Nuisance = append([]float64(nil), v...)
+	r.NuisanceNames = nu.Names()
+	r.LogPrior = nu.LogPrior(v)
+	r.LogL += r.LogPrior
+	r.Templates = t
+	return r, nil
+}
+
+func equalValues(a, b []float64) bool {
+	if len(a) != len(b) {
+		return false
+	}
+	for i := range a {
+		if a[i] != b[i] {
+			return false
+		}
+	}
+	return true
+}
+
+// refitAt fits the history and the nuisance parameters to like's data with
+// the expansion mo held fixed (no new templates): what a bootstrap
+// replicate does, starting from the data's answers. Its LogL includes the
+// constraint terms, as FitJoint's does.
+func refitAt(like *Likelihood, m HistoryModel, nu *Nuisance, mo *morph, opts FitOptions, nuStart []float64) (FitResult, error) {
+	if nu.Dim() == 0 || mo == nil {
+		return Fit(like, m, opts)
+	}
+	o := newObjective(like, m, nu, mo)
+	r, err := o.fit(m, opts, nuStart)
+	if err != nil {
+		return r, err
+	}
+	r.morph = mo
+	return r, nil
+}
+
+// useTemplates puts a fit's templates into like (its exact templates, or
+// the expansion at its nuisance values), so that Expected and Fitted
+// describe that fit. A fit without nuisance parameters uses base.
+func useTemplates(like *Likelihood, f FitResult, base *Templates) error {
+	switch {
+	case f.morph != nil:
+		rows := make([]float64, like.nb*like.k)
+		f.morph.apply(f.Nuisance, rows, nil)
+		like.setRows(rows, f.morph.var0)
+		return nil
+	case f.Templates != nil:
+		return like.SetTemplates(f.Templates)
+	case base != nil:
+		return like.SetTemplates(base)
+	}
+	return nil
+}

@@ -1,0 +1,343 @@
+package compare
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"math"
+	"strconv"
+	"strings"
+	"sync"
+
+	"gonum.org/v1/gonum/floats"
+)
+
+// NuisanceParam is a parameter of the physics or of the selection — a
+// spin-down coefficient, a period scatter, a detection threshold, a color
+// zero point — fitted together with the history because the answer
+// depends on it and its value is known only roughly. It is named by its
+// scenario path.
+type NuisanceParam struct {
+	Name     string
+	Nominal  float64 // the scenario's value: the centre of the prior
+	Min, Max float64 // hard bounds of the fit
+	// Sigma is the width of a Gaussian prior about Nominal (a constraint
+	// term −½((ν − Nominal)/Sigma)² in ln L, as for a parameter measured
+	// elsewhere); 0 means a flat prior on [Min, Max].
+	Sigma float64
+	// Step is the distance from the centre at which templates are made
+	// for the quadratic interpolation (see Nuisance); 0 means Sigma, or an
+	// eighth of the range when the prior is flat.
+	Step float64
+}
+
+// logPrior returns the constraint term at v (0 at the nominal value).
+func (p NuisanceParam) logPrior(v float64) float64 {
+	if p.Sigma <= 0 {
+		return 0
+	}
+	d := (v - p.Nominal) / p.Sigma
+	return -0.5 * d * d
+}
+
+// logPriorDeriv returns d logPrior/dv.
+func (p NuisanceParam) logPriorDeriv(v float64) float64 {
+	if p.Sigma <= 0 {
+		return 0
+	}
+	return -(v - p.Nominal) / (p.Sigma * p.Sigma)
+}
+
+func (p NuisanceParam) step() float64 {
+	switch {
+	case p.Step > 0:
+		return p.Step
+	case p.Sigma > 0:
+		return p.Sigma
+	}
+	return (p.Max - p.Min) / 8
+}
+
+// Observer makes templates at given nuisance values (one per parameter,
+// in order) — by re-observing stored template stars (BankObserver), never
+// by a new simulation.
+type Observer interface {
+	Observe(ctx context.Context, values []float64) (*Templates, error)
+}
+
+// Nuisance is the nuisance part of a model: its parameters and where
+// templates at other values come from.
+//
+// How a fit moves them cheaply. Templates at the centre ν_c and at
+// ν_c ± δ_j for each parameter j (2J + 1 re-observations) fix, bin by bin,
+// a quadratic in each ν_j through the three points, continued linearly
+// beyond them; the templates at any ν are the centre's plus the sum of
+// the J changes ("vertical" template interpolation, the piecewise-quadratic
+// form HistFactory uses for shape systematics: Cranmer et al. 2012,
+// CERN-OPEN-2012-016) [memory]. A likelihood evaluation after a nuisance
+// change is then 2J + 1 scaled matrix additions, with an exact gradient.
+// Interactions between parameters are left out, so a fit re-centres the
+// expansion on its answer and fits again until the answer stays within
+// half a step of the centre: the final likelihood is then computed from
+// templates made exactly at the fitted values.
+type Nuisance struct {
+	Params []NuisanceParam
+	Source Observer
+
+	mu    sync.Mutex
+	cache map[string]*Templates
+}
+
+// Validate checks the parameters.
+func (n *Nuisance) Validate() error {
+	if n == nil {
+		return nil
+	}
+	if n.Source == nil {
+		return errors.New("compare: nuisance parameters need a source of templates")
+	}
+	seen := map[string]bool{}
+	for _, p := range n.Params {
+		switch {
+		case seen[p.Name]:
+			return fmt.Errorf("compare: nuisance parameter %q is listed twice", p.Name)
+		case !(p.Min < p.Max) || math.IsInf(p.Min, 0) || math.IsInf(p.Max, 0):
+			return fmt.Errorf("compare: nuisance parameter %q has bounds [%g, %g]; want finite min < max", p.Name, p.Min, p.Max)
+		case !(p.Nominal >= p.Min && p.Nominal <= p.Max):
+			return fmt.Errorf("compare: nuisance parameter %q: its scenario value %g lies outside its bounds [%g, %g]", p.Name, p.Nominal, p.Min, p.Max)
+		case p.Sigma < 0 || p.Step < 0 || math.IsNaN(p.Sigma) || math.IsNaN(p.Step):
+			return fmt.Errorf("compare: nuisance parameter %q: prior width %g and step %g must be ≥ 0", p.Name, p.Sigma, p.Step)
+		}
+		seen[p.Name] = true
+	}
+	return nil
+}
+
+// Dim returns the number of nuisance parameters (0 for nil).
+func (n *Nuisance) Dim() int {
+	if n == nil {
+		return 0
+	}
+	return len(n.Params)
+}
+
+// Names returns the parameters' names.
+func (n *Nuisance) Names() []string {
+	if n == nil {
+		return nil
+	}
+	out := make([]string, len(n.Params))
+	for i, p := range n.Params {
+		out[i] = p.Name
+	}
+	return out
+}
+
+// Nominal returns the parameters' scenario values.
+func (n *Nuisance) Nominal() []float64 {
+	out := make([]float64, n.Dim())
+	for i, p := range n.Params {
+		out[i] = p.Nominal
+	}
+	return out
+}
+
+// LogPrior returns Σ_j of the constraint terms at values.
+func (n *Nuisance) LogPrior(values []float64) float64 {
+	var s float64
+	for j, p := range n.Params {
+		s += p.logPrior(values[j])
+	}
+	return s
+}
+
+// Templates returns the templates at values, made once and kept: a fit
+// asks for the same points again when it re-centres, and the bootstrap
+// replicates share the data's.
+func (n *Nuisance) Templates(ctx context.Context, values []float64) (*Templates, error) {
+	key := valuesKey(values)
+	n.mu.Lock()
+	t, ok := n.cache[key]
+	n.mu.Unlock()
+	if ok {
+		return t, nil
+	}
+	t, err := n.Source.Observe(ctx, values)
+	if err != nil {
+		return nil, fmt.Errorf("compare: templates at %s: %w", n.describe(values), err)
+	}
+	n.mu.Lock()
+	if n.cache == nil {
+		n.cache = map[string]*Templates{}
+	}
+	n.cache[key] = t
+	n.mu.Unlock()
+	return t, nil
+}
+
+func valuesKey(v []float64) string {
+	var b strings.Builder
+	for _, x := range v {
+		b.WriteString(strconv.FormatUint(math.Float64bits(x), 16))
+		b.WriteByte(',')
+	}
+	return b.String()
+}
+
+func (n *Nuisance) describe(values []float64) string {
+	parts := make([]string, len(values))
+	for j, v := range values {
+		parts[j] = fmt.Sprintf("%s = %.4g", n.Params[j].Name, v)
+	}
+	return strings.Join(parts, ", ")
+}
+
+// morph is the expansion of the templates about a centre (see Nuisance),
+// in a likelihood's bins-major layout: rows(ν) = t0 + Σ_j x_j a_j +
+// β_j(x_j) b_j with x_j = ν_j − centre_j, β_j = x_j² between the two
+// side points and continued linearly beyond them.
+type morph struct {
+	centre     []float64
+	lo, hi     []float64 // the side points' distances below and above the centre (≥ 0)
+	t0, var0   []float64 // bins-major templates and variances at the centre
+	a, b       [][]float64
+	exact      *Templates // the centre's templates, as made
+	nb, k      int
+	sides      []sidePoint // the side points' values and templates
+}
+
+// sidePoint is one side point of an expansion: the nuisance values and the
+// templates made there.
+type sidePoint struct {
+	values []float64
+	tpl    *Templates
+}
+
+// newMorph builds the expansion of nu about centre for like's layout, with
+// side points at the parameters' steps (steps nil) or at steps.
+func newMorph(ctx context.Context, like *Likelihood, nu *Nuisance, centre, steps []float64) (*morph, error) {
+	t0, err := nu.Templates(ctx, centre)
+	if err != nil {
+		return nil, err
+	}
+	mo := &morph{centre: append([]float64(nil), centre...), nb: like.nb, k: like.k, exact: t0}
+	mo.t0, mo.var0, err = like.rowsOf(t0)
+	if err != nil {
+		return nil, err
+	}
+	J := nu.Dim()
+	mo.lo, mo.hi = make([]float64, J), make([]float64, J)
+	mo.a, mo.b = make([][]float64, J), make([][]float64, J)
+	for j, p := range nu.Params {
+		d := p.step()
+		if steps != nil {
+			d = steps[j]
+		}
+		c := centre[j]
+		up, down := math.Min(c+d, p.Max), math.Max(c-d, p.Min)
+		mo.hi[j], mo.lo[j] = up-c, c-down
+		var fp, fm []float64
+		if mo.hi[j] > 0 {
+			if fp, err = mo.side(ctx, like, nu, centre, j, up); err != nil {
+				return nil, err
+			}
+		}
+		if mo.lo[j] > 0 {
+			if fm, err = mo.side(ctx, like, nu, centre, j, down); err != nil {
+				return nil, err
+			}
+		}
+		a, b := make([]float64, len(mo.t0)), make([]float64, len(mo.t0))
+		hp, hm := mo.hi[j], mo.lo[j]
+		for i, f0 := range mo.t0 {
+			switch {
+			case fp != nil && fm != nil:
+				dp, dm := (fp[i]-f0)/hp, (fm[i]-f0)/hm
+				b[i] = (dp + dm) / (hp + hm)
+				a[i] = dp - b[i]*hp
+			case fp != nil:
+				a[i] = (fp[i] - f0) / hp
+			case fm != nil:
+				a[i] = (f0 - fm[i]) / hm
+			}
+		}
+		mo.a[j], mo.b[j] = a, b
+	}
+	return mo, nil
+}
+
+// side returns the bins-major templates with parameter j at v.
+func (mo *morph) side(ctx context.Context, like *Likelihood, nu *Nuisance, centre []float64, j int, v float64) ([]float64, error) {
+	vals := append([]float64(nil), centre...)
+	vals[j] = v
+	t, err := nu.Templates(ctx, vals)
+	if err != nil {
+		return nil, err
+	}
+	mo.sides = append(mo.sides, sidePoint{values: vals, tpl: t})
+	rows, _, err := like.rowsOf(t)
+	return rows, err
+}
+
+// beta returns β_j(x) and dβ_j/dx.
+func (mo *morph) beta(j int, x float64) (b, db float64) {
+	hp, hm := mo.hi[j], mo.lo[j]
+	switch {
+	case x > hp:
+		return 2*hp*x - hp*hp, 2 * hp
+	case x < -hm:
+		return -2*hm*x - hm*hm, -2 * hm
+	}
+	return x * x, 2 * x
+}
+
+// apply writes the templates at values into dst (bins-major), clamped at
+// zero; clamped marks the entries the clamp changed (their derivative is
+// zero), when not nil.
+func (mo *morph) apply(values, dst []float64, clamped []bool) {
+	copy(dst, mo.t0)
+	for j, v := range values {
+		x := v - mo.centre[j]
+		if x == 0 {
+			continue
+		}
+		bj, _ := mo.beta(j, x)
+		floats.AddScaled(dst, x, mo.a[j])
+		floats.AddScaled(dst, bj, mo.b[j])
+	}
+	for i, v := range dst {
+		neg := v < 0
+		if neg {
+			dst[i] = 0
+		}
+		if clamped != nil {
+			clamped[i] = neg
+		}
+	}
+}
+
+// gradient adds to g[j] the derivative of ln L with respect to values[j],
+// Σ_ik dm_i w_k ∂rows_ik/∂ν_j over the entries the clamp left alone, using
+// c (len nb·k) as scratch.
+func (mo *morph) gradient(values, w, dm []float64, clamped []bool, c, g []float64) {
+	k := mo.k
+	for i, d := range dm {
+		row := c[i*k : (i+1)*k]
+		for j, wj := range w {
+			row[j] = d * wj
+		}
+	}
+	for i, cl := range clamped {
+		if cl {
+			c[i] = 0
+		}
+	}
+	for j, v := range values {
+		_, db := mo.beta(j, v-mo.centre[j])
+		s := floats.Dot(c, mo.a[j])
+		if db != 0 {
+			s += db * floats.Dot(c, mo.b[j])
+		}
+		g[j] += s
+	}
+}
