@@ -30,6 +30,9 @@ type TestOptions struct {
 	// NoProfile skips the profile interval of the burst age; NoEvidence
 	// the Bayes factor (calibration runs need neither).
 	NoProfile, NoEvidence bool
+	// Nuisance, when not nil, is fitted together with the history under
+	// both hypotheses, in the data's fits and in every replicate's.
+	Nuisance *Nuisance
 }
 
 // BurstResult is the outcome of BurstTest.
@@ -77,8 +80,23 @@ type BurstResult struct {
 	AgeParam    string
 	AgeInterval Interval
 
-	Strength string // "strong", "moderate", "weak" or "none"
-	Verdict  string
+	// Adequacy of each fitted model (see Adequacy), calibrated by the same
+	// replicates.
+	AdequacySmooth, AdequacyBurst Adequacy
+	// Dispersion is the burst model's φ̂; PValueQuasi the bootstrap
+	// p-value of the quasi-likelihood ratio LR/φ̂ against the replicates'
+	// LR*/φ̂* — the burst judged against the misfit that remains.
+	Dispersion  float64
+	PValueQuasi float64
+	// Calibration names the p-value the strength rests on: "bootstrap"
+	// (the burst model describes the catalog) or "quasi-likelihood" (it
+	// does not, and the ratio is divided by the dispersion).
+	Calibration string
+
+	Strength string // "strong", "moderate", "weak", "none" or "unreliable"
+	// StrengthReason says, for "unreliable", why no verdict is given.
+	StrengthReason string
+	Verdict        string
 }
 
 // Verdict thresholds on the bootstrap p-value. Strength language follows
@@ -118,32 +136,47 @@ func BurstTest(ctx context.Context, like *Likelihood, smooth, burst HistoryModel
 	if opts.ReplicateStarts <= 0 {
 		opts.ReplicateStarts = 2
 	}
-	f0, err := Fit(like, smooth, FitOptions{Starts: opts.FitStarts, Seed: opts.Seed})
+	nu := opts.Nuisance
+	f0, err := FitJoint(ctx, like, smooth, nu, FitOptions{Starts: opts.FitStarts, Seed: opts.Seed})
 	if err != nil {
 		return nil, fmt.Errorf("compare: smooth fit: %w", err)
 	}
-	f1, err := Fit(like, burst, FitOptions{Starts: opts.FitStarts, Seed: opts.Seed, Init: nestedStarts(smooth, burst, f0.Theta)})
+	f1, err := FitJoint(ctx, like, burst, nu, FitOptions{Starts: opts.FitStarts, Seed: opts.Seed, Init: nestedStarts(smooth, burst, f0.Theta), NuisanceStart: f0.Nuisance})
 	if err != nil {
 		return nil, fmt.Errorf("compare: burst fit: %w", err)
 	}
 	res := &BurstResult{Smooth: f0, Burst: f1, N: int(math.Round(like.N())), Replicates: opts.Replicates}
 	res.DeltaLogL = f1.LogL - f0.LogL
 	res.LR = math.Max(0, 2*res.DeltaLogL)
-	norm := 0
-	if like.Options().Normalisation == NormFree {
-		norm = 1
-	}
-	res.KSmooth, res.KBurst = smooth.Dim()+norm, burst.Dim()+norm
+	norm := like.NumScales()
+	res.KSmooth, res.KBurst = smooth.Dim()+nu.Dim()+norm, burst.Dim()+nu.Dim()+norm
 	res.AICSmooth, res.AICBurst = stats.AIC(f0.LogL, res.KSmooth), stats.AIC(f1.LogL, res.KBurst)
 	res.BICSmooth, res.BICBurst = stats.BIC(f0.LogL, res.KSmooth, res.N), stats.BIC(f1.LogL, res.KBurst, res.N)
 
-	lrs, err := bootstrapLR(ctx, like, smooth, burst, f0, f1, opts)
+	regs := misfitRegions(like.Space())
+	d0, err := fitDeviance(like, f0, regs)
 	if err != nil {
 		return nil, err
 	}
-	res.LRReplicates = lrs
-	res.PValue, res.PValueRandomised = bootstrapP(res.LR, lrs, opts.Seed)
+	d1, err := fitDeviance(like, f1, regs)
+	if err != nil {
+		return nil, err
+	}
+	reps, err := bootstrapPairs(ctx, like, smooth, burst, f0, f1, regs, opts)
+	if err != nil {
+		return nil, err
+	}
+	res.LRReplicates = make([]float64, len(reps))
+	r0, r1 := make([]devianceRecord, len(reps)), make([]devianceRecord, len(reps))
+	for i, r := range reps {
+		res.LRReplicates[i], r0[i], r1[i] = r.lr, r.d0, r.d1
+	}
+	res.PValue, res.PValueRandomised = bootstrapP(res.LR, res.LRReplicates, opts.Seed)
 	res.Significance = math.Max(0, distuv.UnitNormal.Quantile(1-res.PValue))
+	res.AdequacySmooth = newAdequacy(d0, r0, regs, like.Counts())
+	res.AdequacyBurst = newAdequacy(d1, r1, regs, like.Counts())
+	res.Dispersion = res.AdequacyBurst.Dispersion
+	res.PValueQuasi = quasiP(res.LR, res.Dispersion, reps, res.AdequacyBurst.ReplicateMean)
 
 	res.ChernoffP = stats.ChernoffSF(res.LR)
 	extra := burstOnly(smooth, burst)
@@ -154,6 +187,10 @@ func BurstTest(ctx context.Context, like *Likelihood, smooth, burst HistoryModel
 		res.ChernoffNote = fmt.Sprintf("unreliable here: the burst adds %d parameters, some not identifiable under the smooth history, where the ½χ²₀+½χ²₁ law fails (Protassov et al. 2002); quote the bootstrap p-value", len(extra))
 	}
 
+	// What follows reads the burst model's templates.
+	if err := useTemplates(like, f1, nil); err != nil {
+		return nil, err
+	}
 	if !opts.NoEvidence {
 		if err := evidence(like, smooth, burst, f0, f1, res); err != nil {
 			return nil, err
@@ -168,14 +205,46 @@ func BurstTest(ctx context.Context, like *Likelihood, smooth, burst HistoryModel
 		}
 	}
 	if res.AgeParam != "" && !opts.NoProfile {
-		iv, err := ProfileAuto(like, burst, res.AgeParam, f1)
+		iv, err := profileAutoScaled(like, burst, res.AgeParam, f1, nu, res.Dispersion)
 		if err != nil {
 			return nil, err
 		}
 		res.AgeInterval = iv
 	}
-	res.Strength, res.Verdict = verdict(res)
+	res.Strength, res.StrengthReason, res.Calibration, res.Verdict = verdict(res)
 	return res, nil
+}
+
+// fitDeviance returns the deviance of like's data at fit f, whole and by
+// region.
+func fitDeviance(like *Likelihood, f FitResult, regs []region) (devianceRecord, error) {
+	if err := useTemplates(like, f, nil); err != nil {
+		return devianceRecord{}, err
+	}
+	mu := like.Fitted(f.Weights, nil)
+	per := make([]float64, len(mu))
+	total := deviance(like.Counts(), mu, per)
+	return devianceRecord{total: total, regions: regionSums(regs, per)}, nil
+}
+
+// quasiP returns the bootstrap p-value of LR/φ̂ against the replicates'
+// LR*/φ̂*, each replicate's dispersion from its own burst-model deviance
+// (D*/mean D*, at least 1) so that the spread of φ̂ itself is accounted
+// for. With φ̂ = 1 and the replicates' φ̂* ≈ 1 it is the plain bootstrap
+// p-value.
+func quasiP(lr, phi float64, reps []replicate, meanD float64) float64 {
+	f := lr / phi
+	ge := 0
+	for _, r := range reps {
+		p := 1.0
+		if meanD > 0 && r.d1.total > meanD {
+			p = r.d1.total / meanD
+		}
+		if r.lr/p >= f-lrTieTol {
+			ge++
+		}
+	}
+	return (1 + float64(ge)) / (1 + float64(len(reps)))
 }
 
 // burstOnly returns the burst model's free parameters that the smooth one
@@ -207,25 +276,63 @@ func nestedStarts(smooth, burst HistoryModel, theta0 []float64) [][]float64 {
 	return [][]float64{t}
 }
 
-// bootstrapLR computes LR* for every replicate.
-func bootstrapLR(ctx context.Context, like *Likelihood, smooth, burst HistoryModel, f0, f1 FitResult, opts TestOptions) ([]float64, error) {
+// replicate is one bootstrap replicate's outcome: its likelihood ratio and
+// the deviance of each hypothesis' refit.
+type replicate struct {
+	lr     float64
+	d0, d1 devianceRecord
+}
+
+// bootstrapPairs draws the replicates under the smooth fit f0 and refits
+// both hypotheses to each.
+func bootstrapPairs(ctx context.Context, like *Likelihood, smooth, burst HistoryModel, f0, f1 FitResult, regs []region, opts TestOptions) ([]replicate, error) {
+	if err := useTemplates(like, f0, nil); err != nil {
+		return nil, err
+	}
 	mu := like.Expected(f0.Weights, nil)
-	free := like.Options().Normalisation == NormFree
-	n := int(math.Round(like.N()))
-	lrs := make([]float64, opts.Replicates)
+	out := make([]replicate, opts.Replicates)
 	err := parallelReplicates(ctx, opts.Replicates, opts.Workers, opts.Progress, func(i int, counts []float64) error {
-		drawMock(counts, mu, n, free, replicateStream(opts.Seed, i))
-		lr, err := refitLR(like, counts, smooth, burst, f0.Theta, f1.Theta, opts.ReplicateStarts, opts.Seed)
+		drawLikeMock(counts, mu, like, replicateStream(opts.Seed, i))
+		r, err := refitPair(like, counts, smooth, burst, f0, f1, regs, opts)
 		if err != nil {
 			return fmt.Errorf("compare: bootstrap replicate %d: %w", i, err)
 		}
-		lrs[i] = lr
+		out[i] = r
 		return nil
 	}, len(mu))
 	if err != nil {
 		return nil, err
 	}
-	return lrs, nil
+	return out, nil
+}
+
+// refitPair fits both hypotheses to one mock (nuisance parameters on the
+// data fits' expansions, starting from the data's answers) and returns its
+// LR and deviances.
+func refitPair(like *Likelihood, counts []float64, smooth, burst HistoryModel, f0, f1 FitResult, regs []region, opts TestOptions) (replicate, error) {
+	l, err := like.withCounts(counts, false)
+	if err != nil {
+		return replicate{}, err
+	}
+	nu := opts.Nuisance
+	r0, err := refitAt(l, smooth, nu, f0.morph, FitOptions{Starts: opts.ReplicateStarts, Seed: opts.Seed, Init: [][]float64{f0.Theta}}, f0.Nuisance)
+	if err != nil {
+		return replicate{}, err
+	}
+	init := append([][]float64{f1.Theta}, nestedStarts(smooth, burst, r0.Theta)...)
+	start1 := f1.Nuisance
+	r1, err := refitAt(l, burst, nu, f1.morph, FitOptions{Starts: opts.ReplicateStarts, Seed: opts.Seed, Init: init}, start1)
+	if err != nil {
+		return replicate{}, err
+	}
+	out := replicate{lr: math.Max(0, 2*(r1.LogL-r0.LogL))}
+	if out.d0, err = fitDeviance(l, r0, regs); err != nil {
+		return replicate{}, err
+	}
+	if out.d1, err = fitDeviance(l, r1, regs); err != nil {
+		return replicate{}, err
+	}
+	return out, nil
 }
 
 // parallelReplicates runs job(i) for i < n on workers goroutines, each
@@ -292,24 +399,6 @@ func parallelReplicates(ctx context.Context, n, workers int, progress func(done,
 		return errors.New("compare: replicates stopped early")
 	}
 	return nil
-}
-
-// refitLR fits both hypotheses to one mock and returns its LR.
-func refitLR(like *Likelihood, counts []float64, smooth, burst HistoryModel, theta0, theta1 []float64, starts int, seed uint64) (float64, error) {
-	l, err := like.WithCounts(counts)
-	if err != nil {
-		return 0, err
-	}
-	r0, err := Fit(l, smooth, FitOptions{Starts: starts, Seed: seed, Init: [][]float64{theta0}})
-	if err != nil {
-		return 0, err
-	}
-	init := append([][]float64{theta1}, nestedStarts(smooth, burst, r0.Theta)...)
-	r1, err := Fit(l, burst, FitOptions{Starts: starts, Seed: seed, Init: init})
-	if err != nil {
-		return 0, err
-	}
-	return math.Max(0, 2*(r1.LogL-r0.LogL)), nil
 }
 
 // lrTieTol is the precision of a fitted LR: two LRs closer than this are

@@ -40,6 +40,16 @@ func conditionalSigma(o *objective, m HistoryModel, theta []float64, idx int) fl
 // extended outward by doubling until ln L has fallen by 1.92 or a bound
 // is reached.
 func ProfileAuto(like *Likelihood, m HistoryModel, param string, best FitResult) (Interval, error) {
+	return profileAutoScaled(like, m, param, best, nil, 1)
+}
+
+// profileAutoScaled is ProfileAuto with nuisance parameters refitted at
+// every point (on best's expansion) and the Δln L levels multiplied by
+// scale ≥ 1: for a dispersion φ̂ the quasi-likelihood interval, whose
+// levels are φ̂ times the likelihood's (McCullagh & Nelder 1989, §9.2.4)
+// [memory].
+func profileAutoScaled(like *Likelihood, m HistoryModel, param string, best FitResult, nu *Nuisance, scale float64) (Interval, error) {
+	scale = math.Max(1, scale)
 	idx := slices.Index(m.Names(), param)
 	if idx < 0 {
 		return Interval{}, fmt.Errorf("compare: %q is not a free parameter; free are %s", param, strings.Join(m.Names(), ", "))
@@ -58,7 +68,7 @@ func ProfileAuto(like *Likelihood, m HistoryModel, param string, best FitResult)
 	pts := make([]ProfilePoint, 0, len(grid)+16)
 	var prev []float64
 	eval := func(v float64) error {
-		l, th, err := profileAt(like, m, param, idx, v, best.Theta, prev)
+		l, th, err := profileAt(like, m, param, idx, v, best.Theta, prev, nu, best)
 		if err != nil {
 			return err
 		}
@@ -82,7 +92,7 @@ func ProfileAuto(like *Likelihood, m HistoryModel, param string, best FitResult)
 			for _, p := range pts {
 				maxL = math.Max(maxL, p.LogL)
 			}
-			if maxL-end.LogL >= dLogL95 || (dir < 0 && end.Value <= f.Min) || (dir > 0 && end.Value >= f.Max) {
+			if maxL-end.LogL >= scale*dLogL95 || (dir < 0 && end.Value <= f.Min) || (dir > 0 && end.Value >= f.Max) {
 				break
 			}
 			reach *= 2
@@ -99,7 +109,7 @@ func ProfileAuto(like *Likelihood, m HistoryModel, param string, best FitResult)
 			maxL, bestV = p.LogL, p.Value
 		}
 	}
-	return intervalFrom(pts, maxL, bestV), nil
+	return intervalFrom(pts, maxL, bestV, scale), nil
 }
 
 // evidence fills the Bayes-factor fields of res.
@@ -189,7 +199,9 @@ func evidence(like *Likelihood, smooth, burst HistoryModel, f0, f1 FitResult, re
 	for _, t := range terms {
 		s += math.Exp(t - maxTerm)
 	}
-	lnZ1 := maxTerm + math.Log(s)
+	// With nuisance parameters they are held at the burst fit's values,
+	// their constraint terms included.
+	lnZ1 := maxTerm + math.Log(s) + f1.LogPrior
 	res.LogBayesFactor = lnZ1 - f0.LogL
 	res.HasEvidence = true
 	shared := len(burst.Free) - len(extra)

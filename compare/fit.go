@@ -459,7 +459,7 @@ func Profile(like *Likelihood, m HistoryModel, param string, grid []float64) ([]
 	pts := make([]ProfilePoint, len(grid))
 	var prev []float64
 	for i, v := range grid {
-		l, th, err := profileAt(like, m, param, idx, v, best.Theta, prev)
+		l, th, err := profileAt(like, m, param, idx, v, best.Theta, prev, nil, FitResult{})
 		if err != nil {
 			return nil, Interval{}, err
 		}
@@ -472,12 +472,14 @@ func Profile(like *Likelihood, m HistoryModel, param string, grid []float64) ([]
 			maxL, bestV = p.LogL, p.Value
 		}
 	}
-	return pts, intervalFrom(pts, maxL, bestV), nil
+	return pts, intervalFrom(pts, maxL, bestV, 1), nil
 }
 
 // profileAt fits the model with param fixed at v; start values come from
-// the global best and the previous grid point.
-func profileAt(like *Likelihood, m HistoryModel, param string, idx int, v float64, best, prev []float64) (float64, []float64, error) {
+// the global best and the previous grid point. With nuisance parameters
+// (nu, and a joint fit nuFit that holds their expansion) they are refitted
+// at every point on that expansion.
+func profileAt(like *Likelihood, m HistoryModel, param string, idx int, v float64, best, prev []float64, nu *Nuisance, nuFit FitResult) (float64, []float64, error) {
 	fixed, err := m.WithFixed(param, v)
 	if err != nil {
 		return 0, nil, err
@@ -492,14 +494,21 @@ func profileAt(like *Likelihood, m HistoryModel, param string, idx int, v float6
 	if prev != nil {
 		init = append(init, prev)
 	}
-	r, err := Fit(like, fixed, FitOptions{Starts: 1, Init: init})
+	var r FitResult
+	if nu.Dim() > 0 && nuFit.morph != nil {
+		r, err = refitAt(like, fixed, nu, nuFit.morph, FitOptions{Starts: 1, Init: init}, nuFit.Nuisance)
+	} else {
+		r, err = Fit(like, fixed, FitOptions{Starts: 1, Init: init})
+	}
 	if err != nil {
 		return 0, nil, err
 	}
 	return r.LogL, r.Theta, nil
 }
 
-func intervalFrom(pts []ProfilePoint, maxL, best float64) Interval {
+// intervalFrom reads the interval off profile points; scale ≥ 1 widens the
+// Δln L levels (a quasi-likelihood interval for dispersion φ̂ = scale).
+func intervalFrom(pts []ProfilePoint, maxL, best, scale float64) Interval {
 	iv := Interval{Best: best}
 	cross := func(level float64, dir int) (float64, bool) {
 		// Start at the grid point nearest the best value, walk outward.
@@ -530,11 +539,11 @@ func intervalFrom(pts []ProfilePoint, maxL, best float64) Interval {
 		return pts[0].Value, false
 	}
 	var ok bool
-	iv.Lo68, _ = cross(dLogL68, -1)
-	iv.Hi68, _ = cross(dLogL68, 1)
-	iv.Lo95, ok = cross(dLogL95, -1)
+	iv.Lo68, _ = cross(scale*dLogL68, -1)
+	iv.Hi68, _ = cross(scale*dLogL68, 1)
+	iv.Lo95, ok = cross(scale*dLogL95, -1)
 	iv.LoOpen = !ok
-	iv.Hi95, ok = cross(dLogL95, 1)
+	iv.Hi95, ok = cross(scale*dLogL95, 1)
 	iv.HiOpen = !ok
 	return iv
 }

@@ -9,6 +9,34 @@ import (
 	"spinpop/model"
 )
 
+// drawLikeMock fills dst with a mock catalog for like's normalisation: with
+// one free scale per colour column (cell), a multinomial within each group
+// holding the data's count of the group, as the likelihood conditions on
+// them; otherwise drawMock.
+func drawLikeMock(dst, mu []float64, like *Likelihood, r *rand.Rand) {
+	group, nG := like.groups()
+	if group == nil || !like.free {
+		drawMock(dst, mu, int(math.Round(like.N())), like.free, r)
+		return
+	}
+	idx := make([][]int, len(nG))
+	for i, g := range group {
+		idx[g] = append(idx[g], i)
+	}
+	var sub, subMu []float64
+	for g, bins := range idx {
+		sub, subMu = sub[:0], subMu[:0]
+		for _, i := range bins {
+			subMu = append(subMu, mu[i])
+			sub = append(sub, 0)
+		}
+		drawMock(sub, subMu, int(math.Round(nG[g])), true, r)
+		for j, i := range bins {
+			dst[i] = sub[j]
+		}
+	}
+}
+
 // drawMock fills dst with a mock catalog's counts: for a free
 // normalisation a multinomial draw of n stars over the bins with
 // probabilities ∝ mu (the catalog size is fixed, as the free

@@ -3,16 +3,43 @@ package compare
 import (
 	"fmt"
 	"math"
+	"strings"
+
+	"gonum.org/v1/gonum/stat/distuv"
 )
 
-// verdict turns a test result into a strength and a sentence. The
-// thresholds are pStrong, pModerate and pWeak on the bootstrap p-value.
-func verdict(r *BurstResult) (strength, text string) {
-	pText := fmt.Sprintf("bootstrap p = %s from %d replicates", formatP(r.PValue), r.Replicates)
-	floor := r.PValue <= 1/float64(r.Replicates+1)+1e-15
+// Adequacy and misfit rules of the verdict.
+const (
+	// pAdequate: the burst model describes the catalog when its deviance
+	// is reached by at least 1 % of its own bootstrap replicates.
+	pAdequate = 0.01
+	// misfitFactor: when the model is not adequate, a burst whose
+	// likelihood ratio is no larger than this many times the misfit that
+	// remains (the excess deviance D − mean D*) is no evidence of anything:
+	// an unmodelled ingredient that leaves that much misfit could as well
+	// have produced the improvement. The choice of 1 is the plainest
+	// reading of "comparable"; it is calibrated in the tests against
+	// catalogs from an independent model (internal/othermodel).
+	misfitFactor = 1.0
+)
+
+// verdict turns a test result into a strength, the reason for an
+// "unreliable" one, the calibration it rests on, and a sentence. The
+// thresholds are pStrong, pModerate and pWeak on the bootstrap p-value —
+// of the likelihood ratio when the burst model describes the catalog, of
+// the quasi-likelihood ratio LR/φ̂ when it does not.
+func verdict(r *BurstResult) (strength, reason, calibration, text string) {
+	a := r.AdequacyBurst
+	adequate := a.Replicates == 0 || a.Adequate(pAdequate)
+	p, calibration := r.PValue, "bootstrap"
+	if !adequate {
+		p, calibration = r.PValueQuasi, "quasi-likelihood"
+	}
+	pText := fmt.Sprintf("bootstrap p = %s from %d replicates", formatP(p), r.Replicates)
+	floor := p <= 1/float64(r.Replicates+1)+1e-15
 	if floor {
-		pText = fmt.Sprintf("bootstrap p = %s, none of %d replicates reaching the observed LR", formatP(r.PValue), r.Replicates)
-		if r.PValue > pStrong {
+		pText = fmt.Sprintf("bootstrap p = %s, none of %d replicates reaching the observed ratio", formatP(p), r.Replicates)
+		if p > pStrong {
 			pText += ", so more replicates could lower p"
 		}
 	}
@@ -25,15 +52,66 @@ func verdict(r *BurstResult) (strength, text string) {
 		}
 	}
 	dl := fmt.Sprintf("Δln L = %.1f", r.DeltaLogL)
-	switch {
-	case r.PValue <= pStrong:
-		return "strong", fmt.Sprintf("The catalog prefers a burst%s (%s; %s); a smooth history is ruled out at > 3σ.", at, pText, dl)
-	case r.PValue <= pModerate:
-		return "moderate", fmt.Sprintf("The catalog favours a burst%s (%s; %s, %.1fσ); a smooth history is disfavoured but not ruled out at 3σ.", at, pText, dl, r.Significance)
-	case r.PValue <= pWeak:
-		return "weak", fmt.Sprintf("Weak evidence for a burst%s (%s; %s, %.1fσ): a hint, not enough to rule out a smooth history.", at, pText, dl, r.Significance)
+	if !adequate {
+		dl += fmt.Sprintf(", LR/φ̂ = %.1f", r.LR/r.Dispersion)
 	}
-	return "none", fmt.Sprintf("No evidence for a burst: the best burst%s improves the fit (%s) no more than smooth-history mocks do by chance (%s).", at, dl, pText)
+	switch {
+	case p <= pStrong:
+		strength = "strong"
+	case p <= pModerate:
+		strength = "moderate"
+	case p <= pWeak:
+		strength = "weak"
+	default:
+		strength = "none"
+	}
+	fitText := fmt.Sprintf("The burst model describes the catalog (deviance %.0f against %.0f ± %.0f from counting noise, p = %s).",
+		a.Deviance, a.ReplicateMean, a.ReplicateSD, formatP(a.PValue))
+	misfit := ""
+	if !adequate {
+		misfit = fmt.Sprintf("the best fit leaves a deviance of %.0f where counting noise gives %.0f ± %.0f (p = %s; dispersion φ̂ = %.2f)%s",
+			a.Deviance, a.ReplicateMean, a.ReplicateSD, formatP(a.PValue), a.Dispersion, worstRegions(a))
+	}
+	if !adequate && strength != "none" && r.LR <= misfitFactor*a.Excess {
+		reason = fmt.Sprintf("the burst improves the fit by 2Δln L = %.1f, no more than the misfit the best model still leaves (excess deviance %.1f)", r.LR, a.Excess)
+		return "unreliable", reason, calibration, fmt.Sprintf(
+			"The models do not describe the catalog well enough to decide: %s. No burst is claimed: %s, so an ingredient the models lack could as well account for it. Free the physics and selection parameters the misfit points to ([[compare.free]]) or use the likelihood conditional on color, then test again.", misfit, reason)
+	}
+	var sentence string
+	switch strength {
+	case "strong":
+		sentence = fmt.Sprintf("the catalog prefers a burst%s (%s; %s); a smooth history is ruled out at > 3σ.", at, pText, dl)
+	case "moderate":
+		sentence = fmt.Sprintf("the catalog favours a burst%s (%s; %s, %.1fσ); a smooth history is disfavoured but not ruled out at 3σ.", at, pText, dl, distuvSigma(p))
+	case "weak":
+		sentence = fmt.Sprintf("weak evidence for a burst%s (%s; %s, %.1fσ): a hint, not enough to rule out a smooth history.", at, pText, dl, distuvSigma(p))
+	default:
+		sentence = fmt.Sprintf("no evidence for a burst: the best burst%s improves the fit (%s) no more than smooth-history mocks do by chance (%s).", at, dl, pText)
+	}
+	if !adequate {
+		return strength, "", calibration, fmt.Sprintf("The models do not describe the catalog fully: %s. Judged against that misfit (quasi-likelihood), %s", misfit, sentence)
+	}
+	return strength, "", calibration, strings.ToUpper(sentence[:1]) + sentence[1:] + " " + fitText
+}
+
+// worstRegions names up to two regions with the largest excess deviance.
+func worstRegions(a Adequacy) string {
+	var parts []string
+	for _, reg := range a.Regions {
+		if len(parts) == 2 || !(reg.Excess > 0) {
+			break
+		}
+		parts = append(parts, fmt.Sprintf("%s (excess %.0f)", reg.Describe(), reg.Excess))
+	}
+	if len(parts) == 0 {
+		return ""
+	}
+	return ", worst in " + strings.Join(parts, " and ")
+}
+
+// distuvSigma is the one-sided normal equivalent of p, floored at 0.
+func distuvSigma(p float64) float64 {
+	return math.Max(0, distuv.UnitNormal.Quantile(1-p))
 }
 
 func indexOf(names []string, s string) int {
