@@ -53,9 +53,11 @@ type RegionMisfit struct {
 	Excess   float64 `json:"excess"`
 }
 
-// Adequate reports whether the model passes at level alpha: its deviance
-// is not beyond what 1 − alpha of the model's own replicates reach.
-func (a Adequacy) Adequate(alpha float64) bool { return a.PValue >= alpha }
+// Adequate reports whether the model passes at level alpha: more than a
+// fraction alpha of the model's own replicates reach its deviance. With
+// fewer than 1/alpha replicates a model can never fail; callers should
+// ask for enough.
+func (a Adequacy) Adequate(alpha float64) bool { return a.PValue > alpha }
 
 // deviance writes each bin's contribution 2[n ln(n/μ) − (n − μ)] into per
 // (if not nil) and returns the sum. A bin with data and μ ≤ 0 contributes

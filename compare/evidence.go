@@ -136,27 +136,68 @@ func evidence(like *Likelihood, smooth, burst HistoryModel, f0, f1 FitResult, re
 		res.EvidenceNote = fmt.Sprintf("skipped: grid integration over %d burst parameters is too costly; at most 3", len(extra))
 		return nil
 	}
-	nEven, nFine := map[int]int{1: 201, 2: 61, 3: 21}[len(extra)], map[int]int{1: 200, 2: 40, 3: 16}[len(extra)]
-	o := newObjective(like, burst, nil, nil)
-	idx := make([]int, len(extra))
-	nodes := make([][]float64, len(extra))
-	wts := make([][]float64, len(extra))
-	for d, name := range extra {
-		i := slices.Index(burst.Names(), name)
+	lnZ1, nodes, ok := gridEvidence(like, burst, f1, extra)
+	if !ok {
+		res.EvidenceNote = "failed: the likelihood is zero over the whole prior grid"
+		return nil
+	}
+	res.LogBayesFactor = lnZ1 - f0.LogL
+	res.HasEvidence = true
+	shared := len(burst.Free) - len(extra)
+	res.EvidenceNote = fmt.Sprintf("ln B = ln Z(burst) − ln Z(smooth) by grid integration over %s with their priors (%d nodes)", strings.Join(extra, ", "), nodes)
+	if shared > 0 || smooth.Dim() > 0 || f1.Nuisance != nil {
+		res.EvidenceNote += "; the other parameters are held at each model's best fit (a profile approximation whose Occam factors are taken to cancel)"
+	}
+	return nil
+}
+
+// logEvidence returns ln Z of model m around fit f by grid integration
+// over at most three of its free parameters (the first three; the others
+// and any nuisance parameters held at f), and which they were; ok is false
+// when the model has more than three or the integral fails. A model
+// without free parameters has ln Z = ln L.
+func logEvidence(like *Likelihood, m HistoryModel, f FitResult) (lnZ float64, params []string, ok bool) {
+	if m.Dim() == 0 {
+		return f.LogL, nil, true
+	}
+	if m.Dim() > 3 {
+		return math.NaN(), nil, false
+	}
+	params = m.Names()
+	lnZ, _, ok = gridEvidence(like, m, f, params)
+	return lnZ, params, ok
+}
+
+// gridEvidence returns ln ∫ L(θ_p, θ̂_rest) π(θ_p) dθ_p over the named
+// free parameters of m (at most 3), the others at fit f's values, plus
+// f's nuisance constraint terms, and the number of nodes. The integral
+// runs in prior-CDF coordinates u ∈ [0, 1]^d (θ linear in u for a uniform
+// prior, ln θ for a log-uniform one), where the prior is flat, by the
+// tensor trapezoid rule on nodes that join an even grid to a fine one over
+// ±6 widths around the fit, so that a likelihood peak much narrower than
+// the prior is resolved. like must hold f's templates.
+func gridEvidence(like *Likelihood, m HistoryModel, f FitResult, params []string) (lnZ float64, nodes int, ok bool) {
+	nEven, nFine := map[int]int{1: 201, 2: 61, 3: 21}[len(params)], map[int]int{1: 200, 2: 40, 3: 16}[len(params)]
+	o := newObjective(like, m, nil, nil)
+	idx := make([]int, len(params))
+	grid := make([][]float64, len(params))
+	wts := make([][]float64, len(params))
+	for d, name := range params {
+		i := slices.Index(m.Names(), name)
 		idx[d] = i
-		f := burst.Free[i]
-		sigma := conditionalSigma(o, burst, f1.Theta, i)
+		fp := m.Free[i]
+		sigma := conditionalSigma(o, m, f.Theta, i)
 		u := make([]float64, 0, nEven+nFine)
 		for j := range nEven {
 			u = append(u, float64(j)/float64(nEven-1))
 		}
-		lo, hi := math.Max(f.Min, f1.Theta[i]-6*sigma), math.Min(f.Max, f1.Theta[i]+6*sigma)
+		lo, hi := math.Max(fp.Min, f.Theta[i]-6*sigma), math.Min(fp.Max, f.Theta[i]+6*sigma)
 		for j := range nFine {
-			u = append(u, toPriorU(f, lo+(hi-lo)*float64(j)/float64(nFine-1)))
+			u = append(u, toPriorU(fp, lo+(hi-lo)*float64(j)/float64(nFine-1)))
 		}
 		sort.Float64s(u)
 		u = slices.CompactFunc(u, func(a, b float64) bool { return math.Abs(a-b) < 1e-12 })
-		nodes[d] = u
+		grid[d] = u
 		w := make([]float64, len(u))
 		for j := 0; j+1 < len(u); j++ {
 			h := 0.5 * (u[j+1] - u[j])
@@ -165,15 +206,15 @@ func evidence(like *Likelihood, smooth, burst HistoryModel, f0, f1 FitResult, re
 		}
 		wts[d] = w
 	}
-	theta := append([]float64(nil), f1.Theta...)
-	pos := make([]int, len(extra))
+	theta := append([]float64(nil), f.Theta...)
+	pos := make([]int, len(params))
 	maxTerm := math.Inf(-1)
 	var terms []float64
 	for {
 		lw := 0.0
-		for d := range extra {
-			f := burst.Free[idx[d]]
-			theta[idx[d]] = fromPriorU(f, nodes[d][pos[d]])
+		for d := range params {
+			fp := m.Free[idx[d]]
+			theta[idx[d]] = fromPriorU(fp, grid[d][pos[d]])
 			lw += math.Log(wts[d][pos[d]])
 		}
 		term := o.logL(theta) + lw
@@ -182,7 +223,7 @@ func evidence(like *Likelihood, smooth, burst HistoryModel, f0, f1 FitResult, re
 		d := 0
 		for ; d < len(pos); d++ {
 			pos[d]++
-			if pos[d] < len(nodes[d]) {
+			if pos[d] < len(grid[d]) {
 				break
 			}
 			pos[d] = 0
@@ -192,24 +233,15 @@ func evidence(like *Likelihood, smooth, burst HistoryModel, f0, f1 FitResult, re
 		}
 	}
 	if math.IsInf(maxTerm, -1) {
-		res.EvidenceNote = "failed: the likelihood is zero over the whole prior grid"
-		return nil
+		return math.NaN(), len(terms), false
 	}
 	var s float64
 	for _, t := range terms {
 		s += math.Exp(t - maxTerm)
 	}
-	// With nuisance parameters they are held at the burst fit's values,
-	// their constraint terms included.
-	lnZ1 := maxTerm + math.Log(s) + f1.LogPrior
-	res.LogBayesFactor = lnZ1 - f0.LogL
-	res.HasEvidence = true
-	shared := len(burst.Free) - len(extra)
-	res.EvidenceNote = fmt.Sprintf("ln B = ln Z(burst) − ln Z(smooth) by grid integration over %s with their priors (%d nodes)", strings.Join(extra, ", "), len(terms))
-	if shared > 0 || smooth.Dim() > 0 {
-		res.EvidenceNote += "; the other parameters are held at each model's best fit (a profile approximation whose Occam factors are taken to cancel)"
-	}
-	return nil
+	// With nuisance parameters they are held at the fit's values, their
+	// constraint terms included.
+	return maxTerm + math.Log(s) + f.LogPrior, len(terms), true
 }
 
 // toPriorU maps θ to its prior CDF; fromPriorU inverts it.

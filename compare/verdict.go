@@ -11,7 +11,7 @@ import (
 // Adequacy and misfit rules of the verdict.
 const (
 	// pAdequate: the burst model describes the catalog when its deviance
-	// is reached by at least 1 % of its own bootstrap replicates.
+	// is reached by more than 1 % of its own bootstrap replicates.
 	pAdequate = 0.01
 	// misfitFactor: when the model is not adequate, a burst whose
 	// likelihood ratio is no larger than this many times the misfit that

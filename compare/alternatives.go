@@ -1,0 +1,302 @@
+package compare
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"slices"
+	"sort"
+	"strings"
+
+	"spinpop/compare/stats"
+)
+
+// Alternative is one explanation of a catalog: its own templates (its own
+// physics — a stalled spin-down, say), a family of histories and the
+// nuisance parameters fitted with them. Every alternative of a comparison
+// scores the same data in the same comparison space.
+type Alternative struct {
+	Name     string
+	Like     *Likelihood
+	History  HistoryModel
+	Nuisance *Nuisance
+}
+
+// AltOptions control CompareAlternatives.
+type AltOptions struct {
+	Replicates      int    // bootstrap replicates under each alternative (0: 200)
+	Seed            uint64 // replicate i of alternative h draws from a stream of (Seed, h, i)
+	Workers         int
+	FitStarts       int // starts of the fits to the data (0: 4)
+	ReplicateStarts int // starts of each replicate's refits (0: 2)
+	Progress        func(done, total int)
+	NoEvidence      bool
+}
+
+// AltFit is one alternative fitted to the data.
+type AltFit struct {
+	Name     string    `json:"name"`
+	Fit      FitResult `json:"-"`
+	K        int       `json:"parameters"` // free history and nuisance parameters and normalisations
+	LogL     float64   `json:"log_likelihood"`
+	AIC      float64   `json:"aic"`
+	BIC      float64   `json:"bic"`
+	Adequacy Adequacy  `json:"adequacy"`
+	// LogEvidence is ln Z by grid integration over at most three of the
+	// alternative's free history parameters (their priors), the others at
+	// their best fit; EvidenceParams names them.
+	LogEvidence    float64  `json:"log_evidence"`
+	EvidenceParams []string `json:"evidence_params"`
+	HasEvidence    bool     `json:"has_evidence"`
+}
+
+// PairTest compares two alternatives by their likelihood ratio
+// LR = 2(ln L̂_B − ln L̂_A), calibrated by the parametric bootstrap under
+// each: PUnderA = P(LR* ≥ LR | A) (small: the data reject A in favour of
+// B), PUnderB = P(LR* ≤ LR | B) (small: the data reject B in favour of
+// A). For non-nested models this is the bootstrap form of Cox's test
+// (Cox 1962, JRSS B 24, 406; Williams 1970) [memory]: each model is
+// tested as the null against the other.
+type PairTest struct {
+	A             string  `json:"a"`
+	B             string  `json:"b"`
+	LR            float64 `json:"lr"`
+	PUnderA       float64 `json:"p_under_a"`
+	PUnderB       float64 `json:"p_under_b"`
+	LogBayesBOver float64 `json:"ln_bayes_b_over_a"` // NaN without evidence
+}
+
+// AltResult is the outcome of CompareAlternatives.
+type AltResult struct {
+	Fits       []AltFit   `json:"fits"`
+	Pairs      []PairTest `json:"pairs"`
+	N          int        `json:"stars"`
+	Replicates int        `json:"replicates"`
+	Best       string     `json:"best"`    // the alternative the verdict prefers ("" if none)
+	Outcome    string     `json:"outcome"` // "prefers", "cannot-tell", "neither-fits"
+	Verdict    string     `json:"verdict"`
+}
+
+// CompareAlternatives fits every alternative to the data, calibrates the
+// likelihood ratio of every pair by parametric bootstrap under each
+// member of the pair, calibrates each alternative's deviance by its own
+// replicates (Adequacy), and says in plain words which explanation the
+// catalog prefers — or that it cannot tell, or that none fits.
+func CompareAlternatives(ctx context.Context, alts []Alternative, opts AltOptions) (*AltResult, error) {
+	if len(alts) < 2 {
+		return nil, errors.New("compare: a comparison of alternatives needs at least two")
+	}
+	if opts.Replicates <= 0 {
+		opts.Replicates = 200
+	}
+	if opts.FitStarts <= 0 {
+		opts.FitStarts = 4
+	}
+	if opts.ReplicateStarts <= 0 {
+		opts.ReplicateStarts = 2
+	}
+	seen := map[string]bool{}
+	for i, a := range alts {
+		switch {
+		case a.Name == "":
+			return nil, fmt.Errorf("compare: alternative %d has no name", i+1)
+		case seen[a.Name]:
+			return nil, fmt.Errorf("compare: two alternatives are named %q", a.Name)
+		case a.Like == nil:
+			return nil, fmt.Errorf("compare: alternative %q has no likelihood", a.Name)
+		case !slices.Equal(a.Like.Counts(), alts[0].Like.Counts()) || !a.Like.Space().Equal(alts[0].Like.Space()):
+			return nil, fmt.Errorf("compare: alternative %q scores other data or another comparison space than %q; every alternative must read the same catalog with the same cuts and bins", a.Name, alts[0].Name)
+		case a.Like.Options().Normalisation != alts[0].Like.Options().Normalisation:
+			return nil, fmt.Errorf("compare: alternative %q uses normalisation %q, %q uses %q; likelihoods of different kinds cannot be compared", a.Name, a.Like.Options().Normalisation, alts[0].Name, alts[0].Like.Options().Normalisation)
+		}
+		seen[a.Name] = true
+	}
+	res := &AltResult{N: int(math.Round(alts[0].Like.N())), Replicates: opts.Replicates}
+	regs := misfitRegions(alts[0].Like.Space())
+	data := make([]devianceRecord, len(alts))
+	for h, a := range alts {
+		f, err := FitJoint(ctx, a.Like, a.History, a.Nuisance, FitOptions{Starts: opts.FitStarts, Seed: opts.Seed})
+		if err != nil {
+			return nil, fmt.Errorf("compare: fit of %q: %w", a.Name, err)
+		}
+		k := a.History.Dim() + a.Nuisance.Dim() + a.Like.NumScales()
+		af := AltFit{Name: a.Name, Fit: f, K: k, LogL: f.LogL, AIC: stats.AIC(f.LogL, k), BIC: stats.BIC(f.LogL, k, res.N), LogEvidence: math.NaN()}
+		if data[h], err = fitDeviance(a.Like, f, regs); err != nil {
+			return nil, err
+		}
+		if !opts.NoEvidence {
+			if err := useTemplates(a.Like, f, nil); err != nil {
+				return nil, err
+			}
+			af.LogEvidence, af.EvidenceParams, af.HasEvidence = logEvidence(a.Like, a.History, f)
+		}
+		res.Fits = append(res.Fits, af)
+	}
+
+	// Replicates under each alternative, each refitted by every one.
+	H := len(alts)
+	lnL := make([][][]float64, H) // lnL[h][i][g]: replicate i drawn under h, refitted by g
+	own := make([][]devianceRecord, H)
+	total := H * opts.Replicates
+	doneBefore := 0
+	for h := range alts {
+		lnL[h] = make([][]float64, opts.Replicates)
+		own[h] = make([]devianceRecord, opts.Replicates)
+		a := alts[h]
+		if err := useTemplates(a.Like, res.Fits[h].Fit, nil); err != nil {
+			return nil, err
+		}
+		mu := a.Like.Expected(res.Fits[h].Fit.Weights, nil)
+		var progress func(done, _ int)
+		if opts.Progress != nil {
+			base := doneBefore
+			progress = func(done, _ int) { opts.Progress(base+done, total) }
+		}
+		err := parallelReplicates(ctx, opts.Replicates, opts.Workers, progress, func(i int, counts []float64) error {
+			drawLikeMock(counts, mu, a.Like, altStream(opts.Seed, h, i))
+			row := make([]float64, H)
+			for g, b := range alts {
+				l, err := b.Like.withCounts(counts, false)
+				if err != nil {
+					return err
+				}
+				if !l.reachable() {
+					// Stars where this explanation's templates have none:
+					// it cannot produce the replicate at all.
+					row[g] = math.Inf(-1)
+					if g == h {
+						return fmt.Errorf("compare: replicate %d of %q has stars where its own templates have none", i, a.Name)
+					}
+					continue
+				}
+				fg := res.Fits[g].Fit
+				r, err := refitAt(l, b.History, b.Nuisance, fg.morph, FitOptions{Starts: opts.ReplicateStarts, Seed: opts.Seed, Init: [][]float64{fg.Theta}}, fg.Nuisance)
+				if err != nil {
+					return fmt.Errorf("compare: replicate %d under %q, refit of %q: %w", i, a.Name, b.Name, err)
+				}
+				row[g] = r.LogL
+				if g == h {
+					if own[h][i], err = fitDeviance(l, r, regs); err != nil {
+						return err
+					}
+				}
+			}
+			lnL[h][i] = row
+			return nil
+		}, len(mu))
+		if err != nil {
+			return nil, err
+		}
+		doneBefore += opts.Replicates
+		res.Fits[h].Adequacy = newAdequacy(data[h], own[h], regs, a.Like.Counts())
+	}
+	for a := 0; a < H; a++ {
+		for b := a + 1; b < H; b++ {
+			pt := PairTest{A: alts[a].Name, B: alts[b].Name, LR: 2 * (res.Fits[b].LogL - res.Fits[a].LogL), LogBayesBOver: math.NaN()}
+			var geA, leB int
+			for i := range opts.Replicates {
+				if 2*(lnL[a][i][b]-lnL[a][i][a]) >= pt.LR-lrTieTol {
+					geA++
+				}
+				if 2*(lnL[b][i][b]-lnL[b][i][a]) <= pt.LR+lrTieTol {
+					leB++
+				}
+			}
+			nb := float64(opts.Replicates)
+			pt.PUnderA, pt.PUnderB = (1+float64(geA))/(1+nb), (1+float64(leB))/(1+nb)
+			if res.Fits[a].HasEvidence && res.Fits[b].HasEvidence {
+				pt.LogBayesBOver = res.Fits[b].LogEvidence - res.Fits[a].LogEvidence
+			}
+			res.Pairs = append(res.Pairs, pt)
+		}
+	}
+	res.Best, res.Outcome, res.Verdict = altVerdict(res)
+	return res, nil
+}
+
+// altStream is the stream of replicate i under alternative h: a function
+// of (seed, h, i) only.
+func altStream(seed uint64, h, i int) *rand.Rand {
+	return replicateStream(seed^uint64(h+1)*0x9e3779b97f4a7c15, i)
+}
+
+// pReject is the bootstrap p-value at which one alternative is rejected in
+// favour of another: the "moderate" level of the burst test.
+const pReject = pModerate
+
+// altVerdict says which alternative the catalog prefers, if any.
+func altVerdict(r *AltResult) (best, outcome, text string) {
+	idx := map[string]int{}
+	for i, f := range r.Fits {
+		idx[f.Name] = i
+	}
+	// rejected[a][b]: a is rejected in favour of b.
+	H := len(r.Fits)
+	rejected := make([][]bool, H)
+	for i := range rejected {
+		rejected[i] = make([]bool, H)
+	}
+	for _, p := range r.Pairs {
+		a, b := idx[p.A], idx[p.B]
+		rejected[a][b] = p.PUnderA <= pReject // LR beyond what A makes: A loses to B
+		rejected[b][a] = p.PUnderB <= pReject // LR below what B makes: B loses to A
+	}
+	order := make([]int, H)
+	for i := range order {
+		order[i] = i
+	}
+	sort.SliceStable(order, func(i, j int) bool { return r.Fits[order[i]].LogL > r.Fits[order[j]].LogL })
+	var lines []string
+	anyAdequate := false
+	for _, i := range order {
+		f := r.Fits[i]
+		a := f.Adequacy
+		ok := a.Adequate(pAdequate)
+		anyAdequate = anyAdequate || ok
+		desc := "describes the catalog"
+		if !ok {
+			desc = "does not describe the catalog" + worstRegions(a)
+		}
+		lines = append(lines, fmt.Sprintf("%s: ln L = %.1f, deviance %.0f against %.0f ± %.0f from counting noise (p = %s) — %s", f.Name, f.LogL, a.Deviance, a.ReplicateMean, a.ReplicateSD, formatP(a.PValue), desc))
+	}
+	c := order[0]
+	cf := r.Fits[c]
+	second := r.Fits[order[1]]
+	gain := 2 * (cf.LogL - second.LogL)
+	summary := strings.Join(lines, "; ") + "."
+	if !anyAdequate && gain <= misfitFactor*cf.Adequacy.Excess {
+		return "", "neither-fits", fmt.Sprintf("Neither explanation fits: none describes the catalog, and the best, %q, beats %q by 2Δln L = %.1f, no more than the misfit it still leaves (excess deviance %.1f); no preference is claimed. %s", cf.Name, second.Name, gain, cf.Adequacy.Excess, summary)
+	}
+	beatsAll, beaten := true, false
+	for _, o := range order[1:] {
+		if !rejected[o][c] {
+			beatsAll = false
+		}
+		if rejected[c][o] {
+			beaten = true
+		}
+	}
+	if beaten {
+		return "", "neither-fits", fmt.Sprintf("Neither explanation fits: each is rejected in favour of another by the bootstrap in both directions. %s", summary)
+	}
+	lead := ""
+	if !cf.Adequacy.Adequate(pAdequate) {
+		lead = fmt.Sprintf("The best explanation, %q, does not describe the catalog fully (dispersion φ̂ = %.2f); read the preference with that in mind. ", cf.Name, cf.Adequacy.Dispersion)
+	}
+	if beatsAll {
+		var ps []string
+		for _, p := range r.Pairs {
+			if p.A == cf.Name || p.B == cf.Name {
+				other, pv := p.B, p.PUnderB
+				if p.B == cf.Name {
+					other, pv = p.A, p.PUnderA
+				}
+				ps = append(ps, fmt.Sprintf("%q rejected at bootstrap p = %s", other, formatP(pv)))
+			}
+		}
+		return cf.Name, "prefers", lead + fmt.Sprintf("The catalog prefers %q (%s). %s", cf.Name, strings.Join(ps, ", "), summary)
+	}
+	return "", "cannot-tell", lead + fmt.Sprintf("The catalog cannot tell the explanations apart: %q fits best (2Δln L = %.1f over %q), but the bootstrap does not reject the others at p ≤ %.2g. %s", cf.Name, gain, second.Name, pReject, summary)
+}
