@@ -30,9 +30,9 @@ type FitOptions struct {
 
 // FitResult is a maximum-likelihood fit.
 type FitResult struct {
-	Theta       []float64 // best-fitting free parameters
-	Names       []string
-	Weights     []float64 // the age-bin mass fractions at Theta
+	Theta   []float64 // best-fitting free parameters
+	Names   []string
+	Weights []float64 // the age-bin mass fractions at Theta
 	// LogL is ln L at the fit: the data's log-likelihood plus, with
 	// nuisance parameters, their constraint terms (LogPrior).
 	LogL        float64

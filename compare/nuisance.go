@@ -197,13 +197,13 @@ func (n *Nuisance) describe(values []float64) string {
 // β_j(x_j) b_j with x_j = ν_j − centre_j, β_j = x_j² between the two
 // side points and continued linearly beyond them.
 type morph struct {
-	centre     []float64
-	lo, hi     []float64 // the side points' distances below and above the centre (≥ 0)
-	t0, var0   []float64 // bins-major templates and variances at the centre
-	a, b       [][]float64
-	exact      *Templates // the centre's templates, as made
-	nb, k      int
-	sides      []sidePoint // the side points' values and templates
+	centre   []float64
+	lo, hi   []float64 // the side points' distances below and above the centre (≥ 0)
+	t0, var0 []float64 // bins-major templates and variances at the centre
+	a, b     [][]float64
+	exact    *Templates // the centre's templates, as made
+	nb, k    int
+	sides    []sidePoint // the side points' values and templates
 }
 
 // sidePoint is one side point of an expansion: the nuisance values and the

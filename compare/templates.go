@@ -23,10 +23,10 @@ type Templates struct {
 	// detection probabilities and period kernels) have Var = Σ weight²
 	// per bin, less than the count. Nil means raw counts of simulated
 	// stars, whose variance is the count itself.
-	Var []float64
-	StarsDrawn  int64     // stars generated in all
-	DrawnPerBin []int64   // stars generated per age bin
-	Key         string    // hash of the scenario parts the templates depend on, set by the caller
+	Var         []float64
+	StarsDrawn  int64   // stars generated in all
+	DrawnPerBin []int64 // stars generated per age bin
+	Key         string  // hash of the scenario parts the templates depend on, set by the caller
 	// Bank holds the run's catalogue-eligible stars when TemplateOptions.Bank
 	// asked for them (not saved with the templates).
 	Bank *model.Bank
