@@ -2,6 +2,7 @@ package compare
 
 import (
 	"context"
+	"fmt"
 	"math"
 	"sync"
 	"testing"
@@ -188,4 +189,69 @@ func sum(x []float64) float64 {
 		s += v
 	}
 	return s
+}
+
+// shiftObserver is a stand-in source of templates for speed measurements:
+// the base templates with every count scaled by a smooth function of each
+// nuisance value.
+type shiftObserver struct{ base *Templates }
+
+func (s shiftObserver) Observe(_ context.Context, v []float64) (*Templates, error) {
+	t := *s.base
+	t.Counts = append([]float64(nil), s.base.Counts...)
+	for i := range t.Counts {
+		f := 1.0
+		for j, x := range v {
+			f *= 1 + 0.1*x*math.Sin(float64(i*(j+3)))
+		}
+		t.Counts[i] *= f
+	}
+	return &t, nil
+}
+
+// BenchmarkJointLogL40x2500 times one evaluation of the joint objective —
+// history weights and eight nuisance parameters moved, templates
+// interpolated, ln L and its full gradient — at 40 age bins × 2,500 bins.
+func BenchmarkJointLogL40x2500(b *testing.B) {
+	tpl := randomTemplates(b, 40, 25, 100, 0, 3, 1)
+	data := poissonData(tpl, randomWeights(40, 2), 0.15, 3)
+	nu := &Nuisance{Source: shiftObserver{tpl}}
+	for j := range 8 {
+		nu.Params = append(nu.Params, NuisanceParam{Name: fmt.Sprintf("p%d", j), Nominal: 0, Min: -1, Max: 1, Sigma: 0.3})
+	}
+	for _, noise := range []string{NoiseIgnore, NoiseBarlowBeeston} {
+		b.Run(noise, func(b *testing.B) {
+			like, err := NewLikelihood(tpl, data, LikeOptions{TemplateNoise: noise})
+			require.NoError(b, err)
+			mo, err := newMorph(context.Background(), like, nu, nu.Nominal(), nil)
+			require.NoError(b, err)
+			edges := make([]float64, 41)
+			for k := range edges {
+				edges[k] = 10 * float64(k) / 40
+			}
+			h, err := sfh.New(10, []sfh.Part{{Name: "flat", Component: sfh.Constant{}, Weight: 1}, {Name: "burst", Component: sfh.Burst{AgeGyr: 1, WidthGyr: 0.1, MassFraction: 0.1}}})
+			require.NoError(b, err)
+			m := HistoryModel{Base: h, AgeEdgesGyr: edges, Free: []FreeParam{{Name: "burst.age_gyr", Min: 0.2, Max: 5}, {Name: "burst.mass_fraction", Min: 0, Max: 0.5}}}
+			o := newObjective(like, m, nu, mo)
+			x := append(m.ToInternal([]float64{1.2, 0.1}), nuisanceToInternal(nu, []float64{0.1, -0.1, 0.2, 0, 0.05, -0.2, 0.1, 0.3})...)
+			b.ReportAllocs()
+			for i := 0; b.Loop(); i++ {
+				x[2] = 0.01 * float64(i%7) // a nuisance change every evaluation
+				o.lastX = nil
+				o.eval(x)
+			}
+		})
+	}
+}
+
+// BenchmarkBankObserve times one re-observation of a bank, per stored star.
+func BenchmarkBankObserve(b *testing.B) {
+	s := newJointSetup(b)
+	for b.Loop() {
+		if _, err := s.obs.Observe(context.Background(), []float64{0.79, 0.01}); err != nil {
+			b.Fatal(err)
+		}
+	}
+	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(s.tpl.Bank.Len()), "ns/star")
+	b.ReportMetric(float64(s.tpl.Bank.Len()), "stars")
 }

@@ -11,6 +11,7 @@ import (
 	"sync/atomic"
 
 	"spinpop/model/spin"
+	"spinpop/model/spots"
 )
 
 // Bank holds the stars of a run that a catalogue could hold — those that
@@ -33,6 +34,7 @@ type Bank struct {
 	Margin      BankMargin
 	Cuts        Cuts             // the run's catalogue cuts
 	Color       ColorCalibration // the run's color calibration
+	Noise       spots.NoiseModel // the run's survey noise, for which NoisePpm holds each star's
 
 	AgeGyr, MassMsun, TeffK []float32
 	BVMain                  []float32 // single-star main-sequence B−V of the primary's mass: what a spin-down law reads
@@ -42,6 +44,7 @@ type Bank struct {
 	AbsZPc                  []float32
 	CompanionMsun           []float32 // 0 when single
 	BinaryFrac              []float32 // BinaryFraction of the primary's mass, before the fraction scale
+	NoisePpm                []float32 // survey noise per cadence at the star's magnitude (Noise)
 	Seed                    []uint64
 }
 
@@ -129,6 +132,7 @@ func (bb *BankBuilder) Add(c *Chunk) {
 		b.AbsZPc = append(b.AbsZPc, float32(math.Abs(c.ZPc[i])))
 		b.CompanionMsun = append(b.CompanionMsun, float32(c.CompanionMsun[i]))
 		b.BinaryFrac = append(b.BinaryFrac, float32(BinaryFraction(m)))
+		b.NoisePpm = append(b.NoisePpm, float32(p.Survey.Detect.Noise.PpmPerCadence(c.AppMag[i])))
 		b.Seed = append(b.Seed, starSeed(bb.seed, c.Index, i))
 	}
 }
@@ -142,7 +146,7 @@ func starSeed(seed uint64, chunk, i int) uint64 {
 // Bank returns the collected bank.
 func (bb *BankBuilder) Bank() *Bank {
 	out := &Bank{Start: make([]int, len(bb.bins)+1), DrawnPerBin: append([]int64(nil), bb.drawn...), Margin: bb.margin,
-		Cuts: bb.pop.Cuts, Color: bb.pop.Survey.Color}
+		Cuts: bb.pop.Cuts, Color: bb.pop.Survey.Color, Noise: bb.pop.Survey.Detect.Noise}
 	for k := range bb.bins {
 		b := &bb.bins[k]
 		out.Start[k+1] = out.Start[k] + len(b.Seed)
@@ -156,6 +160,7 @@ func (bb *BankBuilder) Bank() *Bank {
 		out.AbsZPc = append(out.AbsZPc, b.AbsZPc...)
 		out.CompanionMsun = append(out.CompanionMsun, b.CompanionMsun...)
 		out.BinaryFrac = append(out.BinaryFrac, b.BinaryFrac...)
+		out.NoisePpm = append(out.NoisePpm, b.NoisePpm...)
 		out.Seed = append(out.Seed, b.Seed...)
 		*b = Bank{}
 	}
@@ -185,18 +190,18 @@ type ObserveOptions struct {
 	// MinKernelDex is the smallest width (dex) of the period kernel: a
 	// measured period is spread over the period bins by a Gaussian of the
 	// recovery scatter, but never narrower than this, so that templates
-	// move smoothly with the parameters (0: a fifth of the narrowest
-	// period bin).
+	// move smoothly with the parameters (0: one step of the fine grid,
+	// log10 2/32 ≈ 0.0094 dex).
 	MinKernelDex float64
 }
 
 // Observe returns, for every age bin k and grid bin i, the expected number
 // of the bank's stars that obs's survey catalogues there (counts, k-major)
-// and its Monte Carlo variance Σ weight² (vars). obs must be the bank's
-// population with only the parts that observe stars changed: spin-down law
-// and turnover time, spots, detection, recovery, color calibration, binary
-// fraction scale and tidal locking, catalogue cuts inside the bank's
-// margins.
+// and an upper bound on its Monte Carlo variance (vars). obs must be the
+// bank's population with only the parts that observe stars changed:
+// spin-down law and turnover time, spots, detection, recovery, color
+// calibration, binary fraction scale and tidal locking, catalogue cuts
+// inside the bank's margins.
 //
 // Each star counts with its detection probability (not a random
 // detection), and its measured period is spread over the period bins by
@@ -206,8 +211,16 @@ type ObserveOptions struct {
 // intrinsic scatter, tidal locking; spot amplitude) come from two streams
 // seeded by its stored seed, the same for every obs: common random numbers,
 // so that templates at neighbouring parameters differ by the change of
-// the parameter, not by noise. Age bins are processed whole by one worker
-// each: the sums do not depend on the number of workers.
+// the parameter, not by noise.
+//
+// How it is fast. A star is first placed, by linear (cloud-in-cell)
+// weights, on a fine grid of log10 P with log10 2/32 dex steps; the
+// recovery kernel (narrowed by the grid's own spread, δ²/6 in variance,
+// so the total is the recovery's) then maps each fine bin to the period
+// bins once per Observe instead of once per star. A star's variance
+// contribution w² is spread the same way, which bounds Σ (w·fraction)²
+// from above. Age bins are processed whole by one worker each: the sums do
+// not depend on the number of workers.
 func (b *Bank) Observe(ctx context.Context, obs *Population, g Grid, opts ObserveOptions) (counts, vars []float64, err error) {
 	if obs == nil || obs.Law == nil || !obs.Turnover.Valid() || obs.Relations == nil {
 		return nil, nil, errors.New("model: Bank.Observe needs a population with a law, a turnover time and relations")
@@ -223,8 +236,6 @@ func (b *Bank) Observe(ctx context.Context, obs *Population, g Grid, opts Observ
 	if err := obs.Survey.Recovery.Validate(); err != nil {
 		return nil, nil, err
 	}
-	cuts := obs.Cuts
-	m := b.Margin
 	if err := b.covers(obs); err != nil {
 		return nil, nil, err
 	}
@@ -232,35 +243,10 @@ func (b *Bank) Observe(ctx context.Context, obs *Population, g Grid, opts Observ
 	if workers <= 0 {
 		workers = runtime.GOMAXPROCS(0)
 	}
-	minDex := opts.MinKernelDex
-	if minDex <= 0 {
-		minDex = math.Inf(1)
-		for i := 1; i < len(g.LogPeriodEdges); i++ {
-			minDex = math.Min(minDex, g.LogPeriodEdges[i]-g.LogPeriodEdges[i-1])
-		}
-		minDex /= 5
-	}
+	ob := newObserver(b, obs, g, opts)
 	nk, nb := b.NumAgeBins(), g.NumBins()
 	counts = make([]float64, nk*nb)
 	vars = make([]float64, nk*nb)
-	ob := observer{
-		bank: b, obs: obs, g: g, cuts: cuts, recut: m != BankMargin{},
-		baseScale: opts.BaseFractionScale, sigma10: math.Max(obs.Survey.Recovery.RelScatter/math.Ln10, minDex),
-		logPMin: math.Log10(cuts.PeriodMinD), logPMax: math.Log10(cuts.PeriodMaxD),
-		nP: len(g.LogPeriodEdges) - 1, nZ: len(g.HeightEdgesPc) - 1,
-	}
-	if !(cuts.PeriodMaxD > 0) {
-		ob.logPMax = math.Inf(1)
-	}
-	if !(cuts.PeriodMinD > 0) {
-		ob.logPMin = math.Inf(-1)
-	}
-	rec := obs.Survey.Recovery
-	ob.comp = [3]struct{ shift, prob float64 }{
-		{0, 1 - rec.HalfProb - rec.DoubleProb},
-		{-math.Log10(2), rec.HalfProb},
-		{math.Log10(2), rec.DoubleProb},
-	}
 	var next atomic.Int64
 	var wg sync.WaitGroup
 	for range workers {
@@ -269,12 +255,17 @@ func (b *Bank) Observe(ctx context.Context, obs *Population, g Grid, opts Observ
 			defer wg.Done()
 			var lawSrc, spotSrc rand.PCG
 			lawR, spotR := rand.New(&lawSrc), rand.New(&spotSrc)
+			fine := make([]float64, ob.nC*ob.nZ*ob.nF)
+			fineVar := make([]float64, len(fine))
 			for {
 				k := int(next.Add(1) - 1)
 				if k >= nk || ctx.Err() != nil {
 					return
 				}
-				ob.bin(k, counts[k*nb:(k+1)*nb], vars[k*nb:(k+1)*nb], &lawSrc, &spotSrc, lawR, spotR)
+				clear(fine)
+				clear(fineVar)
+				ob.bin(k, fine, fineVar, &lawSrc, &spotSrc, lawR, spotR)
+				ob.spread(fine, fineVar, counts[k*nb:(k+1)*nb], vars[k*nb:(k+1)*nb])
 			}
 		}()
 	}
@@ -311,6 +302,10 @@ func (b *Bank) covers(obs *Population) error {
 	return nil
 }
 
+// fineStepDex is the step of the fine log-period grid: log10 2 / 32, so
+// that half- and double-period aliases fall on whole fine bins.
+var fineStepDex = math.Log10(2) / 32
+
 // observer is one Observe call's shared, read-only state.
 type observer struct {
 	bank      *Bank
@@ -318,23 +313,106 @@ type observer struct {
 	g         Grid
 	cuts      Cuts
 	recut     bool // the bank holds stars beyond the cuts: apply them
+	sameNoise bool // the survey noise is the bank's: read the stored noise
 	baseScale float64
-	sigma10   float64 // kernel width in log10 P
-	logPMin   float64 // the catalogue's period window, log10 days
-	logPMax   float64
-	nP, nZ    int
-	comp      [3]struct{ shift, prob float64 } // recovered period: P, P/2, 2P
+	nC, nP, nZ int
+	// The fine grid: nF bins of fineStepDex from fineLo (log10 days).
+	nF     int
+	fineLo float64
+	// kernel[f] lists the period bins fine bin f feeds and with what weight.
+	kernel [][]kernelEntry
 }
 
-// bin observes the stars of age bin k into cnt and vr (that bin's rows).
-func (ob *observer) bin(k int, cnt, vr []float64, lawSrc, spotSrc *rand.PCG, lawR, spotR *rand.Rand) {
+type kernelEntry struct {
+	p int
+	w float64
+}
+
+func newObserver(b *Bank, obs *Population, g Grid, opts ObserveOptions) *observer {
+	cuts := obs.Cuts
+	ob := &observer{
+		bank: b, obs: obs, g: g, cuts: cuts, recut: b.Margin != BankMargin{},
+		sameNoise: obs.Survey.Detect.Noise == b.Noise && b.NoisePpm != nil,
+		baseScale: opts.BaseFractionScale,
+		nC:        len(g.ColorEdges) - 1, nP: len(g.LogPeriodEdges) - 1, nZ: len(g.HeightEdgesPc) - 1,
+	}
+	rec := obs.Survey.Recovery
+	delta := fineStepDex
+	sigma := rec.RelScatter / math.Ln10
+	// The cloud-in-cell placement spreads a star by δ²/6 in variance; the
+	// kernel makes up the rest. A floor of a fine bin keeps templates
+	// smooth in the parameters when the recovery has no scatter.
+	sigK := math.Sqrt(math.Max(sigma*sigma-delta*delta/6, 0))
+	minDex := opts.MinKernelDex
+	if minDex <= 0 {
+		minDex = delta
+	}
+	sigK = math.Max(sigK, minDex)
+	reach := kernelReach*sigK + math.Log10(2) + delta
+	lo := g.LogPeriodEdges[0] - reach
+	hi := g.LogPeriodEdges[ob.nP] + reach
+	ob.fineLo = lo
+	ob.nF = int(math.Ceil((hi-lo)/delta)) + 1
+	winLo, winHi := math.Inf(-1), math.Inf(1)
+	if cuts.PeriodMinD > 0 {
+		winLo = math.Log10(cuts.PeriodMinD)
+	}
+	if cuts.PeriodMaxD > 0 {
+		winHi = math.Log10(cuts.PeriodMaxD)
+	}
+	comps := [3]struct{ shift, prob float64 }{
+		{0, 1 - rec.HalfProb - rec.DoubleProb},
+		{-math.Log10(2), rec.HalfProb},
+		{math.Log10(2), rec.DoubleProb},
+	}
+	edges := g.LogPeriodEdges
+	ob.kernel = make([][]kernelEntry, ob.nF)
+	for f := range ob.nF {
+		x := lo + float64(f)*delta // fine-bin node
+		var row []kernelEntry
+		for _, cp := range comps {
+			if !(cp.prob > 0) {
+				continue
+			}
+			mu := x + cp.shift
+			a, e := mu-kernelReach*sigK, mu+kernelReach*sigK
+			for pb := max(0, BinIndexBelow(edges, a)); pb < ob.nP && edges[pb] < e; pb++ {
+				l, h := math.Max(edges[pb], winLo), math.Min(edges[pb+1], winHi)
+				if !(h > l) {
+					continue
+				}
+				w := cp.prob * (NormalCDF((h-mu)/sigK) - NormalCDF((l-mu)/sigK))
+				if w <= 0 {
+					continue
+				}
+				merged := false
+				for i := range row {
+					if row[i].p == pb {
+						row[i].w += w
+						merged = true
+					}
+				}
+				if !merged {
+					row = append(row, kernelEntry{pb, w})
+				}
+			}
+		}
+		ob.kernel[f] = row
+	}
+	return ob
+}
+
+// bin places the stars of age bin k on the fine grid of each (color,
+// height) column: fine[(c·nZ + z)·nF + f], and their squared weights in
+// fineVar.
+func (ob *observer) bin(k int, fine, fineVar []float64, lawSrc, spotSrc *rand.PCG, lawR, spotR *rand.Rand) {
 	b, p := ob.bank, ob.obs
 	scale := p.Binaries.FractionScale
 	reweight := scale != ob.baseScale && ob.baseScale > 0
+	inv := 1 / fineStepDex
 	for s := b.Start[k]; s < b.Start[k+1]; s++ {
 		bv := p.Survey.Color.Apply(float64(b.ModelBV[s]))
-		absV := float64(b.ObsAbsMag[s])
-		if ob.recut && (!(bv >= ob.cuts.BVMin && bv <= ob.cuts.BVMax) || !OnMainSequence(p.Relations, ob.cuts, bv, absV)) {
+		if ob.recut && (!(bv >= ob.cuts.BVMin && bv <= ob.cuts.BVMax) || !OnMainSequence(p.Relations, ob.cuts, bv, float64(b.ObsAbsMag[s]))) {
 			continue
 		}
 		c := BinIndex(ob.g.ColorEdges, bv)
@@ -363,49 +441,58 @@ func (ob *observer) bin(k int, cnt, vr []float64, lawSrc, spotSrc *rand.PCG, law
 		lawSrc.Seed(seed, 1)
 		spotSrc.Seed(seed, 2)
 		st := spin.Star{MassMsun: float64(b.MassMsun[s]), AgeGyr: float64(b.AgeGyr[s]), BV: float64(b.BVMain[s]), TeffK: float64(b.TeffK[s])}
-		noise := p.Survey.Detect.Noise.PpmPerCadence(float64(b.AppMag[s]))
+		var noise float64
+		if ob.sameNoise {
+			noise = float64(b.NoisePpm[s])
+		} else {
+			noise = p.Survey.Detect.Noise.PpmPerCadence(float64(b.AppMag[s]))
+		}
 		rot := p.rotate(st, comp, noise, lawR, spotR)
 		if !rot.ok || !(rot.prob > 0) {
 			continue
 		}
-		ob.deposit(cnt, vr, (c*ob.nP)*ob.nZ+z, math.Log10(rot.periodD), weight*rot.prob)
+		w := weight * rot.prob
+		u := (math.Log10(rot.periodD) - ob.fineLo) * inv
+		if !(u >= 0) || u >= float64(ob.nF-1) {
+			continue // too far outside the grid to reach it
+		}
+		i0 := int(u)
+		frac := u - float64(i0)
+		base := (c*ob.nZ+z)*ob.nF + i0
+		fine[base] += w * (1 - frac)
+		fine[base+1] += w * frac
+		w2 := w * w
+		fineVar[base] += w2 * (1 - frac)
+		fineVar[base+1] += w2 * frac
 	}
 }
 
-// deposit spreads weight w of a star of true log10 period lp over the
-// period bins of one (color, height) column starting at flat index base
-// (period bin p at base + p·nZ), by the recovery kernel, inside the period
-// window.
-func (ob *observer) deposit(cnt, vr []float64, base int, lp, w float64) {
-	edges := ob.g.LogPeriodEdges
-	sig := ob.sigma10
-	for _, cp := range ob.comp {
-		if !(cp.prob > 0) {
-			continue
-		}
-		mu := lp + cp.shift
-		lo, hi := mu-kernelReach*sig, mu+kernelReach*sig
-		first := max(0, BinIndexBelow(edges, lo))
-		for pb := first; pb < ob.nP && edges[pb] < hi; pb++ {
-			a, e := math.Max(edges[pb], ob.logPMin), math.Min(edges[pb+1], ob.logPMax)
-			if !(e > a) {
-				continue
+// spread maps one age bin's fine columns onto the period bins through the
+// recovery kernel, into that bin's counts and variances.
+func (ob *observer) spread(fine, fineVar, cnt, vr []float64) {
+	for c := range ob.nC {
+		for z := range ob.nZ {
+			col := fine[(c*ob.nZ+z)*ob.nF : (c*ob.nZ+z+1)*ob.nF]
+			colVar := fineVar[(c*ob.nZ+z)*ob.nF : (c*ob.nZ+z+1)*ob.nF]
+			base := c * ob.nP * ob.nZ
+			for f, h := range col {
+				if h == 0 {
+					continue
+				}
+				hv := colVar[f]
+				for _, e := range ob.kernel[f] {
+					i := base + e.p*ob.nZ + z
+					cnt[i] += h * e.w
+					vr[i] += hv * e.w
+				}
 			}
-			frac := NormalCDF((e-mu)/sig) - NormalCDF((a-mu)/sig)
-			if frac <= 0 {
-				continue
-			}
-			x := w * cp.prob * frac
-			i := base + pb*ob.nZ
-			cnt[i] += x
-			vr[i] += x * x
 		}
 	}
 }
 
 // kernelReach is how many widths of the period kernel are spread: beyond
-// 7σ the normal tail holds < 1.3e-12 of the weight.
-const kernelReach = 7
+// 6σ the normal tail holds < 1e-9 of the weight.
+const kernelReach = 6
 
 // BinIndexBelow returns the index of the bin holding x, 0 below the first
 // edge and the last bin above the last edge.

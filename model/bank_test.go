@@ -9,6 +9,7 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"spinpop/model/spin"
+	"spinpop/model/spots"
 )
 
 // bankGrid is a comparison-like grid: 12 colors, 24 log-period bins from
@@ -148,7 +149,6 @@ func TestBankObserveBinariesAndColor(t *testing.T) {
 		require.NoError(t, err, name)
 		r, dof := chi2PerBin(counts, exp, vars)
 		t.Logf("%s: χ²/dof = %.3f over %d bins", name, r, dof)
-		t.Logf("χ²/dof = %.3f over %d bins", r, dof)
 		assert.Greater(t, dof, 200, name)
 		assert.Less(t, r, 1.2, name)
 		old, oldVar, err := bank.Observe(context.Background(), p, g, ObserveOptions{BaseFractionScale: 1})
@@ -194,44 +194,71 @@ func TestNormalCDF(t *testing.T) {
 	assert.True(t, math.IsNaN(NormalCDF(math.NaN())))
 }
 
+// place puts weight w at log10 period lp into fine column col of ob as
+// bin does (cloud-in-cell).
+func (ob *observer) place(fine []float64, col int, lp, w float64) {
+	u := (lp - ob.fineLo) / fineStepDex
+	i0 := int(u)
+	frac := u - float64(i0)
+	fine[col*ob.nF+i0] += w * (1 - frac)
+	fine[col*ob.nF+i0+1] += w * frac
+}
+
 // The period kernel spreads a star's whole weight over the period bins
-// when it lies far from the window's edges, and cuts it at a window edge
-// exactly where the normal distribution says.
+// when it lies far from the window's edges, keeps the recovery's width
+// (the grid's own spread taken out of the kernel), cuts the weight at a
+// window edge where the normal distribution says, and moves half-period
+// aliases down by log10 2.
 // Source: the normal distribution function; analytic.
-func TestDepositKernel(t *testing.T) {
+func TestSpreadKernel(t *testing.T) {
+	p := testPopulation(t, 2)
+	p.Survey.Recovery = spots.RecoveryOptions{RelScatter: 0.08}
 	g := bankGrid()
-	ob := observer{g: g, sigma10: 0.03, logPMin: math.Inf(-1), logPMax: math.Inf(1), nP: 24, nZ: 3}
-	ob.comp[0].prob = 1
-	cnt, vr := make([]float64, 24*3), make([]float64, 24*3)
-	ob.deposit(cnt, vr, 1, 1.0, 2.5) // height bin 1
-	var sum float64
-	for i, v := range cnt {
-		if i%3 != 1 {
-			assert.Zero(t, v)
+	g.LogPeriodEdges = nil
+	for i := 0; i <= 200; i++ { // fine comparison bins to measure moments
+		g.LogPeriodEdges = append(g.LogPeriodEdges, math.Log10(0.5)+math.Log10(200)*float64(i)/200)
+	}
+	nP := 200
+	b := &Bank{Cuts: p.Cuts}
+	run := func(q *Population, lp float64) (total, mean, sd float64) {
+		ob := newObserver(b, q, g, ObserveOptions{})
+		fine := make([]float64, ob.nC*ob.nZ*ob.nF)
+		ob.place(fine, 1*ob.nZ+2, lp, 2.5) // color 1, height 2
+		cnt := make([]float64, g.NumBins())
+		vr := make([]float64, g.NumBins())
+		ob.spread(fine, make([]float64, len(fine)), cnt, vr)
+		var s1, s2 float64
+		for i, v := range cnt {
+			c, per, z := i/(nP*3), (i/3)%nP, i%3
+			if v != 0 {
+				require.Equal(t, 1, c)
+				require.Equal(t, 2, z)
+			}
+			x := 0.5 * (g.LogPeriodEdges[per] + g.LogPeriodEdges[per+1])
+			total += v
+			s1 += v * x
+			s2 += v * x * x
 		}
-		sum += v
+		mean = s1 / total
+		return total, mean, math.Sqrt(s2/total - mean*mean)
 	}
-	assert.InDelta(t, 2.5, sum, 1e-9)
+	total, mean, sd := run(p, 1.0)
+	assert.InDelta(t, 2.5, total, 1e-6)
+	assert.InDelta(t, 1.0, mean, 1e-3)
+	// Width: the recovery's σ = 0.08/ln 10 dex, plus the comparison bins'
+	// own width²/12 in variance.
+	w := math.Log10(200) / 200
+	assert.InDelta(t, math.Sqrt(math.Pow(0.08/math.Ln10, 2)+w*w/12), sd, 0.002)
 	// A window edge at the star's period keeps half of it.
-	ob.logPMax = 1.0
-	clear(cnt)
-	ob.deposit(cnt, vr, 0, 1.0, 1)
-	sum = 0
-	for _, v := range cnt {
-		sum += v
-	}
-	assert.InDelta(t, 0.5, sum, 1e-6)
-	// Half-period aliases land log10 2 lower.
-	ob.logPMax = math.Inf(1)
-	ob.comp[0].prob, ob.comp[1] = 0, struct{ shift, prob float64 }{-math.Log10(2), 1}
-	clear(cnt)
-	ob.deposit(cnt, vr, 0, 1.5, 1)
-	var mean float64
-	for pb := range 24 {
-		c := 0.5 * (g.LogPeriodEdges[pb] + g.LogPeriodEdges[pb+1])
-		mean += c * cnt[pb*3]
-	}
-	assert.InDelta(t, 1.5-math.Log10(2), mean, 0.01)
+	q := *p
+	q.Cuts.PeriodMaxD = 10
+	total, _, _ = run(&q, 1.0)
+	assert.InDelta(t, 1.25, total, 0.01)
+	// All half-period aliases land log10 2 lower.
+	q = *p
+	q.Survey.Recovery = spots.RecoveryOptions{RelScatter: 0.08, HalfProb: 1}
+	_, mean, _ = run(&q, 1.5)
+	assert.InDelta(t, 1.5-math.Log10(2), mean, 2e-3)
 }
 
 // Intrinsic scatter: the scattered law's periods spread lognormally about
