@@ -1,6 +1,7 @@
 package compare
 
 import (
+	"context"
 	"fmt"
 	"math"
 	"sort"
@@ -201,4 +202,55 @@ func (r RegionMisfit) Describe() string {
 		return fmt.Sprintf("periods %.3g–%.3g d", r.Lo, r.Hi)
 	}
 	return fmt.Sprintf("|z| %g–%g pc", r.Lo, r.Hi)
+}
+
+// GoFOptions control GoodnessOfFit.
+type GoFOptions struct {
+	Replicates int    // bootstrap replicates (0: 200)
+	Seed       uint64 // replicate i draws from a stream of (Seed, i)
+	Workers    int
+	Starts     int  // starts of each replicate's refit (0: 2)
+	Refit      bool // refit the model's free parameters to every replicate (as fit f was fitted to the data)
+	Nuisance   *Nuisance
+	Progress   func(done, total int)
+}
+
+// GoodnessOfFit calibrates the deviance of model m at fit f (the data's
+// fit, or the model as written) by the parametric bootstrap: replicates
+// drawn from f, refitted when opts.Refit (nuisance parameters on f's
+// expansion), each giving the deviance of a model that is right by
+// construction. See Adequacy.
+func GoodnessOfFit(ctx context.Context, like *Likelihood, m HistoryModel, f FitResult, opts GoFOptions) (Adequacy, error) {
+	if opts.Replicates <= 0 {
+		opts.Replicates = 200
+	}
+	if opts.Starts <= 0 {
+		opts.Starts = 2
+	}
+	regs := misfitRegions(like.Space())
+	data, err := fitDeviance(like, f, regs)
+	if err != nil {
+		return Adequacy{}, err
+	}
+	mu := like.Expected(f.Weights, nil)
+	reps := make([]devianceRecord, opts.Replicates)
+	err = parallelReplicates(ctx, opts.Replicates, opts.Workers, opts.Progress, func(i int, counts []float64) error {
+		drawLikeMock(counts, mu, like, replicateStream(opts.Seed, i))
+		l, err := like.withCounts(counts, false)
+		if err != nil {
+			return err
+		}
+		r := f
+		if opts.Refit && m.Dim()+opts.Nuisance.Dim() > 0 {
+			if r, err = refitAt(l, m, opts.Nuisance, f.morph, FitOptions{Starts: opts.Starts, Seed: opts.Seed, Init: [][]float64{f.Theta}}, f.Nuisance); err != nil {
+				return fmt.Errorf("compare: goodness-of-fit replicate %d: %w", i, err)
+			}
+		}
+		reps[i], err = fitDeviance(l, r, regs)
+		return err
+	}, len(mu))
+	if err != nil {
+		return Adequacy{}, err
+	}
+	return newAdequacy(data, reps, regs, like.Counts()), nil
 }

@@ -44,6 +44,35 @@ type HeightResult struct {
 // gyrochrone crosses is counted whole on one side, in data and model
 // alike, so the comparison stays fair at the price of a blurred split.
 func HeightCheck(tpl *Templates, obs *Observed, splitAgeGyr float64, gyro func(bv float64) (periodD float64, ok bool), hypotheses map[string][]float64) (*HeightResult, error) {
+	preds := make(map[string]Prediction, len(hypotheses))
+	for n, w := range hypotheses {
+		preds[n] = Prediction{Templates: tpl, Weights: w}
+	}
+	return HeightCheckFits(tpl, obs, splitAgeGyr, gyro, preds, false)
+}
+
+// Prediction is what a fitted model expects: its templates (its own, when
+// it was fitted with nuisance parameters) and its age-bin weights.
+type Prediction struct {
+	Templates *Templates
+	Weights   []float64
+}
+
+// PredictionOf is fit f's prediction: its own templates, or base for a fit
+// without nuisance parameters.
+func PredictionOf(f FitResult, base *Templates) Prediction {
+	t := f.Templates
+	if t == nil {
+		t = base
+	}
+	return Prediction{Templates: t, Weights: f.Weights}
+}
+
+// HeightCheckFits is HeightCheck with each hypothesis' own templates.
+// tpl gives the space. With perColor, each hypothesis' colour columns are
+// scaled to the catalog's counts before the young fraction is taken, as a
+// likelihood conditional on colour predicts it.
+func HeightCheckFits(tpl *Templates, obs *Observed, splitAgeGyr float64, gyro func(bv float64) (periodD float64, ok bool), hypotheses map[string]Prediction, perColor bool) (*HeightResult, error) {
 	if tpl == nil || obs == nil || gyro == nil {
 		return nil, errors.New("compare: HeightCheck needs templates, an observed catalog and a gyrochrone")
 	}
@@ -97,11 +126,19 @@ func HeightCheck(tpl *Templates, obs *Observed, splitAgeGyr float64, gyro func(b
 	}
 	slices.Sort(names)
 	for _, name := range names {
-		w := hypotheses[name]
-		if len(w) != tpl.NumAgeBins() {
-			return nil, fmt.Errorf("compare: hypothesis %q has %d weights for %d age bins", name, len(w), tpl.NumAgeBins())
+		pr := hypotheses[name]
+		w, t := pr.Weights, pr.Templates
+		if t == nil {
+			t = tpl
 		}
-		my, mt := splitCounts(sp, res, tpl.Expected(w, nil))
+		if len(w) != t.NumAgeBins() || !t.Space.Equal(sp) {
+			return nil, fmt.Errorf("compare: hypothesis %q has %d weights for %d age bins (or templates in another space)", name, len(w), t.NumAgeBins())
+		}
+		mu := t.Expected(w, nil)
+		if perColor {
+			scaleColumns(sp, mu, obs.Counts)
+		}
+		my, mt := splitCounts(sp, res, mu)
 		h := HeightHypothesis{Name: name, Fraction: make([]float64, nz)}
 		for z := range nz {
 			f := math.NaN()
@@ -114,6 +151,26 @@ func HeightCheck(tpl *Templates, obs *Observed, splitAgeGyr float64, gyro func(b
 		res.Hypotheses = append(res.Hypotheses, h)
 	}
 	return res, nil
+}
+
+// scaleColumns scales each colour column of the 3-D expectation mu to the
+// data's count in that column.
+func scaleColumns(sp Space, mu, data []float64) {
+	per := sp.NumLogPeriod() * sp.NumHeight()
+	for c := range sp.NumColor() {
+		var m, n float64
+		for i := c * per; i < (c+1)*per; i++ {
+			m += mu[i]
+			n += data[i]
+		}
+		f := 0.0
+		if m > 0 {
+			f = n / m
+		}
+		for i := c * per; i < (c+1)*per; i++ {
+			mu[i] *= f
+		}
+	}
 }
 
 // splitCounts sums 3-D counts into young and classified totals per |z| bin.

@@ -219,3 +219,8 @@ func useTemplates(like *Likelihood, f FitResult, base *Templates) error {
 	}
 	return nil
 }
+
+// UseFit puts fit f's templates into l — those made at its nuisance
+// values, for a joint fit — so that Expected, Fitted and PearsonResiduals
+// describe that fit. A fit without nuisance parameters leaves l as it is.
+func (l *Likelihood) UseFit(f FitResult) error { return useTemplates(l, f, nil) }

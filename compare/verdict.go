@@ -94,6 +94,10 @@ func verdict(r *BurstResult) (strength, reason, calibration, text string) {
 	return strength, "", calibration, strings.ToUpper(sentence[:1]) + sentence[1:] + " " + fitText
 }
 
+// WorstRegions names, for messages, up to two regions with the largest
+// excess deviance (", worst in …"), or "" if none has any.
+func WorstRegions(a Adequacy) string { return worstRegions(a) }
+
 // worstRegions names up to two regions with the largest excess deviance.
 func worstRegions(a Adequacy) string {
 	var parts []string

@@ -51,10 +51,6 @@ func Build(s *Scenario) (*Built, error) {
 	if b.Law, err = BuildLaw(s, b.Relations); err != nil {
 		return nil, err
 	}
-	turn, err := spin.TurnoverByName(s.Spin.Turnover)
-	if err != nil {
-		return nil, fmt.Errorf("spin.turnover: %w", err)
-	}
 
 	b.Sun = disk.Sun{RKpc: s.Disk.SunRadiusKpc, ZPc: s.Disk.SunHeightPc}
 	if b.Sampler, err = b.sampler(); err != nil {
@@ -74,32 +70,6 @@ func Build(s *Scenario) (*Built, error) {
 		}
 	}
 
-	det := spots.Detection{
-		Noise:        spots.NoiseModel{FloorPpm: s.Survey.NoiseFloorPpm, RefMag: s.Survey.NoiseRefMag, PpmAtRefMag: s.Survey.NoisePpmAtRefMag},
-		BaselineD:    s.Survey.BaselineD,
-		CadenceD:     s.Survey.CadenceD,
-		ThresholdSNR: s.Survey.DetectionSNR,
-		Sharpness:    4,
-		MinCycles:    s.Survey.MinCycles,
-	}
-	if err := det.Validate(); err != nil {
-		return nil, fmt.Errorf("survey: %w", err)
-	}
-	rec := spots.RecoveryOptions{RelScatter: s.Survey.PeriodScatterRel, HalfProb: s.Survey.HalfAliasProb, DoubleProb: s.Survey.DoubleAliasProb}
-	if err := rec.Validate(); err != nil {
-		return nil, fmt.Errorf("survey: %w", err)
-	}
-	band, err := model.ParseBand(s.Survey.Band)
-	if err != nil {
-		return nil, fmt.Errorf("survey.band: %w", err)
-	}
-	var amp *spots.AmplitudeModel
-	if s.Spin.Spots.Enabled {
-		amp = &spots.AmplitudeModel{RoSat: s.Spin.Spots.RoSat, AmpSatPpm: s.Spin.Spots.AmpSatPpm, Slope: s.Spin.Spots.Slope, ScatterDex: s.Spin.Spots.ScatterDex}
-		if err := amp.Validate(); err != nil {
-			return nil, fmt.Errorf("spin.spots: %w", err)
-		}
-	}
 	var dust model.Extinction
 	if s.Dust.Model == "exponential" {
 		dl := disk.DustLayer{ScaleHeightPc: s.Dust.ScaleHeightPc, MidplaneAvPerKpc: s.Dust.MidplaneAvPerKpc}
@@ -109,31 +79,87 @@ func Build(s *Scenario) (*Built, error) {
 		dust = dl.FromSun(b.Sun).AV
 	}
 
-	b.Population = &model.Population{
+	pop := &model.Population{
 		BinProb:   prob,
 		Age:       b.ageInBin,
 		Place:     b.Sampler,
 		Dust:      dust,
 		IMF:       imf,
 		Relations: b.Relations,
-		Law:       b.Law,
-		Turnover:  turn,
-		Spots:     amp,
 		Evolved:   s.Stars.Evolved,
-		Binaries: model.Binaries{
-			FractionScale:     s.Stars.BinaryFractionScale,
-			MassRatioMin:      s.Stars.BinaryMassRatioMin,
-			TidalLockFraction: s.Stars.TidalLockFraction,
-			TidalLockMaxD:     s.Stars.TidalLockPeriodMaxD,
-		},
-		Metals: model.Metallicity{SigmaDex: s.Stars.MetallicitySigmaDex, ColorPerDex: s.Stars.ColorPerDex, AbsMagPerDex: s.Stars.AbsMagPerDex},
-		Survey: model.Survey{Band: band, BrightLimitMag: s.Survey.BrightLimitMag, FaintLimitMag: s.Survey.FaintLimitMag, Detect: det, Recovery: rec},
-		Cuts:   CutsOf(s),
+		Binaries:  model.Binaries{MassRatioMin: s.Stars.BinaryMassRatioMin, TidalLockMaxD: s.Stars.TidalLockPeriodMaxD},
+		Metals:    model.Metallicity{SigmaDex: s.Stars.MetallicitySigmaDex, ColorPerDex: s.Stars.ColorPerDex, AbsMagPerDex: s.Stars.AbsMagPerDex},
 	}
+	if err := observing(s, pop, b.Law); err != nil {
+		return nil, err
+	}
+	b.Population = pop
 	if err := b.Population.Prepare(); err != nil {
 		return nil, err
 	}
 	return b, nil
+}
+
+// ObservingPopulation returns a copy of base (a population built from this
+// scenario's stars, disk and dust) with the parts that observe stars taken
+// from s: the spin-down law and turnover time, spots, detection, recovery,
+// color calibration, binary fraction scale, tidal locking and cuts. It is
+// what a comparison re-observes stored template stars with when nuisance
+// parameters move (model.Bank.Observe).
+func ObservingPopulation(s *Scenario, base *model.Population) (*model.Population, error) {
+	law, err := BuildLaw(s, base.Relations)
+	if err != nil {
+		return nil, err
+	}
+	p := *base
+	if err := observing(s, &p, law); err != nil {
+		return nil, err
+	}
+	return &p, nil
+}
+
+// observing fills p's observing parts from s, with law as its law.
+func observing(s *Scenario, p *model.Population, law spin.Law) error {
+	turn, err := spin.TurnoverByName(s.Spin.Turnover)
+	if err != nil {
+		return fmt.Errorf("spin.turnover: %w", err)
+	}
+	det := spots.Detection{
+		Noise:        spots.NoiseModel{FloorPpm: s.Survey.NoiseFloorPpm, RefMag: s.Survey.NoiseRefMag, PpmAtRefMag: s.Survey.NoisePpmAtRefMag},
+		BaselineD:    s.Survey.BaselineD,
+		CadenceD:     s.Survey.CadenceD,
+		ThresholdSNR: s.Survey.DetectionSNR,
+		Sharpness:    s.Survey.DetectionSharp,
+		MinCycles:    s.Survey.MinCycles,
+	}
+	if err := det.Validate(); err != nil {
+		return fmt.Errorf("survey: %w", err)
+	}
+	rec := spots.RecoveryOptions{RelScatter: s.Survey.PeriodScatterRel, HalfProb: s.Survey.HalfAliasProb, DoubleProb: s.Survey.DoubleAliasProb}
+	if err := rec.Validate(); err != nil {
+		return fmt.Errorf("survey: %w", err)
+	}
+	band, err := model.ParseBand(s.Survey.Band)
+	if err != nil {
+		return fmt.Errorf("survey.band: %w", err)
+	}
+	var amp *spots.AmplitudeModel
+	if s.Spin.Spots.Enabled {
+		amp = &spots.AmplitudeModel{RoSat: s.Spin.Spots.RoSat, AmpSatPpm: s.Spin.Spots.AmpSatPpm, Slope: s.Spin.Spots.Slope, ScatterDex: s.Spin.Spots.ScatterDex}
+		if err := amp.Validate(); err != nil {
+			return fmt.Errorf("spin.spots: %w", err)
+		}
+	}
+	color := model.ColorCalibration{OffsetMag: s.Survey.ColorOffsetMag, Scale: s.Survey.ColorScale}
+	if err := color.Validate(); err != nil {
+		return fmt.Errorf("survey.color_offset_mag/color_scale: %w", err)
+	}
+	p.Law, p.Turnover, p.Spots = law, turn, amp
+	p.Binaries.FractionScale = s.Stars.BinaryFractionScale
+	p.Binaries.TidalLockFraction = s.Stars.TidalLockFraction
+	p.Survey = model.Survey{Band: band, BrightLimitMag: s.Survey.BrightLimitMag, FaintLimitMag: s.Survey.FaintLimitMag, Detect: det, Recovery: rec, Color: color}
+	p.Cuts = CutsOf(s)
+	return nil
 }
 
 func (b *Built) ageInBin(k int, r *rand.Rand) float64 { return b.binSamplers[k].Sample(r) }
@@ -236,15 +262,49 @@ func BuildHistory(s *Scenario) (*sfh.History, error) {
 // BuildLaw builds the scenario's spin-down law. The torque law takes stellar
 // radius and temperature from the relation table.
 func BuildLaw(s *Scenario, rel *model.Relations) (spin.Law, error) {
+	law, err := buildLaw(s, rel)
+	if err != nil || s.Spin.PeriodScatterDex == 0 {
+		return law, err
+	}
+	sc := spin.Scattered{Law: law, Dex: s.Spin.PeriodScatterDex}
+	if err := sc.Validate(); err != nil {
+		return nil, fmt.Errorf("spin.period_scatter_dex: %w", err)
+	}
+	return sc, nil
+}
+
+// buildLaw is BuildLaw without the intrinsic scatter.
+func buildLaw(s *Scenario, rel *model.Relations) (spin.Law, error) {
+	g := s.Spin.Gyro
 	if s.Spin.Law != "torque" {
 		if s.Spin.Stall.Enabled || s.Spin.Weakened.Enabled {
 			return nil, fmt.Errorf("spin.stall / spin.weakened_braking are options of the torque law; spin.law = %q cannot use them (set spin.law = \"torque\" or disable them)", s.Spin.Law)
 		}
-		l, err := spin.ByName(s.Spin.Law)
+		l, err := gyroLaw(s.Spin.Law)
 		if err != nil {
 			return nil, fmt.Errorf("spin.law: %w", err)
 		}
+		// spin.gyro overrides the published coefficients where not 0.
+		for _, c := range []struct {
+			v   float64
+			dst *float64
+		}{{g.A, &l.A}, {g.B, &l.B}, {g.C, &l.C}, {g.N, &l.N}} {
+			if c.v != 0 {
+				*c.dst = c.v
+			}
+		}
+		if l.C >= l.MinBV {
+			// The relation runs to zero period at B−V = c: keep the
+			// accepted colors above it.
+			l.MinBV = l.C + 0.05
+		}
+		if err := l.Validate(); err != nil {
+			return nil, fmt.Errorf("spin.gyro: %w", err)
+		}
 		return l, nil
+	}
+	if g != (GyroCoefficients{}) {
+		return nil, fmt.Errorf("spin.gyro sets coefficients of the empirical laws; spin.law = \"torque\" has none (leave spin.gyro at 0)")
 	}
 	t := s.Spin.Torque
 	o := spin.DefaultTorqueOptions()

@@ -2,10 +2,12 @@ package scenarios
 
 import (
 	"fmt"
+	"math"
 	"strings"
 
 	"spinpop/compare"
 	"spinpop/compare/catalog"
+	"spinpop/model"
 )
 
 // templateSections are the parts of a scenario the templates depend on:
@@ -42,6 +44,97 @@ func Mapping(s *Scenario) catalog.Mapping {
 }
 
 // LikeOptions are the likelihood settings of [compare].
+// AsWritten is the scenario's own history, nothing added, with the free
+// history parameters of compare.free that name its parts: what `compare`
+// scores. (Hypotheses adds a burst part when the scenario has none; a
+// history as written must not get one.)
+func AsWritten(s *Scenario, ageEdgesGyr []float64) (compare.HistoryModel, error) {
+	h, err := BuildHistory(s)
+	if err != nil {
+		return compare.HistoryModel{}, err
+	}
+	var free []compare.FreeParam
+	for _, f := range s.Compare.Free {
+		if IsNuisancePath(f.Path) {
+			continue
+		}
+		pieces := strings.SplitN(f.Path, ".", 3)
+		if len(pieces) != 3 {
+			continue
+		}
+		if _, ok := s.History.Parts[pieces[1]]; !ok {
+			continue
+		}
+		free = append(free, compare.FreeParam{Name: strings.TrimPrefix(f.Path, "history."), Min: f.Min, Max: f.Max, LogPrior: f.Prior == "log-uniform"})
+	}
+	m := compare.HistoryModel{Base: h, Free: free, AgeEdgesGyr: ageEdgesGyr}
+	if err := m.Validate(); err != nil {
+		return m, fmt.Errorf("compare.free: %w", err)
+	}
+	return m, nil
+}
+
+// NuisanceParams returns the nuisance parameters of compare.free (the
+// non-history paths), each centred on the scenario's value, with its
+// gaussian prior's width (the published uncertainty where sigma is 0) or
+// a flat prior.
+func NuisanceParams(s *Scenario) ([]compare.NuisanceParam, error) {
+	var out []compare.NuisanceParam
+	for _, f := range s.Compare.Free {
+		if !IsNuisancePath(f.Path) {
+			continue
+		}
+		nom, err := NuisanceNominal(s, f.Path)
+		if err != nil {
+			return nil, err
+		}
+		p := compare.NuisanceParam{Name: f.Path, Nominal: nom, Min: f.Min, Max: f.Max}
+		if f.Prior == "gaussian" {
+			p.Sigma = f.Sigma
+			if p.Sigma == 0 {
+				p.Sigma, _ = defaultSigma(s, f.Path)
+			}
+			// Steps of a prior width, but never beyond a quarter of the
+			// range: a wide prior on a short range still gets an
+			// expansion that resolves the range.
+			p.Step = math.Min(p.Sigma, (f.Max-f.Min)/4)
+		}
+		out = append(out, p)
+	}
+	return out, nil
+}
+
+// BankMargin returns the margins the template bank needs for the color
+// calibration to move within its free range: the largest color shift the
+// bounds of survey.color_offset_mag and survey.color_scale allow over the
+// color cut, plus 0.01 mag.
+func BankMargin(s *Scenario) model.BankMargin {
+	off, scale := s.Survey.ColorOffsetMag, s.Survey.ColorScale
+	offLo, offHi, scLo, scHi := off, off, scale, scale
+	for _, f := range s.Compare.Free {
+		switch f.Path {
+		case "survey.color_offset_mag":
+			offLo, offHi = f.Min, f.Max
+		case "survey.color_scale":
+			scLo, scHi = f.Min, f.Max
+		}
+	}
+	if offLo == off && offHi == off && scLo == scale && scHi == scale {
+		return model.BankMargin{}
+	}
+	shift := 0.0
+	for _, o := range []float64{offLo, offHi} {
+		for _, sc := range []float64{scLo, scHi} {
+			for _, bv := range []float64{s.Cuts.BVMin, s.Cuts.BVMax} {
+				c := model.ColorCalibration{OffsetMag: o, Scale: sc}
+				nom := model.ColorCalibration{OffsetMag: off, Scale: scale}
+				shift = math.Max(shift, math.Abs(c.Apply(nom.Invert(bv))-bv))
+			}
+		}
+	}
+	return model.BankMargin{ColorMag: shift + 0.01}
+}
+
 func LikeOptions(s *Scenario) compare.LikeOptions {
 	return compare.LikeOptions{Normalisation: s.Compare.Normalisation, TemplateNoise: s.Compare.TemplateNoise}
 }
@@ -91,6 +184,9 @@ func Hypotheses(s *Scenario, ageEdgesGyr []float64) (smooth, burst compare.Histo
 	}
 	var fb, fs []compare.FreeParam
 	for _, f := range free {
+		if IsNuisancePath(f.Path) {
+			continue // fitted with both hypotheses: see NuisanceParams
+		}
 		p := compare.FreeParam{Name: strings.TrimPrefix(f.Path, "history."), Min: f.Min, Max: f.Max, LogPrior: f.Prior == "log-uniform"}
 		fb = append(fb, p)
 		if !strings.HasPrefix(f.Path, prefix) {

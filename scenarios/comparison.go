@@ -12,9 +12,9 @@ import (
 
 // Allowed values of the enumerated [compare] keys.
 var (
-	normalisations = []string{"free", "absolute"}
+	normalisations = []string{"free", "absolute", "per-color", "per-color-height"}
 	templateNoises = []string{"barlow-beeston-lite", "ignore"}
-	priors         = []string{"uniform", "log-uniform"}
+	priors         = []string{"uniform", "log-uniform", "gaussian"}
 )
 
 // Limits of [compare] keys. Fewer than two bins compare nothing; more than
@@ -223,6 +223,9 @@ func (v *decoder) validateFree(s *Scenario) {
 			v.inDomain(key("min"), f.Min, f.Path, dom)
 			v.inDomain(key("max"), f.Max, f.Path, dom)
 		}
+		if priorOK && pathOK {
+			v.validateNuisance(s, p, f)
+		}
 	}
 }
 
@@ -274,6 +277,9 @@ func (v *decoder) freePath(p, path string, h History, valid []string) (domain, b
 	if v.errs.isBad(p) {
 		return domain{}, false
 	}
+	if d, ok := nuisanceKeys[path]; ok {
+		return d, true
+	}
 	pieces := strings.Split(path, ".")
 	if len(pieces) == 3 && pieces[0] == "history" {
 		if v.errs.isBad(joinKey("history", pieces[1])) || v.errs.isBad("history.max_age_gyr") {
@@ -286,7 +292,7 @@ func (v *decoder) freePath(p, path string, h History, valid []string) (domain, b
 	if v.errs.isBad("history") {
 		return domain{}, false
 	}
-	msg := fmt.Sprintf("%s = %s does not name a parameter a fit can move; a free parameter is \"history.<part>.<key>\" with a key its part's kind takes", p, quoteString(path))
+	msg := fmt.Sprintf("%s = %s does not name a parameter a fit can move; a free parameter is \"history.<part>.<key>\" with a key its part's kind takes, or a nuisance parameter of the physics or selection", p, quoteString(path))
 	if n := nearest(path, valid); n != "" && levenshtein(path, n) <= max(2, len(n)/4) {
 		msg += fmt.Sprintf(" (did you mean %q?)", n)
 	}
@@ -297,7 +303,8 @@ func (v *decoder) freePath(p, path string, h History, valid []string) (domain, b
 	return domain{}, false
 }
 
-// freePaths lists every path a free parameter may name, sorted.
+// freePaths lists every path a free parameter may name: the history's,
+// sorted, then the nuisance paths.
 func freePaths(h History) []string {
 	var out []string
 	for _, name := range sortedParts(h.Parts) {
@@ -305,5 +312,5 @@ func freePaths(h History) []string {
 			out = append(out, "history."+name+"."+k)
 		}
 	}
-	return out
+	return append(out, NuisancePaths()...)
 }

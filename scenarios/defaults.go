@@ -54,6 +54,13 @@ abs_mag_per_dex = 1.0            # [memory]
 [spin]
 law = "barnes2007"
 turnover = "wright2018"
+period_scatter_dex = 0.0
+
+[spin.gyro]                      # 0 = the empirical law's published coefficient
+a = 0.0
+b = 0.0
+c = 0.0
+n = 0.0
 
 [spin.torque]
 solar_period_d = 25.4            # [memory]
@@ -97,6 +104,9 @@ cadence_d = 0.0204
 baseline_d = 1400.0
 min_cycles = 3.0
 detection_snr = 10.0
+detection_sharpness = 4.0
+color_offset_mag = 0.0
+color_scale = 1.0
 period_scatter_rel = 0.03
 half_alias_prob = 0.02
 double_alias_prob = 0.01

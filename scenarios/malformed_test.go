@@ -315,7 +315,7 @@ var malformedCases = []malformedCase{
 		name:   "free path naming no parameter lists the valid paths",
 		text:   minimal + burstPart + "[[compare.free]]\npath = \"history.b.age\"\nmin = 0.1\nmax = 1.0\n",
 		lineOf: "path =",
-		want: []string{`compare.free[0].path = "history.b.age" does not name a parameter a fit can move; a free parameter is "history.<part>.<key>" with a key its part's kind takes (did you mean "history.b.age_gyr"?); ` +
+		want: []string{`compare.free[0].path = "history.b.age" does not name a parameter a fit can move; a free parameter is "history.<part>.<key>" with a key its part's kind takes, or a nuisance parameter of the physics or selection (did you mean "history.b.age_gyr"?); ` +
 			"the valid paths are: history.b.age_gyr, history.b.mass_fraction, history.b.width_gyr, history.smooth.weight"},
 	},
 	{
@@ -371,7 +371,7 @@ var malformedCases = []malformedCase{
 		name:   "unknown prior",
 		text:   minimal + burstPart + "[[compare.free]]\npath = \"history.b.age_gyr\"\nmin = 0.1\nmax = 1.0\nprior = \"loguniform\"\n",
 		lineOf: "prior =",
-		want:   []string{`compare.free[0].prior = "loguniform" is not allowed; use one of: uniform, log-uniform (did you mean "log-uniform"?)`},
+		want:   []string{`compare.free[0].prior = "loguniform" is not allowed; use one of: uniform, log-uniform, gaussian (did you mean "log-uniform"?)`},
 	},
 	{
 		name:   "free list that is not an array of tables",

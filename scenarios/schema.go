@@ -115,12 +115,25 @@ type Stars struct {
 
 // Spin chooses the spin-down law and its parameters.
 type Spin struct {
-	Law      string    `toml:"law"`      // barnes2007 (default) | mamajek2008 | angus2015 | torque
-	Turnover string    `toml:"turnover"` // wright2018 (default) | cranmer-saar2011
-	Torque   TorqueLaw `toml:"torque"`
-	Stall    Stall     `toml:"stall"`
-	Weakened Weakened  `toml:"weakened_braking"`
-	Spots    Spots     `toml:"spots"`
+	Law              string           `toml:"law"`                // barnes2007 (default) | mamajek2008 | angus2015 | torque
+	Turnover         string           `toml:"turnover"`           // wright2018 (default) | cranmer-saar2011
+	PeriodScatterDex float64          `toml:"period_scatter_dex"` // intrinsic lognormal scatter of periods about the law, in [0, 0.5]; default 0
+	Gyro             GyroCoefficients `toml:"gyro"`               // coefficients of the empirical laws
+	Torque           TorqueLaw        `toml:"torque"`
+	Stall            Stall            `toml:"stall"`
+	Weakened         Weakened         `toml:"weakened_braking"`
+	Spots            Spots            `toml:"spots"`
+}
+
+// GyroCoefficients override the coefficients of an empirical law
+// P = a (B−V − c)^b t^n (t in Myr); 0 keeps the law's published value.
+// They exist to be fitted as nuisance parameters ([[compare.free]] with
+// prior = "gaussian", whose default width is the published uncertainty).
+type GyroCoefficients struct {
+	A float64 `toml:"a"` // default 0 (the law's)
+	B float64 `toml:"b"` // default 0 (the law's)
+	C float64 `toml:"c"` // default 0 (the law's)
+	N float64 `toml:"n"` // default 0 (the law's)
 }
 
 // TorqueLaw parameterises the wind-torque law with saturation.
@@ -177,6 +190,9 @@ type Survey struct {
 	BaselineD        float64 `toml:"baseline_d"`           // default 1400
 	MinCycles        float64 `toml:"min_cycles"`           // default 3
 	DetectionSNR     float64 `toml:"detection_snr"`        // default 10
+	DetectionSharp   float64 `toml:"detection_sharpness"`  // logistic slope of detection in ln SNR; default 4
+	ColorOffsetMag   float64 `toml:"color_offset_mag"`     // catalogue B−V zero point relative to the model's; default 0
+	ColorScale       float64 `toml:"color_scale"`          // catalogue B−V scale about B−V = 1 relative to the model's; default 1
 	PeriodScatterRel float64 `toml:"period_scatter_rel"`   // default 0.03
 	HalfAliasProb    float64 `toml:"half_alias_prob"`      // default 0.02
 	DoubleAliasProb  float64 `toml:"double_alias_prob"`    // default 0.01
@@ -277,7 +293,7 @@ type Compare struct {
 	PeriodMaxD    float64     `toml:"period_max_d"`    // default min(cuts.period_max_d, 100)
 	HeightEdgesPc []float64   `toml:"height_edges_pc"` // |z| edges for the height check; default [0, 100, 200, 300, 450, 700, 1000, 1500]
 	TemplateStars int64       `toml:"template_stars"`  // stars drawn to build templates; default 20_000_000
-	Normalisation string      `toml:"normalisation"`   // "free" (default: multinomial) | "absolute"
+	Normalisation string      `toml:"normalisation"`   // "free" (default: multinomial) | "absolute" | "per-color" (conditional on color) | "per-color-height"
 	TemplateNoise string      `toml:"template_noise"`  // "barlow-beeston-lite" (default) | "ignore"
 	Bootstrap     int         `toml:"bootstrap"`       // parametric-bootstrap replicates; default 1000
 	SplitAgeGyr   float64     `toml:"split_age_gyr"`   // young/old split for the height check; default 0 (the fitted burst age)
@@ -285,10 +301,13 @@ type Compare struct {
 	Free          []FreeParam `toml:"free"`            // parameters fitted; default: see above
 }
 
-// FreeParam is one fitted parameter, named by its scenario path.
+// FreeParam is one fitted parameter, named by its scenario path: a history
+// parameter, or a parameter of the physics or the selection fitted with the
+// history as a nuisance parameter (NuisancePaths lists which).
 type FreeParam struct {
-	Path  string  `toml:"path"`  // "history.<part>.<key>", e.g. "history.burst.age_gyr"; required
+	Path  string  `toml:"path"`  // "history.<part>.<key>" or a nuisance path such as "spin.gyro.a"; required
 	Min   float64 `toml:"min"`   // lower bound, a value the key can take; required
 	Max   float64 `toml:"max"`   // upper bound, > min; required
-	Prior string  `toml:"prior"` // "uniform" (default) | "log-uniform" (needs min > 0)
+	Prior string  `toml:"prior"` // "uniform" (default) | "log-uniform" (needs min > 0) | "gaussian" (nuisance paths only)
+	Sigma float64 `toml:"sigma"` // gaussian: width about the scenario's value; 0 = the published uncertainty where one is known
 }

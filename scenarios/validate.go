@@ -93,6 +93,11 @@ func (v *decoder) validateDisk(dk *Disk, maxAgeGyr float64) {
 func (v *decoder) validateSpin(sp *Spin) {
 	v.oneOf("spin.law", sp.Law, spinLaws)
 	v.oneOf("spin.turnover", sp.Turnover, turnovers)
+	v.inRange("spin.period_scatter_dex", sp.PeriodScatterDex, 0, true, 0.5, true, "intrinsic period scatter")
+	v.inRange("spin.gyro.a", sp.Gyro.A, 0, true, 10, true, "0 keeps the law's value")
+	v.inRange("spin.gyro.b", sp.Gyro.B, 0, true, 2, true, "0 keeps the law's value")
+	v.inRange("spin.gyro.c", sp.Gyro.C, 0, true, 1, true, "0 keeps the law's value")
+	v.inRange("spin.gyro.n", sp.Gyro.N, 0, true, 1.5, true, "0 keeps the law's value")
 
 	tq := &sp.Torque
 	v.positive("spin.torque.solar_period_d", tq.SolarPeriodD)
@@ -130,6 +135,9 @@ func (v *decoder) validateSurvey(sv *Survey) {
 	v.less("survey.cadence_d", sv.CadenceD, "survey.baseline_d", sv.BaselineD, "a baseline must hold many cadences")
 	v.atLeast("survey.min_cycles", sv.MinCycles, 1, "")
 	v.positive("survey.detection_snr", sv.DetectionSNR)
+	v.inRange("survey.detection_sharpness", sv.DetectionSharp, 0, false, 50, true, "logistic slope in ln SNR")
+	v.inRange("survey.color_offset_mag", sv.ColorOffsetMag, -0.3, true, 0.3, true, "a zero-point difference, not a new color scale")
+	v.inRange("survey.color_scale", sv.ColorScale, 0.7, true, 1.3, true, "a small stretch of the color scale")
 	v.inRange("survey.period_scatter_rel", sv.PeriodScatterRel, 0, true, 1, false, "")
 	v.inRange("survey.half_alias_prob", sv.HalfAliasProb, 0, true, 1, true, "")
 	v.inRange("survey.double_alias_prob", sv.DoubleAliasProb, 0, true, 1, true, "")

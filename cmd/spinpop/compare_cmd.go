@@ -14,6 +14,7 @@ import (
 	"spinpop/compare"
 	"spinpop/compare/stats"
 	"spinpop/model"
+	"spinpop/scenarios"
 )
 
 func runCompare(args []string, stdout, stderr io.Writer) error {
@@ -25,6 +26,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 			"the period, color and height distributions against a synthetic catalog of the scenario.", stdout)
 	cf := addCompareFlags(fs)
 	doFit := fs.Bool("fit", false, "fit the free parameters first")
+	reps := fs.Int("replicates", 200, "bootstrap replicates calibrating the goodness of fit (0: none)")
 	pos, err := parseInterleaved(fs, args)
 	if err != nil {
 		return err
@@ -39,20 +41,41 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	theta := c.burst.Default()
+	hm, err := scenarios.AsWritten(c.s, c.built.AgeEdgesGyr)
+	if err != nil {
+		return inputError{fmt.Errorf("%s: %w", path, err)}
+	}
+	theta := hm.Default()
 	label := "as written"
+	var fr compare.FitResult
 	if *doFit {
-		fr, err := compare.Fit(c.like, c.burst, compare.FitOptions{Seed: c.s.Run.Seed})
-		if err != nil {
+		if fr, err = compare.FitJoint(ctx, c.like, hm, c.nuisance, compare.FitOptions{Seed: c.s.Run.Seed}); err != nil {
 			return err
 		}
 		theta, label = fr.Theta, "fitted"
+	} else {
+		w, err := hm.Weights(theta)
+		if err != nil {
+			return err
+		}
+		fr = compare.FitResult{Theta: theta, Names: hm.Names(), Weights: w, LogL: c.like.LogL(w)}
 	}
-	w, err := c.burst.Weights(theta)
-	if err != nil {
+	w := fr.Weights
+	logL := fr.LogL
+	var gof *compare.Adequacy
+	if *reps > 0 {
+		bar := newProgressBar("goodness of fit", int64(*reps))
+		a, err := compare.GoodnessOfFit(ctx, c.like, hm, fr, compare.GoFOptions{Replicates: *reps, Seed: c.s.Run.Seed, Workers: c.workers,
+			Refit: *doFit, Nuisance: c.nuisance, Progress: func(done, _ int) { bar.Update(int64(done)) }})
+		bar.Done()
+		if err != nil {
+			return err
+		}
+		gof = &a
+	}
+	if err := c.like.UseFit(fr); err != nil {
 		return err
 	}
-	logL := c.like.LogL(w)
 	sp := c.like.Space()
 	data := c.like.Counts()
 	mu := c.like.Expected(w, nil)
@@ -66,7 +89,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	}
 
 	// Unbinned marginals against a synthetic catalog of the scenario.
-	hist, err := c.burst.History(theta)
+	hist, err := hm.History(theta)
 	if err != nil {
 		return err
 	}
@@ -107,8 +130,11 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	}
 	outputs = append(outputs, "rejected.csv", "residuals.png", "period_histograms.png", "compare.json")
 	params := map[string]float64{}
-	for i, n := range c.burst.Names() {
+	for i, n := range hm.Names() {
 		params["history."+n] = theta[i]
+	}
+	for i, n := range fr.NuisanceNames {
+		params[n] = fr.Nuisance[i]
 	}
 	out := map[string]any{
 		"tool": "spinpop", "version": version, "scenario": path, "scenario_sha256": c.res.Hash(), "data": c.dataSummary(),
@@ -116,18 +142,32 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 		"template_noise": c.s.Compare.TemplateNoise, "pearson_chi2": chi2, "bins_with_model": nb,
 		"marginal_tests": tests, "synthetic_catalog_stars": len(synth.logP), "outputs": outputs,
 	}
+	if gof != nil {
+		out["goodness_of_fit"] = adequacyJSON(*gof)
+	}
 	if err := writeJSON(filepath.Join(dir, "compare.json"), out); err != nil {
 		return err
 	}
 	if *cf.asJSON {
 		return printJSON(stdout, out)
 	}
+	if gof != nil && !gof.Adequate(0.01) {
+		fmt.Fprintf(stdout, "The scenario does not describe the catalog: deviance %.0f where its own replicates give %.0f ± %.0f (bootstrap p = %.3g, dispersion %.2f)%s.\n\n",
+			gof.Deviance, gof.ReplicateMean, gof.ReplicateSD, gof.PValue, gof.Dispersion, compare.WorstRegions(*gof))
+	}
 	printDataSummary(stdout, c.dataSummary())
 	fmt.Fprintf(stdout, "\nhistory %s:", label)
-	for i, n := range c.burst.Names() {
+	for i, n := range hm.Names() {
 		fmt.Fprintf(stdout, " history.%s = %.4g", n, theta[i])
 	}
+	for i, n := range fr.NuisanceNames {
+		fmt.Fprintf(stdout, " %s = %.4g", n, fr.Nuisance[i])
+	}
 	fmt.Fprintf(stdout, "\nln L = %.2f (%s normalisation, template noise: %s); Pearson χ² = %.1f over %d bins\n", logL, c.s.Compare.Normalisation, c.s.Compare.TemplateNoise, chi2, nb)
+	if gof != nil {
+		fmt.Fprintf(stdout, "goodness of fit: deviance %.1f against %.1f ± %.1f from %d bootstrap replicates (p = %.3g, dispersion %.2f)\n",
+			gof.Deviance, gof.ReplicateMean, gof.ReplicateSD, gof.Replicates, gof.PValue, gof.Dispersion)
+	}
 	fmt.Fprintf(stdout, "marginals against a synthetic catalog of %d stars (two-sample KS; Anderson–Darling k-sample, Scholz & Stephens 1987):\n", len(synth.logP))
 	for _, k := range []string{"log10_period", "b_v", "abs_z_pc"} {
 		if m, ok := tests[k].(map[string]any); ok {

@@ -31,6 +31,10 @@ type comparison struct {
 	like         *compare.Likelihood
 	smooth       compare.HistoryModel
 	burst        compare.HistoryModel
+	// nuisance holds the parameters of the physics and the selection in
+	// compare.free (nil when there are none); tpl then holds the templates
+	// re-observed at their scenario values.
+	nuisance     *compare.Nuisance
 	workers      int
 	setupSeconds float64
 	// Data stars left out because no template star reached their
@@ -102,6 +106,15 @@ func setupComparison(ctx context.Context, arg string, f compareFlags, stderr io.
 	if err != nil {
 		return nil, err
 	}
+	nuParams, err := scenarios.NuisanceParams(s)
+	if err != nil {
+		return nil, inputError{fmt.Errorf("%s: %w", arg, err)}
+	}
+	var margin *model.BankMargin
+	if len(nuParams) > 0 {
+		m := scenarios.BankMargin(s)
+		margin = &m
+	}
 	build := func() (*compare.Templates, error) {
 		bar := newProgressBar("templates", s.Compare.TemplateStars)
 		defer bar.Done()
@@ -111,7 +124,7 @@ func setupComparison(ctx context.Context, arg string, f compareFlags, stderr io.
 		}
 		t, err := compare.BuildTemplates(ctx, c.built.Population, ints, c.built.AgeEdgesGyr, c.space, compare.TemplateOptions{
 			Stars: s.Compare.TemplateStars, Seed: s.Run.Seed, ChunkStars: s.Run.ChunkStars, Workers: c.workers,
-			Progress: func(done, total int64) { bar.Update(done) },
+			Progress: func(done, total int64) { bar.Update(done) }, Bank: margin,
 		})
 		if err != nil {
 			return nil, err
@@ -119,9 +132,14 @@ func setupComparison(ctx context.Context, arg string, f compareFlags, stderr io.
 		t.Key = key
 		return t, nil
 	}
-	if *f.templates == "none" {
+	switch {
+	case margin != nil:
+		// Nuisance parameters need the template run's stars, which the
+		// cache does not keep: the run is made again.
 		c.tpl, err = build()
-	} else {
+	case *f.templates == "none":
+		c.tpl, err = build()
+	default:
 		c.tpl, c.tplReused, err = compare.Cached(*f.templates, key, build)
 		c.tplFile = filepath.Join(*f.templates, key+".tpl")
 	}
@@ -130,6 +148,30 @@ func setupComparison(ctx context.Context, arg string, f compareFlags, stderr io.
 			return nil, fmt.Errorf("interrupted while building templates; nothing was written")
 		}
 		return nil, fmt.Errorf("templates: %w", err)
+	}
+	if margin != nil {
+		scen := *s
+		base := c.built.Population
+		c.nuisance = &compare.Nuisance{Params: nuParams, Source: &compare.BankObserver{
+			Bank: c.tpl.Bank, Space: c.space, AgeEdgesGyr: c.built.AgeEdgesGyr,
+			BaseFractionScale: s.Stars.BinaryFractionScale, Workers: c.workers,
+			Apply: func(values []float64) (*model.Population, error) {
+				s2 := scen
+				for j, p := range nuParams {
+					if !scenarios.SetAt(&s2, p.Name, values[j]) {
+						return nil, fmt.Errorf("nuisance parameter %s is not a numeric scenario key", p.Name)
+					}
+				}
+				return scenarios.ObservingPopulation(&s2, base)
+			}}}
+		// The templates every comparison starts from: re-observed at the
+		// scenario's values, as every later set of templates will be.
+		nominal, err := c.nuisance.Templates(ctx, c.nuisance.Nominal())
+		if err != nil {
+			return nil, inputError{fmt.Errorf("%s: %w", arg, err)}
+		}
+		nominal.Key = key
+		c.tpl = nominal
 	}
 
 	spec := compare.DataSpec{
@@ -241,8 +283,9 @@ func (c *comparison) splitAge(flag float64, burst compare.FitResult) float64 {
 // heightCheck compares the young fraction against |z| with the two fitted
 // hypotheses of the burst test.
 func (c *comparison) heightCheck(split float64, smooth, burst compare.FitResult) (*compare.HeightResult, error) {
-	return compare.HeightCheck(c.tpl, c.obs, split, c.gyroAt(split), map[string][]float64{
-		"smooth history (fit)": smooth.Weights,
-		"with burst (fit)":     burst.Weights,
-	})
+	perColor := c.like.Options().Normalisation == compare.NormPerColor || c.like.Options().Normalisation == compare.NormPerColorHeight
+	return compare.HeightCheckFits(c.tpl, c.obs, split, c.gyroAt(split), map[string]compare.Prediction{
+		"smooth history (fit)": compare.PredictionOf(smooth, c.tpl),
+		"with burst (fit)":     compare.PredictionOf(burst, c.tpl),
+	}, perColor)
 }

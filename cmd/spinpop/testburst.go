@@ -72,6 +72,7 @@ func burstTest(ctx context.Context, c *comparison, replicates int) (*burstOutcom
 	tr, err := compare.BurstTest(ctx, c.like, c.smooth, c.burst, compare.TestOptions{
 		Replicates: replicates, Seed: c.s.Run.Seed, Workers: c.workers,
 		Progress: func(done, total int) { bar.Update(int64(done)) },
+		Nuisance: c.nuisance,
 	})
 	bar.Done()
 	if err != nil {
@@ -89,6 +90,11 @@ func burstTest(ctx context.Context, c *comparison, replicates int) (*burstOutcom
 			}
 		}
 		grid := linspace(lo, hi, 61)
+		// The plot's profile holds nuisance parameters at the burst fit's
+		// values; the interval of the verdict refits them.
+		if err := c.like.UseFit(tr.Burst); err != nil {
+			return nil, err
+		}
 		if out.profile, _, err = compare.Profile(c.like, c.burst, tr.AgeParam, grid); err != nil {
 			return nil, err
 		}
@@ -104,7 +110,13 @@ func burstTest(ctx context.Context, c *comparison, replicates int) (*burstOutcom
 func writeBurstOutputs(dir string, c *comparison, r *burstOutcome) error {
 	sp := c.like.Space()
 	data := c.like.Counts()
+	if err := c.like.UseFit(r.test.Smooth); err != nil {
+		return err
+	}
 	muS := c.like.Expected(r.test.Smooth.Weights, nil)
+	if err := c.like.UseFit(r.test.Burst); err != nil {
+		return err
+	}
 	muB := c.like.Expected(r.test.Burst.Weights, nil)
 	r.outputs = append(r.outputs, "rejected.csv")
 	grid, err := periodHistsDataModel(sp, data, map[string][]float64{"smooth": muS, "burst": muB}, []string{"smooth", "burst"}, 6)
@@ -155,7 +167,11 @@ func (r *burstOutcome) json(c *comparison) map[string]any {
 		for i, n := range f.Names {
 			p["history."+n] = f.Theta[i]
 		}
-		return map[string]any{"params": p, "log_l": finite(f.LogL), "converged": f.Converged, "evaluations": f.Evaluations, "age_bin_weights": finiteAll(f.Weights)}
+		for i, n := range f.NuisanceNames {
+			p[n] = f.Nuisance[i]
+		}
+		return map[string]any{"params": p, "log_l": finite(f.LogL), "log_prior": finite(f.LogPrior), "expansions": f.Rounds,
+			"converged": f.Converged, "evaluations": f.Evaluations, "age_bin_weights": finiteAll(f.Weights)}
 	}
 	prof := make([][2]float64, 0, len(r.profile))
 	for _, q := range r.profile {
@@ -178,12 +194,24 @@ func (r *burstOutcome) json(c *comparison) map[string]any {
 		"chernoff_p": finite(t.ChernoffP), "chernoff_note": t.ChernoffNote,
 		"log_bayes_factor": finite(t.LogBayesFactor), "evidence_params": t.EvidenceParams, "has_evidence": t.HasEvidence, "evidence_note": t.EvidenceNote,
 		"age_param": t.AgeParam, "age_interval": t.AgeInterval, "age_profile": prof,
-		"strength": t.Strength, "verdict": t.Verdict,
+		"strength": t.Strength, "strength_reason": t.StrengthReason, "calibration": t.Calibration, "verdict": t.Verdict,
+		"adequacy_smooth": adequacyJSON(t.AdequacySmooth), "adequacy_burst": adequacyJSON(t.AdequacyBurst),
+		"dispersion": finite(t.Dispersion), "p_value_quasi": finite(t.PValueQuasi),
+		"nuisance_params": c.nuisance.Names(),
 		"height_check": map[string]any{
 			"split_age_gyr": h.SplitAgeGyr, "z_edges_pc": finiteAll(h.ZEdgesPc), "young": h.Young, "total": h.Total,
 			"fraction": finiteAll(h.Fraction), "lo68": finiteAll(h.Lo68), "hi68": finiteAll(h.Hi68), "hypotheses": hyp,
 		},
 		"outputs": r.outputs,
+	}
+}
+
+// adequacyJSON is an Adequacy without NaN.
+func adequacyJSON(a compare.Adequacy) map[string]any {
+	return map[string]any{
+		"deviance": finite(a.Deviance), "replicate_mean": finite(a.ReplicateMean), "replicate_sd": finite(a.ReplicateSD),
+		"p_value": finite(a.PValue), "dispersion": finite(a.Dispersion), "excess": finite(a.Excess),
+		"replicates": a.Replicates, "regions": a.Regions,
 	}
 }
 
@@ -215,13 +243,31 @@ func finiteAll(x []float64) []any {
 
 func printBurstSummary(w io.Writer, r *burstOutcome) {
 	t := r.test
+	if t.Calibration == "quasi-likelihood" || t.Strength == "unreliable" {
+		fmt.Fprintf(w, "\nwarning: the models do not describe this catalog (deviance %.0f where counting noise gives %.0f ± %.0f); read the verdict at the end first\n",
+			t.AdequacyBurst.Deviance, t.AdequacyBurst.ReplicateMean, t.AdequacyBurst.ReplicateSD)
+	}
 	fmt.Fprintln(w)
 	fmt.Fprintf(w, "smooth history: ln L = %.2f (%d free parameters)\n", t.Smooth.LogL, t.KSmooth)
 	fmt.Fprintf(w, "with burst:     ln L = %.2f (%d free parameters)", t.Burst.LogL, t.KBurst)
 	for i, n := range t.Burst.Names {
-		fmt.Fprintf(w, "%s history.%s = %.4g", map[bool]string{true: ";", false: ""}[i > 0 || true], n, t.Burst.Theta[i])
+		fmt.Fprintf(w, "; history.%s = %.4g", n, t.Burst.Theta[i])
 	}
 	fmt.Fprintln(w)
+	if len(t.Burst.NuisanceNames) > 0 {
+		fmt.Fprint(w, "nuisance parameters (smooth | with burst):")
+		for i, n := range t.Burst.NuisanceNames {
+			fmt.Fprintf(w, " %s = %.4g | %.4g;", n, t.Smooth.Nuisance[i], t.Burst.Nuisance[i])
+		}
+		fmt.Fprintln(w)
+	}
+	for _, a := range []struct {
+		name string
+		a    compare.Adequacy
+	}{{"smooth history", t.AdequacySmooth}, {"with burst", t.AdequacyBurst}} {
+		fmt.Fprintf(w, "goodness of fit, %s: deviance %.1f against %.1f ± %.1f from its own replicates (p = %.3g, dispersion %.2f)\n",
+			a.name, a.a.Deviance, a.a.ReplicateMean, a.a.ReplicateSD, a.a.PValue, a.a.Dispersion)
+	}
 	fmt.Fprintf(w, "Δln L = %.2f, LR = %.2f; ΔAIC (burst − smooth) = %.1f, ΔBIC = %.1f\n", t.DeltaLogL, t.LR, t.AICBurst-t.AICSmooth, t.BICBurst-t.BICSmooth)
 	fmt.Fprintf(w, "bootstrap p = %.4g from %d replicates (%.1fσ); Chernoff asymptotic p = %.3g (%s)\n", t.PValue, t.Replicates, t.Significance, t.ChernoffP, t.ChernoffNote)
 	if t.HasEvidence {

@@ -18,11 +18,19 @@ import (
 // The fields are exported so a scenario can narrow or widen the ranges; the
 // constructors give the published coefficients.
 type GyroLaw struct {
-	LawName              string
-	A, B, C, N           float64
+	LawName    string
+	A, B, C, N float64
+	// Uncertainty holds the published 1σ uncertainties of the coefficients
+	// (a symmetric average where they are asymmetric), the default widths
+	// of their priors when they are fitted as nuisance parameters.
+	Uncertainty          Coefficients
 	MinBV, MaxBV         float64 // accepted Johnson B−V range (mag), inclusive
 	MinAgeGyr, MaxAgeGyr float64 // accepted age range (Gyr), inclusive
 }
+
+// Coefficients are the four numbers of an empirical law, or their
+// uncertainties.
+type Coefficients struct{ A, B, C, N float64 }
 
 // Age range shared by the empirical laws. The youngest calibrating clusters
 // are ~0.1 Gyr old, when the slow sequence of G dwarfs has formed
@@ -42,7 +50,12 @@ func Barnes2007() GyroLaw {
 	return GyroLaw{
 		LawName: "barnes2007",
 		A:       0.7725, B: 0.601, C: 0.4, N: 0.5189,
-		MinBV: 0.45, MaxBV: 1.6,
+		// a ± 0.011, b ± 0.024, n ± 0.0070 as published [memory]; c was
+		// held at 0.4 in the fit, so its width is a judgement (0.02 mag,
+		// the scatter of the color zero points of the calibrating
+		// clusters).
+		Uncertainty: Coefficients{A: 0.011, B: 0.024, C: 0.02, N: 0.0070},
+		MinBV:       0.45, MaxBV: 1.6,
 		MinAgeGyr: gyroMinAgeGyr, MaxAgeGyr: gyroMaxAgeGyr,
 	}
 }
@@ -56,7 +69,9 @@ func MamajekHillenbrand2008() GyroLaw {
 	return GyroLaw{
 		LawName: "mamajek2008",
 		A:       0.407, B: 0.325, C: 0.495, N: 0.566,
-		MinBV: 0.5, MaxBV: 1.4,
+		// a ± 0.021, b ± 0.024, c ± 0.010, n ± 0.008 as published [memory].
+		Uncertainty: Coefficients{A: 0.021, B: 0.024, C: 0.010, N: 0.008},
+		MinBV:       0.5, MaxBV: 1.4,
 		MinAgeGyr: gyroMinAgeGyr, MaxAgeGyr: gyroMaxAgeGyr,
 	}
 }
@@ -69,7 +84,11 @@ func Angus2015() GyroLaw {
 	return GyroLaw{
 		LawName: "angus2015",
 		A:       0.40, B: 0.31, C: 0.45, N: 0.55,
-		MinBV: 0.5, MaxBV: 1.4,
+		// a +0.3/−0.05, b +0.05/−0.02, n +0.02/−0.09 as published
+		// [memory], averaged to symmetric widths; c was held fixed, its
+		// width a judgement as for Barnes (2007).
+		Uncertainty: Coefficients{A: 0.175, B: 0.035, C: 0.02, N: 0.055},
+		MinBV:       0.5, MaxBV: 1.4,
 		MinAgeGyr: gyroMinAgeGyr, MaxAgeGyr: gyroMaxAgeGyr,
 	}
 }
