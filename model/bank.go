@@ -308,13 +308,13 @@ var fineStepDex = math.Log10(2) / 32
 
 // observer is one Observe call's shared, read-only state.
 type observer struct {
-	bank      *Bank
-	obs       *Population
-	g         Grid
-	cuts      Cuts
-	recut     bool // the bank holds stars beyond the cuts: apply them
-	sameNoise bool // the survey noise is the bank's: read the stored noise
-	baseScale float64
+	bank       *Bank
+	obs        *Population
+	g          Grid
+	cuts       Cuts
+	recut      bool // the bank holds stars beyond the cuts: apply them
+	sameNoise  bool // the survey noise is the bank's: read the stored noise
+	baseScale  float64
 	nC, nP, nZ int
 	// The fine grid: nF bins of fineStepDex from fineLo (log10 days).
 	nF     int

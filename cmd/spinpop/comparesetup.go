@@ -19,18 +19,18 @@ import (
 // run objects, templates, the observed catalog and its likelihood, and the
 // two hypotheses of the burst test.
 type comparison struct {
-	res          *scenarios.Resolved
-	path         string
-	s            *scenarios.Scenario
-	built        *scenarios.Built
-	space        compare.Space
-	tpl          *compare.Templates
-	tplReused    bool
-	tplFile      string
-	obs          *compare.Observed
-	like         *compare.Likelihood
-	smooth       compare.HistoryModel
-	burst        compare.HistoryModel
+	res       *scenarios.Resolved
+	path      string
+	s         *scenarios.Scenario
+	built     *scenarios.Built
+	space     compare.Space
+	tpl       *compare.Templates
+	tplReused bool
+	tplFile   string
+	obs       *compare.Observed
+	like      *compare.Likelihood
+	smooth    compare.HistoryModel
+	burst     compare.HistoryModel
 	// nuisance holds the parameters of the physics and the selection in
 	// compare.free (nil when there are none); tpl then holds the templates
 	// re-observed at their scenario values.
