@@ -33,6 +33,9 @@ type TestOptions struct {
 	// Nuisance, when not nil, is fitted together with the history under
 	// both hypotheses, in the data's fits and in every replicate's.
 	Nuisance *Nuisance
+	// Stage, if not nil, is told what the test is doing before the
+	// bootstrap (the fits with nuisance parameters take a while).
+	Stage func(msg string)
 }
 
 // BurstResult is the outcome of BurstTest.
@@ -137,11 +140,17 @@ func BurstTest(ctx context.Context, like *Likelihood, smooth, burst HistoryModel
 		opts.ReplicateStarts = 2
 	}
 	nu := opts.Nuisance
-	f0, err := FitJoint(ctx, like, smooth, nu, FitOptions{Starts: opts.FitStarts, Seed: opts.Seed})
+	stage := func(prefix string) func(string) {
+		if opts.Stage == nil {
+			return nil
+		}
+		return func(msg string) { opts.Stage(prefix + msg) }
+	}
+	f0, err := FitJoint(ctx, like, smooth, nu, FitOptions{Starts: opts.FitStarts, Seed: opts.Seed, Stage: stage("smooth history, ")})
 	if err != nil {
 		return nil, fmt.Errorf("compare: smooth fit: %w", err)
 	}
-	f1, err := FitJoint(ctx, like, burst, nu, FitOptions{Starts: opts.FitStarts, Seed: opts.Seed, Init: nestedStarts(smooth, burst, f0.Theta), NuisanceStart: f0.Nuisance})
+	f1, err := FitJoint(ctx, like, burst, nu, FitOptions{Starts: opts.FitStarts, Seed: opts.Seed, Init: nestedStarts(smooth, burst, f0.Theta), NuisanceStart: f0.Nuisance, Stage: stage("with burst, ")})
 	if err != nil {
 		return nil, fmt.Errorf("compare: burst fit: %w", err)
 	}

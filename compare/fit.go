@@ -26,6 +26,9 @@ type FitOptions struct {
 	// NuisanceStart, for FitJoint, is where the nuisance parameters start
 	// and the first expansion is centred (nil: their nominal values).
 	NuisanceStart []float64
+	// Stage, if not nil, is told what a long fit is doing (FitJoint: one
+	// line per expansion), for progress reports.
+	Stage func(msg string)
 }
 
 // FitResult is a maximum-likelihood fit.

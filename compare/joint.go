@@ -67,6 +67,9 @@ func FitJoint(ctx context.Context, like *Likelihood, m HistoryModel, nu *Nuisanc
 		if err := ctx.Err(); err != nil {
 			return FitResult{}, err
 		}
+		if opts.Stage != nil {
+			opts.Stage(fmt.Sprintf("expansion %d: ln L = %.2f at %s", round, best.LogL, nu.describe(centre)))
+		}
 		if mo, err = newMorph(ctx, like, nu, centre, steps); err != nil {
 			return FitResult{}, err
 		}

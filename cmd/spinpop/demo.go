@@ -66,7 +66,7 @@ func runDemo(args []string, stdout, stderr io.Writer) error {
 	if *replicates >= 0 {
 		b = *replicates
 	}
-	res, err := burstTest(ctx, c, b)
+	res, err := burstTest(ctx, c, b, stderr)
 	if err != nil {
 		return err
 	}

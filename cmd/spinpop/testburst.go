@@ -42,7 +42,7 @@ func runTestBurst(args []string, stdout, stderr io.Writer) error {
 	if *reps >= 0 {
 		b = *reps
 	}
-	res, err := burstTest(ctx, c, b)
+	res, err := burstTest(ctx, c, b, stderr)
 	if err != nil {
 		return err
 	}
@@ -67,12 +67,13 @@ type burstOutcome struct {
 	outputs []string
 }
 
-func burstTest(ctx context.Context, c *comparison, replicates int) (*burstOutcome, error) {
+func burstTest(ctx context.Context, c *comparison, replicates int, stderr io.Writer) (*burstOutcome, error) {
 	bar := newProgressBar("bootstrap", int64(max(replicates, 1)))
 	tr, err := compare.BurstTest(ctx, c.like, c.smooth, c.burst, compare.TestOptions{
 		Replicates: replicates, Seed: c.s.Run.Seed, Workers: c.workers,
 		Progress: func(done, total int) { bar.Update(int64(done)) },
 		Nuisance: c.nuisance,
+		Stage:    func(msg string) { fmt.Fprintf(stderr, "fit: %s\n", msg) },
 	})
 	bar.Done()
 	if err != nil {
