@@ -33,10 +33,17 @@ type Adequacy struct {
 	Deviance      float64 `json:"deviance"`
 	ReplicateMean float64 `json:"replicate_mean"`
 	ReplicateSD   float64 `json:"replicate_sd"`
-	PValue        float64 `json:"p_value"`    // (1 + #{D* ≥ D})/(1 + B)
-	Dispersion    float64 `json:"dispersion"` // φ̂ = max(1, D/mean(D*))
-	Excess        float64 `json:"excess"`     // D − mean(D*)
-	Replicates    int     `json:"replicates"`
+	// PValue is (1 + #{D* ≥ D})/(1 + B) when some replicate reaches D;
+	// when none does it is the normal tail 1 − Φ((D − mean D*)/sd D*),
+	// which, unlike 1/(1 + B), does not stop at the number of replicates
+	// (a deviance is a sum over many bins, so its bootstrap distribution
+	// is close to normal). PValueNormal keeps the normal tail always.
+	PValue       float64 `json:"p_value"`
+	PValueNormal float64 `json:"p_value_normal"`
+	Exceeded     int     `json:"replicates_exceeding"` // #{D* ≥ D}
+	Dispersion   float64 `json:"dispersion"`           // φ̂ = max(1, D/mean(D*))
+	Excess       float64 `json:"excess"`               // D − mean(D*)
+	Replicates   int     `json:"replicates"`
 	// Regions splits D and mean(D*) by colour column, period band and
 	// (3-D comparisons) height band, largest excess first: where the misfit
 	// lives.
@@ -163,12 +170,17 @@ func newAdequacy(data devianceRecord, reps []devianceRecord, regs []region, coun
 		}
 	}
 	b := float64(len(reps))
+	a.Exceeded = ge
 	if b > 0 {
 		a.ReplicateMean = s / b
 		a.ReplicateSD = math.Sqrt(math.Max(0, s2/b-a.ReplicateMean*a.ReplicateMean))
 		a.PValue = (1 + float64(ge)) / (1 + b)
+		a.PValueNormal = 0.5 * math.Erfc((a.Deviance-a.ReplicateMean)/(a.ReplicateSD*math.Sqrt2))
+		if ge == 0 && a.ReplicateSD > 0 {
+			a.PValue = math.Min(a.PValue, a.PValueNormal)
+		}
 	} else {
-		a.ReplicateMean, a.PValue = math.NaN(), math.NaN()
+		a.ReplicateMean, a.PValue, a.PValueNormal = math.NaN(), math.NaN(), math.NaN()
 	}
 	a.Excess = a.Deviance - a.ReplicateMean
 	a.Dispersion = 1
@@ -234,6 +246,7 @@ func GoodnessOfFit(ctx context.Context, like *Likelihood, m HistoryModel, f FitR
 	}
 	mu := like.Expected(f.Weights, nil)
 	reps := make([]devianceRecord, opts.Replicates)
+	like.markShared()
 	err = parallelReplicates(ctx, opts.Replicates, opts.Workers, opts.Progress, func(i int, counts []float64) error {
 		drawLikeMock(counts, mu, like, replicateStream(opts.Seed, i))
 		l, err := like.withCounts(counts, false)

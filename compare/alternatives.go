@@ -154,6 +154,9 @@ func CompareAlternatives(ctx context.Context, alts []Alternative, opts AltOption
 			base := doneBefore
 			progress = func(done, _ int) { opts.Progress(base+done, total) }
 		}
+		for _, b := range alts {
+			b.Like.markShared()
+		}
 		err := parallelReplicates(ctx, opts.Replicates, opts.Workers, progress, func(i int, counts []float64) error {
 			drawLikeMock(counts, mu, a.Like, altStream(opts.Seed, h, i))
 			row := make([]float64, H)

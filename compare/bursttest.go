@@ -300,6 +300,7 @@ func bootstrapPairs(ctx context.Context, like *Likelihood, smooth, burst History
 	}
 	mu := like.Expected(f0.Weights, nil)
 	out := make([]replicate, opts.Replicates)
+	like.markShared()
 	err := parallelReplicates(ctx, opts.Replicates, opts.Workers, opts.Progress, func(i int, counts []float64) error {
 		drawLikeMock(counts, mu, like, replicateStream(opts.Seed, i))
 		r, err := refitPair(like, counts, smooth, burst, f0, f1, regs, opts)

@@ -176,7 +176,7 @@ func newObjective(like *Likelihood, m HistoryModel, nu *Nuisance, mo *morph) *ob
 // setNuisance puts the templates at nuisance values v into the likelihood.
 func (o *objective) setNuisance(v []float64) {
 	copy(o.nuVals, v)
-	o.mo.apply(o.nuVals, o.rows, o.clamped)
+	o.mo.apply(o.nuVals, o.rows, o.clamped, o.scratch)
 	o.like.setRows(o.rows, o.mo.var0)
 	o.lastX = nil
 }
@@ -228,7 +228,7 @@ func (o *objective) eval(x []float64) {
 	}
 	if o.mo != nil {
 		nuisanceFromInternal(o.nu, x[d:], o.nuVals, o.dnu)
-		o.mo.apply(o.nuVals, o.rows, o.clamped)
+		o.mo.apply(o.nuVals, o.rows, o.clamped, o.scratch)
 		o.like.setRows(o.rows, o.mo.var0)
 	}
 	w, err := o.m.Weights(o.theta)

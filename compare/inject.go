@@ -163,6 +163,7 @@ func InjectRecover(ctx context.Context, tpl *Templates, opts LikeOptions, smooth
 		covered    bool
 	}
 	out := make([]outcome, len(jobs))
+	base.markShared()
 	err = parallelReplicates(ctx, len(jobs), sweep.Workers, sweep.Progress, func(j int, counts []float64) error {
 		jb := jobs[j]
 		seed := sweep.Seed ^ [3]uint64{0x6e756c6c, 0x66616c73, 0x696e6a65}[jb.role]

@@ -212,7 +212,7 @@ func useTemplates(like *Likelihood, f FitResult, base *Templates) error {
 	switch {
 	case f.morph != nil:
 		rows := make([]float64, like.nb*like.k)
-		f.morph.apply(f.Nuisance, rows, nil)
+		f.morph.apply(f.Nuisance, rows, nil, nil)
 		like.setRows(rows, f.morph.var0)
 		return nil
 	case f.Templates != nil:

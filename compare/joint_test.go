@@ -127,7 +127,7 @@ func TestMorphInterpolates(t *testing.T) {
 	require.NoError(t, err)
 	rows := make([]float64, len(mo.t0))
 	for _, v := range [][]float64{{0.7725 + 0.05, 0}, {0.7725 + 0.025, 0}, {0.7725, -0.01}} {
-		mo.apply(v, rows, nil)
+		mo.apply(v, rows, nil, nil)
 		exact, err := nu.Templates(context.Background(), v)
 		require.NoError(t, err)
 		want, _, err := like.rowsOf(exact)

@@ -295,12 +295,20 @@ func (l *Likelihood) withCounts(counts []float64, check bool) (*Likelihood, erro
 	c := &Likelihood{opts: l.opts, space: l.space, k: l.k, nb: l.nb, rows: l.rows, varRows: l.varRows,
 		colSum: l.colSum, free: l.free, bb: l.bb, ng: l.ng, group: l.group, grpSum: l.grpSum}
 	c.sharedSums = true
-	l.owned, l.sharedSums = false, true // shared now: either copies before it writes
+	if l.owned || !l.sharedSums {
+		l.markShared()
+	}
 	if err := c.setCounts(counts, check); err != nil {
 		return nil, err
 	}
 	return c, nil
 }
+
+// markShared records that the receiver's templates are shared from now on,
+// so that either side copies them before writing. Parallel code that
+// makes copies with withCounts calls it first, so that the copies only
+// read the receiver.
+func (l *Likelihood) markShared() { l.owned, l.sharedSums = false, true }
 
 // SetTemplates replaces the templates (same space, heights and age bins as
 // the ones the Likelihood was made with; the data stay). Used when the

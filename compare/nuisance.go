@@ -197,13 +197,22 @@ func (n *Nuisance) describe(values []float64) string {
 // β_j(x_j) b_j with x_j = ν_j − centre_j, β_j = x_j² between the two
 // side points and continued linearly beyond them.
 type morph struct {
-	centre   []float64
-	lo, hi   []float64 // the side points' distances below and above the centre (≥ 0)
-	t0, var0 []float64 // bins-major templates and variances at the centre
-	a, b     [][]float64
-	exact    *Templates // the centre's templates, as made
-	nb, k    int
-	sides    []sidePoint // the side points' values and templates
+	centre []float64
+	lo, hi []float64   // the side points' distances below and above the centre (≥ 0)
+	t0     []float64   // bins-major templates at the centre
+	var0   []float64   // and their variances
+	a, b   [][]float64 // the expansion's coefficients, dense until compact
+	exact  *Templates  // the centre's templates, as made
+	nb, k  int
+	sides  []sidePoint // the side points' values and templates
+
+	// The expansion is kept only where it is not zero — most (bin, age)
+	// entries of a template set are empty, and apply runs for every
+	// likelihood evaluation of a fit: nz lists the bins-major entries any
+	// of t0, a_j, b_j has, and t0c, ac[j], bc[j] their values there.
+	nz     []int32
+	t0c    []float64
+	ac, bc [][]float64
 }
 
 // sidePoint is one side point of an expansion: the nuisance values and the
@@ -227,7 +236,7 @@ func newMorph(ctx context.Context, like *Likelihood, nu *Nuisance, centre, steps
 	}
 	J := nu.Dim()
 	mo.lo, mo.hi = make([]float64, J), make([]float64, J)
-	mo.a, mo.b = make([][]float64, J), make([][]float64, J)
+	mo.a, mo.b = make([][]float64, J), make([][]float64, J) // dense until compact
 	for j, p := range nu.Params {
 		d := p.step()
 		if steps != nil {
@@ -263,7 +272,34 @@ func newMorph(ctx context.Context, like *Likelihood, nu *Nuisance, centre, steps
 		}
 		mo.a[j], mo.b[j] = a, b
 	}
+	mo.compact()
 	return mo, nil
+}
+
+// compact keeps the expansion's nonzero entries (see morph).
+func (mo *morph) compact() {
+	for i, v := range mo.t0 {
+		keep := v != 0
+		for j := range mo.a {
+			keep = keep || mo.a[j][i] != 0 || mo.b[j][i] != 0
+		}
+		if keep {
+			mo.nz = append(mo.nz, int32(i))
+		}
+	}
+	pick := func(x []float64) []float64 {
+		out := make([]float64, len(mo.nz))
+		for q, i := range mo.nz {
+			out[q] = x[i]
+		}
+		return out
+	}
+	mo.t0c = pick(mo.t0)
+	mo.ac, mo.bc = make([][]float64, len(mo.a)), make([][]float64, len(mo.b))
+	for j := range mo.a {
+		mo.ac[j], mo.bc[j] = pick(mo.a[j]), pick(mo.b[j])
+	}
+	mo.a, mo.b = nil, nil // the dense copies are not needed again
 }
 
 // side returns the bins-major templates with parameter j at v.
@@ -293,50 +329,60 @@ func (mo *morph) beta(j int, x float64) (b, db float64) {
 
 // apply writes the templates at values into dst (bins-major), clamped at
 // zero; clamped marks the entries the clamp changed (their derivative is
-// zero), when not nil.
-func (mo *morph) apply(values, dst []float64, clamped []bool) {
-	copy(dst, mo.t0)
+// zero), when not nil. Entries outside the expansion's nonzero set are
+// zero in every template set; apply writes them as zero. scratch (nil, or
+// at least len(nz) long) is the caller's: a morph is shared, read-only, by
+// the goroutines of a bootstrap.
+func (mo *morph) apply(values, dst []float64, clamped []bool, scratch []float64) {
+	n := len(mo.nz)
+	if cap(scratch) < n {
+		scratch = make([]float64, n)
+	}
+	x := scratch[:n]
+	copy(x, mo.t0c)
 	for j, v := range values {
-		x := v - mo.centre[j]
-		if x == 0 {
+		d := v - mo.centre[j]
+		if d == 0 {
 			continue
 		}
-		bj, _ := mo.beta(j, x)
-		floats.AddScaled(dst, x, mo.a[j])
-		floats.AddScaled(dst, bj, mo.b[j])
+		bj, _ := mo.beta(j, d)
+		floats.AddScaled(x, d, mo.ac[j])
+		floats.AddScaled(x, bj, mo.bc[j])
 	}
-	for i, v := range dst {
-		neg := v < 0
-		if neg {
-			dst[i] = 0
+	clear(dst)
+	if clamped != nil {
+		clear(clamped)
+	}
+	for q, i := range mo.nz {
+		v := x[q]
+		if v < 0 {
+			v = 0
+			if clamped != nil {
+				clamped[i] = true
+			}
 		}
-		if clamped != nil {
-			clamped[i] = neg
-		}
+		dst[i] = v
 	}
 }
 
 // gradient adds to g[j] the derivative of ln L with respect to values[j],
 // Σ_ik dm_i w_k ∂rows_ik/∂ν_j over the entries the clamp left alone, using
-// c (len nb·k) as scratch.
+// c (at least len(nz)) as scratch.
 func (mo *morph) gradient(values, w, dm []float64, clamped []bool, c, g []float64) {
 	k := mo.k
-	for i, d := range dm {
-		row := c[i*k : (i+1)*k]
-		for j, wj := range w {
-			row[j] = d * wj
+	c = c[:len(mo.nz)]
+	for q, i := range mo.nz {
+		if clamped[i] {
+			c[q] = 0
+			continue
 		}
-	}
-	for i, cl := range clamped {
-		if cl {
-			c[i] = 0
-		}
+		c[q] = dm[int(i)/k] * w[int(i)%k]
 	}
 	for j, v := range values {
 		_, db := mo.beta(j, v-mo.centre[j])
-		s := floats.Dot(c, mo.a[j])
+		s := floats.Dot(c, mo.ac[j])
 		if db != 0 {
-			s += db * floats.Dot(c, mo.b[j])
+			s += db * floats.Dot(c, mo.bc[j])
 		}
 		g[j] += s
 	}

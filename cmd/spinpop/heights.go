@@ -39,11 +39,11 @@ func runHeights(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	fs0, err := compare.Fit(c.like, c.smooth, compare.FitOptions{Seed: c.s.Run.Seed})
+	fs0, err := compare.FitJoint(ctx, c.like, c.smooth, c.nuisance, compare.FitOptions{Seed: c.s.Run.Seed})
 	if err != nil {
 		return err
 	}
-	fb, err := compare.Fit(c.like, c.burst, compare.FitOptions{Seed: c.s.Run.Seed})
+	fb, err := compare.FitJoint(ctx, c.like, c.burst, c.nuisance, compare.FitOptions{Seed: c.s.Run.Seed, NuisanceStart: fs0.Nuisance})
 	if err != nil {
 		return err
 	}

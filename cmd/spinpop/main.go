@@ -49,6 +49,7 @@ func commands() []command {
 		{"laws", "the same population under each spin-down law, side by side", runLaws},
 		{"compare", "score a scenario against its observed catalog: likelihood, residuals, marginal tests", runCompare},
 		{"test-burst", "does the catalog demand a burst? likelihood ratio, bootstrap, evidence, height check", runTestBurst},
+		{"test-alternatives", "which explanation does the catalog prefer? burst, stalled spin-down, both, neither — each fitted, bootstrap in both directions", runTestAlternatives},
 		{"heights", "young fraction against height above the plane, data against each hypothesis", runHeights},
 		{"inject", "injection–recovery: how often the burst test finds bursts of each age and size in a catalog like yours", runInject},
 		{"posterior", "posterior of the burst model's free parameters: corner plot, star-formation history band, chain", runPosterior},
@@ -75,6 +76,9 @@ func run(args []string, stdout, stderr io.Writer) int {
 	}
 	for _, c := range commands() {
 		if c.name == args[0] {
+			if stopProfile := startProfile(stderr); stopProfile != nil {
+				defer stopProfile()
+			}
 			err := c.run(args[1:], stdout, stderr)
 			return exitCode(err, stderr)
 		}
