@@ -61,13 +61,11 @@ func Generate(cfg Config, seed uint64) ([]Star, Tally, error) {
 		// Age and place together, by rejection from the cone volume: the
 		// density of stars of age τ is SFR(τ) · exp(−(R−R0)/Rd) · exp(−|z|/h)/(2h).
 		age := cfg.History.SampleAgeGyr(r)
-		l, b := field.draw(r)
+		u := field.draw(r)
 		dist := sv.DistMaxPc * math.Cbrt(r.Float64())
-		cl, sl, cb, sb := math.Cos(l*deg), math.Sin(l*deg), math.Cos(b*deg), math.Sin(b*deg)
-		x, y := r0Pc-dist*cb*cl, dist*cb*sl
-		rPc, z := math.Hypot(x, y), zSun+dist*sb
+		rPc, z := math.Hypot(r0Pc-dist*u[0], dist*u[1]), zSun+dist*u[2]
 		h := scaleHeight(age)
-		w := math.Exp(-(rPc-r0Pc)/rdPc) * cfg.ScaleHeight0Pc / h * math.Exp(-math.Abs(z)/h)
+		w := cfg.ScaleHeight0Pc / h * math.Exp(-(rPc-r0Pc)/rdPc-math.Abs(z)/h)
 		if r.Float64()*radialMax >= w {
 			continue
 		}
@@ -106,6 +104,7 @@ func Generate(cfg Config, seed uint64) ([]Star, Tally, error) {
 		if plx <= 0 {
 			continue // a catalogue with a usable distance needs a positive parallax
 		}
+		l, b := angles(u)
 		ra, dec := GalacticToICRS(l, b)
 		stars = append(stars, Star{
 			PeriodD: meas, BV: bv, VMag: vMag, ParallaxMas: plx,

@@ -111,7 +111,7 @@ func TestConeIsUniformInSolidAngle(t *testing.T) {
 	r := rand.New(rand.NewPCG(3, 4))
 	seps := make([]float64, 20000)
 	for i := range seps {
-		l, b := k.draw(r)
+		l, b := angles(k.draw(r))
 		seps[i] = AngularSeparationDeg(58, 21, l, b)
 		require.LessOrEqual(t, seps[i], 11+1e-9)
 	}

@@ -94,13 +94,15 @@ func newCone(lDeg, bDeg, radiusDeg float64) cone {
 	return cone{centre: c, e1: e1, e2: cross(c, e1), cosRadius: math.Cos(radiusDeg * deg)}
 }
 
-func (k cone) draw(r *rand.Rand) (lDeg, bDeg float64) {
+// draw returns a unit vector (Galactic Cartesian: x toward l = 0, z toward
+// the north Galactic pole) uniform in solid angle within the cone.
+func (k cone) draw(r *rand.Rand) [3]float64 {
 	ct := 1 - r.Float64()*(1-k.cosRadius)
-	st, phi := math.Sqrt(1-ct*ct), 2*math.Pi*r.Float64()
-	cp, sp := math.Cos(phi), math.Sin(phi)
+	st := math.Sqrt(1 - ct*ct)
+	sp, cp := math.Sincos(2 * math.Pi * r.Float64())
 	var v [3]float64
 	for i := range v {
 		v[i] = ct*k.centre[i] + st*(cp*k.e1[i]+sp*k.e2[i])
 	}
-	return angles(v)
+	return v
 }
