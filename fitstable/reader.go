@@ -513,6 +513,11 @@ func (rd *Reader) openTable(h *hdu) error {
 	if offset != naxis1 {
 		return rd.keyErr(h, "NAXIS1", "NAXIS1 = %d bytes per row, but the %d columns' TFORMn add up to %d: NAXIS1 and the TFORMn disagree", naxis1, nf, offset)
 	}
+	if naxis1 == 0 && t.Rows > 0 {
+		e := rd.keyErr(h, "NAXIS1", "NAXIS1 = 0: the table's %d rows hold no bytes, so there are no values to read", t.Rows).(*Error)
+		e.Err = ErrUnsupported
+		return e
+	}
 	return nil
 }
 

@@ -262,7 +262,7 @@ func (w *Writer) setNull(row []byte, c *wcol) {
 		be.PutUint64(b, math.Float64bits(math.NaN()))
 	case 'A':
 		for i := range b {
-			b[i] = ' '
+			b[i] = 0
 		}
 	}
 }
@@ -356,7 +356,9 @@ func (w *Writer) SetBool(i int, v bool) {
 }
 
 // SetString sets string column i of the current row. The string must be
-// printable ASCII and fit the column's width; it is padded with spaces.
+// printable ASCII and fit the column's width; a shorter one is ended by
+// NUL bytes (§7.3.3.1), as astropy writes them, so that readers which keep
+// trailing spaces read it back unchanged.
 func (w *Writer) SetString(i int, s string) {
 	c := w.col(i, "A")
 	if c == nil {
@@ -375,7 +377,7 @@ func (w *Writer) SetString(i int, s string) {
 	b := w.row[c.offset : c.offset+c.width]
 	n := copy(b, s)
 	for j := n; j < len(b); j++ {
-		b[j] = ' '
+		b[j] = 0
 	}
 }
 
