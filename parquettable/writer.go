@@ -49,7 +49,6 @@ type Writer struct {
 
 const writeBatch = 1024
 
-
 var goType = map[Type]reflect.Type{
 	Bool: reflect.TypeFor[bool](), Int32: reflect.TypeFor[int32](), Int64: reflect.TypeFor[int64](),
 	Float32: reflect.TypeFor[float32](), Float64: reflect.TypeFor[float64](), String: reflect.TypeFor[string](),
