@@ -10,7 +10,6 @@ import (
 	"fmt"
 	"hash"
 	"io"
-	"math"
 	"os"
 	"strconv"
 )
@@ -333,6 +332,7 @@ func truncate(s string, n int) string {
 // readRows streams the data rows.
 func (rd *reader) readRows(p *plan) error {
 	ncols := len(rd.sum.Columns)
+	var tr textRow
 	first := true
 	for {
 		line, err := rd.next()
@@ -373,7 +373,8 @@ func (rd *reader) readRows(p *plan) error {
 			}
 			continue
 		}
-		s, bad, reason := p.convert(fields)
+		tr.fields = fields
+		s, bad, reason := p.convert(&tr)
 		if bad != nil {
 			if err := rd.reject(num, reason, bad.column, string(fields[bad.index]), line); err != nil {
 				return err
@@ -399,109 +400,4 @@ func (rd *reader) reject(line int, why Reason, column, value string, raw []byte)
 		return fmt.Errorf("%s:%d: reject sink: %w", rd.name, line, err)
 	}
 	return nil
-}
-
-// nullMarkers are values that mean "no value" in common table writers.
-var nullMarkers = [][]byte{[]byte("NA"), []byte("N/A"), []byte("na"), []byte("null"),
-	[]byte("NULL"), []byte("None"), []byte("--")}
-
-// parseValue reads one numeric field.
-func parseValue(b []byte) (float64, Reason, bool) {
-	b = bytes.TrimSpace(b)
-	if len(b) == 0 {
-		return 0, ReasonMissing, false
-	}
-	for _, m := range nullMarkers {
-		if bytes.Equal(b, m) {
-			return 0, ReasonMissing, false
-		}
-	}
-	v, err := strconv.ParseFloat(string(b), 64)
-	if err != nil && !errors.Is(err, strconv.ErrRange) {
-		return 0, ReasonNotNumeric, false
-	}
-	if math.IsNaN(v) || math.IsInf(v, 0) {
-		return 0, ReasonNotFinite, false
-	}
-	return v, 0, true
-}
-
-// convert turns the mapped fields of one row into a Star, or reports the
-// first field that makes the row unusable.
-func (p *plan) convert(fields [][]byte) (Star, *fieldRef, Reason) {
-	s := Star{DistPc: math.NaN(), LDeg: math.NaN(), BDeg: math.NaN()}
-	get := func(f *fieldRef) (float64, Reason, bool) { return parseValue(fields[f.index]) }
-
-	var ok bool
-	var why Reason
-	if s.PeriodD, why, ok = get(&p.period); !ok {
-		return s, &p.period, why
-	}
-	if s.PeriodD <= 0 {
-		return s, &p.period, ReasonPeriod
-	}
-	if s.Color, why, ok = get(&p.color); !ok {
-		return s, &p.color, why
-	}
-	if p.absMag != nil {
-		if s.AbsMag, why, ok = get(p.absMag); !ok {
-			return s, p.absMag, why
-		}
-	}
-	if p.height != nil {
-		if s.ZPc, why, ok = get(p.height); !ok {
-			return s, p.height, why
-		}
-	}
-	var appMag float64
-	if p.appMag != nil && p.absMag == nil {
-		if appMag, why, ok = get(p.appMag); !ok {
-			return s, p.appMag, why
-		}
-	}
-	if p.parallax != nil {
-		plx, why, ok := get(p.parallax)
-		if !ok {
-			return s, p.parallax, why
-		}
-		if plx <= 0 {
-			return s, p.parallax, ReasonParallax
-		}
-		s.DistPc = 1000 / plx
-	}
-	switch {
-	case p.l != nil:
-		l, why, ok := get(p.l)
-		if !ok {
-			return s, p.l, why
-		}
-		b, why, ok := get(p.b)
-		if !ok {
-			return s, p.b, why
-		}
-		if b < -90 || b > 90 {
-			return s, p.b, ReasonPosition
-		}
-		s.LDeg, s.BDeg = math.Mod(math.Mod(l, 360)+360, 360), b
-	case p.ra != nil:
-		ra, why, ok := get(p.ra)
-		if !ok {
-			return s, p.ra, why
-		}
-		dec, why, ok := get(p.dec)
-		if !ok {
-			return s, p.dec, why
-		}
-		if dec < -90 || dec > 90 {
-			return s, p.dec, ReasonPosition
-		}
-		s.LDeg, s.BDeg = ICRSToGalactic(ra, dec)
-	}
-	if p.absMag == nil {
-		s.AbsMag = appMag - 5*math.Log10(s.DistPc/10)
-	}
-	if p.height == nil {
-		s.ZPc = s.DistPc*math.Sin(s.BDeg*math.Pi/180) + p.zSunPc
-	}
-	return s, nil, 0
 }
