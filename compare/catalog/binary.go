@@ -204,4 +204,3 @@ func (rd *reader) randomAccess(raw *bufio.Reader) (io.ReaderAt, int64, func(), e
 	}
 	return tmp, size, cleanup, nil
 }
-

@@ -45,9 +45,9 @@ type Summary struct {
 	HDU         int    // FITS: the HDU read (1 is the first extension)
 	ExtName     string // FITS: its EXTNAME
 	RowGroups   int    // Parquet: row groups in the file
-	Compressed  bool // gzip, detected from the first two bytes
-	Delimiter   byte // CSV and ECSV
-	HeaderLine  int  // CSV and ECSV: line of the column-name row
+	Compressed  bool   // gzip, detected from the first two bytes
+	Delimiter   byte   // CSV and ECSV
+	HeaderLine  int    // CSV and ECSV: line of the column-name row
 	Columns     []Column
 	Rows        int // data rows seen, accepted or rejected
 	Accepted    int
@@ -130,8 +130,8 @@ type reader struct {
 	// rather than from hr.
 	hashed bool
 	lr     lineReader
-	sp   splitter
-	sum  Summary
+	sp     splitter
+	sum    Summary
 }
 
 func (rd *reader) errorf(line int, sentinel error, format string, args ...any) error {
