@@ -130,6 +130,9 @@ func (d *decoder) value(p string, v any, rv reflect.Value) {
 		}
 		d.structValue(p, m, rv)
 	case reflect.String:
+		if n, isInt := v.(int64); isInt && p == "data.extension" {
+			v = strconv.FormatInt(n, 10) // an extension may be given by number
+		}
 		s, ok := v.(string)
 		if !ok {
 			d.wrongType(p, "a string", v)

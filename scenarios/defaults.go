@@ -121,6 +121,7 @@ gyrochrone_ages_gyr = [0.3, 0.6, 1.0, 2.0, 4.0]
 file = ""
 sha256 = ""
 format = "auto"
+extension = ""
 
 [data.columns]                   # "" = the catalog has no such column
 period_d = "period_d"

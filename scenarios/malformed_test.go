@@ -272,7 +272,25 @@ var malformedCases = []malformedCase{
 		name:   "unknown data format",
 		text:   minimal + "[data]\nfile = \"c.csv\"\nformat = \"tsv\"\n[data.columns]\nabs_mag_v = \"mv\"\nz_pc = \"z\"\n",
 		lineOf: "format",
-		want:   []string{`data.format = "tsv" is not allowed; use one of: auto, csv, ecsv`},
+		want:   []string{`data.format = "tsv" is not allowed; use one of: auto, csv, ecsv, fits, parquet`},
+	},
+	{
+		name:   "FITS extension for a CSV file",
+		text:   minimal + "[data]\nfile = \"c.csv\"\nformat = \"csv\"\nextension = \"STARS\"\n[data.columns]\nabs_mag_v = \"mv\"\nz_pc = \"z\"\n",
+		lineOf: "extension",
+		want:   []string{`data.extension = "STARS" chooses a FITS extension, but data.format = "csv"`},
+	},
+	{
+		name:   "FITS extension number 0",
+		text:   minimal + "[data]\nfile = \"c.fits\"\nextension = 0\n[data.columns]\nabs_mag_v = \"mv\"\nz_pc = \"z\"\n",
+		lineOf: "extension",
+		want:   []string{`data.extension = "0": extensions are numbered from 1`},
+	},
+	{
+		name:   "FITS extension without a file",
+		text:   minimal + "[data]\nextension = \"STARS\"\n",
+		lineOf: "extension",
+		want:   []string{"data.extension is set but data.file is empty"},
 	},
 	{
 		name:   "columns that give neither magnitude nor height",

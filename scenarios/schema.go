@@ -237,10 +237,13 @@ type Output struct {
 // file. Loading a scenario resolves the file's path (Resolved.DataPath)
 // but does not open it.
 type Data struct {
-	File    string      `toml:"file"`    // path relative to the scenario file that names it; default "" (no data)
-	SHA256  string      `toml:"sha256"`  // optional: hex SHA-256 the file must have (64 digits); default ""
-	Format  string      `toml:"format"`  // "auto" (default: by content) | "csv" | "ecsv"
-	Columns DataColumns `toml:"columns"` // column names in the file
+	File   string `toml:"file"`   // path relative to the scenario file that names it; default "" (no data)
+	SHA256 string `toml:"sha256"` // optional: hex SHA-256 the file must have (64 digits); default ""
+	Format string `toml:"format"` // "auto" (default: by content) | "csv" | "ecsv" | "fits" | "parquet"
+	// FITS only: the binary-table extension to read, by EXTNAME ("STARS") or
+	// by number (2 or "2"; 1 is the first extension after the primary HDU).
+	Extension string      `toml:"extension"` // default "" (the first binary table)
+	Columns   DataColumns `toml:"columns"`   // column names in the file
 }
 
 // DataColumns maps quantities to column names. Empty means not given.

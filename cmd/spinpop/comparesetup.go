@@ -134,6 +134,7 @@ func setupComparison(ctx context.Context, arg string, f compareFlags, stderr io.
 
 	spec := compare.DataSpec{
 		Path: res.DataPath, SHA256: s.Data.SHA256, Mapping: scenarios.Mapping(s), SunZPc: s.Disk.SunHeightPc,
+		Format: s.Data.Format, Extension: s.Data.Extension,
 		Cuts: scenarios.CutsOf(s), Relations: c.built.Relations,
 		Open: func() (io.ReadCloser, error) {
 			f, err := res.OpenData()
