@@ -58,7 +58,6 @@ type Reader struct {
 	table      Table
 	row        []byte
 	n          int64 // rows read
-	offset     int64 // bytes consumed from the (decompressed) stream
 	err        error
 	done       bool
 }
@@ -119,7 +118,6 @@ func (rd *Reader) Next() bool {
 		return false
 	}
 	k, err := io.ReadFull(rd.br, rd.row)
-	rd.offset += int64(k)
 	if err != nil {
 		rd.done = true
 		if err == io.EOF || err == io.ErrUnexpectedEOF {
@@ -143,7 +141,6 @@ func (rd *Reader) finish() error {
 	t := &rd.table
 	if t.HeapBytes > 0 {
 		k, err := io.CopyN(io.Discard, rd.br, t.HeapBytes)
-		rd.offset += k
 		if err != nil {
 			return rd.tableErr("PCOUNT", 0, ErrTruncated, "the file ends %d bytes into the heap of PCOUNT = %d bytes after the rows: it was cut off", k, t.HeapBytes)
 		}
@@ -152,7 +149,6 @@ func (rd *Reader) finish() error {
 	if pad > 0 {
 		buf := make([]byte, pad)
 		k, err := io.ReadFull(rd.br, buf)
-		rd.offset += int64(k)
 		if err != nil {
 			return rd.tableErr("", 0, ErrTruncated,
 				"the last 2880-byte block of the table is incomplete (the file ends %d bytes short of it): it was cut off", pad-int64(k))
@@ -221,7 +217,6 @@ func (rd *Reader) seek(opt Options) error {
 			return rd.openTable(h)
 		}
 		k, err := io.CopyN(io.Discard, rd.br, h.data+padding(h.data))
-		rd.offset += k
 		if err != nil {
 			if k < h.data {
 				return &Error{File: rd.name, HDU: number, ExtName: h.extName, Err: ErrTruncated,
@@ -260,7 +255,6 @@ func (rd *Reader) readHeader(number int) (*hdu, error) {
 	block := make([]byte, BlockSize)
 	for blocks := 0; ; blocks++ {
 		k, err := io.ReadFull(rd.br, block)
-		rd.offset += int64(k)
 		if err == io.EOF && blocks == 0 {
 			if number == 0 {
 				return nil, rd.fileErr(ErrNotFITS, "the file is empty")

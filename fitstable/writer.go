@@ -46,6 +46,8 @@ type Writer struct {
 	err      error
 	closed   bool
 
+	name string // the file in messages: its path, or "FITS writer"
+
 	// Set by Create.
 	file       *os.File
 	path, temp string
@@ -61,7 +63,11 @@ var codeOf = map[Type]byte{Logical: 'L', Int16: 'I', Int32: 'J', Int64: 'K', Flo
 // returns a Writer for the rows. Close fixes up NAXIS2 by seeking back,
 // and does not close ws.
 func NewWriter(ws io.WriteSeeker, extName string, cols []WriteColumn) (*Writer, error) {
-	w := &Writer{ws: ws}
+	return newWriter(ws, "FITS writer", extName, cols)
+}
+
+func newWriter(ws io.WriteSeeker, name, extName string, cols []WriteColumn) (*Writer, error) {
+	w := &Writer{ws: ws, name: name}
 	hdr, err := w.layout(extName, cols)
 	if err != nil {
 		return nil, err
@@ -90,7 +96,7 @@ func Create(path, extName string, cols []WriteColumn) (*Writer, error) {
 	if err != nil {
 		return nil, err
 	}
-	w, err := NewWriter(f, extName, cols)
+	w, err := newWriter(f, path, extName, cols)
 	if err != nil {
 		f.Close()
 		os.Remove(f.Name())
@@ -100,14 +106,14 @@ func Create(path, extName string, cols []WriteColumn) (*Writer, error) {
 	return w, nil
 }
 
-func valueErr(column string, row int64, format string, args ...any) error {
-	return &Error{File: "FITS writer", HDU: 1, Column: column, Row: row, Err: ErrValue, Msg: fmt.Sprintf(format, args...)}
+func (w *Writer) valueErr(column string, row int64, format string, args ...any) error {
+	return &Error{File: w.name, HDU: 1, Column: column, Row: row, Err: ErrValue, Msg: fmt.Sprintf(format, args...)}
 }
 
 // layout checks the columns and builds both headers.
 func (w *Writer) layout(extName string, cols []WriteColumn) ([]byte, error) {
 	bad := func(column, format string, args ...any) error {
-		return &Error{File: "FITS writer", HDU: 1, Column: column, Err: ErrUnsupported, Msg: fmt.Sprintf(format, args...)}
+		return &Error{File: w.name, HDU: 1, Column: column, Err: ErrUnsupported, Msg: fmt.Sprintf(format, args...)}
 	}
 	if len(cols) == 0 || len(cols) > 999 {
 		return nil, bad("", "a binary table has 1 to 999 columns, not %d", len(cols))
@@ -275,12 +281,12 @@ func (w *Writer) fail(err error) {
 
 func (w *Writer) col(i int, want string) *wcol {
 	if i < 0 || i >= len(w.cols) {
-		w.fail(valueErr("", w.rows+1, "there is no column %d (the table has %d)", i, len(w.cols)))
+		w.fail(w.valueErr("", w.rows+1, "there is no column %d (the table has %d)", i, len(w.cols)))
 		return nil
 	}
 	c := &w.cols[i]
 	if !strings.Contains(want, string(c.code)) {
-		w.fail(valueErr(c.Name, w.rows+1, "column of type %s cannot take a %s value", c.Type, map[string]string{"EDIJK": "number", "IJK": "integer", "L": "logical", "A": "string"}[want]))
+		w.fail(w.valueErr(c.Name, w.rows+1, "column of type %s cannot take a %s value", c.Type, map[string]string{"EDIJK": "number", "IJK": "integer", "L": "logical", "A": "string"}[want]))
 		return nil
 	}
 	return c
@@ -306,7 +312,7 @@ func (w *Writer) SetFloat64(i int, v float64) {
 			return
 		}
 		if v != math.Trunc(v) || math.Abs(v) > 1<<62 {
-			w.fail(valueErr(c.Name, w.rows+1, "%g is not a whole number, and the column is of type %s", v, c.Type))
+			w.fail(w.valueErr(c.Name, w.rows+1, "%g is not a whole number, and the column is of type %s", v, c.Type))
 			return
 		}
 		w.SetInt64(i, int64(v))
@@ -329,7 +335,7 @@ func (w *Writer) SetInt64(i int, v int64) {
 		lo, hi = math.MinInt32, math.MaxInt32
 	}
 	if v <= lo || v > hi {
-		w.fail(valueErr(c.Name, w.rows+1, "%d is outside the range of a %s column (%d to %d; %d is its null value)", v, c.Type, lo+1, hi, lo))
+		w.fail(w.valueErr(c.Name, w.rows+1, "%d is outside the range of a %s column (%d to %d; %d is its null value)", v, c.Type, lo+1, hi, lo))
 		return
 	}
 	b := w.row[c.offset : c.offset+c.width]
@@ -365,12 +371,12 @@ func (w *Writer) SetString(i int, s string) {
 		return
 	}
 	if len(s) > c.width {
-		w.fail(valueErr(c.Name, w.rows+1, "%q has %d characters; the column holds %d", s, len(s), c.width))
+		w.fail(w.valueErr(c.Name, w.rows+1, "%q has %d characters; the column holds %d", s, len(s), c.width))
 		return
 	}
 	for j := 0; j < len(s); j++ {
 		if s[j] < 0x20 || s[j] > 0x7e {
-			w.fail(valueErr(c.Name, w.rows+1, "%q holds a character that is not printable ASCII", s))
+			w.fail(w.valueErr(c.Name, w.rows+1, "%q holds a character that is not printable ASCII", s))
 			return
 		}
 	}
@@ -384,7 +390,7 @@ func (w *Writer) SetString(i int, s string) {
 // SetNull sets column i of the current row to its null value.
 func (w *Writer) SetNull(i int) {
 	if i < 0 || i >= len(w.cols) {
-		w.fail(valueErr("", w.rows+1, "there is no column %d (the table has %d)", i, len(w.cols)))
+		w.fail(w.valueErr("", w.rows+1, "there is no column %d (the table has %d)", i, len(w.cols)))
 		return
 	}
 	w.setNull(w.row, &w.cols[i])
