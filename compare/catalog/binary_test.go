@@ -6,6 +6,7 @@ import (
 	"crypto/sha256"
 	"io"
 	"math"
+	"math/rand/v2"
 	"os"
 	"path/filepath"
 	"runtime"
@@ -414,4 +415,60 @@ func TestStreamMillionRowsFITS(t *testing.T) {
 	assert.Equal(t, n-n/1000, sum.Accepted)
 	// The table is 24 MB; buffers stay far below.
 	assert.Less(t, peak, uint64(32<<20), "peak heap while streaming: %d bytes", peak)
+}
+
+// writeBenchCatalog writes n rows of the streaming-test columns as FITS or
+// Parquet.
+func writeBenchCatalog(b *testing.B, format string, n int) string {
+	dir := b.TempDir()
+	r := rand.New(rand.NewPCG(1, 2))
+	if format == "fits" {
+		path := filepath.Join(dir, "bench.fits")
+		cols := []fitstable.WriteColumn{{Name: "prot", Unit: "d", Type: fitstable.Float64}, {Name: "color", Unit: "mag", Type: fitstable.Float64},
+			{Name: "app_mag", Unit: "mag", Type: fitstable.Float64}, {Name: "plx", Unit: "mas", Type: fitstable.Float64},
+			{Name: "ra", Unit: "deg", Type: fitstable.Float64}, {Name: "dec", Unit: "deg", Type: fitstable.Float64}}
+		w, err := fitstable.Create(path, "", cols)
+		require.NoError(b, err)
+		for i := 0; i < n; i++ {
+			for k, v := range []float64{0.5 + 40*r.Float64(), 0.5 + 2.5*r.Float64(), 9 + 7*r.Float64(), 0.5 + 10*r.Float64(), 360 * r.Float64(), 180*r.Float64() - 90} {
+				w.SetFloat64(k, v)
+			}
+			require.NoError(b, w.WriteRow())
+		}
+		require.NoError(b, w.Close())
+		return path
+	}
+	path := filepath.Join(dir, "bench.parquet")
+	cols := []parquettable.WriteColumn{{Name: "prot", Unit: "d", Type: parquettable.Float64}, {Name: "color", Unit: "mag", Type: parquettable.Float64},
+		{Name: "app_mag", Unit: "mag", Type: parquettable.Float64}, {Name: "plx", Unit: "mas", Type: parquettable.Float64},
+		{Name: "ra", Unit: "deg", Type: parquettable.Float64}, {Name: "dec", Unit: "deg", Type: parquettable.Float64}}
+	w, err := parquettable.Create(path, cols, parquettable.WriteOptions{})
+	require.NoError(b, err)
+	for i := 0; i < n; i++ {
+		for k, v := range []float64{0.5 + 40*r.Float64(), 0.5 + 2.5*r.Float64(), 9 + 7*r.Float64(), 0.5 + 10*r.Float64(), 360 * r.Float64(), 180*r.Float64() - 90} {
+			w.SetFloat64(k, v)
+		}
+		require.NoError(b, w.WriteRow())
+	}
+	require.NoError(b, w.Close())
+	return path
+}
+
+// Rows per second for FITS and Parquet with positions converted from ICRS,
+// the same columns as BenchmarkReadRows reads from CSV.
+func BenchmarkReadRowsBinary(b *testing.B) {
+	const n = 100_000
+	m := Mapping{Period: "prot", Color: "color", AppMag: "app_mag", Parallax: "plx", RA: "ra", Dec: "dec"}
+	for _, format := range []string{"fits", "parquet"} {
+		b.Run(format, func(b *testing.B) {
+			path := writeBenchCatalog(b, format, n)
+			b.ReportAllocs()
+			for b.Loop() {
+				if _, err := ReadFile(path, Options{Mapping: m}, func(int, Star) error { return nil }); err != nil {
+					b.Fatal(err)
+				}
+			}
+			b.ReportMetric(float64(n)*float64(b.N)/b.Elapsed().Seconds(), "rows/s")
+		})
+	}
 }
