@@ -6,7 +6,7 @@ import (
 	"io"
 	"strings"
 
-	"spinpop/scenarios"
+	"spinpop/assemble"
 )
 
 func runCheck(args []string, stdout, stderr io.Writer) error {
@@ -25,7 +25,7 @@ func runCheck(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	if _, err := scenarios.Build(&res.Scenario); err != nil {
+	if _, err := assemble.Build(&res.Scenario); err != nil {
 		return inputError{fmt.Errorf("%s: %w", path, err)}
 	}
 	if *asJSON {

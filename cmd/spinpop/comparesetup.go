@@ -10,6 +10,7 @@ import (
 	"runtime"
 	"time"
 
+	"spinpop/assemble"
 	"spinpop/compare"
 	"spinpop/model"
 	"spinpop/scenarios"
@@ -22,7 +23,7 @@ type comparison struct {
 	res          *scenarios.Resolved
 	path         string
 	s            *scenarios.Scenario
-	built        *scenarios.Built
+	built        *assemble.Built
 	space        compare.Space
 	tpl          *compare.Templates
 	tplReused    bool
@@ -95,10 +96,10 @@ func setupComparison(ctx context.Context, arg string, f compareFlags, stderr io.
 	if c.built, err = scenariosBuild(s, arg); err != nil {
 		return nil, err
 	}
-	if c.space, err = scenarios.CompareSpace(s); err != nil {
+	if c.space, err = assemble.Space(s); err != nil {
 		return nil, inputError{fmt.Errorf("%s: %w", arg, err)}
 	}
-	key, err := scenarios.TemplateKey(res)
+	key, err := assemble.TemplateKey(res)
 	if err != nil {
 		return nil, err
 	}
@@ -133,9 +134,9 @@ func setupComparison(ctx context.Context, arg string, f compareFlags, stderr io.
 	}
 
 	spec := compare.DataSpec{
-		Path: res.DataPath, SHA256: s.Data.SHA256, Mapping: scenarios.Mapping(s), SunZPc: s.Disk.SunHeightPc,
+		Path: res.DataPath, SHA256: s.Data.SHA256, Mapping: assemble.Mapping(s), SunZPc: s.Disk.SunHeightPc,
 		Format: s.Data.Format, Extension: s.Data.Extension,
-		Cuts: scenarios.CutsOf(s), Relations: c.built.Relations,
+		Cuts: assemble.Cuts(s), Relations: c.built.Relations,
 		Open: func() (io.ReadCloser, error) {
 			f, err := res.OpenData()
 			if err != nil {
@@ -156,10 +157,10 @@ func setupComparison(ctx context.Context, arg string, f compareFlags, stderr io.
 		return nil, inputError{fmt.Errorf("%s: no star of the catalog passes the cuts and lies in the comparison space (cut away: %v; unusable: %v)", res.DataPath, c.obs.CutAway, c.obs.Rejected)}
 	}
 	c.droppedStars, c.droppedBins = c.obs.DropUnreached(c.tpl)
-	if c.like, err = compare.NewLikelihood(c.tpl, c.obs.Counts, scenarios.LikeOptions(s)); err != nil {
+	if c.like, err = compare.NewLikelihood(c.tpl, c.obs.Counts, assemble.LikeOptions(s)); err != nil {
 		return nil, inputError{fmt.Errorf("%s: %w", arg, err)}
 	}
-	if c.smooth, c.burst, err = scenarios.Hypotheses(s, c.built.AgeEdgesGyr); err != nil {
+	if c.smooth, c.burst, err = assemble.Hypotheses(s, c.built.AgeEdgesGyr); err != nil {
 		return nil, inputError{fmt.Errorf("%s: %w", arg, err)}
 	}
 	c.setupSeconds = time.Since(start).Seconds()

@@ -7,8 +7,8 @@ import (
 	"math"
 	"strconv"
 
+	"spinpop/assemble"
 	"spinpop/model"
-	"spinpop/scenarios"
 )
 
 func runGyrochrones(args []string, stdout, stderr io.Writer) error {
@@ -51,7 +51,7 @@ func runGyrochrones(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	law, err := scenarios.BuildLaw(s, rel)
+	law, err := assemble.Law(s, rel)
 	if err != nil {
 		return inputError{fmt.Errorf("%s: %w", path, err)}
 	}

@@ -15,6 +15,7 @@ import (
 
 	"gonum.org/v1/plot/vg"
 
+	"spinpop/assemble"
 	"spinpop/compare"
 	"spinpop/compare/stats"
 	"spinpop/scenarios"
@@ -126,7 +127,7 @@ func injectCmd(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	bar := newProgressBar("injection", int64(jobs))
 	sweep.Progress = func(done, _ int) { bar.Update(int64(done)) }
 	start := time.Now()
-	ir, err := compare.InjectRecover(ctx, c.tpl, scenarios.LikeOptions(c.s), c.smooth, c.burst, sweep)
+	ir, err := compare.InjectRecover(ctx, c.tpl, assemble.LikeOptions(c.s), c.smooth, c.burst, sweep)
 	bar.Done()
 	if err != nil {
 		if ctx.Err() != nil {

@@ -12,6 +12,7 @@ import (
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/vg"
 
+	"spinpop/assemble"
 	"spinpop/model"
 	"spinpop/scenarios"
 )
@@ -91,7 +92,7 @@ func runLaws(args []string, stdout, stderr io.Writer) error {
 		if *stars > 0 {
 			s.Run.StarsGenerated = *stars
 		}
-		built, err := scenarios.Build(&s)
+		built, err := assemble.Build(&s)
 		if err != nil {
 			return inputError{fmt.Errorf("%s (%s): %w", path, v.label, err)}
 		}

@@ -6,6 +6,7 @@ import (
 	"os"
 	"strings"
 
+	"spinpop/assemble"
 	"spinpop/model/spin"
 	"spinpop/scenarios"
 )
@@ -48,8 +49,8 @@ func oneScenarioArg(pos []string, cmd string) (string, error) {
 
 // scenariosBuild builds a scenario's run objects; its errors are the
 // user's (combinations of keys the loader cannot judge alone).
-func scenariosBuild(s *scenarios.Scenario, path string) (*scenarios.Built, error) {
-	b, err := scenarios.Build(s)
+func scenariosBuild(s *scenarios.Scenario, path string) (*assemble.Built, error) {
+	b, err := assemble.Build(s)
 	if err != nil {
 		return nil, inputError{fmt.Errorf("%s: %w", path, err)}
 	}

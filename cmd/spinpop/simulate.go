@@ -15,6 +15,7 @@ import (
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/vg"
 
+	"spinpop/assemble"
 	"spinpop/model"
 	"spinpop/scenarios"
 )
@@ -140,7 +141,7 @@ func linspace(a, b float64, n int) []float64 {
 
 func simulate(res *scenarios.Resolved, path, dir string, workers int, stderr io.Writer) (*summary, error) {
 	s := &res.Scenario
-	built, err := scenarios.Build(s)
+	built, err := assemble.Build(s)
 	if err != nil {
 		return nil, inputError{fmt.Errorf("%s: %w", path, err)}
 	}
@@ -342,7 +343,7 @@ func medianFromBins(edges []float64, n []int64) float64 {
 
 // rangeWarnings says where a result could mislead: the model used outside
 // the range it was calibrated on.
-func rangeWarnings(s *scenarios.Scenario, b *scenarios.Built, t *model.Tally) []string {
+func rangeWarnings(s *scenarios.Scenario, b *assemble.Built, t *model.Tally) []string {
 	var w []string
 	if t.OutsideLaw > 0 {
 		frac := float64(t.OutsideLaw) / float64(max(t.StepCounts[4], 1))

@@ -1,4 +1,4 @@
-package scenarios
+package assemble
 
 import (
 	"fmt"
@@ -10,13 +10,14 @@ import (
 	"spinpop/model"
 	"spinpop/model/spin"
 	"spinpop/model/spots"
+	"spinpop/scenarios"
 	"spinpop/sfh"
 )
 
 // Built is a scenario turned into the objects a run uses. Tables inside are
 // built once and shared read-only by all workers.
 type Built struct {
-	Scenario    *Scenario
+	Scenario    *scenarios.Scenario
 	History     *sfh.History
 	AgeEdgesGyr []float64
 	Sampler     *disk.Sampler // the field's per-age-bin line-of-sight tables
@@ -31,10 +32,10 @@ type Built struct {
 // Build makes the run objects of a resolved scenario. Errors here come from
 // combinations the loader cannot see alone (for instance a mass range
 // beyond the relation table); they name the keys involved.
-func Build(s *Scenario) (*Built, error) {
+func Build(s *scenarios.Scenario) (*Built, error) {
 	b := &Built{Scenario: s, AgeEdgesGyr: s.Disk.AgeBinEdgesGyr}
 	var err error
-	if b.History, err = BuildHistory(s); err != nil {
+	if b.History, err = History(s); err != nil {
 		return nil, err
 	}
 	if b.Relations, err = model.DwarfSequence(); err != nil {
@@ -48,7 +49,7 @@ func Build(s *Scenario) (*Built, error) {
 	if err != nil {
 		return nil, fmt.Errorf("imf: %w", err)
 	}
-	if b.Law, err = BuildLaw(s, b.Relations); err != nil {
+	if b.Law, err = Law(s, b.Relations); err != nil {
 		return nil, err
 	}
 	turn, err := spin.TurnoverByName(s.Spin.Turnover)
@@ -128,7 +129,7 @@ func Build(s *Scenario) (*Built, error) {
 		},
 		Metals: model.Metallicity{SigmaDex: s.Stars.MetallicitySigmaDex, ColorPerDex: s.Stars.ColorPerDex, AbsMagPerDex: s.Stars.AbsMagPerDex},
 		Survey: model.Survey{Band: band, BrightLimitMag: s.Survey.BrightLimitMag, FaintLimitMag: s.Survey.FaintLimitMag, Detect: det, Recovery: rec},
-		Cuts:   CutsOf(s),
+		Cuts:   Cuts(s),
 	}
 	if err := b.Population.Prepare(); err != nil {
 		return nil, err
@@ -153,7 +154,7 @@ func (b *Built) sampler() (*disk.Sampler, error) {
 		}
 		mixes[k] = m
 	}
-	field, err := FieldOf(s)
+	field, err := Field(s)
 	if err != nil {
 		return nil, err
 	}
@@ -166,8 +167,8 @@ func (b *Built) sampler() (*disk.Sampler, error) {
 	return smp, nil
 }
 
-// FieldOf turns survey.field into a disk.Field.
-func FieldOf(s *Scenario) (disk.Field, error) {
+// Field turns survey.field into a disk.Field.
+func Field(s *scenarios.Scenario) (disk.Field, error) {
 	f := s.Survey.Field
 	var field disk.Field
 	switch f.Kind {
@@ -190,16 +191,16 @@ func FieldOf(s *Scenario) (disk.Field, error) {
 	return field, nil
 }
 
-// CutsOf gives the catalogue cuts, shared by model and data.
-func CutsOf(s *Scenario) model.Cuts {
+// Cuts gives the catalogue cuts, shared by model and data.
+func Cuts(s *scenarios.Scenario) model.Cuts {
 	c := s.Cuts
 	return model.Cuts{BVMin: c.BVMin, BVMax: c.BVMax, MSBandBrightMag: c.MSBandBrightMag, MSBandFaintMag: c.MSBandFaintMag,
 		PeriodMinD: c.PeriodMinD, PeriodMaxD: c.PeriodMaxD, HeightMaxPc: c.HeightMaxPc}
 }
 
-// BuildHistory builds the star-formation history of a scenario. Parts are taken
+// History builds the star-formation history of a scenario. Parts are taken
 // in name order so the same file always builds the same history.
-func BuildHistory(s *Scenario) (*sfh.History, error) {
+func History(s *scenarios.Scenario) (*sfh.History, error) {
 	names := make([]string, 0, len(s.History.Parts))
 	for n := range s.History.Parts {
 		names = append(names, n)
@@ -233,9 +234,9 @@ func BuildHistory(s *Scenario) (*sfh.History, error) {
 	return h, nil
 }
 
-// BuildLaw builds the scenario's spin-down law. The torque law takes stellar
+// Law builds the scenario's spin-down law. The torque law takes stellar
 // radius and temperature from the relation table.
-func BuildLaw(s *Scenario, rel *model.Relations) (spin.Law, error) {
+func Law(s *scenarios.Scenario, rel *model.Relations) (spin.Law, error) {
 	if s.Spin.Law != "torque" {
 		if s.Spin.Stall.Enabled || s.Spin.Weakened.Enabled {
 			return nil, fmt.Errorf("spin.stall / spin.weakened_braking are options of the torque law; spin.law = %q cannot use them (set spin.law = \"torque\" or disable them)", s.Spin.Law)

@@ -1,4 +1,4 @@
-package scenarios
+package assemble
 
 import (
 	"fmt"
@@ -6,6 +6,7 @@ import (
 
 	"spinpop/compare"
 	"spinpop/compare/catalog"
+	"spinpop/scenarios"
 )
 
 // templateSections are the parts of a scenario the templates depend on:
@@ -21,11 +22,11 @@ var templateSections = []string{
 
 // TemplateKey is the hash of the scenario parts the templates depend on: a
 // cached template set with this key can be reused.
-func TemplateKey(r *Resolved) (string, error) { return r.PartHash(templateSections...) }
+func TemplateKey(r *scenarios.Resolved) (string, error) { return r.PartHash(templateSections...) }
 
-// CompareSpace is the comparison space of a scenario: B−V between the
+// Space is the comparison space of a scenario: B−V between the
 // catalogue's color cut, log period within the compare range, |z| bins.
-func CompareSpace(s *Scenario) (compare.Space, error) {
+func Space(s *scenarios.Scenario) (compare.Space, error) {
 	c := s.Compare
 	sp, err := compare.NewSpace(s.Cuts.BVMin, s.Cuts.BVMax, c.ColorBins, c.PeriodMinD, c.PeriodMaxD, c.LogPeriodBins, c.HeightEdgesPc)
 	if err != nil {
@@ -35,14 +36,14 @@ func CompareSpace(s *Scenario) (compare.Space, error) {
 }
 
 // Mapping turns [data.columns] into the catalog reader's column mapping.
-func Mapping(s *Scenario) catalog.Mapping {
+func Mapping(s *scenarios.Scenario) catalog.Mapping {
 	c := s.Data.Columns
 	return catalog.Mapping{Period: c.PeriodD, Color: c.BV, AbsMag: c.AbsMagV, Height: c.HeightPc, AppMag: c.AppMagV,
 		Parallax: c.ParallaxMas, RA: c.RADeg, Dec: c.DecDeg, L: c.LDeg, B: c.BDeg}
 }
 
 // LikeOptions are the likelihood settings of [compare].
-func LikeOptions(s *Scenario) compare.LikeOptions {
+func LikeOptions(s *scenarios.Scenario) compare.LikeOptions {
 	return compare.LikeOptions{Normalisation: s.Compare.Normalisation, TemplateNoise: s.Compare.TemplateNoise}
 }
 
@@ -53,16 +54,16 @@ func LikeOptions(s *Scenario) compare.LikeOptions {
 // belong to the burst. A scenario without the burst part gets one (a
 // Gaussian burst at 0.6 Gyr, width 0.05 Gyr, 10 % of the mass) and, when
 // compare.free names none of its keys, the default burst parameters.
-func Hypotheses(s *Scenario, ageEdgesGyr []float64) (smooth, burst compare.HistoryModel, err error) {
+func Hypotheses(s *scenarios.Scenario, ageEdgesGyr []float64) (smooth, burst compare.HistoryModel, err error) {
 	name := s.Compare.BurstPart
 	withBurst := *s
-	withBurst.History.Parts = make(map[string]Part, len(s.History.Parts)+1)
+	withBurst.History.Parts = make(map[string]scenarios.Part, len(s.History.Parts)+1)
 	for k, v := range s.History.Parts {
 		withBurst.History.Parts[k] = v
 	}
 	free := s.Compare.Free
 	if _, ok := withBurst.History.Parts[name]; !ok {
-		withBurst.History.Parts[name] = Part{Kind: "burst", AgeGyr: min(0.6, s.History.MaxAgeGyr/2), WidthGyr: 0.05, MassFraction: 0.1}
+		withBurst.History.Parts[name] = scenarios.Part{Kind: "burst", AgeGyr: min(0.6, s.History.MaxAgeGyr/2), WidthGyr: 0.05, MassFraction: 0.1}
 	}
 	prefix := "history." + name + "."
 	hasBurstFree := false
@@ -72,20 +73,20 @@ func Hypotheses(s *Scenario, ageEdgesGyr []float64) (smooth, burst compare.Histo
 		}
 	}
 	if !hasBurstFree {
-		free = append(append([]FreeParam(nil), free...), DefaultFree(name, s.History.MaxAgeGyr)...)
+		free = append(append([]scenarios.FreeParam(nil), free...), scenarios.DefaultFree(name, s.History.MaxAgeGyr)...)
 	}
 	withoutBurst := withBurst
-	withoutBurst.History.Parts = make(map[string]Part, len(withBurst.History.Parts))
+	withoutBurst.History.Parts = make(map[string]scenarios.Part, len(withBurst.History.Parts))
 	for k, v := range withBurst.History.Parts {
 		if k != name {
 			withoutBurst.History.Parts[k] = v
 		}
 	}
-	hb, err := BuildHistory(&withBurst)
+	hb, err := History(&withBurst)
 	if err != nil {
 		return smooth, burst, err
 	}
-	hs, err := BuildHistory(&withoutBurst)
+	hs, err := History(&withoutBurst)
 	if err != nil {
 		return smooth, burst, fmt.Errorf("the history without part %q: %w", name, err)
 	}
