@@ -175,24 +175,10 @@ func (p *Population) Fill(c *Chunk, r *rand.Rand) {
 	// What star works out only for the few stars that pass the photometric
 	// cuts starts as "not worked out" for all: column by column, which
 	// writes memory faster than eight scattered stores per star.
-	for _, col := range [...][]float64{c.PeriodD, c.MeasPeriodD, c.Rossby, c.AmpPpm, c.NoisePpm} {
-		fillNaN(col[:c.N])
-	}
-	if p.joint != nil {
-		fillNaN(c.LDeg[:c.N])
-		fillNaN(c.BDeg[:c.N])
-	}
+	resetColumns(c, c.N, p.joint != nil)
 	clear(c.DetectProb[:c.N])
 	for i := 0; i < c.N; i++ {
 		p.star(c, i, r)
-	}
-}
-
-// fillNaN sets every element of x to NaN.
-func fillNaN(x []float64) {
-	nan := math.NaN()
-	for i := range x {
-		x[i] = nan
 	}
 }
 
@@ -339,8 +325,7 @@ func (p *Population) star(c *Chunk, i int, r *rand.Rand) {
 	}
 	c.PeriodD[i] = per
 	if !ok {
-		flags |= FlagOutsideLaw
-		c.Rossby[i], c.AmpPpm[i], c.NoisePpm[i], c.DetectProb[i], c.MeasPeriodD[i] = math.NaN(), math.NaN(), math.NaN(), 0, math.NaN()
+		flags |= FlagOutsideLaw // its other rotation columns stay as Fill reset them
 		c.Flags[i] = flags
 		return
 	}
