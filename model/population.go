@@ -35,16 +35,6 @@ type Survey struct {
 	Recovery       spots.RecoveryOptions
 }
 
-// Cuts are the catalogue cuts, applied identically to model and data.
-type Cuts struct {
-	BVMin, BVMax    float64
-	MSBandBrightMag float64 // keep stars up to this much brighter than the single-star sequence at their color
-	MSBandFaintMag  float64 // and this much fainter
-	PeriodMinD      float64
-	PeriodMaxD      float64
-	HeightMaxPc     float64 // |z| cut; 0 = none
-}
-
 // Binaries sets unresolved companions.
 type Binaries struct {
 	FractionScale     float64 // multiplies BinaryFraction(m); 0 switches binaries off
@@ -290,12 +280,12 @@ func (p *Population) star(c *Chunk, i int, r *rand.Rand) {
 	if app >= p.Survey.BrightLimitMag && app <= p.Survey.FaintLimitMag {
 		flags |= FlagInMagRange
 	}
-	if obsBV >= p.Cuts.BVMin && obsBV <= p.Cuts.BVMax {
+	if p.Cuts.InColorRange(obsBV) {
 		flags |= FlagInColorRange
 	}
 	// The band test is left out where the earlier cuts have already
 	// failed (see Chunk): it is the costliest of the three.
-	if flags&(FlagInMagRange|FlagInColorRange) == FlagInMagRange|FlagInColorRange && p.onMainSequence(obsBV, obsAbs) {
+	if flags&(FlagInMagRange|FlagInColorRange) == FlagInMagRange|FlagInColorRange && p.Cuts.OnMainSequence(p.Relations, obsBV, obsAbs) {
 		flags |= FlagOnMainSeq
 	}
 
@@ -361,7 +351,7 @@ func (p *Population) star(c *Chunk, i int, r *rand.Rand) {
 		case spots.AliasDouble:
 			flags |= FlagDoubleAlias
 		}
-		if meas >= p.Cuts.PeriodMinD && meas <= p.Cuts.PeriodMaxD && (p.Cuts.HeightMaxPc <= 0 || math.Abs(z) <= p.Cuts.HeightMaxPc) {
+		if p.Cuts.InPeriodWindow(meas, z) {
 			flags |= FlagInPeriodWindow
 		}
 	} else {
@@ -384,23 +374,4 @@ var binaryFractionMin, binaryFractionMax = binaryFractionRange()
 
 func (p *Population) binaryFraction(m float64) float64 {
 	return min(1, p.Binaries.FractionScale*BinaryFraction(m))
-}
-
-// onMainSequence applies the catalogue's band around the single-star main
-// sequence: the same test is applied to observed stars (see compare).
-func (p *Population) onMainSequence(bv, absV float64) bool {
-	return OnMainSequence(p.Relations, p.Cuts, bv, absV)
-}
-
-// OnMainSequence is the catalogue's color–magnitude cut: keep a star whose
-// M_V lies within the band around the single-star sequence at its B−V.
-// Unresolved binaries (up to 0.753 mag brighter) and evolved stars fall out
-// when the band is narrow, in data and model alike.
-func OnMainSequence(rel *Relations, cuts Cuts, bv, absV float64) bool {
-	ms, ok := rel.AbsMagVAtBV(bv)
-	if !ok {
-		return false
-	}
-	dm := absV - ms
-	return dm >= -cuts.MSBandBrightMag && dm <= cuts.MSBandFaintMag
 }
