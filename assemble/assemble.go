@@ -234,58 +234,33 @@ func History(s *scenarios.Scenario) (*sfh.History, error) {
 	return h, nil
 }
 
-// Law builds the scenario's spin-down law. The torque law takes stellar
-// radius and temperature from the relation table.
+// Law builds the scenario's spin-down law from the law registry
+// (spin.Lookup); the relation table supplies T_eff by mass.
 func Law(s *scenarios.Scenario, rel *model.Relations) (spin.Law, error) {
-	if s.Spin.Law != "torque" {
-		if s.Spin.Stall.Enabled || s.Spin.Weakened.Enabled {
-			return nil, fmt.Errorf("spin.stall / spin.weakened_braking are options of the torque law; spin.law = %q cannot use them (set spin.law = \"torque\" or disable them)", s.Spin.Law)
-		}
-		l, err := spin.ByName(s.Spin.Law)
-		if err != nil {
-			return nil, fmt.Errorf("spin.law: %w", err)
-		}
-		return l, nil
+	spec, ok := spin.Lookup(s.Spin.Law)
+	if !ok {
+		return nil, fmt.Errorf("spin.law: unknown spin-down law %q; use one of %q", s.Spin.Law, spin.Names())
 	}
-	t := s.Spin.Torque
-	o := spin.DefaultTorqueOptions()
+	if tables, owners := scenarios.SwitchedOnElsewhere(s); len(tables) > 0 {
+		return nil, fmt.Errorf("%s are options of the %s law; spin.law = %q cannot use them (set spin.law = %q or disable them)",
+			scenarios.SwitchableTables(owners[0]), owners[0], s.Spin.Law, owners[0])
+	}
 	turn, err := spin.TurnoverByName(s.Spin.Turnover)
 	if err != nil {
 		return nil, fmt.Errorf("spin.turnover: %w", err)
 	}
-	o.Turnover = turn
-	// The torque scalings were tuned with R = M^0.8 (spin.PowerLawRadius);
-	// the relation table supplies T_eff for the Cranmer & Saar turnover.
-	o.TeffOfMass = func(m float64) float64 {
+	teff := func(m float64) float64 {
 		if p, ok := rel.At(m); ok {
 			return p.TeffK
 		}
 		return 5772 * math.Pow(m, 0.5)
 	}
-	o.SolarPeriodD = t.SolarPeriodD
-	o.SaturationRatio = t.SaturationChi
-	o.StartAgeGyr = t.StartAgeGyr
-	switch t.InitialPeriodDist {
-	case "log-uniform":
-		o.Initial = spin.InitialPeriods{Shape: spin.LogUniform, MinD: t.InitialPeriodMinD, MaxD: t.InitialPeriodMaxD}
-	case "lognormal":
-		o.Initial = spin.InitialPeriods{Shape: spin.LogNormal, MedianD: t.InitialPeriodMedD, SigmaDex: t.InitialPeriodSigDex}
-	default:
-		return nil, fmt.Errorf("spin.torque.initial_period_dist = %q: want log-uniform or lognormal", t.InitialPeriodDist)
-	}
-	if s.Spin.Weakened.Enabled {
-		o.RoCrit = s.Spin.Weakened.RoCrit
-	}
-	st := s.Spin.Stall
-	if st.Enabled {
-		// The scenario writes start ∝ (m/0.8)^slope; spin.StallOptions
-		// writes (m/0.8)^(−slope).
-		o.Stall = spin.StallOptions{Enabled: true, PivotMsun: 0.8, StartGyrAtPivot: st.StartGyrAt08, DurationGyrAtPivot: st.DurationGyrAt08,
-			StartMassSlope: -st.StartSlope, DurationMassSlope: -st.DurationSlope, CutoffMsun: st.MassMaxMsun, CatchUpFraction: st.CatchUpFraction}
-	}
-	l, err := spin.NewTorqueLaw(o)
+	l, err := spec.New(s.Spin.Options, spin.Env{Turnover: turn, TeffOfMass: teff})
 	if err != nil {
-		return nil, fmt.Errorf("spin.torque: %w", err)
+		if len(spec.Tables) > 0 {
+			return nil, fmt.Errorf("spin.%s: %w", spec.Tables[0].Name, err)
+		}
+		return nil, fmt.Errorf("spin.law = %q: %w", s.Spin.Law, err)
 	}
 	return l, nil
 }

@@ -101,7 +101,7 @@ func TestStallOpensGapWithoutBurst(t *testing.T) {
 		res, err := scenarios.LoadExample("stall")
 		require.NoError(t, err)
 		require.Len(t, res.Scenario.History.Parts, 2, "no burst in the stall example")
-		res.Scenario.Spin.Stall.Enabled = stall
+		res.Scenario.Spin.Options.Set("stall", "enabled", stall)
 		b, err := Build(&res.Scenario)
 		require.NoError(t, err)
 		err = model.RunChunks(context.Background(), 11, 1_000_000, 32768, 2, b.Population.Fill, func(c *model.Chunk) error {

@@ -3,8 +3,10 @@ package pipeline
 import (
 	"context"
 	"fmt"
+	"slices"
 
 	"spinpop/model"
+	"spinpop/model/spin"
 	"spinpop/scenarios"
 )
 
@@ -14,35 +16,32 @@ type LawVariant struct {
 	Set   func(s *scenarios.Scenario)
 }
 
-// LawVariants are the prescriptions the laws comparison shows.
+// LawVariants are the prescriptions the laws comparison shows: every
+// registered law, in registration order, in each of its variants (see
+// spin.LawSpec), with the switchable options of every law off unless the
+// variant turns them on.
 func LawVariants() []LawVariant {
-	empirical := func(name string) func(*scenarios.Scenario) {
-		return func(s *scenarios.Scenario) {
-			s.Spin.Law = name
-			s.Spin.Stall.Enabled = false
-			s.Spin.Weakened.Enabled = false
+	var out []LawVariant
+	for _, spec := range spin.Laws() {
+		variants := spec.Variants
+		if len(variants) == 0 {
+			variants = []spin.Variant{{Label: spec.Label}}
+		}
+		for _, v := range variants {
+			name, on := spec.Name, v.On
+			out = append(out, LawVariant{v.Label, func(s *scenarios.Scenario) {
+				s.Spin.Law = name
+				s.Spin.Options = s.Spin.Options.Clone()
+				tables, _ := spin.OptionTables()
+				for _, t := range tables {
+					if t.Switch != "" {
+						s.Spin.Options.Set(t.Name, t.Switch, slices.Contains(on, t.Name))
+					}
+				}
+			}})
 		}
 	}
-	return []LawVariant{
-		{"Barnes (2007)", empirical("barnes2007")},
-		{"Mamajek & Hillenbrand (2008)", empirical("mamajek2008")},
-		{"Angus et al. (2015)", empirical("angus2015")},
-		{"wind torque", func(s *scenarios.Scenario) {
-			s.Spin.Law = "torque"
-			s.Spin.Stall.Enabled = false
-			s.Spin.Weakened.Enabled = false
-		}},
-		{"wind torque, weakened braking", func(s *scenarios.Scenario) {
-			s.Spin.Law = "torque"
-			s.Spin.Stall.Enabled = false
-			s.Spin.Weakened.Enabled = true
-		}},
-		{"wind torque, stalled spin-down", func(s *scenarios.Scenario) {
-			s.Spin.Law = "torque"
-			s.Spin.Stall.Enabled = true
-			s.Spin.Weakened.Enabled = false
-		}},
-	}
+	return out
 }
 
 // LawRun is the scenario's population observed under one law variant.

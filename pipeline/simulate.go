@@ -9,6 +9,7 @@ import (
 	"spinpop/assemble"
 	"spinpop/internal/grid"
 	"spinpop/model"
+	"spinpop/model/spin"
 	"spinpop/scenarios"
 )
 
@@ -267,11 +268,8 @@ func rangeWarnings(s *scenarios.Scenario, b *assemble.Built, t *model.Tally) []s
 		frac := float64(t.OutsideLaw) / float64(max(t.StepCounts[4], 1))
 		w = append(w, fmt.Sprintf("%d dwarfs that pass the magnitude, color and main-sequence cuts (%.1f%%) lie outside the calibrated color or age range of spin-down law %q and have no period; they are flagged and never enter the catalogue", t.OutsideLaw, 100*frac, s.Spin.Law))
 	}
-	if s.Spin.Law != "torque" && s.Disk.AgeBinEdgesGyr[0] < 0.1 {
-		w = append(w, "empirical gyrochronology laws are calibrated on stars older than about 0.1 Gyr; younger stars get no period")
-	}
-	if s.Spin.Law == "torque" {
-		w = append(w, "the torque law keeps the moment of inertia constant: periods of stars younger than about 0.1 Gyr (no pre-main-sequence contraction) are crude")
+	if spec, ok := spin.Lookup(s.Spin.Law); ok && spec.Caveats != nil {
+		w = append(w, spec.Caveats(s.Disk.AgeBinEdgesGyr[0])...)
 	}
 	w = append(w, "the main-sequence relation table is recalled from memory of a published mean dwarf sequence, not read from it (see testdata/SOURCES-dwarf-sequence.md); treat absolute magnitudes as uncertain at the 0.1–0.2 mag level")
 	return w

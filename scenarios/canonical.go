@@ -95,6 +95,8 @@ func toTree(rv reflect.Value) map[string]any {
 		for name, p := range h.Parts {
 			out[name] = partTree(p)
 		}
+	case spinType:
+		lawOptionsTree(rv.Interface().(Spin).Options, out)
 	case reflect.TypeFor[Field]():
 		f := rv.Interface().(Field)
 		if keys, ok := fieldKeys[f.Kind]; ok {

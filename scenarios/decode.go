@@ -117,8 +117,12 @@ var historyType = reflect.TypeFor[History]()
 
 // value decodes v into rv, reporting a type mismatch at p.
 func (d *decoder) value(p string, v any, rv reflect.Value) {
-	if rv.Type() == historyType {
+	switch rv.Type() {
+	case historyType:
 		d.history(p, v, rv.Addr().Interface().(*History))
+		return
+	case spinType:
+		d.spinTable(p, v, rv.Addr().Interface().(*Spin))
 		return
 	}
 	switch rv.Kind() {

@@ -47,7 +47,7 @@ func TestExamplesLoad(t *testing.T) {
 	require.NoError(t, err)
 	sp := stall.Scenario.Spin
 	assert.Equal(t, "torque", sp.Law)
-	assert.True(t, sp.Stall.Enabled)
+	assert.True(t, sp.Options.Bool("stall", "enabled"))
 	assert.Equal(t, b.Spin.Turnover, sp.Turnover, "inherited from base")
 	assert.Equal(t, b.History, stall.Scenario.History, "smooth history")
 }

@@ -113,45 +113,16 @@ type Stars struct {
 	AbsMagPerDex        float64 `toml:"abs_mag_per_dex"`         // M_V shift per dex [Fe/H]; default 1.0
 }
 
-// Spin chooses the spin-down law and its parameters.
+// Spin chooses the spin-down law and its parameters. Besides law,
+// turnover and [spin.spots], every sub-table is an option table of a
+// registered spin-down law (model/spin: [spin.torque], [spin.stall],
+// [spin.weakened_braking], ...), its keys, defaults and ranges declared
+// where the law is; spinpop check prints them all.
 type Spin struct {
-	Law      string    `toml:"law"`      // barnes2007 (default) | mamajek2008 | angus2015 | torque
-	Turnover string    `toml:"turnover"` // wright2018 (default) | cranmer-saar2011
-	Torque   TorqueLaw `toml:"torque"`
-	Stall    Stall     `toml:"stall"`
-	Weakened Weakened  `toml:"weakened_braking"`
-	Spots    Spots     `toml:"spots"`
-}
-
-// TorqueLaw parameterises the wind-torque law with saturation.
-type TorqueLaw struct {
-	SolarPeriodD        float64 `toml:"solar_period_d"`           // calibration target at 4.57 Gyr; default 25.4
-	SaturationChi       float64 `toml:"saturation_chi"`           // Ro_sun / Ro_sat; default 10
-	InitialPeriodDist   string  `toml:"initial_period_dist"`      // "lognormal" (default) | "log-uniform"
-	InitialPeriodMinD   float64 `toml:"initial_period_min_d"`     // log-uniform; default 1
-	InitialPeriodMaxD   float64 `toml:"initial_period_max_d"`     // log-uniform; default 10
-	InitialPeriodMedD   float64 `toml:"initial_period_median_d"`  // lognormal; default 2
-	InitialPeriodSigDex float64 `toml:"initial_period_sigma_dex"` // lognormal; default 0.3
-	StartAgeGyr         float64 `toml:"start_age_gyr"`            // age the initial periods refer to; default 0.01
-}
-
-// Stall is the parameterised spin-down stall (core–envelope recoupling).
-// The defaults are an illustrative starting point for fits, not a
-// calibration.
-type Stall struct {
-	Enabled         bool    `toml:"enabled"`                 // default false
-	StartGyrAt08    float64 `toml:"start_gyr_at_0p8msun"`    // stall start age for 0.8 Msun; default 0.5
-	DurationGyrAt08 float64 `toml:"duration_gyr_at_0p8msun"` // stall duration for 0.8 Msun; default 0.6
-	StartSlope      float64 `toml:"start_mass_slope"`        // start ∝ (m/0.8)^slope; default -2
-	DurationSlope   float64 `toml:"duration_mass_slope"`     // duration ∝ (m/0.8)^slope; default -2
-	MassMaxMsun     float64 `toml:"mass_max_msun"`           // no stall above this mass; default 1.0
-	CatchUpFraction float64 `toml:"catch_up_fraction"`       // after the pause the star regains the lost time over this fraction of the pause (fast spin-down); 0 = stays behind; default 0.25
-}
-
-// Weakened is weakened magnetic braking above a critical Rossby number.
-type Weakened struct {
-	Enabled bool    `toml:"enabled"` // default false
-	RoCrit  float64 `toml:"ro_crit"` // default 2
+	Law      string     `toml:"law"`      // a registered law: barnes2007 (default) | mamajek2008 | angus2015 | torque
+	Turnover string     `toml:"turnover"` // wright2018 (default) | cranmer-saar2011
+	Spots    Spots      `toml:"spots"`
+	Options  LawOptions `toml:"-"` // decoded by hand from the law option tables
 }
 
 // Spots sets photometric spot amplitude versus Rossby number.
