@@ -113,4 +113,6 @@ func (e *OptionError) Error() string { return "spin." + e.Table + "." + e.Key + 
 
 // TypicalPeriod is the period of the star that started from the median
 // initial period: the one a gyrochrone follows.
-func (l *TorqueLaw) TypicalPeriod(s Star) (float64, bool) { return l.PeriodAt(s.MassMsun, s.AgeGyr, 0.5) }
+func (l *TorqueLaw) TypicalPeriod(s Star) (float64, bool) {
+	return l.PeriodAt(s.MassMsun, s.AgeGyr, 0.5)
+}
