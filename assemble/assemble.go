@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
-	"sort"
 
 	"spinpop/disk"
 	"spinpop/model"
@@ -198,36 +197,10 @@ func Cuts(s *scenarios.Scenario) model.Cuts {
 		PeriodMinD: c.PeriodMinD, PeriodMaxD: c.PeriodMaxD, HeightMaxPc: c.HeightMaxPc}
 }
 
-// History builds the star-formation history of a scenario. Parts are taken
-// in name order so the same file always builds the same history.
+// History builds the star-formation history of a scenario (see
+// scenarios.BuildHistory).
 func History(s *scenarios.Scenario) (*sfh.History, error) {
-	names := make([]string, 0, len(s.History.Parts))
-	for n := range s.History.Parts {
-		names = append(names, n)
-	}
-	sort.Strings(names)
-	parts := make([]sfh.Part, 0, len(names))
-	for _, n := range names {
-		p := s.History.Parts[n]
-		var c sfh.Component
-		w := 0.0
-		switch p.Kind {
-		case "constant":
-			c, w = sfh.Constant{}, p.Weight
-		case "exponential":
-			c, w = sfh.Exponential{TimescaleGyr: p.TimescaleGyr}, p.Weight
-		case "bins":
-			c, w = sfh.Piecewise{EdgesGyr: p.EdgesGyr, Rates: p.Rates}, p.Weight
-		case "burst":
-			c = sfh.Burst{AgeGyr: p.AgeGyr, WidthGyr: p.WidthGyr, MassFraction: p.MassFraction}
-		case "dip":
-			c = sfh.Dip{AgeGyr: p.AgeGyr, WidthGyr: p.WidthGyr, Depth: p.Depth}
-		default:
-			return nil, fmt.Errorf("history.%s.kind = %q: want constant, exponential, bins, burst or dip", n, p.Kind)
-		}
-		parts = append(parts, sfh.Part{Name: n, Component: c, Weight: w})
-	}
-	h, err := sfh.New(s.History.MaxAgeGyr, parts)
+	h, err := scenarios.BuildHistory(&s.History)
 	if err != nil {
 		return nil, fmt.Errorf("history: %w", err)
 	}

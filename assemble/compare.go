@@ -63,7 +63,7 @@ func Hypotheses(s *scenarios.Scenario, ageEdgesGyr []float64) (smooth, burst com
 	}
 	free := s.Compare.Free
 	if _, ok := withBurst.History.Parts[name]; !ok {
-		withBurst.History.Parts[name] = scenarios.Part{Kind: "burst", AgeGyr: min(0.6, s.History.MaxAgeGyr/2), WidthGyr: 0.05, MassFraction: 0.1}
+		withBurst.History.Parts[name] = scenarios.Part{Kind: "burst", Values: map[string]float64{"age_gyr": min(0.6, s.History.MaxAgeGyr/2), "width_gyr": 0.05, "mass_fraction": 0.1}}
 	}
 	prefix := "history." + name + "."
 	hasBurstFree := false

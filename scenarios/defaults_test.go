@@ -27,7 +27,7 @@ func TestDefaultsFilled(t *testing.T) {
 	assert.Equal(t, Run{Seed: 1, StarsGenerated: 2_000_000, ChunkStars: 65536}, s.Run)
 	assert.Equal(t, IMF{Form: "kroupa2001", MassMinMsun: 0.2, MassMaxMsun: 1.4}, s.IMF)
 	assert.Equal(t, 10.0, s.History.MaxAgeGyr)
-	assert.Equal(t, map[string]Part{"smooth": {Kind: "constant", Weight: 1}}, s.History.Parts)
+	assert.Equal(t, map[string]Part{"smooth": {Kind: "constant", Values: map[string]float64{"weight": 1}, Arrays: map[string][]float64{}}}, s.History.Parts)
 	assert.Equal(t, Dust{Model: "none", ScaleHeightPc: 110, MidplaneAvPerKpc: 0.8}, s.Dust)
 	assert.Equal(t, "barnes2007", s.Spin.Law)
 	assert.Equal(t, "wright2018", s.Spin.Turnover)

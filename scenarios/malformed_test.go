@@ -189,7 +189,7 @@ var malformedCases = []malformedCase{
 		name:   "bursts take more than all the mass",
 		text:   minimal + "[history.a]\nkind = \"burst\"\nage_gyr = 0.6\nwidth_gyr = 0.1\nmass_fraction = 0.7\n[history.b]\nkind = \"burst\"\nage_gyr = 2.0\nwidth_gyr = 0.1\nmass_fraction = 0.6\n",
 		lineOf: "[history.smooth]",
-		want:   []string{"mass_fraction values add up to 1.3"},
+		want:   []string{"burst mass fractions sum to 1.3, above the allowed maximum 1"},
 	},
 	{
 		name:   "field key that does not apply to its kind",

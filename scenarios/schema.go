@@ -57,27 +57,31 @@ type History struct {
 	Parts     map[string]Part `toml:"-"`           // decoded by hand from the sub-tables
 }
 
-// Part is one component of a star-formation history. Which keys apply
-// depends on Kind; a key that does not apply to the kind is an error:
+// Part is one component of a star-formation history. Its kind is one the
+// history registry knows (sfh.RegisterKind: constant, exponential, burst,
+// dip, bins, ...), and its keys are that kind's, with their defaults
+// filled in; a key that does not apply to the kind is an error:
 //
 //	constant     weight
-//	exponential  weight, timescale_gyr (required)
+//	exponential  weight, timescale_gyr (required; positive declines, negative rises)
 //	burst        age_gyr, width_gyr, mass_fraction (all required)
 //	dip          age_gyr, width_gyr, depth (all required)
 //	bins         weight, edges_gyr, rates (both required)
 //
-// In a file that extends another, kind = "none" removes an inherited part.
+// Smooth parts' weight is their relative share of the non-burst mass
+// (default 1). In a file that extends another, kind = "none" removes an
+// inherited part.
 type Part struct {
-	Kind         string    `toml:"kind"`          // constant | exponential | burst | dip | bins
-	Weight       float64   `toml:"weight"`        // smooth parts: relative share of non-burst mass; default 1
-	TimescaleGyr float64   `toml:"timescale_gyr"` // exponential: e-folding time in cosmic time, > 0 (declining rate)
-	AgeGyr       float64   `toml:"age_gyr"`       // burst, dip: centre in lookback age
-	WidthGyr     float64   `toml:"width_gyr"`     // burst, dip: Gaussian sigma
-	MassFraction float64   `toml:"mass_fraction"` // burst: share of all mass formed, in [0,1]
-	Depth        float64   `toml:"depth"`         // dip: fractional suppression at its centre, in [0,1]
-	EdgesGyr     []float64 `toml:"edges_gyr"`     // bins: increasing lookback-age edges
-	Rates        []float64 `toml:"rates"`         // bins: relative rate per bin (len(edges)-1)
+	Kind   string
+	Values map[string]float64   // the kind's number keys
+	Arrays map[string][]float64 // the kind's array keys
 }
+
+// Float returns a number key of the part (0 if it has none).
+func (p Part) Float(key string) float64 { return p.Values[key] }
+
+// Array returns an array key of the part.
+func (p Part) Array(key string) []float64 { return p.Arrays[key] }
 
 // Disk places stars: heating with age, the vertical potential, the radial
 // profile and the Sun.

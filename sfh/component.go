@@ -154,9 +154,19 @@ func copyComponent(c Component) Component {
 // outOfRange formats the common validation error: which part, which
 // parameter, its value and the range that would be accepted.
 func outOfRange(part string, c Component, field, key string, v float64, allowed string) error {
-	return fmt.Errorf("sfh: part %q (%s): %s = %g is outside the allowed range %s (parameter %q)",
-		part, c.kind(), field, v, allowed, part+"."+key)
+	return &ParamError{Param: part + "." + key, msg: fmt.Sprintf("sfh: part %q (%s): %s = %g is outside the allowed range %s (parameter %q)",
+		part, c.kind(), field, v, allowed, part+"."+key)}
 }
+
+// ParamError is an error about one parameter of a history, named as in
+// Params ("burst.age_gyr"), so that a caller can point at the key that
+// set it.
+type ParamError struct {
+	Param string
+	msg   string
+}
+
+func (e *ParamError) Error() string { return e.msg }
 
 func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 

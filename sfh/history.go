@@ -93,14 +93,14 @@ func New(maxAgeGyr float64, parts []Part) (*History, error) {
 		h.parts[i] = Part{Name: p.Name, Component: copyComponent(c), Weight: p.Weight}
 	}
 	if burstSum > 1+burstSumSlack {
-		return nil, fmt.Errorf("sfh: burst mass fractions sum to %g, above the allowed maximum 1; lower the bursts' MassFraction", burstSum)
+		return nil, fmt.Errorf("sfh: burst mass fractions sum to %.6g, above the allowed maximum 1; lower the bursts' MassFraction (mass_fraction)", burstSum)
 	}
 	rest := math.Max(1-burstSum, 0)
 	if burstSum > 1-burstSumSlack {
 		rest = 0
 	}
 	if rest > 0 && weightSum == 0 {
-		return nil, fmt.Errorf("sfh: bursts take %g of the mass but no smooth component with Weight > 0 takes the remaining %g; add one or raise the burst fractions to sum to 1",
+		return nil, fmt.Errorf("sfh: bursts take %.6g of the mass but no smooth component with Weight > 0 takes the remaining %.6g; add one (constant, exponential or bins) or raise the burst fractions to sum to 1",
 			burstSum, rest)
 	}
 	for _, p := range h.parts {
