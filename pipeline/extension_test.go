@@ -17,6 +17,7 @@ import (
 	"spinpop/model/spin"
 	"spinpop/pipeline"
 	"spinpop/scenarios"
+	"spinpop/sfh"
 )
 
 // constantLaw is a toy spin-down law: every star rotates with one period.
@@ -136,4 +137,36 @@ func containsColumn(name string) bool {
 		}
 	}
 	return false
+}
+
+// A toy kind of history part, registered from this file alone: star
+// formation at a flat rate between two ages (built on sfh's Piecewise).
+func TestToyHistoryKindRunsFromAScenario(t *testing.T) {
+	if _, ok := sfh.LookupKind("window"); !ok {
+		require.NoError(t, sfh.RegisterKind(sfh.KindSpec{
+			Name: "window", Label: "flat between two ages", Role: sfh.Smooth,
+			Keys: []sfh.KindKey{
+				{Name: "from_gyr", Doc: "youngest age", Required: true, Min: 0, MaxIsAge: true},
+				{Name: "to_gyr", Doc: "oldest age", Required: true, Min: 0, MaxIsAge: true},
+				{Name: "weight", Default: 1, Min: 0, Max: math.Inf(1), Free: true},
+			},
+			New: func(v sfh.Values) (sfh.Component, float64) {
+				return sfh.Piecewise{EdgesGyr: []float64{v.Float("from_gyr"), v.Float("to_gyr")}, Rates: []float64{1}}, v.Float("weight")
+			},
+		}))
+	}
+	text := strings.Replace(toyScenario, "[history.smooth]\nkind = \"constant\"\n", "[history.w]\nkind = \"window\"\nfrom_gyr = 1.0\nto_gyr = 3.0\n", 1)
+	text = strings.Replace(text, "law = \"toy-constant\"\n[spin.toy]\nperiod_d = 7.5\n", "law = \"barnes2007\"\n", 1)
+	res, err := scenarios.LoadBytes("window.toml", []byte(text), nil)
+	require.NoError(t, err)
+	assert.Contains(t, string(res.Canonical()), "[history.w]\nfrom_gyr = 1.0\nkind = \"window\"\nto_gyr = 3.0\nweight = 1.0\n")
+	sim, err := pipeline.Simulate(context.Background(), res, pipeline.SimulateOptions{KeepCatalog: true})
+	require.NoError(t, err)
+	require.Greater(t, sim.Catalog.N, 100)
+	for i := 0; i < sim.Catalog.N; i++ {
+		require.True(t, sim.Catalog.AgeGyr[i] >= 1 && sim.Catalog.AgeGyr[i] <= 3, "age %g outside the window", sim.Catalog.AgeGyr[i])
+	}
+	_, err = scenarios.LoadBytes("window.toml", []byte(strings.Replace(text, "to_gyr = 3.0", "to_gyr = 30.0", 1)), nil)
+	require.Error(t, err)
+	assert.Contains(t, err.Error(), "history.w.to_gyr = 30 is out of range; it must be in [0, 10]")
 }
