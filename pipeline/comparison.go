@@ -166,6 +166,22 @@ func (c *Comparison) GyrochroneAt(ageGyr float64) func(bv float64) (float64, boo
 	}
 }
 
+// ReportHead opens every report of a comparison: what ran, on which
+// scenario, and the catalog as read.
+type ReportHead struct {
+	Tool         string      `json:"tool"`
+	Version      string      `json:"version"`
+	Scenario     string      `json:"scenario"`
+	ScenarioName string      `json:"scenario_name"`
+	ScenarioHash string      `json:"scenario_sha256"`
+	Data         DataSummary `json:"data"`
+}
+
+func (c *Comparison) reportHead() ReportHead {
+	return ReportHead{Tool: "spinpop", Version: Version, Scenario: c.Source, ScenarioName: c.Scenario.Name,
+		ScenarioHash: c.Resolved.Hash(), Data: c.DataSummary()}
+}
+
 // DataSummary describes the catalog as read and the templates it is
 // compared with.
 type DataSummary struct {

@@ -129,12 +129,7 @@ func (c *Comparison) Inject(ctx context.Context, o InjectOptions) (*InjectReport
 
 // InjectReport is what injection–recovery found, as inject.json holds it.
 type InjectReport struct {
-	Tool           string       `json:"tool"`
-	Version        string       `json:"version"`
-	Scenario       string       `json:"scenario"`
-	ScenarioName   string       `json:"scenario_name"`
-	ScenarioHash   string       `json:"scenario_sha256"`
-	Data           DataSummary  `json:"data"`
+	ReportHead
 	Method         string       `json:"calibration"`
 	Seed           uint64       `json:"seed"`
 	Threads        int          `json:"threads"`
@@ -189,10 +184,8 @@ type InjectCell struct {
 }
 
 func newInjectReport(c *Comparison, sw compare.InjectionSweep, ir *compare.InjectionResult, likeYours bool) (*InjectReport, error) {
-	s := c.Scenario
 	rep := &InjectReport{
-		Tool: "spinpop", Version: Version, Scenario: c.Source, ScenarioName: s.Name, ScenarioHash: c.Resolved.Hash(),
-		Data: c.DataSummary(), Method: ir.Method, Seed: sw.Seed, Threads: c.Workers, StarsPerMock: sw.NStars,
+		ReportHead: c.reportHead(), Method: ir.Method, Seed: sw.Seed, Threads: c.Workers, StarsPerMock: sw.NStars,
 		LikeYours: likeYours, Replicates: sw.Replicates, Bootstrap: sw.Bootstrap, DetectionP: DetectionP,
 		AgeParam: sw.AgeParam, FractionParam: sw.FractionParam, AgesGyr: sw.BurstAgesGyr, Fractions: sw.BurstFractions,
 		NullLRs:        finiteOnly(ir.NullLRs),

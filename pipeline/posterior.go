@@ -24,12 +24,7 @@ type PosteriorOptions struct {
 
 // PosteriorReport summarises the posterior, as posterior.json holds it.
 type PosteriorReport struct {
-	Tool               string           `json:"tool"`
-	Version            string           `json:"version"`
-	Scenario           string           `json:"scenario"`
-	ScenarioName       string           `json:"scenario_name"`
-	ScenarioHash       string           `json:"scenario_sha256"`
-	Data               DataSummary      `json:"data"`
+	ReportHead
 	Seed               uint64           `json:"seed"`
 	Walkers            int              `json:"walkers"`
 	Steps              int              `json:"steps"`
@@ -99,8 +94,7 @@ func (c *Comparison) Posterior(ctx context.Context, o PosteriorOptions) (*compar
 func newPosteriorReport(c *Comparison, post *compare.Posterior, seed uint64) (*PosteriorReport, error) {
 	s := c.Scenario
 	rep := &PosteriorReport{
-		Tool: "spinpop", Version: Version, Scenario: c.Source, ScenarioName: s.Name, ScenarioHash: c.Resolved.Hash(),
-		Data: c.DataSummary(), Seed: seed, Walkers: post.Walkers, Steps: post.Steps, Burn: post.Burn,
+		ReportHead: c.reportHead(), Seed: seed, Walkers: post.Walkers, Steps: post.Steps, Burn: post.Burn,
 		AcceptanceFraction: post.AcceptanceFraction, Converged: true, Warnings: []string{},
 		MAPLogPosterior: math.Inf(-1),
 	}

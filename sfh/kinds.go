@@ -5,7 +5,8 @@ import (
 	"math"
 	"slices"
 	"strconv"
-	"sync"
+
+	"spinpop/internal/registry"
 )
 
 // A kind of history part makes itself known to the scenario format in one
@@ -75,45 +76,24 @@ type KeyError struct {
 
 func (e *KeyError) Error() string { return e.Key + " " + e.Msg }
 
-var (
-	kindsMu sync.RWMutex
-	kinds   []KindSpec
-)
+var kinds = registry.New(func(k KindSpec) string { return k.Name })
 
 // RegisterKind adds a kind of part; its name must be new.
 func RegisterKind(k KindSpec) error {
-	if k.Name == "" || k.New == nil {
-		return fmt.Errorf("sfh: a kind of part needs a name and a constructor")
+	if k.New == nil {
+		return fmt.Errorf("sfh: kind %q needs a constructor", k.Name)
 	}
-	kindsMu.Lock()
-	defer kindsMu.Unlock()
-	for _, o := range kinds {
-		if o.Name == k.Name {
-			return fmt.Errorf("sfh: kind %q is registered already", k.Name)
-		}
+	if err := kinds.Add(k, nil); err != nil {
+		return fmt.Errorf("sfh: kind: %w", err)
 	}
-	kinds = append(kinds, k)
 	return nil
 }
 
 // Kinds returns the registered kinds in registration order.
-func Kinds() []KindSpec {
-	kindsMu.RLock()
-	defer kindsMu.RUnlock()
-	return slices.Clone(kinds)
-}
+func Kinds() []KindSpec { return kinds.All() }
 
 // LookupKind returns the kind registered under name.
-func LookupKind(name string) (KindSpec, bool) {
-	kindsMu.RLock()
-	defer kindsMu.RUnlock()
-	for _, k := range kinds {
-		if k.Name == name {
-			return k, true
-		}
-	}
-	return KindSpec{}, false
-}
+func LookupKind(name string) (KindSpec, bool) { return kinds.Lookup(name) }
 
 // KeyNames lists the kind's keys, sorted.
 func (k KindSpec) KeyNames() []string {

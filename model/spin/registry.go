@@ -3,8 +3,8 @@ package spin
 import (
 	"fmt"
 	"math"
-	"slices"
-	"sync"
+
+	"spinpop/internal/registry"
 )
 
 // A spin-down law makes itself known in one place: a LawSpec handed to
@@ -87,30 +87,13 @@ type Env struct {
 	TeffOfMass func(massMsun float64) float64 // from the relation table
 }
 
-var (
-	registryMu sync.RWMutex
-	registry   []LawSpec
-)
+var laws = registry.New(func(s LawSpec) string { return s.Name })
 
 // Register adds a law. Its name, and the names of its option tables, must
 // be new.
 func Register(spec LawSpec) error {
-	if spec.Name == "" || spec.New == nil {
-		return fmt.Errorf("spin: a law needs a name and a constructor")
-	}
-	registryMu.Lock()
-	defer registryMu.Unlock()
-	for _, s := range registry {
-		if s.Name == spec.Name {
-			return fmt.Errorf("spin: law %q is registered already", spec.Name)
-		}
-		for _, t := range s.Tables {
-			for _, u := range spec.Tables {
-				if t.Name == u.Name {
-					return fmt.Errorf("spin: law %q: option table %q belongs to law %q", spec.Name, u.Name, s.Name)
-				}
-			}
-		}
+	if spec.New == nil {
+		return fmt.Errorf("spin: law %q needs a constructor", spec.Name)
 	}
 	for _, t := range spec.Tables {
 		for _, k := range t.Keys {
@@ -121,7 +104,21 @@ func Register(spec LawSpec) error {
 			}
 		}
 	}
-	registry = append(registry, spec)
+	err := laws.Add(spec, func(existing []LawSpec) error {
+		for _, s := range existing {
+			for _, t := range s.Tables {
+				for _, u := range spec.Tables {
+					if t.Name == u.Name {
+						return fmt.Errorf("option table %q belongs to law %q", u.Name, s.Name)
+					}
+				}
+			}
+		}
+		return nil
+	})
+	if err != nil {
+		return fmt.Errorf("spin: law %q: %w", spec.Name, err)
+	}
 	return nil
 }
 
@@ -134,32 +131,13 @@ func MustRegister(spec LawSpec) {
 }
 
 // Laws returns the registered laws in registration order.
-func Laws() []LawSpec {
-	registryMu.RLock()
-	defer registryMu.RUnlock()
-	return slices.Clone(registry)
-}
+func Laws() []LawSpec { return laws.All() }
 
 // Lookup returns the law registered under name.
-func Lookup(name string) (LawSpec, bool) {
-	registryMu.RLock()
-	defer registryMu.RUnlock()
-	for _, s := range registry {
-		if s.Name == name {
-			return s, true
-		}
-	}
-	return LawSpec{}, false
-}
+func Lookup(name string) (LawSpec, bool) { return laws.Lookup(name) }
 
 // Names lists the registered law names in registration order.
-func Names() []string {
-	var out []string
-	for _, s := range Laws() {
-		out = append(out, s.Name)
-	}
-	return out
-}
+func Names() []string { return laws.Names() }
 
 // OptionTables returns every registered law's option tables, with the law
 // that owns each.
