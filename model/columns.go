@@ -22,6 +22,7 @@ import (
 //   - Words: a word from the star's flags.
 type Column struct {
 	Name string // unit in the name, e.g. "period_true_d"
+	Unit string // the unit as FITS and Parquet files state it ("d", "solMass"); "" for none
 	Doc  string // what it holds, for readers of the file
 
 	Stored  func(c *Chunk) *[]float64
@@ -72,28 +73,28 @@ func (col *Column) IsWords() bool { return col.Words != nil }
 
 // builtinColumns are the catalogue's columns, in file order.
 var builtinColumns = []Column{
-	{Name: "mass_msun", Doc: "mass of the (primary) star", Stored: func(c *Chunk) *[]float64 { return &c.MassMsun }},
-	{Name: "companion_mass_msun", Doc: "mass of an unresolved companion; 0 when single", Stored: func(c *Chunk) *[]float64 { return &c.CompanionMsun }},
-	{Name: "age_gyr", Doc: "age", Stored: func(c *Chunk) *[]float64 { return &c.AgeGyr }},
-	{Name: "feh_dex", Doc: "[Fe/H]", Stored: func(c *Chunk) *[]float64 { return &c.FeH }},
-	{Name: "teff_k", Doc: "effective temperature of the primary", Stored: func(c *Chunk) *[]float64 { return &c.TeffK }},
-	{Name: "b_v_mag", Doc: "intrinsic B−V of the system", Stored: func(c *Chunk) *[]float64 { return &c.BV }},
-	{Name: "v_ks_mag", Doc: "intrinsic V−Ks of the system", Stored: func(c *Chunk) *[]float64 { return &c.VKs }},
-	{Name: "obs_b_v_mag", Doc: "B−V as observed (reddened)", Stored: func(c *Chunk) *[]float64 { return &c.ObsBV }},
-	{Name: "abs_mag_v", Doc: "absolute V of the system", Stored: func(c *Chunk) *[]float64 { return &c.AbsMagV }},
-	{Name: "abs_mag_band", Doc: "absolute magnitude in the survey band", Stored: func(c *Chunk) *[]float64 { return &c.AbsMagBand }},
-	{Name: "obs_abs_mag_band", Doc: "absolute V as derived from parallax, extinction still in", Stored: func(c *Chunk) *[]float64 { return &c.ObsAbsMag }},
-	{Name: "app_mag_band", Doc: "apparent magnitude in the survey band", Stored: func(c *Chunk) *[]float64 { return &c.AppMag }},
-	{Name: "a_v_mag", Doc: "extinction in V", Stored: func(c *Chunk) *[]float64 { return &c.AV }},
-	{Name: "distance_pc", Doc: "distance from the Sun", Stored: func(c *Chunk) *[]float64 { return &c.DistPc }},
-	{Name: "l_deg", Doc: "Galactic longitude", Stored: func(c *Chunk) *[]float64 { return &c.LDeg }, Reset: ResetJointDraw},
-	{Name: "b_deg", Doc: "Galactic latitude", Stored: func(c *Chunk) *[]float64 { return &c.BDeg }, Reset: ResetJointDraw},
-	{Name: "z_pc", Doc: "height above the Galactic midplane", Stored: func(c *Chunk) *[]float64 { return &c.ZPc }},
-	{Name: "period_true_d", Doc: "true rotation period", Stored: func(c *Chunk) *[]float64 { return &c.PeriodD }, Reset: ResetAlways},
-	{Name: "period_measured_d", Doc: "period the survey reports", Stored: func(c *Chunk) *[]float64 { return &c.MeasPeriodD }, Reset: ResetAlways},
+	{Name: "mass_msun", Unit: "solMass", Doc: "mass of the (primary) star", Stored: func(c *Chunk) *[]float64 { return &c.MassMsun }},
+	{Name: "companion_mass_msun", Unit: "solMass", Doc: "mass of an unresolved companion; 0 when single", Stored: func(c *Chunk) *[]float64 { return &c.CompanionMsun }},
+	{Name: "age_gyr", Unit: "Gyr", Doc: "age", Stored: func(c *Chunk) *[]float64 { return &c.AgeGyr }},
+	{Name: "feh_dex", Unit: "dex", Doc: "[Fe/H]", Stored: func(c *Chunk) *[]float64 { return &c.FeH }},
+	{Name: "teff_k", Unit: "K", Doc: "effective temperature of the primary", Stored: func(c *Chunk) *[]float64 { return &c.TeffK }},
+	{Name: "b_v_mag", Unit: "mag", Doc: "intrinsic B−V of the system", Stored: func(c *Chunk) *[]float64 { return &c.BV }},
+	{Name: "v_ks_mag", Unit: "mag", Doc: "intrinsic V−Ks of the system", Stored: func(c *Chunk) *[]float64 { return &c.VKs }},
+	{Name: "obs_b_v_mag", Unit: "mag", Doc: "B−V as observed (reddened)", Stored: func(c *Chunk) *[]float64 { return &c.ObsBV }},
+	{Name: "abs_mag_v", Unit: "mag", Doc: "absolute V of the system", Stored: func(c *Chunk) *[]float64 { return &c.AbsMagV }},
+	{Name: "abs_mag_band", Unit: "mag", Doc: "absolute magnitude in the survey band", Stored: func(c *Chunk) *[]float64 { return &c.AbsMagBand }},
+	{Name: "obs_abs_mag_band", Unit: "mag", Doc: "absolute V as derived from parallax, extinction still in", Stored: func(c *Chunk) *[]float64 { return &c.ObsAbsMag }},
+	{Name: "app_mag_band", Unit: "mag", Doc: "apparent magnitude in the survey band", Stored: func(c *Chunk) *[]float64 { return &c.AppMag }},
+	{Name: "a_v_mag", Unit: "mag", Doc: "extinction in V", Stored: func(c *Chunk) *[]float64 { return &c.AV }},
+	{Name: "distance_pc", Unit: "pc", Doc: "distance from the Sun", Stored: func(c *Chunk) *[]float64 { return &c.DistPc }},
+	{Name: "l_deg", Unit: "deg", Doc: "Galactic longitude", Stored: func(c *Chunk) *[]float64 { return &c.LDeg }, Reset: ResetJointDraw},
+	{Name: "b_deg", Unit: "deg", Doc: "Galactic latitude", Stored: func(c *Chunk) *[]float64 { return &c.BDeg }, Reset: ResetJointDraw},
+	{Name: "z_pc", Unit: "pc", Doc: "height above the Galactic midplane", Stored: func(c *Chunk) *[]float64 { return &c.ZPc }},
+	{Name: "period_true_d", Unit: "d", Doc: "true rotation period", Stored: func(c *Chunk) *[]float64 { return &c.PeriodD }, Reset: ResetAlways},
+	{Name: "period_measured_d", Unit: "d", Doc: "period the survey reports", Stored: func(c *Chunk) *[]float64 { return &c.MeasPeriodD }, Reset: ResetAlways},
 	{Name: "rossby", Doc: "Rossby number", Stored: func(c *Chunk) *[]float64 { return &c.Rossby }, Reset: ResetAlways},
-	{Name: "amplitude_ppm", Doc: "spot modulation semi-amplitude", Stored: func(c *Chunk) *[]float64 { return &c.AmpPpm }, Reset: ResetAlways},
-	{Name: "noise_ppm", Doc: "survey noise per cadence at the star's magnitude", Stored: func(c *Chunk) *[]float64 { return &c.NoisePpm }, Reset: ResetAlways},
+	{Name: "amplitude_ppm", Unit: "ppm", Doc: "spot modulation semi-amplitude", Stored: func(c *Chunk) *[]float64 { return &c.AmpPpm }, Reset: ResetAlways},
+	{Name: "noise_ppm", Unit: "ppm", Doc: "survey noise per cadence at the star's magnitude", Stored: func(c *Chunk) *[]float64 { return &c.NoisePpm }, Reset: ResetAlways},
 	{Name: "detected", Doc: "1 if the survey measured a period", Flag: FlagDetected},
 	{Name: "binary", Doc: "1 if the star has an unresolved companion", Flag: FlagBinary},
 	{Name: "evolved", Doc: "1 if past its main-sequence lifetime (brightened)", Flag: FlagEvolved},
