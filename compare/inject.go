@@ -257,7 +257,7 @@ func InjectRecover(ctx context.Context, tpl *Templates, opts LikeOptions, smooth
 		}
 		ages := append([]float64(nil), cell.RecoveredAgesGyr...)
 		slices.Sort(ages)
-		cell.MedianAgeGyr = median(ages)
+		cell.MedianAgeGyr = stats.QuantileSorted(ages, 0.5)
 	}
 	return res, nil
 }
@@ -267,16 +267,4 @@ func scaled(x []float64, s float64) []float64 {
 		x[i] *= s
 	}
 	return x
-}
-
-// median of sorted values.
-func median(s []float64) float64 {
-	n := len(s)
-	if n == 0 {
-		return math.NaN()
-	}
-	if n%2 == 1 {
-		return s[n/2]
-	}
-	return 0.5 * (s[n/2-1] + s[n/2])
 }

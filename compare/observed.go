@@ -13,11 +13,13 @@ import (
 
 // DataSpec says where an observed catalog is and how to read and cut it.
 type DataSpec struct {
-	Path string // the catalog file (CSV or ECSV, optionally gzip-compressed), as named in messages
+	Path string // the catalog file (CSV, ECSV, FITS or Parquet), as named in messages
 	// Open, if not nil, opens the catalog instead of os.Open(Path): for
 	// catalogs inside an embedded file system.
 	Open      func() (io.ReadCloser, error)
 	SHA256    string          // expected hex SHA-256 of the file's bytes; "" skips the check
+	Format    string          // declared format (catalog.Options.Format); "" or "auto" takes it from the content
+	Extension string          // FITS: the extension by EXTNAME or number (catalog.Options.Extension)
 	Mapping   catalog.Mapping // column names; Color is B−V, AbsMag is M_V
 	SunZPc    float64         // z☉ added to d sin b when heights are derived from parallax
 	Cuts      model.Cuts      // the catalogue cuts, the same the model applies
@@ -59,7 +61,7 @@ func ReadObserved(spec DataSpec, space Space, rejects io.Writer) (*Observed, err
 	for _, c := range CutNames {
 		obs.CutAway[c] = 0
 	}
-	opt := catalog.Options{Mapping: spec.Mapping, ZSunPc: spec.SunZPc}
+	opt := catalog.Options{Mapping: spec.Mapping, ZSunPc: spec.SunZPc, Format: spec.Format, Extension: spec.Extension}
 	var sink *catalog.CSVRejectWriter
 	if rejects != nil {
 		sink = catalog.NewCSVRejectWriter(rejects)

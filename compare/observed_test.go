@@ -15,6 +15,7 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"spinpop/compare/catalog"
+	"spinpop/fitstable"
 	"spinpop/model"
 )
 
@@ -124,6 +125,50 @@ func TestReadObservedCutsRejectsAndHash(t *testing.T) {
 	_, err = ReadObserved(spec, sp, nil)
 	assert.ErrorContains(t, err, "relations")
 	assert.False(t, math.IsNaN(total))
+}
+
+// The same catalog as a FITS binary table: the same stars kept and cut,
+// nulls counted as missing values, and a declared format checked.
+func TestReadObservedFITS(t *testing.T) {
+	rel, err := model.DwarfSequence()
+	require.NoError(t, err)
+	cuts := model.Cuts{BVMin: 0.45, BVMax: 1.6, MSBandBrightMag: 0.4, MSBandFaintMag: 0.4, PeriodMinD: 0.5, PeriodMaxD: 100, HeightMaxPc: 600}
+	ms := func(bv float64) float64 { m, ok := rel.AbsMagVAtBV(bv); require.True(t, ok); return m }
+	nan := math.NaN()
+	rows := [][4]float64{
+		{12, 0.8, ms(0.8), 50}, {20, 1.0, ms(1.0) + 0.1, -120}, {12, 0.3, ms(0.8), 50}, {12, 0.8, ms(0.8) - 1.0, 50},
+		{150, 0.8, ms(0.8), 50}, {12, 0.8, ms(0.8), 900}, {0.7, 0.8, ms(0.8), 50}, {nan, 0.8, 5, 50}, {-3, 0.8, 5, 50},
+	}
+	path := filepath.Join(t.TempDir(), "cat.fits")
+	w, err := fitstable.Create(path, "STARS", []fitstable.WriteColumn{
+		{Name: "period_d", Unit: "d", Type: fitstable.Float64}, {Name: "b_v", Unit: "mag", Type: fitstable.Float64},
+		{Name: "abs_mag_v", Unit: "mag", Type: fitstable.Float64}, {Name: "z_pc", Unit: "pc", Type: fitstable.Float64},
+	})
+	require.NoError(t, err)
+	for _, r := range rows {
+		for i, v := range r {
+			w.SetFloat64(i, v)
+		}
+		require.NoError(t, w.WriteRow())
+	}
+	require.NoError(t, w.Close())
+	sp, err := NewSpace(0.45, 1.6, 8, 1, 60, 10, []float64{0, 100, 200, 400, 800})
+	require.NoError(t, err)
+	spec := DataSpec{Path: path, Format: "fits", Extension: "STARS", Mapping: catalog.Mapping{Period: "period_d", Color: "b_v", AbsMag: "abs_mag_v", Height: "z_pc"}, Cuts: cuts, Relations: rel}
+	var rej bytes.Buffer
+	obs, err := ReadObserved(spec, sp, &rej)
+	require.NoError(t, err)
+	assert.Equal(t, 2, obs.N)
+	assert.Equal(t, map[string]int{CutColor: 1, CutMainSequence: 1, CutPeriodWindow: 1, CutHeight: 1, CutOutsideSpace: 1}, obs.CutAway)
+	assert.Equal(t, map[string]int{"missing value": 1, "period not positive": 1}, obs.Rejected)
+	assert.Equal(t, 9, obs.Rows)
+	assert.Contains(t, rej.String(), "\n8,missing value,period_d,,")
+
+	spec.Format = "csv"
+	_, err = ReadObserved(spec, sp, nil)
+	require.ErrorIs(t, err, catalog.ErrFormat)
+	assert.Contains(t, err.Error(), `the declared format is "csv", but the file is a FITS file`)
+	assert.Contains(t, err.Error(), path)
 }
 
 // Cells no template star reached are left out of the data, counted.

@@ -14,7 +14,7 @@ import (
 )
 
 // testWorld is a small real population, built by hand the way
-// scenarios/build.go builds one (base example's survey and disk, a
+// assemble.Build builds one (base example's survey and disk, a
 // narrower and nearer cone so that a few hundred thousand stars suffice).
 type testWorld struct {
 	pop     *model.Population
@@ -35,7 +35,7 @@ func (w *testWorld) binIntegrals() []float64 {
 
 // newTestWorld builds the population with the history's own bin
 // probabilities (mass × line-of-sight integral) and exact ages in each bin,
-// as scenarios.Build does.
+// as assemble.Build does.
 func newTestWorld(t testing.TB, hist *sfh.History, edges []float64) *testWorld {
 	t.Helper()
 	rel, err := model.DwarfSequence()

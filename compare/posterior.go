@@ -125,24 +125,11 @@ func SamplePosterior(ctx context.Context, like *Likelihood, m HistoryModel, opts
 			col[j] = flat[j*d+i]
 		}
 		slices.Sort(col)
-		post.Median[i] = quantileSorted(col, 0.5)
-		post.Q16[i] = quantileSorted(col, 0.16)
-		post.Q84[i] = quantileSorted(col, 0.84)
+		post.Median[i] = stats.QuantileSorted(col, 0.5)
+		post.Q16[i] = stats.QuantileSorted(col, 0.16)
+		post.Q84[i] = stats.QuantileSorted(col, 0.84)
 	}
 	return post, nil
-}
-
-// quantileSorted interpolates linearly between order statistics.
-func quantileSorted(s []float64, q float64) float64 {
-	if len(s) == 0 {
-		return math.NaN()
-	}
-	x := q * float64(len(s)-1)
-	i := int(math.Floor(x))
-	if i >= len(s)-1 {
-		return s[len(s)-1]
-	}
-	return s[i] + (x-float64(i))*(s[i+1]-s[i])
 }
 
 // SFHBand returns, at each age of ageGrid, the median and the 16 and 84 %
@@ -174,7 +161,7 @@ func (p *Posterior) SFHBand(m HistoryModel, ageGrid []float64) (median, lo16, hi
 	median, lo16, hi84 = make([]float64, len(ageGrid)), make([]float64, len(ageGrid)), make([]float64, len(ageGrid))
 	for a, r := range rates {
 		slices.Sort(r)
-		median[a], lo16[a], hi84[a] = quantileSorted(r, 0.5), quantileSorted(r, 0.16), quantileSorted(r, 0.84)
+		median[a], lo16[a], hi84[a] = stats.QuantileSorted(r, 0.5), stats.QuantileSorted(r, 0.16), stats.QuantileSorted(r, 0.84)
 	}
 	return median, lo16, hi84, nil
 }

@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"math"
 	"sort"
+
+	"spinpop/internal/grid"
 	"spinpop/model"
 )
 
@@ -34,8 +36,8 @@ func NewSpace(bvMin, bvMax float64, nColor int, pMinD, pMaxD float64, nLogP int,
 		return Space{}, fmt.Errorf("compare: %d log-period bins: want at least 1", nLogP)
 	}
 	s := Space{
-		ColorEdges:     linspace(bvMin, bvMax, nColor),
-		LogPeriodEdges: linspace(math.Log10(pMinD), math.Log10(pMaxD), nLogP),
+		ColorEdges:     grid.Linspace(bvMin, bvMax, nColor+1),
+		LogPeriodEdges: grid.Linspace(math.Log10(pMinD), math.Log10(pMaxD), nLogP+1),
 	}
 	if len(heightEdges) == 0 {
 		s.HeightEdgesPc = []float64{0, math.Inf(1)}
@@ -51,16 +53,6 @@ func NewSpace(bvMin, bvMax float64, nColor int, pMinD, pMaxD float64, nLogP int,
 		s.HeightEdgesPc = append([]float64(nil), heightEdges...)
 	}
 	return s, nil
-}
-
-// linspace returns n+1 equally spaced edges from lo to hi, the last exact.
-func linspace(lo, hi float64, n int) []float64 {
-	e := make([]float64, n+1)
-	for i := range e {
-		e[i] = lo + (hi-lo)*float64(i)/float64(n)
-	}
-	e[n] = hi
-	return e
 }
 
 // NumColor, NumLogPeriod and NumHeight return the number of bins per axis.

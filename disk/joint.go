@@ -3,8 +3,9 @@ package disk
 import (
 	"fmt"
 	"math"
-	"math/bits"
 	"math/rand/v2"
+
+	"spinpop/internal/alias"
 )
 
 // JointSampler draws (age bin, position) pairs from the joint density
@@ -108,7 +109,7 @@ func (s *Sampler) Joint(binWeights []float64) (*JointSampler, error) {
 		}
 	}
 	for i, a := range blockAlias {
-		j.blocks[i].prob, j.blocks[i].alias = a.prob, a.alias
+		j.blocks[i].prob, j.blocks[i].alias = a.Prob, a.Alias
 	}
 	nc := len(volOmega)
 	for 1<<j.classShift < nc {
@@ -212,9 +213,9 @@ func (j *JointSampler) try(r *rand.Rand, p *proposal) (k, bi int, kept bool) {
 func (j *JointSampler) pickBlock(ci int, x uint64) int {
 	s := j.s
 	first := int(s.classStart[ci])
-	hi, lo := bits.Mul64(x, uint64(int(s.classStart[ci+1])-first))
-	b := first + int(hi)
-	if coin := float32(lo>>40) * (1.0 / (1 << 24)); !(coin < j.blocks[b].prob) {
+	hi, coin := alias.Split(x, int(s.classStart[ci+1])-first)
+	b := first + hi
+	if !(coin < j.blocks[b].prob) {
 		b = first + int(j.blocks[b].alias)
 	}
 	return b

@@ -105,7 +105,7 @@ func (bb *BankBuilder) Add(c *Chunk) {
 		if f&FlagGone != 0 || f&FlagInMagRange == 0 {
 			continue
 		}
-		if cuts.HeightMaxPc > 0 && math.Abs(c.ZPc[i]) > cuts.HeightMaxPc {
+		if !cuts.HeightInRange(c.ZPc[i]) {
 			continue
 		}
 		bv, absV := c.ObsBV[i], c.ObsAbsMag[i]
@@ -113,7 +113,7 @@ func (bb *BankBuilder) Add(c *Chunk) {
 			if f&catalogCuts != catalogCuts {
 				continue
 			}
-		} else if !(bv >= wide.BVMin && bv <= wide.BVMax) || !OnMainSequence(p.Relations, wide, bv, absV) {
+		} else if !wide.InColorRange(bv) || !wide.OnMainSequence(p.Relations, bv, absV) {
 			continue
 		}
 		m := c.MassMsun[i]
@@ -412,7 +412,7 @@ func (ob *observer) bin(k int, fine, fineVar []float64, lawSrc, spotSrc *rand.PC
 	inv := 1 / fineStepDex
 	for s := b.Start[k]; s < b.Start[k+1]; s++ {
 		bv := p.Survey.Color.Apply(float64(b.ModelBV[s]))
-		if ob.recut && (!(bv >= ob.cuts.BVMin && bv <= ob.cuts.BVMax) || !OnMainSequence(p.Relations, ob.cuts, bv, float64(b.ObsAbsMag[s]))) {
+		if ob.recut && (!ob.cuts.InColorRange(bv) || !ob.cuts.OnMainSequence(p.Relations, bv, float64(b.ObsAbsMag[s]))) {
 			continue
 		}
 		c := BinIndex(ob.g.ColorEdges, bv)

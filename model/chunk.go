@@ -94,10 +94,8 @@ func (c *Chunk) grow(n int) {
 		}
 		*s = (*s)[:n]
 	}
-	for _, s := range []*[]float64{&c.AgeGyr, &c.MassMsun, &c.CompanionMsun, &c.FeH, &c.TeffK, &c.BV, &c.VKs,
-		&c.AbsMagV, &c.AbsMagBand, &c.LDeg, &c.BDeg, &c.DistPc, &c.ZPc, &c.AV, &c.AppMag, &c.ObsBV, &c.ObsAbsMag,
-		&c.PeriodD, &c.MeasPeriodD, &c.Rossby, &c.AmpPpm, &c.NoisePpm, &c.DetectProb} {
-		f(s)
+	for _, col := range storedColumns {
+		f(col(c))
 	}
 	if cap(c.AgeBin) < n {
 		c.AgeBin = make([]int32, n)

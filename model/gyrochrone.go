@@ -15,12 +15,11 @@ type Gyrochrone struct {
 	PeriodD  []float64 // NaN where the law has no calibrated period
 }
 
-// GyrochronePeriod returns the period a law gives a typical star: the
-// empirical laws are deterministic; for the torque law it is the star that
-// started from the median initial period; a law with intrinsic scatter
+// GyrochronePeriod returns the period a law gives a typical star: a law
+// with a random initial state says which star is typical (spin.Typical);
+// the others are deterministic; a law with intrinsic scatter
 // (spin.Scattered) is drawn without it, at its median.
 func GyrochronePeriod(law spin.Law, s spin.Star) (float64, bool) {
-	// A law with intrinsic scatter is drawn at its median.
 	for {
 		u, ok := law.(interface{ Unwrap() spin.Law })
 		if !ok {
@@ -28,8 +27,8 @@ func GyrochronePeriod(law spin.Law, s spin.Star) (float64, bool) {
 		}
 		law = u.Unwrap()
 	}
-	if t, ok := law.(*spin.TorqueLaw); ok {
-		return t.PeriodAt(s.MassMsun, s.AgeGyr, 0.5)
+	if t, ok := law.(spin.Typical); ok {
+		return t.TypicalPeriod(s)
 	}
 	// Laws without a random initial state ignore the stream.
 	return law.Period(s, ChunkStream(0, 0))

@@ -80,16 +80,6 @@ func (c ColorCalibration) Validate() error {
 	return nil
 }
 
-// Cuts are the catalogue cuts, applied identically to model and data.
-type Cuts struct {
-	BVMin, BVMax    float64
-	MSBandBrightMag float64 // keep stars up to this much brighter than the single-star sequence at their color
-	MSBandFaintMag  float64 // and this much fainter
-	PeriodMinD      float64
-	PeriodMaxD      float64
-	HeightMaxPc     float64 // |z| cut; 0 = none
-}
-
 // Binaries sets unresolved companions.
 type Binaries struct {
 	FractionScale     float64 // multiplies BinaryFraction(m); 0 switches binaries off
@@ -220,24 +210,10 @@ func (p *Population) Fill(c *Chunk, r *rand.Rand) {
 	// What star works out only for the few stars that pass the photometric
 	// cuts starts as "not worked out" for all: column by column, which
 	// writes memory faster than eight scattered stores per star.
-	for _, col := range [...][]float64{c.PeriodD, c.MeasPeriodD, c.Rossby, c.AmpPpm, c.NoisePpm} {
-		fillNaN(col[:c.N])
-	}
-	if p.joint != nil {
-		fillNaN(c.LDeg[:c.N])
-		fillNaN(c.BDeg[:c.N])
-	}
+	resetColumns(c, c.N, p.joint != nil)
 	clear(c.DetectProb[:c.N])
 	for i := 0; i < c.N; i++ {
 		p.star(c, i, r)
-	}
-}
-
-// fillNaN sets every element of x to NaN.
-func fillNaN(x []float64) {
-	nan := math.NaN()
-	for i := range x {
-		x[i] = nan
 	}
 }
 
@@ -349,12 +325,12 @@ func (p *Population) star(c *Chunk, i int, r *rand.Rand) {
 	if app >= p.Survey.BrightLimitMag && app <= p.Survey.FaintLimitMag {
 		flags |= FlagInMagRange
 	}
-	if obsBV >= p.Cuts.BVMin && obsBV <= p.Cuts.BVMax {
+	if p.Cuts.InColorRange(obsBV) {
 		flags |= FlagInColorRange
 	}
 	// The band test is left out where the earlier cuts have already
 	// failed (see Chunk): it is the costliest of the three.
-	if flags&(FlagInMagRange|FlagInColorRange) == FlagInMagRange|FlagInColorRange && p.onMainSequence(obsBV, obsAbs) {
+	if flags&(FlagInMagRange|FlagInColorRange) == FlagInMagRange|FlagInColorRange && p.Cuts.OnMainSequence(p.Relations, obsBV, obsAbs) {
 		flags |= FlagOnMainSeq
 	}
 
@@ -382,8 +358,7 @@ func (p *Population) star(c *Chunk, i int, r *rand.Rand) {
 		flags |= FlagTidalLock
 	}
 	if !rot.ok {
-		flags |= FlagOutsideLaw
-		c.Rossby[i], c.AmpPpm[i], c.NoisePpm[i], c.DetectProb[i], c.MeasPeriodD[i] = math.NaN(), math.NaN(), math.NaN(), 0, math.NaN()
+		flags |= FlagOutsideLaw // its other rotation columns stay as Fill reset them
 		c.Flags[i] = flags
 		return
 	}
@@ -406,7 +381,7 @@ func (p *Population) star(c *Chunk, i int, r *rand.Rand) {
 		case spots.AliasDouble:
 			flags |= FlagDoubleAlias
 		}
-		if meas >= p.Cuts.PeriodMinD && meas <= p.Cuts.PeriodMaxD && (p.Cuts.HeightMaxPc <= 0 || math.Abs(z) <= p.Cuts.HeightMaxPc) {
+		if p.Cuts.InPeriodWindow(meas, z) {
 			flags |= FlagInPeriodWindow
 		}
 	} else {
@@ -473,23 +448,4 @@ var binaryFractionMin, binaryFractionMax = binaryFractionRange()
 
 func (p *Population) binaryFraction(m float64) float64 {
 	return min(1, p.Binaries.FractionScale*BinaryFraction(m))
-}
-
-// onMainSequence applies the catalogue's band around the single-star main
-// sequence: the same test is applied to observed stars (see compare).
-func (p *Population) onMainSequence(bv, absV float64) bool {
-	return OnMainSequence(p.Relations, p.Cuts, bv, absV)
-}
-
-// OnMainSequence is the catalogue's color–magnitude cut: keep a star whose
-// M_V lies within the band around the single-star sequence at its B−V.
-// Unresolved binaries (up to 0.753 mag brighter) and evolved stars fall out
-// when the band is narrow, in data and model alike.
-func OnMainSequence(rel *Relations, cuts Cuts, bv, absV float64) bool {
-	ms, ok := rel.AbsMagVAtBV(bv)
-	if !ok {
-		return false
-	}
-	dm := absV - ms
-	return dm >= -cuts.MSBandBrightMag && dm <= cuts.MSBandFaintMag
 }

@@ -95,6 +95,8 @@ func toTree(rv reflect.Value) map[string]any {
 		for name, p := range h.Parts {
 			out[name] = partTree(p)
 		}
+	case spinType:
+		lawOptionsTree(rv.Interface().(Spin).Options, out)
 	case reflect.TypeFor[Field]():
 		f := rv.Interface().(Field)
 		if keys, ok := fieldKeys[f.Kind]; ok {
@@ -108,12 +110,14 @@ func toTree(rv reflect.Value) map[string]any {
 	return out
 }
 
-// partTree writes a history part with only the keys its kind takes.
+// partTree writes a history part with the keys its kind takes.
 func partTree(p Part) map[string]any {
-	full := toTree(reflect.ValueOf(p))
 	out := map[string]any{"kind": p.Kind}
-	for _, k := range partKeys[p.Kind] {
-		out[k] = full[k]
+	for k, x := range p.Values {
+		out[k] = x
+	}
+	for k, xs := range p.Arrays {
+		out[k] = slices.Clone(xs)
 	}
 	return out
 }

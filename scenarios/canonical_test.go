@@ -232,7 +232,7 @@ distance_max_pc = 900.0
 		{LDeg: 10, BDeg: -5, RadiusDeg: 3, DistanceMaxPc: 800},
 		{LDeg: 200, BDeg: 40, RadiusDeg: 6, DistanceMinPc: 50, DistanceMaxPc: 900},
 	}, r.Scenario.Survey.Field.Cones)
-	assert.Equal(t, Part{Kind: "bins", Weight: 1, EdgesGyr: []float64{0, 1, 3}, Rates: []float64{2, 1}}, r.Scenario.History.Parts["recent"])
+	assert.Equal(t, Part{Kind: "bins", Values: map[string]float64{"weight": 1}, Arrays: map[string][]float64{"edges_gyr": {0, 1, 3}, "rates": {2, 1}}}, r.Scenario.History.Parts["recent"])
 	canon := string(r.Canonical())
 	assert.Contains(t, canon, "[survey.field]\nkind = \"cones\"\n\n[[survey.field.cones]]\n")
 	assert.NotContains(t, canon, "l_deg = 0.0", "the field's own cone keys do not apply to kind cones")

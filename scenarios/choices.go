@@ -1,18 +1,34 @@
 package scenarios
 
-import "slices"
+import (
+	"slices"
 
-// choices are the keys that take one of a fixed set of names.
-var choices = map[string][]string{
-	"imf.form":                        imfForms,
-	"dust.model":                      dustModels,
-	"stars.relations":                 relationsTables,
-	"spin.law":                        spinLaws,
-	"spin.turnover":                   turnovers,
-	"spin.torque.initial_period_dist": periodDists,
-	"survey.band":                     bands,
-	"compare.normalisation":           normalisations,
-	"compare.template_noise":          templateNoises,
+	"spinpop/model/spin"
+)
+
+// choices are the keys that take one of a fixed set of names: the
+// format's own, the registered spin-down laws, and the word options those
+// laws declare.
+func choices() map[string][]string {
+	c := map[string][]string{
+		"imf.form":               imfForms,
+		"dust.model":             dustModels,
+		"stars.relations":        relationsTables,
+		"spin.law":               spin.Names(),
+		"spin.turnover":          turnovers,
+		"survey.band":            bands,
+		"compare.normalisation":  normalisations,
+		"compare.template_noise": templateNoises,
+	}
+	tables, _ := spin.OptionTables()
+	for _, t := range tables {
+		for _, k := range t.Keys {
+			if len(k.OneOf) > 0 {
+				c["spin."+t.Name+"."+k.Name] = k.OneOf
+			}
+		}
+	}
+	return c
 }
 
 // Choices returns the names a key with a fixed set of them accepts
@@ -20,14 +36,15 @@ var choices = map[string][]string{
 // validation lists them, and whether key is such a key. A sweep's
 // choices = "all" expands to these.
 func Choices(key string) ([]string, bool) {
-	c, ok := choices[key]
+	c, ok := choices()[key]
 	return slices.Clone(c), ok
 }
 
 // ChoiceKeys lists the keys Choices knows, sorted.
 func ChoiceKeys() []string {
-	keys := make([]string, 0, len(choices))
-	for k := range choices {
+	c := choices()
+	keys := make([]string, 0, len(c))
+	for k := range c {
 		keys = append(keys, k)
 	}
 	slices.Sort(keys)

@@ -5,6 +5,8 @@ import (
 	"math"
 	"slices"
 	"strings"
+
+	"spinpop/sfh"
 )
 
 // The [compare] section: the binned space model and data are compared in,
@@ -31,16 +33,6 @@ const (
 
 	defaultBurstAgeMinGyr = 0.1 // lower end of the default burst-age range
 )
-
-// freeKeys are the keys of a history part that a fit may move: its scalar
-// keys. Bin edges and rates are arrays, not single parameters.
-var freeKeys = map[string][]string{
-	"constant":    {"weight"},
-	"exponential": {"timescale_gyr", "weight"},
-	"burst":       {"age_gyr", "mass_fraction", "width_gyr"},
-	"dip":         {"age_gyr", "depth", "width_gyr"},
-	"bins":        {"weight"},
-}
 
 // DefaultFree is the default list of free parameters when the history has
 // a part of kind "burst" named burstPart: the burst's age in
@@ -200,13 +192,13 @@ func (v *decoder) heightEdges(p string, edges []float64) {
 // existing history part, once, with a non-empty range inside the values
 // that key can take and a prior that suits the range.
 func (v *decoder) validateFree(s *Scenario) {
-	valid := freePaths(s.History)
+	valid := freePaths(s)
 	seen := make(map[string]int)
 	for i, f := range s.Compare.Free {
 		p := elemKey("compare.free", i)
 		key := func(k string) string { return joinKey(p, k) }
 		v.required(p, []string{"max", "min", "path"}, v.present, "each [[compare.free]] parameter")
-		dom, pathOK := v.freePath(key("path"), f.Path, s.History, valid)
+		dom, pathOK := v.freePath(key("path"), f.Path, s.History, s.Spin.Law, valid)
 		if pathOK {
 			if j, dup := seen[f.Path]; dup {
 				v.errAt(key("path"), "%s = %s repeats compare.free[%d]; a parameter can be free only once", key("path"), quoteString(f.Path), j)
@@ -235,18 +227,16 @@ type domain struct {
 	loOpen bool
 }
 
-// keyDomain is the domain of a fittable part key, as validateHistory
-// checks it.
-func keyDomain(key string, maxAgeGyr float64) domain {
-	switch key {
-	case "age_gyr":
-		return domain{lo: 0, hi: maxAgeGyr}
-	case "mass_fraction", "depth":
-		return domain{lo: 0, hi: 1}
-	case "width_gyr", "timescale_gyr":
-		return domain{lo: 0, hi: math.Inf(1), loOpen: true}
+// keyDomain is the domain of a fittable part key, as its kind declares
+// it (a bins part's rate_<i> are rates: ≥ 0).
+func keyDomain(kind, key string, maxAgeGyr float64) domain {
+	spec, _ := sfh.LookupKind(kind)
+	k, ok := spec.Key(key)
+	if !ok {
+		return domain{lo: 0, hi: math.Inf(1)}
 	}
-	return domain{lo: 0, hi: math.Inf(1)} // weight
+	lo, hi, loOpen, _ := k.Range(maxAgeGyr)
+	return domain{lo: lo, hi: hi, loOpen: loOpen}
 }
 
 // inDomain checks that a bound of a free parameter is a value its key can
@@ -273,11 +263,11 @@ func boundText(hi float64) string {
 }
 
 // freePath checks one path and returns the domain of the key it names.
-func (v *decoder) freePath(p, path string, h History, valid []string) (domain, bool) {
+func (v *decoder) freePath(p, path string, h History, law string, valid []string) (domain, bool) {
 	if v.errs.isBad(p) {
 		return domain{}, false
 	}
-	if d, ok := nuisanceKeys[path]; ok {
+	if d, ok := nuisanceDomain(law, path); ok {
 		return d, true
 	}
 	pieces := strings.Split(path, ".")
@@ -285,8 +275,8 @@ func (v *decoder) freePath(p, path string, h History, valid []string) (domain, b
 		if v.errs.isBad(joinKey("history", pieces[1])) || v.errs.isBad("history.max_age_gyr") {
 			return domain{}, false // the part itself is broken; that error says enough
 		}
-		if part, ok := h.Parts[pieces[1]]; ok && slices.Contains(freeKeys[part.Kind], pieces[2]) {
-			return keyDomain(pieces[2], h.MaxAgeGyr), true
+		if part, ok := h.Parts[pieces[1]]; ok && slices.Contains(freeKeysOf(part), pieces[2]) {
+			return keyDomain(part.Kind, pieces[2], h.MaxAgeGyr), true
 		}
 	}
 	if v.errs.isBad("history") {
@@ -305,12 +295,23 @@ func (v *decoder) freePath(p, path string, h History, valid []string) (domain, b
 
 // freePaths lists every path a free parameter may name: the history's,
 // sorted, then the nuisance paths.
-func freePaths(h History) []string {
+func freePaths(s *Scenario) []string {
+	h := s.History
 	var out []string
 	for _, name := range sortedParts(h.Parts) {
-		for _, k := range freeKeys[h.Parts[name].Kind] {
+		for _, k := range freeKeysOf(h.Parts[name]) {
 			out = append(out, "history."+name+"."+k)
 		}
 	}
-	return append(out, NuisancePaths()...)
+	return append(out, NuisancePaths(s.Spin.Law)...)
+}
+
+// freeKeysOf lists the keys of a part a fit may move, as its kind
+// declares them (sfh.KindSpec.FreeKeys).
+func freeKeysOf(p Part) []string {
+	spec, ok := sfh.LookupKind(p.Kind)
+	if !ok {
+		return nil
+	}
+	return spec.FreeKeys(p)
 }

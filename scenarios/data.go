@@ -5,6 +5,7 @@ import (
 	"io/fs"
 	"os"
 	"reflect"
+	"strconv"
 	"strings"
 )
 
@@ -16,7 +17,7 @@ import (
 // scenario's view of its data meets the file.
 
 // dataFormats are the allowed values of data.format.
-var dataFormats = []string{"auto", "csv", "ecsv"}
+var dataFormats = []string{"auto", "csv", "ecsv", "fits", "parquet"}
 
 // fillData normalises data.sha256 to lower case, so that a checksum
 // copied in capitals hashes like the same checksum in small letters.
@@ -44,13 +45,37 @@ func (v *decoder) validateData(dt *Data) {
 	if v.errs.isBad("data.file") {
 		return
 	}
+	v.validateExtension(dt)
 	if dt.File == "" {
 		if dt.SHA256 != "" && !v.errs.isBad("data.sha256") {
 			v.errAt("data.sha256", "data.sha256 is set but data.file is empty; the checksum belongs to a data file, so name the file or remove the checksum")
 		}
+		if dt.Extension != "" && !v.errs.isBad("data.extension") {
+			v.errAt("data.extension", "data.extension is set but data.file is empty; the extension belongs to a FITS file, so name the file or remove the extension")
+		}
 		return
 	}
 	v.validateColumns(&dt.Columns)
+}
+
+// validateExtension checks data.extension: a FITS extension's name or
+// number, meaningless for the other formats.
+func (v *decoder) validateExtension(dt *Data) {
+	const p = "data.extension"
+	if dt.Extension == "" || v.errs.isBad(p) {
+		return
+	}
+	switch dt.Format {
+	case "csv", "ecsv", "parquet":
+		v.errAt(p, "data.extension = %s chooses a FITS extension, but data.format = %s; remove data.extension or set data.format = \"fits\" (or \"auto\")", quoteString(dt.Extension), quoteString(dt.Format))
+		return
+	}
+	if n, err := strconv.Atoi(strings.TrimSpace(dt.Extension)); err == nil && n < 1 {
+		v.errAt(p, "data.extension = %s: extensions are numbered from 1 (the first after the primary HDU), or named by their EXTNAME", quoteString(dt.Extension))
+	}
+	if strings.TrimSpace(dt.Extension) == "" {
+		v.errAt(p, "data.extension is blank; give the extension's EXTNAME or number, or remove the key")
+	}
 }
 
 // validateColumns checks that the columns named can give every quantity a

@@ -117,8 +117,12 @@ var historyType = reflect.TypeFor[History]()
 
 // value decodes v into rv, reporting a type mismatch at p.
 func (d *decoder) value(p string, v any, rv reflect.Value) {
-	if rv.Type() == historyType {
+	switch rv.Type() {
+	case historyType:
 		d.history(p, v, rv.Addr().Interface().(*History))
+		return
+	case spinType:
+		d.spinTable(p, v, rv.Addr().Interface().(*Spin))
 		return
 	}
 	switch rv.Kind() {
@@ -130,6 +134,9 @@ func (d *decoder) value(p string, v any, rv reflect.Value) {
 		}
 		d.structValue(p, m, rv)
 	case reflect.String:
+		if n, isInt := v.(int64); isInt && p == "data.extension" {
+			v = strconv.FormatInt(n, 10) // an extension may be given by number
+		}
 		s, ok := v.(string)
 		if !ok {
 			d.wrongType(p, "a string", v)

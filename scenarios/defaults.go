@@ -1,6 +1,9 @@
 package scenarios
 
-import "math"
+import (
+	"fmt"
+	"math"
+)
 
 // builtinDefaults is the bottom layer of every scenario: each key with a
 // default, written the way a user would. Keys whose default depends on
@@ -56,35 +59,6 @@ law = "barnes2007"
 turnover = "wright2018"
 period_scatter_dex = 0.0
 
-[spin.gyro]                      # 0 = the empirical law's published coefficient
-a = 0.0
-b = 0.0
-c = 0.0
-n = 0.0
-
-[spin.torque]
-solar_period_d = 25.4            # [memory]
-saturation_chi = 10.0            # [memory] Matt et al. (2015)
-initial_period_dist = "lognormal"
-initial_period_min_d = 1.0
-initial_period_max_d = 10.0
-initial_period_median_d = 2.0
-initial_period_sigma_dex = 0.3
-start_age_gyr = 0.01
-
-[spin.stall]                     # illustrative, not a calibration
-enabled = false
-start_gyr_at_0p8msun = 0.5
-duration_gyr_at_0p8msun = 0.6
-start_mass_slope = -2.0
-duration_mass_slope = -2.0
-mass_max_msun = 1.0
-catch_up_fraction = 0.25
-
-[spin.weakened_braking]
-enabled = false
-ro_crit = 2.0                    # [memory] van Saders et al. (2016)
-
 [spin.spots]                     # [memory] all four values, approximate
 enabled = true
 ro_sat = 0.15
@@ -131,6 +105,7 @@ gyrochrone_ages_gyr = [0.3, 0.6, 1.0, 2.0, 4.0]
 file = ""
 sha256 = ""
 format = "auto"
+extension = ""
 
 [data.columns]                   # "" = the catalog has no such column
 period_d = "period_d"
@@ -155,6 +130,20 @@ bootstrap = 1000
 split_age_gyr = 0.0
 burst_part = "burst"
 `
+
+// defaultLayer is a fresh copy of the bottom layer: builtinDefaults
+// (parsed once), and the option tables of the laws registered now, with
+// their defaults.
+func defaultLayer() (*layer, error) {
+	def, err := defaults()
+	if err != nil {
+		// The defaults are part of the program; tests keep them valid.
+		return nil, fmt.Errorf("scenarios: built-in defaults do not parse: %w", err)
+	}
+	c := def.copyLayer()
+	lawDefaults(c.data)
+	return c, nil
+}
 
 // DefaultAgeBinEdges returns the default population age bins for a history
 // reaching maxAgeGyr: 40 bins, 0.05 Gyr wide up to 1 Gyr (where spin-down

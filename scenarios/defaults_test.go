@@ -27,12 +27,12 @@ func TestDefaultsFilled(t *testing.T) {
 	assert.Equal(t, Run{Seed: 1, StarsGenerated: 2_000_000, ChunkStars: 65536}, s.Run)
 	assert.Equal(t, IMF{Form: "kroupa2001", MassMinMsun: 0.2, MassMaxMsun: 1.4}, s.IMF)
 	assert.Equal(t, 10.0, s.History.MaxAgeGyr)
-	assert.Equal(t, map[string]Part{"smooth": {Kind: "constant", Weight: 1}}, s.History.Parts)
+	assert.Equal(t, map[string]Part{"smooth": {Kind: "constant", Values: map[string]float64{"weight": 1}, Arrays: map[string][]float64{}}}, s.History.Parts)
 	assert.Equal(t, Dust{Model: "none", ScaleHeightPc: 110, MidplaneAvPerKpc: 0.8}, s.Dust)
 	assert.Equal(t, "barnes2007", s.Spin.Law)
 	assert.Equal(t, "wright2018", s.Spin.Turnover)
 	assert.True(t, s.Spin.Spots.Enabled)
-	assert.False(t, s.Spin.Stall.Enabled)
+	assert.False(t, s.Spin.Options.Bool("stall", "enabled"))
 	assert.True(t, s.Stars.Evolved)
 	assert.True(t, s.Output.Catalog)
 	assert.True(t, s.Output.Plots)
@@ -107,7 +107,7 @@ func TestDefaultAgeBinEdges(t *testing.T) {
 // the canonical form comes from builtinDefaults, unless it is derived or
 // belongs to the parts a user must give.
 func TestEveryKeyHasADefaultOrIsRequired(t *testing.T) {
-	def, err := parseLayer("", []byte(builtinDefaults))
+	def, err := defaultLayer()
 	require.NoError(t, err)
 	derived := map[string]bool{"name": true, "cuts.period_min_d": true, "cuts.period_max_d": true, "disk.age_bin_edges_gyr": true,
 		"compare.period_min_d": true, "compare.period_max_d": true, "compare.free": true}
@@ -142,8 +142,7 @@ func TestSchemaCommentsMatchDefaults(t *testing.T) {
 	require.NoError(t, err)
 	tables := map[string]string{
 		"Run": "run", "IMF": "imf", "History": "history", "Disk": "disk", "Dust": "dust",
-		"Stars": "stars", "Spin": "spin", "TorqueLaw": "spin.torque", "Stall": "spin.stall",
-		"Weakened": "spin.weakened_braking", "Spots": "spin.spots", "Survey": "survey",
+		"Stars": "stars", "Spin": "spin", "Spots": "spin.spots", "Survey": "survey",
 		"Field": "survey.field", "Cuts": "cuts", "Output": "output",
 		"Data": "data", "DataColumns": "data.columns", "Compare": "compare",
 	}
@@ -213,5 +212,5 @@ func TestSchemaCommentsMatchDefaults(t *testing.T) {
 			checked++
 		}
 	}
-	assert.Greater(t, checked, 85, "the comment scan found too few defaults; has schema.go's layout changed?")
+	assert.Greater(t, checked, 70, "the comment scan found too few defaults; has schema.go's layout changed? (the spin-down laws' options are declared in model/spin, and checked there)")
 }

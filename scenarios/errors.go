@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"sort"
 	"strings"
+
+	"spinpop/internal/suggest"
 )
 
 // Error is one problem with a scenario: where it is and what would be
@@ -119,47 +121,13 @@ func (l *errorList) result() error {
 	return errs
 }
 
-// nearest returns the candidate closest to key in Levenshtein distance; ties
-// go to the earlier candidate. It returns "" when there are no candidates.
+// nearest returns the candidate closest to key in edit distance (see
+// internal/suggest); ties go to the earlier candidate. It returns "" when
+// there are no candidates.
 func nearest(key string, candidates []string) string {
-	best, bestD := "", -1
-	for _, c := range candidates {
-		d := levenshtein(key, c)
-		if bestD < 0 || d < bestD {
-			best, bestD = c, d
-		}
-	}
+	best, _ := suggest.Nearest(key, candidates, nil)
 	return best
 }
 
-// maxSuggestLen caps the work spent on suggesting a key for garbage input:
-// the distance is quadratic in the key length.
-const maxSuggestLen = 64
-
-// levenshtein is the edit distance between a and b counted in bytes (keys
-// are ASCII), with a and b truncated to maxSuggestLen.
-func levenshtein(a, b string) int {
-	if len(a) > maxSuggestLen {
-		a = a[:maxSuggestLen]
-	}
-	if len(b) > maxSuggestLen {
-		b = b[:maxSuggestLen]
-	}
-	prev := make([]int, len(b)+1)
-	cur := make([]int, len(b)+1)
-	for j := range prev {
-		prev[j] = j
-	}
-	for i := 1; i <= len(a); i++ {
-		cur[0] = i
-		for j := 1; j <= len(b); j++ {
-			cost := 1
-			if a[i-1] == b[j-1] {
-				cost = 0
-			}
-			cur[j] = min(prev[j]+1, cur[j-1]+1, prev[j-1]+cost)
-		}
-		prev, cur = cur, prev
-	}
-	return prev[len(b)]
-}
+// levenshtein is the edit distance between a and b (see internal/suggest).
+func levenshtein(a, b string) int { return suggest.Distance(a, b) }

@@ -25,8 +25,8 @@ func TestExamplesLoad(t *testing.T) {
 	assert.Equal(t, int64(2_000_000), b.Run.StarsGenerated)
 	assert.Equal(t, "barnes2007", b.Spin.Law)
 	assert.Equal(t, map[string]Part{
-		"floor":   {Kind: "constant", Weight: 0.6},
-		"decline": {Kind: "exponential", TimescaleGyr: 8, Weight: 0.4},
+		"floor":   {Kind: "constant", Values: map[string]float64{"weight": 0.6}, Arrays: map[string][]float64{}},
+		"decline": {Kind: "exponential", Values: map[string]float64{"timescale_gyr": 8, "weight": 0.4}, Arrays: map[string][]float64{}},
 	}, b.History.Parts)
 	assert.Equal(t, Field{Kind: "cone", LDeg: 58, BDeg: 21, RadiusDeg: 11, DistanceMaxPc: 1500}, b.Survey.Field)
 
@@ -40,14 +40,14 @@ func TestExamplesLoad(t *testing.T) {
 	require.NoError(t, err)
 	parts := burst.Scenario.History.Parts
 	require.Len(t, parts, 3)
-	assert.Equal(t, Part{Kind: "burst", AgeGyr: 0.6, WidthGyr: 0.05, MassFraction: 0.2}, parts["burst"])
+	assert.Equal(t, Part{Kind: "burst", Values: map[string]float64{"age_gyr": 0.6, "width_gyr": 0.05, "mass_fraction": 0.2}, Arrays: map[string][]float64{}}, parts["burst"])
 	assert.Equal(t, b.History.Parts["floor"], parts["floor"])
 
 	stall, err := LoadExample("stall")
 	require.NoError(t, err)
 	sp := stall.Scenario.Spin
 	assert.Equal(t, "torque", sp.Law)
-	assert.True(t, sp.Stall.Enabled)
+	assert.True(t, sp.Options.Bool("stall", "enabled"))
 	assert.Equal(t, b.Spin.Turnover, sp.Turnover, "inherited from base")
 	assert.Equal(t, b.History, stall.Scenario.History, "smooth history")
 }

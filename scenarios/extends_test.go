@@ -75,9 +75,9 @@ mass_fraction = 0.2
 	assert.Equal(t, 25.0, s.Disk.Sigma10GyrKms, "untouched key keeps its default")
 	assert.Equal(t, []float64{3}, s.Output.GyrochroneAgesGyr)
 	require.Len(t, s.History.Parts, 2)
-	assert.Equal(t, Part{Kind: "constant", Weight: 2}, s.History.Parts["floor"])
+	assert.Equal(t, Part{Kind: "constant", Values: map[string]float64{"weight": 2}, Arrays: map[string][]float64{}}, s.History.Parts["floor"])
 	assert.NotContains(t, s.History.Parts, "decline")
-	assert.Equal(t, Part{Kind: "burst", AgeGyr: 0.6, WidthGyr: 0.05, MassFraction: 0.2}, s.History.Parts["burst"])
+	assert.Equal(t, Part{Kind: "burst", Values: map[string]float64{"age_gyr": 0.6, "width_gyr": 0.05, "mass_fraction": 0.2}, Arrays: map[string][]float64{}}, s.History.Parts["burst"])
 	assert.Equal(t, 58.0, s.Survey.Field.LDeg)
 }
 
@@ -95,7 +95,7 @@ distance_max_pc = 300.0
 	})
 	r, err := Load(filepath.Join(dir, "child.toml"))
 	require.NoError(t, err)
-	assert.Equal(t, Part{Kind: "constant", Weight: 1}, r.Scenario.History.Parts["decline"], "weight back to its default")
+	assert.Equal(t, Part{Kind: "constant", Values: map[string]float64{"weight": 1}, Arrays: map[string][]float64{}}, r.Scenario.History.Parts["decline"], "weight back to its default")
 	assert.Equal(t, Field{Kind: "sphere", DistanceMaxPc: 300}, r.Scenario.Survey.Field)
 }
 

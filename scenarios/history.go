@@ -1,34 +1,28 @@
 package scenarios
 
 import (
+	"errors"
 	"fmt"
+	"math"
 	"reflect"
 	"slices"
-	"strconv"
+	"strings"
+
+	"spinpop/sfh"
 )
 
-// Part kinds and the keys each one takes, "kind" aside.
-var partKeys = map[string][]string{
-	"constant":    {"weight"},
-	"exponential": {"timescale_gyr", "weight"},
-	"burst":       {"age_gyr", "mass_fraction", "width_gyr"},
-	"dip":         {"age_gyr", "depth", "width_gyr"},
-	"bins":        {"edges_gyr", "rates", "weight"},
-}
-
-// partRequired lists the keys without a default, per kind.
-var partRequired = map[string][]string{
-	"exponential": {"timescale_gyr"},
-	"burst":       {"age_gyr", "mass_fraction", "width_gyr"},
-	"dip":         {"age_gyr", "depth", "width_gyr"},
-	"bins":        {"edges_gyr", "rates"},
-}
+// The kinds of history part, their keys, defaults and ranges come from the
+// history registry (sfh.RegisterKind); the rules between parts are sfh.New's.
+// This file decodes and checks [history]; it names no kind.
 
 // partKinds is the order kinds are listed in messages.
-var partKinds = []string{"constant", "exponential", "burst", "dip", "bins"}
-
-// isSmooth reports whether a kind carries a share of the non-burst mass.
-func isSmooth(kind string) bool { return kind == "constant" || kind == "exponential" || kind == "bins" }
+func partKinds() []string {
+	var out []string
+	for _, k := range sfh.Kinds() {
+		out = append(out, k.Name)
+	}
+	return out
+}
 
 // history decodes [history]: max_age_gyr and one named part per sub-table.
 func (d *decoder) history(path string, v any, h *History) {
@@ -58,55 +52,86 @@ func (d *decoder) history(path string, v any, h *History) {
 	}
 }
 
+// allPartKeys lists every key any kind takes, sorted, for suggestions
+// when the kind is unknown.
+func allPartKeys() []string {
+	var out []string
+	for _, k := range sfh.Kinds() {
+		for _, n := range k.KeyNames() {
+			if !slices.Contains(out, n) {
+				out = append(out, n)
+			}
+		}
+	}
+	slices.Sort(out)
+	return out
+}
+
 // part decodes one history part, checking keys against its kind.
 func (d *decoder) part(p string, m map[string]any) Part {
 	var part Part
+	var spec sfh.KindSpec
 	kindPath := joinKey(p, "kind")
 	kv, ok := m["kind"]
 	if !ok {
-		d.errAt(kindPath, "%s is missing; every history part needs a kind: one of %s (or \"none\" to remove an inherited part)", kindPath, listWords(partKinds))
+		d.errAt(kindPath, "%s is missing; every history part needs a kind: one of %s (or \"none\" to remove an inherited part)", kindPath, listWords(partKinds()))
 	} else if s, isStr := kv.(string); !isStr {
 		d.wrongType(kindPath, "a string", kv)
-	} else if _, known := partKeys[s]; !known {
-		d.errAt(kindPath, "%s = %s is not a kind of history part; use one of %s", kindPath, quoteString(s), listWords(partKinds))
+	} else if k, known := sfh.LookupKind(s); !known {
+		d.errAt(kindPath, "%s = %s is not a kind of history part; use one of %s", kindPath, quoteString(s), listWords(partKinds()))
 	} else {
-		part.Kind = s
+		part.Kind, spec = s, k
 	}
 
-	fi := fieldsOf(reflect.TypeFor[Part]())
-	rv := reflect.ValueOf(&part).Elem()
-	valid := partKeys[part.Kind]
+	valid := spec.KeyNames()
+	all := allPartKeys()
+	part.Values, part.Arrays = map[string]float64{}, map[string][]float64{}
 	for _, k := range sortedKeys(m) {
 		if k == "kind" {
 			continue
 		}
 		kp := joinKey(p, k)
-		i, known := fi.index[k]
-		switch {
-		case !known:
+		switch key, inKind := spec.Key(k); {
+		case !slices.Contains(all, k):
 			cands := valid
 			if part.Kind == "" {
-				cands = fi.names
+				cands = all
 			}
 			d.unknown(p, k, cands, "")
-		case part.Kind != "" && !slices.Contains(valid, k):
+		case part.Kind == "":
+			// The kind is unknown: its keys cannot be judged.
+		case !inKind:
 			d.errAt(kp, "%s does not apply to a part of kind %q; its keys are: kind, %s", kp, part.Kind, listWords(valid))
+		case key.Array:
+			var xs []float64
+			d.value(kp, m[k], reflect.ValueOf(&xs).Elem())
+			part.Arrays[k] = xs
 		default:
-			d.value(kp, m[k], rv.Field(i))
+			if x, ok := d.number(kp, m[k]); ok {
+				part.Values[k] = x
+			}
 		}
 	}
 	if part.Kind == "" {
 		return part
 	}
 	has := func(kp string) bool { _, ok := m[kp[len(p)+1:]]; return ok }
-	d.required(p, partRequired[part.Kind], has, fmt.Sprintf("a part of kind %q", part.Kind))
-	if _, ok := m["weight"]; !ok && slices.Contains(valid, "weight") {
-		part.Weight = 1
+	var required []string
+	for _, key := range spec.Keys {
+		if key.Required {
+			required = append(required, key.Name)
+		} else if _, given := m[key.Name]; !given && !key.Array {
+			part.Values[key.Name] = key.Default
+		}
 	}
+	slices.Sort(required)
+	d.required(p, required, has, fmt.Sprintf("a part of kind %q", part.Kind))
 	return part
 }
 
-// validateHistory checks the parts against each other and the age range.
+// validateHistory checks each part's keys against the ranges its kind
+// declares, then hands the parts to sfh.New, which owns the rules between
+// them (how bursts and smooth parts share the mass, what dips may remove).
 func (v *decoder) validateHistory(h *History) {
 	maxAge := h.MaxAgeGyr
 	v.inRange("history.max_age_gyr", maxAge, 0, false, 14, true,
@@ -115,72 +140,90 @@ func (v *decoder) validateHistory(h *History) {
 		v.errAt("history", "the history has no parts; add at least one, e.g. [history.smooth] kind = \"constant\"")
 		return
 	}
-	var burstSum, weightSum float64
-	var smooth, dips int
-	sumsKnown := true // false when a fraction or weight already failed
+	before := len(v.errs.errs) + v.errs.dropped
 	for _, name := range sortedParts(h.Parts) {
 		part := h.Parts[name]
+		spec, ok := sfh.LookupKind(part.Kind)
 		p := joinKey("history", name)
-		key := func(k string) string { return joinKey(p, k) }
-		switch part.Kind {
-		case "constant", "exponential", "bins":
-			smooth++
-			v.atLeast(key("weight"), part.Weight, 0, "")
-			weightSum += part.Weight
-			sumsKnown = sumsKnown && !v.errs.isBad(key("weight"))
+		if !ok || v.errs.isBad(p) {
+			continue
 		}
-		switch part.Kind {
-		case "exponential":
-			v.positive(key("timescale_gyr"), part.TimescaleGyr)
-		case "burst", "dip":
-			v.inRange(key("age_gyr"), part.AgeGyr, 0, true, maxAge, true, "the centre must lie within the history, up to history.max_age_gyr")
-			v.positive(key("width_gyr"), part.WidthGyr)
-			if part.Kind == "burst" {
-				v.inRange(key("mass_fraction"), part.MassFraction, 0, true, 1, true, "")
-				burstSum += part.MassFraction
-				sumsKnown = sumsKnown && !v.errs.isBad(key("mass_fraction"))
-			} else {
-				dips++
-				v.inRange(key("depth"), part.Depth, 0, true, 1, true, "")
+		for _, key := range spec.Keys {
+			kp := joinKey(p, key.Name)
+			if key.Array || v.errs.isBad(kp) {
+				continue
 			}
-		case "bins":
-			v.binEdges(key("edges_gyr"), part.EdgesGyr, maxAge, false)
-			if !v.errs.isBad(key("edges_gyr")) && !v.errs.isBad(key("rates")) {
-				v.rates(key("rates"), part.Rates, len(part.EdgesGyr)-1)
+			if _, given := part.Values[key.Name]; !given {
+				continue // missing: reported already
+			}
+			lo, hi, loOpen, hiOpen := key.Range(maxAge)
+			if key.MaxIsAge && v.errs.isBad("history.max_age_gyr") {
+				continue
+			}
+			v.partKey(kp, part.Values[key.Name], key, lo, hi, loOpen, hiOpen)
+		}
+		if spec.Check != nil && !v.anyBad(p, spec) && !v.errs.isBad("history.max_age_gyr") {
+			if ke := spec.Check(part, maxAge); ke != nil {
+				kp := joinKey(p, ke.Key)
+				v.errAt(kp, "%s %s", kp, ke.Msg)
 			}
 		}
 	}
-	switch {
-	case !sumsKnown:
-	case burstSum > 1+1e-12:
-		v.errAt("history", "the bursts' mass_fraction values add up to %s; they are shares of all mass formed, so their sum must be at most 1", strconv.FormatFloat(burstSum, 'g', 6, 64))
-	case smooth == 0 && burstSum < 1-1e-12:
-		v.errAt("history", "the history has no smooth part (constant, exponential or bins) to hold the %s of mass the bursts leave; add one or make the bursts' mass_fraction values add up to 1", strconv.FormatFloat(1-burstSum, 'g', 6, 64))
-	case smooth > 0 && weightSum <= 0:
-		v.errAt("history", "the smooth parts' weights add up to 0; at least one weight must be positive")
+	if len(v.errs.errs)+v.errs.dropped > before || v.errs.isBad("history") || v.errs.isBad("history.max_age_gyr") {
+		return // sfh.New would only repeat what is said
 	}
-	if dips > 0 && smooth == 0 {
-		v.errAt("history", "a dip suppresses the smooth history, but there is no smooth part (constant, exponential or bins)")
+	if _, err := BuildHistory(h); err != nil {
+		key := "history"
+		var pe *sfh.ParamError
+		if errors.As(err, &pe) && pe.Param != "" {
+			key = "history." + pe.Param
+		}
+		v.errAt(key, "%s", strings.TrimPrefix(err.Error(), "sfh: "))
 	}
 }
 
-// rates checks a bins part's rates against its number of bins.
-func (v *decoder) rates(p string, rates []float64, bins int) {
-	if len(rates) != bins {
-		v.errAt(p, "%s has %d values but edges_gyr defines %d bins; give one rate per bin", p, len(rates), bins)
-		return
-	}
-	sum := 0.0
-	for i, r := range rates {
-		if r < 0 {
-			v.errAt(p, "%s element %d is %s; rates must be ≥ 0", p, i+1, formatFloat(r))
-			return
+// anyBad reports whether a key of part p already failed.
+func (v *decoder) anyBad(p string, spec sfh.KindSpec) bool {
+	for _, key := range spec.Keys {
+		if v.errs.isBad(joinKey(p, key.Name)) {
+			return true
 		}
-		sum += r
 	}
-	if sum <= 0 {
-		v.errAt(p, "%s are all zero; at least one rate must be positive", p)
+	return false
+}
+
+// partKey checks one number key of a part against its kind's range, in the
+// words of the other range checks.
+func (v *decoder) partKey(p string, x float64, key sfh.KindKey, lo, hi float64, loOpen, hiOpen bool) {
+	switch {
+	case key.NonZero && x == 0:
+		v.errAt(p, "%s = 0 must not be 0 (%s)", p, key.Why)
+	case math.IsInf(lo, -1) && math.IsInf(hi, 1):
+	case math.IsInf(hi, 1) && lo == 0 && loOpen:
+		v.positive(p, x)
+	case math.IsInf(hi, 1) && !loOpen:
+		v.atLeast(p, x, lo, key.Why)
+	default:
+		v.inRange(p, x, lo, !loOpen, hi, !hiOpen, key.Why)
 	}
+}
+
+// BuildHistory builds the star-formation history of a scenario's
+// [history], parts in name order so the same file always builds the same
+// history.
+func BuildHistory(h *History) (*sfh.History, error) {
+	names := sortedParts(h.Parts)
+	parts := make([]sfh.Part, 0, len(names))
+	for _, n := range names {
+		p := h.Parts[n]
+		spec, ok := sfh.LookupKind(p.Kind)
+		if !ok {
+			return nil, fmt.Errorf("history.%s.kind = %q: want one of %s", n, p.Kind, listWords(partKinds()))
+		}
+		c, w := spec.New(p)
+		parts = append(parts, sfh.Part{Name: n, Component: c, Weight: w})
+	}
+	return sfh.New(h.MaxAgeGyr, parts)
 }
 
 func sortedParts(parts map[string]Part) []string {

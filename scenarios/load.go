@@ -148,13 +148,12 @@ func readBase(name string, data []byte, src source) (*Base, error) {
 // Resolve merges the chain over the built-in defaults, then the overrides
 // in order, fills derived defaults, validates, and resolves data.file.
 func (b *Base) Resolve(overrides ...Override) (*Resolved, error) {
-	def, err := defaults()
+	def, err := defaultLayer()
 	if err != nil {
-		// The defaults are part of the program; tests keep them valid.
-		return nil, fmt.Errorf("scenarios: built-in defaults do not parse: %w", err)
+		return nil, err
 	}
 	m := newMerged(b.name)
-	m.apply(def.copyLayer())
+	m.apply(def)
 	files := make([]string, len(b.layers))
 	for i, l := range b.layers {
 		m.apply(l.copyLayer())

@@ -189,7 +189,7 @@ var malformedCases = []malformedCase{
 		name:   "bursts take more than all the mass",
 		text:   minimal + "[history.a]\nkind = \"burst\"\nage_gyr = 0.6\nwidth_gyr = 0.1\nmass_fraction = 0.7\n[history.b]\nkind = \"burst\"\nage_gyr = 2.0\nwidth_gyr = 0.1\nmass_fraction = 0.6\n",
 		lineOf: "[history.smooth]",
-		want:   []string{"mass_fraction values add up to 1.3"},
+		want:   []string{"burst mass fractions sum to 1.3, above the allowed maximum 1"},
 	},
 	{
 		name:   "field key that does not apply to its kind",
@@ -272,7 +272,25 @@ var malformedCases = []malformedCase{
 		name:   "unknown data format",
 		text:   minimal + "[data]\nfile = \"c.csv\"\nformat = \"tsv\"\n[data.columns]\nabs_mag_v = \"mv\"\nz_pc = \"z\"\n",
 		lineOf: "format",
-		want:   []string{`data.format = "tsv" is not allowed; use one of: auto, csv, ecsv`},
+		want:   []string{`data.format = "tsv" is not allowed; use one of: auto, csv, ecsv, fits, parquet`},
+	},
+	{
+		name:   "FITS extension for a CSV file",
+		text:   minimal + "[data]\nfile = \"c.csv\"\nformat = \"csv\"\nextension = \"STARS\"\n[data.columns]\nabs_mag_v = \"mv\"\nz_pc = \"z\"\n",
+		lineOf: "extension",
+		want:   []string{`data.extension = "STARS" chooses a FITS extension, but data.format = "csv"`},
+	},
+	{
+		name:   "FITS extension number 0",
+		text:   minimal + "[data]\nfile = \"c.fits\"\nextension = 0\n[data.columns]\nabs_mag_v = \"mv\"\nz_pc = \"z\"\n",
+		lineOf: "extension",
+		want:   []string{`data.extension = "0": extensions are numbered from 1`},
+	},
+	{
+		name:   "FITS extension without a file",
+		text:   minimal + "[data]\nextension = \"STARS\"\n",
+		lineOf: "extension",
+		want:   []string{"data.extension is set but data.file is empty"},
 	},
 	{
 		name:   "columns that give neither magnitude nor height",

@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"math"
 	"reflect"
-	"slices"
 	"sort"
 	"strings"
 
@@ -21,91 +20,140 @@ import (
 // the dust, the survey's magnitude limits, the field) cannot be nuisance
 // parameters; a sweep varies them instead.
 
-// nuisanceKeys are the paths a nuisance parameter may name, with the
-// values each can take (as validate checks the key itself).
+// nuisanceKeys are the paths outside the spin-down laws' option tables a
+// nuisance parameter may name, with the values each can take (as validate
+// checks the key itself). Every number key of the scenario's law's option
+// tables ([spin.<table>]) may be a nuisance parameter too: a law's options
+// change only its periods.
 var nuisanceKeys = map[string]domain{
-	"spin.period_scatter_dex":              {lo: 0, hi: 0.5},
-	"spin.gyro.a":                          {lo: 0, hi: 10, loOpen: true},
-	"spin.gyro.b":                          {lo: 0, hi: 2, loOpen: true},
-	"spin.gyro.c":                          {lo: 0, hi: 1, loOpen: true},
-	"spin.gyro.n":                          {lo: 0, hi: 1.5, loOpen: true},
-	"spin.torque.solar_period_d":           {lo: 0, hi: math.Inf(1), loOpen: true},
-	"spin.torque.saturation_chi":           {lo: 1, hi: math.Inf(1)},
-	"spin.torque.initial_period_median_d":  {lo: 0, hi: math.Inf(1), loOpen: true},
-	"spin.torque.initial_period_sigma_dex": {lo: 0, hi: math.Inf(1)},
-	"spin.stall.start_gyr_at_0p8msun":      {lo: 0, hi: math.Inf(1), loOpen: true},
-	"spin.stall.duration_gyr_at_0p8msun":   {lo: 0, hi: math.Inf(1), loOpen: true},
-	"spin.stall.catch_up_fraction":         {lo: 0, hi: 10},
-	"spin.spots.ro_sat":                    {lo: 0, hi: math.Inf(1), loOpen: true},
-	"spin.spots.amp_sat_ppm":               {lo: 0, hi: math.Inf(1), loOpen: true},
-	"spin.spots.slope":                     {lo: 0, hi: math.Inf(1)},
-	"spin.spots.scatter_dex":               {lo: 0, hi: math.Inf(1)},
-	"survey.detection_snr":                 {lo: 0, hi: math.Inf(1), loOpen: true},
-	"survey.detection_sharpness":           {lo: 0, hi: 50, loOpen: true},
-	"survey.noise_floor_ppm":               {lo: 0, hi: math.Inf(1)},
-	"survey.noise_ppm_at_ref_mag":          {lo: 0, hi: math.Inf(1), loOpen: true},
-	"survey.period_scatter_rel":            {lo: 0, hi: 0.999},
-	"survey.half_alias_prob":               {lo: 0, hi: 1},
-	"survey.double_alias_prob":             {lo: 0, hi: 1},
-	"survey.color_offset_mag":              {lo: -0.3, hi: 0.3},
-	"survey.color_scale":                   {lo: 0.7, hi: 1.3},
-	"stars.binary_fraction_scale":          {lo: 0, hi: 2},
-	"stars.tidal_lock_fraction":            {lo: 0, hi: 1},
+	"spin.period_scatter_dex":     {lo: 0, hi: 0.5},
+	"spin.spots.ro_sat":           {lo: 0, hi: math.Inf(1), loOpen: true},
+	"spin.spots.amp_sat_ppm":      {lo: 0, hi: math.Inf(1), loOpen: true},
+	"spin.spots.slope":            {lo: 0, hi: math.Inf(1)},
+	"spin.spots.scatter_dex":      {lo: 0, hi: math.Inf(1)},
+	"survey.detection_snr":        {lo: 0, hi: math.Inf(1), loOpen: true},
+	"survey.detection_sharpness":  {lo: 0, hi: 50, loOpen: true},
+	"survey.noise_floor_ppm":      {lo: 0, hi: math.Inf(1)},
+	"survey.noise_ppm_at_ref_mag": {lo: 0, hi: math.Inf(1), loOpen: true},
+	"survey.period_scatter_rel":   {lo: 0, hi: 0.999},
+	"survey.half_alias_prob":      {lo: 0, hi: 1},
+	"survey.double_alias_prob":    {lo: 0, hi: 1},
+	"survey.color_offset_mag":     {lo: -0.3, hi: 0.3},
+	"survey.color_scale":          {lo: 0.7, hi: 1.3},
+	"stars.binary_fraction_scale": {lo: 0, hi: 2},
+	"stars.tidal_lock_fraction":   {lo: 0, hi: 1},
 }
 
-// NuisancePaths lists, sorted, the paths a nuisance parameter may name.
-func NuisancePaths() []string {
+// lawOptionKey returns the registry's entry for a path spin.<table>.<key>
+// naming a number key of one of the law's option tables.
+func lawOptionKey(law, path string) (spin.Key, bool) {
+	pieces := strings.Split(path, ".")
+	if len(pieces) != 3 || pieces[0] != "spin" {
+		return spin.Key{}, false
+	}
+	spec, ok := spin.Lookup(law)
+	if !ok {
+		return spin.Key{}, false
+	}
+	for _, t := range spec.Tables {
+		if t.Name != pieces[1] {
+			continue
+		}
+		for _, k := range t.Keys {
+			if _, num := k.Default.(float64); num && k.Name == pieces[2] {
+				return k, true
+			}
+		}
+	}
+	return spin.Key{}, false
+}
+
+// NuisancePaths lists, sorted, the paths a nuisance parameter may name for
+// a scenario using spin-down law law.
+func NuisancePaths(law string) []string {
 	out := make([]string, 0, len(nuisanceKeys))
 	for k := range nuisanceKeys {
 		out = append(out, k)
+	}
+	if spec, ok := spin.Lookup(law); ok {
+		for _, t := range spec.Tables {
+			for _, k := range t.Keys {
+				if _, num := k.Default.(float64); num {
+					out = append(out, "spin."+t.Name+"."+k.Name)
+				}
+			}
+		}
 	}
 	sort.Strings(out)
 	return out
 }
 
-// IsNuisancePath reports whether path names a nuisance parameter.
-func IsNuisancePath(path string) bool {
-	_, ok := nuisanceKeys[path]
+// nuisanceDomain returns the values a nuisance path can take for a
+// scenario using law, or ok false for a path that is not one.
+func nuisanceDomain(law, path string) (domain, bool) {
+	if d, ok := nuisanceKeys[path]; ok {
+		return d, true
+	}
+	if k, ok := lawOptionKey(law, path); ok {
+		return domain{lo: k.Min, hi: k.Max, loOpen: k.MinOpen}, true
+	}
+	return domain{}, false
+}
+
+// IsNuisancePath reports whether path names a nuisance parameter of the
+// scenario.
+func IsNuisancePath(s *Scenario, path string) bool {
+	_, ok := nuisanceDomain(s.Spin.Law, path)
 	return ok
 }
 
-// ValueAt returns the scenario's value of a numeric key by its dotted
-// path (struct fields found by their toml tags); ok is false for a path
-// that names no numeric key.
+// ValueAt returns the scenario's value of a number key by its dotted path
+// (struct fields found by their toml tags, or an option of a spin-down
+// law's table); ok is false for a path that names no number key.
 func ValueAt(s *Scenario, path string) (float64, bool) {
-	v := reflect.ValueOf(s).Elem()
-	for _, piece := range strings.Split(path, ".") {
-		if v.Kind() != reflect.Struct {
-			return 0, false
-		}
-		found := false
-		for i := range v.NumField() {
-			if strings.Split(v.Type().Field(i).Tag.Get("toml"), ",")[0] == piece {
-				v, found = v.Field(i), true
-				break
-			}
-		}
-		if !found {
-			return 0, false
-		}
+	if k, ok := lawOptionKey(s.Spin.Law, path); ok {
+		pieces := strings.Split(path, ".")
+		v := s.Spin.Options.Float(pieces[1], k.Name)
+		return v, !math.IsNaN(v)
 	}
-	switch v.Kind() {
+	f, ok := fieldAt(s, path)
+	if !ok {
+		return 0, false
+	}
+	switch f.Kind() {
 	case reflect.Float64:
-		return v.Float(), true
+		return f.Float(), true
 	case reflect.Int, reflect.Int64:
-		return float64(v.Int()), true
+		return float64(f.Int()), true
 	}
 	return 0, false
 }
 
-// SetAt sets a numeric key of s by its dotted path; ok is false for a
-// path that names no numeric key. The scenario is not validated again:
-// callers keep values inside the ranges validation checked.
+// SetAt sets a number key of s by its dotted path; ok is false for a path
+// that names no number key. A law option is set in a copy of the options
+// (a scenario copied by value shares them). The scenario is not validated
+// again: callers keep values inside the ranges validation checked.
 func SetAt(s *Scenario, path string, x float64) bool {
+	if k, ok := lawOptionKey(s.Spin.Law, path); ok {
+		pieces := strings.Split(path, ".")
+		s.Spin.Options = s.Spin.Options.Clone()
+		s.Spin.Options.Set(pieces[1], k.Name, x)
+		return true
+	}
+	f, ok := fieldAt(s, path)
+	if !ok || f.Kind() != reflect.Float64 || !f.CanSet() {
+		return false
+	}
+	f.SetFloat(x)
+	return true
+}
+
+// fieldAt finds the struct field of a dotted path by toml tags.
+func fieldAt(s *Scenario, path string) (reflect.Value, bool) {
 	v := reflect.ValueOf(s).Elem()
 	for _, piece := range strings.Split(path, ".") {
 		if v.Kind() != reflect.Struct {
-			return false
+			return reflect.Value{}, false
 		}
 		found := false
 		for i := range v.NumField() {
@@ -115,69 +163,30 @@ func SetAt(s *Scenario, path string, x float64) bool {
 			}
 		}
 		if !found {
-			return false
+			return reflect.Value{}, false
 		}
 	}
-	if v.Kind() != reflect.Float64 || !v.CanSet() {
-		return false
-	}
-	v.SetFloat(x)
-	return true
+	return v, true
 }
 
-// NuisanceNominal returns the value a nuisance path has in the scenario:
-// its key's value, or for spin.gyro.* left at 0 the law's published
-// coefficient.
+// NuisanceNominal returns the value a nuisance path has in the scenario.
 func NuisanceNominal(s *Scenario, path string) (float64, error) {
 	v, ok := ValueAt(s, path)
 	if !ok {
-		return 0, fmt.Errorf("%s is not a numeric scenario key", path)
-	}
-	if strings.HasPrefix(path, "spin.gyro.") && v == 0 {
-		g, err := gyroLaw(s.Spin.Law)
-		if err != nil {
-			return 0, fmt.Errorf("%s: %w", path, err)
-		}
-		switch path {
-		case "spin.gyro.a":
-			v = g.A
-		case "spin.gyro.b":
-			v = g.B
-		case "spin.gyro.c":
-			v = g.C
-		case "spin.gyro.n":
-			v = g.N
-		}
+		return 0, fmt.Errorf("%s is not a number key of this scenario", path)
 	}
 	return v, nil
 }
 
-// gyroLaw returns the empirical law named, or an error for the torque law.
-func gyroLaw(name string) (spin.GyroLaw, error) {
-	l, err := spin.ByName(name)
-	if err != nil {
-		return spin.GyroLaw{}, err
-	}
-	g, ok := l.(spin.GyroLaw)
-	if !ok {
-		return spin.GyroLaw{}, fmt.Errorf("spin.law = %q is not an empirical law; spin.gyro applies to barnes2007, mamajek2008 and angus2015", name)
-	}
-	return g, nil
-}
-
-// defaultSigma is the width of a gaussian prior left at sigma = 0: the
-// published uncertainty of an empirical law's coefficient; ok is false for
-// a path without one.
-func defaultSigma(s *Scenario, path string) (float64, bool) {
-	if !strings.HasPrefix(path, "spin.gyro.") {
+// DefaultSigma is the width of a gaussian prior left at sigma = 0: the
+// published uncertainty of a law's option (the empirical laws'
+// coefficients); ok is false for a path without one.
+func DefaultSigma(s *Scenario, path string) (float64, bool) {
+	pieces := strings.Split(path, ".")
+	if len(pieces) != 3 || pieces[0] != "spin" || pieces[1] != s.Spin.Law {
 		return 0, false
 	}
-	g, err := gyroLaw(s.Spin.Law)
-	if err != nil {
-		return 0, false
-	}
-	u := g.Uncertainty
-	return map[string]float64{"spin.gyro.a": u.A, "spin.gyro.b": u.B, "spin.gyro.c": u.C, "spin.gyro.n": u.N}[path], true
+	return spin.PublishedUncertainty(s.Spin.Law, pieces[2])
 }
 
 // validateNuisance checks the parts of a free parameter that only nuisance
@@ -185,21 +194,21 @@ func defaultSigma(s *Scenario, path string) (float64, bool) {
 func (v *decoder) validateNuisance(s *Scenario, p string, f FreeParam) {
 	key := func(k string) string { return joinKey(p, k) }
 	if f.Prior == "gaussian" {
-		if !IsNuisancePath(f.Path) {
-			v.errAt(key("prior"), "%s = \"gaussian\" applies to nuisance parameters (%s); a history parameter takes \"uniform\" or \"log-uniform\"", key("prior"), listWords(NuisancePaths()))
+		if !IsNuisancePath(s, f.Path) {
+			v.errAt(key("prior"), "%s = \"gaussian\" applies to nuisance parameters (%s); a history parameter takes \"uniform\" or \"log-uniform\"", key("prior"), listWords(NuisancePaths(s.Spin.Law)))
 			return
 		}
 		if !(f.Sigma >= 0) || math.IsInf(f.Sigma, 0) {
 			v.errAt(key("sigma"), "%s = %s must be ≥ 0 (0 = the published uncertainty where one is known)", key("sigma"), formatFloat(f.Sigma))
 		} else if f.Sigma == 0 {
-			if _, ok := defaultSigma(s, f.Path); !ok {
-				v.errAt(key("sigma"), "%s: a gaussian prior on %s needs a width; give sigma (only the empirical laws' coefficients spin.gyro.* have a published uncertainty to default to)", p, f.Path)
+			if _, ok := DefaultSigma(s, f.Path); !ok {
+				v.errAt(key("sigma"), "%s: a gaussian prior on %s needs a width; give sigma (only the empirical laws' coefficients spin.<law>.a, b, c, n have a published uncertainty to default to)", p, f.Path)
 			}
 		}
 	} else if f.Sigma != 0 {
 		v.errAt(key("sigma"), "%s is the width of a gaussian prior; with prior = %s leave it out", key("sigma"), quoteString(f.Prior))
 	}
-	if !IsNuisancePath(f.Path) {
+	if !IsNuisancePath(s, f.Path) {
 		return
 	}
 	nom, err := NuisanceNominal(s, f.Path)
@@ -212,8 +221,5 @@ func (v *decoder) validateNuisance(s *Scenario, p string, f FreeParam) {
 	}
 	if f.Path == "stars.binary_fraction_scale" && nom == 0 {
 		v.errAt(key("path"), "%s: stars.binary_fraction_scale = 0 makes no binaries to re-weight; set a positive scale to free it", key("path"))
-	}
-	if slices.Contains([]string{"survey.color_offset_mag", "survey.color_scale"}, f.Path) && s.Compare.Normalisation == "absolute" {
-		return
 	}
 }

@@ -53,7 +53,7 @@ gyrochrone_ages_gyr = [0.5, 1.5]
 	require.NoError(t, err)
 	assert.Equal(t, "torque", res.Scenario.Spin.Law)
 	assert.Equal(t, 200, res.Scenario.Compare.Bootstrap)
-	assert.Equal(t, 0.8, res.Scenario.History.Parts["burst"].AgeGyr)
+	assert.Equal(t, 0.8, res.Scenario.History.Parts["burst"].Float("age_gyr"))
 	assert.Equal(t, []float64{0.5, 1.5}, res.Scenario.Output.GyrochroneAgesGyr)
 	assert.Equal(t, string(fromFile.Canonical()), string(res.Canonical()))
 	assert.Equal(t, fromFile.Hash(), res.Hash())
@@ -151,7 +151,7 @@ func TestOverrideHistoryParts(t *testing.T) {
 	res, err = Resolve("example:smooth", mustOverrides(t,
 		`history.late={kind = "burst", age_gyr = 0.8, width_gyr = 0.05, mass_fraction = 0.1}`)...)
 	require.NoError(t, err)
-	assert.Equal(t, 0.8, res.Scenario.History.Parts["late"].AgeGyr)
+	assert.Equal(t, 0.8, res.Scenario.History.Parts["late"].Float("age_gyr"))
 }
 
 // A Base resolves many times without the overrides of one resolve leaking
@@ -166,8 +166,8 @@ func TestBaseResolveIndependent(t *testing.T) {
 	plain, err := LoadExample("fit")
 	require.NoError(t, err)
 	assert.Equal(t, plain.Hash(), c.Hash())
-	assert.Equal(t, 0.3, a.Scenario.History.Parts["burst"].AgeGyr)
-	assert.NotEqual(t, 0.3, c.Scenario.History.Parts["burst"].AgeGyr)
+	assert.Equal(t, 0.3, a.Scenario.History.Parts["burst"].Float("age_gyr"))
+	assert.NotEqual(t, 0.3, c.Scenario.History.Parts["burst"].Float("age_gyr"))
 }
 
 // data.file given on the command line is relative to the working

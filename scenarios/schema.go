@@ -57,27 +57,31 @@ type History struct {
 	Parts     map[string]Part `toml:"-"`           // decoded by hand from the sub-tables
 }
 
-// Part is one component of a star-formation history. Which keys apply
-// depends on Kind; a key that does not apply to the kind is an error:
+// Part is one component of a star-formation history. Its kind is one the
+// history registry knows (sfh.RegisterKind: constant, exponential, burst,
+// dip, bins, ...), and its keys are that kind's, with their defaults
+// filled in; a key that does not apply to the kind is an error:
 //
 //	constant     weight
-//	exponential  weight, timescale_gyr (required)
+//	exponential  weight, timescale_gyr (required; positive declines, negative rises)
 //	burst        age_gyr, width_gyr, mass_fraction (all required)
 //	dip          age_gyr, width_gyr, depth (all required)
 //	bins         weight, edges_gyr, rates (both required)
 //
-// In a file that extends another, kind = "none" removes an inherited part.
+// Smooth parts' weight is their relative share of the non-burst mass
+// (default 1). In a file that extends another, kind = "none" removes an
+// inherited part.
 type Part struct {
-	Kind         string    `toml:"kind"`          // constant | exponential | burst | dip | bins
-	Weight       float64   `toml:"weight"`        // smooth parts: relative share of non-burst mass; default 1
-	TimescaleGyr float64   `toml:"timescale_gyr"` // exponential: e-folding time in cosmic time, > 0 (declining rate)
-	AgeGyr       float64   `toml:"age_gyr"`       // burst, dip: centre in lookback age
-	WidthGyr     float64   `toml:"width_gyr"`     // burst, dip: Gaussian sigma
-	MassFraction float64   `toml:"mass_fraction"` // burst: share of all mass formed, in [0,1]
-	Depth        float64   `toml:"depth"`         // dip: fractional suppression at its centre, in [0,1]
-	EdgesGyr     []float64 `toml:"edges_gyr"`     // bins: increasing lookback-age edges
-	Rates        []float64 `toml:"rates"`         // bins: relative rate per bin (len(edges)-1)
+	Kind   string
+	Values map[string]float64   // the kind's number keys
+	Arrays map[string][]float64 // the kind's array keys
 }
+
+// Float returns a number key of the part (0 if it has none).
+func (p Part) Float(key string) float64 { return p.Values[key] }
+
+// Array returns an array key of the part.
+func (p Part) Array(key string) []float64 { return p.Arrays[key] }
 
 // Disk places stars: heating with age, the vertical potential, the radial
 // profile and the Sun.
@@ -113,58 +117,17 @@ type Stars struct {
 	AbsMagPerDex        float64 `toml:"abs_mag_per_dex"`         // M_V shift per dex [Fe/H]; default 1.0
 }
 
-// Spin chooses the spin-down law and its parameters.
+// Spin chooses the spin-down law and its parameters. Besides law,
+// turnover and [spin.spots], every sub-table is an option table of a
+// registered spin-down law (model/spin: [spin.torque], [spin.stall],
+// [spin.weakened_braking], ...), its keys, defaults and ranges declared
+// where the law is; spinpop check prints them all.
 type Spin struct {
-	Law              string           `toml:"law"`                // barnes2007 (default) | mamajek2008 | angus2015 | torque
-	Turnover         string           `toml:"turnover"`           // wright2018 (default) | cranmer-saar2011
-	PeriodScatterDex float64          `toml:"period_scatter_dex"` // intrinsic lognormal scatter of periods about the law, in [0, 0.5]; default 0
-	Gyro             GyroCoefficients `toml:"gyro"`               // coefficients of the empirical laws
-	Torque           TorqueLaw        `toml:"torque"`
-	Stall            Stall            `toml:"stall"`
-	Weakened         Weakened         `toml:"weakened_braking"`
-	Spots            Spots            `toml:"spots"`
-}
-
-// GyroCoefficients override the coefficients of an empirical law
-// P = a (B−V − c)^b t^n (t in Myr); 0 keeps the law's published value.
-// They exist to be fitted as nuisance parameters ([[compare.free]] with
-// prior = "gaussian", whose default width is the published uncertainty).
-type GyroCoefficients struct {
-	A float64 `toml:"a"` // default 0 (the law's)
-	B float64 `toml:"b"` // default 0 (the law's)
-	C float64 `toml:"c"` // default 0 (the law's)
-	N float64 `toml:"n"` // default 0 (the law's)
-}
-
-// TorqueLaw parameterises the wind-torque law with saturation.
-type TorqueLaw struct {
-	SolarPeriodD        float64 `toml:"solar_period_d"`           // calibration target at 4.57 Gyr; default 25.4
-	SaturationChi       float64 `toml:"saturation_chi"`           // Ro_sun / Ro_sat; default 10
-	InitialPeriodDist   string  `toml:"initial_period_dist"`      // "lognormal" (default) | "log-uniform"
-	InitialPeriodMinD   float64 `toml:"initial_period_min_d"`     // log-uniform; default 1
-	InitialPeriodMaxD   float64 `toml:"initial_period_max_d"`     // log-uniform; default 10
-	InitialPeriodMedD   float64 `toml:"initial_period_median_d"`  // lognormal; default 2
-	InitialPeriodSigDex float64 `toml:"initial_period_sigma_dex"` // lognormal; default 0.3
-	StartAgeGyr         float64 `toml:"start_age_gyr"`            // age the initial periods refer to; default 0.01
-}
-
-// Stall is the parameterised spin-down stall (core–envelope recoupling).
-// The defaults are an illustrative starting point for fits, not a
-// calibration.
-type Stall struct {
-	Enabled         bool    `toml:"enabled"`                 // default false
-	StartGyrAt08    float64 `toml:"start_gyr_at_0p8msun"`    // stall start age for 0.8 Msun; default 0.5
-	DurationGyrAt08 float64 `toml:"duration_gyr_at_0p8msun"` // stall duration for 0.8 Msun; default 0.6
-	StartSlope      float64 `toml:"start_mass_slope"`        // start ∝ (m/0.8)^slope; default -2
-	DurationSlope   float64 `toml:"duration_mass_slope"`     // duration ∝ (m/0.8)^slope; default -2
-	MassMaxMsun     float64 `toml:"mass_max_msun"`           // no stall above this mass; default 1.0
-	CatchUpFraction float64 `toml:"catch_up_fraction"`       // after the pause the star regains the lost time over this fraction of the pause (fast spin-down); 0 = stays behind; default 0.25
-}
-
-// Weakened is weakened magnetic braking above a critical Rossby number.
-type Weakened struct {
-	Enabled bool    `toml:"enabled"` // default false
-	RoCrit  float64 `toml:"ro_crit"` // default 2
+	Law              string     `toml:"law"`                // a registered law: barnes2007 (default) | mamajek2008 | angus2015 | torque
+	Turnover         string     `toml:"turnover"`           // wright2018 (default) | cranmer-saar2011
+	PeriodScatterDex float64    `toml:"period_scatter_dex"` // intrinsic lognormal scatter of periods about the law, in [0, 0.5]; default 0
+	Spots            Spots      `toml:"spots"`
+	Options          LawOptions `toml:"-"` // decoded by hand from the law option tables
 }
 
 // Spots sets photometric spot amplitude versus Rossby number.
@@ -253,10 +216,13 @@ type Output struct {
 // file. Loading a scenario resolves the file's path (Resolved.DataPath)
 // but does not open it.
 type Data struct {
-	File    string      `toml:"file"`    // path relative to the scenario file that names it; default "" (no data)
-	SHA256  string      `toml:"sha256"`  // optional: hex SHA-256 the file must have (64 digits); default ""
-	Format  string      `toml:"format"`  // "auto" (default: by content) | "csv" | "ecsv"
-	Columns DataColumns `toml:"columns"` // column names in the file
+	File   string `toml:"file"`   // path relative to the scenario file that names it; default "" (no data)
+	SHA256 string `toml:"sha256"` // optional: hex SHA-256 the file must have (64 digits); default ""
+	Format string `toml:"format"` // "auto" (default: by content) | "csv" | "ecsv" | "fits" | "parquet"
+	// FITS only: the binary-table extension to read, by EXTNAME ("STARS") or
+	// by number (2 or "2"; 1 is the first extension after the primary HDU).
+	Extension string      `toml:"extension"` // default "" (the first binary table)
+	Columns   DataColumns `toml:"columns"`   // column names in the file
 }
 
 // DataColumns maps quantities to column names. Empty means not given.

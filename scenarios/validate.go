@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"reflect"
 	"slices"
+
+	"spinpop/model/spin"
 )
 
 // Allowed values of the enumerated keys, in the order messages list them.
@@ -11,9 +13,7 @@ var (
 	imfForms        = []string{"kroupa2001", "chabrier2003"}
 	dustModels      = []string{"none", "exponential"}
 	relationsTables = []string{"mean-dwarf-sequence"}
-	spinLaws        = []string{"barnes2007", "mamajek2008", "angus2015", "torque"}
 	turnovers       = []string{"cranmer-saar2011", "wright2018"}
-	periodDists     = []string{"log-uniform", "lognormal"}
 	bands           = []string{"V", "Ks"}
 	fieldKinds      = []string{"cone", "sphere", "cones"}
 )
@@ -91,33 +91,10 @@ func (v *decoder) validateDisk(dk *Disk, maxAgeGyr float64) {
 }
 
 func (v *decoder) validateSpin(sp *Spin) {
-	v.oneOf("spin.law", sp.Law, spinLaws)
+	v.oneOf("spin.law", sp.Law, spin.Names())
 	v.oneOf("spin.turnover", sp.Turnover, turnovers)
 	v.inRange("spin.period_scatter_dex", sp.PeriodScatterDex, 0, true, 0.5, true, "intrinsic period scatter")
-	v.inRange("spin.gyro.a", sp.Gyro.A, 0, true, 10, true, "0 keeps the law's value")
-	v.inRange("spin.gyro.b", sp.Gyro.B, 0, true, 2, true, "0 keeps the law's value")
-	v.inRange("spin.gyro.c", sp.Gyro.C, 0, true, 1, true, "0 keeps the law's value")
-	v.inRange("spin.gyro.n", sp.Gyro.N, 0, true, 1.5, true, "0 keeps the law's value")
-
-	tq := &sp.Torque
-	v.positive("spin.torque.solar_period_d", tq.SolarPeriodD)
-	v.atLeast("spin.torque.saturation_chi", tq.SaturationChi, 1, "chi = Ro_sun / Ro_sat")
-	v.oneOf("spin.torque.initial_period_dist", tq.InitialPeriodDist, periodDists)
-	v.positive("spin.torque.initial_period_min_d", tq.InitialPeriodMinD)
-	v.less("spin.torque.initial_period_min_d", tq.InitialPeriodMinD, "spin.torque.initial_period_max_d", tq.InitialPeriodMaxD, "empty period range")
-	v.positive("spin.torque.initial_period_median_d", tq.InitialPeriodMedD)
-	v.atLeast("spin.torque.initial_period_sigma_dex", tq.InitialPeriodSigDex, 0, "")
-	v.inRange("spin.torque.start_age_gyr", tq.StartAgeGyr, 0, true, 1, false, "the initial periods belong to young stars")
-
-	if sp.Stall.Enabled {
-		v.positive("spin.stall.start_gyr_at_0p8msun", sp.Stall.StartGyrAt08)
-		v.positive("spin.stall.duration_gyr_at_0p8msun", sp.Stall.DurationGyrAt08)
-		v.inRange("spin.stall.mass_max_msun", sp.Stall.MassMaxMsun, 0.8, false, 120, true, "the stall is quoted at 0.8 Msun, so stars up to a mass above it must stall")
-		v.inRange("spin.stall.start_mass_slope", sp.Stall.StartSlope, -10, true, 0, true, "the stall starts later toward low mass")
-		v.inRange("spin.stall.duration_mass_slope", sp.Stall.DurationSlope, -10, true, 0, true, "the stall lasts longer toward low mass")
-		v.inRange("spin.stall.catch_up_fraction", sp.Stall.CatchUpFraction, 0, true, 10, true, "0 = never catch up")
-	}
-	v.positive("spin.weakened_braking.ro_crit", sp.Weakened.RoCrit)
+	v.validateLawOptions(sp.Options)
 
 	sk := &sp.Spots
 	v.positive("spin.spots.ro_sat", sk.RoSat)

@@ -87,30 +87,30 @@ func New(maxAgeGyr float64, parts []Part) (*History, error) {
 			return nil, fmt.Errorf("sfh: part %q (%s): Weight = %g must be 0; Weight applies only to smooth components (Constant, Exponential, Piecewise)%s",
 				p.Name, c.kind(), p.Weight, weightHint(c))
 		}
-		if b, isBurst := c.(Burst); isBurst {
-			burstSum += b.MassFraction
+		if e, isEpisode := c.(episode); isEpisode {
+			burstSum += e.fraction()
 		}
 		h.parts[i] = Part{Name: p.Name, Component: copyComponent(c), Weight: p.Weight}
 	}
 	if burstSum > 1+burstSumSlack {
-		return nil, fmt.Errorf("sfh: burst mass fractions sum to %g, above the allowed maximum 1; lower the bursts' MassFraction", burstSum)
+		return nil, fmt.Errorf("sfh: burst mass fractions sum to %.6g, above the allowed maximum 1; lower the bursts' MassFraction (mass_fraction)", burstSum)
 	}
 	rest := math.Max(1-burstSum, 0)
 	if burstSum > 1-burstSumSlack {
 		rest = 0
 	}
 	if rest > 0 && weightSum == 0 {
-		return nil, fmt.Errorf("sfh: bursts take %g of the mass but no smooth component with Weight > 0 takes the remaining %g; add one or raise the burst fractions to sum to 1",
+		return nil, fmt.Errorf("sfh: bursts take %.6g of the mass but no smooth component with Weight > 0 takes the remaining %.6g; add one (constant, exponential or bins) or raise the burst fractions to sum to 1",
 			burstSum, rest)
 	}
 	for _, p := range h.parts {
 		var share float64
-		switch c := p.Component.(type) {
-		case Dip:
-			h.dips = append(h.dips, c)
+		switch c := p.Component; c.role() {
+		case Modulation:
+			h.dips = append(h.dips, c.(Dip))
 			continue
-		case Burst:
-			share = c.MassFraction
+		case Episode:
+			share = c.(episode).fraction()
 			if rest == 0 {
 				share /= burstSum // absorb the rounding slack
 			}
@@ -151,10 +151,7 @@ func New(maxAgeGyr float64, parts []Part) (*History, error) {
 }
 
 func weightHint(c Component) string {
-	if _, ok := c.(Burst); ok {
-		return "; a burst's strength is its MassFraction"
-	}
-	return "; a dip's strength is its Depth"
+	return fmt.Sprintf("; a %s's strength is its %s", strings.ToLower(c.kind()), c.strength())
 }
 
 func checkName(name string, i int) error {
@@ -248,10 +245,10 @@ func (h *History) String() string {
 			b.WriteString("; ")
 		}
 		fmt.Fprintf(&b, "%s = %v", p.Name, p.Component)
-		if _, isDip := p.Component.(Dip); isDip {
+		if p.Component.role() == Modulation {
 			continue
 		}
-		if _, isBurst := p.Component.(Burst); !isBurst {
+		if p.Component.role() != Episode {
 			fmt.Fprintf(&b, ", %.3g of mass", h.comps[k].share)
 		}
 		k++

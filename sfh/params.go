@@ -38,30 +38,10 @@ func (h *History) Params() []Param {
 		add := func(key string, v, lo, hi float64) {
 			out = append(out, Param{Name: p.Name + "." + key, Value: v, Min: lo, Max: hi})
 		}
-		switch c := p.Component.(type) {
-		case Constant:
+		if isSmooth(p.Component) {
 			add("weight", p.Weight, 0, inf)
-		case Exponential:
-			add("weight", p.Weight, 0, inf)
-			if c.TimescaleGyr > 0 {
-				add("timescale_gyr", c.TimescaleGyr, 0, inf)
-			} else {
-				add("timescale_gyr", c.TimescaleGyr, -inf, 0)
-			}
-		case Piecewise:
-			add("weight", p.Weight, 0, inf)
-			for i, r := range c.Rates {
-				add("rate_"+strconv.Itoa(i), r, 0, inf)
-			}
-		case Burst:
-			add("age_gyr", c.AgeGyr, 0, h.maxAge)
-			add("width_gyr", c.WidthGyr, 0, inf)
-			add("mass_fraction", c.MassFraction, 0, 1)
-		case Dip:
-			add("age_gyr", c.AgeGyr, 0, h.maxAge)
-			add("width_gyr", c.WidthGyr, 0, inf)
-			add("depth", c.Depth, 0, 1)
 		}
+		p.Component.params(add, h.maxAge)
 	}
 	return out
 }
@@ -97,64 +77,13 @@ func (h *History) WithParams(values map[string]float64) (*History, error) {
 
 // setParam sets key on p and reports whether the key exists for p's type.
 func setParam(p *Part, key string, v float64) bool {
-	switch c := p.Component.(type) {
-	case Constant:
-		if key == "weight" {
-			p.Weight = v
-			return true
-		}
-	case Exponential:
-		switch key {
-		case "weight":
-			p.Weight = v
-		case "timescale_gyr":
-			c.TimescaleGyr = v
-		default:
-			return false
-		}
-		p.Component = c
-		return true
-	case Piecewise:
-		if key == "weight" {
-			p.Weight = v
-			return true
-		}
-		idx, ok := strings.CutPrefix(key, "rate_")
-		if !ok {
-			return false
-		}
-		i, err := strconv.Atoi(idx)
-		if err != nil || i < 0 || i >= len(c.Rates) || strconv.Itoa(i) != idx {
-			return false
-		}
-		c.Rates[i] = v // Parts() gave us our own copy of the slice
-		return true
-	case Burst:
-		switch key {
-		case "age_gyr":
-			c.AgeGyr = v
-		case "width_gyr":
-			c.WidthGyr = v
-		case "mass_fraction":
-			c.MassFraction = v
-		default:
-			return false
-		}
-		p.Component = c
-		return true
-	case Dip:
-		switch key {
-		case "age_gyr":
-			c.AgeGyr = v
-		case "width_gyr":
-			c.WidthGyr = v
-		case "depth":
-			c.Depth = v
-		default:
-			return false
-		}
-		p.Component = c
+	if key == "weight" && isSmooth(p.Component) {
+		p.Weight = v
 		return true
 	}
-	return false
+	c, ok := p.Component.with(key, v)
+	if ok {
+		p.Component = c
+	}
+	return ok
 }

@@ -109,16 +109,4 @@ func (s *span) sample(r *rand.Rand) float64 {
 }
 
 // newShape builds the shape of a validated smooth component or burst.
-func newShape(c Component, maxAge float64) shape {
-	switch v := c.(type) {
-	case Constant:
-		return &uniformShape{maxAge: maxAge}
-	case Exponential:
-		return newExpShape(v.TimescaleGyr, maxAge)
-	case Burst:
-		return newNormalShape(v.AgeGyr, v.WidthGyr, maxAge)
-	case Piecewise:
-		return newStepShape(v.EdgesGyr, v.Rates)
-	}
-	return nil
-}
+func newShape(c Component, maxAge float64) shape { return c.newShape(maxAge) }

@@ -16,6 +16,7 @@ import (
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
+	"spinpop/assemble"
 	"spinpop/model"
 	"spinpop/scenarios"
 )
@@ -33,7 +34,7 @@ const (
 	splitChunk    = 16_384
 )
 
-func splitBuilt() (*scenarios.Built, error) {
+func splitBuilt() (*assemble.Built, error) {
 	o, err := scenarios.ParseOverrides([]string{
 		"run.stars_generated=" + strconv.Itoa(splitStars), "run.chunk_stars=" + strconv.Itoa(splitChunk)})
 	if err != nil {
@@ -43,10 +44,10 @@ func splitBuilt() (*scenarios.Built, error) {
 	if err != nil {
 		return nil, err
 	}
-	return scenarios.Build(&res.Scenario)
+	return assemble.Build(&res.Scenario)
 }
 
-func splitTally(b *scenarios.Built) *model.Tally {
+func splitTally(b *assemble.Built) *model.Tally {
 	return model.NewTally(b.AgeEdgesGyr, []float64{0.4, 0.6, 0.8, 1.0, 1.2, 1.4, 1.6}, []float64{-1, 0, 0.5, 1, 1.5, 2, 2.5}, []float64{0, 100, 200, 400, 800, 1600})
 }
 
@@ -72,7 +73,7 @@ func rows(b *bytes.Buffer, c *model.Chunk) {
 
 // runRange runs chunks r of the split run and returns its tally (JSON)
 // and catalogue rows.
-func runRange(b *scenarios.Built, r model.ChunkRange, workers int) ([]byte, []byte, error) {
+func runRange(b *assemble.Built, r model.ChunkRange, workers int) ([]byte, []byte, error) {
 	tl, cat := splitTally(b), new(bytes.Buffer)
 	s := b.Scenario
 	err := model.RunChunkRange(context.Background(), s.Run.Seed, s.Run.StarsGenerated, s.Run.ChunkStars, r, workers, b.Population.Fill,

@@ -148,7 +148,7 @@ func (f *fakeWork) Work(ctx context.Context, p *Point, steps []string, dir strin
 	if err := os.WriteFile(filepath.Join(dir, "work.txt"), []byte(strings.Join(steps, ",")), 0o644); err != nil {
 		return Headline{}, err
 	}
-	return Headline{CatalogStars: I(int64(s.Run.Seed) * 10), BurstAgeGyr: F(s.History.Parts["burst"].AgeGyr),
+	return Headline{CatalogStars: I(int64(s.Run.Seed) * 10), BurstAgeGyr: F(s.History.Parts["burst"].Float("age_gyr")),
 		Verdict: s.Spin.Law, Extra: map[string]float64{"seed": float64(s.Run.Seed)}}, nil
 }
 

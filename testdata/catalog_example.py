@@ -10,6 +10,10 @@ Writes
                                 (units, a masked parallax, a string column with
                                 quotes, a description with commas, table meta);
   catalog_example_comma.ecsv    the same table with delimiter ','
+  catalog_example.fits.gz       the same table as a FITS binary table, extension
+                                'STARS' (HDU 2, after a one-row table 'RUN' in
+                                HDU 1), gzip-compressed with mtime 0; the
+                                masked parallax is NaN, units are TUNITn
   catalog_example_expected.csv  per row: Galactic l, b from astropy's
                                 SkyCoord(...).galactic, distance 1000/parallax,
                                 absolute magnitude m - 5 log10(d/10) and height
@@ -43,6 +47,18 @@ t.meta["comment"] = "invented stars for reader tests"
 
 t.write("catalog_example.ecsv", format="ascii.ecsv", overwrite=True)
 t.write("catalog_example_comma.ecsv", format="ascii.ecsv", delimiter=",", overwrite=True)
+
+from astropy.io import fits
+import gzip
+import io
+
+run = fits.BinTableHDU(Table({"survey": ["Larkspur"], "release": [3]}), name="RUN")
+stars = fits.table_to_hdu(t)
+stars.name = "STARS"
+buf = io.BytesIO()
+fits.HDUList([fits.PrimaryHDU(), run, stars]).writeto(buf)
+with open("catalog_example.fits.gz", "wb") as f:
+    f.write(gzip.compress(buf.getvalue(), mtime=0))
 
 c = SkyCoord(ra=np.asarray(t["ra"]) * u.deg, dec=np.asarray(t["dec"]) * u.deg, frame="icrs").galactic
 d = 1000.0 / plx

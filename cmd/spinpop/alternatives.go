@@ -4,14 +4,14 @@ import (
 	"context"
 	"fmt"
 	"io"
+	"math"
 	"os"
 	"os/signal"
 	"path/filepath"
 
 	"gonum.org/v1/plot/vg"
 
-	"spinpop/compare"
-	"spinpop/scenarios"
+	"spinpop/pipeline"
 )
 
 func runTestAlternatives(args []string, stdout, stderr io.Writer) error {
@@ -39,8 +39,7 @@ func runTestAlternatives(args []string, stdout, stderr io.Writer) error {
 	}
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
 	defer stop()
-	var alts []compare.Alternative
-	var comps []*comparison
+	var comps []*pipeline.Comparison
 	for i, path := range pos {
 		f := cf
 		if i > 0 {
@@ -51,40 +50,24 @@ func runTestAlternatives(args []string, stdout, stderr io.Writer) error {
 		if err != nil {
 			return err
 		}
-		hm, err := scenarios.AsWritten(c.s, c.built.AgeEdgesGyr)
-		if err != nil {
-			return inputError{fmt.Errorf("%s: %w", path, err)}
-		}
-		name := c.s.Name
-		for _, a := range alts {
-			if a.Name == name {
-				name = fmt.Sprintf("%s (%s)", name, path)
-			}
-		}
-		alts = append(alts, compare.Alternative{Name: name, Like: c.like, History: hm, Nuisance: c.nuisance})
 		comps = append(comps, c)
 	}
-	bar := newProgressBar("bootstrap", int64(*reps*len(alts)))
-	res, err := compare.CompareAlternatives(ctx, alts, compare.AltOptions{Replicates: *reps, Seed: comps[0].s.Run.Seed, Workers: comps[0].workers,
+	bar := newProgressBar("bootstrap", int64(*reps*len(comps)))
+	o, err := pipeline.TestAlternatives(ctx, comps, pipeline.AlternativesOptions{Replicates: *reps,
 		Progress: func(done, _ int) { bar.Update(int64(done)) }})
 	bar.Done()
 	if err != nil {
-		if ctx.Err() != nil {
-			return fmt.Errorf("interrupted; no comparison output was written")
-		}
-		return inputError{err}
+		return err
 	}
+	res := o.Result
 	dir := *cf.out
 	models := map[string][]float64{}
-	var order []string
-	for i, a := range alts {
-		if err := a.Like.UseFit(res.Fits[i].Fit); err != nil {
-			return err
-		}
-		models[a.Name] = a.Like.Expected(res.Fits[i].Fit.Weights, nil)
-		order = append(order, a.Name)
+	var names []string
+	for i, a := range o.Alternatives {
+		models[a.Name] = o.Expected[i]
+		names = append(names, a.Name)
 	}
-	grid, err := periodHistsDataModel(alts[0].Like.Space(), alts[0].Like.Counts(), models, order, 6)
+	grid, err := periodHistsDataModel(comps[0].Likelihood.Space(), comps[0].Likelihood.Counts(), models, names, 6)
 	if err != nil {
 		return err
 	}
@@ -92,36 +75,17 @@ func runTestAlternatives(args []string, stdout, stderr io.Writer) error {
 		return err
 	}
 	outputs := []string{"rejected.csv", "alternatives_period_histograms.png", "alternatives.json"}
-	fits := make([]map[string]any, len(res.Fits))
-	for i, f := range res.Fits {
-		p := map[string]float64{}
-		for j, n := range f.Fit.Names {
-			p["history."+n] = f.Fit.Theta[j]
-		}
-		for j, n := range f.Fit.NuisanceNames {
-			p[n] = f.Fit.Nuisance[j]
-		}
-		fits[i] = map[string]any{"name": f.Name, "scenario": pos[i], "scenario_sha256": comps[i].res.Hash(), "params": p,
-			"log_l": finite(f.LogL), "k": f.K, "aic": finite(f.AIC), "bic": finite(f.BIC), "adequacy": adequacyJSON(f.Adequacy),
-			"log_evidence": finite(f.LogEvidence), "evidence_params": f.EvidenceParams, "has_evidence": f.HasEvidence}
-	}
-	pairs := make([]map[string]any, len(res.Pairs))
-	for i, p := range res.Pairs {
-		pairs[i] = map[string]any{"a": p.A, "b": p.B, "lr_b_over_a": finite(p.LR), "p_under_a": p.PUnderA, "p_under_b": p.PUnderB, "ln_bayes_b_over_a": finite(p.LogBayesBOver)}
-	}
-	out := map[string]any{"tool": "spinpop", "version": version, "data": comps[0].dataSummary(), "stars": res.N,
-		"replicates_per_alternative": res.Replicates, "fits": fits, "pairs": pairs,
-		"outcome": res.Outcome, "best": res.Best, "verdict": res.Verdict, "outputs": outputs}
-	if err := writeJSON(filepath.Join(dir, "alternatives.json"), out); err != nil {
+	rep := o.Report(outputs)
+	if err := writeJSON(filepath.Join(dir, "alternatives.json"), rep); err != nil {
 		return err
 	}
 	if *cf.asJSON {
-		return printJSON(stdout, out)
+		return printJSON(stdout, rep)
 	}
 	if res.Outcome != "prefers" {
 		fmt.Fprintf(stdout, "%s\n\n", res.Verdict)
 	}
-	printDataSummary(stdout, comps[0].dataSummary())
+	printDataSummary(stdout, comps[0].DataSummary())
 	fmt.Fprintln(stdout)
 	for _, f := range res.Fits {
 		fmt.Fprintf(stdout, "%-24s ln L = %10.2f  k = %2d  AIC = %10.1f  BIC = %10.1f  deviance %.0f vs %.0f ± %.0f (p = %.3g)\n",
@@ -129,7 +93,7 @@ func runTestAlternatives(args []string, stdout, stderr io.Writer) error {
 	}
 	for _, p := range res.Pairs {
 		fmt.Fprintf(stdout, "%s vs %s: 2Δln L = %.1f; bootstrap p under %s = %.3g, under %s = %.3g", p.B, p.A, p.LR, p.A, p.PUnderA, p.B, p.PUnderB)
-		if !isNaN(p.LogBayesBOver) {
+		if !math.IsNaN(p.LogBayesBOver) {
 			fmt.Fprintf(stdout, "; ln B = %.1f", p.LogBayesBOver)
 		}
 		fmt.Fprintln(stdout)
@@ -137,5 +101,3 @@ func runTestAlternatives(args []string, stdout, stderr io.Writer) error {
 	fmt.Fprintf(stdout, "\n%s\nwrote: %v\n", res.Verdict, outputs)
 	return nil
 }
-
-func isNaN(x float64) bool { return x != x }

@@ -6,7 +6,7 @@ import (
 	"io"
 	"strings"
 
-	"spinpop/scenarios"
+	"spinpop/pipeline"
 )
 
 func runCheck(args []string, stdout, stderr io.Writer) error {
@@ -25,8 +25,8 @@ func runCheck(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	if _, err := scenarios.Build(&res.Scenario); err != nil {
-		return inputError{fmt.Errorf("%s: %w", path, err)}
+	if _, err := pipeline.Build(&res.Scenario, path); err != nil {
+		return err
 	}
 	if *asJSON {
 		enc := json.NewEncoder(stdout)

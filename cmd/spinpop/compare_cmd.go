@@ -4,17 +4,14 @@ import (
 	"context"
 	"fmt"
 	"io"
-	"math"
 	"os"
 	"os/signal"
 	"path/filepath"
 
-	"gonum.org/v1/plot/vg"
-
 	"spinpop/compare"
-	"spinpop/compare/stats"
-	"spinpop/model"
-	"spinpop/scenarios"
+	"spinpop/pipeline"
+
+	"gonum.org/v1/plot/vg"
 )
 
 func runCompare(args []string, stdout, stderr io.Writer) error {
@@ -41,87 +38,28 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	hm, err := scenarios.AsWritten(c.s, c.built.AgeEdgesGyr)
-	if err != nil {
-		return inputError{fmt.Errorf("%s: %w", path, err)}
+	if *reps < 0 {
+		return usageErrorf("--replicates must be ≥ 0")
 	}
-	theta := hm.Default()
-	label := "as written"
-	var fr compare.FitResult
-	if *doFit {
-		if fr, err = compare.FitJoint(ctx, c.like, hm, c.nuisance, compare.FitOptions{Seed: c.s.Run.Seed}); err != nil {
-			return err
+	var bar *progressBar
+	sc, err := c.Score(ctx, pipeline.ScoreOptions{Fit: *doFit, Replicates: *reps, Progress: func(done, total int) {
+		if bar == nil {
+			bar = newProgressBar("goodness of fit", int64(total))
 		}
-		theta, label = fr.Theta, "fitted"
-	} else {
-		w, err := hm.Weights(theta)
-		if err != nil {
-			return err
-		}
-		fr = compare.FitResult{Theta: theta, Names: hm.Names(), Weights: w, LogL: c.like.LogL(w)}
-	}
-	w := fr.Weights
-	logL := fr.LogL
-	var gof *compare.Adequacy
-	if *reps > 0 {
-		bar := newProgressBar("goodness of fit", int64(*reps))
-		a, err := compare.GoodnessOfFit(ctx, c.like, hm, fr, compare.GoFOptions{Replicates: *reps, Seed: c.s.Run.Seed, Workers: c.workers,
-			Refit: *doFit, Nuisance: c.nuisance, Progress: func(done, _ int) { bar.Update(int64(done)) }})
-		bar.Done()
-		if err != nil {
-			return err
-		}
-		gof = &a
-	}
-	if err := c.like.UseFit(fr); err != nil {
-		return err
-	}
-	sp := c.like.Space()
-	data := c.like.Counts()
-	mu := c.like.Expected(w, nil)
-	resid := c.like.PearsonResiduals(w)
-	chi2, nb := 0.0, 0
-	for i, r := range resid {
-		if mu[i] > 0 {
-			chi2 += r * r
-			nb++
-		}
-	}
-
-	// Unbinned marginals against a synthetic catalog of the scenario.
-	hist, err := hm.History(theta)
+		bar.Update(int64(done))
+	}})
+	bar.Done()
 	if err != nil {
 		return err
 	}
-	synth, err := syntheticMarginals(ctx, c, hist)
-	if err != nil {
-		return err
-	}
-	var dP, dC, dZ []float64
-	for _, st := range c.obs.Stars {
-		dP = append(dP, math.Log10(st.PeriodD))
-		dC = append(dC, st.BV)
-		dZ = append(dZ, math.Abs(st.ZPc))
-	}
-	tests := map[string]any{}
-	for _, m := range []struct {
-		name string
-		d, s []float64
-	}{{"log10_period", dP, synth.logP}, {"b_v", dC, synth.bv}, {"abs_z_pc", dZ, synth.absZ}} {
-		ks, err1 := stats.KS2Sample(m.d, m.s)
-		ad, err2 := stats.AndersonKSample(m.d, m.s)
-		if err1 != nil || err2 != nil {
-			continue
-		}
-		tests[m.name] = map[string]any{"ks_d": ks.D, "ks_p": ks.PValue, "ad_statistic": ad.Statistic, "ad_p": ad.PValue, "ad_p_clamped": ad.Clamped}
-	}
-
+	name := c.Scenario.Name
+	sp := c.Likelihood.Space()
 	dir := *cf.out
 	var outputs []string
-	if err := writeGrid(filepath.Join(dir, "residuals.png"), dataModelResiduals(sp, data, mu, resid, c.s.Name+" ("+label+")"), 36*vg.Centimeter, 11*vg.Centimeter); err != nil {
+	if err := writeGrid(filepath.Join(dir, "residuals.png"), dataModelResiduals(sp, sc.Counts, sc.Mu, sc.Resid, name+" ("+sc.Label+")"), 36*vg.Centimeter, 11*vg.Centimeter); err != nil {
 		return err
 	}
-	grid, err := periodHistsDataModel(sp, data, map[string][]float64{c.s.Name: mu}, []string{c.s.Name}, 6)
+	grid, err := periodHistsDataModel(sp, sc.Counts, map[string][]float64{name: sc.Mu}, []string{name}, 6)
 	if err != nil {
 		return err
 	}
@@ -130,20 +68,21 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	}
 	outputs = append(outputs, "rejected.csv", "residuals.png", "period_histograms.png", "compare.json")
 	params := map[string]float64{}
-	for i, n := range hm.Names() {
-		params["history."+n] = theta[i]
+	for i, n := range sc.Names {
+		params["history."+n] = sc.Theta[i]
 	}
-	for i, n := range fr.NuisanceNames {
-		params[n] = fr.Nuisance[i]
+	for i, n := range sc.NuisanceNames {
+		params[n] = sc.Nuisance[i]
 	}
+	cmp := c.Scenario.Compare
 	out := map[string]any{
-		"tool": "spinpop", "version": version, "scenario": path, "scenario_sha256": c.res.Hash(), "data": c.dataSummary(),
-		"history": label, "params": params, "log_l": finite(logL), "normalisation": c.s.Compare.Normalisation,
-		"template_noise": c.s.Compare.TemplateNoise, "pearson_chi2": chi2, "bins_with_model": nb,
-		"marginal_tests": tests, "synthetic_catalog_stars": len(synth.logP), "outputs": outputs,
+		"tool": "spinpop", "version": version, "scenario": path, "scenario_sha256": c.Resolved.Hash(), "data": c.DataSummary(),
+		"history": sc.Label, "params": params, "log_l": pipeline.Finite(sc.LogL), "normalisation": cmp.Normalisation,
+		"template_noise": cmp.TemplateNoise, "pearson_chi2": sc.PearsonChi2, "bins_with_model": sc.NumBins,
+		"marginal_tests": sc.Marginals, "synthetic_catalog_stars": sc.SyntheticStars, "outputs": outputs,
 	}
-	if gof != nil {
-		out["goodness_of_fit"] = adequacyJSON(*gof)
+	if sc.GoodnessOfFit != nil {
+		out["goodness_of_fit"] = pipeline.AdequacyReport(*sc.GoodnessOfFit)
 	}
 	if err := writeJSON(filepath.Join(dir, "compare.json"), out); err != nil {
 		return err
@@ -151,65 +90,30 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	if *cf.asJSON {
 		return printJSON(stdout, out)
 	}
+	gof := sc.GoodnessOfFit
 	if gof != nil && !gof.Adequate(0.01) {
 		fmt.Fprintf(stdout, "The scenario does not describe the catalog: deviance %.0f where its own replicates give %.0f ± %.0f (bootstrap p = %.3g, dispersion %.2f)%s.\n\n",
 			gof.Deviance, gof.ReplicateMean, gof.ReplicateSD, gof.PValue, gof.Dispersion, compare.WorstRegions(*gof))
 	}
-	printDataSummary(stdout, c.dataSummary())
-	fmt.Fprintf(stdout, "\nhistory %s:", label)
-	for i, n := range hm.Names() {
-		fmt.Fprintf(stdout, " history.%s = %.4g", n, theta[i])
+	printDataSummary(stdout, c.DataSummary())
+	fmt.Fprintf(stdout, "\nhistory %s:", sc.Label)
+	for i, n := range sc.Names {
+		fmt.Fprintf(stdout, " history.%s = %.4g", n, sc.Theta[i])
 	}
-	for i, n := range fr.NuisanceNames {
-		fmt.Fprintf(stdout, " %s = %.4g", n, fr.Nuisance[i])
+	for i, n := range sc.NuisanceNames {
+		fmt.Fprintf(stdout, " %s = %.4g", n, sc.Nuisance[i])
 	}
-	fmt.Fprintf(stdout, "\nln L = %.2f (%s normalisation, template noise: %s); Pearson χ² = %.1f over %d bins\n", logL, c.s.Compare.Normalisation, c.s.Compare.TemplateNoise, chi2, nb)
+	fmt.Fprintf(stdout, "\nln L = %.2f (%s normalisation, template noise: %s); Pearson χ² = %.1f over %d bins\n", sc.LogL, cmp.Normalisation, cmp.TemplateNoise, sc.PearsonChi2, sc.NumBins)
 	if gof != nil {
 		fmt.Fprintf(stdout, "goodness of fit: deviance %.1f against %.1f ± %.1f from %d bootstrap replicates (p = %.3g, dispersion %.2f)\n",
 			gof.Deviance, gof.ReplicateMean, gof.ReplicateSD, gof.Replicates, gof.PValue, gof.Dispersion)
 	}
-	fmt.Fprintf(stdout, "marginals against a synthetic catalog of %d stars (two-sample KS; Anderson–Darling k-sample, Scholz & Stephens 1987):\n", len(synth.logP))
-	for _, k := range []string{"log10_period", "b_v", "abs_z_pc"} {
-		if m, ok := tests[k].(map[string]any); ok {
-			fmt.Fprintf(stdout, "  %-13s KS D = %.4f p = %.3g; AD = %.2f p ≈ %.3g\n", k, m["ks_d"], m["ks_p"], m["ad_statistic"], m["ad_p"])
+	fmt.Fprintf(stdout, "marginals against a synthetic catalog of %d stars (two-sample KS; Anderson–Darling k-sample, Scholz & Stephens 1987):\n", sc.SyntheticStars)
+	for _, k := range pipeline.MarginalNames {
+		if m, ok := sc.Marginals[k]; ok {
+			fmt.Fprintf(stdout, "  %-13s KS D = %.4f p = %.3g; AD = %.2f p ≈ %.3g\n", k, m.KSD, m.KSP, m.ADStat, m.ADP)
 		}
 	}
 	fmt.Fprintf(stdout, "wrote: %v\n", outputs)
 	return nil
-}
-
-type marginals struct{ logP, bv, absZ []float64 }
-
-// syntheticMarginals simulates the scenario with history h (its own seed
-// and star count) and keeps the catalogue stars inside the comparison
-// space: the unbinned model sample for the marginal tests.
-func syntheticMarginals(ctx context.Context, c *comparison, h interface {
-	BinWeights([]float64) []float64
-}) (*marginals, error) {
-	pop := *c.built.Population
-	mass := h.BinWeights(c.built.AgeEdgesGyr)
-	pop.BinProb = make([]float64, len(mass))
-	for k := range mass {
-		pop.BinProb[k] = mass[k] * c.built.Sampler.BinIntegral(k)
-	}
-	// Ages inside each bin: uniform, as in the templates.
-	edges := c.built.AgeEdgesGyr
-	pop.Age = func(k int, r *randRand) float64 { return edges[k] + (edges[k+1]-edges[k])*r.Float64() }
-	if err := pop.Prepare(); err != nil {
-		return nil, err
-	}
-	m := &marginals{}
-	sp := c.space
-	err := model.RunChunks(ctx, c.s.Run.Seed, c.s.Run.StarsGenerated, c.s.Run.ChunkStars, c.workers, pop.Fill, func(ch *model.Chunk) error {
-		for i := 0; i < ch.N; i++ {
-			if !ch.Flags[i].Selected() || sp.Index(ch.ObsBV[i], ch.MeasPeriodD[i], math.Abs(ch.ZPc[i])) < 0 {
-				continue
-			}
-			m.logP = append(m.logP, math.Log10(ch.MeasPeriodD[i]))
-			m.bv = append(m.bv, ch.ObsBV[i])
-			m.absZ = append(m.absZ, math.Abs(ch.ZPc[i]))
-		}
-		return nil
-	})
-	return m, err
 }

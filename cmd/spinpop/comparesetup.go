@@ -8,39 +8,9 @@ import (
 	"os"
 	"path/filepath"
 	"runtime"
-	"time"
 
-	"spinpop/compare"
-	"spinpop/model"
-	"spinpop/scenarios"
+	"spinpop/pipeline"
 )
-
-// comparison is everything the comparison commands share: the scenario's
-// run objects, templates, the observed catalog and its likelihood, and the
-// two hypotheses of the burst test.
-type comparison struct {
-	res       *scenarios.Resolved
-	path      string
-	s         *scenarios.Scenario
-	built     *scenarios.Built
-	space     compare.Space
-	tpl       *compare.Templates
-	tplReused bool
-	tplFile   string
-	obs       *compare.Observed
-	like      *compare.Likelihood
-	smooth    compare.HistoryModel
-	burst     compare.HistoryModel
-	// nuisance holds the parameters of the physics and the selection in
-	// compare.free (nil when there are none); tpl then holds the templates
-	// re-observed at their scenario values.
-	nuisance     *compare.Nuisance
-	workers      int
-	setupSeconds float64
-	// Data stars left out because no template star reached their
-	// (color, period) cell, and how many such cells there were.
-	droppedStars, droppedBins int
-}
 
 // compareFlags are the flags every comparison command takes.
 type compareFlags struct {
@@ -72,11 +42,10 @@ func defaultTemplateDir() string {
 	return filepath.Join(os.TempDir(), "spinpop-templates")
 }
 
-// setupComparison loads the scenario, builds or reuses its templates,
-// reads and cuts its catalog (rejected rows go to DIR/rejected.csv) and
-// prepares the likelihood and the hypotheses.
-func setupComparison(ctx context.Context, arg string, f compareFlags, stderr io.Writer) (*comparison, error) {
-	start := time.Now()
+// setupComparison loads the scenario (with its --set overrides), prepares
+// the output folder and sets the comparison up (see
+// pipeline.SetupComparison); rejected catalog rows go to DIR/rejected.csv.
+func setupComparison(ctx context.Context, arg string, f compareFlags, stderr io.Writer) (*pipeline.Comparison, error) {
 	var sets []string
 	if f.sets != nil {
 		sets = *f.sets
@@ -88,165 +57,34 @@ func setupComparison(ctx context.Context, arg string, f compareFlags, stderr io.
 	if *f.threads < 1 {
 		return nil, usageErrorf("--threads must be at least 1")
 	}
-	s := &res.Scenario
-	if s.Data.File == "" {
-		return nil, usageErrorf("%s has no [data] section: name an observed catalog with data.file and map its columns in [data.columns] (see spinpop examples fit)", arg)
+	if err := pipeline.RequireData(res, arg); err != nil {
+		return nil, err
 	}
 	if err := prepareOutDir(*f.out, *f.force); err != nil {
 		return nil, err
 	}
-	c := &comparison{res: res, path: arg, s: s, workers: *f.threads}
-	if c.built, err = scenariosBuild(s, arg); err != nil {
-		return nil, err
-	}
-	if c.space, err = scenarios.CompareSpace(s); err != nil {
-		return nil, inputError{fmt.Errorf("%s: %w", arg, err)}
-	}
-	key, err := scenarios.TemplateKey(res)
-	if err != nil {
-		return nil, err
-	}
-	nuParams, err := scenarios.NuisanceParams(s)
-	if err != nil {
-		return nil, inputError{fmt.Errorf("%s: %w", arg, err)}
-	}
-	var margin *model.BankMargin
-	if len(nuParams) > 0 {
-		m := scenarios.BankMargin(s)
-		margin = &m
-	}
-	build := func() (*compare.Templates, error) {
-		bar := newProgressBar("templates", s.Compare.TemplateStars)
-		defer bar.Done()
-		ints := make([]float64, len(c.built.AgeEdgesGyr)-1)
-		for k := range ints {
-			ints[k] = c.built.Sampler.BinIntegral(k)
-		}
-		t, err := compare.BuildTemplates(ctx, c.built.Population, ints, c.built.AgeEdgesGyr, c.space, compare.TemplateOptions{
-			Stars: s.Compare.TemplateStars, Seed: s.Run.Seed, ChunkStars: s.Run.ChunkStars, Workers: c.workers,
-			Progress: func(done, total int64) { bar.Update(done) }, Bank: margin,
-		})
-		if err != nil {
-			return nil, err
-		}
-		t.Key = key
-		return t, nil
-	}
-	switch {
-	case margin != nil:
-		// Nuisance parameters need the template run's stars, which the
-		// cache does not keep: the run is made again.
-		c.tpl, err = build()
-	case *f.templates == "none":
-		c.tpl, err = build()
-	default:
-		c.tpl, c.tplReused, err = compare.Cached(*f.templates, key, build)
-		c.tplFile = filepath.Join(*f.templates, key+".tpl")
-	}
-	if err != nil {
-		if ctx.Err() != nil {
-			return nil, fmt.Errorf("interrupted while building templates; nothing was written")
-		}
-		return nil, fmt.Errorf("templates: %w", err)
-	}
-	if margin != nil {
-		scen := *s
-		base := c.built.Population
-		c.nuisance = &compare.Nuisance{Params: nuParams, Source: &compare.BankObserver{
-			Bank: c.tpl.Bank, Space: c.space, AgeEdgesGyr: c.built.AgeEdgesGyr,
-			BaseFractionScale: s.Stars.BinaryFractionScale, Workers: c.workers,
-			Apply: func(values []float64) (*model.Population, error) {
-				s2 := scen
-				for j, p := range nuParams {
-					if !scenarios.SetAt(&s2, p.Name, values[j]) {
-						return nil, fmt.Errorf("nuisance parameter %s is not a numeric scenario key", p.Name)
-					}
-				}
-				return scenarios.ObservingPopulation(&s2, base)
-			}}}
-		// The templates every comparison starts from: re-observed at the
-		// scenario's values, as every later set of templates will be.
-		nominal, err := c.nuisance.Templates(ctx, c.nuisance.Nominal())
-		if err != nil {
-			return nil, inputError{fmt.Errorf("%s: %w", arg, err)}
-		}
-		nominal.Key = key
-		c.tpl = nominal
-	}
-
-	spec := compare.DataSpec{
-		Path: res.DataPath, SHA256: s.Data.SHA256, Mapping: scenarios.Mapping(s), SunZPc: s.Disk.SunHeightPc,
-		Cuts: scenarios.CutsOf(s), Relations: c.built.Relations,
-		Open: func() (io.ReadCloser, error) {
-			f, err := res.OpenData()
-			if err != nil {
-				return nil, err
-			}
-			return f, nil
+	var bar *progressBar
+	defer func() { bar.Done() }()
+	c, err := pipeline.SetupComparison(ctx, res, pipeline.ComparisonOptions{
+		Source: arg, Workers: *f.threads, TemplateDir: *f.templates,
+		WriteRejected: func(write func(io.Writer) error) error {
+			return writeFileAtomic(filepath.Join(*f.out, "rejected.csv"), write)
 		},
-	}
-	err = writeFileAtomic(filepath.Join(*f.out, "rejected.csv"), func(w io.Writer) error {
-		var err error
-		c.obs, err = compare.ReadObserved(spec, c.space, w)
-		return err
+		TemplateProgress: func(done, total int64) {
+			if bar == nil {
+				bar = newProgressBar("templates", total)
+			}
+			bar.Update(done)
+		},
 	})
 	if err != nil {
-		return nil, inputError{err}
+		return nil, err
 	}
-	if c.obs.N == 0 {
-		return nil, inputError{fmt.Errorf("%s: no star of the catalog passes the cuts and lies in the comparison space (cut away: %v; unusable: %v)", res.DataPath, c.obs.CutAway, c.obs.Rejected)}
-	}
-	c.droppedStars, c.droppedBins = c.obs.DropUnreached(c.tpl)
-	if c.like, err = compare.NewLikelihood(c.tpl, c.obs.Counts, scenarios.LikeOptions(s)); err != nil {
-		return nil, inputError{fmt.Errorf("%s: %w", arg, err)}
-	}
-	if c.smooth, c.burst, err = scenarios.Hypotheses(s, c.built.AgeEdgesGyr); err != nil {
-		return nil, inputError{fmt.Errorf("%s: %w", arg, err)}
-	}
-	c.setupSeconds = time.Since(start).Seconds()
+	c.Stage = func(msg string) { fmt.Fprintf(stderr, "fit: %s\n", msg) }
 	return c, nil
 }
 
-// gyroAt returns the scenario law's gyrochrone of one age as a function of
-// B−V, for the height check's young/old split.
-func (c *comparison) gyroAt(ageGyr float64) func(bv float64) (float64, bool) {
-	return func(bv float64) (float64, bool) {
-		m, ok := c.built.Relations.MassFromBV(bv)
-		if !ok {
-			return 0, false
-		}
-		pt, _ := c.built.Relations.At(m)
-		return model.GyrochronePeriod(c.built.Law, spinStar(m, ageGyr, bv, pt.TeffK))
-	}
-}
-
-// dataSummary describes the catalog as read.
-type dataSummary struct {
-	File       string         `json:"file"`
-	SHA256     string         `json:"sha256"`
-	Rows       int            `json:"rows"`
-	Compared   int            `json:"stars_compared"`
-	Unusable   map[string]int `json:"unusable_rows"`
-	CutAway    map[string]int `json:"cut_away"`
-	Templates  string         `json:"templates_file,omitempty"`
-	TplReused  bool           `json:"templates_reused"`
-	TplStars   int64          `json:"template_stars"`
-	AgeBins    int            `json:"age_bins"`
-	SpaceBins  int            `json:"comparison_bins"`
-	SetupSecs  float64        `json:"setup_seconds"`
-	Dropped    int            `json:"stars_in_cells_no_template_reached"`
-	ScenarioSH string         `json:"scenario_sha256"`
-}
-
-func (c *comparison) dataSummary() dataSummary {
-	return dataSummary{
-		File: c.res.DataPath, SHA256: c.obs.SHA256, Rows: c.obs.Rows, Compared: c.obs.N, Unusable: c.obs.Rejected, CutAway: c.obs.CutAway,
-		Templates: c.tplFile, TplReused: c.tplReused, TplStars: c.tpl.StarsDrawn, AgeBins: c.tpl.NumAgeBins(),
-		SpaceBins: c.space.NumColorPeriod(), SetupSecs: c.setupSeconds, ScenarioSH: c.res.Hash(), Dropped: c.droppedStars,
-	}
-}
-
-func printDataSummary(w io.Writer, d dataSummary) {
+func printDataSummary(w io.Writer, d pipeline.DataSummary) {
 	fmt.Fprintf(w, "catalog %s (sha256 %s…): %d rows, %d stars compared\n", d.File, d.SHA256[:16], d.Rows, d.Compared)
 	if len(d.Unusable) > 0 {
 		fmt.Fprintf(w, "  unusable rows (see rejected.csv): %v\n", d.Unusable)
@@ -260,32 +98,4 @@ func printDataSummary(w io.Writer, d dataSummary) {
 	if d.Dropped > 0 {
 		fmt.Fprintf(w, "warning: %d catalog stars lie in comparison cells that no template star reached; they are left out of the comparison (raise compare.template_stars or use coarser bins to keep them)\n", d.Dropped)
 	}
-}
-
-// splitAge is the age whose gyrochrone splits young from old stars: the
-// user's choice, else compare.split_age_gyr, else the fitted burst age,
-// else 0.6 Gyr (the trade's gap; common practice).
-func (c *comparison) splitAge(flag float64, burst compare.FitResult) float64 {
-	if flag > 0 {
-		return flag
-	}
-	if c.s.Compare.SplitAgeGyr > 0 {
-		return c.s.Compare.SplitAgeGyr
-	}
-	for i, n := range burst.Names {
-		if n == c.s.Compare.BurstPart+".age_gyr" {
-			return burst.Theta[i]
-		}
-	}
-	return 0.6
-}
-
-// heightCheck compares the young fraction against |z| with the two fitted
-// hypotheses of the burst test.
-func (c *comparison) heightCheck(split float64, smooth, burst compare.FitResult) (*compare.HeightResult, error) {
-	perColor := c.like.Options().Normalisation == compare.NormPerColor || c.like.Options().Normalisation == compare.NormPerColorHeight
-	return compare.HeightCheckFits(c.tpl, c.obs, split, c.gyroAt(split), map[string]compare.Prediction{
-		"smooth history (fit)": compare.PredictionOf(smooth, c.tpl),
-		"with burst (fit)":     compare.PredictionOf(burst, c.tpl),
-	}, perColor)
 }

@@ -62,20 +62,21 @@ func runDemo(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	b := c.s.Compare.Bootstrap
+	b := c.Scenario.Compare.Bootstrap
 	if *replicates >= 0 {
 		b = *replicates
 	}
-	res, err := burstTest(ctx, c, b, stderr)
+	res, err := burstTest(ctx, c, b)
 	if err != nil {
 		return err
 	}
-	if err := writeBurstOutputs(dir, c, res); err != nil {
+	outputs, err := writeBurstOutputs(dir, c, res)
+	if err != nil {
 		return err
 	}
-	printDataSummary(stdout, c.dataSummary())
+	printDataSummary(stdout, c.DataSummary())
 	printBurstSummary(stdout, res)
-	fmt.Fprintf(stdout, "wrote: %v\n", res.outputs)
+	fmt.Fprintf(stdout, "wrote: %v\n", outputs)
 	fmt.Fprintln(stdout, "\nThe hidden truth (testdata/demo-truth.toml): a burst 0.75 Gyr ago, width 0.06 Gyr, 15 % of the mass, on a smooth history declining with a 6 Gyr timescale.")
 	return nil
 }

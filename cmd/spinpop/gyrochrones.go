@@ -7,8 +7,7 @@ import (
 	"math"
 	"strconv"
 
-	"spinpop/model"
-	"spinpop/scenarios"
+	"spinpop/pipeline"
 )
 
 func runGyrochrones(args []string, stdout, stderr io.Writer) error {
@@ -47,15 +46,10 @@ func runGyrochrones(args []string, stdout, stderr io.Writer) error {
 	if *points < 2 || *points > 10000 {
 		return usageErrorf("--points must be between 2 and 10000")
 	}
-	rel, err := model.DwarfSequence()
+	curves, law, err := pipeline.Gyrochrones(s, path, agesGyr, *points)
 	if err != nil {
 		return err
 	}
-	law, err := scenarios.BuildLaw(s, rel)
-	if err != nil {
-		return inputError{fmt.Errorf("%s: %w", path, err)}
-	}
-	curves := model.Gyrochrones(law, rel, agesGyr, s.Cuts.BVMin, s.Cuts.BVMax, *points)
 	if *asCSV {
 		w := csv.NewWriter(stdout)
 		w.Write([]string{"age_gyr", "b_v_mag", "mass_msun", "period_d"})

@@ -4,13 +4,14 @@ import (
 	"context"
 	"fmt"
 	"io"
+	"maps"
 	"os"
 	"os/signal"
 	"path/filepath"
 
-	"gonum.org/v1/plot/vg"
+	"spinpop/pipeline"
 
-	"spinpop/compare"
+	"gonum.org/v1/plot/vg"
 )
 
 func runHeights(args []string, stdout, stderr io.Writer) error {
@@ -39,15 +40,7 @@ func runHeights(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	fs0, err := compare.FitJoint(ctx, c.like, c.smooth, c.nuisance, compare.FitOptions{Seed: c.s.Run.Seed})
-	if err != nil {
-		return err
-	}
-	fb, err := compare.FitJoint(ctx, c.like, c.burst, c.nuisance, compare.FitOptions{Seed: c.s.Run.Seed, NuisanceStart: fs0.Nuisance})
-	if err != nil {
-		return err
-	}
-	h, err := c.heightCheck(c.splitAge(*split, fb), fs0, fb)
+	h, err := c.Heights(ctx, *split)
 	if err != nil {
 		return err
 	}
@@ -58,23 +51,18 @@ func runHeights(args []string, stdout, stderr io.Writer) error {
 	if err := writePlot(filepath.Join(*cf.out, "height_check.png"), p, 16*vg.Centimeter, 11*vg.Centimeter); err != nil {
 		return err
 	}
-	hyp := map[string]any{}
-	for _, x := range h.Hypotheses {
-		hyp[x.Name] = map[string]any{"young_fraction": finiteAll(x.Fraction), "log_l": finite(x.LogL)}
-	}
 	out := map[string]any{
-		"tool": "spinpop", "version": version, "scenario": path, "scenario_sha256": c.res.Hash(), "data": c.dataSummary(),
-		"split_age_gyr": h.SplitAgeGyr, "z_edges_pc": finiteAll(h.ZEdgesPc), "young": h.Young, "total": h.Total,
-		"fraction": finiteAll(h.Fraction), "lo68": finiteAll(h.Lo68), "hi68": finiteAll(h.Hi68), "hypotheses": hyp,
+		"tool": "spinpop", "version": version, "scenario": path, "scenario_sha256": c.Resolved.Hash(), "data": c.DataSummary(),
 		"outputs": []string{"rejected.csv", "height_check.png", "heights.json"},
 	}
+	maps.Copy(out, pipeline.HeightReport(h))
 	if err := writeJSON(filepath.Join(*cf.out, "heights.json"), out); err != nil {
 		return err
 	}
 	if *cf.asJSON {
 		return printJSON(stdout, out)
 	}
-	printDataSummary(stdout, c.dataSummary())
+	printDataSummary(stdout, c.DataSummary())
 	fmt.Fprintf(stdout, "\nyoung fraction (period below the %.2f Gyr gyrochrone) against |z|:\n", h.SplitAgeGyr)
 	fmt.Fprintf(stdout, "  %-13s %7s %7s %9s", "|z| (pc)", "young", "total", "fraction")
 	for _, x := range h.Hypotheses {
@@ -82,9 +70,9 @@ func runHeights(args []string, stdout, stderr io.Writer) error {
 	}
 	fmt.Fprintln(stdout)
 	for i := range h.Total {
-		fmt.Fprintf(stdout, "  %5.0f–%-7.0f %7d %7d %9.3f", h.ZEdgesPc[i], h.ZEdgesPc[i+1], h.Young[i], h.Total[i], finite(h.Fraction[i]))
+		fmt.Fprintf(stdout, "  %5.0f–%-7.0f %7d %7d %9.3f", h.ZEdgesPc[i], h.ZEdgesPc[i+1], h.Young[i], h.Total[i], pipeline.Finite(h.Fraction[i]))
 		for _, x := range h.Hypotheses {
-			fmt.Fprintf(stdout, "  %22.3f", finite(x.Fraction[i]))
+			fmt.Fprintf(stdout, "  %22.3f", pipeline.Finite(x.Fraction[i]))
 		}
 		fmt.Fprintln(stdout)
 	}

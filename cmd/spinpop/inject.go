@@ -3,6 +3,7 @@ package main
 import (
 	"context"
 	"encoding/json"
+	"errors"
 	"fmt"
 	"io"
 	"math"
@@ -11,18 +12,13 @@ import (
 	"path/filepath"
 	"slices"
 	"strings"
-	"time"
+
+	"spinpop/pipeline"
 
 	"gonum.org/v1/plot/vg"
-
-	"spinpop/compare"
-	"spinpop/compare/stats"
-	"spinpop/scenarios"
 )
 
-// detectionP is the p-value below which the burst test counts as a
-// detection (the issue's threshold; common practice, no source).
-const detectionP = 0.01
+const detectionP = pipeline.DetectionP
 
 func runInject(args []string, stdout, stderr io.Writer) error {
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
@@ -98,47 +94,30 @@ func injectCmd(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	if err != nil {
 		return err
 	}
-	ageParam, fracParam, err := checkInjections(&res.Scenario, ages, fracs)
-	if err != nil {
-		return err
+	if _, _, err := pipeline.CheckInjections(&res.Scenario, ages, fracs); err != nil {
+		return injectionUsage(err)
 	}
 
 	c, err := setupComparison(ctx, path, cf, stderr)
 	if err != nil {
 		return err
 	}
-	n := *stars
-	if n == 0 {
-		n = c.obs.N
-	}
-	sweep := compare.InjectionSweep{
-		BurstAgesGyr: ages, BurstFractions: fracs, Replicates: *reps, NStars: n,
-		Seed: c.s.Run.Seed, Workers: c.workers, Bootstrap: *boot, NullMocks: *nullMocks,
-		AgeParam: ageParam, FractionParam: fracParam,
-	}
-	if *seed != 0 {
-		sweep.Seed = *seed
-	}
-	jobs := *reps * (1 + len(ages)*len(fracs))
-	if *boot == 0 {
-		jobs += *nullMocks
-	}
-	bar := newProgressBar("injection", int64(jobs))
-	sweep.Progress = func(done, _ int) { bar.Update(int64(done)) }
-	start := time.Now()
-	ir, err := compare.InjectRecover(ctx, c.tpl, scenarios.LikeOptions(c.s), c.smooth, c.burst, sweep)
+	opts := pipeline.InjectOptions{AgesGyr: ages, Fractions: fracs, Replicates: *reps, Stars: *stars,
+		Bootstrap: *boot, NullMocks: *nullMocks, Seed: *seed}
+	bar := newProgressBar("injection", int64(opts.Jobs()))
+	opts.Progress = func(done, _ int) { bar.Update(int64(done)) }
+	rep, err := c.Inject(ctx, opts)
 	bar.Done()
 	if err != nil {
 		if ctx.Err() != nil {
 			return fmt.Errorf("interrupted; nothing but rejected.csv was written to %s", *cf.out)
 		}
+		var ie *pipeline.InjectionError
+		if errors.As(err, &ie) {
+			return injectionUsage(ie)
+		}
 		return fmt.Errorf("injection–recovery: %w", err)
 	}
-	rep, err := newInjectReport(c, sweep, ir, n == c.obs.N)
-	if err != nil {
-		return err
-	}
-	rep.Seconds = time.Since(start).Seconds()
 
 	dir := *cf.out
 	mp, err := recoveryMapPlot(rep)
@@ -175,174 +154,25 @@ func hasDuplicates(x []float64) bool {
 	return len(slices.Compact(s)) != len(x)
 }
 
-// checkInjections returns the burst model's age and fraction parameter
-// names, and says which injected values the fit could not recover: an
-// injected age outside the free age's range, a fraction outside the free
-// fraction's range, or ages beyond the history.
-func checkInjections(s *scenarios.Scenario, ages, fracs []float64) (ageParam, fracParam string, err error) {
-	part := s.Compare.BurstPart
-	ageParam, fracParam = part+".age_gyr", part+".mass_fraction"
-	// The same rule as scenarios.Hypotheses: without any free parameter of
-	// the burst part, the default ones are freed.
-	free := s.Compare.Free
-	if !slices.ContainsFunc(free, func(f scenarios.FreeParam) bool { return strings.HasPrefix(f.Path, "history."+part+".") }) {
-		free = append(slices.Clone(free), scenarios.DefaultFree(part, s.History.MaxAgeGyr)...)
+// injectionUsage turns an injection the fit cannot recover into a usage
+// error that names the flag.
+func injectionUsage(err error) error {
+	var ie *pipeline.InjectionError
+	if !errors.As(err, &ie) {
+		return err
 	}
-	var ageFree, fracFree *scenarios.FreeParam
-	for i, f := range free {
-		switch f.Path {
-		case "history." + ageParam:
-			ageFree = &free[i]
-		case "history." + fracParam:
-			fracFree = &free[i]
-		}
+	switch ie.Option {
+	case "ages_gyr":
+		return usageErrorf("--ages-gyr: %s", ie.Msg)
+	case "fractions":
+		return usageErrorf("--fractions: %s", ie.Msg)
 	}
-	if ageFree == nil {
-		return "", "", usageErrorf("injection–recovery measures how well the burst age is found, but compare.free does not free history.%s; add it", ageParam)
-	}
-	lo, hi := ageFree.Min, ageFree.Max
-	for _, a := range ages {
-		if a < lo || a > hi {
-			return "", "", usageErrorf("--ages-gyr: %g Gyr lies outside [%g, %g] Gyr, the range in which the fit looks for the burst (compare.free history.%s)", a, lo, hi, ageParam)
-		}
-	}
-	if fracFree != nil {
-		for _, f := range fracs {
-			if f < fracFree.Min || f > fracFree.Max {
-				return "", "", usageErrorf("--fractions: %g lies outside [%g, %g], the range the fit allows (compare.free history.%s)", f, fracFree.Min, fracFree.Max, fracParam)
-			}
-		}
-	}
-	return ageParam, fracParam, nil
-}
-
-// injectReport is what inject writes to inject.json and prints.
-type injectReport struct {
-	Tool           string      `json:"tool"`
-	Version        string      `json:"version"`
-	Scenario       string      `json:"scenario"`
-	ScenarioName   string      `json:"scenario_name"`
-	ScenarioHash   string      `json:"scenario_sha256"`
-	Data           dataSummary `json:"data"`
-	Method         string      `json:"calibration"`
-	Seed           uint64      `json:"seed"`
-	Threads        int         `json:"threads"`
-	StarsPerMock   int         `json:"stars_per_mock"`
-	LikeYours      bool        `json:"mock_size_is_catalog_size"`
-	Replicates     int         `json:"replicates"`
-	NullMocks      int         `json:"null_mocks"`
-	Bootstrap      int         `json:"bootstrap_per_mock"`
-	DetectionP     float64     `json:"detection_p_below"`
-	AgeParam       string      `json:"age_parameter"`
-	FractionParam  string      `json:"fraction_parameter"`
-	AgesGyr        []float64   `json:"injected_ages_gyr"`
-	Fractions      []float64   `json:"injected_fractions"`
-	FalseAlarm     falseAlarms `json:"false_alarms"`
-	Cells          []injCell   `json:"cells"`
-	NullLRs        []float64   `json:"null_likelihood_ratios,omitempty"`
-	Seconds        float64     `json:"seconds"`
-	Outputs        []string    `json:"outputs"`
-	FalseAlarmNote string      `json:"false_alarm_note"`
-}
-
-// falseAlarms are the smooth-history mocks' results.
-type falseAlarms struct {
-	Mocks   int       `json:"mocks"`
-	Rate    float64   `json:"rate_p_below_0_01"`
-	Lo68    float64   `json:"rate_p_below_0_01_lo68"`
-	Hi68    float64   `json:"rate_p_below_0_01_hi68"`
-	Rate05  float64   `json:"rate_p_below_0_05"`
-	Lo68_05 float64   `json:"rate_p_below_0_05_lo68"`
-	Hi68_05 float64   `json:"rate_p_below_0_05_hi68"`
-	PValues []float64 `json:"p_values"`
-}
-
-// injCell is one injected (age, fraction) and what became of it.
-type injCell struct {
-	AgeGyr           float64   `json:"injected_age_gyr"`
-	Fraction         float64   `json:"injected_fraction"`
-	Detected         int       `json:"detected"`
-	DetectionRate    float64   `json:"detection_rate"`
-	DetLo68          float64   `json:"detection_rate_lo68"`
-	DetHi68          float64   `json:"detection_rate_hi68"`
-	MedianAgeGyr     float64   `json:"recovered_age_median_gyr"`
-	AgeQ16Gyr        float64   `json:"recovered_age_q16_gyr"`
-	AgeQ84Gyr        float64   `json:"recovered_age_q84_gyr"`
-	AgeBiasMedianGyr float64   `json:"age_bias_median_gyr"`
-	AgeBiasQ16Gyr    float64   `json:"age_bias_q16_gyr"`
-	AgeBiasQ84Gyr    float64   `json:"age_bias_q84_gyr"`
-	Coverage68       float64   `json:"coverage_of_68_interval"`
-	PValues          []float64 `json:"p_values"`
-	LRs              []float64 `json:"likelihood_ratios"`
-	RecoveredAgesGyr []float64 `json:"recovered_ages_gyr"`
-}
-
-func newInjectReport(c *comparison, sw compare.InjectionSweep, ir *compare.InjectionResult, likeYours bool) (*injectReport, error) {
-	rep := &injectReport{
-		Tool: "spinpop", Version: version, Scenario: c.path, ScenarioName: c.s.Name, ScenarioHash: c.res.Hash(),
-		Data: c.dataSummary(), Method: ir.Method, Seed: sw.Seed, Threads: c.workers, StarsPerMock: sw.NStars,
-		LikeYours: likeYours, Replicates: sw.Replicates, Bootstrap: sw.Bootstrap, DetectionP: detectionP,
-		AgeParam: sw.AgeParam, FractionParam: sw.FractionParam, AgesGyr: sw.BurstAgesGyr, Fractions: sw.BurstFractions,
-		NullLRs:        finiteOnly(ir.NullLRs),
-		FalseAlarmNote: "share of smooth-history mocks in which the burst test reaches the p-value named; a well-calibrated test gives about that share",
-	}
-	if sw.Bootstrap == 0 {
-		rep.NullMocks = len(ir.NullLRs)
-	}
-	fa := falseAlarms{Mocks: len(ir.FalseAlarmP), PValues: ir.FalseAlarmP}
-	var k01, k05 int
-	for _, p := range ir.FalseAlarmP {
-		if p < detectionP {
-			k01++
-		}
-		if p < 0.05 {
-			k05++
-		}
-	}
-	var err error
-	if fa.Mocks > 0 {
-		fa.Rate, fa.Rate05 = float64(k01)/float64(fa.Mocks), float64(k05)/float64(fa.Mocks)
-		if fa.Lo68, fa.Hi68, err = stats.WilsonInterval(k01, fa.Mocks, 0.6827); err != nil {
-			return nil, err
-		}
-		if fa.Lo68_05, fa.Hi68_05, err = stats.WilsonInterval(k05, fa.Mocks, 0.6827); err != nil {
-			return nil, err
-		}
-	}
-	rep.FalseAlarm = fa
-	for _, cell := range ir.Cells {
-		ages := slices.Sorted(slices.Values(cell.RecoveredAgesGyr))
-		bias := make([]float64, len(ages))
-		for i, a := range ages {
-			bias[i] = a - cell.AgeGyr
-		}
-		rep.Cells = append(rep.Cells, injCell{
-			AgeGyr: cell.AgeGyr, Fraction: cell.Fraction, Detected: cell.Detected, DetectionRate: cell.DetectionRate,
-			DetLo68: cell.DetLo68, DetHi68: cell.DetHi68,
-			MedianAgeGyr: quantile(ages, 0.5), AgeQ16Gyr: quantile(ages, 0.16), AgeQ84Gyr: quantile(ages, 0.84),
-			AgeBiasMedianGyr: quantile(bias, 0.5), AgeBiasQ16Gyr: quantile(bias, 0.16), AgeBiasQ84Gyr: quantile(bias, 0.84),
-			Coverage68: cell.Coverage68, PValues: cell.PValues, LRs: finiteOnly(cell.LRs), RecoveredAgesGyr: cell.RecoveredAgesGyr,
-		})
-	}
-	return rep, nil
-}
-
-// finiteOnly replaces values JSON cannot hold (NaN, ±Inf) by −1, which no
-// likelihood ratio (≥ 0) takes.
-func finiteOnly(x []float64) []float64 {
-	out := make([]float64, len(x))
-	for i, v := range x {
-		if math.IsNaN(v) || math.IsInf(v, 0) {
-			v = -1
-		}
-		out[i] = v
-	}
-	return out
+	return usageErrorf("%s", ie.Msg)
 }
 
 func pct(x float64) string { return fmt.Sprintf("%.0f %%", 100*x) }
 
-func printInjectReport(w io.Writer, r *injectReport) {
+func printInjectReport(w io.Writer, r *pipeline.InjectReport) {
 	fmt.Fprintf(w, "spinpop %s — injection–recovery, scenario %q (sha256 %s…), seed %d\n", r.Version, r.ScenarioName, r.ScenarioHash[:16], r.Seed)
 	printDataSummary(w, r.Data)
 	calib := fmt.Sprintf("each likelihood ratio calibrated against %d smooth-history mocks", r.NullMocks)

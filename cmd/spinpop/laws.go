@@ -9,48 +9,11 @@ import (
 	"path/filepath"
 	"runtime"
 
+	"spinpop/pipeline"
+
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/vg"
-
-	"spinpop/model"
-	"spinpop/scenarios"
 )
-
-// lawVariant is one spin-down prescription to compare.
-type lawVariant struct {
-	label string
-	set   func(s *scenarios.Scenario)
-}
-
-func lawVariants() []lawVariant {
-	empirical := func(name string) func(*scenarios.Scenario) {
-		return func(s *scenarios.Scenario) {
-			s.Spin.Law = name
-			s.Spin.Stall.Enabled = false
-			s.Spin.Weakened.Enabled = false
-		}
-	}
-	return []lawVariant{
-		{"Barnes (2007)", empirical("barnes2007")},
-		{"Mamajek & Hillenbrand (2008)", empirical("mamajek2008")},
-		{"Angus et al. (2015)", empirical("angus2015")},
-		{"wind torque", func(s *scenarios.Scenario) {
-			s.Spin.Law = "torque"
-			s.Spin.Stall.Enabled = false
-			s.Spin.Weakened.Enabled = false
-		}},
-		{"wind torque, weakened braking", func(s *scenarios.Scenario) {
-			s.Spin.Law = "torque"
-			s.Spin.Stall.Enabled = false
-			s.Spin.Weakened.Enabled = true
-		}},
-		{"wind torque, stalled spin-down", func(s *scenarios.Scenario) {
-			s.Spin.Law = "torque"
-			s.Spin.Stall.Enabled = true
-			s.Spin.Weakened.Enabled = false
-		}},
-	}
-}
 
 func runLaws(args []string, stdout, stderr io.Writer) error {
 	fs := newFlagSet("laws", "laws SCENARIO --out DIR [--stars N] [--force]",
@@ -83,48 +46,31 @@ func runLaws(args []string, stdout, stderr io.Writer) error {
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
 	defer stop()
 
-	var panels []*plot.Plot
+	bars := func(label string, total int64) (func(int64), func()) {
+		bar := newProgressBar(label, total)
+		return bar.Update, bar.Done
+	}
 	fmt.Fprintf(stdout, "%-34s %10s %12s\n", "spin-down law", "catalogue", "median age")
-	for _, v := range lawVariants() {
-		s := res.Scenario // a copy: each variant starts from the scenario as given
-		v.set(&s)
-		if *stars > 0 {
-			s.Run.StarsGenerated = *stars
+	runs, err := pipeline.CompareLaws(ctx, res, path, *stars, runtime.GOMAXPROCS(0), bars)
+	if err != nil {
+		if pipeline.IsInputError(err) {
+			return err
 		}
-		built, err := scenarios.Build(&s)
-		if err != nil {
-			return inputError{fmt.Errorf("%s (%s): %w", path, v.label, err)}
-		}
-		ce, pe, ze := plotEdges(&s)
-		t := model.NewTally(built.AgeEdgesGyr, ce, pe, ze)
-		bar := newProgressBar(v.label, s.Run.StarsGenerated)
-		var done int64
-		err = model.RunChunks(ctx, s.Run.Seed, s.Run.StarsGenerated, s.Run.ChunkStars, runtime.GOMAXPROCS(0), built.Population.Fill,
-			func(c *model.Chunk) error {
-				t.Add(c)
-				done += int64(c.N)
-				bar.Update(done)
-				return nil
-			})
-		bar.Done()
-		if err != nil {
-			return fmt.Errorf("interrupted; nothing was written to %s", *out)
-		}
-		curves := model.Gyrochrones(built.Law, built.Relations, s.Output.GyrochroneAgesGyr, s.Cuts.BVMin, s.Cuts.BVMax, 50)
-		var gc []gyroCurve
-		for _, g := range curves {
-			gc = append(gc, gyroCurve{AgeGyr: g.AgeGyr, BV: g.BV, PeriodD: g.PeriodD})
-		}
-		p, err := periodColorPlot(fmt.Sprintf("%s (%d stars)", v.label, t.Selected()), t, gc)
+		return fmt.Errorf("interrupted; nothing was written to %s", *out)
+	}
+	var panels []*plot.Plot
+	for _, lr := range runs {
+		t := lr.Tally
+		p, err := periodColorPlot(fmt.Sprintf("%s (%d stars)", lr.Label, t.Selected()), t, gyroCurves(lr.Gyrochrones))
 		if err != nil {
 			return err
 		}
 		panels = append(panels, p)
-		fmt.Fprintf(stdout, "%-34s %10d %9.2f Gyr\n", v.label, t.Selected(), medianFromBins(t.AgeEdgesGyr, t.AgeSelected))
+		fmt.Fprintf(stdout, "%-34s %10d %9.2f Gyr\n", lr.Label, t.Selected(), pipeline.MedianFromBins(t.AgeEdgesGyr, t.AgeSelected))
 	}
-	grid := [][]*plot.Plot{panels[:3], panels[3:]}
+	grid := inRows(panels, 3)
 	name := filepath.Join(*out, "laws.png")
-	if err := writeGrid(name, grid, 42*vg.Centimeter, 24*vg.Centimeter); err != nil {
+	if err := writeGrid(name, grid, 42*vg.Centimeter, vg.Length(12*len(grid))*vg.Centimeter); err != nil {
 		return err
 	}
 	fmt.Fprintln(stdout, "wrote:", name)

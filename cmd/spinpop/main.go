@@ -20,10 +20,12 @@ import (
 	"fmt"
 	"io"
 	"os"
+
+	"spinpop/pipeline"
 )
 
 // version is the tool's version, recorded in every manifest.
-const version = "0.1.0"
+const version = pipeline.Version
 
 // usageError marks errors caused by what the user gave us: exit status 2.
 type usageError struct{ msg string }
@@ -98,7 +100,7 @@ func exitCode(err error, stderr io.Writer) int {
 	fmt.Fprintln(stderr, "spinpop:", err)
 	var ue usageError
 	var ie inputError
-	if errors.As(err, &ue) || errors.As(err, &ie) {
+	if errors.As(err, &ue) || errors.As(err, &ie) || pipeline.IsInputError(err) {
 		return 2
 	}
 	return 1

@@ -1,25 +1,15 @@
 package main
 
 import (
-	"bufio"
 	"context"
-	"errors"
 	"fmt"
 	"io"
-	"math"
 	"os"
 	"os/signal"
 	"runtime"
 
-	"spinpop/compare/catalog"
-	"spinpop/model"
+	"spinpop/pipeline"
 )
-
-// mockColumns are the columns of a mock catalog: what a rotation catalog
-// built from space photometry and astrometric distances would list.
-var mockColumns = []string{"source_id", "prot_d", "bv_mag", "vmag", "plx_mas", "ra_deg", "dec_deg"}
-
-var errEnough = errors.New("enough stars")
 
 func runMock(args []string, stdout, stderr io.Writer) error {
 	fs := newFlagSet("mock", "mock SCENARIO --out FILE --stars N [--seed N] [--parallax-error-mas X]",
@@ -57,59 +47,22 @@ func runMock(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	s := &res.Scenario
 	if *seed != 0 {
-		s.Run.Seed = *seed
-	}
-	built, err := scenariosBuild(s, path)
-	if err != nil {
-		return err
+		res.Scenario.Run.Seed = *seed
 	}
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
 	defer stop()
+	built, err := pipeline.Build(&res.Scenario, path)
+	if err != nil {
+		return err // before the file is created
+	}
 	var kept int64
 	bar := newProgressBar("mock", *n)
 	err = writeFileAtomic(*out, func(w io.Writer) error {
-		bw := bufio.NewWriter(w)
-		fmt.Fprintf(bw, "# invented rotation catalog drawn by spinpop %s from scenario %q (sha256 %s), seed %d\n", version, s.Name, res.Hash(), s.Run.Seed)
-		fmt.Fprintf(bw, "# parallax error %g mas (Gaussian); vmag includes extinction; bv_mag is reddened\n", *plxErr)
-		for i, c := range mockColumns {
-			if i > 0 {
-				bw.WriteByte(',')
-			}
-			bw.WriteString(c)
-		}
-		bw.WriteByte('\n')
-		var buf []byte
-		err := model.RunChunks(ctx, s.Run.Seed, s.Run.StarsGenerated*1000, s.Run.ChunkStars, runtime.GOMAXPROCS(0), built.Population.Fill,
-			func(c *model.Chunk) error {
-				// Parallax errors come from a stream of their own, tied to
-				// the chunk, so the mock is as reproducible as the run.
-				r := model.ChunkStream(s.Run.Seed^0x6d6f636b, c.Index)
-				for i := 0; i < c.N; i++ {
-					if !c.Flags[i].Selected() {
-						continue
-					}
-					plx := 1000/c.DistPc[i] + *plxErr*r.NormFloat64()
-					vmag := c.ObsAbsMag[i] + 5*math.Log10(c.DistPc[i]) - 5
-					ra, dec := catalog.GalacticToICRS(c.LDeg[i], c.BDeg[i])
-					buf = buf[:0]
-					buf = fmt.Appendf(buf, "%d,%.4f,%.4f,%.4f,%.5f,%.6f,%.6f\n", kept+1, c.MeasPeriodD[i], c.ObsBV[i], vmag, plx, ra, dec)
-					if _, err := bw.Write(buf); err != nil {
-						return err
-					}
-					kept++
-					bar.Update(kept)
-					if kept == *n {
-						return errEnough
-					}
-				}
-				return nil
-			})
-		if err != nil && !errors.Is(err, errEnough) {
-			return err
-		}
-		return bw.Flush()
+		var err error
+		kept, err = pipeline.Mock(ctx, res, pipeline.MockOptions{Source: path, Stars: *n, ParallaxErrorMas: *plxErr,
+			Workers: runtime.GOMAXPROCS(0), Built: built, Progress: func(k, _ int64) { bar.Update(k) }}, w)
+		return err
 	})
 	bar.Done()
 	if err != nil {

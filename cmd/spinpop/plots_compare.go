@@ -7,6 +7,9 @@ import (
 	"slices"
 	"strings"
 
+	"spinpop/internal/grid"
+	"spinpop/pipeline"
+
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/palette"
 	"gonum.org/v1/plot/palette/brewer"
@@ -16,21 +19,6 @@ import (
 )
 
 // Plots of the injection–recovery and posterior commands.
-
-// quantile of sorted values, interpolated linearly between order
-// statistics (the definition compare uses for its posterior summaries).
-func quantile(sorted []float64, q float64) float64 {
-	n := len(sorted)
-	if n == 0 {
-		return math.NaN()
-	}
-	x := q * float64(n-1)
-	i := int(math.Floor(x))
-	if i >= n-1 {
-		return sorted[n-1]
-	}
-	return sorted[i] + (x-float64(i))*(sorted[i+1]-sorted[i])
-}
 
 // paramLabel turns a history parameter's name ("burst.age_gyr") into an
 // axis label with its unit ("burst age (Gyr)").
@@ -77,7 +65,7 @@ func (g rateGrid) Y(r int) float64    { return float64(r) }
 
 // recoveryMapPlot draws the detection rate as a heat map on injected age ×
 // mass fraction, each cell labelled with its rate in per cent.
-func recoveryMapPlot(rep *injectReport) (*plot.Plot, error) {
+func recoveryMapPlot(rep *pipeline.InjectReport) (*plot.Plot, error) {
 	na, nf := len(rep.AgesGyr), len(rep.Fractions)
 	g := rateGrid{nAges: na, nFracs: nf, rate: make([]float64, na*nf)}
 	var xys plotter.XYs
@@ -157,7 +145,7 @@ type errPoints struct {
 // ageBiasPlotInject shows recovered minus injected burst age against the
 // injected age: the median over mocks and the 16–84 % range, one series per
 // injected mass fraction, nudged sideways so the bars do not overlap.
-func ageBiasPlotInject(rep *injectReport) (*plot.Plot, error) {
+func ageBiasPlotInject(rep *pipeline.InjectReport) (*plot.Plot, error) {
 	na, nf := len(rep.AgesGyr), len(rep.Fractions)
 	p := plot.New()
 	p.Title.Text = fmt.Sprintf("Recovered minus injected burst age (median and 16–84 %% of %d mocks)", rep.Replicates)
@@ -334,7 +322,7 @@ func binOf(edges []float64, x float64) int {
 // of each parameter on the diagonal (median solid, 16 and 84 % dashed) and
 // the 2-D density of each pair below it, the best stored position (MAP)
 // marked. samples is n × dim, row-major.
-func cornerGrid(rep *posteriorReport, samples []float64) ([][]*plot.Plot, error) {
+func cornerGrid(rep *pipeline.PosteriorReport, samples []float64) ([][]*plot.Plot, error) {
 	d := len(rep.Parameters)
 	n := len(samples) / d
 	const bins1, bins2 = 40, 30
@@ -349,7 +337,7 @@ func cornerGrid(rep *posteriorReport, samples []float64) ([][]*plot.Plot, error)
 			pad := math.Max(1e-6, 1e-3*math.Abs(lo))
 			lo, hi = lo-pad, hi+pad
 		}
-		edges[i] = linspace(lo, hi, bins1+1)
+		edges[i] = grid.Linspace(lo, hi, bins1+1)
 	}
 	grid := make([][]*plot.Plot, d)
 	for row := range d {
@@ -387,7 +375,7 @@ func cornerGrid(rep *posteriorReport, samples []float64) ([][]*plot.Plot, error)
 }
 
 // cornerDiagonal draws one parameter's marginal posterior density.
-func cornerDiagonal(p *plot.Plot, par posteriorParam, edges, samples []float64, d, i int) error {
+func cornerDiagonal(p *plot.Plot, par pipeline.PosteriorParam, edges, samples []float64, d, i int) error {
 	nb := len(edges) - 1
 	counts := make([]float64, nb)
 	n := len(samples) / d
@@ -445,9 +433,9 @@ func formatInterval(med, q16, q84 float64) string {
 }
 
 // cornerPair draws the 2-D posterior density of parameters x and y.
-func cornerPair(p *plot.Plot, rep *posteriorReport, xe1, ye1, samples []float64, d, ix, iy, bins int) error {
-	xe := linspace(xe1[0], xe1[len(xe1)-1], bins+1)
-	ye := linspace(ye1[0], ye1[len(ye1)-1], bins+1)
+func cornerPair(p *plot.Plot, rep *pipeline.PosteriorReport, xe1, ye1, samples []float64, d, ix, iy, bins int) error {
+	xe := grid.Linspace(xe1[0], xe1[len(xe1)-1], bins+1)
+	ye := grid.Linspace(ye1[0], ye1[len(ye1)-1], bins+1)
 	h := hist2D{xEdges: xe, yEdges: ye, n: make([]float64, bins*bins)}
 	n := len(samples) / d
 	peak := 0.0

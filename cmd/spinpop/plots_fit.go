@@ -13,6 +13,7 @@ import (
 	"gonum.org/v1/plot/vg/draw"
 
 	"spinpop/compare"
+	"spinpop/internal/grid"
 )
 
 // planeGrid shows values on the comparison plane (B−V × log10 period),
@@ -281,7 +282,7 @@ func bootstrapPlot(lr float64, reps []float64) (*plot.Plot, error) {
 	if top <= 0 {
 		top = 1
 	}
-	edges := linspace(0, top, 41)
+	edges := grid.Linspace(0, top, 41)
 	y := make([]float64, 40)
 	for _, v := range reps {
 		i := int(v / top * 40)

@@ -6,18 +6,17 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
-	"math"
 	"os"
 	"os/signal"
 	"path/filepath"
 	"strconv"
-	"strings"
-	"time"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/vg"
 
 	"spinpop/compare"
+	"spinpop/internal/grid"
+	"spinpop/pipeline"
 )
 
 func runPosterior(args []string, stdout, stderr io.Writer) error {
@@ -65,21 +64,16 @@ func posteriorCmd(ctx context.Context, args []string, stdout, stderr io.Writer) 
 	if err != nil {
 		return err
 	}
-	d := c.burst.Dim()
+	d := c.Burst.Dim()
 	if d == 0 {
 		return usageErrorf("%s: the burst model has no free parameter; list some in [[compare.free]]", path)
 	}
 	if *walkers < 2*d {
 		return usageErrorf("--walkers %d is too few for %d free parameters; use at least %d", *walkers, d, 2*d)
 	}
-	opts := compare.PosteriorOptions{Walkers: *walkers, Steps: *steps, Burn: *burn, Seed: c.s.Run.Seed}
-	if *seed != 0 {
-		opts.Seed = *seed
-	}
 	bar := newProgressBar("sampling", int64(*steps))
-	opts.Progress = func(done, _ int) { bar.Update(int64(done)) }
-	start := time.Now()
-	post, err := compare.SamplePosterior(ctx, c.like, c.burst, opts)
+	post, rep, err := c.Posterior(ctx, pipeline.PosteriorOptions{Walkers: *walkers, Steps: *steps, Burn: *burn, Seed: *seed,
+		Progress: func(done, _ int) { bar.Update(int64(done)) }})
 	bar.Done()
 	if err != nil {
 		if ctx.Err() != nil {
@@ -87,11 +81,6 @@ func posteriorCmd(ctx context.Context, args []string, stdout, stderr io.Writer) 
 		}
 		return fmt.Errorf("posterior: %w", err)
 	}
-	rep, err := newPosteriorReport(c, post, opts.Seed)
-	if err != nil {
-		return err
-	}
-	rep.Seconds = time.Since(start).Seconds()
 
 	dir := *cf.out
 	if err := writeChainCSV(filepath.Join(dir, "chain.csv"), post); err != nil {
@@ -126,126 +115,10 @@ func posteriorCmd(ctx context.Context, args []string, stdout, stderr io.Writer) 
 	return nil
 }
 
-// notConvergedWarning is printed, and recorded, when any parameter's chain
-// is shorter than 50 autocorrelation times.
-const notConvergedWarning = "chain shorter than 50 autocorrelation times: run longer (--steps)"
-
-// posteriorReport is what posterior writes to posterior.json and prints.
-type posteriorReport struct {
-	Tool               string           `json:"tool"`
-	Version            string           `json:"version"`
-	Scenario           string           `json:"scenario"`
-	ScenarioName       string           `json:"scenario_name"`
-	ScenarioHash       string           `json:"scenario_sha256"`
-	Data               dataSummary      `json:"data"`
-	Seed               uint64           `json:"seed"`
-	Walkers            int              `json:"walkers"`
-	Steps              int              `json:"steps"`
-	Burn               int              `json:"burn"`
-	Parameters         []posteriorParam `json:"parameters"`
-	AcceptanceMean     float64          `json:"acceptance_fraction_mean"`
-	AcceptanceFraction []float64        `json:"acceptance_fraction_per_walker"`
-	Converged          bool             `json:"converged"`
-	MAPLogPosterior    float64          `json:"map_log_posterior"`
-	SFH                sfhBand          `json:"star_formation_history"`
-	Warnings           []string         `json:"warnings"`
-	Seconds            float64          `json:"seconds"`
-	Outputs            []string         `json:"outputs"`
-}
-
-// posteriorParam summarises one free parameter.
-type posteriorParam struct {
-	Name      string   `json:"name"`
-	PriorMin  float64  `json:"prior_min"`
-	PriorMax  float64  `json:"prior_max"`
-	Prior     string   `json:"prior"`
-	Median    float64  `json:"median"`
-	Q16       float64  `json:"q16"`
-	Q84       float64  `json:"q84"`
-	MAP       float64  `json:"map"`
-	Tau       *float64 `json:"autocorr_time_steps"` // null when it cannot be estimated
-	Converged bool     `json:"converged"`
-}
-
-// sfhBand is the star-formation rate's posterior on an age grid (share of
-// all mass formed per Gyr).
-type sfhBand struct {
-	AgeGyr  []float64 `json:"age_gyr"`
-	Median  []float64 `json:"rate_median_per_gyr"`
-	Q16     []float64 `json:"rate_q16_per_gyr"`
-	Q84     []float64 `json:"rate_q84_per_gyr"`
-	MAPRate []float64 `json:"rate_map_per_gyr"`
-}
-
-func newPosteriorReport(c *comparison, post *compare.Posterior, seed uint64) (*posteriorReport, error) {
-	rep := &posteriorReport{
-		Tool: "spinpop", Version: version, Scenario: c.path, ScenarioName: c.s.Name, ScenarioHash: c.res.Hash(),
-		Data: c.dataSummary(), Seed: seed, Walkers: post.Walkers, Steps: post.Steps, Burn: post.Burn,
-		AcceptanceFraction: post.AcceptanceFraction, Converged: true, Warnings: []string{},
-		MAPLogPosterior: math.Inf(-1),
-	}
-	for _, a := range post.AcceptanceFraction {
-		rep.AcceptanceMean += a / float64(len(post.AcceptanceFraction))
-	}
-	for _, lp := range post.LogProb {
-		rep.MAPLogPosterior = math.Max(rep.MAPLogPosterior, lp)
-	}
-	var unconverged []string
-	for i, f := range c.burst.Free {
-		prior := "uniform"
-		if f.LogPrior {
-			prior = "log-uniform"
-		}
-		p := posteriorParam{Name: f.Name, PriorMin: f.Min, PriorMax: f.Max, Prior: prior,
-			Median: post.Median[i], Q16: post.Q16[i], Q84: post.Q84[i], MAP: post.MAP[i], Converged: post.Converged[i]}
-		if t := post.AutocorrTime[i]; !math.IsNaN(t) && !math.IsInf(t, 0) {
-			p.Tau = &t
-		} else {
-			p.Converged = false
-		}
-		if !p.Converged {
-			rep.Converged = false
-			unconverged = append(unconverged, f.Name)
-		}
-		rep.Parameters = append(rep.Parameters, p)
-	}
-	if !rep.Converged {
-		rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s (%s); the quantiles may be wrong", notConvergedWarning, strings.Join(unconverged, ", ")))
-	}
-	if rep.AcceptanceMean < 0.1 || rep.AcceptanceMean > 0.9 {
-		rep.Warnings = append(rep.Warnings, fmt.Sprintf("mean acceptance fraction %.2f lies outside 0.1–0.9, where the ensemble sampler moves poorly; check chain.csv", rep.AcceptanceMean))
-	}
-	ages := linspace(0, c.s.History.MaxAgeGyr, 801)
-	band, err := sfhBandAt(c, post, ages)
-	if err != nil {
-		return nil, err
-	}
-	rep.SFH = band
-	return rep, nil
-}
-
-// sfhBandAt is the posterior's star-formation-rate band and the best
-// sample's rate at ages.
-func sfhBandAt(c *comparison, post *compare.Posterior, ages []float64) (sfhBand, error) {
-	med, lo, hi, err := post.SFHBand(c.burst, ages)
-	if err != nil {
-		return sfhBand{}, err
-	}
-	h, err := c.burst.History(post.MAP)
-	if err != nil {
-		return sfhBand{}, err
-	}
-	mr := make([]float64, len(ages))
-	for i, a := range ages {
-		mr[i] = h.Rate(a)
-	}
-	return sfhBand{AgeGyr: ages, Median: med, Q16: lo, Q84: hi, MAPRate: mr}, nil
-}
-
 // sfhPlots are two panels: the whole history, on a logarithmic rate axis
 // so the smooth part and the burst both show, and a zoom on the burst on a
 // linear one.
-func sfhPlots(c *comparison, post *compare.Posterior, rep *posteriorReport) ([]*plot.Plot, error) {
+func sfhPlots(c *pipeline.Comparison, post *compare.Posterior, rep *pipeline.PosteriorReport) ([]*plot.Plot, error) {
 	b := rep.SFH
 	logY := true
 	for i := range b.AgeGyr {
@@ -258,34 +131,12 @@ func sfhPlots(c *comparison, post *compare.Posterior, rep *posteriorReport) ([]*
 		return nil, err
 	}
 	// The zoom spans the burst age's 16–84 % range widened by four burst
-	// widths (its 84 % quantile when free, else the fixed value) each side.
-	part := c.s.Compare.BurstPart
-	var age, width posteriorParam
-	var haveAge, haveWidth bool
-	for _, p := range rep.Parameters {
-		switch p.Name {
-		case part + ".age_gyr":
-			age, haveAge = p, true
-		case part + ".width_gyr":
-			width, haveWidth = p, true
-		}
-	}
-	if !haveAge {
+	// widths each side (see pipeline.Comparison.BurstZoom).
+	age, lo, hi, ok := c.BurstZoom(rep)
+	if !ok {
 		return []*plot.Plot{whole}, nil
 	}
-	w := 0.05
-	if haveWidth {
-		w = width.Q84
-	} else {
-		for _, p := range c.burst.Base.Params() {
-			if p.Name == part+".width_gyr" {
-				w = p.Value
-			}
-		}
-	}
-	lo := math.Max(0, age.Q16-4*w)
-	hi := math.Min(c.s.History.MaxAgeGyr, age.Q84+4*w)
-	zb, err := sfhBandAt(c, post, linspace(lo, hi, 401))
+	zb, err := c.SFHBandAt(post, grid.Linspace(lo, hi, 401))
 	if err != nil {
 		return nil, err
 	}
@@ -331,7 +182,7 @@ func writeChainCSV(path string, post *compare.Posterior) error {
 	})
 }
 
-func printPosteriorReport(w io.Writer, r *posteriorReport) {
+func printPosteriorReport(w io.Writer, r *pipeline.PosteriorReport) {
 	fmt.Fprintf(w, "spinpop %s — posterior of the burst model, scenario %q (sha256 %s…), seed %d\n", r.Version, r.ScenarioName, r.ScenarioHash[:16], r.Seed)
 	printDataSummary(w, r.Data)
 	fmt.Fprintf(w, "%d walkers × %d steps (first %d dropped) in %.1f s; mean acceptance %.2f\n\n", r.Walkers, r.Steps, r.Burn, r.Seconds, r.AcceptanceMean)

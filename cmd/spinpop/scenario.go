@@ -1,12 +1,9 @@
 package main
 
 import (
-	"fmt"
-	"math/rand/v2"
 	"os"
 	"strings"
 
-	"spinpop/model/spin"
 	"spinpop/scenarios"
 )
 
@@ -45,19 +42,3 @@ func oneScenarioArg(pos []string, cmd string) (string, error) {
 	}
 	return pos[0], nil
 }
-
-// scenariosBuild builds a scenario's run objects; its errors are the
-// user's (combinations of keys the loader cannot judge alone).
-func scenariosBuild(s *scenarios.Scenario, path string) (*scenarios.Built, error) {
-	b, err := scenarios.Build(s)
-	if err != nil {
-		return nil, inputError{fmt.Errorf("%s: %w", path, err)}
-	}
-	return b, nil
-}
-
-func spinStar(m, age, bv, teff float64) spin.Star {
-	return spin.Star{MassMsun: m, AgeGyr: age, BV: bv, TeffK: teff}
-}
-
-type randRand = rand.Rand

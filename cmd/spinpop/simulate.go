@@ -5,17 +5,16 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
-	"math"
 	"os"
 	"os/signal"
 	"path/filepath"
 	"runtime"
-	"time"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/vg"
 
 	"spinpop/model"
+	"spinpop/pipeline"
 	"spinpop/scenarios"
 )
 
@@ -57,100 +56,13 @@ func runSimulate(args []string, stdout, stderr io.Writer) error {
 	return printSummary(stdout, sum, *asJSON)
 }
 
-// summary is what a run reports, on stdout and in manifest.json.
-type summary struct {
-	Tool           string          `json:"tool"`
-	Version        string          `json:"version"`
-	Scenario       string          `json:"scenario"`
-	ScenarioName   string          `json:"scenario_name"`
-	ScenarioHash   string          `json:"scenario_sha256"`
-	Files          []string        `json:"scenario_files"`
-	Seed           uint64          `json:"seed"`
-	Threads        int             `json:"threads"`
-	Counts         []stepCount     `json:"counts"`
-	CatalogStars   int64           `json:"catalog_stars"`
-	CatalogWritten bool            `json:"catalog_written"`
-	Binaries       int64           `json:"catalog_binaries"`
-	Evolved        int64           `json:"catalog_evolved"`
-	Aliased        int64           `json:"catalog_aliased_periods"`
-	MedianAgeGyr   ageMedians      `json:"median_age_gyr"`
-	DetectedByAge  []binFraction   `json:"detected_fraction_by_age"`
-	DetectedByBV   []colorFraction `json:"detected_fraction_by_color"`
-	Warnings       []string        `json:"warnings"`
-	Outputs        []string        `json:"outputs"`
-	Seconds        float64         `json:"seconds"`
-	StarsPerSecond float64         `json:"stars_per_second"`
-	Resolved       string          `json:"resolved_scenario,omitempty"`
-	Gyrochrones    []gyroCurveJSON `json:"gyrochrones,omitempty"`
-}
-
-type stepCount struct {
-	Step  string `json:"step"`
-	Stars int64  `json:"stars"`
-}
-
-type ageMedians struct {
-	Generated float64 `json:"generated_dwarfs"`
-	Catalog   float64 `json:"catalog"`
-}
-
-type binFraction struct {
-	AgeLoGyr float64 `json:"age_lo_gyr"`
-	AgeHiGyr float64 `json:"age_hi_gyr"`
-	InRange  int64   `json:"dwarfs_passing_cuts"`
-	Detected int64   `json:"period_detected"`
-}
-
-type colorFraction struct {
-	BVLo     float64 `json:"b_v_lo"`
-	BVHi     float64 `json:"b_v_hi"`
-	Eligible int64   `json:"dwarfs_passing_cuts"`
-	Detected int64   `json:"period_detected"`
-}
-
-type gyroCurveJSON struct {
-	AgeGyr  float64   `json:"age_gyr"`
-	BV      []float64 `json:"b_v"`
-	PeriodD []float64 `json:"period_d"`
-}
-
-// Comparison-space edges of the plots: B−V and log10 period.
-func plotEdges(s *scenarios.Scenario) (color, logPer, absZ []float64) {
-	color = linspace(s.Cuts.BVMin, s.Cuts.BVMax, 46)
-	// Field stars with spot modulation rotate in ~0.3–100 d; wider windows
-	// would squash the structure users look for into a few pixels.
-	lo := math.Log10(max(s.Cuts.PeriodMinD, 0.3))
-	hi := math.Log10(min(s.Cuts.PeriodMaxD, 100))
-	logPer = linspace(lo, hi, 61)
-	zmax := 1500.0
-	if f := s.Survey.Field; f.DistanceMaxPc > 0 {
-		zmax = f.DistanceMaxPc + math.Abs(s.Disk.SunHeightPc)
-	}
-	absZ = linspace(0, zmax, 31)
-	return
-}
-
-func linspace(a, b float64, n int) []float64 {
-	out := make([]float64, n)
-	for i := range out {
-		out[i] = a + (b-a)*float64(i)/float64(n-1)
-	}
-	return out
-}
-
-func simulate(res *scenarios.Resolved, path, dir string, workers int, stderr io.Writer) (*summary, error) {
+func simulate(res *scenarios.Resolved, path, dir string, workers int, stderr io.Writer) (*pipeline.Manifest, error) {
 	s := &res.Scenario
-	built, err := scenarios.Build(s)
-	if err != nil {
-		return nil, inputError{fmt.Errorf("%s: %w", path, err)}
-	}
-	ce, pe, ze := plotEdges(s)
-	tally := model.NewTally(built.AgeEdgesGyr, ce, pe, ze)
-
-	var cat *catalogWriter
-	var catTmp *os.File
 	catPath := filepath.Join(dir, "catalog.csv")
+	var cat *pipeline.CatalogWriter
+	var catTmp *os.File
 	if s.Output.Catalog {
+		var err error
 		if catTmp, err = os.CreateTemp(dir, ".catalog.csv.partial-*"); err != nil {
 			return nil, fmt.Errorf("writing %s: %w", catPath, err)
 		}
@@ -160,30 +72,27 @@ func simulate(res *scenarios.Resolved, path, dir string, workers int, stderr io.
 				os.Remove(catTmp.Name())
 			}
 		}()
-		cat = newCatalogWriter(catTmp)
+		cat = pipeline.NewCatalogWriter(catTmp)
 	}
-	catalogDropped := false
 
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
 	defer stop()
 	bar := newProgressBar("simulating", s.Run.StarsGenerated)
-	var done int64
-	start := time.Now()
-	err = model.RunChunks(ctx, s.Run.Seed, s.Run.StarsGenerated, s.Run.ChunkStars, workers, built.Population.Fill,
-		func(c *model.Chunk) error {
-			tally.Add(c)
-			if cat != nil && !catalogDropped {
-				if err := cat.add(c); err != nil {
-					return fmt.Errorf("writing %s: %w", catPath, err)
-				}
-				if cat.rows > s.Output.CatalogMaxStars {
-					catalogDropped = true
-				}
+	sim, err := pipeline.Simulate(ctx, res, pipeline.SimulateOptions{
+		Source: path, Workers: workers,
+		Progress: func(done, _ int64) { bar.Update(done) },
+		Visit: func(c *model.Chunk) error {
+			// Streamed, so memory does not grow with the catalogue; a
+			// catalogue over the limit stops being written.
+			if cat == nil || cat.Rows() > s.Output.CatalogMaxStars {
+				return nil
 			}
-			done += int64(c.N)
-			bar.Update(done)
+			if err := cat.Add(c); err != nil {
+				return fmt.Errorf("writing %s: %w", catPath, err)
+			}
 			return nil
-		})
+		},
+	})
 	bar.Done()
 	if err != nil {
 		if ctx.Err() != nil {
@@ -191,58 +100,28 @@ func simulate(res *scenarios.Resolved, path, dir string, workers int, stderr io.
 		}
 		return nil, err
 	}
-	elapsed := time.Since(start).Seconds()
-
-	sum := &summary{
-		Tool: "spinpop", Version: version, Scenario: path, ScenarioName: s.Name, ScenarioHash: res.Hash(), Files: res.Files,
-		Seed: s.Run.Seed, Threads: workers, CatalogStars: tally.Selected(),
-		Binaries: tally.Binaries, Evolved: tally.Evolved, Aliased: tally.Aliased,
-		Seconds: elapsed, StarsPerSecond: float64(s.Run.StarsGenerated) / max(elapsed, 1e-9),
-		Warnings: []string{},
-	}
-	for i, name := range model.Steps {
-		sum.Counts = append(sum.Counts, stepCount{name, tally.StepCounts[i]})
-	}
-	sum.MedianAgeGyr = ageMedians{medianFromBins(tally.AgeEdgesGyr, tally.AgeGenerated), medianFromBins(tally.AgeEdgesGyr, tally.AgeSelected)}
-	for k := range tally.AgeEligible {
-		sum.DetectedByAge = append(sum.DetectedByAge, binFraction{tally.AgeEdgesGyr[k], tally.AgeEdgesGyr[k+1], tally.AgeEligible[k], tally.AgeDetected[k]})
-	}
-	for k := range tally.ColorEligible {
-		sum.DetectedByBV = append(sum.DetectedByBV, colorFraction{tally.ColorEdges[k], tally.ColorEdges[k+1], tally.ColorEligible[k], tally.ColorDetected[k]})
-	}
-	sum.Warnings = append(sum.Warnings, rangeWarnings(s, built, tally)...)
-
-	curves := model.Gyrochrones(built.Law, built.Relations, s.Output.GyrochroneAgesGyr, s.Cuts.BVMin, s.Cuts.BVMax, 60)
-	var gc []gyroCurve
-	for _, g := range curves {
-		gc = append(gc, gyroCurve{AgeGyr: g.AgeGyr, BV: g.BV, PeriodD: g.PeriodD})
-		sum.Gyrochrones = append(sum.Gyrochrones, gyroCurveJSON{g.AgeGyr, g.BV, nanToZero(g.PeriodD)})
-	}
+	sum := &sim.Manifest
 
 	// Outputs: the catalogue is renamed into place only now, whole.
-	if cat != nil {
-		if catalogDropped {
-			sum.Warnings = append(sum.Warnings, fmt.Sprintf("the catalogue has %d stars, more than output.catalog_max_stars = %d: catalog.csv was not written (raise the limit or lower run.stars_generated)", tally.Selected(), s.Output.CatalogMaxStars))
-		} else {
-			if err := cat.flush(); err != nil {
-				return nil, fmt.Errorf("writing %s: %w", catPath, err)
-			}
-			if err := catTmp.Close(); err != nil {
-				return nil, fmt.Errorf("writing %s: %w", catPath, err)
-			}
-			if err := os.Chmod(catTmp.Name(), 0o644); err != nil {
-				return nil, fmt.Errorf("writing %s: %w", catPath, err)
-			}
-			if err := os.Rename(catTmp.Name(), catPath); err != nil {
-				return nil, fmt.Errorf("writing %s: %w", catPath, err)
-			}
-			catTmp = nil
-			sum.CatalogWritten = true
-			sum.Outputs = append(sum.Outputs, "catalog.csv")
+	if cat != nil && !sim.CatalogTooLarge {
+		if err := cat.Flush(); err != nil {
+			return nil, fmt.Errorf("writing %s: %w", catPath, err)
 		}
+		if err := catTmp.Close(); err != nil {
+			return nil, fmt.Errorf("writing %s: %w", catPath, err)
+		}
+		if err := os.Chmod(catTmp.Name(), 0o644); err != nil {
+			return nil, fmt.Errorf("writing %s: %w", catPath, err)
+		}
+		if err := os.Rename(catTmp.Name(), catPath); err != nil {
+			return nil, fmt.Errorf("writing %s: %w", catPath, err)
+		}
+		catTmp = nil
+		sum.CatalogWritten = true
+		sum.Outputs = append(sum.Outputs, "catalog.csv")
 	}
 	if s.Output.Plots {
-		names, err := writeSimulationPlots(dir, s, tally, gc)
+		names, err := writeSimulationPlots(dir, s, sim.Tally, gyroCurves(sim.Gyrochrones))
 		if err != nil {
 			return nil, err
 		}
@@ -258,14 +137,13 @@ func simulate(res *scenarios.Resolved, path, dir string, workers int, stderr io.
 	return sum, nil
 }
 
-func nanToZero(x []float64) []float64 {
-	out := make([]float64, len(x))
-	for i, v := range x {
-		if !math.IsNaN(v) {
-			out[i] = v
-		}
+// gyroCurves are the gyrochrones to overlay on a plot.
+func gyroCurves(gs []model.Gyrochrone) []gyroCurve {
+	var gc []gyroCurve
+	for _, g := range gs {
+		gc = append(gc, gyroCurve{AgeGyr: g.AgeGyr, BV: g.BV, PeriodD: g.PeriodD})
 	}
-	return out
+	return gc
 }
 
 func writeJSON(path string, v any) error {
@@ -319,46 +197,7 @@ func writeSimulationPlots(dir string, s *scenarios.Scenario, t *model.Tally, gc 
 	return names, nil
 }
 
-// medianFromBins is the median of a binned distribution, interpolated
-// linearly inside the bin that holds it.
-func medianFromBins(edges []float64, n []int64) float64 {
-	var tot int64
-	for _, v := range n {
-		tot += v
-	}
-	if tot == 0 {
-		return math.NaN()
-	}
-	half := float64(tot) / 2
-	acc := 0.0
-	for k, v := range n {
-		if acc+float64(v) >= half && v > 0 {
-			return edges[k] + (edges[k+1]-edges[k])*(half-acc)/float64(v)
-		}
-		acc += float64(v)
-	}
-	return edges[len(edges)-1]
-}
-
-// rangeWarnings says where a result could mislead: the model used outside
-// the range it was calibrated on.
-func rangeWarnings(s *scenarios.Scenario, b *scenarios.Built, t *model.Tally) []string {
-	var w []string
-	if t.OutsideLaw > 0 {
-		frac := float64(t.OutsideLaw) / float64(max(t.StepCounts[4], 1))
-		w = append(w, fmt.Sprintf("%d dwarfs that pass the magnitude, color and main-sequence cuts (%.1f%%) lie outside the calibrated color or age range of spin-down law %q and have no period; they are flagged and never enter the catalogue", t.OutsideLaw, 100*frac, s.Spin.Law))
-	}
-	if s.Spin.Law != "torque" && s.Disk.AgeBinEdgesGyr[0] < 0.1 {
-		w = append(w, "empirical gyrochronology laws are calibrated on stars older than about 0.1 Gyr; younger stars get no period")
-	}
-	if s.Spin.Law == "torque" {
-		w = append(w, "the torque law keeps the moment of inertia constant: periods of stars younger than about 0.1 Gyr (no pre-main-sequence contraction) are crude")
-	}
-	w = append(w, "the main-sequence relation table is recalled from memory of a published mean dwarf sequence, not read from it (see testdata/SOURCES-dwarf-sequence.md); treat absolute magnitudes as uncertain at the 0.1–0.2 mag level")
-	return w
-}
-
-func printSummary(w io.Writer, s *summary, asJSON bool) error {
+func printSummary(w io.Writer, s *pipeline.Manifest, asJSON bool) error {
 	if asJSON {
 		enc := json.NewEncoder(w)
 		enc.SetIndent("", "  ")

@@ -2,7 +2,11 @@ package catalog
 
 import (
 	"fmt"
+	"regexp"
+	"strconv"
 	"strings"
+
+	"go.yaml.in/yaml/v3"
 )
 
 // ECSV header.
@@ -10,10 +14,10 @@ import (
 // An ECSV file (Enhanced Character Separated Values, the astronomy
 // community's text table format) starts with "# %ECSV <version>", then
 // "# ---", then a YAML document in comment lines ("# " prefix), then the
-// delimited body whose first row names the columns. Only the part of the
-// YAML that a reader needs is parsed here, by hand: the top-level keys
+// delimited body whose first row names the columns. The YAML is parsed by
+// go.yaml.in/yaml/v3; of it, a reader needs the top-level keys
 // "delimiter" and "datatype", the latter a sequence of mappings with
-// "name", "unit" and "datatype" in either flow style
+// "name", "unit" and "datatype", in flow style
 //
 //	# - {name: period, unit: d, datatype: float64}
 //
@@ -23,9 +27,7 @@ import (
 //	#   unit: d
 //	#   datatype: float64
 //
-// Scalars may be plain, 'single-quoted' ('' escapes a quote) or
-// "double-quoted" (backslash escapes). Everything else (meta, schema,
-// descriptions, formats) is skipped.
+// Everything else (meta, schema, descriptions, formats) is skipped.
 
 // Column describes one column of a catalog.
 type Column struct {
@@ -68,214 +70,134 @@ func parseECSVHeader(lines []headerLine) (*ecsvHeader, *lineError) {
 		return nil, &lineError{num, `ECSV header must continue with "# ---" after the "# %ECSV" line`}
 	}
 	rest = rest[1:]
+	last := lines[len(lines)-1].num
 
-	topKey := ""
-	var cur *Column  // block-style item being filled
-	itemIndent := -1 // column of the "-" of the datatype items
-	keyIndent := -1  // column of the first key of the current block item
+	// The YAML document, one line per header line, so that YAML line k is
+	// file line rest[k-1].num.
+	fileLine := func(k int) int {
+		if k >= 1 && k <= len(rest) {
+			return rest[k-1].num
+		}
+		return last
+	}
+	var doc strings.Builder
 	for _, hl := range rest {
-		text := hl.text
-		if strings.TrimSpace(text) == "" || strings.HasPrefix(strings.TrimSpace(text), "#") {
-			continue
+		indent := hl.text[:len(hl.text)-len(strings.TrimLeft(hl.text, " \t"))]
+		if strings.ContainsRune(indent, '\t') {
+			return nil, &lineError{hl.num, "ECSV header is not valid YAML: this line is indented with a tab, and YAML indents with spaces only"}
 		}
-		indent := len(text) - len(strings.TrimLeft(text, " "))
-		body := strings.TrimSpace(text)
-		if indent == 0 && !strings.HasPrefix(body, "- ") && body != "-" {
-			// A new top-level key.
-			cur = nil
-			key, val, ok := splitKeyValue(body)
-			if !ok {
-				return nil, &lineError{hl.num, fmt.Sprintf("cannot read ECSV header line %q (expected \"key: value\")", body)}
+		doc.WriteString(hl.text)
+		doc.WriteByte('\n')
+	}
+	var root yaml.Node
+	if err := yaml.Unmarshal([]byte(doc.String()), &root); err != nil {
+		return nil, yamlError(err, fileLine, func(k int) string {
+			if k >= 1 && k <= len(rest) {
+				return rest[k-1].text
 			}
-			topKey = key
-			if key == "delimiter" {
-				d, err := unquoteScalar(val)
-				if err != nil {
-					return nil, &lineError{hl.num, err.Error()}
-				}
-				switch d {
-				case " ":
-					h.delimiter = ' '
-				case ",":
-					h.delimiter = ','
-				default:
-					return nil, &lineError{hl.num, fmt.Sprintf("ECSV delimiter %q is not allowed; ECSV uses a space or a comma", d)}
-				}
+			return ""
+		})
+	}
+	if root.Kind == 0 || len(root.Content) == 0 {
+		return nil, &lineError{last, `ECSV header has no "datatype:" list describing the columns`}
+	}
+	top := root.Content[0]
+	if top.Kind != yaml.MappingNode {
+		return nil, &lineError{fileLine(top.Line), fmt.Sprintf(`ECSV header must be a YAML mapping of "key: value" entries (delimiter, datatype, meta, schema); found %s`, nodeKind(top))}
+	}
+	var datatype *yaml.Node
+	for i := 0; i+1 < len(top.Content); i += 2 {
+		key, val := top.Content[i], top.Content[i+1]
+		switch key.Value {
+		case "delimiter":
+			if val.Kind != yaml.ScalarNode {
+				return nil, &lineError{fileLine(val.Line), fmt.Sprintf("ECSV delimiter must be a single character, not %s", nodeKind(val))}
 			}
-			continue
-		}
-		if topKey != "datatype" {
-			continue // inside meta, schema or another key we skip
-		}
-		if strings.HasPrefix(body, "- ") || body == "-" {
-			item := strings.TrimSpace(strings.TrimPrefix(body, "-"))
-			if itemIndent >= 0 && indent != itemIndent {
-				// A sequence nested inside a column's entry (e.g. its meta).
-				continue
+			switch val.Value {
+			case " ":
+				h.delimiter = ' '
+			case ",":
+				h.delimiter = ','
+			default:
+				return nil, &lineError{fileLine(val.Line), fmt.Sprintf("ECSV delimiter %q is not allowed; ECSV uses a space or a comma", val.Value)}
 			}
-			itemIndent = indent
-			afterDash := strings.TrimPrefix(body, "-")
-			keyIndent = indent + 1 + len(afterDash) - len(strings.TrimLeft(afterDash, " "))
-			h.columns = append(h.columns, Column{})
-			cur = &h.columns[len(h.columns)-1]
-			if strings.HasPrefix(item, "{") {
-				if err := parseFlowMapping(item, cur); err != nil {
-					return nil, &lineError{hl.num, err.Error()}
-				}
-				cur = nil
-				continue
+		case "datatype":
+			datatype = val
+		}
+	}
+	if datatype == nil || datatype.Kind == yaml.ScalarNode && datatype.Value == "" {
+		return nil, &lineError{last, `ECSV header has no "datatype:" list describing the columns`}
+	}
+	if datatype.Kind != yaml.SequenceNode {
+		return nil, &lineError{fileLine(datatype.Line), fmt.Sprintf(`ECSV "datatype:" must be a list of columns ("- {name: …, datatype: …}"), not %s`, nodeKind(datatype))}
+	}
+	for i, item := range datatype.Content {
+		if item.Kind != yaml.MappingNode {
+			return nil, &lineError{fileLine(item.Line), fmt.Sprintf("ECSV datatype entry %d must be a mapping with name, datatype and unit, not %s", i+1, nodeKind(item))}
+		}
+		var c Column
+		for k := 0; k+1 < len(item.Content); k += 2 {
+			key, val := item.Content[k], item.Content[k+1]
+			var dst *string
+			switch key.Value {
+			case "name":
+				dst = &c.Name
+			case "unit":
+				dst = &c.Unit
+			case "datatype":
+				dst = &c.Datatype
+			default:
+				continue // description, format, meta, subtype
 			}
-			if item == "" {
-				keyIndent = -1 // the keys start on the next line
-				continue
+			if val.Kind != yaml.ScalarNode {
+				return nil, &lineError{fileLine(val.Line), fmt.Sprintf("ECSV datatype entry %d: %s must be a single value, not %s", i+1, key.Value, nodeKind(val))}
 			}
-			if err := setColumnKey(item, cur); err != nil {
-				return nil, &lineError{hl.num, err.Error()}
-			}
-			continue
+			*dst = val.Value
 		}
-		// A continuation line of a block-style item: only the item's own
-		// keys, aligned under its first key, count; deeper lines are
-		// nested values.
-		if cur != nil && keyIndent < 0 && indent > itemIndent {
-			keyIndent = indent
+		if c.Name == "" {
+			return nil, &lineError{fileLine(item.Line), fmt.Sprintf("ECSV datatype entry %d has no name", i+1)}
 		}
-		if cur == nil || indent != keyIndent {
-			continue
-		}
-		if err := setColumnKey(body, cur); err != nil {
-			return nil, &lineError{hl.num, err.Error()}
-		}
+		h.columns = append(h.columns, c)
 	}
 	if len(h.columns) == 0 {
-		return nil, &lineError{lines[len(lines)-1].num, `ECSV header has no "datatype:" list describing the columns`}
-	}
-	for i, c := range h.columns {
-		if c.Name == "" {
-			return nil, &lineError{lines[0].num, fmt.Sprintf("ECSV datatype entry %d has no name", i+1)}
-		}
+		return nil, &lineError{fileLine(datatype.Line), `ECSV header's "datatype:" list is empty; it must describe every column`}
 	}
 	return h, nil
 }
 
-// setColumnKey reads one "key: value" of a column entry into c. Keys other
-// than name, unit and datatype are ignored, and so are nested values.
-func setColumnKey(kv string, c *Column) error {
-	key, val, ok := splitKeyValue(kv)
-	if !ok {
-		return fmt.Errorf("cannot read ECSV column entry %q (expected \"key: value\")", kv)
+var yamlLine = regexp.MustCompile(`line (\d+)`)
+
+// yamlError turns a YAML parser error into a lineError at the file line of
+// the YAML line it names, with a hint for the commonest slip.
+func yamlError(err error, fileLine func(int) int, textOf func(int) string) *lineError {
+	msg := strings.TrimPrefix(err.Error(), "yaml: ")
+	line := fileLine(1 << 30)
+	text := ""
+	if m := yamlLine.FindStringSubmatch(msg); m != nil {
+		k, _ := strconv.Atoi(m[1])
+		line, text = fileLine(k), textOf(k)
+		msg = strings.TrimSpace(strings.Replace(msg, m[0]+":", "", 1))
 	}
-	switch key {
-	case "name", "unit", "datatype":
-		v, err := unquoteScalar(val)
-		if err != nil {
-			return err
-		}
-		switch key {
-		case "name":
-			c.Name = v
-		case "unit":
-			c.Unit = v
-		case "datatype":
-			c.Datatype = v
-		}
+	hint := ""
+	switch {
+	case strings.Contains(text, "\t"):
+		hint = " (this line holds a tab; YAML separates and indents with spaces)"
+	case strings.Contains(msg, "quoted scalar") || strings.Contains(msg, "unexpected end of stream"):
+		hint = " (an unclosed quote?)"
 	}
-	return nil
+	return &lineError{line, fmt.Sprintf("ECSV header is not valid YAML: %s%s", msg, hint)}
 }
 
-// splitKeyValue splits "key: value" at the first ": " (or a trailing ":").
-func splitKeyValue(s string) (key, val string, ok bool) {
-	if strings.HasSuffix(s, ":") {
-		return strings.TrimSpace(s[:len(s)-1]), "", true
+func nodeKind(n *yaml.Node) string {
+	switch n.Kind {
+	case yaml.ScalarNode:
+		return fmt.Sprintf("the plain value %q", n.Value)
+	case yaml.SequenceNode:
+		return "a list"
+	case yaml.MappingNode:
+		return "a mapping"
+	case yaml.AliasNode:
+		return "an alias"
 	}
-	i := strings.Index(s, ": ")
-	if i < 0 {
-		return "", "", false
-	}
-	return strings.TrimSpace(s[:i]), strings.TrimSpace(s[i+2:]), true
-}
-
-// parseFlowMapping reads "{k: v, k: v, ...}" into c, honouring quotes so
-// that commas and colons inside quoted values do not split.
-func parseFlowMapping(s string, c *Column) error {
-	s = strings.TrimSpace(s)
-	if !strings.HasPrefix(s, "{") || !strings.HasSuffix(s, "}") {
-		return fmt.Errorf("ECSV column entry %q: a flow mapping must be enclosed in { }", s)
-	}
-	inner := s[1 : len(s)-1]
-	var parts []string
-	start := 0
-	var quote byte
-	depth := 0
-	for i := 0; i < len(inner); i++ {
-		ch := inner[i]
-		switch {
-		case quote != 0:
-			if ch == '\\' && quote == '"' {
-				i++
-			} else if ch == quote {
-				if quote == '\'' && i+1 < len(inner) && inner[i+1] == '\'' {
-					i++
-				} else {
-					quote = 0
-				}
-			}
-		case ch == '\'' || ch == '"':
-			quote = ch
-		case ch == '{' || ch == '[':
-			depth++
-		case ch == '}' || ch == ']':
-			depth--
-		case ch == ',' && depth == 0:
-			parts = append(parts, inner[start:i])
-			start = i + 1
-		}
-	}
-	if quote != 0 {
-		return fmt.Errorf("ECSV column entry %q has an unclosed quote", s)
-	}
-	parts = append(parts, inner[start:])
-	for _, p := range parts {
-		p = strings.TrimSpace(p)
-		if p == "" {
-			continue
-		}
-		if err := setColumnKey(p, c); err != nil {
-			return err
-		}
-	}
-	return nil
-}
-
-// unquoteScalar returns the value of a YAML scalar: plain, 'single' or
-// "double" quoted.
-func unquoteScalar(v string) (string, error) {
-	v = strings.TrimSpace(v)
-	if len(v) >= 2 && v[0] == '\'' && v[len(v)-1] == '\'' {
-		return strings.ReplaceAll(v[1:len(v)-1], "''", "'"), nil
-	}
-	if len(v) >= 2 && v[0] == '"' && v[len(v)-1] == '"' {
-		var b strings.Builder
-		in := v[1 : len(v)-1]
-		for i := 0; i < len(in); i++ {
-			if in[i] == '\\' && i+1 < len(in) {
-				i++
-				switch in[i] {
-				case 'n':
-					b.WriteByte('\n')
-				case 't':
-					b.WriteByte('\t')
-				default:
-					b.WriteByte(in[i])
-				}
-				continue
-			}
-			b.WriteByte(in[i])
-		}
-		return b.String(), nil
-	}
-	if strings.HasPrefix(v, "'") || strings.HasPrefix(v, "\"") {
-		return "", fmt.Errorf("unclosed quote in ECSV header value %s", v)
-	}
-	return v, nil
+	return "nothing"
 }

@@ -86,6 +86,36 @@ func TestParseECSVErrors(t *testing.T) {
 	}
 }
 
+// YAML mistakes are named as such, at the file line where they are.
+func TestParseECSVYAMLErrors(t *testing.T) {
+	cases := []struct {
+		in   string
+		line int
+		want string
+	}{
+		{"# %ECSV 1.0\n# ---\n# datatype:\n# - name: a\n#\tunit: d\n", 5, "indented with a tab"},
+		{"# %ECSV 1.0\n# ---\n# datatype:\n# -\tname: a\n", 4, "holds a tab"},
+		{"# %ECSV 1.0\n# ---\n# datatype:\n# - name: a\n#  unit: d\n", 4, "not valid YAML"},
+		{"# %ECSV 1.0\n# ---\n# datatype: float64\n", 3, `must be a list of columns`},
+		{"# %ECSV 1.0\n# ---\n# datatype:\n# - a\n", 4, "entry 1 must be a mapping"},
+		{"# %ECSV 1.0\n# ---\n# datatype:\n# - {name: [a, b]}\n", 4, "name must be a single value"},
+		{"# %ECSV 1.0\n# ---\n# delimiter: [',']\n# datatype:\n# - {name: a}\n", 3, "delimiter must be a single character"},
+	}
+	for _, c := range cases {
+		_, err := parseECSVHeader(headerLines(c.in))
+		require.NotNil(t, err, c.in)
+		assert.Contains(t, err.msg, c.want, c.in)
+		assert.Equal(t, c.line, err.line, c.in)
+	}
+	// Through Read: a tab-indented header is a YAML problem at its line,
+	// not a mismatch between the header and the column names.
+	in := "# %ECSV 1.0\n# ---\n# datatype:\n# - name: prot\n#\tdatatype: float64\nprot\n1\n"
+	_, rerr := readString(t, in, directMapping)
+	require.ErrorIs(t, rerr, ErrFormat)
+	assert.Contains(t, rerr.Error(), "test.csv:5: ECSV header is not valid YAML")
+	assert.NotContains(t, rerr.Error(), "does not match")
+}
+
 func TestSplitter(t *testing.T) {
 	sp := splitter{delim: ','}
 	f, err := sp.split([]byte(` a , "b,c" ,"d""e",,f `))

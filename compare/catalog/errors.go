@@ -20,7 +20,8 @@ var (
 	ErrUnit = errors.New("unit mismatch")
 	// ErrMapping: the Mapping itself is incomplete or inconsistent.
 	ErrMapping = errors.New("invalid column mapping")
-	// ErrFormat: the text is not a well-formed CSV or ECSV table.
+	// ErrFormat: the file is not a well-formed table of its format, or
+	// not of the format declared.
 	ErrFormat = errors.New("malformed catalog")
 )
 
@@ -31,6 +32,9 @@ type Error struct {
 	Line int
 	Msg  string
 	Err  error // one of the sentinel errors above
+	// Cause is the error of the FITS or Parquet reader behind Err, if any
+	// (fitstable.ErrTruncated, …); errors.Is sees both.
+	Cause error
 }
 
 func (e *Error) Error() string {
@@ -40,7 +44,12 @@ func (e *Error) Error() string {
 	return fmt.Sprintf("%s: %s", e.Name, e.Msg)
 }
 
-func (e *Error) Unwrap() error { return e.Err }
+func (e *Error) Unwrap() []error {
+	if e.Cause != nil {
+		return []error{e.Err, e.Cause}
+	}
+	return []error{e.Err}
+}
 
 // lineError is an internal error with a line number, turned into an *Error
 // by the reader.

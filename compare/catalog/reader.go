@@ -10,7 +10,6 @@ import (
 	"fmt"
 	"hash"
 	"io"
-	"math"
 	"os"
 	"strconv"
 )
@@ -27,16 +26,28 @@ type Options struct {
 	Rejects RejectSink
 	// Name is the file name used in messages; ReadFile sets it.
 	Name string
+	// Format is the format the file is declared to have: "csv", "ecsv",
+	// "fits" or "parquet". "" or "auto" takes the format from the content.
+	// A declared format the content contradicts is an error (ErrFormat).
+	Format string
+	// Extension chooses the binary-table extension of a FITS file: its
+	// EXTNAME, or its HDU number (1 is the first extension after the
+	// primary HDU). "" takes the first binary table. Given for a file that
+	// is not FITS, it is an error.
+	Extension string
 }
 
 // Summary reports on a read. Bytes and SHA256 cover the whole input only
 // when Read returned without error (or with ErrNoRows).
 type Summary struct {
-	Format      string // "csv" or "ecsv"
+	Format      string // "csv", "ecsv", "fits" or "parquet"
 	ECSVVersion string
-	Compressed  bool // gzip, detected from the first two bytes
-	Delimiter   byte
-	HeaderLine  int // line of the column-name row
+	HDU         int    // FITS: the HDU read (1 is the first extension)
+	ExtName     string // FITS: its EXTNAME
+	RowGroups   int    // Parquet: row groups in the file
+	Compressed  bool   // gzip, detected from the first two bytes
+	Delimiter   byte   // CSV and ECSV
+	HeaderLine  int    // CSV and ECSV: line of the column-name row
 	Columns     []Column
 	Rows        int // data rows seen, accepted or rejected
 	Accepted    int
@@ -71,9 +82,10 @@ func ReadFile(path string, opt Options, fn func(line int, s Star) error) (Summar
 	return Read(f, opt, fn)
 }
 
-// Read streams a CSV or ECSV catalog from r, gzip-compressed or not, and
-// calls fn with the line number and the Star of every usable row, in file
-// order. Unusable rows go to opt.Rejects and are counted in the Summary.
+// Read streams a catalog from r — CSV, ECSV or a FITS binary table,
+// gzip-compressed or not, or a Parquet file — and calls fn with the line
+// number (for FITS and Parquet, the row number) and the Star of every
+// usable row, in file order. Unusable rows go to opt.Rejects and are counted in the Summary.
 // An error from fn or from the sink stops the reading and is returned
 // (wrapped with the line). Errors in the file itself are *Error values
 // wrapping one of the sentinel errors (ErrEmpty, ErrNoRows, ErrDelimiter,
@@ -86,9 +98,12 @@ func Read(r io.Reader, opt Options, fn func(line int, s Star) error) (Summary, e
 	rd := &reader{name: name, opt: opt, fn: fn}
 	rd.sum.Rejected = map[Reason]int{}
 	rd.hr = &hashReader{r: r, h: sha256.New()}
+	rd.src = r
 	err := rd.run()
-	rd.sum.Bytes = rd.hr.n
-	copy(rd.sum.SHA256[:], rd.hr.h.Sum(nil))
+	if !rd.hashed {
+		rd.sum.Bytes = rd.hr.n
+		copy(rd.sum.SHA256[:], rd.hr.h.Sum(nil))
+	}
 	return rd.sum, err
 }
 
@@ -110,9 +125,13 @@ type reader struct {
 	opt  Options
 	fn   func(int, Star) error
 	hr   *hashReader
-	lr   lineReader
-	sp   splitter
-	sum  Summary
+	src  io.Reader // the input as given, for Parquet's random access
+	// hashed is set when Bytes and SHA256 were taken from src directly
+	// rather than from hr.
+	hashed bool
+	lr     lineReader
+	sp     splitter
+	sum    Summary
 }
 
 func (rd *reader) errorf(line int, sentinel error, format string, args ...any) error {
@@ -120,7 +139,15 @@ func (rd *reader) errorf(line int, sentinel error, format string, args ...any) e
 }
 
 func (rd *reader) run() error {
+	switch rd.opt.Format {
+	case "", "auto", "csv", "ecsv", "fits", "parquet":
+	default:
+		return rd.errorf(0, ErrFormat, "unknown format %q; use auto, csv, ecsv, fits or parquet", rd.opt.Format)
+	}
 	raw := bufio.NewReaderSize(rd.hr, 256<<10)
+	if magic, _ := raw.Peek(4); string(magic) == parquetMagic {
+		return rd.readParquet(raw)
+	}
 	text := raw
 	if magic, _ := raw.Peek(2); len(magic) == 2 && magic[0] == 0x1f && magic[1] == 0x8b {
 		gz, err := gzip.NewReader(raw)
@@ -130,10 +157,23 @@ func (rd *reader) run() error {
 		rd.sum.Compressed = true
 		text = bufio.NewReaderSize(gz, 256<<10)
 	}
+	inner, _ := text.Peek(len(fitsMagic))
+	switch {
+	case string(inner) == fitsMagic:
+		return rd.readFITS(text, raw)
+	case len(inner) >= 4 && string(inner[:4]) == parquetMagic:
+		return rd.errorf(0, ErrFormat, "is a gzip-compressed Parquet file; Parquet compresses its columns itself and is read by random access, so decompress it (gunzip) and read the .parquet file")
+	}
+	if rd.opt.Extension != "" {
+		return rd.errorf(0, ErrFormat, "a FITS extension (%q) was given, but this is a text table, not a FITS file; remove the extension or point at the FITS file", rd.opt.Extension)
+	}
 	rd.lr.br = text
 
 	header, err := rd.readHeader()
 	if err != nil {
+		return err
+	}
+	if err := rd.checkDeclared(rd.sum.Format); err != nil {
 		return err
 	}
 	if err := rd.readRows(header); err != nil {
@@ -148,6 +188,25 @@ func (rd *reader) run() error {
 			"the header row is here but no data row follows; a catalog needs at least one star")
 	}
 	return nil
+}
+
+// formatWords describe each format in messages.
+var formatWords = map[string]string{
+	"csv":     `plain CSV (its first line is not "# %ECSV …")`,
+	"ecsv":    `ECSV (its first line is "# %ECSV …")`,
+	"fits":    `a FITS file (it starts with "SIMPLE  =")`,
+	"parquet": `a Parquet file (it starts with "PAR1")`,
+}
+
+// checkDeclared compares the format found in the content with the one the
+// caller declared.
+func (rd *reader) checkDeclared(found string) error {
+	want := rd.opt.Format
+	if want == "" || want == "auto" || want == found {
+		return nil
+	}
+	return rd.errorf(0, ErrFormat, "the declared format is %q, but the file is %s; declare format %q (or \"auto\"), or point at the intended file",
+		want, formatWords[found], found)
 }
 
 // next wraps lineReader.next with the file's name and line in errors.
@@ -256,6 +315,12 @@ func (rd *reader) readHeader() (*plan, error) {
 			rd.sum.Columns[i] = Column{Name: n}
 		}
 	}
+	return rd.resolveMapping(rd.lr.line)
+}
+
+// resolveMapping matches the Mapping against rd.sum.Columns; line is where
+// the column names are (0 for binary formats).
+func (rd *reader) resolveMapping(line int) (*plan, error) {
 	p, err := rd.opt.Mapping.resolve(rd.sum.Columns, rd.opt.ZSunPc)
 	if err != nil {
 		sentinel := ErrMapping
@@ -264,7 +329,6 @@ func (rd *reader) readHeader() (*plan, error) {
 				sentinel = s
 			}
 		}
-		line := rd.lr.line
 		if sentinel == ErrMapping {
 			line = 0
 		}
@@ -333,6 +397,7 @@ func truncate(s string, n int) string {
 // readRows streams the data rows.
 func (rd *reader) readRows(p *plan) error {
 	ncols := len(rd.sum.Columns)
+	var tr textRow
 	first := true
 	for {
 		line, err := rd.next()
@@ -373,7 +438,8 @@ func (rd *reader) readRows(p *plan) error {
 			}
 			continue
 		}
-		s, bad, reason := p.convert(fields)
+		tr.fields = fields
+		s, bad, reason := p.convert(&tr)
 		if bad != nil {
 			if err := rd.reject(num, reason, bad.column, string(fields[bad.index]), line); err != nil {
 				return err
@@ -399,109 +465,4 @@ func (rd *reader) reject(line int, why Reason, column, value string, raw []byte)
 		return fmt.Errorf("%s:%d: reject sink: %w", rd.name, line, err)
 	}
 	return nil
-}
-
-// nullMarkers are values that mean "no value" in common table writers.
-var nullMarkers = [][]byte{[]byte("NA"), []byte("N/A"), []byte("na"), []byte("null"),
-	[]byte("NULL"), []byte("None"), []byte("--")}
-
-// parseValue reads one numeric field.
-func parseValue(b []byte) (float64, Reason, bool) {
-	b = bytes.TrimSpace(b)
-	if len(b) == 0 {
-		return 0, ReasonMissing, false
-	}
-	for _, m := range nullMarkers {
-		if bytes.Equal(b, m) {
-			return 0, ReasonMissing, false
-		}
-	}
-	v, err := strconv.ParseFloat(string(b), 64)
-	if err != nil && !errors.Is(err, strconv.ErrRange) {
-		return 0, ReasonNotNumeric, false
-	}
-	if math.IsNaN(v) || math.IsInf(v, 0) {
-		return 0, ReasonNotFinite, false
-	}
-	return v, 0, true
-}
-
-// convert turns the mapped fields of one row into a Star, or reports the
-// first field that makes the row unusable.
-func (p *plan) convert(fields [][]byte) (Star, *fieldRef, Reason) {
-	s := Star{DistPc: math.NaN(), LDeg: math.NaN(), BDeg: math.NaN()}
-	get := func(f *fieldRef) (float64, Reason, bool) { return parseValue(fields[f.index]) }
-
-	var ok bool
-	var why Reason
-	if s.PeriodD, why, ok = get(&p.period); !ok {
-		return s, &p.period, why
-	}
-	if s.PeriodD <= 0 {
-		return s, &p.period, ReasonPeriod
-	}
-	if s.Color, why, ok = get(&p.color); !ok {
-		return s, &p.color, why
-	}
-	if p.absMag != nil {
-		if s.AbsMag, why, ok = get(p.absMag); !ok {
-			return s, p.absMag, why
-		}
-	}
-	if p.height != nil {
-		if s.ZPc, why, ok = get(p.height); !ok {
-			return s, p.height, why
-		}
-	}
-	var appMag float64
-	if p.appMag != nil && p.absMag == nil {
-		if appMag, why, ok = get(p.appMag); !ok {
-			return s, p.appMag, why
-		}
-	}
-	if p.parallax != nil {
-		plx, why, ok := get(p.parallax)
-		if !ok {
-			return s, p.parallax, why
-		}
-		if plx <= 0 {
-			return s, p.parallax, ReasonParallax
-		}
-		s.DistPc = 1000 / plx
-	}
-	switch {
-	case p.l != nil:
-		l, why, ok := get(p.l)
-		if !ok {
-			return s, p.l, why
-		}
-		b, why, ok := get(p.b)
-		if !ok {
-			return s, p.b, why
-		}
-		if b < -90 || b > 90 {
-			return s, p.b, ReasonPosition
-		}
-		s.LDeg, s.BDeg = math.Mod(math.Mod(l, 360)+360, 360), b
-	case p.ra != nil:
-		ra, why, ok := get(p.ra)
-		if !ok {
-			return s, p.ra, why
-		}
-		dec, why, ok := get(p.dec)
-		if !ok {
-			return s, p.dec, why
-		}
-		if dec < -90 || dec > 90 {
-			return s, p.dec, ReasonPosition
-		}
-		s.LDeg, s.BDeg = ICRSToGalactic(ra, dec)
-	}
-	if p.absMag == nil {
-		s.AbsMag = appMag - 5*math.Log10(s.DistPc/10)
-	}
-	if p.height == nil {
-		s.ZPc = s.DistPc*math.Sin(s.BDeg*math.Pi/180) + p.zSunPc
-	}
-	return s, nil, 0
 }

@@ -59,11 +59,11 @@ func Reasons() []Reason {
 
 // Rejection describes one unusable row.
 type Rejection struct {
-	Line   int    // line number in the (decompressed) text, from 1
+	Line   int    // CSV, ECSV: line in the (decompressed) text; FITS, Parquet: row; from 1
 	Reason Reason //
 	Column string // the offending column, "" for ReasonFieldCount
 	Value  string // the offending value as written
-	Raw    string // the whole line as written
+	Raw    string // the whole line as written; FITS, Parquet: "column=value, …" of the mapped columns
 }
 
 // RejectSink receives every rejected row. An error it returns stops the

@@ -1,4 +1,4 @@
-package scenarios
+package assemble
 
 import (
 	"context"
@@ -10,6 +10,7 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"spinpop/model"
+	"spinpop/scenarios"
 )
 
 // Common practice, no source (a fact of the trade): the gap in field-star
@@ -17,7 +18,7 @@ import (
 // falls at roughly 10–20 days. The demo's burst population (0.6 Gyr) of
 // B−V 0.9–1.2 catalogue stars must land there.
 func TestDemoBurstKDwarfsNearSixHundredMyrGyrochrone(t *testing.T) {
-	res, err := LoadExample("burst")
+	res, err := scenarios.LoadExample("burst")
 	require.NoError(t, err)
 	b, err := Build(&res.Scenario)
 	require.NoError(t, err)
@@ -53,7 +54,7 @@ func TestDemoBurstKDwarfsNearSixHundredMyrGyrochrone(t *testing.T) {
 // that pass the catalogue's photometric cuts have no detected period,
 // while most stars of 0.1–1 Gyr do.
 func TestExampleMissesMostOldSlowStars(t *testing.T) {
-	res, err := LoadExample("base")
+	res, err := scenarios.LoadExample("base")
 	require.NoError(t, err)
 	b, err := Build(&res.Scenario)
 	require.NoError(t, err)
@@ -97,10 +98,10 @@ func TestExampleMissesMostOldSlowStars(t *testing.T) {
 // sits near the ~600 Myr gyrochrone, 10–20 d for K dwarfs.
 func TestStallOpensGapWithoutBurst(t *testing.T) {
 	counts := func(stall bool) (pile, gap int) {
-		res, err := LoadExample("stall")
+		res, err := scenarios.LoadExample("stall")
 		require.NoError(t, err)
 		require.Len(t, res.Scenario.History.Parts, 2, "no burst in the stall example")
-		res.Scenario.Spin.Stall.Enabled = stall
+		res.Scenario.Spin.Options.Set("stall", "enabled", stall)
 		b, err := Build(&res.Scenario)
 		require.NoError(t, err)
 		err = model.RunChunks(context.Background(), 11, 1_000_000, 32768, 2, b.Population.Fill, func(c *model.Chunk) error {

@@ -1,22 +1,22 @@
-package scenarios
+package assemble
 
 import (
 	"fmt"
 	"math"
 	"math/rand/v2"
-	"sort"
 
 	"spinpop/disk"
 	"spinpop/model"
 	"spinpop/model/spin"
 	"spinpop/model/spots"
+	"spinpop/scenarios"
 	"spinpop/sfh"
 )
 
 // Built is a scenario turned into the objects a run uses. Tables inside are
 // built once and shared read-only by all workers.
 type Built struct {
-	Scenario    *Scenario
+	Scenario    *scenarios.Scenario
 	History     *sfh.History
 	AgeEdgesGyr []float64
 	Sampler     *disk.Sampler // the field's per-age-bin line-of-sight tables
@@ -31,10 +31,10 @@ type Built struct {
 // Build makes the run objects of a resolved scenario. Errors here come from
 // combinations the loader cannot see alone (for instance a mass range
 // beyond the relation table); they name the keys involved.
-func Build(s *Scenario) (*Built, error) {
+func Build(s *scenarios.Scenario) (*Built, error) {
 	b := &Built{Scenario: s, AgeEdgesGyr: s.Disk.AgeBinEdgesGyr}
 	var err error
-	if b.History, err = BuildHistory(s); err != nil {
+	if b.History, err = History(s); err != nil {
 		return nil, err
 	}
 	if b.Relations, err = model.DwarfSequence(); err != nil {
@@ -48,7 +48,7 @@ func Build(s *Scenario) (*Built, error) {
 	if err != nil {
 		return nil, fmt.Errorf("imf: %w", err)
 	}
-	if b.Law, err = BuildLaw(s, b.Relations); err != nil {
+	if b.Law, err = Law(s, b.Relations); err != nil {
 		return nil, err
 	}
 
@@ -106,8 +106,8 @@ func Build(s *Scenario) (*Built, error) {
 // color calibration, binary fraction scale, tidal locking and cuts. It is
 // what a comparison re-observes stored template stars with when nuisance
 // parameters move (model.Bank.Observe).
-func ObservingPopulation(s *Scenario, base *model.Population) (*model.Population, error) {
-	law, err := BuildLaw(s, base.Relations)
+func ObservingPopulation(s *scenarios.Scenario, base *model.Population) (*model.Population, error) {
+	law, err := Law(s, base.Relations)
 	if err != nil {
 		return nil, err
 	}
@@ -119,7 +119,7 @@ func ObservingPopulation(s *Scenario, base *model.Population) (*model.Population
 }
 
 // observing fills p's observing parts from s, with law as its law.
-func observing(s *Scenario, p *model.Population, law spin.Law) error {
+func observing(s *scenarios.Scenario, p *model.Population, law spin.Law) error {
 	turn, err := spin.TurnoverByName(s.Spin.Turnover)
 	if err != nil {
 		return fmt.Errorf("spin.turnover: %w", err)
@@ -158,7 +158,7 @@ func observing(s *Scenario, p *model.Population, law spin.Law) error {
 	p.Binaries.FractionScale = s.Stars.BinaryFractionScale
 	p.Binaries.TidalLockFraction = s.Stars.TidalLockFraction
 	p.Survey = model.Survey{Band: band, BrightLimitMag: s.Survey.BrightLimitMag, FaintLimitMag: s.Survey.FaintLimitMag, Detect: det, Recovery: rec, Color: color}
-	p.Cuts = CutsOf(s)
+	p.Cuts = Cuts(s)
 	return nil
 }
 
@@ -179,7 +179,7 @@ func (b *Built) sampler() (*disk.Sampler, error) {
 		}
 		mixes[k] = m
 	}
-	field, err := FieldOf(s)
+	field, err := Field(s)
 	if err != nil {
 		return nil, err
 	}
@@ -192,8 +192,8 @@ func (b *Built) sampler() (*disk.Sampler, error) {
 	return smp, nil
 }
 
-// FieldOf turns survey.field into a disk.Field.
-func FieldOf(s *Scenario) (disk.Field, error) {
+// Field turns survey.field into a disk.Field.
+func Field(s *scenarios.Scenario) (disk.Field, error) {
 	f := s.Survey.Field
 	var field disk.Field
 	switch f.Kind {
@@ -216,53 +216,28 @@ func FieldOf(s *Scenario) (disk.Field, error) {
 	return field, nil
 }
 
-// CutsOf gives the catalogue cuts, shared by model and data.
-func CutsOf(s *Scenario) model.Cuts {
+// Cuts gives the catalogue cuts, shared by model and data.
+func Cuts(s *scenarios.Scenario) model.Cuts {
 	c := s.Cuts
 	return model.Cuts{BVMin: c.BVMin, BVMax: c.BVMax, MSBandBrightMag: c.MSBandBrightMag, MSBandFaintMag: c.MSBandFaintMag,
 		PeriodMinD: c.PeriodMinD, PeriodMaxD: c.PeriodMaxD, HeightMaxPc: c.HeightMaxPc}
 }
 
-// BuildHistory builds the star-formation history of a scenario. Parts are taken
-// in name order so the same file always builds the same history.
-func BuildHistory(s *Scenario) (*sfh.History, error) {
-	names := make([]string, 0, len(s.History.Parts))
-	for n := range s.History.Parts {
-		names = append(names, n)
-	}
-	sort.Strings(names)
-	parts := make([]sfh.Part, 0, len(names))
-	for _, n := range names {
-		p := s.History.Parts[n]
-		var c sfh.Component
-		w := 0.0
-		switch p.Kind {
-		case "constant":
-			c, w = sfh.Constant{}, p.Weight
-		case "exponential":
-			c, w = sfh.Exponential{TimescaleGyr: p.TimescaleGyr}, p.Weight
-		case "bins":
-			c, w = sfh.Piecewise{EdgesGyr: p.EdgesGyr, Rates: p.Rates}, p.Weight
-		case "burst":
-			c = sfh.Burst{AgeGyr: p.AgeGyr, WidthGyr: p.WidthGyr, MassFraction: p.MassFraction}
-		case "dip":
-			c = sfh.Dip{AgeGyr: p.AgeGyr, WidthGyr: p.WidthGyr, Depth: p.Depth}
-		default:
-			return nil, fmt.Errorf("history.%s.kind = %q: want constant, exponential, bins, burst or dip", n, p.Kind)
-		}
-		parts = append(parts, sfh.Part{Name: n, Component: c, Weight: w})
-	}
-	h, err := sfh.New(s.History.MaxAgeGyr, parts)
+// History builds the star-formation history of a scenario (see
+// scenarios.BuildHistory).
+func History(s *scenarios.Scenario) (*sfh.History, error) {
+	h, err := scenarios.BuildHistory(&s.History)
 	if err != nil {
 		return nil, fmt.Errorf("history: %w", err)
 	}
 	return h, nil
 }
 
-// BuildLaw builds the scenario's spin-down law. The torque law takes stellar
-// radius and temperature from the relation table.
-func BuildLaw(s *Scenario, rel *model.Relations) (spin.Law, error) {
-	law, err := buildLaw(s, rel)
+// Law builds the scenario's spin-down law from the law registry
+// (spin.Lookup), with its intrinsic period scatter (spin.period_scatter_dex)
+// when there is one; the relation table supplies T_eff by mass.
+func Law(s *scenarios.Scenario, rel *model.Relations) (spin.Law, error) {
+	law, err := plainLaw(s, rel)
 	if err != nil || s.Spin.PeriodScatterDex == 0 {
 		return law, err
 	}
@@ -273,78 +248,32 @@ func BuildLaw(s *Scenario, rel *model.Relations) (spin.Law, error) {
 	return sc, nil
 }
 
-// buildLaw is BuildLaw without the intrinsic scatter.
-func buildLaw(s *Scenario, rel *model.Relations) (spin.Law, error) {
-	g := s.Spin.Gyro
-	if s.Spin.Law != "torque" {
-		if s.Spin.Stall.Enabled || s.Spin.Weakened.Enabled {
-			return nil, fmt.Errorf("spin.stall / spin.weakened_braking are options of the torque law; spin.law = %q cannot use them (set spin.law = \"torque\" or disable them)", s.Spin.Law)
-		}
-		l, err := gyroLaw(s.Spin.Law)
-		if err != nil {
-			return nil, fmt.Errorf("spin.law: %w", err)
-		}
-		// spin.gyro overrides the published coefficients where not 0.
-		for _, c := range []struct {
-			v   float64
-			dst *float64
-		}{{g.A, &l.A}, {g.B, &l.B}, {g.C, &l.C}, {g.N, &l.N}} {
-			if c.v != 0 {
-				*c.dst = c.v
-			}
-		}
-		if l.C >= l.MinBV {
-			// The relation runs to zero period at B−V = c: keep the
-			// accepted colors above it.
-			l.MinBV = l.C + 0.05
-		}
-		if err := l.Validate(); err != nil {
-			return nil, fmt.Errorf("spin.gyro: %w", err)
-		}
-		return l, nil
+// plainLaw is Law without the intrinsic scatter.
+func plainLaw(s *scenarios.Scenario, rel *model.Relations) (spin.Law, error) {
+	spec, ok := spin.Lookup(s.Spin.Law)
+	if !ok {
+		return nil, fmt.Errorf("spin.law: unknown spin-down law %q; use one of %q", s.Spin.Law, spin.Names())
 	}
-	if g != (GyroCoefficients{}) {
-		return nil, fmt.Errorf("spin.gyro sets coefficients of the empirical laws; spin.law = \"torque\" has none (leave spin.gyro at 0)")
+	if tables, owners := scenarios.SwitchedOnElsewhere(s); len(tables) > 0 {
+		return nil, fmt.Errorf("%s are options of the %s law; spin.law = %q cannot use them (set spin.law = %q or disable them)",
+			scenarios.SwitchableTables(owners[0]), owners[0], s.Spin.Law, owners[0])
 	}
-	t := s.Spin.Torque
-	o := spin.DefaultTorqueOptions()
 	turn, err := spin.TurnoverByName(s.Spin.Turnover)
 	if err != nil {
 		return nil, fmt.Errorf("spin.turnover: %w", err)
 	}
-	o.Turnover = turn
-	// The torque scalings were tuned with R = M^0.8 (spin.PowerLawRadius);
-	// the relation table supplies T_eff for the Cranmer & Saar turnover.
-	o.TeffOfMass = func(m float64) float64 {
+	teff := func(m float64) float64 {
 		if p, ok := rel.At(m); ok {
 			return p.TeffK
 		}
 		return 5772 * math.Pow(m, 0.5)
 	}
-	o.SolarPeriodD = t.SolarPeriodD
-	o.SaturationRatio = t.SaturationChi
-	o.StartAgeGyr = t.StartAgeGyr
-	switch t.InitialPeriodDist {
-	case "log-uniform":
-		o.Initial = spin.InitialPeriods{Shape: spin.LogUniform, MinD: t.InitialPeriodMinD, MaxD: t.InitialPeriodMaxD}
-	case "lognormal":
-		o.Initial = spin.InitialPeriods{Shape: spin.LogNormal, MedianD: t.InitialPeriodMedD, SigmaDex: t.InitialPeriodSigDex}
-	default:
-		return nil, fmt.Errorf("spin.torque.initial_period_dist = %q: want log-uniform or lognormal", t.InitialPeriodDist)
-	}
-	if s.Spin.Weakened.Enabled {
-		o.RoCrit = s.Spin.Weakened.RoCrit
-	}
-	st := s.Spin.Stall
-	if st.Enabled {
-		// The scenario writes start ∝ (m/0.8)^slope; spin.StallOptions
-		// writes (m/0.8)^(−slope).
-		o.Stall = spin.StallOptions{Enabled: true, PivotMsun: 0.8, StartGyrAtPivot: st.StartGyrAt08, DurationGyrAtPivot: st.DurationGyrAt08,
-			StartMassSlope: -st.StartSlope, DurationMassSlope: -st.DurationSlope, CutoffMsun: st.MassMaxMsun, CatchUpFraction: st.CatchUpFraction}
-	}
-	l, err := spin.NewTorqueLaw(o)
+	l, err := spec.New(s.Spin.Options, spin.Env{Turnover: turn, TeffOfMass: teff})
 	if err != nil {
-		return nil, fmt.Errorf("spin.torque: %w", err)
+		if len(spec.Tables) > 0 {
+			return nil, fmt.Errorf("spin.%s: %w", spec.Tables[0].Name, err)
+		}
+		return nil, fmt.Errorf("spin.law = %q: %w", s.Spin.Law, err)
 	}
 	return l, nil
 }

@@ -1,10 +1,11 @@
-package scenarios
+package assemble
 
 import (
 	"context"
 	"testing"
 
 	"spinpop/model"
+	"spinpop/scenarios"
 )
 
 // BenchmarkGenerate measures the hot path: make and observe stars of the
@@ -18,11 +19,11 @@ func BenchmarkGenerate(b *testing.B) { benchGenerate(b, "base", nil) }
 // torque law, spots, binaries and aliases all on. Issue 3's target: ≥ 3 M
 // stars/s.
 func BenchmarkGenerateTorque(b *testing.B) {
-	benchGenerate(b, "stall", func(s *Scenario) { s.Stars.TidalLockFraction = 0.1 })
+	benchGenerate(b, "stall", func(s *scenarios.Scenario) { s.Stars.TidalLockFraction = 0.1 })
 }
 
-func benchGenerate(b *testing.B, example string, change func(*Scenario)) {
-	res, err := LoadExample(example)
+func benchGenerate(b *testing.B, example string, change func(*scenarios.Scenario)) {
+	res, err := scenarios.LoadExample(example)
 	if err != nil {
 		b.Fatal(err)
 	}
@@ -56,7 +57,7 @@ func benchGenerate(b *testing.B, example string, change func(*Scenario)) {
 // BenchmarkBuild measures the once-per-scenario tables (line-of-sight
 // tables for 40 age bins, relations, laws).
 func BenchmarkBuild(b *testing.B) {
-	res, err := LoadExample("base")
+	res, err := scenarios.LoadExample("base")
 	if err != nil {
 		b.Fatal(err)
 	}

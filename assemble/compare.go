@@ -1,4 +1,4 @@
-package scenarios
+package assemble
 
 import (
 	"fmt"
@@ -8,6 +8,7 @@ import (
 	"spinpop/compare"
 	"spinpop/compare/catalog"
 	"spinpop/model"
+	"spinpop/scenarios"
 )
 
 // templateSections are the parts of a scenario the templates depend on:
@@ -23,11 +24,11 @@ var templateSections = []string{
 
 // TemplateKey is the hash of the scenario parts the templates depend on: a
 // cached template set with this key can be reused.
-func TemplateKey(r *Resolved) (string, error) { return r.PartHash(templateSections...) }
+func TemplateKey(r *scenarios.Resolved) (string, error) { return r.PartHash(templateSections...) }
 
-// CompareSpace is the comparison space of a scenario: B−V between the
+// Space is the comparison space of a scenario: B−V between the
 // catalogue's color cut, log period within the compare range, |z| bins.
-func CompareSpace(s *Scenario) (compare.Space, error) {
+func Space(s *scenarios.Scenario) (compare.Space, error) {
 	c := s.Compare
 	sp, err := compare.NewSpace(s.Cuts.BVMin, s.Cuts.BVMax, c.ColorBins, c.PeriodMinD, c.PeriodMaxD, c.LogPeriodBins, c.HeightEdgesPc)
 	if err != nil {
@@ -37,7 +38,7 @@ func CompareSpace(s *Scenario) (compare.Space, error) {
 }
 
 // Mapping turns [data.columns] into the catalog reader's column mapping.
-func Mapping(s *Scenario) catalog.Mapping {
+func Mapping(s *scenarios.Scenario) catalog.Mapping {
 	c := s.Data.Columns
 	return catalog.Mapping{Period: c.PeriodD, Color: c.BV, AbsMag: c.AbsMagV, Height: c.HeightPc, AppMag: c.AppMagV,
 		Parallax: c.ParallaxMas, RA: c.RADeg, Dec: c.DecDeg, L: c.LDeg, B: c.BDeg}
@@ -48,14 +49,14 @@ func Mapping(s *Scenario) catalog.Mapping {
 // history parameters of compare.free that name its parts: what `compare`
 // scores. (Hypotheses adds a burst part when the scenario has none; a
 // history as written must not get one.)
-func AsWritten(s *Scenario, ageEdgesGyr []float64) (compare.HistoryModel, error) {
-	h, err := BuildHistory(s)
+func AsWritten(s *scenarios.Scenario, ageEdgesGyr []float64) (compare.HistoryModel, error) {
+	h, err := History(s)
 	if err != nil {
 		return compare.HistoryModel{}, err
 	}
 	var free []compare.FreeParam
 	for _, f := range s.Compare.Free {
-		if IsNuisancePath(f.Path) {
+		if scenarios.IsNuisancePath(s, f.Path) {
 			continue
 		}
 		pieces := strings.SplitN(f.Path, ".", 3)
@@ -78,13 +79,13 @@ func AsWritten(s *Scenario, ageEdgesGyr []float64) (compare.HistoryModel, error)
 // non-history paths), each centred on the scenario's value, with its
 // gaussian prior's width (the published uncertainty where sigma is 0) or
 // a flat prior.
-func NuisanceParams(s *Scenario) ([]compare.NuisanceParam, error) {
+func NuisanceParams(s *scenarios.Scenario) ([]compare.NuisanceParam, error) {
 	var out []compare.NuisanceParam
 	for _, f := range s.Compare.Free {
-		if !IsNuisancePath(f.Path) {
+		if !scenarios.IsNuisancePath(s, f.Path) {
 			continue
 		}
-		nom, err := NuisanceNominal(s, f.Path)
+		nom, err := scenarios.NuisanceNominal(s, f.Path)
 		if err != nil {
 			return nil, err
 		}
@@ -92,7 +93,7 @@ func NuisanceParams(s *Scenario) ([]compare.NuisanceParam, error) {
 		if f.Prior == "gaussian" {
 			p.Sigma = f.Sigma
 			if p.Sigma == 0 {
-				p.Sigma, _ = defaultSigma(s, f.Path)
+				p.Sigma, _ = scenarios.DefaultSigma(s, f.Path)
 			}
 			// Steps of a prior width, but never beyond a quarter of the
 			// range: a wide prior on a short range still gets an
@@ -108,7 +109,7 @@ func NuisanceParams(s *Scenario) ([]compare.NuisanceParam, error) {
 // calibration to move within its free range: the largest color shift the
 // bounds of survey.color_offset_mag and survey.color_scale allow over the
 // color cut, plus 0.01 mag.
-func BankMargin(s *Scenario) model.BankMargin {
+func BankMargin(s *scenarios.Scenario) model.BankMargin {
 	off, scale := s.Survey.ColorOffsetMag, s.Survey.ColorScale
 	offLo, offHi, scLo, scHi := off, off, scale, scale
 	for _, f := range s.Compare.Free {
@@ -135,7 +136,8 @@ func BankMargin(s *Scenario) model.BankMargin {
 	return model.BankMargin{ColorMag: shift + 0.01}
 }
 
-func LikeOptions(s *Scenario) compare.LikeOptions {
+func LikeOptions(s *scenarios.Scenario) compare.LikeOptions {
+
 	return compare.LikeOptions{Normalisation: s.Compare.Normalisation, TemplateNoise: s.Compare.TemplateNoise}
 }
 
@@ -146,16 +148,16 @@ func LikeOptions(s *Scenario) compare.LikeOptions {
 // belong to the burst. A scenario without the burst part gets one (a
 // Gaussian burst at 0.6 Gyr, width 0.05 Gyr, 10 % of the mass) and, when
 // compare.free names none of its keys, the default burst parameters.
-func Hypotheses(s *Scenario, ageEdgesGyr []float64) (smooth, burst compare.HistoryModel, err error) {
+func Hypotheses(s *scenarios.Scenario, ageEdgesGyr []float64) (smooth, burst compare.HistoryModel, err error) {
 	name := s.Compare.BurstPart
 	withBurst := *s
-	withBurst.History.Parts = make(map[string]Part, len(s.History.Parts)+1)
+	withBurst.History.Parts = make(map[string]scenarios.Part, len(s.History.Parts)+1)
 	for k, v := range s.History.Parts {
 		withBurst.History.Parts[k] = v
 	}
 	free := s.Compare.Free
 	if _, ok := withBurst.History.Parts[name]; !ok {
-		withBurst.History.Parts[name] = Part{Kind: "burst", AgeGyr: min(0.6, s.History.MaxAgeGyr/2), WidthGyr: 0.05, MassFraction: 0.1}
+		withBurst.History.Parts[name] = scenarios.Part{Kind: "burst", Values: map[string]float64{"age_gyr": min(0.6, s.History.MaxAgeGyr/2), "width_gyr": 0.05, "mass_fraction": 0.1}}
 	}
 	prefix := "history." + name + "."
 	hasBurstFree := false
@@ -165,26 +167,26 @@ func Hypotheses(s *Scenario, ageEdgesGyr []float64) (smooth, burst compare.Histo
 		}
 	}
 	if !hasBurstFree {
-		free = append(append([]FreeParam(nil), free...), DefaultFree(name, s.History.MaxAgeGyr)...)
+		free = append(append([]scenarios.FreeParam(nil), free...), scenarios.DefaultFree(name, s.History.MaxAgeGyr)...)
 	}
 	withoutBurst := withBurst
-	withoutBurst.History.Parts = make(map[string]Part, len(withBurst.History.Parts))
+	withoutBurst.History.Parts = make(map[string]scenarios.Part, len(withBurst.History.Parts))
 	for k, v := range withBurst.History.Parts {
 		if k != name {
 			withoutBurst.History.Parts[k] = v
 		}
 	}
-	hb, err := BuildHistory(&withBurst)
+	hb, err := History(&withBurst)
 	if err != nil {
 		return smooth, burst, err
 	}
-	hs, err := BuildHistory(&withoutBurst)
+	hs, err := History(&withoutBurst)
 	if err != nil {
 		return smooth, burst, fmt.Errorf("the history without part %q: %w", name, err)
 	}
 	var fb, fs []compare.FreeParam
 	for _, f := range free {
-		if IsNuisancePath(f.Path) {
+		if scenarios.IsNuisancePath(s, f.Path) {
 			continue // fitted with both hypotheses: see NuisanceParams
 		}
 		p := compare.FreeParam{Name: strings.TrimPrefix(f.Path, "history."), Min: f.Min, Max: f.Max, LogPrior: f.Prior == "log-uniform"}

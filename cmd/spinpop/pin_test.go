@@ -1,0 +1,74 @@
+package main
+
+import (
+	"crypto/sha256"
+	"encoding/hex"
+	"encoding/json"
+	"io/fs"
+	"os"
+	"path/filepath"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"spinpop/scenarios"
+)
+
+// TestSimulateOutputsPinned holds simulate's outputs to the bytes they had
+// before the workflow moved out of package main (issue 12): the SHA-256 of
+// catalog.csv, and of manifest.json with the fields that depend on the
+// clock, the thread count and the temporary paths taken out. A refactor that
+// changes a single number of a catalogue star or of the manifest fails here.
+// The hashes were recorded with the code of commit eb2fcae, before the
+// refactor; the manifest's were recorded again on main at b56a058, whose
+// scenario format gained data.extension (so the resolved scenario in the
+// manifest changed there, not here; the catalogue did not), and again when
+// issue 8 added spin.period_scatter_dex, the empirical laws' coefficient
+// tables and the survey's color calibration and detection sharpness to the
+// format (the catalogue did not change). A deliberate
+// change of the model's numbers must update them, and say why.
+func TestSimulateOutputsPinned(t *testing.T) {
+	cases := []struct {
+		example, catalog, manifest string
+	}{
+		{"base.toml", "385fef692160fd46606b003827c224ce30cb3e2921ecdf779624b9980415ef30", "547cde9c4c17fe7404b18554ad07386b7674ff668a912c8cbd18885dc0ba3364"},
+		{"stall.toml", "ebbf8adbf4d89698d092ad9dd8e4736e6793ffa23d7e34eda59997415d01d641", "b9288f0a30b19642d98e8a06654d89f49f962ad78ed9b37432f5d807abbb541f"},
+	}
+	for _, c := range cases {
+		t.Run(c.example, func(t *testing.T) {
+			dir := t.TempDir()
+			for _, name := range []string{"base.toml", c.example} {
+				b, err := fs.ReadFile(scenarios.ExamplesFS(), name)
+				require.NoError(t, err)
+				require.NoError(t, os.WriteFile(filepath.Join(dir, name), b, 0o644))
+			}
+			sc := filepath.Join(dir, "pinned.toml")
+			require.NoError(t, os.WriteFile(sc, []byte("extends = \""+c.example+"\"\n[run]\nstars_generated = 300_000\n[output]\nplots = false\n"), 0o644))
+			for _, threads := range []string{"1", "2"} {
+				out := filepath.Join(dir, "out"+threads)
+				code, _, errs := runCLI("simulate", sc, "--out", out, "--seed", "12345", "--threads", threads)
+				require.Equal(t, 0, code, errs)
+				cat, err := os.ReadFile(filepath.Join(out, "catalog.csv"))
+				require.NoError(t, err)
+				man, err := os.ReadFile(filepath.Join(out, "manifest.json"))
+				require.NoError(t, err)
+				var m map[string]any
+				require.NoError(t, json.Unmarshal(man, &m))
+				for _, k := range []string{"seconds", "stars_per_second", "threads", "scenario", "scenario_files"} {
+					require.Contains(t, m, k)
+					delete(m, k)
+				}
+				norm, err := json.Marshal(m) // keys sorted, numbers as decoded
+				require.NoError(t, err)
+				assert.Equal(t, c.catalog, sha(cat), "catalog.csv of %s, %s threads", c.example, threads)
+				assert.Equal(t, c.manifest, sha(norm), "manifest.json of %s, %s threads", c.example, threads)
+			}
+		})
+	}
+}
+
+func sha(b []byte) string {
+	s := sha256.Sum256(b)
+	return hex.EncodeToString(s[:])
+}

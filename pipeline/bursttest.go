@@ -1,0 +1,138 @@
+package pipeline
+
+import (
+	"context"
+	"fmt"
+
+	"spinpop/compare"
+	"spinpop/internal/grid"
+)
+
+// BurstOutcome is the burst test with the burst-age profile and the height
+// check that go with it.
+type BurstOutcome struct {
+	Test    *compare.BurstResult
+	Profile []compare.ProfilePoint // ln L along the burst age; empty without one
+	Heights *compare.HeightResult
+}
+
+// BurstTest asks whether the catalog demands a burst: both hypotheses
+// fitted, the likelihood ratio calibrated by a parametric bootstrap of
+// replicates, the burst age profiled, and the young fraction checked
+// against height at the fitted burst age's gyrochrone.
+func (c *Comparison) BurstTest(ctx context.Context, replicates int, progress func(done, total int)) (*BurstOutcome, error) {
+	tr, err := compare.BurstTest(ctx, c.Likelihood, c.Smooth, c.Burst, compare.TestOptions{
+		Replicates: replicates, Seed: c.Scenario.Run.Seed, Workers: c.Workers, Progress: progress,
+		Nuisance: c.Nuisance, Stage: c.Stage,
+	})
+	if err != nil {
+		if ctx.Err() != nil {
+			return nil, fmt.Errorf("interrupted during the bootstrap; no test output was written")
+		}
+		return nil, err
+	}
+	out := &BurstOutcome{Test: tr}
+	if tr.AgeParam != "" {
+		var lo, hi float64
+		for _, f := range c.Burst.Free {
+			if f.Name == tr.AgeParam {
+				lo, hi = f.Min, f.Max
+			}
+		}
+		// The plot's profile holds nuisance parameters at the burst fit's
+		// values; the verdict's interval refits them.
+		if err := c.Likelihood.UseFit(tr.Burst); err != nil {
+			return nil, err
+		}
+		if out.Profile, _, err = compare.Profile(c.Likelihood, c.Burst, tr.AgeParam, grid.Linspace(lo, hi, 61)); err != nil {
+			return nil, err
+		}
+	}
+	split := c.SplitAge(0, tr.Burst)
+	if out.Heights, err = c.HeightCheck(split, tr.Smooth, tr.Burst); err != nil {
+		return nil, err
+	}
+	return out, nil
+}
+
+// Report is every number of the test, NaN-free for encoding/json, with the
+// names of the files written (outputs).
+func (r *BurstOutcome) Report(c *Comparison, outputs []string) map[string]any {
+	t := r.Test
+	fit := func(f compare.FitResult) map[string]any {
+		return FitReport(f)
+	}
+	prof := make([][2]float64, 0, len(r.Profile))
+	for _, q := range r.Profile {
+		prof = append(prof, [2]float64{q.Value, Finite(q.LogL)})
+	}
+	return map[string]any{
+		"tool": "spinpop", "version": Version, "scenario": c.Source, "scenario_sha256": c.Resolved.Hash(),
+		"data":   c.DataSummary(),
+		"smooth": fit(t.Smooth), "burst": fit(t.Burst),
+		"delta_log_l": Finite(t.DeltaLogL), "lr": Finite(t.LR), "n": t.N,
+		"k_smooth": t.KSmooth, "k_burst": t.KBurst,
+		"aic_smooth": Finite(t.AICSmooth), "aic_burst": Finite(t.AICBurst), "bic_smooth": Finite(t.BICSmooth), "bic_burst": Finite(t.BICBurst),
+		"bootstrap_replicates": t.Replicates, "lr_replicates": FiniteAll(t.LRReplicates),
+		"p_value": Finite(t.PValue), "p_value_randomised": Finite(t.PValueRandomised), "significance_sigma": Finite(t.Significance),
+		"chernoff_p": Finite(t.ChernoffP), "chernoff_note": t.ChernoffNote,
+		"log_bayes_factor": Finite(t.LogBayesFactor), "evidence_params": t.EvidenceParams, "has_evidence": t.HasEvidence, "evidence_note": t.EvidenceNote,
+		"age_param": t.AgeParam, "age_interval": t.AgeInterval, "age_profile": prof,
+		"strength": t.Strength, "strength_reason": t.StrengthReason, "calibration": t.Calibration, "verdict": t.Verdict,
+		"adequacy_smooth": AdequacyReport(t.AdequacySmooth), "adequacy_burst": AdequacyReport(t.AdequacyBurst),
+		"dispersion": Finite(t.Dispersion), "p_value_quasi": Finite(t.PValueQuasi),
+		"nuisance_params": c.Nuisance.Names(),
+		"height_check": HeightReport(r.Heights),
+		"outputs":      outputs,
+	}
+}
+
+// FitReport is one fit's numbers, NaN-free: its parameters by scenario
+// path (history and nuisance), ln L, the nuisance constraint terms, how
+// many template expansions and likelihood evaluations it took.
+func FitReport(f compare.FitResult) map[string]any {
+	p := map[string]float64{}
+	for i, n := range f.Names {
+		p["history."+n] = f.Theta[i]
+	}
+	for i, n := range f.NuisanceNames {
+		p[n] = f.Nuisance[i]
+	}
+	return map[string]any{"params": p, "log_l": Finite(f.LogL), "log_prior": Finite(f.LogPrior), "expansions": f.Rounds,
+		"converged": f.Converged, "evaluations": f.Evaluations, "age_bin_weights": FiniteAll(f.Weights)}
+}
+
+// AdequacyReport is a goodness of fit's numbers, NaN-free.
+func AdequacyReport(a compare.Adequacy) map[string]any {
+	return map[string]any{
+		"deviance": Finite(a.Deviance), "replicate_mean": Finite(a.ReplicateMean), "replicate_sd": Finite(a.ReplicateSD),
+		"p_value": Finite(a.PValue), "p_value_normal": Finite(a.PValueNormal), "replicates_exceeding": a.Exceeded,
+		"dispersion": Finite(a.Dispersion), "excess": Finite(a.Excess), "replicates": a.Replicates, "regions": a.Regions,
+	}
+}
+
+// HeightReport is the height check's numbers, NaN-free for encoding/json.
+func HeightReport(h *compare.HeightResult) map[string]any {
+	hyp := map[string]any{}
+	for _, x := range h.Hypotheses {
+		hyp[x.Name] = map[string]any{"young_fraction": FiniteAll(x.Fraction), "log_l": Finite(x.LogL)}
+	}
+	return map[string]any{
+		"split_age_gyr": h.SplitAgeGyr, "z_edges_pc": FiniteAll(h.ZEdgesPc), "young": h.Young, "total": h.Total,
+		"fraction": FiniteAll(h.Fraction), "lo68": FiniteAll(h.Lo68), "hi68": FiniteAll(h.Hi68), "hypotheses": hyp,
+	}
+}
+
+// Heights fits both hypotheses and checks the young fraction against
+// height at the gyrochrone of splitAgeGyr (0: see SplitAge).
+func (c *Comparison) Heights(ctx context.Context, splitAgeGyr float64) (*compare.HeightResult, error) {
+	fs, err := c.Fit(ctx, c.Smooth, nil)
+	if err != nil {
+		return nil, err
+	}
+	fb, err := c.Fit(ctx, c.Burst, fs.Nuisance)
+	if err != nil {
+		return nil, err
+	}
+	return c.HeightCheck(c.SplitAge(splitAgeGyr, fb), fs, fb)
+}

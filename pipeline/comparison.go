@@ -1,0 +1,306 @@
+package pipeline
+
+import (
+	"context"
+	"fmt"
+	"io"
+	"path/filepath"
+	"time"
+
+	"spinpop/assemble"
+	"spinpop/compare"
+	"spinpop/model"
+	"spinpop/model/spin"
+	"spinpop/scenarios"
+)
+
+// Comparison is everything the comparison jobs share: the scenario's run
+// objects, the templates, the observed catalog and its likelihood, and the
+// two hypotheses of the burst test.
+type Comparison struct {
+	Resolved  *scenarios.Resolved
+	Scenario  *scenarios.Scenario
+	Source    string // how the user named the scenario
+	Built     *assemble.Built
+	Space     compare.Space
+	Templates *compare.Templates
+	// TemplatesReused says the templates came from the cache, in
+	// TemplateFile.
+	TemplatesReused bool
+	TemplateFile    string
+	Observed        *compare.Observed
+	Likelihood      *compare.Likelihood
+	Smooth, Burst   compare.HistoryModel
+	// Nuisance holds the parameters of the physics and the selection in
+	// compare.free (nil when there are none); Templates then holds the
+	// templates re-observed at their scenario values, and every fit moves
+	// them with the history (compare.FitJoint).
+	Nuisance *compare.Nuisance
+	// Stage, if set, is told what long fits are doing (one line per
+	// expansion of the templates), for progress reports.
+	Stage        func(msg string)
+	Workers      int
+	SetupSeconds float64
+	// Data stars left out because no template star reached their
+	// (color, period) cell, and how many such cells there were.
+	DroppedStars, DroppedBins int
+}
+
+// ComparisonOptions tune SetupComparison.
+type ComparisonOptions struct {
+	Source  string // how the user named the scenario, for reports and errors
+	Workers int    // 0: GOMAXPROCS; results do not depend on it
+	// TemplateDir is the folder of cached templates; "" or "none" builds
+	// them afresh and caches nothing.
+	TemplateDir string
+	// WriteRejected, if set, is handed a function that writes the catalog
+	// rows that could not be used (CSV); the caller decides where they go.
+	WriteRejected func(write func(w io.Writer) error) error
+	// TemplateProgress, if set, is told how many template stars are done.
+	TemplateProgress func(done, total int64)
+}
+
+// RequireData checks that a scenario names an observed catalog.
+func RequireData(res *scenarios.Resolved, source string) error {
+	if res.Scenario.Data.File == "" {
+		return InputError{fmt.Errorf("%s has no [data] section: name an observed catalog with data.file and map its columns in [data.columns] (see spinpop examples fit)", source)}
+	}
+	return nil
+}
+
+// SetupComparison builds or reuses the scenario's templates, reads and
+// cuts its observed catalog and prepares the likelihood and the
+// hypotheses.
+func SetupComparison(ctx context.Context, res *scenarios.Resolved, opts ComparisonOptions) (*Comparison, error) {
+	start := time.Now()
+	arg := opts.Source
+	if err := RequireData(res, arg); err != nil {
+		return nil, err
+	}
+	s := &res.Scenario
+	workers := opts.Workers
+	if workers <= 0 {
+		workers = defaultWorkers()
+	}
+	c := &Comparison{Resolved: res, Scenario: s, Source: arg, Workers: workers}
+	var err error
+	if c.Built, err = Build(s, arg); err != nil {
+		return nil, err
+	}
+	if c.Space, err = assemble.Space(s); err != nil {
+		return nil, InputError{fmt.Errorf("%s: %w", arg, err)}
+	}
+	key, err := assemble.TemplateKey(res)
+	if err != nil {
+		return nil, err
+	}
+	nuParams, err := assemble.NuisanceParams(s)
+	if err != nil {
+		return nil, InputError{fmt.Errorf("%s: %w", arg, err)}
+	}
+	var margin *model.BankMargin
+	if len(nuParams) > 0 {
+		m := assemble.BankMargin(s)
+		margin = &m
+	}
+	build := func() (*compare.Templates, error) {
+		ints := make([]float64, len(c.Built.AgeEdgesGyr)-1)
+		for k := range ints {
+			ints[k] = c.Built.Sampler.BinIntegral(k)
+		}
+		t, err := compare.BuildTemplates(ctx, c.Built.Population, ints, c.Built.AgeEdgesGyr, c.Space, compare.TemplateOptions{
+			Stars: s.Compare.TemplateStars, Seed: s.Run.Seed, ChunkStars: s.Run.ChunkStars, Workers: c.Workers,
+			Progress: opts.TemplateProgress, Bank: margin,
+		})
+		if err != nil {
+			return nil, err
+		}
+		t.Key = key
+		return t, nil
+	}
+	switch {
+	case margin != nil:
+		// Nuisance parameters need the template run's stars, which the
+		// cache does not keep: the run is made again.
+		c.Templates, err = build()
+	case opts.TemplateDir == "" || opts.TemplateDir == "none":
+		c.Templates, err = build()
+	default:
+		c.Templates, c.TemplatesReused, err = compare.Cached(opts.TemplateDir, key, build)
+		c.TemplateFile = filepath.Join(opts.TemplateDir, key+".tpl")
+	}
+	if err != nil {
+		if ctx.Err() != nil {
+			return nil, fmt.Errorf("interrupted while building templates; nothing was written")
+		}
+		return nil, fmt.Errorf("templates: %w", err)
+	}
+	if margin != nil {
+		if err := c.setNuisance(ctx, nuParams, key); err != nil {
+			return nil, err
+		}
+	}
+
+	spec := compare.DataSpec{
+		Path: res.DataPath, SHA256: s.Data.SHA256, Mapping: assemble.Mapping(s), SunZPc: s.Disk.SunHeightPc,
+		Format: s.Data.Format, Extension: s.Data.Extension,
+		Cuts: assemble.Cuts(s), Relations: c.Built.Relations,
+		Open: func() (io.ReadCloser, error) {
+			f, err := res.OpenData()
+			if err != nil {
+				return nil, err
+			}
+			return f, nil
+		},
+	}
+	read := func(w io.Writer) error {
+		var err error
+		c.Observed, err = compare.ReadObserved(spec, c.Space, w)
+		return err
+	}
+	if opts.WriteRejected != nil {
+		err = opts.WriteRejected(read)
+	} else {
+		err = read(io.Discard)
+	}
+	if err != nil {
+		return nil, InputError{err}
+	}
+	if c.Observed.N == 0 {
+		return nil, InputError{fmt.Errorf("%s: no star of the catalog passes the cuts and lies in the comparison space (cut away: %v; unusable: %v)", res.DataPath, c.Observed.CutAway, c.Observed.Rejected)}
+	}
+	c.DroppedStars, c.DroppedBins = c.Observed.DropUnreached(c.Templates)
+	if c.Likelihood, err = compare.NewLikelihood(c.Templates, c.Observed.Counts, assemble.LikeOptions(s)); err != nil {
+		return nil, InputError{fmt.Errorf("%s: %w", arg, err)}
+	}
+	if c.Smooth, c.Burst, err = assemble.Hypotheses(s, c.Built.AgeEdgesGyr); err != nil {
+		return nil, InputError{fmt.Errorf("%s: %w", arg, err)}
+	}
+	c.SetupSeconds = time.Since(start).Seconds()
+	return c, nil
+}
+
+// GyrochroneAt returns the scenario law's gyrochrone of one age as a
+// function of B−V, for the height check's young/old split.
+func (c *Comparison) GyrochroneAt(ageGyr float64) func(bv float64) (float64, bool) {
+	return func(bv float64) (float64, bool) {
+		m, ok := c.Built.Relations.MassFromBV(bv)
+		if !ok {
+			return 0, false
+		}
+		pt, _ := c.Built.Relations.At(m)
+		return model.GyrochronePeriod(c.Built.Law, spin.Star{MassMsun: m, AgeGyr: ageGyr, BV: bv, TeffK: pt.TeffK})
+	}
+}
+
+// ReportHead opens every report of a comparison: what ran, on which
+// scenario, and the catalog as read.
+type ReportHead struct {
+	Tool         string      `json:"tool"`
+	Version      string      `json:"version"`
+	Scenario     string      `json:"scenario"`
+	ScenarioName string      `json:"scenario_name"`
+	ScenarioHash string      `json:"scenario_sha256"`
+	Data         DataSummary `json:"data"`
+}
+
+func (c *Comparison) reportHead() ReportHead {
+	return ReportHead{Tool: "spinpop", Version: Version, Scenario: c.Source, ScenarioName: c.Scenario.Name,
+		ScenarioHash: c.Resolved.Hash(), Data: c.DataSummary()}
+}
+
+// DataSummary describes the catalog as read and the templates it is
+// compared with.
+type DataSummary struct {
+	File       string         `json:"file"`
+	SHA256     string         `json:"sha256"`
+	Rows       int            `json:"rows"`
+	Compared   int            `json:"stars_compared"`
+	Unusable   map[string]int `json:"unusable_rows"`
+	CutAway    map[string]int `json:"cut_away"`
+	Templates  string         `json:"templates_file,omitempty"`
+	TplReused  bool           `json:"templates_reused"`
+	TplStars   int64          `json:"template_stars"`
+	AgeBins    int            `json:"age_bins"`
+	SpaceBins  int            `json:"comparison_bins"`
+	SetupSecs  float64        `json:"setup_seconds"`
+	Dropped    int            `json:"stars_in_cells_no_template_reached"`
+	ScenarioSH string         `json:"scenario_sha256"`
+}
+
+// DataSummary describes the catalog as read.
+func (c *Comparison) DataSummary() DataSummary {
+	return DataSummary{
+		File: c.Resolved.DataPath, SHA256: c.Observed.SHA256, Rows: c.Observed.Rows, Compared: c.Observed.N, Unusable: c.Observed.Rejected, CutAway: c.Observed.CutAway,
+		Templates: c.TemplateFile, TplReused: c.TemplatesReused, TplStars: c.Templates.StarsDrawn, AgeBins: c.Templates.NumAgeBins(),
+		SpaceBins: c.Space.NumColorPeriod(), SetupSecs: c.SetupSeconds, ScenarioSH: c.Resolved.Hash(), Dropped: c.DroppedStars,
+	}
+}
+
+// SplitAge is the age whose gyrochrone splits young from old stars: the
+// caller's choice (flag > 0), else compare.split_age_gyr, else the fitted
+// burst age, else 0.6 Gyr (the trade's gap; common practice).
+func (c *Comparison) SplitAge(flag float64, burst compare.FitResult) float64 {
+	if flag > 0 {
+		return flag
+	}
+	if c.Scenario.Compare.SplitAgeGyr > 0 {
+		return c.Scenario.Compare.SplitAgeGyr
+	}
+	for i, n := range burst.Names {
+		if n == c.Scenario.Compare.BurstPart+".age_gyr" {
+			return burst.Theta[i]
+		}
+	}
+	return 0.6
+}
+
+// HeightCheck compares the young fraction against |z| with the two fitted
+// hypotheses of the burst test.
+func (c *Comparison) HeightCheck(split float64, smooth, burst compare.FitResult) (*compare.HeightResult, error) {
+	return compare.HeightCheckFits(c.Templates, c.Observed, split, c.GyrochroneAt(split), map[string]compare.Prediction{
+		"smooth history (fit)": compare.PredictionOf(smooth, c.Templates),
+		"with burst (fit)":     compare.PredictionOf(burst, c.Templates),
+	}, c.perColor())
+}
+
+// perColor reports a likelihood conditional on colour.
+func (c *Comparison) perColor() bool {
+	n := c.Likelihood.Options().Normalisation
+	return n == compare.NormPerColor || n == compare.NormPerColorHeight
+}
+
+// Fit fits a hypothesis with the scenario's seed, with the nuisance
+// parameters when there are any (starting from nuStart, nil for their
+// scenario values).
+func (c *Comparison) Fit(ctx context.Context, m compare.HistoryModel, nuStart []float64) (compare.FitResult, error) {
+	return compare.FitJoint(ctx, c.Likelihood, m, c.Nuisance, compare.FitOptions{Seed: c.Scenario.Run.Seed, NuisanceStart: nuStart, Stage: c.Stage})
+}
+
+// setNuisance makes the comparison's nuisance model: the template run's
+// bank re-observed through the scenario with the nuisance keys set
+// (assemble.ObservingPopulation), and templates re-observed at the
+// scenario's values as the starting templates.
+func (c *Comparison) setNuisance(ctx context.Context, params []compare.NuisanceParam, key string) error {
+	scen := *c.Scenario
+	base := c.Built.Population
+	c.Nuisance = &compare.Nuisance{Params: params, Source: &compare.BankObserver{
+		Bank: c.Templates.Bank, Space: c.Space, AgeEdgesGyr: c.Built.AgeEdgesGyr,
+		BaseFractionScale: scen.Stars.BinaryFractionScale, Workers: c.Workers,
+		Apply: func(values []float64) (*model.Population, error) {
+			s2 := scen
+			for j, p := range params {
+				if !scenarios.SetAt(&s2, p.Name, values[j]) {
+					return nil, fmt.Errorf("nuisance parameter %s is not a number key of the scenario", p.Name)
+				}
+			}
+			return assemble.ObservingPopulation(&s2, base)
+		}}}
+	nominal, err := c.Nuisance.Templates(ctx, c.Nuisance.Nominal())
+	if err != nil {
+		return InputError{fmt.Errorf("%s: %w", c.Source, err)}
+	}
+	nominal.Key = key
+	c.Templates = nominal
+	return nil
+}
