@@ -82,8 +82,8 @@ func (r *BurstOutcome) Report(c *Comparison, outputs []string) map[string]any {
 		"adequacy_smooth": AdequacyReport(t.AdequacySmooth), "adequacy_burst": AdequacyReport(t.AdequacyBurst),
 		"dispersion": Finite(t.Dispersion), "p_value_quasi": Finite(t.PValueQuasi),
 		"nuisance_params": c.Nuisance.Names(),
-		"height_check": HeightReport(r.Heights),
-		"outputs":      outputs,
+		"height_check":    HeightReport(r.Heights),
+		"outputs":         outputs,
 	}
 }
 

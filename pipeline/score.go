@@ -16,17 +16,17 @@ import (
 // binned likelihood, Pearson residuals, and two-sample tests of the
 // unbinned marginals against a synthetic catalog of the scenario.
 type Score struct {
-	Label  string    // "as written" or "fitted"
-	Theta  []float64 // the free history parameters of the history as written
-	Names  []string  // their names ("burst.age_gyr")
+	Label string    // "as written" or "fitted"
+	Theta []float64 // the free history parameters of the history as written
+	Names []string  // their names ("burst.age_gyr")
 	// Nuisance and NuisanceNames are the fitted nuisance parameters (their
 	// scenario values as written).
 	Nuisance      []float64
 	NuisanceNames []string
-	LogL   float64
-	Counts []float64 // the data per comparison cell
-	Mu     []float64 // the model's expectation per cell
-	Resid  []float64 // Pearson residuals per cell
+	LogL          float64
+	Counts        []float64 // the data per comparison cell
+	Mu            []float64 // the model's expectation per cell
+	Resid         []float64 // Pearson residuals per cell
 	// PearsonChi2 is Σ residual² over the NumBins cells with a model
 	// expectation.
 	PearsonChi2 float64
