@@ -235,15 +235,16 @@ func History(s *scenarios.Scenario) (*sfh.History, error) {
 
 // Law builds the scenario's spin-down law from the law registry
 // (spin.Lookup), with its intrinsic period scatter (spin.period_scatter_dex)
-// when there is one; the relation table supplies T_eff by mass.
+// and period scale (spin.period_scale) when they are not 0 and 1; the
+// relation table supplies T_eff by mass.
 func Law(s *scenarios.Scenario, rel *model.Relations) (spin.Law, error) {
 	law, err := plainLaw(s, rel)
-	if err != nil || s.Spin.PeriodScatterDex == 0 {
+	if err != nil || (s.Spin.PeriodScatterDex == 0 && s.Spin.PeriodScale == 1) {
 		return law, err
 	}
-	sc := spin.Scattered{Law: law, Dex: s.Spin.PeriodScatterDex}
+	sc := spin.Scattered{Law: law, Dex: s.Spin.PeriodScatterDex, Scale: s.Spin.PeriodScale}
 	if err := sc.Validate(); err != nil {
-		return nil, fmt.Errorf("spin.period_scatter_dex: %w", err)
+		return nil, fmt.Errorf("spin.period_scatter_dex / period_scale: %w", err)
 	}
 	return sc, nil
 }

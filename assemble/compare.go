@@ -82,8 +82,8 @@ func AsWritten(s *scenarios.Scenario, ageEdgesGyr []float64) (compare.HistoryMod
 func NuisanceParams(s *scenarios.Scenario) ([]compare.NuisanceParam, error) {
 	var out []compare.NuisanceParam
 	for _, f := range s.Compare.Free {
-		if !scenarios.IsNuisancePath(s, f.Path) {
-			continue
+		if !scenarios.IsNuisancePath(s, f.Path) || !scenarios.ActiveNuisance(s, f.Path) {
+			continue // a history parameter, or another law's option
 		}
 		nom, err := scenarios.NuisanceNominal(s, f.Path)
 		if err != nil {

@@ -25,6 +25,9 @@ type BankObserver struct {
 	// the bank.
 	BaseFractionScale float64
 	Workers           int
+	// Mask, when not nil, marks (color, period) cells left out of the
+	// comparison (Templates.ZeroCells), emptied in every set of templates.
+	Mask []bool
 }
 
 // Observe implements Observer.
@@ -48,12 +51,16 @@ func (o *BankObserver) Observe(ctx context.Context, values []float64) (*Template
 	for _, d := range o.Bank.DrawnPerBin {
 		drawn += d
 	}
-	return &Templates{
+	t := &Templates{
 		Space:       o.Space,
 		AgeEdgesGyr: append([]float64(nil), o.AgeEdgesGyr...),
 		Counts:      counts,
 		Var:         vars,
 		StarsDrawn:  drawn,
 		DrawnPerBin: append([]int64(nil), o.Bank.DrawnPerBin...),
-	}, nil
+	}
+	if o.Mask != nil {
+		t.ZeroCells(o.Mask)
+	}
+	return t, nil
 }

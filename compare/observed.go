@@ -151,3 +151,27 @@ func (obs *Observed) DropUnreached(tpl *Templates) (stars, cells int) {
 	obs.N -= stars
 	return stars, cells
 }
+
+// DropCells removes from the data counts the (color, period) cells that
+// mask marks (NumColorPeriod values, true = left out), and returns how many
+// stars and non-empty cells it removed; see Templates.ZeroCells, which
+// removes the same cells from the model.
+func (obs *Observed) DropCells(sp Space, mask []bool) (stars, cells int) {
+	nz := sp.NumHeight()
+	for cell, out := range mask {
+		if !out {
+			continue
+		}
+		n := 0
+		for z := 0; z < nz; z++ {
+			n += int(obs.Counts[cell*nz+z])
+			obs.Counts[cell*nz+z] = 0
+		}
+		if n > 0 {
+			stars += n
+			cells++
+		}
+	}
+	obs.N -= stars
+	return stars, cells
+}

@@ -243,3 +243,46 @@ func (t *Templates) Totals() []float64 {
 	}
 	return out
 }
+
+// ZeroCells empties the (color, period) cells that mask marks
+// (NumColorPeriod values, true = left out) in every age bin, counts and
+// variances: the cells a comparison leaves out (Observed.DropCells).
+func (t *Templates) ZeroCells(mask []bool) {
+	sp := t.Space
+	nb, nz := sp.NumBins(), sp.NumHeight()
+	for k := range t.NumAgeBins() {
+		for cell, out := range mask {
+			if !out {
+				continue
+			}
+			for z := 0; z < nz; z++ {
+				t.Counts[k*nb+cell*nz+z] = 0
+				if t.Var != nil {
+					t.Var[k*nb+cell*nz+z] = 0
+				}
+			}
+		}
+	}
+}
+
+// YoungMask marks the (color, period) cells of sp whose periods all lie
+// below gyro(B−V) by more than marginDex (log10), at the cell's colour
+// centre; colours where gyro has no period are not masked. With gyro the
+// gyrochrone of the youngest age a spin-down law describes, these are the
+// cells only stars younger than that reach: in a real or foreign catalog
+// they hold fast rotators no model of the slow sequence describes.
+func YoungMask(sp Space, gyro func(bv float64) (periodD float64, ok bool), marginDex float64) []bool {
+	mask := make([]bool, sp.NumColorPeriod())
+	np := sp.NumLogPeriod()
+	for c := range sp.NumColor() {
+		p, ok := gyro(sp.ColorCenter(c))
+		if !ok || !(p > 0) {
+			continue
+		}
+		limit := math.Log10(p) - marginDex
+		for q := range np {
+			mask[c*np+q] = sp.LogPeriodEdges[q+1] <= limit
+		}
+	}
+	return mask
+}

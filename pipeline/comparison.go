@@ -29,6 +29,7 @@ type Comparison struct {
 	TemplatesReused bool
 	TemplateFile    string
 	Observed        *compare.Observed
+	DataFile        string // the catalog file read
 	Likelihood      *compare.Likelihood
 	Smooth, Burst   compare.HistoryModel
 	// Nuisance holds the parameters of the physics and the selection in
@@ -44,6 +45,11 @@ type Comparison struct {
 	// Data stars left out because no template star reached their
 	// (color, period) cell, and how many such cells there were.
 	DroppedStars, DroppedBins int
+	// Mask marks the (color, period) cells left out below the gyrochrone
+	// of compare.mask_below_age_gyr (nil without a mask), in data and model
+	// alike; MaskedStars data stars fell there.
+	Mask                    []bool
+	MaskedStars, MaskedBins int
 }
 
 // ComparisonOptions tune SetupComparison.
@@ -135,6 +141,10 @@ func SetupComparison(ctx context.Context, res *scenarios.Resolved, opts Comparis
 		}
 		return nil, fmt.Errorf("templates: %w", err)
 	}
+	if s.Compare.MaskAgeGyr > 0 {
+		c.Mask = compare.YoungMask(c.Space, c.GyrochroneAt(s.Compare.MaskAgeGyr), s.Compare.MaskMarginDex)
+		c.Templates.ZeroCells(c.Mask)
+	}
 	if margin != nil {
 		if err := c.setNuisance(ctx, nuParams, key); err != nil {
 			return nil, err
@@ -153,31 +163,65 @@ func SetupComparison(ctx context.Context, res *scenarios.Resolved, opts Comparis
 			return f, nil
 		},
 	}
-	read := func(w io.Writer) error {
-		var err error
-		c.Observed, err = compare.ReadObserved(spec, c.Space, w)
-		return err
-	}
-	if opts.WriteRejected != nil {
-		err = opts.WriteRejected(read)
-	} else {
-		err = read(io.Discard)
-	}
-	if err != nil {
-		return nil, InputError{err}
-	}
-	if c.Observed.N == 0 {
-		return nil, InputError{fmt.Errorf("%s: no star of the catalog passes the cuts and lies in the comparison space (cut away: %v; unusable: %v)", res.DataPath, c.Observed.CutAway, c.Observed.Rejected)}
-	}
-	c.DroppedStars, c.DroppedBins = c.Observed.DropUnreached(c.Templates)
-	if c.Likelihood, err = compare.NewLikelihood(c.Templates, c.Observed.Counts, assemble.LikeOptions(s)); err != nil {
-		return nil, InputError{fmt.Errorf("%s: %w", arg, err)}
+	c.DataFile = res.DataPath
+	if err := c.readData(spec, opts.WriteRejected); err != nil {
+		return nil, err
 	}
 	if c.Smooth, c.Burst, err = assemble.Hypotheses(s, c.Built.AgeEdgesGyr); err != nil {
 		return nil, InputError{fmt.Errorf("%s: %w", arg, err)}
 	}
 	c.SetupSeconds = time.Since(start).Seconds()
 	return c, nil
+}
+
+// readData reads, cuts and bins the catalog of spec, leaves out the masked
+// and unreached cells, and makes the likelihood.
+func (c *Comparison) readData(spec compare.DataSpec, writeRejected func(write func(w io.Writer) error) error) error {
+	read := func(w io.Writer) error {
+		var err error
+		c.Observed, err = compare.ReadObserved(spec, c.Space, w)
+		return err
+	}
+	var err error
+	if writeRejected != nil {
+		err = writeRejected(read)
+	} else {
+		err = read(io.Discard)
+	}
+	if err != nil {
+		return InputError{err}
+	}
+	if c.Observed.N == 0 {
+		return InputError{fmt.Errorf("%s: no star of the catalog passes the cuts and lies in the comparison space (cut away: %v; unusable: %v)", spec.Path, c.Observed.CutAway, c.Observed.Rejected)}
+	}
+	if c.Mask != nil {
+		c.MaskedStars, c.MaskedBins = c.Observed.DropCells(c.Space, c.Mask)
+	}
+	c.DroppedStars, c.DroppedBins = c.Observed.DropUnreached(c.Templates)
+	if c.Likelihood, err = compare.NewLikelihood(c.Templates, c.Observed.Counts, assemble.LikeOptions(c.Scenario)); err != nil {
+		return InputError{fmt.Errorf("%s: %w", c.Source, err)}
+	}
+	return nil
+}
+
+// WithCatalog returns the comparison of the same scenario with another
+// catalog file, read through the scenario's column mapping and cuts
+// (format by content; no checksum): the templates, the stored template
+// stars and the nuisance model are shared, so scoring many catalogs — a
+// set of mocks, a catalog split in halves — costs one template run.
+func (c *Comparison) WithCatalog(path string) (*Comparison, error) {
+	d := *c
+	d.Observed, d.Likelihood = nil, nil
+	d.DataFile = path
+	s := c.Scenario
+	spec := compare.DataSpec{
+		Path: path, Mapping: assemble.Mapping(s), SunZPc: s.Disk.SunHeightPc,
+		Format: "auto", Cuts: assemble.Cuts(s), Relations: c.Built.Relations,
+	}
+	if err := d.readData(spec, nil); err != nil {
+		return nil, err
+	}
+	return &d, nil
 }
 
 // GyrochroneAt returns the scenario law's gyrochrone of one age as a
@@ -225,15 +269,18 @@ type DataSummary struct {
 	SpaceBins  int            `json:"comparison_bins"`
 	SetupSecs  float64        `json:"setup_seconds"`
 	Dropped    int            `json:"stars_in_cells_no_template_reached"`
+	Masked     int            `json:"stars_below_youngest_gyrochrone"`
+	MaskAgeGyr float64        `json:"mask_below_age_gyr"`
 	ScenarioSH string         `json:"scenario_sha256"`
 }
 
 // DataSummary describes the catalog as read.
 func (c *Comparison) DataSummary() DataSummary {
 	return DataSummary{
-		File: c.Resolved.DataPath, SHA256: c.Observed.SHA256, Rows: c.Observed.Rows, Compared: c.Observed.N, Unusable: c.Observed.Rejected, CutAway: c.Observed.CutAway,
+		File: c.DataFile, SHA256: c.Observed.SHA256, Rows: c.Observed.Rows, Compared: c.Observed.N, Unusable: c.Observed.Rejected, CutAway: c.Observed.CutAway,
 		Templates: c.TemplateFile, TplReused: c.TemplatesReused, TplStars: c.Templates.StarsDrawn, AgeBins: c.Templates.NumAgeBins(),
 		SpaceBins: c.Space.NumColorPeriod(), SetupSecs: c.SetupSeconds, ScenarioSH: c.Resolved.Hash(), Dropped: c.DroppedStars,
+		Masked: c.MaskedStars, MaskAgeGyr: c.Scenario.Compare.MaskAgeGyr,
 	}
 }
 
@@ -286,7 +333,7 @@ func (c *Comparison) setNuisance(ctx context.Context, params []compare.NuisanceP
 	base := c.Built.Population
 	c.Nuisance = &compare.Nuisance{Params: params, Source: &compare.BankObserver{
 		Bank: c.Templates.Bank, Space: c.Space, AgeEdgesGyr: c.Built.AgeEdgesGyr,
-		BaseFractionScale: scen.Stars.BinaryFractionScale, Workers: c.Workers,
+		BaseFractionScale: scen.Stars.BinaryFractionScale, Workers: c.Workers, Mask: c.Mask,
 		Apply: func(values []float64) (*model.Population, error) {
 			s2 := scen
 			for j, p := range params {

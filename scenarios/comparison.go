@@ -129,6 +129,8 @@ func (v *decoder) validateCompare(s *Scenario) {
 		v.inRange("compare.split_age_gyr", c.SplitAgeGyr, 0, true, s.History.MaxAgeGyr, true,
 			"0 means the fitted burst age; otherwise a lookback age within the history")
 	}
+	v.inRange("compare.mask_below_age_gyr", c.MaskAgeGyr, 0, true, s.History.MaxAgeGyr, true, "0 = no mask")
+	v.inRange("compare.mask_margin_dex", c.MaskMarginDex, 0, true, 1, true, "")
 	v.burstPart(s)
 	v.validateFree(s)
 }

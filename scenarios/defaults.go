@@ -58,6 +58,7 @@ abs_mag_per_dex = 1.0            # [memory]
 law = "barnes2007"
 turnover = "wright2018"
 period_scatter_dex = 0.0
+period_scale = 1.0
 
 [spin.spots]                     # [memory] all four values, approximate
 enabled = true
@@ -129,6 +130,8 @@ template_noise = "barlow-beeston-lite"
 bootstrap = 1000
 split_age_gyr = 0.0
 burst_part = "burst"
+mask_below_age_gyr = 0.0
+mask_margin_dex = 0.1
 `
 
 // defaultLayer is a fresh copy of the bottom layer: builtinDefaults

@@ -107,14 +107,26 @@ func TestFitExample(t *testing.T) {
 	assert.Empty(t, burst.DataPath, "no data named, none resolved")
 	assert.Nil(t, burst.DataFS)
 
-	// The [compare] values written out in fit.toml are the defaults: burst,
-	// which sets none, resolves to the same, free list aside.
+	// The [compare] values written out in fit.toml are the defaults but for
+	// the robust comparison it asks for (per-color normalisation, the
+	// young mask): burst, which sets none, resolves to the same, free list
+	// aside.
 	fc, bc := fit.Scenario.Compare, burst.Scenario.Compare
-	require.Len(t, fc.Free, 4)
+	require.GreaterOrEqual(t, len(fc.Free), 10)
 	assert.Equal(t, DefaultFree("burst", 10), bc.Free, "burst.toml gets the default free list")
 	assert.Equal(t, bc.Free, fc.Free[:3], "fit.toml spells the default list out")
 	assert.Equal(t, FreeParam{Path: "history.decline.timescale_gyr", Min: 2, Max: 20, Prior: "log-uniform"}, fc.Free[3])
+	nuisance := 0
+	for _, f := range fc.Free[4:] {
+		if IsNuisancePath(&fit.Scenario, f.Path) {
+			nuisance++
+		}
+	}
+	assert.GreaterOrEqual(t, nuisance, 6, "fit.toml frees at least six nuisance parameters")
+	assert.Equal(t, "per-color", fc.Normalisation)
+	assert.Equal(t, 0.1, fc.MaskAgeGyr)
 	fc.Free, bc.Free = nil, nil
+	fc.Normalisation, fc.MaskAgeGyr = bc.Normalisation, bc.MaskAgeGyr
 	assert.Equal(t, bc, fc)
 
 	// The catalog itself is generated later; until then opening it fails

@@ -27,6 +27,7 @@ import (
 // change only its periods.
 var nuisanceKeys = map[string]domain{
 	"spin.period_scatter_dex":     {lo: 0, hi: 0.5},
+	"spin.period_scale":           {lo: 0.5, hi: 2},
 	"spin.spots.ro_sat":           {lo: 0, hi: math.Inf(1), loOpen: true},
 	"spin.spots.amp_sat_ppm":      {lo: 0, hi: math.Inf(1), loOpen: true},
 	"spin.spots.slope":            {lo: 0, hi: math.Inf(1)},
@@ -69,7 +70,8 @@ func lawOptionKey(law, path string) (spin.Key, bool) {
 }
 
 // NuisancePaths lists, sorted, the paths a nuisance parameter may name for
-// a scenario using spin-down law law.
+// a scenario using spin-down law law (the other laws' option tables are
+// accepted too, and do nothing; they are not listed).
 func NuisancePaths(law string) []string {
 	out := make([]string, 0, len(nuisanceKeys))
 	for k := range nuisanceKeys {
@@ -89,15 +91,30 @@ func NuisancePaths(law string) []string {
 }
 
 // nuisanceDomain returns the values a nuisance path can take for a
-// scenario using law, or ok false for a path that is not one.
+// scenario using law, or ok false for a path that is not one. A number key
+// of another registered law's option table is accepted too: it does
+// nothing under this law (NuisanceParams leaves it out), so that one
+// comparison scenario serves every law a sweep chooses.
 func nuisanceDomain(law, path string) (domain, bool) {
 	if d, ok := nuisanceKeys[path]; ok {
 		return d, true
 	}
-	if k, ok := lawOptionKey(law, path); ok {
-		return domain{lo: k.Min, hi: k.Max, loOpen: k.MinOpen}, true
+	for _, l := range spin.Names() {
+		if k, ok := lawOptionKey(l, path); ok {
+			return domain{lo: k.Min, hi: k.Max, loOpen: k.MinOpen}, true
+		}
 	}
 	return domain{}, false
+}
+
+// ActiveNuisance reports whether a nuisance path acts under the
+// scenario's law: every path but the option tables of other laws.
+func ActiveNuisance(s *Scenario, path string) bool {
+	if _, ok := nuisanceKeys[path]; ok {
+		return true
+	}
+	_, ok := lawOptionKey(s.Spin.Law, path)
+	return ok
 }
 
 // IsNuisancePath reports whether path names a nuisance parameter of the
@@ -208,7 +225,7 @@ func (v *decoder) validateNuisance(s *Scenario, p string, f FreeParam) {
 	} else if f.Sigma != 0 {
 		v.errAt(key("sigma"), "%s is the width of a gaussian prior; with prior = %s leave it out", key("sigma"), quoteString(f.Prior))
 	}
-	if !IsNuisancePath(s, f.Path) {
+	if !IsNuisancePath(s, f.Path) || !ActiveNuisance(s, f.Path) {
 		return
 	}
 	nom, err := NuisanceNominal(s, f.Path)

@@ -126,6 +126,7 @@ type Spin struct {
 	Law              string     `toml:"law"`                // a registered law: barnes2007 (default) | mamajek2008 | angus2015 | torque
 	Turnover         string     `toml:"turnover"`           // wright2018 (default) | cranmer-saar2011
 	PeriodScatterDex float64    `toml:"period_scatter_dex"` // intrinsic lognormal scatter of periods about the law, in [0, 0.5]; default 0
+	PeriodScale      float64    `toml:"period_scale"`       // multiplies every law's periods (its zero point), in [0.5, 2]; default 1
 	Spots            Spots      `toml:"spots"`
 	Options          LawOptions `toml:"-"` // decoded by hand from the law option tables
 }
@@ -253,18 +254,20 @@ type DataColumns struct {
 // the canonical form shows it; "free = []" says explicitly that nothing is
 // free.
 type Compare struct {
-	ColorBins     int         `toml:"color_bins"`      // B−V bins between cuts.b_v_min and b_v_max; default 23
-	LogPeriodBins int         `toml:"log_period_bins"` // log10-period bins; default 30
-	PeriodMinD    float64     `toml:"period_min_d"`    // comparison range; default max(cuts.period_min_d, 0.5)
-	PeriodMaxD    float64     `toml:"period_max_d"`    // default min(cuts.period_max_d, 100)
-	HeightEdgesPc []float64   `toml:"height_edges_pc"` // |z| edges for the height check; default [0, 100, 200, 300, 450, 700, 1000, 1500]
-	TemplateStars int64       `toml:"template_stars"`  // stars drawn to build templates; default 20_000_000
-	Normalisation string      `toml:"normalisation"`   // "free" (default: multinomial) | "absolute" | "per-color" (conditional on color) | "per-color-height"
-	TemplateNoise string      `toml:"template_noise"`  // "barlow-beeston-lite" (default) | "ignore"
-	Bootstrap     int         `toml:"bootstrap"`       // parametric-bootstrap replicates; default 1000
-	SplitAgeGyr   float64     `toml:"split_age_gyr"`   // young/old split for the height check; default 0 (the fitted burst age)
-	BurstPart     string      `toml:"burst_part"`      // history part tested as the burst; default "burst"
-	Free          []FreeParam `toml:"free"`            // parameters fitted; default: see above
+	ColorBins     int         `toml:"color_bins"`         // B−V bins between cuts.b_v_min and b_v_max; default 23
+	LogPeriodBins int         `toml:"log_period_bins"`    // log10-period bins; default 30
+	PeriodMinD    float64     `toml:"period_min_d"`       // comparison range; default max(cuts.period_min_d, 0.5)
+	PeriodMaxD    float64     `toml:"period_max_d"`       // default min(cuts.period_max_d, 100)
+	HeightEdgesPc []float64   `toml:"height_edges_pc"`    // |z| edges for the height check; default [0, 100, 200, 300, 450, 700, 1000, 1500]
+	TemplateStars int64       `toml:"template_stars"`     // stars drawn to build templates; default 20_000_000
+	Normalisation string      `toml:"normalisation"`      // "free" (default: multinomial) | "absolute" | "per-color" (conditional on color) | "per-color-height"
+	TemplateNoise string      `toml:"template_noise"`     // "barlow-beeston-lite" (default) | "ignore"
+	Bootstrap     int         `toml:"bootstrap"`          // parametric-bootstrap replicates; default 1000
+	SplitAgeGyr   float64     `toml:"split_age_gyr"`      // young/old split for the height check; default 0 (the fitted burst age)
+	BurstPart     string      `toml:"burst_part"`         // history part tested as the burst; default "burst"
+	MaskAgeGyr    float64     `toml:"mask_below_age_gyr"` // leave out cells below the gyrochrone of this age (stars younger than the law describes); 0 = none (default)
+	MaskMarginDex float64     `toml:"mask_margin_dex"`    // how far below that gyrochrone a cell must lie to be left out (dex); default 0.1
+	Free          []FreeParam `toml:"free"`               // parameters fitted; default: see above
 }
 
 // FreeParam is one fitted parameter, named by its scenario path: a history

@@ -94,6 +94,7 @@ func (v *decoder) validateSpin(sp *Spin) {
 	v.oneOf("spin.law", sp.Law, spin.Names())
 	v.oneOf("spin.turnover", sp.Turnover, turnovers)
 	v.inRange("spin.period_scatter_dex", sp.PeriodScatterDex, 0, true, 0.5, true, "intrinsic period scatter")
+	v.inRange("spin.period_scale", sp.PeriodScale, 0.5, true, 2, true, "a shift of the law's zero point")
 	v.validateLawOptions(sp.Options)
 
 	sk := &sp.Spots

@@ -20,6 +20,10 @@ import (
 type Scattered struct {
 	Law
 	Dex float64 // lognormal scatter, dex (≥ 0)
+	// Scale multiplies every period (0 is read as 1): a shift of the
+	// law's zero point, the same for every law, so that one comparison
+	// scenario can fit it whichever law a sweep chooses.
+	Scale float64
 }
 
 // Period implements Law.
@@ -29,6 +33,9 @@ func (s Scattered) Period(st Star, r *rand.Rand) (periodD float64, ok bool) {
 	if !ok {
 		return p, false
 	}
+	if s.Scale != 0 {
+		p *= s.Scale
+	}
 	return p * math.Exp(math.Ln10*s.Dex*z), true
 }
 
@@ -36,10 +43,13 @@ func (s Scattered) Period(st Star, r *rand.Rand) (periodD float64, ok bool) {
 // the scattered one (gyrochrones are drawn from it).
 func (s Scattered) Unwrap() Law { return s.Law }
 
-// Validate reports a negative or infinite scatter.
+// Validate reports a negative or infinite scatter or scale.
 func (s Scattered) Validate() error {
 	if !(s.Dex >= 0) || math.IsInf(s.Dex, 1) {
 		return fmt.Errorf("spin: intrinsic period scatter %g dex: want a finite value ≥ 0", s.Dex)
+	}
+	if !(s.Scale >= 0) || math.IsInf(s.Scale, 1) {
+		return fmt.Errorf("spin: period scale %g: want a finite value > 0", s.Scale)
 	}
 	return nil
 }
