@@ -54,7 +54,7 @@ type Chunk struct {
 	CompanionMsun []float64 // 0 when single
 	FeH           []float64
 	TeffK         []float64
-	BV            []float64 // intrinsic system color (companion included)
+	BV            []float64 // intrinsic system color (companion, [Fe/H] shift and color scatter included)
 	VKs           []float64
 	AbsMagV       []float64 // system absolute V (companion and evolution included)
 	AbsMagBand    []float64 // in the survey band

@@ -114,8 +114,12 @@ type Population struct {
 	Evolved   bool                  // keep post-main-sequence stars, brightened
 	Binaries  Binaries
 	Metals    Metallicity
-	Survey    Survey
-	Cuts      Cuts
+	// ColorScatterMag is the σ (mag) of a Gaussian scatter added to every
+	// star's B−V about the mean sequence: cosmic (star-to-star) and
+	// photometric together. 0: none.
+	ColorScatterMag float64
+	Survey          Survey
+	Cuts            Cuts
 
 	binAlias alias
 	joint    *disk.JointSampler // when Place is a *disk.Sampler: bins and positions in one draw
@@ -303,6 +307,9 @@ func (p *Population) star(c *Chunk, i int, r *rand.Rand) {
 		}
 	}
 	c.CompanionMsun[i] = comp
+	if p.ColorScatterMag > 0 {
+		bv += p.ColorScatterMag * r.NormFloat64()
+	}
 	c.BV[i], c.VKs[i], c.AbsMagV[i] = bv, absV-absKs, absV
 
 	av := 0.0

@@ -47,9 +47,9 @@ func TestRelationsSunAtOneSolarMass(t *testing.T) {
 // the embedded copy: Pecaut & Mamajek (2013), ApJS 208, 9, Table 5,
 // version 2024.05.15 (the values as published).
 type publishedRow struct {
-	spt                      string
+	spt                       string
 	teffK, logL, radius, absV float64
-	bv, vIc, vKs, massMsun   float64
+	bv, vIc, vKs, massMsun    float64
 }
 
 var publishedSpotRows = []publishedRow{
