@@ -27,7 +27,8 @@ func TestTorqueCalibration(t *testing.T) {
 		func(o *TorqueOptions) { o.SolarPeriodD = 27 },
 		func(o *TorqueOptions) { o.Initial = InitialPeriods{Shape: LogUniform, MinD: 0.8, MaxD: 8} },
 		func(o *TorqueOptions) { o.TorqueExponent = 1.5 },
-		func(o *TorqueOptions) { o.RoCrit = 2 },
+		func(o *TorqueOptions) { o.RoCritOverSolar = 1.1 },
+		func(o *TorqueOptions) { o.RoCritOverSolar = 1 },
 	} {
 		l := defaultTorque(t, edit)
 		o := l.Options()
@@ -85,8 +86,8 @@ func integrate(l *TorqueLaw, m, u float64, agesGyr []float64) []float64 {
 	p := o.TorqueExponent
 	chi := o.SaturationRatio
 	pCrit := math.Inf(1)
-	if o.RoCrit > 0 {
-		pCrit = o.RoCrit * tau
+	if o.RoCritOverSolar > 0 {
+		pCrit = o.RoCritOverSolar * l.SolarRossby() * tau
 	}
 	start, end := 0.0, 0.0
 	if d := o.Stall.DurationGyr(m); d > 0 {
@@ -133,7 +134,7 @@ func TestTorqueMatchesIntegration(t *testing.T) {
 		"default": nil,
 		"p=1.5":   func(o *TorqueOptions) { o.TorqueExponent = 1.5 },
 		"weakened braking": func(o *TorqueOptions) {
-			o.RoCrit = 2
+			o.RoCritOverSolar = 1.1
 		},
 		"stall": func(o *TorqueOptions) { o.Stall.Enabled = true },
 	}
@@ -175,16 +176,16 @@ func TestTorqueClusterSequences(t *testing.T) {
 }
 
 func TestWeakenedBraking(t *testing.T) {
-	on := defaultTorque(t, func(o *TorqueOptions) { o.RoCrit = 2 })
+	on := defaultTorque(t, func(o *TorqueOptions) { o.RoCritOverSolar = 1.1 })
 	off := defaultTorque(t, nil)
-	tau := Wright2018Days(1)
 	pOn, _ := on.PeriodAt(1, 8, 0.5)
 	pOff, _ := off.PeriodAt(1, 8, 0.5)
 	// Idea from van Saders et al. (2016), Nature 529, 181: beyond Ro_crit a
 	// solar twin stops spinning down, so at 8 Gyr it rotates no slower than
-	// when it crossed Ro_crit, and faster than under standard braking.
-	assert.LessOrEqual(t, pOn, 2*tau*(1+1e-12))
-	assert.InDelta(t, 2*tau, pOn, 1e-9, "crossed before 8 Gyr, so frozen at Ro_crit")
+	// when it crossed Ro_crit = 1.1 Ro☉, i.e. 1.1 × 25.4 d, and faster than
+	// under standard braking.
+	assert.LessOrEqual(t, pOn, 1.1*25.4*(1+1e-12))
+	assert.InDelta(t, 1.1*25.4, pOn, 1e-9, "crossed before 8 Gyr, so frozen at Ro_crit")
 	assert.Less(t, pOn, pOff)
 	// Before the crossing both laws agree.
 	a, _ := on.PeriodAt(1, 3, 0.5)
@@ -193,6 +194,36 @@ func TestWeakenedBraking(t *testing.T) {
 	// A star born beyond Ro_crit never brakes.
 	p, _ := on.PeriodAt(1.35, 5, 1)
 	assert.Equal(t, on.Options().Initial.Quantile(1), p)
+}
+
+// The weakened-braking threshold is a multiple of Ro☉ in the law's own
+// turnover scale, so choosing Cranmer & Saar (2011) or Wright et al.
+// (2018) does not move it for the Sun: a solar twin freezes at the same
+// period in both (van Saders et al. 2016, Nature 529, 181, quote
+// Ro_crit ≈ Ro☉ in their model's scale [memory]). An absolute Ro_crit
+// would not: the two scales put Ro☉ at 1.84 and 1.97.
+func TestWeakenedBrakingThresholdFollowsTheTurnoverScale(t *testing.T) {
+	teff := func(m float64) float64 { return 5772 * math.Pow(m, 0.55) }
+	wright := defaultTorque(t, func(o *TorqueOptions) { o.RoCritOverSolar = 1.2 })
+	cs := defaultTorque(t, func(o *TorqueOptions) {
+		o.RoCritOverSolar = 1.2
+		o.Turnover = CranmerSaar2011
+		o.TeffOfMass = teff
+	})
+	// Source: Wright et al. (2018) and Cranmer & Saar (2011) fits at 1 M☉
+	// and 5772 K [memory]: τ_c☉ = 13.80 d and 12.87 d.
+	assert.InDelta(t, 25.4/13.80, wright.SolarRossby(), 0.005)
+	assert.InDelta(t, 25.4/12.87, cs.SolarRossby(), 0.005)
+	for _, l := range []*TorqueLaw{wright, cs} {
+		p, ok := l.PeriodAt(1, 10, 0.5)
+		require.True(t, ok)
+		assert.InDelta(t, 1.2*25.4, p, 1e-9, "%s: frozen at 1.2 P☉", l.Options().Turnover)
+		// Other masses freeze at 1.2 Ro☉ in the law's own τ_c.
+		tau, _ := l.turnover(0.8)
+		p, ok = l.PeriodAt(0.8, 13, 0.5)
+		require.True(t, ok)
+		assert.InDelta(t, 1.2*l.SolarRossby()*tau, p, 1e-9, "%s at 0.8 M☉", l.Options().Turnover)
+	}
 }
 
 func TestStall(t *testing.T) {
@@ -305,7 +336,7 @@ func TestTorqueOptionErrors(t *testing.T) {
 		"StartAgeGyr":     func(o *TorqueOptions) { o.StartAgeGyr = -1 },
 		"SolarAgeGyr":     func(o *TorqueOptions) { o.SolarAgeGyr = 0.005 },
 		"SolarPeriodD":    func(o *TorqueOptions) { o.SolarPeriodD = 1 },
-		"RoCrit":          func(o *TorqueOptions) { o.RoCrit = 1.5 },
+		"RoCritOverSolar": func(o *TorqueOptions) { o.RoCritOverSolar = 0.9 },
 		"initial":         func(o *TorqueOptions) { o.Initial.SigmaDex = -1 },
 		"CutoffMsun": func(o *TorqueOptions) {
 			o.Stall.Enabled = true
@@ -364,7 +395,7 @@ func TestTorqueRanges(t *testing.T) {
 
 func TestHotPathsDoNotAllocate(t *testing.T) {
 	l := defaultTorque(t, func(o *TorqueOptions) {
-		o.RoCrit = 2
+		o.RoCritOverSolar = 1.1
 		o.Stall.Enabled = true
 	})
 	g := Barnes2007()
