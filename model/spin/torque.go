@@ -45,7 +45,8 @@ type TorqueOptions struct {
 	StartAgeGyr float64
 
 	// SolarPeriodD and SolarAgeGyr calibrate the torque: a 1 M☉ star with
-	// the median initial period reaches SolarPeriodD at SolarAgeGyr.
+	// the median initial period reaches SolarPeriodD at SolarAgeGyr. The
+	// default 25.4 d is the Sun's Carrington (mid-latitude) sidereal period.
 	SolarPeriodD float64
 	SolarAgeGyr  float64
 
@@ -75,14 +76,18 @@ func PowerLawRadius(massMsun float64) float64 { return math.Pow(massMsun, 0.8) }
 //     2015 [memory]); R = M^0.8.
 //   - k² ∝ M^−1: the whole-star k² runs from ≈ 0.07 for the Sun [memory] to
 //     0.205 for an n = 1.5 polytrope, the fully convective limit reached
-//     near 0.35 M☉, i.e. roughly ∝ M^−1. With constant k² the K dwarfs spin
-//     down too fast to sit on the ~650 Myr sequence (0.7 M☉ at ~17 d).
+//     near 0.35 M☉, i.e. roughly ∝ M^−1. With it the law puts 0.7 M☉ at
+//     13.8 d at 0.65 Gyr, on the 10–15 d K-dwarf sequence of a ~650 Myr
+//     cluster [memory]; with constant k² the K dwarfs spin down too fast
+//     (0.7 M☉ at 16.8 d).
 //   - Initial periods lognormal with median 2 d and 0.3 dex at 10 Myr
 //     [memory of young-cluster period distributions of a few days]. The
 //     median must lie below the Sun's saturation period (≈ 2.5 d) for the
 //     solar track to lose memory of its start by 1 Gyr (Skumanich slope).
-//   - Sun: 25.4 d at 4.57 Gyr [memory: sidereal equatorial period and
-//     meteoritic age]. No weakened braking, no stall.
+//   - Sun: 25.4 d at 4.57 Gyr [memory: 25.38 d is the Carrington sidereal
+//     period, which belongs to mid latitudes (~26°) — the equatorial
+//     sidereal period is ≈ 24.5 d and the synodic Carrington period 27.3 d
+//     — and 4.57 Gyr the meteoritic age]. No weakened braking, no stall.
 //
 // The model has constant moment of inertia, so it has no pre-main-sequence
 // spin-up; its young (< ~100 Myr) periods are crude.
