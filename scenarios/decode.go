@@ -106,24 +106,11 @@ func (d *decoder) structValue(path string, m map[string]any, rv reflect.Value) {
 		p := joinKey(path, k)
 		i, ok := fi.index[k]
 		if !ok {
-			if why, gone := retiredKeys[p]; gone {
-				d.errAt(p, "key %q in [%s] is no longer read: %s", k, path, why)
-				continue
-			}
 			d.unknown(path, k, fi.names, "")
 			continue
 		}
 		d.value(p, m[k], rv.Field(i))
 	}
-}
-
-// retiredKeys are keys an older scenario may still hold, with what to
-// write instead.
-var retiredKeys = map[string]string{
-	"spin.weakened_braking.ro_crit": "the threshold is now ro_crit_over_solar, a multiple of the Sun's Rossby number in spin.turnover's own scale " +
-		"(so that choosing the turnover time does not move it); ro_crit = R was R/1.84 Ro_sun with turnover = \"wright2018\" " +
-		"and R/1.97 Ro_sun with \"cranmer-saar2011\" (solar_period_d = 25.4): for the old default 2.0 write ro_crit_over_solar = 1.09 or 1.01, " +
-		"or 1.0, the value van Saders et al. (2016) quote",
 }
 
 var historyType = reflect.TypeFor[History]()
