@@ -35,8 +35,8 @@ func TestSimulateOutputsPinned(t *testing.T) {
 	cases := []struct {
 		example, catalog, manifest string
 	}{
-		{"base.toml", "PENDING", "PENDING"},
-		{"stall.toml", "PENDING", "PENDING"},
+		{"base.toml", "8d11eff2dd17cc64bf64bf9b5ed260e85a4179212395b8e038752a2f02a35ba4", "a92dcdbf6eaa7c4503b4b7127f528b0152a7dd60a19444e8516b09f399993cdd"},
+		{"stall.toml", "deb2f8fe429b49fb694d19b7c939c87f7bca0aa2f03b1bce257accc2e55df910", "1e8b0a0379ede71af93fb4225e658a537a89b16b65a982b918f9a017d3f2f216"},
 	}
 	for _, c := range cases {
 		t.Run(c.example, func(t *testing.T) {
