@@ -80,15 +80,16 @@ func Build(s *scenarios.Scenario) (*Built, error) {
 	}
 
 	pop := &model.Population{
-		BinProb:   prob,
-		Age:       b.ageInBin,
-		Place:     b.Sampler,
-		Dust:      dust,
-		IMF:       imf,
-		Relations: b.Relations,
-		Evolved:   s.Stars.Evolved,
-		Binaries:  model.Binaries{MassRatioMin: s.Stars.BinaryMassRatioMin, TidalLockMaxD: s.Stars.TidalLockPeriodMaxD},
-		Metals:    model.Metallicity{SigmaDex: s.Stars.MetallicitySigmaDex, ColorPerDex: s.Stars.ColorPerDex, AbsMagPerDex: s.Stars.AbsMagPerDex},
+		BinProb:         prob,
+		Age:             b.ageInBin,
+		Place:           b.Sampler,
+		Dust:            dust,
+		IMF:             imf,
+		Relations:       b.Relations,
+		Evolved:         s.Stars.Evolved,
+		Binaries:        model.Binaries{MassRatioMin: s.Stars.BinaryMassRatioMin, TidalLockMaxD: s.Stars.TidalLockPeriodMaxD},
+		Metals:          model.Metallicity{SigmaDex: s.Stars.MetallicitySigmaDex, ColorPerDex: s.Stars.ColorPerDex, AbsMagPerDex: s.Stars.AbsMagPerDex},
+		ColorScatterMag: s.Stars.ColorScatterMag,
 	}
 	if err := observing(s, pop, b.Law); err != nil {
 		return nil, err

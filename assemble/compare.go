@@ -1,6 +1,8 @@
 package assemble
 
 import (
+	"crypto/sha256"
+	"encoding/hex"
 	"fmt"
 	"math"
 	"strings"
@@ -22,9 +24,22 @@ var templateSections = []string{
 	"compare.height_edges_pc", "compare.template_stars",
 }
 
-// TemplateKey is the hash of the scenario parts the templates depend on: a
-// cached template set with this key can be reused.
-func TemplateKey(r *scenarios.Resolved) (string, error) { return r.PartHash(templateSections...) }
+// modelRevision names the state of the physics in code that the templates
+// depend on beyond the scenario's keys (relation table, laws, stall
+// shape). Change it whenever such code changes what stars a scenario
+// makes, so that templates cached by an older program are not reused.
+const modelRevision = "2: published mean dwarf sequence, smoothed; stall of issue 9"
+
+// TemplateKey is the hash of the scenario parts the templates depend on,
+// and of modelRevision: a cached template set with this key can be reused.
+func TemplateKey(r *scenarios.Resolved) (string, error) {
+	h, err := r.PartHash(templateSections...)
+	if err != nil {
+		return "", err
+	}
+	sum := sha256.Sum256([]byte(h + "\n" + modelRevision))
+	return hex.EncodeToString(sum[:]), nil
+}
 
 // Space is the comparison space of a scenario: B−V between the
 // catalogue's color cut, log period within the compare range, |z| bins.

@@ -86,12 +86,21 @@ func FitJoint(ctx context.Context, like *Likelihood, m HistoryModel, nu *Nuisanc
 				cand = r
 			}
 		}
-		// The expansion's proposal.
+		// The expansion's proposal, searched from the centre and from each
+		// side point: where the data want two parameters moved together
+		// (a ridge across the axes), a search from the centre alone can
+		// stop at a local maximum beside it.
 		o := newObjective(like, m, nu, mo)
 		prop, err := o.fit(m, FitOptions{Starts: 1, Init: [][]float64{best.Theta}, Seed: opts.Seed}, centre)
 		if err != nil {
 			return FitResult{}, err
 		}
+		for _, sp := range mo.sides {
+			if r, err := o.fit(m, FitOptions{Starts: 1, Init: [][]float64{best.Theta}, Seed: opts.Seed}, sp.values); err == nil && r.LogL > prop.LogL {
+				prop = r
+			}
+		}
+		prop.Evaluations = o.evals
 		evals += prop.Evaluations
 		far := false
 		for j := range steps {

@@ -43,7 +43,8 @@ func (f Flag) Selected() bool {
 // worked out only for the stars a catalogue could hold, those that pass the
 // magnitude, color and main-sequence cuts (see Flag). For the others
 // LDeg, BDeg, PeriodD, MeasPeriodD, Rossby, AmpPpm and NoisePpm are NaN
-// and DetectProb is 0; every other column is filled for every star.
+// and DetectProb is 0; every other column is filled for every star (BV and
+// ObsBV of stars outside the magnitude limits without the color scatter).
 type Chunk struct {
 	Index int // position in the run; fixes the chunk's random stream
 	N     int
@@ -54,7 +55,7 @@ type Chunk struct {
 	CompanionMsun []float64 // 0 when single
 	FeH           []float64
 	TeffK         []float64
-	BV            []float64 // intrinsic system color (companion included)
+	BV            []float64 // intrinsic system color (companion, [Fe/H] shift and, inside the magnitude limits, color scatter included)
 	VKs           []float64
 	AbsMagV       []float64 // system absolute V (companion and evolution included)
 	AbsMagBand    []float64 // in the survey band

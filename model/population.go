@@ -114,8 +114,12 @@ type Population struct {
 	Evolved   bool                  // keep post-main-sequence stars, brightened
 	Binaries  Binaries
 	Metals    Metallicity
-	Survey    Survey
-	Cuts      Cuts
+	// ColorScatterMag is the σ (mag) of a Gaussian scatter added to the B−V
+	// of every star inside the survey's magnitude limits, about the mean
+	// sequence: cosmic (star-to-star) and photometric together. 0: none.
+	ColorScatterMag float64
+	Survey          Survey
+	Cuts            Cuts
 
 	binAlias alias
 	joint    *disk.JointSampler // when Place is a *disk.Sampler: bins and positions in one draw
@@ -303,7 +307,7 @@ func (p *Population) star(c *Chunk, i int, r *rand.Rand) {
 		}
 	}
 	c.CompanionMsun[i] = comp
-	c.BV[i], c.VKs[i], c.AbsMagV[i] = bv, absV-absKs, absV
+	c.VKs[i], c.AbsMagV[i] = absV-absKs, absV
 
 	av := 0.0
 	if p.Dust != nil {
@@ -318,13 +322,21 @@ func (p *Population) star(c *Chunk, i int, r *rand.Rand) {
 	dm := 5*math.Log10(d) - 5
 	app := absBand + dm + aBand
 	c.AppMag[i] = app
+	if app >= p.Survey.BrightLimitMag && app <= p.Survey.FaintLimitMag {
+		flags |= FlagInMagRange
+		// The color scatter is drawn only for stars a catalogue could hold
+		// (about one in ten): the others keep their mean color, which no
+		// count or output reads (see Chunk), and the hot path one normal
+		// deviate per star.
+		if p.ColorScatterMag > 0 {
+			bv += p.ColorScatterMag * r.NormFloat64()
+		}
+	}
+	c.BV[i] = bv
 	// What a catalogue derives from photometry and parallax alone: reddened
 	// color, and M_V = V − 5 log10(d/10 pc) with the extinction still in.
 	obsBV, obsAbs := p.Survey.Color.Apply(bv+ebvPerAV*av), absV+av
 	c.ObsBV[i], c.ObsAbsMag[i] = obsBV, obsAbs
-	if app >= p.Survey.BrightLimitMag && app <= p.Survey.FaintLimitMag {
-		flags |= FlagInMagRange
-	}
 	if p.Cuts.InColorRange(obsBV) {
 		flags |= FlagInColorRange
 	}

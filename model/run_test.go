@@ -245,3 +245,44 @@ func BenchmarkFill(b *testing.B) {
 		p.Fill(c, r)
 	}
 }
+
+// The color scatter is a Gaussian of the set σ about the mean sequence,
+// in the intrinsic and the observed color alike, for every star inside
+// the magnitude limits; without it, or outside them, a single star of
+// solar metallicity has exactly its mass's color.
+func TestColorScatter(t *testing.T) {
+	for _, sigma := range []float64{0, 0.05} {
+		p := testPopulation(t, 4)
+		p.Binaries.FractionScale = 0
+		p.Metals.SigmaDex = 0
+		p.ColorScatterMag = sigma
+		require.NoError(t, p.Prepare())
+		var n int
+		var s1, s2 float64
+		err := RunChunks(context.Background(), 3, 300000, 8192, 2, p.Fill, func(c *Chunk) error {
+			for i := 0; i < c.N; i++ {
+				require.InDelta(t, ebvPerAV*c.AV[i], c.ObsBV[i]-c.BV[i], 1e-12)
+				pt, ok := p.Relations.At(c.MassMsun[i])
+				require.True(t, ok)
+				d := c.BV[i] - pt.BV
+				if sigma == 0 || c.Flags[i]&FlagInMagRange == 0 {
+					require.Equal(t, pt.BV, c.BV[i])
+					continue
+				}
+				n++
+				s1 += d
+				s2 += d * d
+			}
+			return nil
+		})
+		require.NoError(t, err)
+		if sigma == 0 {
+			continue
+		}
+		require.Greater(t, n, 20000)
+		mean := s1 / float64(n)
+		sd := math.Sqrt(s2/float64(n) - mean*mean)
+		assert.InDelta(t, 0, mean, 1e-3, "σ %g", sigma)
+		assert.InDelta(t, sigma, sd, 0.02*sigma, "σ %g", sigma)
+	}
+}

@@ -23,6 +23,6 @@ func Example() {
 	fmt.Printf("%d of %d stars in the catalogue\n", cat.N, sim.Tally.StepCounts[0])
 	fmt.Printf("first star: %.3f Msun, P = %.2f d\n", cat.MassMsun[0], cat.MeasPeriodD[0])
 	// Output:
-	// 3926 of 100000 stars in the catalogue
-	// first star: 0.907 Msun, P = 26.29 d
+	// 3803 of 100000 stars in the catalogue
+	// first star: 0.862 Msun, P = 36.69 d
 }

@@ -271,6 +271,5 @@ func rangeWarnings(s *scenarios.Scenario, b *assemble.Built, t *model.Tally) []s
 	if spec, ok := spin.Lookup(s.Spin.Law); ok && spec.Caveats != nil {
 		w = append(w, spec.Caveats(s.Disk.AgeBinEdgesGyr[0])...)
 	}
-	w = append(w, "the main-sequence relation table is recalled from memory of a published mean dwarf sequence, not read from it (see testdata/SOURCES-dwarf-sequence.md); treat absolute magnitudes as uncertain at the 0.1–0.2 mag level")
 	return w
 }

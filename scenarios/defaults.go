@@ -53,6 +53,7 @@ evolved = true
 metallicity_sigma_dex = 0.0
 color_per_dex = 0.2              # [memory]
 abs_mag_per_dex = 1.0            # [memory]
+color_scatter_mag = 0.02         # common practice: B-V errors of 0.01-0.03 mag for V < 14
 
 [spin]
 law = "barnes2007"

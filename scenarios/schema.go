@@ -115,6 +115,7 @@ type Stars struct {
 	MetallicitySigmaDex float64 `toml:"metallicity_sigma_dex"`   // [Fe/H] scatter; default 0
 	ColorPerDex         float64 `toml:"color_per_dex"`           // B-V shift per dex [Fe/H]; default 0.2
 	AbsMagPerDex        float64 `toml:"abs_mag_per_dex"`         // M_V shift per dex [Fe/H]; default 1.0
+	ColorScatterMag     float64 `toml:"color_scatter_mag"`       // Gaussian B-V scatter about the mean sequence, cosmic + photometric; 0 = none; default 0.02
 }
 
 // Spin chooses the spin-down law and its parameters. Besides law,

@@ -122,6 +122,10 @@ func (d *decoder) optionTable(path string, m map[string]any, t spin.OptionTable)
 	for _, k := range sortedKeys(m) {
 		p := joinKey(path, k)
 		i := slices.IndexFunc(t.Keys, func(key spin.Key) bool { return key.Name == k })
+		if why, gone := t.Retired[k]; i < 0 && gone {
+			d.errAt(p, "key %q in [%s] is no longer read: %s", k, path, why)
+			continue
+		}
 		if i < 0 {
 			d.unknown(path, k, names, "")
 			continue

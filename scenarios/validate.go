@@ -58,6 +58,8 @@ func (v *decoder) validate(s *Scenario) {
 	v.inRange("stars.tidal_lock_fraction", st.TidalLockFraction, 0, true, 1, true, "")
 	v.atLeast("stars.tidal_lock_period_max_d", st.TidalLockPeriodMaxD, 1, "locked periods are log-uniform from 1 d to this value")
 	v.atLeast("stars.metallicity_sigma_dex", st.MetallicitySigmaDex, 0, "")
+	v.inRange("stars.color_scatter_mag", st.ColorScatterMag, 0, true, 0.3, true,
+		"a B-V scatter of a few hundredths of a magnitude is typical; 0 switches it off")
 
 	v.validateSpin(&s.Spin)
 	v.validateSurvey(&s.Survey)

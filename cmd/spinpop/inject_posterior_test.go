@@ -159,7 +159,7 @@ func TestInjectAndPosterior(t *testing.T) {
 		// The exact count depends on which cells the templates reach.
 		assert.Equal(t, 30000, rep.Data.Rows)
 		assert.Equal(t, rep.Data.Compared, rep.Stars, "mocks have the size of the catalog as compared")
-		assert.InDelta(t, 29376, rep.Stars, 30, "30,000 rows less the cuts and the few stars in cells no template star reached (%d)", rep.Data.Dropped)
+		assert.InDelta(t, 29344, rep.Stars, 30, "30,000 rows less the cuts and the few stars in cells no template star reached (%d)", rep.Data.Dropped)
 		assert.Len(t, rep.NullLRs, 100)
 		require.Len(t, rep.Cells, 4)
 		for i, c := range rep.Cells {

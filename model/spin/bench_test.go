@@ -26,7 +26,7 @@ func BenchmarkTorquePeriod(b *testing.B) { benchLaw(b, defaultTorque(b, nil)) }
 
 func BenchmarkTorquePeriodWeakenedStall(b *testing.B) {
 	benchLaw(b, defaultTorque(b, func(o *TorqueOptions) {
-		o.RoCrit = 2
+		o.RoCritOverSolar = 1.1
 		o.Stall.Enabled = true
 	}))
 }
@@ -36,7 +36,7 @@ func BenchmarkTorquePeriodWeakenedStall(b *testing.B) {
 // the stall needs no grid, so this is the whole set-up cost.
 func BenchmarkNewTorqueLawStall(b *testing.B) {
 	o := DefaultTorqueOptions()
-	o.RoCrit = 2
+	o.RoCritOverSolar = 1.1
 	o.Stall.Enabled = true
 	b.ReportAllocs()
 	for b.Loop() {

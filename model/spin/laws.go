@@ -84,7 +84,8 @@ var torqueSpec = LawSpec{
 	Label: "wind torque",
 	Tables: []OptionTable{
 		{Name: "torque", Doc: "the wind-torque law with saturation", Keys: []Key{
-			{Name: "solar_period_d", Doc: "calibration target at 4.57 Gyr", Default: 25.4, Min: 0, MinOpen: true, Max: inf, Memory: "solar sidereal equatorial period"},
+			{Name: "solar_period_d", Doc: "calibration target at 4.57 Gyr, the Sun's Carrington (mid-latitude) sidereal period", Default: 25.4, Min: 0, MinOpen: true, Max: inf,
+				Memory: "Carrington sidereal period, 25.38 d, of mid latitudes (equatorial sidereal ≈ 24.5 d, synodic ≈ 27.3 d)"},
 			{Name: "saturation_chi", Doc: "Ro_sun / Ro_sat", Default: 10.0, Min: 1, Max: inf, Why: "chi = Ro_sun / Ro_sat", Memory: "Matt et al. (2015)"},
 			{Name: "initial_period_dist", Doc: "distribution of initial periods", Default: "lognormal", OneOf: []string{"log-uniform", "lognormal"}},
 			{Name: "initial_period_min_d", Doc: "log-uniform: lower end", Default: 1.0, Min: 0, MinOpen: true, Max: inf},
@@ -93,18 +94,30 @@ var torqueSpec = LawSpec{
 			{Name: "initial_period_sigma_dex", Doc: "lognormal: width", Default: 0.3, Min: 0, Max: inf},
 			{Name: "start_age_gyr", Doc: "age the initial periods refer to", Default: 0.01, Min: 0, Max: 1, MaxOpen: true, Why: "the initial periods belong to young stars"},
 		}},
-		{Name: "stall", Doc: "a spin-down stall (core–envelope recoupling); illustrative, not a calibration", Switch: "enabled", SkipWhenOff: true, Keys: []Key{
+		{Name: "stall", Doc: "a spin-down stall: braking pauses for K dwarfs of 4000-5000 K, weakening toward the G dwarfs and early M dwarfs (see spin.StallOptions); a starting point for fits, not a calibration", Switch: "enabled", SkipWhenOff: true, Keys: []Key{
 			{Name: "enabled", Default: false},
-			{Name: "start_gyr_at_0p8msun", Doc: "stall start age for 0.8 Msun", Default: 0.5, Min: 0, MinOpen: true, Max: inf},
-			{Name: "duration_gyr_at_0p8msun", Doc: "stall duration for 0.8 Msun", Default: 0.6, Min: 0, MinOpen: true, Max: inf},
-			{Name: "mass_max_msun", Doc: "no stall above this mass", Default: 1.0, Min: 0.8, MinOpen: true, Max: 120, Why: "the stall is quoted at 0.8 Msun, so stars up to a mass above it must stall"},
-			{Name: "start_mass_slope", Doc: "start ∝ (m/0.8)^slope", Default: -2.0, Min: -10, Max: 0, Why: "the stall starts later toward low mass"},
-			{Name: "duration_mass_slope", Doc: "duration ∝ (m/0.8)^slope", Default: -2.0, Min: -10, Max: 0, Why: "the stall lasts longer toward low mass"},
+			{Name: "start_gyr_at_0p8msun", Doc: "pause start age for 0.8 Msun", Default: 0.65, Min: 0, MinOpen: true, Max: inf, Memory: "Curtis et al. (2019)"},
+			{Name: "duration_gyr_at_0p8msun", Doc: "pause length for 0.8 Msun", Default: 0.35, Min: 0, MinOpen: true, Max: inf, Memory: "Curtis et al. (2019)"},
+			{Name: "start_mass_slope", Doc: "start ∝ (m/0.8)^slope; 0 keeps one window, which keeps the sequence monotonic", Default: 0.0, Min: -10, Max: 0, Why: "the stall does not start earlier toward low mass"},
+			{Name: "duration_mass_slope", Doc: "duration ∝ (m/0.8)^slope", Default: 0.0, Min: -10, Max: 0, Why: "the stall does not shorten toward low mass"},
+			{Name: "mass_min_msun", Doc: "no stall at or below this mass", Default: 0.5, Min: 0, Max: 120},
+			{Name: "full_mass_min_msun", Doc: "full-strength pause from this mass", Default: 0.6, Min: 0, Max: 120,
+				Above: "mass_min_msun", AboveWhy: "the pause strengthens from mass_min_msun up to full_mass_min_msun"},
+			{Name: "full_mass_max_msun", Doc: "to this mass", Default: 0.75, Min: 0, Max: 120,
+				Above: "full_mass_min_msun", AboveWhy: "empty full-strength mass range"},
+			{Name: "mass_max_msun", Doc: "no stall at or above this mass", Default: 1.1, Min: 0, Max: 120,
+				Above: "full_mass_max_msun", AboveWhy: "the pause weakens from full_mass_max_msun up to mass_max_msun"},
 			{Name: "catch_up_fraction", Doc: "after the pause the star regains the lost time over this fraction of the pause; 0 = stays behind", Default: 0.25, Min: 0, Max: 10, Why: "0 = never catch up"},
 		}},
-		{Name: "weakened_braking", Doc: "weakened magnetic braking above a critical Rossby number", Switch: "enabled", Keys: []Key{
+		{Name: "weakened_braking", Doc: "weakened magnetic braking above a critical Rossby number, a multiple of the Sun's in spin.turnover's own scale", Switch: "enabled", Keys: []Key{
 			{Name: "enabled", Default: false},
-			{Name: "ro_crit", Doc: "critical Rossby number", Default: 2.0, Min: 0, MinOpen: true, Max: inf, Memory: "van Saders et al. (2016)"},
+			{Name: "ro_crit_over_solar", Doc: "critical Rossby number in units of the Sun's", Default: 1.0, Min: 1, Max: inf,
+				Why: "below 1 the Sun would stop braking before it reaches its period", Memory: "van Saders et al. (2016): Ro_crit ≈ Ro_sun"},
+		}, Retired: map[string]string{
+			"ro_crit": "the threshold is now ro_crit_over_solar, a multiple of the Sun's Rossby number in spin.turnover's own scale " +
+				"(so that choosing the turnover time does not move it); ro_crit = R was R/1.84 Ro_sun with turnover = \"wright2018\" " +
+				"and R/1.97 Ro_sun with \"cranmer-saar2011\" (solar_period_d = 25.4): for the old default 2.0 write ro_crit_over_solar = 1.09 or 1.01, " +
+				"or 1.0, the value van Saders et al. (2016) quote",
 		}},
 	},
 	New: newTorqueFromOptions,
@@ -139,7 +152,7 @@ func newTorqueFromOptions(opt Options, env Env) (Law, error) {
 		return nil, &OptionError{Table: "torque", Key: "initial_period_dist", Msg: "want log-uniform or lognormal, not " + d}
 	}
 	if opt.Bool("weakened_braking", "enabled") {
-		o.RoCrit = opt.Float("weakened_braking", "ro_crit")
+		o.RoCritOverSolar = opt.Float("weakened_braking", "ro_crit_over_solar")
 	}
 	if opt.Bool("stall", "enabled") {
 		// The scenario writes start ∝ (m/0.8)^slope; StallOptions writes
@@ -147,7 +160,9 @@ func newTorqueFromOptions(opt Options, env Env) (Law, error) {
 		o.Stall = StallOptions{Enabled: true, PivotMsun: 0.8,
 			StartGyrAtPivot: opt.Float("stall", "start_gyr_at_0p8msun"), DurationGyrAtPivot: opt.Float("stall", "duration_gyr_at_0p8msun"),
 			StartMassSlope: -opt.Float("stall", "start_mass_slope"), DurationMassSlope: -opt.Float("stall", "duration_mass_slope"),
-			CutoffMsun: opt.Float("stall", "mass_max_msun"), CatchUpFraction: opt.Float("stall", "catch_up_fraction")}
+			MinMsun: opt.Float("stall", "mass_min_msun"), FullMinMsun: opt.Float("stall", "full_mass_min_msun"),
+			FullMaxMsun: opt.Float("stall", "full_mass_max_msun"), CutoffMsun: opt.Float("stall", "mass_max_msun"),
+			CatchUpFraction: opt.Float("stall", "catch_up_fraction")}
 	}
 	return NewTorqueLaw(o)
 }

@@ -52,6 +52,9 @@ type OptionTable struct {
 	Switch      string
 	SkipWhenOff bool
 	Keys        []Key
+	// Retired lists keys the table no longer reads, each with what to
+	// write instead; a scenario that still sets one gets that as its error.
+	Retired map[string]string
 }
 
 // Key is one option: its name carries its unit (solar_period_d).

@@ -45,15 +45,21 @@ type TorqueOptions struct {
 	StartAgeGyr float64
 
 	// SolarPeriodD and SolarAgeGyr calibrate the torque: a 1 M☉ star with
-	// the median initial period reaches SolarPeriodD at SolarAgeGyr.
+	// the median initial period reaches SolarPeriodD at SolarAgeGyr. The
+	// default 25.4 d is the Sun's Carrington (mid-latitude) sidereal period.
 	SolarPeriodD float64
 	SolarAgeGyr  float64
 
-	// RoCrit, if positive, switches braking off once Ro = P/τ_c exceeds it
-	// (weakened braking, van Saders et al. 2016, Nature 529, 181; Ro_crit ≈ 2
-	// [memory]); the period then stays frozen. 0 keeps braking on at all Ro.
-	// Compare it with SolarRossby, which depends on Turnover.
-	RoCrit float64
+	// RoCritOverSolar, if positive, switches braking off once the Rossby
+	// number Ro = P/τ_c exceeds RoCritOverSolar × Ro☉, with Ro☉ =
+	// SolarPeriodD/τ_c☉ in the law's own turnover scale (weakened braking,
+	// van Saders et al. 2016, Nature 529, 181: Ro_crit ≈ Ro☉ [memory]); the
+	// period then stays frozen. Quoting the threshold in units of Ro☉
+	// keeps it where it is when Turnover changes: the two scales differ by
+	// ~7 % for the Sun, so an absolute Ro_crit would move the Sun's own
+	// threshold with the choice. Must be ≥ 1 (the Sun reaches its period);
+	// 0 keeps braking on at all Ro.
+	RoCritOverSolar float64
 
 	// Stall pauses braking for a mass-dependent age range.
 	Stall StallOptions
@@ -70,14 +76,18 @@ func PowerLawRadius(massMsun float64) float64 { return math.Pow(massMsun, 0.8) }
 //     2015 [memory]); R = M^0.8.
 //   - k² ∝ M^−1: the whole-star k² runs from ≈ 0.07 for the Sun [memory] to
 //     0.205 for an n = 1.5 polytrope, the fully convective limit reached
-//     near 0.35 M☉, i.e. roughly ∝ M^−1. With constant k² the K dwarfs spin
-//     down too fast to sit on the ~650 Myr sequence (0.7 M☉ at ~17 d).
+//     near 0.35 M☉, i.e. roughly ∝ M^−1. With it the law puts 0.7 M☉ at
+//     13.8 d at 0.65 Gyr, on the 10–15 d K-dwarf sequence of a ~650 Myr
+//     cluster [memory]; with constant k² the K dwarfs spin down too fast
+//     (0.7 M☉ at 16.8 d).
 //   - Initial periods lognormal with median 2 d and 0.3 dex at 10 Myr
 //     [memory of young-cluster period distributions of a few days]. The
 //     median must lie below the Sun's saturation period (≈ 2.5 d) for the
 //     solar track to lose memory of its start by 1 Gyr (Skumanich slope).
-//   - Sun: 25.4 d at 4.57 Gyr [memory: sidereal equatorial period and
-//     meteoritic age]. No weakened braking, no stall.
+//   - Sun: 25.4 d at 4.57 Gyr [memory: 25.38 d is the Carrington sidereal
+//     period, which belongs to mid latitudes (~26°) — the equatorial
+//     sidereal period is ≈ 24.5 d and the synodic Carrington period 27.3 d
+//     — and 4.57 Gyr the meteoritic age]. No weakened braking, no stall.
 //
 // The model has constant moment of inertia, so it has no pre-main-sequence
 // spin-up; its young (< ~100 Myr) periods are crude.
@@ -94,7 +104,7 @@ func DefaultTorqueOptions() TorqueOptions {
 		StartAgeGyr:     0.01,
 		SolarPeriodD:    25.4,
 		SolarAgeGyr:     4.57,
-		RoCrit:          0,
+		RoCritOverSolar: 0,
 		Stall:           DefaultStallOptions(),
 	}
 }
@@ -131,12 +141,6 @@ func NewTorqueLaw(opts TorqueOptions) (*TorqueLaw, error) {
 	l.rSun = opts.RadiusOfMass(solarMassMsun)
 	if !(l.rSun > 0) || math.IsInf(l.rSun, 1) {
 		return nil, fmt.Errorf("spin: torque law: RadiusOfMass(1) = %g, want a positive radius in R☉", l.rSun)
-	}
-	if opts.RoCrit > 0 {
-		roSun := opts.SolarPeriodD / tau
-		if opts.RoCrit < roSun {
-			return nil, fmt.Errorf("spin: torque law: RoCrit = %g is below the Sun's Rossby number %.3g in the %s scale, so the Sun could never reach %g d; use RoCrit ≥ %.3g or 0 (off)", opts.RoCrit, roSun, opts.Turnover, opts.SolarPeriodD, roSun)
-		}
 	}
 	if err := l.calibrate(); err != nil {
 		return nil, err
@@ -184,8 +188,8 @@ func (o TorqueOptions) validate() error {
 	if !(o.SaturationRatio > 1) || math.IsInf(o.SaturationRatio, 1) {
 		return fmt.Errorf("spin: torque law: SaturationRatio χ = Ro☉/Ro_sat must exceed 1 and be finite, got %g", o.SaturationRatio)
 	}
-	if !(o.RoCrit >= 0) || math.IsInf(o.RoCrit, 1) {
-		return fmt.Errorf("spin: torque law: RoCrit must be finite and ≥ 0 (0 = no weakened braking), got %g", o.RoCrit)
+	if !(o.RoCritOverSolar == 0 || o.RoCritOverSolar >= 1) || math.IsInf(o.RoCritOverSolar, 1) {
+		return fmt.Errorf("spin: torque law: RoCritOverSolar must be 0 (no weakened braking) or finite and ≥ 1 (below 1 the Sun would stop braking before it reaches SolarPeriodD), got %g", o.RoCritOverSolar)
 	}
 	if !(o.SolarAgeGyr > o.StartAgeGyr) {
 		return fmt.Errorf("spin: torque law: SolarAgeGyr (%g) must exceed StartAgeGyr (%g)", o.SolarAgeGyr, o.StartAgeGyr)
@@ -257,8 +261,9 @@ func (l *TorqueLaw) evolve(k, q, p0, dt float64) float64 {
 	o := &l.opts
 	pSun := o.SolarPeriodD
 	pCrit := math.Inf(1)
-	if o.RoCrit > 0 {
-		pCrit = o.RoCrit * q * l.tauSunD
+	if o.RoCritOverSolar > 0 {
+		// Ro_crit τ_c = f Ro☉ τ_c = f P☉ q: exactly f P☉ for the Sun.
+		pCrit = o.RoCritOverSolar * pSun * q
 		if p0 >= pCrit {
 			return p0
 		}
