@@ -111,7 +111,7 @@ func InjectRecover(ctx context.Context, tpl *Templates, opts LikeOptions, smooth
 	if err != nil {
 		return nil, err
 	}
-	free := base.Options().Normalisation == NormFree
+	free := base.free // every normalisation but the absolute one is profiled
 
 	// Every mock's expected counts.
 	type job struct {
@@ -167,7 +167,7 @@ func InjectRecover(ctx context.Context, tpl *Templates, opts LikeOptions, smooth
 	err = parallelReplicates(ctx, len(jobs), sweep.Workers, sweep.Progress, func(j int, counts []float64) error {
 		jb := jobs[j]
 		seed := sweep.Seed ^ [3]uint64{0x6e756c6c, 0x66616c73, 0x696e6a65}[jb.role]
-		drawMock(counts, jb.mu, sweep.NStars, free, replicateStream(seed, jb.cell*sweep.Replicates+jb.idx))
+		drawLikeMock(counts, jb.mu, base, replicateStream(seed, jb.cell*sweep.Replicates+jb.idx))
 		l, err := base.WithCounts(counts)
 		if err != nil {
 			return err

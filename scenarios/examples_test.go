@@ -126,7 +126,8 @@ func TestFitExample(t *testing.T) {
 	assert.Equal(t, "per-color", fc.Normalisation)
 	assert.Equal(t, 0.1, fc.MaskAgeGyr)
 	fc.Free, bc.Free = nil, nil
-	fc.Normalisation, fc.MaskAgeGyr = bc.Normalisation, bc.MaskAgeGyr
+	assert.Equal(t, 200, fc.Bootstrap)
+	fc.Normalisation, fc.MaskAgeGyr, fc.Bootstrap = bc.Normalisation, bc.MaskAgeGyr, bc.Bootstrap
 	assert.Equal(t, bc, fc)
 
 	// The catalog itself is generated later; until then opening it fails
