@@ -81,7 +81,28 @@ func profileAutoScaled(like *Likelihood, m HistoryModel, param string, best FitR
 			return Interval{}, err
 		}
 	}
-	maxL := best.LogL
+	// A burst narrower than the age bins it sits in makes the profile in
+	// its age a staircase (flat inside a bin, steps at the edges): the
+	// template age bins near the best value join the grid so that every
+	// step is seen.
+	e := m.AgeEdgesGyr
+	for k := 0; k+1 < len(e); k++ {
+		if mid := 0.5 * (e[k] + e[k+1]); mid > f.Min && mid < f.Max && math.Abs(mid-c) <= 8*sigma && !slices.Contains(grid, mid) {
+			if err := eval(mid); err != nil {
+				return Interval{}, err
+			}
+		}
+	}
+	sort.Slice(pts, func(a, b int) bool { return pts[a].Value < pts[b].Value })
+	top := func() (float64, float64) {
+		maxL, bestV := best.LogL, c
+		for _, p := range pts {
+			if p.LogL > maxL {
+				maxL, bestV = p.LogL, p.Value
+			}
+		}
+		return maxL, bestV
+	}
 	for _, dir := range []float64{-1, 1} {
 		reach := 4 * sigma
 		for range 30 {
@@ -89,9 +110,7 @@ func profileAutoScaled(like *Likelihood, m HistoryModel, param string, best FitR
 			if dir > 0 {
 				end = pts[len(pts)-1]
 			}
-			for _, p := range pts {
-				maxL = math.Max(maxL, p.LogL)
-			}
+			maxL, _ := top()
 			if maxL-end.LogL >= scale*dLogL95 || (dir < 0 && end.Value <= f.Min) || (dir > 0 && end.Value >= f.Max) {
 				break
 			}
@@ -103,12 +122,30 @@ func profileAutoScaled(like *Likelihood, m HistoryModel, param string, best FitR
 			sort.Slice(pts, func(a, b int) bool { return pts[a].Value < pts[b].Value })
 		}
 	}
-	bestV := c
-	for _, p := range pts {
-		if p.LogL > maxL {
-			maxL, bestV = p.LogL, p.Value
+	// The profile may peak away from the fit (the global fit missed a
+	// ridge) or between grid points: halve the gaps beside the peak while
+	// a neighbour lies more than the 68 % level below it, so that the
+	// interval is read off points that resolve the peak.
+	for range 12 {
+		maxL, bestV := top()
+		i := slices.IndexFunc(pts, func(p ProfilePoint) bool { return p.Value == bestV })
+		var mids []float64
+		for _, j := range []int{i - 1, i + 1} {
+			if i >= 0 && j >= 0 && j < len(pts) && maxL-pts[j].LogL > scale*dLogL68 && math.Abs(pts[j].Value-bestV) > 1e-4*(f.Max-f.Min) {
+				mids = append(mids, 0.5*(pts[j].Value+bestV))
+			}
 		}
+		if len(mids) == 0 {
+			break
+		}
+		for _, v := range mids {
+			if err := eval(v); err != nil {
+				return Interval{}, err
+			}
+		}
+		sort.Slice(pts, func(a, b int) bool { return pts[a].Value < pts[b].Value })
 	}
+	maxL, bestV := top()
 	return intervalFrom(pts, maxL, bestV, scale), nil
 }
 

@@ -125,3 +125,38 @@ func TestIntervalLevels(t *testing.T) {
 	assert.InDelta(t, 0.5*distuv.ChiSquared{K: 1}.Quantile(0.95), dLogL95, 1e-9)
 	assert.InDelta(t, 0.5*distuv.ChiSquared{K: 1}.Quantile(math.Erf(1/math.Sqrt2)), dLogL68, 1e-9)
 }
+
+// A burst much narrower than the age bins makes the profile in its age a
+// staircase: flat across the bin that holds it, stepping down at the bin's
+// edges. The interval must span the plateau that holds the truth, not
+// collapse to a point. Common practice, no source: the profile
+// likelihood of a parameter the data cannot resolve below the binning.
+func TestProfileAutoOnStaircase(t *testing.T) {
+	edges := make([]float64, 11)
+	for i := range edges {
+		edges[i] = float64(i)
+	}
+	tpl := gyroTemplates(t, edges, 10, 20, 1e4, 0.05)
+	h, err := sfh.New(10, []sfh.Part{
+		{Name: "smooth", Component: sfh.Constant{}, Weight: 1},
+		{Name: "burst", Component: sfh.Burst{AgeGyr: 2.5, WidthGyr: 0.01, MassFraction: 0.2}},
+	})
+	require.NoError(t, err)
+	m := HistoryModel{Base: h, AgeEdgesGyr: edges, Free: []FreeParam{
+		{Name: "burst.age_gyr", Min: 0.5, Max: 8},
+		{Name: "burst.mass_fraction", Min: 0, Max: 0.5},
+	}}
+	w, err := m.Weights([]float64{2.5, 0.2})
+	require.NoError(t, err)
+	like, err := NewLikelihood(tpl, asimov(tpl, w, 20000), LikeOptions{TemplateNoise: NoiseIgnore})
+	require.NoError(t, err)
+	f, err := Fit(like, m, FitOptions{Starts: 4})
+	require.NoError(t, err)
+	iv, err := ProfileAuto(like, m, "burst.age_gyr", f)
+	require.NoError(t, err)
+	t.Logf("fit %.3f; interval 68 %% [%.3f, %.3f], 95 %% [%.3f, %.3f]", f.Theta[0], iv.Lo68, iv.Hi68, iv.Lo95, iv.Hi95)
+	assert.LessOrEqual(t, iv.Lo95, 2.5)
+	assert.GreaterOrEqual(t, iv.Hi95, 2.5)
+	assert.Greater(t, iv.Hi95-iv.Lo95, 0.5, "the plateau of the bin [2, 3] Gyr")
+	assert.Less(t, iv.Hi95-iv.Lo95, 2.0, "but not the neighbouring bins")
+}

@@ -175,6 +175,14 @@ func (n *Nuisance) Templates(ctx context.Context, values []float64) (*Templates,
 	return t, nil
 }
 
+// ResetCache forgets every set of templates made so far (for timing a
+// fit from scratch).
+func (n *Nuisance) ResetCache() {
+	n.mu.Lock()
+	n.cache = nil
+	n.mu.Unlock()
+}
+
 func valuesKey(v []float64) string {
 	var b strings.Builder
 	for _, x := range v {
