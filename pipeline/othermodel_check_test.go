@@ -94,6 +94,8 @@ func runCheck(t *testing.T, cases []checkCase, replicates int, templateStars int
 		}
 		c, err := base.WithCatalog(path)
 		require.NoError(t, err)
+		name := cs.name
+		c.Stage = func(msg string) { t.Logf("%s: %s", name, msg) }
 		o, err := c.BurstTest(ctx, replicates, nil)
 		require.NoError(t, err, cs.name)
 		tr := o.Test

@@ -200,10 +200,11 @@ func NuisanceNominal(s *Scenario, path string) (float64, error) {
 // coefficients); ok is false for a path without one.
 func DefaultSigma(s *Scenario, path string) (float64, bool) {
 	pieces := strings.Split(path, ".")
-	if len(pieces) != 3 || pieces[0] != "spin" || pieces[1] != s.Spin.Law {
+	if len(pieces) != 3 || pieces[0] != "spin" {
 		return 0, false
 	}
-	return spin.PublishedUncertainty(s.Spin.Law, pieces[2])
+	// An empirical law's coefficient table is named after the law.
+	return spin.PublishedUncertainty(pieces[1], pieces[2])
 }
 
 // validateNuisance checks the parts of a free parameter that only nuisance
