@@ -86,17 +86,26 @@ func FitJoint(ctx context.Context, like *Likelihood, m HistoryModel, nu *Nuisanc
 				cand = r
 			}
 		}
-		// The expansion's proposal, searched from the centre and from each
-		// side point: where the data want two parameters moved together
-		// (a ridge across the axes), a search from the centre alone can
-		// stop at a local maximum beside it.
+		// The expansion's proposal, searched from the centre and from side
+		// points: where the data want two parameters moved together (a
+		// ridge across the axes), a search from the centre alone can stop
+		// at a local maximum beside it. The first round starts from every
+		// side point; later ones, near the answer, from the best.
 		o := newObjective(like, m, nu, mo)
 		prop, err := o.fit(m, FitOptions{Starts: 1, Init: [][]float64{best.Theta}, Seed: opts.Seed}, centre)
 		if err != nil {
 			return FitResult{}, err
 		}
-		for _, sp := range mo.sides {
-			if r, err := o.fit(m, FitOptions{Starts: 1, Init: [][]float64{best.Theta}, Seed: opts.Seed}, sp.values); err == nil && r.LogL > prop.LogL {
+		var starts [][]float64
+		if round == 1 {
+			for _, sp := range mo.sides {
+				starts = append(starts, sp.values)
+			}
+		} else if cand.Nuisance != nil && !equalValues(cand.Nuisance, centre) {
+			starts = append(starts, cand.Nuisance)
+		}
+		for _, st := range starts {
+			if r, err := o.fit(m, FitOptions{Starts: 1, Init: [][]float64{cand.Theta, best.Theta}, Seed: opts.Seed}, st); err == nil && r.LogL > prop.LogL {
 				prop = r
 			}
 		}
