@@ -75,9 +75,34 @@ func FitJoint(ctx context.Context, like *Likelihood, m HistoryModel, nu *Nuisanc
 		}
 		warm := FitOptions{Starts: 1, Init: [][]float64{best.Theta}, Seed: opts.Seed}
 		cand := best
-		// Every side point, scored exactly.
+		// Every side point, scored exactly, and the point that takes every
+		// improving side step at once (a pattern move: it lets the search
+		// move in several parameters per round).
+		gain := make([]float64, nu.Dim())
+		combined := append([]float64(nil), centre...)
 		for _, sp := range mo.sides {
 			r, err := profileWith(like, m, nu, sp.values, sp.tpl, warm)
+			if err != nil {
+				return FitResult{}, err
+			}
+			evals += r.Evaluations
+			if r.LogL > cand.LogL {
+				cand = r
+			}
+			for j := range sp.values {
+				if d := r.LogL - best.LogL; sp.values[j] != centre[j] && d > gain[j] {
+					gain[j], combined[j] = d, sp.values[j]
+				}
+			}
+		}
+		moves := 0
+		for j := range gain {
+			if gain[j] > 0 {
+				moves++
+			}
+		}
+		if moves > 1 {
+			r, err := profileAtValues(ctx, like, m, nu, combined, FitOptions{Starts: 1, Init: [][]float64{cand.Theta, best.Theta}, Seed: opts.Seed})
 			if err != nil {
 				return FitResult{}, err
 			}
@@ -128,6 +153,14 @@ func FitJoint(ctx context.Context, like *Likelihood, m HistoryModel, nu *Nuisanc
 			}
 		}
 		if cand.LogL > best.LogL+1e-9 {
+			// A move of a whole step in a parameter says the answer may lie
+			// further: that parameter's step doubles (up to a quarter of
+			// its range), so a long way is walked in few rounds.
+			for j, p := range nu.Params {
+				if math.Abs(cand.Nuisance[j]-centre[j]) >= 0.99*steps[j] {
+					steps[j] = math.Min(2*steps[j], (p.Max-p.Min)/4)
+				}
+			}
 			best = cand
 			centre = append([]float64(nil), cand.Nuisance...)
 			continue
