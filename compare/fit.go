@@ -147,7 +147,9 @@ type objective struct {
 	theta, dtheta, gw []float64
 	jac               [][]float64
 	nuVals, dnu, gnu  []float64
-	rows, dm, scratch []float64
+	nuLo, nuHi        []float64 // the nuisance parameters' bounds here: the expansion's trust region
+	rows, vars, dm    []float64
+	dv, scratch       []float64
 	clamped           []bool
 	lastX             []float64
 	lastF             float64
@@ -166,9 +168,10 @@ func newObjective(like *Likelihood, m HistoryModel, nu *Nuisance, mo *morph) *ob
 	if mo != nil {
 		J := nu.Dim()
 		o.nuVals, o.dnu, o.gnu = make([]float64, J), make([]float64, J), make([]float64, J)
-		o.rows = make([]float64, like.nb*like.k)
+		o.nuLo, o.nuHi = mo.trustRegion(nu)
+		o.rows, o.vars = make([]float64, like.nb*like.k), make([]float64, like.nb*like.k)
 		o.clamped = make([]bool, like.nb*like.k)
-		o.dm, o.scratch = make([]float64, like.nb), make([]float64, like.nb*like.k)
+		o.dm, o.dv, o.scratch = make([]float64, like.nb), make([]float64, like.nb), make([]float64, like.nb*like.k)
 	}
 	return o
 }
@@ -176,8 +179,8 @@ func newObjective(like *Likelihood, m HistoryModel, nu *Nuisance, mo *morph) *ob
 // setNuisance puts the templates at nuisance values v into the likelihood.
 func (o *objective) setNuisance(v []float64) {
 	copy(o.nuVals, v)
-	o.mo.apply(o.nuVals, o.rows, o.clamped, o.scratch)
-	o.like.setRows(o.rows, o.mo.var0)
+	o.mo.apply(o.nuVals, o.rows, o.vars, o.clamped, o.scratch)
+	o.like.setRows(o.rows, o.vars)
 	o.lastX = nil
 }
 
@@ -193,20 +196,23 @@ func (o *objective) logL(theta []float64) float64 {
 }
 
 // nuisanceFromInternal maps the optimiser's nuisance coordinates to values
-// inside their bounds (the sine transform of HistoryModel), writing
-// dν/dx into deriv.
-func nuisanceFromInternal(nu *Nuisance, x, v, deriv []float64) {
-	for j, p := range nu.Params {
-		half := 0.5 * (p.Max - p.Min)
-		v[j] = math.Max(p.Min, math.Min(p.Max, p.Min+half*(1+math.Sin(x[j]))))
+// inside bounds lo, hi (the sine transform of HistoryModel), writing dν/dx
+// into deriv.
+func nuisanceFromInternal(lo, hi, x, v, deriv []float64) {
+	for j := range v {
+		half := 0.5 * (hi[j] - lo[j])
+		v[j] = math.Max(lo[j], math.Min(hi[j], lo[j]+half*(1+math.Sin(x[j]))))
 		deriv[j] = half * math.Cos(x[j])
 	}
 }
 
-func nuisanceToInternal(nu *Nuisance, v []float64) []float64 {
+func nuisanceToInternal(lo, hi, v []float64) []float64 {
 	x := make([]float64, len(v))
-	for j, p := range nu.Params {
-		u := 2*(v[j]-p.Min)/(p.Max-p.Min) - 1
+	for j := range v {
+		u := 2*(v[j]-lo[j])/(hi[j]-lo[j]) - 1
+		if !(hi[j] > lo[j]) {
+			u = 0
+		}
 		x[j] = math.Asin(math.Max(-1, math.Min(1, u)))
 	}
 	return x
@@ -227,9 +233,9 @@ func (o *objective) eval(x []float64) {
 		}
 	}
 	if o.mo != nil {
-		nuisanceFromInternal(o.nu, x[d:], o.nuVals, o.dnu)
-		o.mo.apply(o.nuVals, o.rows, o.clamped, o.scratch)
-		o.like.setRows(o.rows, o.mo.var0)
+		nuisanceFromInternal(o.nuLo, o.nuHi, x[d:], o.nuVals, o.dnu)
+		o.mo.apply(o.nuVals, o.rows, o.vars, o.clamped, o.scratch)
+		o.like.setRows(o.rows, o.vars)
 	}
 	w, err := o.m.Weights(o.theta)
 	if err != nil {
@@ -240,7 +246,7 @@ func (o *objective) eval(x []float64) {
 	o.evals++
 	var l float64
 	if o.mo != nil {
-		l = o.like.logLFull(w, o.gw, o.dm)
+		l = o.like.logLFull(w, o.gw, o.dm, o.dv)
 	} else {
 		l = o.like.LogLGrad(w, o.gw)
 	}
@@ -261,7 +267,7 @@ func (o *objective) eval(x []float64) {
 	}
 	if o.mo != nil {
 		clear(o.gnu)
-		o.mo.gradient(o.nuVals, w, o.dm, o.clamped, o.scratch, o.gnu)
+		o.mo.gradient(o.nuVals, w, o.dm, o.dv, o.clamped, o.scratch, o.gnu)
 		for j, p := range o.nu.Params {
 			o.lastF -= p.logPrior(o.nuVals[j])
 			o.lastG[d+j] = -(o.gnu[j] + p.logPriorDeriv(o.nuVals[j])) * o.dnu[j]
@@ -274,7 +280,7 @@ func (o *objective) eval(x []float64) {
 func (o *objective) maximise(theta0, nu0 []float64) (theta, nu []float64, logL float64, converged bool, err error) {
 	x0 := o.m.ToInternal(theta0)
 	if o.mo != nil {
-		x0 = append(x0, nuisanceToInternal(o.nu, nu0)...)
+		x0 = append(x0, nuisanceToInternal(o.nuLo, o.nuHi, nu0)...)
 	}
 	fg := func(x, g []float64) float64 {
 		o.eval(x)
@@ -293,7 +299,7 @@ func (o *objective) maximise(theta0, nu0 []float64) (theta, nu []float64, logL f
 	o.m.FromInternal(x[:d], theta, nil)
 	if o.mo != nil {
 		nu = make([]float64, o.nu.Dim())
-		nuisanceFromInternal(o.nu, x[d:], nu, make([]float64, len(nu)))
+		nuisanceFromInternal(o.nuLo, o.nuHi, x[d:], nu, make([]float64, len(nu)))
 	}
 	return theta, nu, -f, conv, nil
 }

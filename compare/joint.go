@@ -262,9 +262,9 @@ func refitAt(like *Likelihood, m HistoryModel, nu *Nuisance, mo *morph, opts Fit
 func useTemplates(like *Likelihood, f FitResult, base *Templates) error {
 	switch {
 	case f.morph != nil:
-		rows := make([]float64, like.nb*like.k)
-		f.morph.apply(f.Nuisance, rows, nil, nil)
-		like.setRows(rows, f.morph.var0)
+		rows, vars := make([]float64, like.nb*like.k), make([]float64, like.nb*like.k)
+		f.morph.apply(f.Nuisance, rows, vars, nil, nil)
+		like.setRows(rows, vars)
 		return nil
 	case f.Templates != nil:
 		return like.SetTemplates(f.Templates)

@@ -845,17 +845,20 @@ func (l *Likelihood) Fitted(weights, dst []float64) []float64 {
 }
 
 // logLFull returns ln L at weights with its gradient with respect to the
-// weights (into grad) and to the expectation of each bin in template
-// units (into dm, see binDerivatives), in one pass.
-func (l *Likelihood) logLFull(weights, grad, dm []float64) float64 {
+// weights (into grad) and to the expectation and variance of each bin in
+// template units (into dm and dv, see binDerivatives; dv is zeroed for
+// exact templates), in one pass.
+func (l *Likelihood) logLFull(weights, grad, dm, dv []float64) float64 {
 	v := l.LogLGrad(weights, grad)
 	if math.IsInf(v, -1) {
 		return v
 	}
 	if l.bb {
 		copy(dm, l.a)
+		copy(dv, l.b)
 		return v
 	}
+	clear(dv)
 	l.poissonBinDerivs(weights, dm)
 	return v
 }

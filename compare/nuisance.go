@@ -221,6 +221,12 @@ type morph struct {
 	nz     []int32
 	t0c    []float64
 	ac, bc [][]float64
+	// rho is each nonzero entry's variance per count at the centre
+	// (var0/t0; 1 where t0 is 0): the expanded templates carry the
+	// variance rho·rows, so that a bin the expansion empties is not left
+	// with the centre's variance — Barlow–Beeston lite would read that
+	// as a template so uncertain that it fits any data.
+	rho []float64
 }
 
 // sidePoint is one side point of an expansion: the nuisance values and the
@@ -303,6 +309,13 @@ func (mo *morph) compact() {
 		return out
 	}
 	mo.t0c = pick(mo.t0)
+	mo.rho = make([]float64, len(mo.nz))
+	for q, i := range mo.nz {
+		mo.rho[q] = 1
+		if t := mo.t0[i]; t > 0 {
+			mo.rho[q] = mo.var0[i] / t
+		}
+	}
 	mo.ac, mo.bc = make([][]float64, len(mo.a)), make([][]float64, len(mo.b))
 	for j := range mo.a {
 		mo.ac[j], mo.bc[j] = pick(mo.a[j]), pick(mo.b[j])
@@ -323,6 +336,34 @@ func (mo *morph) side(ctx context.Context, like *Likelihood, nu *Nuisance, centr
 	return rows, err
 }
 
+// trustReach is how far beyond its side points an expansion is trusted,
+// in steps: a fit on the expansion may not move a nuisance parameter
+// further from the centre than this many steps.
+const trustReach = 2
+
+// trustRegion returns the bounds a fit on the expansion keeps each
+// nuisance parameter in: trustReach steps either side of the centre,
+// inside the parameter's own bounds. Far outside its side points a
+// bin-wise quadratic continued linearly can take shapes no set of
+// templates has — a bootstrap replicate refitted there would be fitted by
+// artefacts, not by the model.
+func (mo *morph) trustRegion(nu *Nuisance) (lo, hi []float64) {
+	lo, hi = make([]float64, len(mo.centre)), make([]float64, len(mo.centre))
+	for j, p := range nu.Params {
+		c := mo.centre[j]
+		down, up := mo.lo[j], mo.hi[j]
+		if down == 0 {
+			down = up
+		}
+		if up == 0 {
+			up = down
+		}
+		lo[j] = math.Max(p.Min, c-trustReach*down)
+		hi[j] = math.Min(p.Max, c+trustReach*up)
+	}
+	return lo, hi
+}
+
 // beta returns β_j(x) and dβ_j/dx.
 func (mo *morph) beta(j int, x float64) (b, db float64) {
 	hp, hm := mo.hi[j], mo.lo[j]
@@ -341,7 +382,7 @@ func (mo *morph) beta(j int, x float64) (b, db float64) {
 // zero in every template set; apply writes them as zero. scratch (nil, or
 // at least len(nz) long) is the caller's: a morph is shared, read-only, by
 // the goroutines of a bootstrap.
-func (mo *morph) apply(values, dst []float64, clamped []bool, scratch []float64) {
+func (mo *morph) apply(values, dst, dstVar []float64, clamped []bool, scratch []float64) {
 	n := len(mo.nz)
 	if cap(scratch) < n {
 		scratch = make([]float64, n)
@@ -358,6 +399,7 @@ func (mo *morph) apply(values, dst []float64, clamped []bool, scratch []float64)
 		floats.AddScaled(x, bj, mo.bc[j])
 	}
 	clear(dst)
+	clear(dstVar)
 	if clamped != nil {
 		clear(clamped)
 	}
@@ -370,13 +412,15 @@ func (mo *morph) apply(values, dst []float64, clamped []bool, scratch []float64)
 			}
 		}
 		dst[i] = v
+		dstVar[i] = mo.rho[q] * v
 	}
 }
 
 // gradient adds to g[j] the derivative of ln L with respect to values[j],
-// Σ_ik dm_i w_k ∂rows_ik/∂ν_j over the entries the clamp left alone, using
-// c (at least len(nz)) as scratch.
-func (mo *morph) gradient(values, w, dm []float64, clamped []bool, c, g []float64) {
+// Σ_ik (dm_i w_k + dv_i w_k² rho_ik) ∂rows_ik/∂ν_j over the entries the
+// clamp left alone (the variance follows the rows), using c (at least
+// len(nz)) as scratch; dv is nil for exact templates.
+func (mo *morph) gradient(values, w, dm, dv []float64, clamped []bool, c, g []float64) {
 	k := mo.k
 	c = c[:len(mo.nz)]
 	for q, i := range mo.nz {
@@ -384,7 +428,11 @@ func (mo *morph) gradient(values, w, dm []float64, clamped []bool, c, g []float6
 			c[q] = 0
 			continue
 		}
-		c[q] = dm[int(i)/k] * w[int(i)%k]
+		b, j := int(i)/k, int(i)%k
+		c[q] = dm[b] * w[j]
+		if dv != nil {
+			c[q] += dv[b] * w[j] * w[j] * mo.rho[q]
+		}
 	}
 	for j, v := range values {
 		_, db := mo.beta(j, v-mo.centre[j])
