@@ -120,7 +120,12 @@ func quoteList(xs []string) string {
 // Template noise (Barlow–Beeston lite). Each bin's expectation becomes
 // β_i s m_i with a Gaussian constraint on β_i of relative width
 // δ_i = √v_i/m_i, v_i = Σ_k w_k² V_ki (V = T for templates of raw counts);
-// the β_i are profiled bin by bin in closed form (stats.BBLiteBin) and,
+// each bin with data also carries −½ ln(1 + n_i δ_i²), the Laplace
+// approximation's term for integrating β_i out rather than maximising over
+// it (Tierney & Kadane 1986): profiling alone rewards a history that makes
+// its own prediction noisier (weight piled into one age bin raises δ_i and
+// lets β_i absorb whatever the data hold there). The β_i are profiled bin
+// by bin in closed form (stats.BBLiteBin) and,
 // with free normalisation, jointly with each group's s by Newton's method on
 // s = N_g/Σ_{i∈g} β_i m_i. The gradient is taken with β and s held at
 // their optimum (envelope theorem: their own derivatives vanish there),
@@ -661,6 +666,16 @@ func (l *Likelihood) bbLogL(w, grad []float64) float64 {
 			l.a[i] += n / m
 		}
 		l.b[i] = 0.5 * q / r
+		if n > 0 {
+			// Laplace term of integrating β out instead of profiling it:
+			// −½ ln(1 + n δ²) at β = 1, with n δ² = c_i. Without it a fit
+			// gains from making its own templates noisier — weight piled
+			// into one age bin raises δ and lets β absorb any misfit there.
+			ci := l.c[i]
+			s -= 0.5 * math.Log1p(ci)
+			l.a[i] += ci / (m * (1 + ci))
+			l.b[i] -= 0.5 * n / (m * m * (1 + ci))
+		}
 	}
 	s += l.sumNLog()
 	s -= l.lnFactN

@@ -152,6 +152,23 @@ func TestBBLiteFreeScaleIsAMaximum(t *testing.T) {
 	}
 	// Variance of s·T is s²·T: pass templates T with weights s·w, variances T.
 	want := stats.BBLiteLogL(nil, lfw, tplRows, tplRows, data)
+	// Plus the Laplace term −½ ln(1 + n δ²) of every bin with data, δ² =
+	// Σ_k w_k² T_ki / (Σ_k w_k T_ki)² (scale-free).
+	// Source: Tierney & Kadane (1986), JASA 81, 82 — the Laplace
+	// approximation of an integral over a nuisance parameter.
+	for i := range nb {
+		if data[i] == 0 {
+			continue
+		}
+		var m, v float64
+		for j := range 4 {
+			m += w[j] * t2.Counts[j*nb+i]
+			v += w[j] * w[j] * t2.Counts[j*nb+i]
+		}
+		if m > 0 && v > 0 {
+			want -= 0.5 * math.Log1p(data[i]*v/(m*m))
+		}
+	}
 	assert.InDelta(t, want, best, 1e-9*math.Abs(want))
 }
 
