@@ -98,6 +98,6 @@ func runTestAlternatives(args []string, stdout, stderr io.Writer) error {
 		}
 		fmt.Fprintln(stdout)
 	}
-	fmt.Fprintf(stdout, "\n%s\nwrote: %v\n", res.Verdict, outputs)
+	fmt.Fprintf(stdout, "\n%s\nwrote: %s\n", res.Verdict, wordList(outputs))
 	return nil
 }

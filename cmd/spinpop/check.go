@@ -33,7 +33,7 @@ func runCheck(args []string, stdout, stderr io.Writer) error {
 		enc.SetIndent("", "  ")
 		return enc.Encode(map[string]any{"hash": res.Hash(), "files": res.Files, "overrides": res.Overrides, "resolved": string(res.Canonical())})
 	}
-	fmt.Fprintf(stdout, "# scenario OK: %s\n# files: %v\n", path, res.Files)
+	fmt.Fprintf(stdout, "# scenario OK: %s\n# files: %s\n", path, wordList(res.Files))
 	if len(res.Overrides) > 0 {
 		fmt.Fprintf(stdout, "# overrides: %s\n", strings.Join(res.Overrides, " "))
 	}

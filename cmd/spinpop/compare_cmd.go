@@ -114,6 +114,6 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 			fmt.Fprintf(stdout, "  %-13s KS D = %.4f p = %.3g; AD = %.2f p ≈ %.3g\n", k, m.KSD, m.KSP, m.ADStat, m.ADP)
 		}
 	}
-	fmt.Fprintf(stdout, "wrote: %v\n", outputs)
+	fmt.Fprintf(stdout, "wrote: %s\n", wordList(outputs))
 	return nil
 }

@@ -62,6 +62,9 @@ func TestTestBurstFindsTheHiddenBurst(t *testing.T) {
 	tpl := filepath.Join(t.TempDir(), "tpl")
 	code, stdout, errs := runCLI("test-burst", sc, "--out", out, "--templates", tpl)
 	require.Equal(t, 0, code, errs)
+	// stdout is read by people: no Go syntax for lists or maps.
+	assert.NotContains(t, stdout, "map[")
+	assert.NotContains(t, stdout, "wrote: [")
 	// With 30 replicates the bootstrap p-value cannot go below 1/31.
 	assert.Contains(t, stdout, "burst at 0.7")
 	var res struct {

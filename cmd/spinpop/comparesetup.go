@@ -87,9 +87,9 @@ func setupComparison(ctx context.Context, arg string, f compareFlags, stderr io.
 func printDataSummary(w io.Writer, d pipeline.DataSummary) {
 	fmt.Fprintf(w, "catalog %s (sha256 %s…): %d rows, %d stars compared\n", d.File, d.SHA256[:16], d.Rows, d.Compared)
 	if len(d.Unusable) > 0 {
-		fmt.Fprintf(w, "  unusable rows (see rejected.csv): %v\n", d.Unusable)
+		fmt.Fprintf(w, "  unusable rows (see rejected.csv): %s\n", tally(d.Unusable))
 	}
-	fmt.Fprintf(w, "  removed by the catalogue cuts: %v\n", d.CutAway)
+	fmt.Fprintf(w, "  removed by the catalogue cuts: %s\n", tally(d.CutAway))
 	reused := "built"
 	if d.TplReused {
 		reused = "reused"

@@ -26,7 +26,7 @@ func runDemo(args []string, stdout, stderr io.Writer) error {
 		return err
 	}
 	if len(pos) > 0 {
-		return usageErrorf("demo takes no scenario; it runs the built-in examples (got %v)", pos)
+		return usageErrorf("demo takes no scenario; it runs the built-in examples (got %s)", wordList(pos))
 	}
 	if err := prepareOutDir(*out, *force); err != nil {
 		return err
@@ -76,7 +76,7 @@ func runDemo(args []string, stdout, stderr io.Writer) error {
 	}
 	printDataSummary(stdout, c.DataSummary())
 	printBurstSummary(stdout, res)
-	fmt.Fprintf(stdout, "wrote: %v\n", outputs)
+	fmt.Fprintf(stdout, "wrote: %s\n", wordList(outputs))
 	fmt.Fprintln(stdout, "\nThe hidden truth (testdata/demo-truth.toml): a burst 0.75 Gyr ago, width 0.06 Gyr, 15 % of the mass, on a smooth history declining with a 6 Gyr timescale.")
 	return nil
 }

@@ -28,7 +28,7 @@ func runExamples(args []string, stdout, stderr io.Writer) error {
 		}
 		text, err := scenarios.ExampleText(name)
 		if err != nil {
-			return usageErrorf("no example %q; the examples are %v", pos[0], scenarios.Examples())
+			return usageErrorf("no example %q; the examples are %s", pos[0], wordList(scenarios.Examples()))
 		}
 		_, err = stdout.Write(text)
 		return err

@@ -14,13 +14,11 @@ func newFlagSet(name, synopsis, about string, stdout io.Writer) *flag.FlagSet {
 	fs := flag.NewFlagSet(name, flag.ContinueOnError)
 	fs.SetOutput(io.Discard)
 	if strings.Contains(synopsis, "SCENARIO") {
-		fs.Var(new(stringList), "set", "override a scenario key, validated like the file: key=value, repeatable\n(--set spin.law=torque --set history.burst.age_gyr=0.8; values in TOML syntax, bare words are strings)")
+		fs.Var(new(stringList), "set", "override a scenario key, validated like the file: `key=value`, repeatable\n(--set spin.law=torque --set history.burst.age_gyr=0.8; values in TOML syntax, bare words are strings)")
 	}
 	fs.Usage = func() {
 		fmt.Fprintf(stdout, "Usage: spinpop %s\n\n%s\n\nOptions:\n", synopsis, about)
-		fs.SetOutput(stdout)
-		fs.PrintDefaults()
-		fs.SetOutput(io.Discard)
+		printOptions(stdout, fs)
 	}
 	return fs
 }
@@ -82,4 +80,29 @@ func floatList(s, flagName string) ([]float64, error) {
 		return nil, usageErrorf("--%s: empty list (want a comma-separated list such as 0.3,0.6,1)", flagName)
 	}
 	return out, nil
+}
+
+// printOptions lists a command's options as the README writes them
+// (--name VALUE), each with its help text and its default. The flag
+// package's own list would show the sentinel a flag uses for "not given"
+// (-1, 0) as if it were a value to type; a help text that already says what
+// happens by default ("default: compare.bootstrap") is left to say it, and
+// zero values (false, 0, "") are not shown as defaults.
+func printOptions(w io.Writer, fs *flag.FlagSet) {
+	fs.VisitAll(func(f *flag.Flag) {
+		kind, usage := flag.UnquoteUsage(f)
+		head := "  --" + f.Name
+		if kind != "" {
+			head += " " + kind
+		}
+		fmt.Fprintln(w, head)
+		body := strings.ReplaceAll(usage, "\n", "\n      ")
+		if def := f.DefValue; def != "" && def != "0" && def != "false" && !strings.Contains(usage, "default") {
+			if kind == "string" {
+				def = strconv.Quote(def)
+			}
+			body += " (default " + def + ")"
+		}
+		fmt.Fprintln(w, "      "+body)
+	})
 }

@@ -9,6 +9,7 @@ import (
 	"os/signal"
 	"path/filepath"
 
+	"spinpop/compare"
 	"spinpop/pipeline"
 
 	"gonum.org/v1/plot/vg"
@@ -63,22 +64,28 @@ func runHeights(args []string, stdout, stderr io.Writer) error {
 		return printJSON(stdout, out)
 	}
 	printDataSummary(stdout, c.DataSummary())
-	fmt.Fprintf(stdout, "\nyoung fraction (period below the %.2f Gyr gyrochrone) against |z|:\n", h.SplitAgeGyr)
-	fmt.Fprintf(stdout, "  %-13s %7s %7s %9s", "|z| (pc)", "young", "total", "fraction")
-	for _, x := range h.Hypotheses {
-		fmt.Fprintf(stdout, "  %22s", x.Name)
-	}
-	fmt.Fprintln(stdout)
-	for i := range h.Total {
-		fmt.Fprintf(stdout, "  %5.0f–%-7.0f %7d %7d %9.3f", h.ZEdgesPc[i], h.ZEdgesPc[i+1], h.Young[i], h.Total[i], pipeline.Finite(h.Fraction[i]))
-		for _, x := range h.Hypotheses {
-			fmt.Fprintf(stdout, "  %22.3f", pipeline.Finite(x.Fraction[i]))
-		}
-		fmt.Fprintln(stdout)
-	}
-	for _, x := range h.Hypotheses {
-		fmt.Fprintf(stdout, "binomial ln L, %s: %.1f\n", x.Name, x.LogL)
-	}
-	fmt.Fprintln(stdout, "wrote: [rejected.csv height_check.png heights.json]")
+	printHeightTable(stdout, h)
+	fmt.Fprintf(stdout, "wrote: %s\n", wordList(out["outputs"].([]string)))
 	return nil
+}
+
+// printHeightTable prints the young fraction per |z| bin, data and each
+// hypothesis; a bin without stars (or without a prediction) reads n/a.
+func printHeightTable(w io.Writer, h *compare.HeightResult) {
+	fmt.Fprintf(w, "\nyoung fraction (period below the %.2f Gyr gyrochrone) against |z|:\n", h.SplitAgeGyr)
+	fmt.Fprintf(w, "  %-13s %7s %7s %9s", "|z| (pc)", "young", "total", "fraction")
+	for _, x := range h.Hypotheses {
+		fmt.Fprintf(w, "  %22s", x.Name)
+	}
+	fmt.Fprintln(w)
+	for i := range h.Total {
+		fmt.Fprintf(w, "  %5.0f–%-7.0f %7d %7d %s", h.ZEdgesPc[i], h.ZEdgesPc[i+1], h.Young[i], h.Total[i], fixedOrNA("%9.3f", h.Fraction[i]))
+		for _, x := range h.Hypotheses {
+			fmt.Fprintf(w, "  %s", fixedOrNA("%22.3f", x.Fraction[i]))
+		}
+		fmt.Fprintln(w)
+	}
+	for _, x := range h.Hypotheses {
+		fmt.Fprintf(w, "binomial ln L, %s: %.1f\n", x.Name, x.LogL)
+	}
 }

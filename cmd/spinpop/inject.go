@@ -249,5 +249,5 @@ func printInjectReport(w io.Writer, r *pipeline.InjectReport) {
 	if r.Replicates < 20 {
 		fmt.Fprintf(w, "note: with %d mocks per cell every rate is uncertain by about ±%.0f %%; raise --replicates\n", r.Replicates, 100*0.5/math.Sqrt(float64(r.Replicates)))
 	}
-	fmt.Fprintf(w, "wrote: %v\n", r.Outputs)
+	fmt.Fprintf(w, "wrote: %s\n", wordList(r.Outputs))
 }

@@ -202,5 +202,5 @@ func printPosteriorReport(w io.Writer, r *pipeline.PosteriorReport) {
 	for _, warn := range r.Warnings {
 		fmt.Fprintln(w, "warning:", warn)
 	}
-	fmt.Fprintf(w, "wrote: %v\n", r.Outputs)
+	fmt.Fprintf(w, "wrote: %s\n", wordList(r.Outputs))
 }

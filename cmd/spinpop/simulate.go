@@ -219,7 +219,7 @@ func printSummary(w io.Writer, s *pipeline.Manifest, asJSON bool) error {
 		fmt.Fprintln(w, "warning:", warn)
 	}
 	if len(s.Outputs) > 0 {
-		fmt.Fprintf(w, "wrote: %v\n", s.Outputs)
+		fmt.Fprintf(w, "wrote: %s\n", wordList(s.Outputs))
 	}
 	return nil
 }

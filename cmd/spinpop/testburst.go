@@ -55,7 +55,7 @@ func runTestBurst(args []string, stdout, stderr io.Writer) error {
 	}
 	printDataSummary(stdout, c.DataSummary())
 	printBurstSummary(stdout, res)
-	fmt.Fprintf(stdout, "wrote: %v\n", outputs)
+	fmt.Fprintf(stdout, "wrote: %s\n", wordList(outputs))
 	return nil
 }
 
@@ -151,7 +151,7 @@ func printBurstSummary(w io.Writer, r *pipeline.BurstOutcome) {
 	fmt.Fprintf(w, "Δln L = %.2f, LR = %.2f; ΔAIC (burst − smooth) = %.1f, ΔBIC = %.1f\n", t.DeltaLogL, t.LR, t.AICBurst-t.AICSmooth, t.BICBurst-t.BICSmooth)
 	fmt.Fprintf(w, "bootstrap p = %.4g from %d replicates (%.1fσ); Chernoff asymptotic p = %.3g (%s)\n", t.PValue, t.Replicates, t.Significance, t.ChernoffP, t.ChernoffNote)
 	if t.HasEvidence {
-		fmt.Fprintf(w, "ln Bayes factor (burst/smooth) = %.2f over %v (%s)\n", t.LogBayesFactor, t.EvidenceParams, t.EvidenceNote)
+		fmt.Fprintf(w, "ln Bayes factor (burst/smooth) = %.2f over %s (%s)\n", t.LogBayesFactor, wordList(t.EvidenceParams), t.EvidenceNote)
 	}
 	if t.AgeParam != "" {
 		iv := t.AgeInterval

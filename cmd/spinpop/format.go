@@ -1,0 +1,53 @@
+package main
+
+import (
+	"fmt"
+	"math"
+	"slices"
+	"strings"
+)
+
+// Plain-text forms of lists and tallies for stdout. Go's %v prints a slice
+// as "[a b c]" and a map as "map[a:1 b:2]", which reads as a program's
+// internals rather than as a sentence; these are what a person writes.
+
+// wordList joins names with commas: "rejected.csv, residuals.png".
+// An empty list reads "none".
+func wordList(names []string) string {
+	if len(names) == 0 {
+		return "none"
+	}
+	return strings.Join(names, ", ")
+}
+
+// tally writes counts by reason, largest first (ties by name, so the line
+// is the same on every run): "period ≤ 0: 12, missing value: 3". An empty
+// tally reads "none".
+func tally(counts map[string]int) string {
+	keys := make([]string, 0, len(counts))
+	for k := range counts {
+		keys = append(keys, k)
+	}
+	slices.SortFunc(keys, func(a, b string) int {
+		if counts[a] != counts[b] {
+			return counts[b] - counts[a]
+		}
+		return strings.Compare(a, b)
+	})
+	parts := make([]string, 0, len(keys))
+	for _, k := range keys {
+		parts = append(parts, fmt.Sprintf("%s: %d", k, counts[k]))
+	}
+	return wordList(parts)
+}
+
+// fixedOrNA formats x with the given verb's width and precision ("%9.3f"),
+// or "n/a" right-aligned in the same width when x is not a number: an
+// empty bin has no fraction, and 0.000 would claim one.
+func fixedOrNA(format string, x float64) string {
+	s := fmt.Sprintf(format, x)
+	if math.IsNaN(x) || math.IsInf(x, 0) {
+		return fmt.Sprintf("%*s", len(s), "n/a")
+	}
+	return s
+}
