@@ -1,0 +1,81 @@
+package main
+
+import (
+	"bytes"
+	"strings"
+	"testing"
+	"time"
+
+	"github.com/stretchr/testify/assert"
+)
+
+// fakeClock moves only when the test says so.
+type fakeClock struct{ t time.Time }
+
+func (c *fakeClock) now() time.Time          { return c.t }
+func (c *fakeClock) advance(d time.Duration) { c.t = c.t.Add(d) }
+
+// In a batch log (stderr not a terminal) long work prints one plain line
+// per ten seconds — no carriage returns — and a last line when it ends.
+func TestProgressInBatchLogEveryTenSeconds(t *testing.T) {
+	clk := &fakeClock{t: time.Date(2026, 1, 1, 0, 0, 0, 0, time.UTC)}
+	var log bytes.Buffer
+	p := newProgressTo(&log, "bootstrap", 1000, false, clk.now)
+	// 65 s of work, an update every 100 ms: lines at 10, 20, …, 60 s.
+	for i := 1; i <= 650; i++ {
+		clk.advance(100 * time.Millisecond)
+		p.Update(int64(i))
+	}
+	p.Done()
+	out := log.String()
+	assert.NotContains(t, out, "\r")
+	lines := strings.Split(strings.TrimSpace(out), "\n")
+	if assert.Len(t, lines, 7, out) {
+		assert.Equal(t, "bootstrap: 100 of 1000 (10 %) after 10s, eta 1m30s", lines[0])
+		assert.Equal(t, "bootstrap: 600 of 1000 (60 %) after 1m0s, eta 40s", lines[5])
+		assert.Equal(t, "bootstrap: finished after 1m5s", lines[6])
+	}
+}
+
+// Work shorter than the interval leaves the log silent, even at its end.
+func TestProgressShortWorkSilent(t *testing.T) {
+	clk := &fakeClock{t: time.Unix(0, 0)}
+	var log bytes.Buffer
+	p := newProgressTo(&log, "templates", 10, false, clk.now)
+	for i := 1; i <= 10; i++ {
+		clk.advance(500 * time.Millisecond)
+		p.Update(int64(i))
+	}
+	p.Done()
+	assert.Empty(t, log.String())
+}
+
+// Updates far apart in time still print at most one line each, and a
+// stalled count still prints (the log shows the job is alive).
+func TestProgressStalledWorkStillReports(t *testing.T) {
+	clk := &fakeClock{t: time.Unix(0, 0)}
+	var log bytes.Buffer
+	p := newProgressTo(&log, "templates", 10, false, clk.now)
+	clk.advance(25 * time.Second)
+	p.Update(0)
+	clk.advance(25 * time.Second)
+	p.Update(0)
+	lines := strings.Split(strings.TrimSpace(log.String()), "\n")
+	assert.Equal(t, []string{"templates: 0 of 10 (0 %) after 25s", "templates: 0 of 10 (0 %) after 50s"}, lines)
+}
+
+// On a terminal the bar is redrawn in place and cleared at the end.
+func TestProgressOnTerminalRedrawsInPlace(t *testing.T) {
+	clk := &fakeClock{t: time.Unix(0, 0)}
+	var out bytes.Buffer
+	p := newProgressTo(&out, "simulating", 100, true, clk.now)
+	for i := 1; i <= 30; i++ {
+		clk.advance(200 * time.Millisecond)
+		p.Update(int64(i))
+	}
+	p.Done()
+	s := out.String()
+	assert.NotContains(t, s, "\n")
+	assert.Contains(t, s, "\rsimulating [")
+	assert.True(t, strings.HasSuffix(s, "\r"))
+}
