@@ -217,7 +217,7 @@ func Field(s *scenarios.Scenario) (disk.Field, error) {
 	return field, nil
 }
 
-// Cuts gives the catalogue cuts, shared by model and data.
+// Cuts gives the catalog cuts, shared by model and data.
 func Cuts(s *scenarios.Scenario) model.Cuts {
 	c := s.Cuts
 	return model.Cuts{BVMin: c.BVMin, BVMax: c.BVMax, MSBandBrightMag: c.MSBandBrightMag, MSBandFaintMag: c.MSBandFaintMag,

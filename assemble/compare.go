@@ -42,7 +42,7 @@ func TemplateKey(r *scenarios.Resolved) (string, error) {
 }
 
 // Space is the comparison space of a scenario: B−V between the
-// catalogue's color cut, log period within the compare range, |z| bins.
+// catalog's color cut, log period within the compare range, |z| bins.
 func Space(s *scenarios.Scenario) (compare.Space, error) {
 	c := s.Compare
 	sp, err := compare.NewSpace(s.Cuts.BVMin, s.Cuts.BVMax, c.ColorBins, c.PeriodMinD, c.PeriodMaxD, c.LogPeriodBins, c.HeightEdgesPc)

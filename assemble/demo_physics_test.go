@@ -16,7 +16,7 @@ import (
 // Common practice, no source (a fact of the trade): the gap in field-star
 // rotation periods sits near the ~600 Myr gyrochrone, which for K dwarfs
 // falls at roughly 10–20 days. The demo's burst population (0.6 Gyr) of
-// B−V 0.9–1.2 catalogue stars must land there.
+// B−V 0.9–1.2 catalog stars must land there.
 func TestDemoBurstKDwarfsNearSixHundredMyrGyrochrone(t *testing.T) {
 	res, err := scenarios.LoadExample("burst")
 	require.NoError(t, err)
@@ -32,7 +32,7 @@ func TestDemoBurstKDwarfsNearSixHundredMyrGyrochrone(t *testing.T) {
 		return nil
 	})
 	require.NoError(t, err)
-	require.Greater(t, len(periods), 100, "the burst puts K dwarfs in the catalogue")
+	require.Greater(t, len(periods), 100, "the burst puts K dwarfs in the catalog")
 	sort.Float64s(periods)
 	med := periods[len(periods)/2]
 	require.GreaterOrEqual(t, med, 10.0)
@@ -51,7 +51,7 @@ func TestDemoBurstKDwarfsNearSixHundredMyrGyrochrone(t *testing.T) {
 // rotators (common practice, no source: detection fractions of field
 // rotation surveys fall with age and period). With the examples' spot and
 // noise parameters the model must show that: most stars older than 5 Gyr
-// that pass the catalogue's photometric cuts have no detected period,
+// that pass the catalog's photometric cuts have no detected period,
 // while most stars of 0.1–1 Gyr do.
 func TestExampleMissesMostOldSlowStars(t *testing.T) {
 	res, err := scenarios.LoadExample("base")

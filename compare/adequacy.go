@@ -44,7 +44,7 @@ type Adequacy struct {
 	Dispersion   float64 `json:"dispersion"`           // φ̂ = max(1, D/mean(D*))
 	Excess       float64 `json:"excess"`               // D − mean(D*)
 	Replicates   int     `json:"replicates"`
-	// Regions splits D and mean(D*) by colour column, period band and
+	// Regions splits D and mean(D*) by color column, period band and
 	// (3-D comparisons) height band, largest excess first: where the misfit
 	// lives.
 	Regions []RegionMisfit `json:"regions"`
@@ -101,7 +101,7 @@ type region struct {
 // misfit report.
 const periodBands = 6
 
-// misfitRegions returns the colour columns, period bands and (when the
+// misfitRegions returns the color columns, period bands and (when the
 // space has several) height bands of sp.
 func misfitRegions(sp Space) []region {
 	var out []region

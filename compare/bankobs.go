@@ -9,7 +9,7 @@ import (
 )
 
 // BankObserver makes templates at nuisance values by re-observing the
-// catalogue-eligible stars of the template run (model.Bank.Observe): no
+// catalog-eligible stars of the template run (model.Bank.Observe): no
 // star is generated again. Apply turns nuisance values into the population
 // that observes them — the template population with, say, another
 // spin-down coefficient or detection threshold; it must change nothing that

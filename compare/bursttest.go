@@ -43,7 +43,7 @@ type BurstResult struct {
 	Smooth, Burst FitResult
 	DeltaLogL     float64 // ln L̂(burst) − ln L̂(smooth)
 	LR            float64 // 2 Δln L, floored at 0
-	N             int     // catalogue stars compared
+	N             int     // catalog stars compared
 	KSmooth       int     // parameters counted for AIC/BIC: free ones, +1 for a free normalisation
 	KBurst        int
 	AICSmooth     float64
@@ -124,7 +124,7 @@ const (
 // (Protassov et al. 2002) — hence the bootstrap.
 //
 // AIC and BIC count k = free parameters + 1 for a free normalisation and
-// take n = the number of catalogue stars in the comparison.
+// take n = the number of catalog stars in the comparison.
 //
 // Replicates run on Workers goroutines, each with its own stream of
 // (Seed, index), and are stored by index: identical results for any
@@ -156,7 +156,7 @@ func BurstTest(ctx context.Context, like *Likelihood, smooth, burst HistoryModel
 	}
 	if nu.Dim() > 0 {
 		// The smooth fit may have bent the physics to mimic a burst it
-		// cannot have (a wide period scatter smearing a ridge, a colour
+		// cannot have (a wide period scatter smearing a ridge, a color
 		// shift); the burst model is also fitted from the scenario's values,
 		// with its own scan of burst ages, and the better fit kept.
 		f1b, err := FitJoint(ctx, like, burst, nu, FitOptions{Starts: opts.FitStarts, Seed: opts.Seed, Stage: stage("with burst (from the scenario's values), ")})

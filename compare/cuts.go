@@ -14,7 +14,7 @@ const (
 // CutNames lists the cut names in order, for reports.
 var CutNames = []string{CutColor, CutMainSequence, CutPeriodWindow, CutHeight, CutOutsideSpace}
 
-// KeepStar applies the catalogue cuts to one observed star: cuts.Keep, the
+// KeepStar applies the catalog cuts to one observed star: cuts.Keep, the
 // very methods model.Population calls when it sets a synthetic star's
 // flags, so data and model are cut alike. It returns ok, or the name of the
 // first cut that removes the star.

@@ -24,7 +24,7 @@ type HeightResult struct {
 	ZEdgesPc    []float64
 	SplitAgeGyr float64
 	// YoungCell marks the (color, period) cells counted as young (period
-	// below the split gyrochrone at the cell's centre colour); Classified
+	// below the split gyrochrone at the cell's centre color); Classified
 	// marks the cells the gyrochrone reaches at all. Both are in
 	// NumColorPeriod order, for plotting the split.
 	YoungCell, Classified []bool
@@ -35,7 +35,7 @@ type HeightResult struct {
 }
 
 // HeightCheck splits the comparison plane at the gyrochrone of
-// splitAgeGyr — gyro(bv) gives its period at colour bv, ok false where the
+// splitAgeGyr — gyro(bv) gives its period at color bv, ok false where the
 // law has none — and compares the young fraction of the catalog in each
 // |z| bin with the fraction each hypothesis (name → age-bin weights)
 // predicts through the 3-D templates. A young disk population is thinner
@@ -69,9 +69,9 @@ func PredictionOf(f FitResult, base *Templates) Prediction {
 }
 
 // HeightCheckFits is HeightCheck with each hypothesis' own templates.
-// tpl gives the space. With perColor, each hypothesis' colour columns are
+// tpl gives the space. With perColor, each hypothesis' color columns are
 // scaled to the catalog's counts before the young fraction is taken, as a
-// likelihood conditional on colour predicts it.
+// likelihood conditional on color predicts it.
 func HeightCheckFits(tpl *Templates, obs *Observed, splitAgeGyr float64, gyro func(bv float64) (periodD float64, ok bool), hypotheses map[string]Prediction, perColor bool) (*HeightResult, error) {
 	if tpl == nil || obs == nil || gyro == nil {
 		return nil, errors.New("compare: HeightCheck needs templates, an observed catalog and a gyrochrone")
@@ -153,7 +153,7 @@ func HeightCheckFits(tpl *Templates, obs *Observed, splitAgeGyr float64, gyro fu
 	return res, nil
 }
 
-// scaleColumns scales each colour column of the 3-D expectation mu to the
+// scaleColumns scales each color column of the 3-D expectation mu to the
 // data's count in that column.
 func scaleColumns(sp Space, mu, data []float64) {
 	per := sp.NumLogPeriod() * sp.NumHeight()

@@ -13,9 +13,9 @@ const (
 	NormFree     = "free"
 	NormAbsolute = "absolute"
 	// NormPerColor profiles one free scale per B−V column: the likelihood
-	// of the period (and height) distribution within each colour column,
+	// of the period (and height) distribution within each color column,
 	// conditional on how many stars the column holds. The IMF, the relation
-	// table and any selection in colour alone drop out of it.
+	// table and any selection in color alone drop out of it.
 	NormPerColor = "per-color"
 	// NormPerColorHeight profiles one scale per (B−V, |z|) cell: the
 	// period distribution within each cell. It needs a 3-D comparison.
@@ -35,7 +35,7 @@ type LikeOptions struct {
 	// likelihood of the histogram's shape, reported as the Poisson
 	// likelihood at the best scale — or "absolute": μ_i = MassScale Σ_k
 	// w_k T_ki exactly; or "per-color" / "per-color-height": one free scale
-	// per colour column (per colour × height cell), i.e. the likelihood
+	// per color column (per color × height cell), i.e. the likelihood
 	// conditional on the number of stars in each column (cell).
 	Normalisation string
 	// TemplateNoise is "barlow-beeston-lite" (default) or "ignore". The
@@ -49,7 +49,7 @@ type LikeOptions struct {
 	// Use3D compares in color × log period × |z|; otherwise the heights are
 	// summed and the comparison is in the (color, period) plane.
 	Use3D bool
-	// MassScale, for absolute normalisation, is the number of catalogue
+	// MassScale, for absolute normalisation, is the number of catalog
 	// stars one template star stands for when the weights are the
 	// history's bin mass fractions: μ_i = MassScale Σ_k w_k T_ki.
 	MassScale float64
@@ -70,7 +70,7 @@ func (o *LikeOptions) fill() error {
 		}
 	case NormAbsolute:
 		if !(o.MassScale > 0) || math.IsInf(o.MassScale, 0) {
-			return fmt.Errorf("compare: absolute normalisation needs MassScale > 0 (catalogue stars per template star at unit total mass), got %g", o.MassScale)
+			return fmt.Errorf("compare: absolute normalisation needs MassScale > 0 (catalog stars per template star at unit total mass), got %g", o.MassScale)
 		}
 	default:
 		return fmt.Errorf("compare: normalisation %q: want one of %s", o.Normalisation, quoteList(Normalisations))
@@ -111,8 +111,8 @@ func quoteList(xs []string) string {
 // returns that profiled value, and its gradient follows from the envelope
 // theorem: ∂/∂w_k = Σ_i (n_i/m_i − N/M) T_ki.
 //
-// Per-colour normalisation is the same with one scale s_g = N_g/M_g per
-// group g of bins (a colour column, or a colour × height cell): the
+// Per-color normalisation is the same with one scale s_g = N_g/M_g per
+// group g of bins (a color column, or a color × height cell): the
 // product of one multinomial per group, the likelihood of the period
 // distribution within each column given the column's count. Groups
 // without data stars contribute nothing.
@@ -488,7 +488,7 @@ func (l *Likelihood) Options() LikeOptions { return l.opts }
 
 // NumScales returns the number of normalisation parameters the likelihood
 // profiles: 0 for an absolute normalisation, 1 for a free one, and the
-// number of colour columns (or cells) holding data for a per-colour one.
+// number of color columns (or cells) holding data for a per-color one.
 // They count as parameters in AIC and BIC.
 func (l *Likelihood) NumScales() int {
 	if !l.free {
@@ -792,7 +792,7 @@ func (l *Likelihood) bbScale() (float64, bool) {
 
 // Scale returns the normalisation in force at weights: N/Σ m_i for a free
 // normalisation (the plain-Poisson best scale), MassScale otherwise. With
-// one scale per colour column it returns the data-weighted mean, N/Σ_g M_g
+// one scale per color column it returns the data-weighted mean, N/Σ_g M_g
 // over the groups that hold data; Expected uses each group's own.
 func (l *Likelihood) Scale(weights []float64) float64 {
 	if !l.free {

@@ -10,7 +10,7 @@ import (
 	"spinpop/compare/stats"
 )
 
-// The per-colour likelihood is the sum over colour columns of each
+// The per-color likelihood is the sum over color columns of each
 // column's profiled Poisson likelihood, which stats.ProfiledPoissonLogL
 // computes independently, column by column.
 // Source: the identity max_s Σ[n ln sμ − sμ − ln n!] at s = N/Σμ, applied
@@ -59,8 +59,8 @@ func TestPerColorIsSumOfColumnLikelihoods(t *testing.T) {
 	}
 }
 
-// What the per-colour likelihood is for: a change that scales whole colour
-// columns — another IMF, another relation table, a selection in colour
+// What the per-color likelihood is for: a change that scales whole color
+// columns — another IMF, another relation table, a selection in color
 // alone — leaves it unchanged, for exact and noisy templates alike, while
 // the free-normalisation likelihood moves.
 func TestPerColorIgnoresColumnScaling(t *testing.T) {

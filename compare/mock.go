@@ -10,7 +10,7 @@ import (
 )
 
 // drawLikeMock fills dst with a mock catalog for like's normalisation: with
-// one free scale per colour column (cell), a multinomial within each group
+// one free scale per color column (cell), a multinomial within each group
 // holding the data's count of the group, as the likelihood conditions on
 // them; otherwise drawMock.
 func drawLikeMock(dst, mu []float64, like *Likelihood, r *rand.Rand) {

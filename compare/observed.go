@@ -22,7 +22,7 @@ type DataSpec struct {
 	Extension string          // FITS: the extension by EXTNAME or number (catalog.Options.Extension)
 	Mapping   catalog.Mapping // column names; Color is B−V, AbsMag is M_V
 	SunZPc    float64         // z☉ added to d sin b when heights are derived from parallax
-	Cuts      model.Cuts      // the catalogue cuts, the same the model applies
+	Cuts      model.Cuts      // the catalog cuts, the same the model applies
 	Relations *model.Relations
 }
 

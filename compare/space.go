@@ -12,7 +12,7 @@ import (
 // Space is the comparison space: B−V color × log10 rotation period (days) ×
 // |z| (pc), each cut by edges. Bins are half-open [e_i, e_{i+1}) except the
 // last of each axis, which is closed, so a star on the outer edge counts.
-// Bins are flattened colour-major: ((color·nP)+p)·nZ+z, so the |z| bins of
+// Bins are flattened color-major: ((color·nP)+p)·nZ+z, so the |z| bins of
 // one (color, period) cell are adjacent and the 2-D marginal is a sum of
 // runs.
 type Space struct {

@@ -27,7 +27,7 @@ type Templates struct {
 	StarsDrawn  int64   // stars generated in all
 	DrawnPerBin []int64 // stars generated per age bin
 	Key         string  // hash of the scenario parts the templates depend on, set by the caller
-	// Bank holds the run's catalogue-eligible stars when TemplateOptions.Bank
+	// Bank holds the run's catalog-eligible stars when TemplateOptions.Bank
 	// asked for them (not saved with the templates).
 	Bank *model.Bank
 }
@@ -41,7 +41,7 @@ type TemplateOptions struct {
 	// Progress, if not nil, is called on the calling goroutine after each
 	// chunk with the stars done so far and the total.
 	Progress func(done, total int64)
-	// Bank, if not nil, also keeps the run's catalogue-eligible stars
+	// Bank, if not nil, also keeps the run's catalog-eligible stars
 	// (Templates.Bank) with these margins, so that nuisance parameters can
 	// be fitted by re-observing them (BankObserver).
 	Bank *model.BankMargin
@@ -266,8 +266,8 @@ func (t *Templates) ZeroCells(mask []bool) {
 }
 
 // YoungMask marks the (color, period) cells of sp whose periods all lie
-// below gyro(B−V) by more than marginDex (log10), at the cell's colour
-// centre; colours where gyro has no period are not masked. With gyro the
+// below gyro(B−V) by more than marginDex (log10), at the cell's color
+// centre; colors where gyro has no period are not masked. With gyro the
 // gyrochrone of the youngest age a spin-down law describes, these are the
 // cells only stars younger than that reach: in a real or foreign catalog
 // they hold fast rotators no model of the slow sequence describes.

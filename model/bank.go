@@ -14,14 +14,14 @@ import (
 	"spinpop/model/spots"
 )
 
-// Bank holds the stars of a run that a catalogue could hold — those that
-// pass the survey's magnitude limits and the photometric catalogue cuts,
+// Bank holds the stars of a run that a catalog could hold — those that
+// pass the survey's magnitude limits and the photometric catalog cuts,
 // and are not evolved out of the dwarf sample — with what it takes to
 // observe them again: mass, age, T_eff, colors, magnitudes, height,
 // companion, and a seed for the star's own random numbers. Re-observing the
 // bank (Observe) under another spin-down law, intrinsic period scatter,
 // spot or detection model, period recovery, color calibration, binary
-// fraction or period window gives the expected catalogue without
+// fraction or period window gives the expected catalog without
 // generating a single new star: what a fit needs to move such
 // parameters (nuisance parameters) at the price of a pass over ~10⁶ stored
 // stars instead of a run of 10⁷–10⁸.
@@ -32,7 +32,7 @@ type Bank struct {
 	Start       []int   // len NumAgeBins+1
 	DrawnPerBin []int64 // stars generated per age bin, stored or not
 	Margin      BankMargin
-	Cuts        Cuts             // the run's catalogue cuts
+	Cuts        Cuts             // the run's catalog cuts
 	Color       ColorCalibration // the run's color calibration
 	Noise       spots.NoiseModel // the run's survey noise, for which NoisePpm holds each star's
 
@@ -48,7 +48,7 @@ type Bank struct {
 	Seed                    []uint64
 }
 
-// BankMargin widens the color cut (ColorMag on each side, catalogue scale)
+// BankMargin widens the color cut (ColorMag on each side, catalog scale)
 // and the main-sequence band (BandMag on each side) for the stars a Bank
 // keeps, so that a color calibration moved by up to that much can bring
 // stars in; Observe then applies the exact cuts. Zero keeps exactly the
@@ -86,7 +86,7 @@ func NewBankBuilder(p *Population, nAgeBins int, seed uint64, margin BankMargin)
 	return &BankBuilder{pop: p, seed: seed, margin: margin, bins: make([]Bank, nAgeBins), drawn: make([]int64, nAgeBins)}, nil
 }
 
-// Add stores the chunk's catalogue-eligible stars. Chunks must come in
+// Add stores the chunk's catalog-eligible stars. Chunks must come in
 // chunk order (model.RunChunks hands them over so) for the bank to be the
 // same for any number of workers.
 func (bb *BankBuilder) Add(c *Chunk) {
@@ -196,11 +196,11 @@ type ObserveOptions struct {
 }
 
 // Observe returns, for every age bin k and grid bin i, the expected number
-// of the bank's stars that obs's survey catalogues there (counts, k-major)
+// of the bank's stars that obs's survey catalogs there (counts, k-major)
 // and an upper bound on its Monte Carlo variance (vars). obs must be the
 // bank's population with only the parts that observe stars changed:
 // spin-down law and turnover time, spots, detection, recovery, color
-// calibration, binary fraction scale and tidal locking, catalogue cuts
+// calibration, binary fraction scale and tidal locking, catalog cuts
 // inside the bank's margins.
 //
 // Each star counts with its detection probability (not a random

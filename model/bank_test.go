@@ -25,7 +25,7 @@ func bankGrid() Grid {
 	return g
 }
 
-// randomTemplates runs p and bins its catalogue stars (random detection,
+// randomTemplates runs p and bins its catalog stars (random detection,
 // random recovery) per age bin into g, and collects a bank of the same run.
 func randomTemplatesAndBank(t *testing.T, p *Population, g Grid, nStars int64, margin BankMargin) (counts []float64, bank *Bank) {
 	t.Helper()
@@ -94,7 +94,7 @@ func TestBankObserveMatchesGenerator(t *testing.T) {
 		sn += counts[i]
 		se += exp[i]
 	}
-	assert.InDelta(t, se, sn, 4*math.Sqrt(se), "total catalogue stars")
+	assert.InDelta(t, se, sn, 4*math.Sqrt(se), "total catalog stars")
 	// The variance of a weighted count is below its expectation.
 	for i := range vars {
 		assert.LessOrEqual(t, vars[i], exp[i]*(1+1e-12)+1e-300)

@@ -3,7 +3,7 @@ package model
 import "spinpop/disk"
 
 // Flag bits record what happened to a star on its way through the survey,
-// so a catalog row says why a star was or was not kept. The catalogue's
+// so a catalog row says why a star was or was not kept. The catalog's
 // steps are tested in order (magnitude limits, color range, main-sequence
 // band, then rotation and its detection) and a star is not tested beyond
 // the first photometric step it fails: FlagOnMainSeq is set only for stars
@@ -20,15 +20,15 @@ const (
 	FlagOutsideLaw                      // outside the spin-down law's calibrated range: no period
 	FlagTidalLock                       // close binary, period set by the orbit
 	FlagInMagRange                      // apparent magnitude within the survey limits
-	FlagInColorRange                    // observed color inside the catalogue cut
+	FlagInColorRange                    // observed color inside the catalog cut
 	FlagOnMainSeq                       // inside the band around the single-star main sequence
 	FlagDetected                        // the survey measured a period
-	FlagInPeriodWindow                  // measured period inside the catalogue's period window
+	FlagInPeriodWindow                  // measured period inside the catalog's period window
 	FlagHalfAlias                       // measured period is half the true one
 	FlagDoubleAlias                     // measured period is twice the true one
 )
 
-// Selected reports whether a star ends in the observed catalogue: every
+// Selected reports whether a star ends in the observed catalog: every
 // selection step passed.
 func (f Flag) Selected() bool {
 	const all = FlagInMagRange | FlagInColorRange | FlagOnMainSeq | FlagDetected | FlagInPeriodWindow
@@ -40,7 +40,7 @@ func (f Flag) Selected() bool {
 // reused from chunk to chunk, so the hot path allocates nothing.
 //
 // Most generated stars fail the survey's magnitude limits, so rotation is
-// worked out only for the stars a catalogue could hold, those that pass the
+// worked out only for the stars a catalog could hold, those that pass the
 // magnitude, color and main-sequence cuts (see Flag). For the others
 // LDeg, BDeg, PeriodD, MeasPeriodD, Rossby, AmpPpm and NoisePpm are NaN
 // and DetectProb is 0; every other column is filled for every star (BV and
@@ -65,7 +65,7 @@ type Chunk struct {
 	ZPc           []float64
 	AV            []float64 // extinction in V
 	AppMag        []float64 // apparent magnitude in the survey band
-	ObsBV         []float64 // reddened color as a catalogue would list it
+	ObsBV         []float64 // reddened color as a catalog would list it
 	ObsAbsMag     []float64 // m - 5 log10(d/10 pc): absolute magnitude as derived from parallax
 	PeriodD       []float64 // true rotation period (NaN outside the law's range)
 	MeasPeriodD   []float64 // period the survey reports (NaN if not detected)
@@ -77,7 +77,7 @@ type Chunk struct {
 
 	// dir holds each star's direction as the joint sampler drew it, until
 	// star turns it into LDeg and BDeg (only for stars that pass the
-	// photometric catalogue cuts).
+	// photometric catalog cuts).
 	dir []disk.Direction
 }
 

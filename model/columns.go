@@ -7,10 +7,10 @@ import (
 	"sync"
 )
 
-// Column is one per-star quantity as a catalogue lists it. The table of
+// Column is one per-star quantity as a catalog lists it. The table of
 // columns (CatalogColumns) is the single list that sizes a chunk's arrays,
-// resets the columns worked out only for catalogue candidates, and drives
-// every writer of a synthetic catalogue and the in-memory catalogue, so a
+// resets the columns worked out only for catalog candidates, and drives
+// every writer of a synthetic catalog and the in-memory catalog, so a
 // new quantity is added in one place.
 //
 // A column is one of four sorts, by which field is set:
@@ -32,7 +32,7 @@ type Column struct {
 
 	// Reset says when Fill sets a stored column to NaN before the stars of
 	// a chunk are made: quantities worked out only for stars that pass the
-	// photometric catalogue cuts (see Chunk) start as "not worked out".
+	// photometric catalog cuts (see Chunk) start as "not worked out".
 	Reset ResetRule
 }
 
@@ -42,9 +42,9 @@ type ResetRule uint8
 const (
 	// NoReset: every star of the chunk gets a value.
 	NoReset ResetRule = iota
-	// ResetAlways: only catalogue candidates get a value.
+	// ResetAlways: only catalog candidates get a value.
 	ResetAlways
-	// ResetJointDraw: only catalogue candidates get a value when the
+	// ResetJointDraw: only catalog candidates get a value when the
 	// positions come from the joint sampler, which keeps a direction and
 	// turns it into angles only for them; a plain Placer gives angles to
 	// every star.
@@ -71,7 +71,7 @@ func (col *Column) Float(c *Chunk, i int) float64 {
 // IsWords reports whether the column holds words rather than numbers.
 func (col *Column) IsWords() bool { return col.Words != nil }
 
-// builtinColumns are the catalogue's columns, in file order.
+// builtinColumns are the catalog's columns, in file order.
 var builtinColumns = []Column{
 	{Name: "mass_msun", Unit: "solMass", Doc: "mass of the (primary) star", Stored: func(c *Chunk) *[]float64 { return &c.MassMsun }},
 	{Name: "companion_mass_msun", Unit: "solMass", Doc: "mass of an unresolved companion; 0 when single", Stored: func(c *Chunk) *[]float64 { return &c.CompanionMsun }},
@@ -102,7 +102,7 @@ var builtinColumns = []Column{
 	{Name: "alias", Doc: "half, double or none: the measured period against the true one", Words: aliasWord},
 }
 
-// chunkOnlyColumns are stored in a chunk but not written to a catalogue.
+// chunkOnlyColumns are stored in a chunk but not written to a catalog.
 var chunkOnlyColumns = []func(c *Chunk) *[]float64{
 	func(c *Chunk) *[]float64 { return &c.DetectProb },
 }
@@ -141,7 +141,7 @@ func init() {
 	storedColumns = append(storedColumns, chunkOnlyColumns...)
 }
 
-// CatalogColumns returns the catalogue's columns in file order: the
+// CatalogColumns returns the catalog's columns in file order: the
 // built-in ones, then those added with RegisterColumn.
 func CatalogColumns() []Column {
 	columnsMu.RLock()
@@ -149,7 +149,7 @@ func CatalogColumns() []Column {
 	return append(slices.Clone(builtinColumns), registered...)
 }
 
-// BuiltinColumnNames returns the names of the built-in catalogue columns.
+// BuiltinColumnNames returns the names of the built-in catalog columns.
 func BuiltinColumnNames() []string {
 	names := make([]string, len(builtinColumns))
 	for i, c := range builtinColumns {
@@ -159,7 +159,7 @@ func BuiltinColumnNames() []string {
 }
 
 // RegisterColumn adds a derived column after the built-in ones. Every
-// catalogue written afterwards carries it. Its name must be new, and it
+// catalog written afterwards carries it. Its name must be new, and it
 // must be Derived (a column stored in a chunk needs a field of Chunk and is
 // added to builtinColumns instead).
 func RegisterColumn(col Column) error {
@@ -180,7 +180,7 @@ func RegisterColumn(col Column) error {
 	return nil
 }
 
-// resetColumns sets the columns worked out only for catalogue candidates
+// resetColumns sets the columns worked out only for catalog candidates
 // to NaN for the first n stars of c; joint says whether the positions came
 // from the joint sampler.
 func resetColumns(c *Chunk, n int, joint bool) {

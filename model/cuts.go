@@ -2,7 +2,7 @@ package model
 
 import "math"
 
-// Cuts are the catalogue cuts, applied identically to model and data: the
+// Cuts are the catalog cuts, applied identically to model and data: the
 // generator sets a synthetic star's flags with these methods, and compare
 // keeps or removes an observed star with Keep, which calls the same ones.
 type Cuts struct {
@@ -25,7 +25,7 @@ const (
 // InColorRange is the color cut on the observed (reddened) B−V.
 func (c Cuts) InColorRange(obsBV float64) bool { return obsBV >= c.BVMin && obsBV <= c.BVMax }
 
-// OnMainSequence is the catalogue's color–magnitude cut: keep a star whose
+// OnMainSequence is the catalog's color–magnitude cut: keep a star whose
 // M_V (from parallax, extinction included) lies within the band around the
 // single-star sequence at its B−V. Unresolved binaries (up to 0.753 mag
 // brighter) and evolved stars fall out when the band is narrow, in data
@@ -56,7 +56,7 @@ func (c Cuts) HeightInRange(zPc float64) bool {
 	return c.HeightMaxPc <= 0 || math.Abs(zPc) <= c.HeightMaxPc
 }
 
-// Keep applies the cuts to one star as a catalogue lists it: observed B−V
+// Keep applies the cuts to one star as a catalog lists it: observed B−V
 // bv, absolute V magnitude absMagV (from parallax, extinction included),
 // measured period periodD in days and height zPc above the plane. It
 // returns ok, or the name of the first cut that removes the star.

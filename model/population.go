@@ -33,20 +33,20 @@ type Survey struct {
 	FaintLimitMag  float64
 	Detect         spots.Detection // noise model, cadence, baseline, threshold
 	Recovery       spots.RecoveryOptions
-	Color          ColorCalibration // how the catalogue's B−V scale relates to the model's
+	Color          ColorCalibration // how the catalog's B−V scale relates to the model's
 }
 
 // ColorPivotMag is the B−V about which ColorCalibration stretches colors:
-// near the middle of the F–K range that rotation catalogues hold, so that
-// a change of scale moves the catalogue's mean color little and the
+// near the middle of the F–K range that rotation catalogs hold, so that
+// a change of scale moves the catalog's mean color little and the
 // offset and the scale are nearly independent when both are fitted.
 const ColorPivotMag = 1.0
 
-// ColorCalibration maps the model's B−V onto the catalogue's color scale:
+// ColorCalibration maps the model's B−V onto the catalog's color scale:
 //
-//	B−V(catalogue) = B−V + OffsetMag + (Scale − 1)(B−V − ColorPivotMag).
+//	B−V(catalog) = B−V + OffsetMag + (Scale − 1)(B−V − ColorPivotMag).
 //
-// Two catalogues — or a catalogue and the relation table — rarely share a
+// Two catalogs — or a catalog and the relation table — rarely share a
 // color zero point and scale to better than a few hundredths of a
 // magnitude; fitted as nuisance parameters they stop a calibration
 // difference from posing as a change in the ages. The zero value (Scale
@@ -56,7 +56,7 @@ type ColorCalibration struct {
 	Scale     float64
 }
 
-// Apply maps a model color onto the catalogue's scale.
+// Apply maps a model color onto the catalog's scale.
 func (c ColorCalibration) Apply(bv float64) float64 {
 	if c.Scale == 0 {
 		return bv + c.OffsetMag
@@ -64,7 +64,7 @@ func (c ColorCalibration) Apply(bv float64) float64 {
 	return bv + c.OffsetMag + (c.Scale-1)*(bv-ColorPivotMag)
 }
 
-// Invert maps a catalogue color back onto the model's scale.
+// Invert maps a catalog color back onto the model's scale.
 func (c ColorCalibration) Invert(bv float64) float64 {
 	if c.Scale == 0 {
 		return bv - c.OffsetMag
@@ -199,7 +199,7 @@ const (
 // and an exponential. Either way the stars follow the same distributions,
 // drawn with different random numbers. Rotation, its detection and the
 // sky angles are worked out only for stars that pass the photometric
-// catalogue cuts (see Chunk).
+// catalog cuts (see Chunk).
 func (p *Population) Fill(c *Chunk, r *rand.Rand) {
 	if p.joint != nil {
 		p.joint.DrawMany(r, c.AgeBin[:c.N], c.dir[:c.N], c.DistPc[:c.N], c.ZPc[:c.N])
@@ -324,7 +324,7 @@ func (p *Population) star(c *Chunk, i int, r *rand.Rand) {
 	c.AppMag[i] = app
 	if app >= p.Survey.BrightLimitMag && app <= p.Survey.FaintLimitMag {
 		flags |= FlagInMagRange
-		// The color scatter is drawn only for stars a catalogue could hold
+		// The color scatter is drawn only for stars a catalog could hold
 		// (about one in ten): the others keep their mean color, which no
 		// count or output reads (see Chunk), and the hot path one normal
 		// deviate per star.
@@ -333,7 +333,7 @@ func (p *Population) star(c *Chunk, i int, r *rand.Rand) {
 		}
 	}
 	c.BV[i] = bv
-	// What a catalogue derives from photometry and parallax alone: reddened
+	// What a catalog derives from photometry and parallax alone: reddened
 	// color, and M_V = V − 5 log10(d/10 pc) with the extinction still in.
 	obsBV, obsAbs := p.Survey.Color.Apply(bv+ebvPerAV*av), absV+av
 	c.ObsBV[i], c.ObsAbsMag[i] = obsBV, obsAbs
@@ -346,7 +346,7 @@ func (p *Population) star(c *Chunk, i int, r *rand.Rand) {
 		flags |= FlagOnMainSeq
 	}
 
-	// Rotation and its detection matter only for stars a catalogue could
+	// Rotation and its detection matter only for stars a catalog could
 	// hold; about nine in ten generated stars fail the magnitude limits
 	// alone, so the rest of the star is skipped for them (see Chunk).
 	if flags&catalogCuts != catalogCuts || flags&FlagGone != 0 {
@@ -437,7 +437,7 @@ func (p *Population) rotate(s spin.Star, comp, noisePpm float64, lawR, spotR *ra
 	rot.prob, rot.ampPpm = 1, math.NaN()
 	if p.Spots != nil {
 		// A star outside the turnover-time fit has no Rossby number; its
-		// NaN amplitude makes it undetectable, which the catalogue flags.
+		// NaN amplitude makes it undetectable, which the catalog flags.
 		rot.ampPpm = p.Spots.Draw(rot.rossby, spotR)
 		rot.prob = p.Survey.Detect.ProbabilityAtNoise(rot.ampPpm, noisePpm, per)
 	} else if per < 2*p.Survey.Detect.CadenceD || p.Survey.Detect.BaselineD < p.Survey.Detect.MinCycles*per {
@@ -448,8 +448,8 @@ func (p *Population) rotate(s spin.Star, comp, noisePpm float64, lawR, spotR *ra
 	return rot
 }
 
-// catalogCuts are the photometric catalogue steps. A star that fails one
-// of them can never enter a catalogue, whatever its rotation.
+// catalogCuts are the photometric catalog steps. A star that fails one
+// of them can never enter a catalog, whatever its rotation.
 const catalogCuts = FlagInMagRange | FlagInColorRange | FlagOnMainSeq
 
 // unit32 maps the low 32 bits of x to [0, 1).

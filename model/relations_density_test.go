@@ -27,8 +27,8 @@ func (s stripeReport) String() string {
 		s.failing, s.bins, s.ratios[0], s.ratios[1], s.rms, s.poisson, s.worst, s.worstBV)
 }
 
-// Colour-density check of issue 9: n masses from a power-law IMF, through
-// bvOf, binned in B−V (0.005 mag) over the catalogue's range 0.45–1.60.
+// Color-density check of issue 9: n masses from a power-law IMF, through
+// bvOf, binned in B−V (0.005 mag) over the catalog's range 0.45–1.60.
 // Each bin is compared with a smooth trend, a local quadratic
 // (Savitzky–Golay) fit of the counts around it: over 21 bins (±0.05 mag)
 // below B−V 1.40, over 11 bins (±0.025 mag) from 1.40 up. The narrower

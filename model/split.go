@@ -9,8 +9,8 @@ import (
 // Split runs. A very large run is cut into contiguous chunk ranges, each
 // run on its own machine (RunChunkRange), and the parts' results merged in
 // chunk order. Since chunk i draws only from ChunkStream(seed, i), the
-// merged tally equals the one-machine run's exactly, and catalogue parts
-// concatenated in chunk order give the one-machine catalogue byte for byte.
+// merged tally equals the one-machine run's exactly, and catalog parts
+// concatenated in chunk order give the one-machine catalog byte for byte.
 
 // ChunkRange is the chunks [First, Last) of a run.
 type ChunkRange struct {

@@ -12,9 +12,9 @@ import (
 	"github.com/stretchr/testify/require"
 )
 
-// catalogueBytes appends every column of the chunk's catalogue stars, bit
-// for bit, as a catalogue writer would write their rows.
-func catalogueBytes(b *bytes.Buffer, c *Chunk) {
+// catalogBytes appends every column of the chunk's catalog stars, bit
+// for bit, as a catalog writer would write their rows.
+func catalogBytes(b *bytes.Buffer, c *Chunk) {
 	var w [8]byte
 	for i := 0; i < c.N; i++ {
 		if !c.Flags[i].Selected() {
@@ -36,7 +36,7 @@ func testTally() *Tally {
 
 // A run split into parts by chunk ranges, the parts run in any order and
 // their tallies passed through files (JSON), merges into the tally and
-// catalogue of the one-machine run, byte for byte: chunk streams depend
+// catalog of the one-machine run, byte for byte: chunk streams depend
 // only on (seed, chunk index). Common practice, no source.
 func TestSplitRunMergesToTheWholeRun(t *testing.T) {
 	p := testPopulation(t, 4)
@@ -46,10 +46,10 @@ func TestSplitRunMergesToTheWholeRun(t *testing.T) {
 	wholeTally, wholeCat := testTally(), new(bytes.Buffer)
 	require.NoError(t, RunChunks(ctx, seed, nStars, chunkStars, 2, p.Fill, func(c *Chunk) error {
 		wholeTally.Add(c)
-		catalogueBytes(wholeCat, c)
+		catalogBytes(wholeCat, c)
 		return nil
 	}))
-	require.Positive(t, wholeTally.Selected(), "the test needs catalogue stars")
+	require.Positive(t, wholeTally.Selected(), "the test needs catalog stars")
 
 	n := NumChunks(nStars, chunkStars)
 	assert.Equal(t, 13, n) // 50000 / 4096 = 12.2
@@ -68,7 +68,7 @@ func TestSplitRunMergesToTheWholeRun(t *testing.T) {
 		require.NoError(t, RunChunkRange(ctx, seed, nStars, chunkStars, ranges[i], 1, p.Fill, func(c *Chunk) error {
 			require.True(t, c.Index >= ranges[i].First && c.Index < ranges[i].Last)
 			tl.Add(c)
-			catalogueBytes(cat, c)
+			catalogBytes(cat, c)
 			return nil
 		}))
 		js, err := json.Marshal(tl)
@@ -89,7 +89,7 @@ func TestSplitRunMergesToTheWholeRun(t *testing.T) {
 		require.NoError(t, merged.Merge(&tl))
 		cat.Write(parts[i].cat)
 	}
-	assert.True(t, bytes.Equal(wholeCat.Bytes(), cat.Bytes()), "catalogue differs from the one-machine run")
+	assert.True(t, bytes.Equal(wholeCat.Bytes(), cat.Bytes()), "catalog differs from the one-machine run")
 	wantJSON, _ := json.Marshal(wholeTally)
 	gotJSON, _ := json.Marshal(merged)
 	assert.JSONEq(t, string(wantJSON), string(gotJSON))

@@ -14,15 +14,15 @@ type Tally struct {
 
 	AgeEdgesGyr  []float64
 	AgeGenerated []int64 // per age bin, all generated dwarfs
-	AgeSelected  []int64 // per age bin, stars in the final catalogue
+	AgeSelected  []int64 // per age bin, stars in the final catalog
 	AgeEligible  []int64 // per age bin, dwarfs passing the magnitude, color and main-sequence cuts
 	AgeDetected  []int64 // per age bin, of AgeEligible those with a detected period
 
-	// Period–color density of catalogue stars.
+	// Period–color density of catalog stars.
 	ColorEdges  []float64
 	LogPerEdges []float64
 	PeriodColor [][]int64 // [color bin][log-period bin]
-	// |z| of catalogue stars.
+	// |z| of catalog stars.
 	AbsZEdgesPc []float64
 	AbsZ        []int64
 
@@ -81,7 +81,7 @@ func (t *Tally) Add(c *Chunk) {
 			step++
 		}
 		t.StepCounts[1]++
-		// Detection efficiency among stars a catalogue could hold: those
+		// Detection efficiency among stars a catalog could hold: those
 		// passing the magnitude, color and main-sequence cuts. Stars outside
 		// the law's range count as undetected: the survey sees them, the
 		// model gives them no period.
@@ -99,7 +99,7 @@ func (t *Tally) Add(c *Chunk) {
 				}
 			}
 			if f&FlagOutsideLaw != 0 {
-				t.OutsideLaw++ // would have been in the catalogue but for the law's range
+				t.OutsideLaw++ // would have been in the catalog but for the law's range
 			}
 		}
 		if !f.Selected() {
@@ -126,7 +126,7 @@ func (t *Tally) Add(c *Chunk) {
 	}
 }
 
-// Selected is the number of stars in the final catalogue.
+// Selected is the number of stars in the final catalog.
 func (t *Tally) Selected() int64 { return t.StepCounts[len(Steps)-1] }
 
 // BinIndex returns the index of the half-open bin [e_i, e_i+1) holding x

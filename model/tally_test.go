@@ -7,7 +7,7 @@ import (
 )
 
 // A hand-made chunk with one star stopping at each selection step: the
-// cumulative counts, the per-age detection efficiency and the catalogue
+// cumulative counts, the per-age detection efficiency and the catalog
 // histograms must follow the flags exactly.
 func TestTallyCountsFollowFlags(t *testing.T) {
 	c := NewChunk(7)

@@ -9,11 +9,11 @@ import (
 	"spinpop/model"
 )
 
-// CatalogWriter streams catalogue stars as CSV: a header of column names
-// (units in the names), then one row per catalogue star. The columns are
+// CatalogWriter streams catalog stars as CSV: a header of column names
+// (units in the names), then one row per catalog star. The columns are
 // model.CatalogColumns, so a column added there appears here. Rows are
 // formatted by hand with strconv (encoding/csv plus fmt would dominate the
-// run time of a large catalogue).
+// run time of a large catalog).
 type CatalogWriter struct {
 	w    *bufio.Writer
 	cols []model.Column
@@ -34,7 +34,7 @@ func NewCatalogWriter(w io.Writer) *CatalogWriter {
 	return cw
 }
 
-// Add writes the catalogue stars of chunk c (those whose flags say
+// Add writes the catalog stars of chunk c (those whose flags say
 // Selected), in chunk order.
 func (cw *CatalogWriter) Add(c *model.Chunk) error {
 	for i := 0; i < c.N; i++ {
@@ -77,7 +77,7 @@ func (cw *CatalogWriter) Rows() int64 { return cw.rows }
 func (cw *CatalogWriter) Flush() error { return cw.w.Flush() }
 
 // appendFloat writes x with 6 significant digits: far below any measurement
-// error in the catalogue, and a third of the bytes of a full round trip.
+// error in the catalog, and a third of the bytes of a full round trip.
 func appendFloat(b []byte, x float64) []byte {
 	if math.IsNaN(x) {
 		return append(b, "nan"...)

@@ -311,7 +311,7 @@ func (c *Comparison) HeightCheck(split float64, smooth, burst compare.FitResult)
 	}, c.perColor())
 }
 
-// perColor reports a likelihood conditional on colour.
+// perColor reports a likelihood conditional on color.
 func (c *Comparison) perColor() bool {
 	n := c.Likelihood.Options().Normalisation
 	return n == compare.NormPerColor || n == compare.NormPerColorHeight

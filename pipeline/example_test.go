@@ -8,7 +8,7 @@ import (
 	"spinpop/scenarios"
 )
 
-// Simulate a built-in scenario to a catalogue in memory.
+// Simulate a built-in scenario to a catalog in memory.
 func Example() {
 	res, err := scenarios.LoadExample("base")
 	if err != nil {
@@ -19,10 +19,10 @@ func Example() {
 	if err != nil {
 		panic(err)
 	}
-	cat := sim.Catalog // catalogue stars, one column per quantity
-	fmt.Printf("%d of %d stars in the catalogue\n", cat.N, sim.Tally.StepCounts[0])
+	cat := sim.Catalog // catalog stars, one column per quantity
+	fmt.Printf("%d of %d stars in the catalog\n", cat.N, sim.Tally.StepCounts[0])
 	fmt.Printf("first star: %.3f Msun, P = %.2f d\n", cat.MassMsun[0], cat.MeasPeriodD[0])
 	// Output:
-	// 3803 of 100000 stars in the catalogue
+	// 3803 of 100000 stars in the catalog
 	// first star: 0.862 Msun, P = 36.69 d
 }

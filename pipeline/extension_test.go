@@ -75,7 +75,7 @@ func TestToyLawRunsFromAScenario(t *testing.T) {
 	cat := sim.Catalog
 	require.Greater(t, cat.N, 500)
 	for i := 0; i < cat.N; i++ {
-		require.Equal(t, 7.5, cat.PeriodD[i], "every catalogue star has the toy law's period")
+		require.Equal(t, 7.5, cat.PeriodD[i], "every catalog star has the toy law's period")
 		// Measured: 3 % scatter, or a half or double alias (the survey's
 		// defaults).
 		r := cat.MeasPeriodD[i] / 7.5
@@ -94,7 +94,7 @@ func TestToyLawRunsFromAScenario(t *testing.T) {
 	assert.Contains(t, err.Error(), `did you mean "period_d"?`)
 }
 
-func TestToyColumnReachesTheCatalogue(t *testing.T) {
+func TestToyColumnReachesTheCatalog(t *testing.T) {
 	if !containsColumn("toy_period_ratio") {
 		require.NoError(t, model.RegisterColumn(model.Column{Name: "toy_period_ratio", Doc: "measured over true period",
 			Derived: func(c *model.Chunk, i int) float64 { return c.MeasPeriodD[i] / c.PeriodD[i] }}))

@@ -10,7 +10,7 @@ import (
 )
 
 // Gyrochrones tabulates the scenario's spin-down law at each age on points
-// colors spread over the catalogue's B−V cut, and returns the law too (its
+// colors spread over the catalog's B−V cut, and returns the law too (its
 // name heads a table).
 func Gyrochrones(s *scenarios.Scenario, source string, agesGyr []float64, points int) ([]model.Gyrochrone, spin.Law, error) {
 	rel, err := model.DwarfSequence()

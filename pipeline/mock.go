@@ -21,7 +21,7 @@ var MockColumns = []string{"source_id", "prot_d", "bv_mag", "vmag", "plx_mas", "
 // MockOptions describe a mock observed catalog.
 type MockOptions struct {
 	Source           string  // how the user named the scenario
-	Stars            int64   // catalogue stars to keep (> 0)
+	Stars            int64   // catalog stars to keep (> 0)
 	ParallaxErrorMas float64 // standard deviation of the Gaussian parallax error
 	Workers          int     // 0: GOMAXPROCS
 	Progress         func(kept, total int64)
@@ -32,11 +32,11 @@ type MockOptions struct {
 var errEnough = errors.New("enough stars")
 
 // Mock writes to w a mock observed catalog of the scenario's first
-// o.Stars catalogue stars in chunk order (a random subsample), as CSV with
+// o.Stars catalog stars in chunk order (a random subsample), as CSV with
 // comment lines: period, B−V, apparent V, parallax with Gaussian error and
 // ICRS position. It returns the number of stars written, which is smaller
 // than o.Stars only when a thousand times run.stars_generated drawn stars
-// hold fewer catalogue stars.
+// hold fewer catalog stars.
 func Mock(ctx context.Context, res *scenarios.Resolved, o MockOptions, w io.Writer) (int64, error) {
 	s := &res.Scenario
 	built := o.Built

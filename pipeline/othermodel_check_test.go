@@ -21,7 +21,7 @@ import (
 // by a model that shares no code with it (internal/othermodel: its own
 // relations, detection function, wider intrinsic period scatter, no
 // binaries, box-shaped bursts on a constant history, stars of every age).
-// The scenario is example:fit with the field, dust and colour cuts set to
+// The scenario is example:fit with the field, dust and color cuts set to
 // match the other model, as a user would set them for a real survey;
 // everything else — the physics, the selection, the nuisance parameters —
 // is example:fit's own.

@@ -139,7 +139,7 @@ func (c *Comparison) Score(ctx context.Context, opts ScoreOptions) (*Score, erro
 type marginals struct{ logP, bv, absZ []float64 }
 
 // syntheticMarginals simulates the scenario with history h (its own seed
-// and star count) and keeps the catalogue stars inside the comparison
+// and star count) and keeps the catalog stars inside the comparison
 // space: the unbinned model sample for the marginal tests.
 func (c *Comparison) syntheticMarginals(ctx context.Context, h interface {
 	BinWeights([]float64) []float64

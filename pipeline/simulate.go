@@ -25,11 +25,11 @@ type SimulateOptions struct {
 	// Workers is the number of worker goroutines; 0 means GOMAXPROCS.
 	// Results do not depend on it.
 	Workers int
-	// KeepCatalog keeps the catalogue stars in memory (Simulation.Catalog),
+	// KeepCatalog keeps the catalog stars in memory (Simulation.Catalog),
 	// unless there are more than output.catalog_max_stars of them.
 	KeepCatalog bool
 	// Visit, if set, is handed every chunk in chunk order, after the tally
-	// has counted it (for instance to stream the catalogue to a file with
+	// has counted it (for instance to stream the catalog to a file with
 	// a CatalogWriter). It must not keep the chunk.
 	Visit func(c *model.Chunk) error
 	// Progress, if set, is told how many stars are done.
@@ -38,17 +38,17 @@ type SimulateOptions struct {
 
 // Simulation is what a simulated scenario gives: the run objects, the
 // tally of every selection step, the gyrochrones, the manifest's numbers
-// and, when asked for, the catalogue itself.
+// and, when asked for, the catalog itself.
 type Simulation struct {
 	Resolved *scenarios.Resolved
 	Built    *assemble.Built
 	Tally    *model.Tally
-	// Catalog holds the catalogue stars (every row Selected), with
+	// Catalog holds the catalog stars (every row Selected), with
 	// SimulateOptions.KeepCatalog; nil otherwise or when there were too
 	// many (CatalogTooLarge).
 	Catalog *model.Chunk
-	// CatalogTooLarge says that the catalogue held more than
-	// output.catalog_max_stars stars: a catalogue file must not be written.
+	// CatalogTooLarge says that the catalog held more than
+	// output.catalog_max_stars stars: a catalog file must not be written.
 	CatalogTooLarge bool
 	Gyrochrones     []model.Gyrochrone
 	// Manifest holds the numbers of manifest.json; its Outputs and
@@ -90,7 +90,7 @@ type StepCount struct {
 }
 
 // AgeMedians are the median ages of the field's dwarfs and of the
-// catalogue: the selection's age bias in one pair of numbers.
+// catalog: the selection's age bias in one pair of numbers.
 type AgeMedians struct {
 	Generated float64 `json:"generated_dwarfs"`
 	Catalog   float64 `json:"catalog"`
@@ -120,7 +120,7 @@ type GyrochroneJSON struct {
 }
 
 // TallyEdges are the edges of a run's summary histograms: B−V across the
-// catalogue's color cut, log10 period and |z|.
+// catalog's color cut, log10 period and |z|.
 func TallyEdges(s *scenarios.Scenario) (color, logPer, absZ []float64) {
 	color = grid.Linspace(s.Cuts.BVMin, s.Cuts.BVMax, 46)
 	// Field stars with spot modulation rotate in ~0.3–100 d; wider windows
@@ -224,7 +224,7 @@ func Simulate(ctx context.Context, res *scenarios.Resolved, opts SimulateOptions
 		m.Gyrochrones = append(m.Gyrochrones, GyrochroneJSON{g.AgeGyr, g.BV, nanToZero(g.PeriodD)})
 	}
 	if s.Output.Catalog && sim.CatalogTooLarge {
-		m.Warnings = append(m.Warnings, fmt.Sprintf("the catalogue has %d stars, more than output.catalog_max_stars = %d: catalog.csv was not written (raise the limit or lower run.stars_generated)", tally.Selected(), s.Output.CatalogMaxStars))
+		m.Warnings = append(m.Warnings, fmt.Sprintf("the catalog has %d stars, more than output.catalog_max_stars = %d: catalog.csv was not written (raise the limit or lower run.stars_generated)", tally.Selected(), s.Output.CatalogMaxStars))
 	}
 	return sim, nil
 }
@@ -266,7 +266,7 @@ func rangeWarnings(s *scenarios.Scenario, b *assemble.Built, t *model.Tally) []s
 	var w []string
 	if t.OutsideLaw > 0 {
 		frac := float64(t.OutsideLaw) / float64(max(t.StepCounts[4], 1))
-		w = append(w, fmt.Sprintf("%d dwarfs that pass the magnitude, color and main-sequence cuts (%.1f%%) lie outside the calibrated color or age range of spin-down law %q and have no period; they are flagged and never enter the catalogue", t.OutsideLaw, 100*frac, s.Spin.Law))
+		w = append(w, fmt.Sprintf("%d dwarfs that pass the magnitude, color and main-sequence cuts (%.1f%%) lie outside the calibrated color or age range of spin-down law %q and have no period; they are flagged and never enter the catalog", t.OutsideLaw, 100*frac, s.Spin.Law))
 	}
 	if spec, ok := spin.Lookup(s.Spin.Law); ok && spec.Caveats != nil {
 		w = append(w, spec.Caveats(s.Disk.AgeBinEdgesGyr[0])...)

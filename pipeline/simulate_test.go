@@ -14,7 +14,7 @@ import (
 	"spinpop/scenarios"
 )
 
-// The catalogue kept in memory holds exactly the stars the tally counts as
+// The catalog kept in memory holds exactly the stars the tally counts as
 // selected and that a CatalogWriter streams, row for row.
 func TestSimulateCatalogInMemoryMatchesStream(t *testing.T) {
 	res, err := scenarios.LoadExample("base")
@@ -40,7 +40,7 @@ func TestSimulateCatalogInMemoryMatchesStream(t *testing.T) {
 	}
 }
 
-// A catalogue larger than output.catalog_max_stars is not kept, and the
+// A catalog larger than output.catalog_max_stars is not kept, and the
 // manifest says so.
 func TestSimulateCatalogLimit(t *testing.T) {
 	res, err := scenarios.LoadExample("base")

@@ -5,7 +5,7 @@ import (
 	"spinpop/tablewrite"
 )
 
-// CatalogTableColumns are the catalogue's columns (model.CatalogColumns) as
+// CatalogTableColumns are the catalog's columns (model.CatalogColumns) as
 // tablewrite describes them: numbers as float64 with their units, flags as
 // booleans, words as strings.
 func CatalogTableColumns() []tablewrite.Column {
@@ -24,7 +24,7 @@ func CatalogTableColumns() []tablewrite.Column {
 	return out
 }
 
-// TableCatalog writes catalogue stars through a tablewrite.Writer (CSV,
+// TableCatalog writes catalog stars through a tablewrite.Writer (CSV,
 // FITS or Parquet) made with CatalogTableColumns, column by column from
 // the same table as CatalogWriter; its CSV is CatalogWriter's byte for
 // byte.
@@ -38,7 +38,7 @@ func NewTableCatalog(w tablewrite.Writer) *TableCatalog {
 	return &TableCatalog{w: w, cols: model.CatalogColumns()}
 }
 
-// Add writes the catalogue stars of chunk c (those whose flags say
+// Add writes the catalog stars of chunk c (those whose flags say
 // Selected), in chunk order.
 func (t *TableCatalog) Add(c *model.Chunk) error {
 	for i := 0; i < c.N; i++ {

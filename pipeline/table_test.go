@@ -50,5 +50,5 @@ func TestTableCatalogMatchesCatalogWriter(t *testing.T) {
 	}
 	csv, err := os.ReadFile(filepath.Join(dir, "catalog.csv"))
 	require.NoError(t, err)
-	assert.True(t, bytes.Equal(direct.Bytes(), csv), "the tablewrite CSV is the catalogue writer's")
+	assert.True(t, bytes.Equal(direct.Bytes(), csv), "the tablewrite CSV is the catalog writer's")
 }

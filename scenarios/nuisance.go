@@ -14,7 +14,7 @@ import (
 // parameter of the physics or the selection that a fit moves together with
 // the history. Only keys that change how a star is observed — its rotation,
 // the detection and measurement of its period, its color on the
-// catalogue's scale, the share of binaries — qualify: the comparison then
+// catalog's scale, the share of binaries — qualify: the comparison then
 // re-observes the stars it stored when it built the templates instead of
 // making new ones. Keys that change which stars exist (the IMF, the disk,
 // the dust, the survey's magnitude limits, the field) cannot be nuisance

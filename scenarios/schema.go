@@ -156,8 +156,8 @@ type Survey struct {
 	MinCycles        float64 `toml:"min_cycles"`           // default 3
 	DetectionSNR     float64 `toml:"detection_snr"`        // default 10
 	DetectionSharp   float64 `toml:"detection_sharpness"`  // logistic slope of detection in ln SNR; default 4
-	ColorOffsetMag   float64 `toml:"color_offset_mag"`     // catalogue B−V zero point relative to the model's; default 0
-	ColorScale       float64 `toml:"color_scale"`          // catalogue B−V scale about B−V = 1 relative to the model's; default 1
+	ColorOffsetMag   float64 `toml:"color_offset_mag"`     // catalog B−V zero point relative to the model's; default 0
+	ColorScale       float64 `toml:"color_scale"`          // catalog B−V scale about B−V = 1 relative to the model's; default 1
 	PeriodScatterRel float64 `toml:"period_scatter_rel"`   // default 0.03
 	HalfAliasProb    float64 `toml:"half_alias_prob"`      // default 0.02
 	DoubleAliasProb  float64 `toml:"double_alias_prob"`    // default 0.01
@@ -191,7 +191,7 @@ type Cone struct {
 	DistanceMaxPc float64 `toml:"distance_max_pc"`
 }
 
-// Cuts are the catalogue cuts; the same ones apply to model and data.
+// Cuts are the catalog cuts; the same ones apply to model and data.
 type Cuts struct {
 	BVMin           float64 `toml:"b_v_min"`            // default 0.45
 	BVMax           float64 `toml:"b_v_max"`            // default 1.6

@@ -15,7 +15,7 @@ import (
 // empty and its cell stays blank.
 type Headline struct {
 	// simulate
-	CatalogStars *int64 `json:"catalog_stars,omitempty"` // stars in the synthetic catalogue
+	CatalogStars *int64 `json:"catalog_stars,omitempty"` // stars in the synthetic catalog
 
 	// compare
 	DataStars *int64   `json:"data_stars,omitempty"` // observed stars compared

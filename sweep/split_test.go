@@ -22,9 +22,9 @@ import (
 )
 
 // One run split across array tasks by chunk ranges, each task writing its
-// tally and catalogue rows, merged in chunk order by the merge job: the
-// result must equal a one-machine run byte for byte. The catalogue rows
-// here are a stand-in written by the test (the program's catalogue writer
+// tally and catalog rows, merged in chunk order by the merge job: the
+// result must equal a one-machine run byte for byte. The catalog rows
+// here are a stand-in written by the test (the program's catalog writer
 // lives in the command-line program until the workflow package exists).
 
 const (
@@ -51,7 +51,7 @@ func splitTally(b *assemble.Built) *model.Tally {
 	return model.NewTally(b.AgeEdgesGyr, []float64{0.4, 0.6, 0.8, 1.0, 1.2, 1.4, 1.6}, []float64{-1, 0, 0.5, 1, 1.5, 2, 2.5}, []float64{0, 100, 200, 400, 800, 1600})
 }
 
-// rows appends the chunk's catalogue stars as text rows.
+// rows appends the chunk's catalog stars as text rows.
 func rows(b *bytes.Buffer, c *model.Chunk) {
 	for i := 0; i < c.N; i++ {
 		if !c.Flags[i].Selected() {
@@ -72,7 +72,7 @@ func rows(b *bytes.Buffer, c *model.Chunk) {
 }
 
 // runRange runs chunks r of the split run and returns its tally (JSON)
-// and catalogue rows.
+// and catalog rows.
 func runRange(b *assemble.Built, r model.ChunkRange, workers int) ([]byte, []byte, error) {
 	tl, cat := splitTally(b), new(bytes.Buffer)
 	s := b.Scenario
@@ -186,9 +186,9 @@ func TestSlurmSplitRunEqualsOneMachine(t *testing.T) {
 	waitJobs(t, 3*time.Minute, ids.ArrayJobID, ids.MergeJobID)
 	t.Logf("split run in %d array tasks plus merge: %.1f s", parts, time.Since(start).Seconds())
 	gotRows, err := os.ReadFile(filepath.Join(out, "merged.rows"))
-	require.NoError(t, err, "the merge job wrote no catalogue; see %s", filepath.Join(out, "slurm", "logs"))
+	require.NoError(t, err, "the merge job wrote no catalog; see %s", filepath.Join(out, "slurm", "logs"))
 	gotTally, err := os.ReadFile(filepath.Join(out, "merged.tally.json"))
 	require.NoError(t, err)
-	assert.True(t, bytes.Equal(wantRows, gotRows), "catalogue rows differ from the one-machine run")
+	assert.True(t, bytes.Equal(wantRows, gotRows), "catalog rows differ from the one-machine run")
 	assert.True(t, bytes.Equal(wantTally, gotTally), "tally differs from the one-machine run")
 }

@@ -1,11 +1,11 @@
 // Package tablewrite writes a table — columns with a name, a unit and a
 // type, rows streamed one at a time — as CSV, a FITS binary table or
 // Parquet, through one small interface. It is how a program writes the
-// simulated catalogue in the format a user chose: the rows go to a
+// simulated catalog in the format a user chose: the rows go to a
 // temporary file beside the target, and Close publishes the file whole by
 // renaming it; a failed or aborted table leaves the target as it was.
 //
-// Units: CSV has nowhere to put them, so catalogue columns carry their
+// Units: CSV has nowhere to put them, so catalog columns carry their
 // units in their names (period_d, z_pc) in every format; FITS also gets
 // them as TUNITn and Parquet in its "units" metadata, which is what the
 // catalog readers check.

@@ -89,7 +89,7 @@ func printDataSummary(w io.Writer, d pipeline.DataSummary) {
 	if len(d.Unusable) > 0 {
 		fmt.Fprintf(w, "  unusable rows (see rejected.csv): %s\n", tally(d.Unusable))
 	}
-	fmt.Fprintf(w, "  removed by the catalogue cuts: %s\n", tally(d.CutAway))
+	fmt.Fprintf(w, "  removed by the catalog cuts: %s\n", tally(d.CutAway))
 	reused := "built"
 	if d.TplReused {
 		reused = "reused"

@@ -50,7 +50,7 @@ func runLaws(args []string, stdout, stderr io.Writer) error {
 		bar := newProgressBar(label, total)
 		return bar.Update, bar.Done
 	}
-	fmt.Fprintf(stdout, "%-34s %10s %12s\n", "spin-down law", "catalogue", "median age")
+	fmt.Fprintf(stdout, "%-34s %10s %12s\n", "spin-down law", "catalog", "median age")
 	runs, err := pipeline.CompareLaws(ctx, res, path, *stars, runtime.GOMAXPROCS(0), bars)
 	if err != nil {
 		if pipeline.IsInputError(err) {

@@ -1,6 +1,6 @@
 // Command spinpop builds a synthetic Galactic population of rotating stars
 // from a scenario file, observes it through an invented survey's selection,
-// and writes the catalogue, a run manifest and plots.
+// and writes the catalog, a run manifest and plots.
 //
 // Usage:
 //

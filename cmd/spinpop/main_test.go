@@ -100,7 +100,7 @@ func TestSimulateRefusesNonEmptyFolder(t *testing.T) {
 	assert.Equal(t, "mine", string(b), "nothing the user gave is touched")
 }
 
-// Same scenario and seed give a byte-identical catalogue whatever the
+// Same scenario and seed give a byte-identical catalog whatever the
 // number of threads (the reliability requirement).
 func TestSimulateSameBytesForAnyThreadCount(t *testing.T) {
 	sc := smallScenario(t, 120000)
@@ -116,7 +116,7 @@ func TestSimulateSameBytesForAnyThreadCount(t *testing.T) {
 	require.NoError(t, err)
 	c2, err := os.ReadFile(filepath.Join(d2, "catalog.csv"))
 	require.NoError(t, err)
-	require.Greater(t, bytes.Count(c1, []byte("\n")), 1000, "the catalogue is not trivially empty")
+	require.Greater(t, bytes.Count(c1, []byte("\n")), 1000, "the catalog is not trivially empty")
 	assert.True(t, bytes.Equal(c1, c2), "catalog.csv differs between 1 and 2 threads")
 }
 
@@ -159,7 +159,7 @@ func TestSimulateOutputsAndManifest(t *testing.T) {
 	cat, err := os.ReadFile(filepath.Join(dir, "catalog.csv"))
 	require.NoError(t, err)
 	lines := strings.Split(strings.TrimSpace(string(cat)), "\n")
-	assert.Equal(t, int(man.CatalogStars)+1, len(lines), "one row per catalogue star plus the header")
+	assert.Equal(t, int(man.CatalogStars)+1, len(lines), "one row per catalog star plus the header")
 	assert.True(t, strings.HasPrefix(lines[0], "mass_msun,"), lines[0])
 }
 

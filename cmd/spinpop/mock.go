@@ -13,13 +13,13 @@ import (
 
 func runMock(args []string, stdout, stderr io.Writer) error {
 	fs := newFlagSet("mock", "mock SCENARIO --out FILE --stars N [--seed N] [--parallax-error-mas X]",
-		"Draw a mock observed catalog of N catalogue stars from a scenario — selection included — in\n"+
+		"Draw a mock observed catalog of N catalog stars from a scenario — selection included — in\n"+
 			"the form an observed catalog takes: period, B−V, apparent V, parallax (with Gaussian error)\n"+
 			"and ICRS position. Use it to make invented test catalogs, or to see what a catalog of your\n"+
-			"size would look like under a hypothesis. The first N catalogue stars in chunk order are\n"+
+			"size would look like under a hypothesis. The first N catalog stars in chunk order are\n"+
 			"kept, which is a random subsample.", stdout)
 	out := fs.String("out", "", "catalog file to write (must not exist unless --force)")
-	n := fs.Int64("stars", 0, "catalogue stars to keep")
+	n := fs.Int64("stars", 0, "catalog stars to keep")
 	seed := fs.Uint64("seed", 0, "random seed, overriding run.seed (0 keeps the scenario's)")
 	plxErr := fs.Float64("parallax-error-mas", 0.02, "standard deviation of the parallax error (mas)")
 	force := fs.Bool("force", false, "replace an existing file")
@@ -35,7 +35,7 @@ func runMock(args []string, stdout, stderr io.Writer) error {
 		return usageErrorf("--out FILE is required")
 	}
 	if *n <= 0 {
-		return usageErrorf("--stars must be a positive number of catalogue stars")
+		return usageErrorf("--stars must be a positive number of catalog stars")
 	}
 	if !(*plxErr >= 0) {
 		return usageErrorf("--parallax-error-mas must be ≥ 0")

@@ -54,7 +54,7 @@ func densityPalette() palette.Palette {
 	return palette.Reverse(cm).Palette(64)
 }
 
-// periodColorPlot is the period–color density of catalogue stars with
+// periodColorPlot is the period–color density of catalog stars with
 // gyrochrones on top.
 func periodColorPlot(title string, t *model.Tally, curves []gyroCurve) (*plot.Plot, error) {
 	p := plot.New()
@@ -108,7 +108,7 @@ func maxCount(z [][]int64) int64 {
 }
 
 // periodHistograms draws small multiples: the log-period histogram of
-// catalogue stars in groups of color bins.
+// catalog stars in groups of color bins.
 func periodHistograms(t *model.Tally, panels int) [][]*plot.Plot {
 	nc := len(t.ColorEdges) - 1
 	panels = min(panels, nc)
@@ -166,10 +166,10 @@ func stepLine(edges []float64, y []float64, c color.Color) (*plotter.Line, error
 	return l, nil
 }
 
-// heightPlot is the |z| distribution of catalogue stars.
+// heightPlot is the |z| distribution of catalog stars.
 func heightPlot(t *model.Tally) (*plot.Plot, error) {
 	p := plot.New()
-	p.Title.Text = "Height above the plane, catalogue stars"
+	p.Title.Text = "Height above the plane, catalog stars"
 	p.X.Label.Text = "|z| (pc)"
 	p.Y.Label.Text = "stars per pc"
 	y := make([]float64, len(t.AbsZ))
@@ -185,17 +185,17 @@ func heightPlot(t *model.Tally) (*plot.Plot, error) {
 }
 
 // ageBiasPlot compares the age distribution of all dwarfs the model made in
-// the field with that of the catalogue: the selection's age bias, visible.
+// the field with that of the catalog: the selection's age bias, visible.
 // Both are normalised to unit area so their shapes compare directly.
 func ageBiasPlot(t *model.Tally) (*plot.Plot, error) {
 	p := plot.New()
-	p.Title.Text = "Age distribution: generated dwarfs vs catalogue"
+	p.Title.Text = "Age distribution: generated dwarfs vs catalog"
 	p.X.Label.Text = "age (Gyr)"
 	p.Y.Label.Text = "fraction per Gyr"
 	for i, s := range []struct {
 		name string
 		n    []int64
-	}{{"generated", t.AgeGenerated}, {"catalogue", t.AgeSelected}} {
+	}{{"generated", t.AgeGenerated}, {"catalog", t.AgeSelected}} {
 		var tot float64
 		for _, v := range s.n {
 			tot += float64(v)

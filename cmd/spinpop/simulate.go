@@ -21,7 +21,7 @@ import (
 func runSimulate(args []string, stdout, stderr io.Writer) error {
 	fs := newFlagSet("simulate", "simulate SCENARIO --out DIR [--seed N] [--json] [--force]",
 		"Make the scenario's synthetic population, observe it through its survey and write into DIR:\n"+
-			"catalog.csv (catalogue stars), manifest.json (what was run, counts after each selection step)\n"+
+			"catalog.csv (catalog stars), manifest.json (what was run, counts after each selection step)\n"+
 			"and PNG plots. SCENARIO is a file or example:NAME (see spinpop examples).", stdout)
 	out := fs.String("out", "", "output folder (created if missing; must be empty unless --force)")
 	seed := fs.Uint64("seed", 0, "random seed, overriding run.seed (0 keeps the scenario's)")
@@ -82,8 +82,8 @@ func simulate(res *scenarios.Resolved, path, dir string, workers int, stderr io.
 		Source: path, Workers: workers,
 		Progress: func(done, _ int64) { bar.Update(done) },
 		Visit: func(c *model.Chunk) error {
-			// Streamed, so memory does not grow with the catalogue; a
-			// catalogue over the limit stops being written.
+			// Streamed, so memory does not grow with the catalog; a
+			// catalog over the limit stops being written.
 			if cat == nil || cat.Rows() > s.Output.CatalogMaxStars {
 				return nil
 			}
@@ -102,7 +102,7 @@ func simulate(res *scenarios.Resolved, path, dir string, workers int, stderr io.
 	}
 	sum := &sim.Manifest
 
-	// Outputs: the catalogue is renamed into place only now, whole.
+	// Outputs: the catalog is renamed into place only now, whole.
 	if cat != nil && !sim.CatalogTooLarge {
 		if err := cat.Flush(); err != nil {
 			return nil, fmt.Errorf("writing %s: %w", catPath, err)
@@ -156,7 +156,7 @@ func writeJSON(path string, v any) error {
 
 func writeSimulationPlots(dir string, s *scenarios.Scenario, t *model.Tally, gc []gyroCurve) ([]string, error) {
 	var names []string
-	title := fmt.Sprintf("%s: catalogue stars, %d", s.Name, t.Selected())
+	title := fmt.Sprintf("%s: catalog stars, %d", s.Name, t.Selected())
 	pc, err := periodColorPlot(title, t, gc)
 	if err != nil {
 		return nil, err
@@ -213,8 +213,8 @@ func printSummary(w io.Writer, s *pipeline.Manifest, asJSON bool) error {
 		}
 		fmt.Fprintf(w, "  %-20s %11d   %s\n", c.Step, c.Stars, frac)
 	}
-	fmt.Fprintf(w, "\ncatalogue: %d stars (%d unresolved binaries, %d evolved, %d aliased periods)\n", s.CatalogStars, s.Binaries, s.Evolved, s.Aliased)
-	fmt.Fprintf(w, "median age: %.2f Gyr of dwarfs in the field, %.2f Gyr in the catalogue\n", s.MedianAgeGyr.Generated, s.MedianAgeGyr.Catalog)
+	fmt.Fprintf(w, "\ncatalog: %d stars (%d unresolved binaries, %d evolved, %d aliased periods)\n", s.CatalogStars, s.Binaries, s.Evolved, s.Aliased)
+	fmt.Fprintf(w, "median age: %.2f Gyr of dwarfs in the field, %.2f Gyr in the catalog\n", s.MedianAgeGyr.Generated, s.MedianAgeGyr.Catalog)
 	for _, warn := range s.Warnings {
 		fmt.Fprintln(w, "warning:", warn)
 	}

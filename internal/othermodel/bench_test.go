@@ -2,7 +2,7 @@ package othermodel
 
 import "testing"
 
-// BenchmarkGenerate measures one catalogue of 3,000 stars with the defaults.
+// BenchmarkGenerate measures one catalog of 3,000 stars with the defaults.
 func BenchmarkGenerate(b *testing.B) {
 	cfg := DefaultConfig()
 	cfg.Stars = 3000

@@ -7,7 +7,7 @@ import (
 )
 
 // GyroLaw is an empirical gyrochronology law P = A (B−V − C)^B t^N, with
-// P in days, B−V the intrinsic colour and t the age in Myr.
+// P in days, B−V the intrinsic color and t the age in Myr.
 type GyroLaw struct {
 	Name       string
 	A, B, C, N float64
@@ -25,7 +25,7 @@ func Mamajek2008() GyroLaw {
 	return GyroLaw{Name: "mamajek2008", A: 0.407, B: 0.325, C: 0.495, N: 0.566}
 }
 
-// PeriodD returns the law's period in days for intrinsic colour bv and age
+// PeriodD returns the law's period in days for intrinsic color bv and age
 // ageMyr, and false where the law has no period (B−V ≤ C or age ≤ 0).
 func (g GyroLaw) PeriodD(bv, ageMyr float64) (float64, bool) {
 	if !(bv > g.C) || !(ageMyr > 0) {
@@ -61,7 +61,7 @@ func BoxBurst(ageGyr, widthGyr, fraction float64) History {
 	return h
 }
 
-// Survey is the invented survey's field and catalogue cuts.
+// Survey is the invented survey's field and catalog cuts.
 type Survey struct {
 	LDeg, BDeg, RadiusDeg  float64 // cone centre (Galactic) and radius
 	DistMaxPc              float64 // stars from 0 to this distance
@@ -72,7 +72,7 @@ type Survey struct {
 
 // ExampleSurvey returns the numbers of the project's example scenario
 // (scenarios/examples/base.toml, which example:fit extends): the field
-// cone, distance limit, magnitude limits, colour cuts and the period
+// cone, distance limit, magnitude limits, color cuts and the period
 // window (2 × cadence to baseline / min_cycles). Update it when those
 // examples change.
 func ExampleSurvey() Survey {
@@ -89,21 +89,21 @@ func ExampleSurvey() Survey {
 const ExampleSunHeightPc = 20.8
 
 // Detection is the survey's period-detection efficiency: a logistic in
-// ln P around P50(B−V) = P50RefD·exp(P50ColourSlope·(B−V − 0.65)), times
+// ln P around P50(B−V) = P50RefD·exp(P50ColorSlope·(B−V − 0.65)), times
 // a logistic magnitude completeness around V50Mag, times MaxEfficiency.
 type Detection struct {
-	MaxEfficiency  float64
-	P50RefD        float64 // half-detection period at B−V = 0.65
-	P50ColourSlope float64 // d ln P50 / d(B−V)
-	LnPWidth       float64 // logistic width in ln P
-	V50Mag         float64 // magnitude of half completeness
-	VWidthMag      float64 // logistic width in V
+	MaxEfficiency float64
+	P50RefD       float64 // half-detection period at B−V = 0.65
+	P50ColorSlope float64 // d ln P50 / d(B−V)
+	LnPWidth      float64 // logistic width in ln P
+	V50Mag        float64 // magnitude of half completeness
+	VWidthMag     float64 // logistic width in V
 }
 
 // Efficiency is the detection probability of a star of true period
-// periodD, observed colour bv and apparent magnitude v.
+// periodD, observed color bv and apparent magnitude v.
 func (d Detection) Efficiency(periodD, bv, v float64) float64 {
-	p50 := d.P50RefD * math.Exp(d.P50ColourSlope*(bv-0.65))
+	p50 := d.P50RefD * math.Exp(d.P50ColorSlope*(bv-0.65))
 	inP := 1 / (1 + math.Exp((math.Log(periodD)-math.Log(p50))/d.LnPWidth))
 	inV := 1 / (1 + math.Exp((v-d.V50Mag)/d.VWidthMag))
 	return d.MaxEfficiency * inP * inV
@@ -111,7 +111,7 @@ func (d Detection) Efficiency(periodD, bv, v float64) float64 {
 
 // Config is every ingredient of the model. DefaultConfig fills it.
 type Config struct {
-	Stars   int // catalogue rows to collect
+	Stars   int // catalog rows to collect
 	History History
 	Survey  Survey
 
@@ -125,7 +125,7 @@ type Config struct {
 	// Measurement.
 	PeriodErrRel   float64 // Gaussian relative period error
 	HalfAliasProb  float64 // share of detected periods reported at P/2
-	ColourErrMag   float64 // Gaussian B−V error
+	ColorErrMag    float64 // Gaussian B−V error
 	MagErrMag      float64 // Gaussian V error
 	ParallaxErrMas float64 // Gaussian parallax error
 
@@ -140,7 +140,7 @@ type Config struct {
 }
 
 // DefaultConfig returns the model with the example survey, a constant
-// history, 30,000 catalogue stars and the Barnes (2007) law.
+// history, 30,000 catalog stars and the Barnes (2007) law.
 func DefaultConfig() Config {
 	return Config{
 		Stars:   30000,
@@ -151,11 +151,11 @@ func DefaultConfig() Config {
 
 		Gyro:             Barnes2007(),
 		PeriodScatterDex: 0.08,
-		Detection: Detection{MaxEfficiency: 0.95, P50RefD: 20, P50ColourSlope: 1.5,
+		Detection: Detection{MaxEfficiency: 0.95, P50RefD: 20, P50ColorSlope: 1.5,
 			LnPWidth: 0.25, V50Mag: 15.3, VWidthMag: 0.25},
 
 		PeriodErrRel: 0.02, HalfAliasProb: 0.01,
-		ColourErrMag: 0.01, MagErrMag: 0.01, ParallaxErrMas: 0.02,
+		ColorErrMag: 0.01, MagErrMag: 0.01, ParallaxErrMas: 0.02,
 
 		SunRadiusKpc: 8.2, SunHeightPc: ExampleSunHeightPc,
 		ScaleLengthKpc: 3.0,
@@ -189,7 +189,7 @@ func (c Config) Validate() error {
 		return fmt.Errorf("othermodel: gyrochronology law %q needs A > 0 and N > 0", c.Gyro.Name)
 	case !(c.Detection.MaxEfficiency > 0 && c.Detection.LnPWidth > 0 && c.Detection.VWidthMag > 0 && c.Detection.P50RefD > 0):
 		return errors.New("othermodel: Detection needs MaxEfficiency, P50RefD, LnPWidth and VWidthMag > 0")
-	case c.PeriodScatterDex < 0 || c.PeriodErrRel < 0 || c.ColourErrMag < 0 || c.MagErrMag < 0 || c.ParallaxErrMas < 0:
+	case c.PeriodScatterDex < 0 || c.PeriodErrRel < 0 || c.ColorErrMag < 0 || c.MagErrMag < 0 || c.ParallaxErrMas < 0:
 		return errors.New("othermodel: scatters and errors must be ≥ 0")
 	case !(c.HalfAliasProb >= 0 && c.HalfAliasProb < 1):
 		return fmt.Errorf("othermodel: HalfAliasProb = %g, want in [0, 1)", c.HalfAliasProb)

@@ -22,7 +22,7 @@
 // fall outside spinpop's main-sequence band and are cut by the reader.
 //
 // Spin-down. An empirical law P = a (B−V − c)^b t^n (t in Myr) on the
-// intrinsic colour, with coefficients chosen by the caller: Barnes (2007)
+// intrinsic color, with coefficients chosen by the caller: Barnes (2007)
 // or Mamajek & Hillenbrand (2008); a star bluer than c gets no period.
 // On top, an intrinsic lognormal scatter (default 0.08 dex); spinpop's
 // empirical laws have none.
@@ -36,7 +36,7 @@
 // Measurement. Gaussian period error 2 %, 1 % of detected periods reported
 // at half their value (no double aliases), Gaussian errors of 0.01 mag in
 // B−V and V and 0.02 mas in parallax (spinpop: lognormal period scatter,
-// half and double aliases, no colour error).
+// half and double aliases, no color error).
 //
 // Disk and dust (spinpop: isothermal-sheet profiles from an age–velocity-
 // dispersion relation, exponential dust layer). Stars of age τ have an

@@ -10,7 +10,7 @@ import (
 	"strconv"
 )
 
-// Star is one catalogue row: the measured columns as written (rounded to
+// Star is one catalog row: the measured columns as written (rounded to
 // the file's precision) and the truth kept for diagnostics.
 type Star struct {
 	PeriodD, BV, VMag, ParallaxMas, RADeg, DecDeg float64 // as written
@@ -24,7 +24,7 @@ type Tally struct {
 	Placed   int // accepted by the disk density
 	Catalog  int // stars written
 	Evolved  int // removed: older than their main-sequence lifetime
-	Detected int // periods detected (before the catalogue cuts on them)
+	Detected int // periods detected (before the catalog cuts on them)
 }
 
 // maxTries bounds the loop so that a configuration whose cuts let nothing
@@ -79,13 +79,13 @@ func Generate(cfg Config, seed uint64) ([]Star, Tally, error) {
 		d := DwarfOfMass(m)
 		av := cfg.AVPerKpc * dist / 1000
 		vMag := round(d.AbsMagV+5*math.Log10(dist/10)+av+cfg.MagErrMag*r.NormFloat64(), 1e4)
-		bv := round(d.BV+av/cfg.RV+cfg.ColourErrMag*r.NormFloat64(), 1e4)
+		bv := round(d.BV+av/cfg.RV+cfg.ColorErrMag*r.NormFloat64(), 1e4)
 		if vMag < sv.VMinMag || vMag > sv.VMaxMag || bv < sv.BVMinMag || bv > sv.BVMaxMag {
 			continue
 		}
 		p, ok := cfg.Gyro.PeriodD(d.BV, age*1000)
 		if !ok {
-			continue // outside the law: no period, so no catalogue entry
+			continue // outside the law: no period, so no catalog entry
 		}
 		p *= math.Pow(10, cfg.PeriodScatterDex*r.NormFloat64())
 		if r.Float64() >= cfg.Detection.Efficiency(p, bv, vMag) {
@@ -102,7 +102,7 @@ func Generate(cfg Config, seed uint64) ([]Star, Tally, error) {
 		}
 		plx := round(1000/dist+cfg.ParallaxErrMas*r.NormFloat64(), 1e5)
 		if plx <= 0 {
-			continue // a catalogue with a usable distance needs a positive parallax
+			continue // a catalog with a usable distance needs a positive parallax
 		}
 		l, b := angles(u)
 		ra, dec := GalacticToICRS(l, b)

@@ -121,14 +121,14 @@ func TestConeIsUniformInSolidAngle(t *testing.T) {
 	assert.Less(t, math.Sqrt(float64(len(seps)))*d, ksCritical1pc)
 }
 
-// smallConfig keeps the catalogue tests fast.
+// smallConfig keeps the catalog tests fast.
 func smallConfig(n int) Config {
 	c := DefaultConfig()
 	c.Stars = n
 	return c
 }
 
-func TestCatalogueRespectsEveryCut(t *testing.T) {
+func TestCatalogRespectsEveryCut(t *testing.T) {
 	cfg := smallConfig(3000)
 	cfg.History = BoxBurst(0.9, 0.1, 0.15)
 	stars, tally, err := Generate(cfg, 5)
@@ -149,7 +149,7 @@ func TestCatalogueRespectsEveryCut(t *testing.T) {
 		// Height above the plane as the catalog reader derives it.
 		assert.InDelta(t, s.ZPc, cfg.SunHeightPc+s.DistPc*math.Sin(b*deg), 1e-3)
 	}
-	// A box of 15 % of the mass at 0.9 Gyr shows among the catalogue's true
+	// A box of 15 % of the mass at 0.9 Gyr shows among the catalog's true
 	// ages: far more stars in 0.85–0.95 Gyr than in the neighbouring 0.1 Gyr.
 	in, beside := 0, 0
 	for _, s := range stars {
@@ -174,7 +174,7 @@ func TestIntrinsicPeriodScatter(t *testing.T) {
 		dev = append(dev, math.Log10(s.TruePeriodD/law))
 	}
 	mean, sd := meanSD(dev)
-	// The catalogue keeps the lognormal scatter about the law; detection
+	// The catalog keeps the lognormal scatter about the law; detection
 	// favours the fast side a little, so the mean dips below zero.
 	assert.Greater(t, mean, -0.04)
 	assert.Less(t, mean, 0.005)

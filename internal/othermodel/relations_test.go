@@ -25,7 +25,7 @@ func TestSunThroughTheRelations(t *testing.T) {
 	assert.InDelta(t, 4.81, sun.AbsMagV, 0.03)
 }
 
-// The inversion of Ballesteros (2012) must give back the colour that his
+// The inversion of Ballesteros (2012) must give back the color that his
 // forward formula turns into T_eff.
 func TestBVFromTeffInvertsBallesteros(t *testing.T) {
 	for bv := 0.3; bv <= 1.8; bv += 0.05 {
@@ -49,7 +49,7 @@ func TestMassLuminositySegments(t *testing.T) {
 }
 
 // The chained relations must land near the published mean dwarf sequence in
-// the observable plane (M_V at given B−V), which is what a catalogue sees;
+// the observable plane (M_V at given B−V), which is what a catalog sees;
 // differences of a few tenths of a magnitude are the point of an independent
 // model, not an error.
 func TestSequenceNearPublishedMeanDwarfs(t *testing.T) {
@@ -112,7 +112,7 @@ func TestGyrochronologyAtTheSun(t *testing.T) {
 	p, ok = Mamajek2008().PeriodD(0.65, 4570)
 	require.True(t, ok)
 	assert.InDelta(t, 26.1, p, 1.0)
-	// Outside the law's colour range there is no period.
+	// Outside the law's color range there is no period.
 	_, ok = Barnes2007().PeriodD(0.39, 1000)
 	assert.False(t, ok)
 	_, ok = Mamajek2008().PeriodD(0.49, 1000)
