@@ -67,7 +67,15 @@ func RunChunkRange(ctx context.Context, seed uint64, nStars int64, chunkStars in
 	for range window {
 		free <- NewChunk(chunkStars)
 	}
-	ready := make([]chan *Chunk, nChunks)
+	// ready is a ring of window slots: index i is handed to slot i%window.
+	// Only window chunks exist, and a worker takes one before it takes an
+	// index, so indices in flight (handed out, not yet visited) lie in
+	// [v, v+window) for the visitor's next index v: no two share a slot,
+	// and index i+window is handed out only after index i's chunk was
+	// visited and freed, so its slot is empty again. Memory is flat in the
+	// number of chunks (one channel per chunk took 2 GB up front at 10¹²
+	// stars).
+	ready := make([]chan *Chunk, window)
 	for i := range ready {
 		ready[i] = make(chan *Chunk, 1)
 	}
@@ -102,7 +110,7 @@ func RunChunkRange(ctx context.Context, seed uint64, nStars int64, chunkStars in
 				c.grow(n)
 				c.Index = ci
 				fill(c, ChunkStream(seed, ci))
-				ready[i] <- c
+				ready[i%window] <- c
 			}
 		}()
 	}
@@ -121,7 +129,7 @@ func RunChunkRange(ctx context.Context, seed uint64, nStars int64, chunkStars in
 	for i := range nChunks {
 		var c *Chunk
 		select {
-		case c = <-ready[i]:
+		case c = <-ready[i%window]:
 		case <-ctx.Done():
 			err = ctx.Err()
 		}

@@ -2,6 +2,7 @@ package model
 
 import (
 	"context"
+	"errors"
 	"math"
 	"math/rand/v2"
 	"runtime"
@@ -285,4 +286,65 @@ func TestColorScatter(t *testing.T) {
 		assert.InDelta(t, 0, mean, 1e-3, "σ %g", sigma)
 		assert.InDelta(t, sigma, sd, 0.02*sigma, "σ %g", sigma)
 	}
+}
+
+// Chunks reach visit in chunk order, each exactly once, when there are
+// many more chunks than slots in the in-flight ring and workers finish out
+// of order (fill sleeps a random few microseconds). Common practice, no
+// source.
+func TestRunChunksRingKeepsOrder(t *testing.T) {
+	const chunks = 2000
+	next := 0
+	fill := func(c *Chunk, r *rand.Rand) {
+		c.N = 1
+		c.AgeGyr[0] = float64(c.Index)
+		for range r.IntN(2000) { // uneven work, so chunks finish out of order
+			runtime.Gosched()
+		}
+	}
+	for _, workers := range []int{1, 3, 8} {
+		next = 0
+		err := RunChunks(context.Background(), 7, chunks, 1, workers, fill, func(c *Chunk) error {
+			require.Equal(t, next, c.Index, "%d workers: chunk out of order", workers)
+			require.Equal(t, float64(next), c.AgeGyr[0], "%d workers: chunk %d carries another chunk's stars", workers, next)
+			next++
+			return nil
+		})
+		require.NoError(t, err)
+		assert.Equal(t, chunks, next, "%d workers: every chunk visited once", workers)
+	}
+}
+
+// A run of a near-maximal star count must start with memory independent of
+// its number of chunks: before the ring, RunChunks made one channel per
+// chunk up front, which panicked (makeslice) near the int64 maximum and
+// took 2 GB at 10¹² stars. Here visit stops the run after a few chunks.
+func TestRunChunksHugeRunStartsFlat(t *testing.T) {
+	stop := errors.New("enough")
+	for _, n := range []int64{math.MaxInt64, 1e15, 1e12} {
+		seen := 0
+		var before, after runtime.MemStats
+		runtime.GC()
+		runtime.ReadMemStats(&before)
+		err := RunChunks(context.Background(), 1, n, 1, 2, func(c *Chunk, _ *rand.Rand) { c.N = 1 }, func(c *Chunk) error {
+			seen++
+			if seen == 10 {
+				return stop
+			}
+			return nil
+		})
+		runtime.ReadMemStats(&after)
+		require.ErrorIs(t, err, stop, "n = %d", n)
+		assert.Equal(t, 10, seen)
+		// A few chunks of one star and a ring of four slots: far below a
+		// megabyte. One channel per chunk would be ≥ 96 bytes × n.
+		assert.Less(t, after.TotalAlloc-before.TotalAlloc, uint64(1<<20), "n = %d: allocated at start", n)
+	}
+}
+
+// NumChunks must not overflow near the int64 maximum.
+func TestNumChunksNearMaxInt64(t *testing.T) {
+	assert.Equal(t, int(math.MaxInt64/2+1), NumChunks(math.MaxInt64, 2))
+	assert.Equal(t, int(math.MaxInt64), NumChunks(math.MaxInt64, 1))
+	assert.Equal(t, 3, NumChunks(5, 2))
 }

@@ -29,7 +29,12 @@ func NumChunks(nStars int64, chunkStars int) int {
 	if nStars <= 0 || chunkStars <= 0 {
 		return 0
 	}
-	return int((nStars + int64(chunkStars) - 1) / int64(chunkStars))
+	// Divide first: nStars + chunkStars - 1 overflows near the int64 maximum.
+	n := nStars / int64(chunkStars)
+	if nStars%int64(chunkStars) != 0 {
+		n++
+	}
+	return int(n)
 }
 
 // SplitChunks cuts nChunks chunks into at most parts contiguous ranges
