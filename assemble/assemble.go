@@ -70,6 +70,10 @@ func Build(s *scenarios.Scenario) (*Built, error) {
 		}
 	}
 
+	if err := samplerFastEnough(s, b.Sampler, prob); err != nil {
+		return nil, err
+	}
+
 	var dust model.Extinction
 	if s.Dust.Model == "exponential" {
 		dl := disk.DustLayer{ScaleHeightPc: s.Dust.ScaleHeightPc, MidplaneAvPerKpc: s.Dust.MidplaneAvPerKpc}
@@ -191,6 +195,36 @@ func (b *Built) sampler() (*disk.Sampler, error) {
 		return nil, fmt.Errorf("disk/survey.field: %w", err)
 	}
 	return smp, nil
+}
+
+// minProposalEfficiency is the smallest share of position proposals the
+// sampler may keep. The default scenarios keep about 0.9; below 10⁻³ a
+// run is over a thousand times slower per star than usual, which happens
+// only when the disk is so thin that the field barely holds any of it
+// (disk.sigma_10gyr_kms = disk.sheet_sigma_kms = 1 km/s keeps 3·10⁻⁶:
+// 64 stars/s instead of a million). Such a scenario is refused at
+// check time rather than left to crawl for hours.
+const minProposalEfficiency = 1e-3
+
+// samplerFastEnough refuses a scenario whose position sampler would keep
+// almost none of its proposals. prob is each age bin's share of the
+// stars; ProposalEfficiency is the exact ratio of a bin's integral over
+// the field to that of its envelope.
+func samplerFastEnough(s *scenarios.Scenario, smp *disk.Sampler, prob []float64) error {
+	num, den := 0.0, 0.0
+	for k, p := range prob {
+		if e := smp.ProposalEfficiency(k); p > 0 {
+			num += p
+			den += p / e
+		}
+	}
+	eff := num / den
+	if !(num > 0) || eff >= minProposalEfficiency {
+		return nil
+	}
+	sheet := disk.Sheet{SheetSigmaKms: s.Disk.SheetSigmaKms, SurfaceDensityMsunPc2: s.Disk.SurfaceDensityMsunPc2}
+	return fmt.Errorf("disk.sigma_10gyr_kms = %g and disk.sheet_sigma_kms = %g make a disk so thin (sheet scale height z0 = %.3g pc) that the survey field holds almost none of its stars: the position sampler would keep 1 proposal in %.3g and a run would crawl; use dispersions near those of the Galactic thin disk (of order 20 km/s; the defaults are 25 and 20) or a field that crosses the midplane",
+		s.Disk.Sigma10GyrKms, s.Disk.SheetSigmaKms, sheet.Z0Pc(), 1/eff)
 }
 
 // Field turns survey.field into a disk.Field.

@@ -53,11 +53,11 @@ func TestCanonicalIsSorted(t *testing.T) {
 }
 
 func TestCanonicalFloatFormat(t *testing.T) {
-	r := loadMinimal(t, "[disk]\nsun_height_pc = -0.0\nsun_radius_kpc = 8e0\nsigma_10gyr_kms = 1e-7\n")
+	r := loadMinimal(t, "[disk]\nsun_height_pc = -0.0\nsun_radius_kpc = 8e0\nheating_tau1_gyr = 1e-7\n")
 	canon := string(r.Canonical())
 	assert.Contains(t, canon, "sun_height_pc = 0.0\n", "-0 written as 0.0")
 	assert.Contains(t, canon, "sun_radius_kpc = 8.0\n", "whole floats keep a decimal point")
-	assert.Contains(t, canon, "sigma_10gyr_kms = 1e-07\n", "Go's shortest 'g' format")
+	assert.Contains(t, canon, "heating_tau1_gyr = 1e-07\n", "Go's shortest 'g' format")
 	assert.Contains(t, canon, "stars_generated = 2000000\n", "integers stay integers")
 	assert.Regexp(t, regexp.MustCompile(`(?m)^period_max_d = 466\.6666666666667$`), canon, "shortest round-trip digits")
 }

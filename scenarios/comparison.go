@@ -121,7 +121,7 @@ func (v *decoder) validateCompare(s *Scenario) {
 	}
 
 	v.heightEdges("compare.height_edges_pc", c.HeightEdgesPc)
-	v.atLeast("compare.template_stars", float64(c.TemplateStars), minTemplateStars, "fewer stars make templates noisier than the data")
+	v.inRange("compare.template_stars", float64(c.TemplateStars), minTemplateStars, true, MaxStars, true, "fewer stars make templates noisier than the data; "+maxStarsWhy)
 	v.oneOf("compare.normalisation", c.Normalisation, normalisations)
 	v.oneOf("compare.template_noise", c.TemplateNoise, templateNoises)
 	v.inRange("compare.bootstrap", float64(c.Bootstrap), 0, true, maxBootstrap, true, "0 means no bootstrap")

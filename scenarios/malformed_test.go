@@ -156,6 +156,63 @@ var malformedCases = []malformedCase{
 		want:   []string{"run.chunk_stars = 1.5 must be a whole number"},
 	},
 	{
+		// Source of the bound: the speed of light, 299 792.458 km/s, exact
+		// by the SI definition of the metre; the message also names the
+		// Galaxy's escape speed near the Sun (Piffl et al. 2014).
+		name:   "dispersion faster than light",
+		text:   minimal + "[disk]\nsigma_10gyr_kms = 1e8\n",
+		lineOf: "sigma_10gyr_kms",
+		want:   []string{"disk.sigma_10gyr_kms = 100000000 is out of range; it must be in [1, 500]", "nothing moves faster than light"},
+	},
+	{
+		name:   "sheet dispersion below the gas stars form from",
+		text:   minimal + "[disk]\nsheet_sigma_kms = 0.01\n",
+		lineOf: "sheet_sigma_kms",
+		want:   []string{"disk.sheet_sigma_kms = 0.01 is out of range; it must be in [1, 500]"},
+	},
+	{
+		name:   "huge surface density called out of range, not too small",
+		text:   minimal + "[disk]\nsurface_density_msun_pc2 = 1e300\n",
+		lineOf: "surface_density_msun_pc2",
+		want:   []string{"disk.surface_density_msun_pc2 = 1e+300 is out of range; it must be in [1, 1000]", "Bovy & Rix 2013"},
+	},
+	{
+		name:   "huge scale length",
+		text:   minimal + "[disk]\nscale_length_kpc = 1e300\n",
+		lineOf: "scale_length_kpc",
+		want:   []string{"disk.scale_length_kpc = 1e+300 is out of range; it must be in [0.5, 20]"},
+	},
+	{
+		name:   "Sun far from the Galactic centre",
+		text:   minimal + "[disk]\nsun_radius_kpc = 1e300\n",
+		lineOf: "sun_radius_kpc",
+		want:   []string{"disk.sun_radius_kpc = 1e+300 is out of range; it must be in [4, 12]"},
+	},
+	{
+		name:   "field beyond the disk",
+		text:   "[history.smooth]\nkind = \"constant\"\n[survey.field]\nkind = \"sphere\"\ndistance_max_pc = 1e9\n",
+		lineOf: "distance_max_pc",
+		want:   []string{"survey.field.distance_max_pc = 1000000000 is out of range; it must be in (0, 50000]"},
+	},
+	{
+		name:   "dust layer thicker than the Galaxy",
+		text:   minimal + "[dust]\nscale_height_pc = 1e7\n",
+		lineOf: "scale_height_pc",
+		want:   []string{"dust.scale_height_pc = 10000000 is out of range; it must be in (0, 50000]"},
+	},
+	{
+		name:   "star count near the int64 maximum",
+		text:   minimal + "[run]\nstars_generated = 9223372036854775807\n",
+		lineOf: "stars_generated",
+		want:   []string{"run.stars_generated = 9.223372036854776e+18 is out of range; it must be in [1, 100000000000000]"},
+	},
+	{
+		name:   "chunk too large for memory",
+		text:   minimal + "[run]\nchunk_stars = 16777216\n",
+		lineOf: "chunk_stars",
+		want:   []string{"run.chunk_stars = 16777216 is out of range; it must be in [256, 1048576]", "250 bytes per star"},
+	},
+	{
 		name:   "negative seed",
 		text:   minimal + "[run]\nseed = -1\n",
 		lineOf: "seed",
@@ -443,7 +500,7 @@ var malformedCases = []malformedCase{
 		name:   "too few template stars",
 		text:   minimal + "[compare]\ntemplate_stars = 50_000\n",
 		lineOf: "template_stars",
-		want:   []string{"compare.template_stars = 50000 must be ≥ 100000"},
+		want:   []string{"compare.template_stars = 50000 is out of range; it must be in [100000, "},
 	},
 	{
 		name:   "unknown normalisation",

@@ -32,11 +32,47 @@ var (
 	}
 )
 
+// Physical and practical limits. Every speed, density and length of a
+// scenario has a range, so that a typo of a few orders of magnitude is
+// caught by check rather than met as a crawl, a panic or an empty run.
+const (
+	// MaxStars bounds run.stars_generated and compare.template_stars. At
+	// the generator's ≈ 10⁶ stars/s per core, 10¹⁴ stars is three years of
+	// one core; what one machine can do is judged at run time from a
+	// measured cost (pipeline.Estimate), this only keeps counts far from
+	// int64 overflow.
+	MaxStars = 1e14
+	// MinChunkStars and MaxChunkStars bound run.chunk_stars. Each worker
+	// holds two chunks of about 250 bytes per star, so 2²⁰ stars is
+	// ≈ 0.5 GB per worker; below 256 stars per chunk the per-chunk cost
+	// (a new random stream, a hand-over between goroutines) dominates.
+	MinChunkStars = 256
+	MaxChunkStars = 1 << 20
+
+	// Velocity dispersions: above the escape speed from the Galaxy near
+	// the Sun, about 530 km/s (Piffl et al. 2014, A&A 562, A91; from
+	// memory), a population is not a disk; the speed of light,
+	// 299 792.458 km/s (exact, SI definition of the metre), is far beyond.
+	// Below 1 km/s, colder than the gas stars form from (common practice),
+	// the disk is too thin to sample.
+	minSigmaKms = 1
+	maxSigmaKms = 500
+	sigmaWhy    = "a disk population's dispersion lies between that of the gas stars form from, a few km/s, and the Galaxy's escape speed near the Sun, about 530 km/s (Piffl et al. 2014, A&A 562, A91); nothing moves faster than light, 299792.458 km/s"
+
+	// maxLengthPc bounds distances and heights: the stellar disk ends
+	// within about 15-20 kpc of the Galactic centre (from memory), so a
+	// field or dust layer reaching 50 kpc from the Sun is beyond it.
+	maxLengthPc = 50_000
+	lengthWhy   = "the Galaxy's stellar disk ends within about 25 kpc of the Sun; 50000 pc is beyond any field the model describes"
+	maxStarsWhy = "10^14 stars is years of computing; spinpop check and simulate estimate the run time of a count"
+	chunkWhy    = "each worker holds two chunks of about 250 bytes per star in memory; 65536 is the default"
+)
+
 // validate checks ranges and relations between keys. Keys that already
 // failed to decode are skipped, so each problem is reported once.
 func (v *decoder) validate(s *Scenario) {
-	v.atLeast("run.stars_generated", float64(s.Run.StarsGenerated), 1, "")
-	v.inRange("run.chunk_stars", float64(s.Run.ChunkStars), 1, true, 1<<24, true, "")
+	v.inRange("run.stars_generated", float64(s.Run.StarsGenerated), 1, true, MaxStars, true, maxStarsWhy)
+	v.inRange("run.chunk_stars", float64(s.Run.ChunkStars), MinChunkStars, true, MaxChunkStars, true, chunkWhy)
 
 	v.oneOf("imf.form", s.IMF.Form, imfForms)
 	v.inRange("imf.mass_min_msun", s.IMF.MassMinMsun, 0.08, true, 120, true, "0.08 Msun is the hydrogen-burning limit")
@@ -47,8 +83,9 @@ func (v *decoder) validate(s *Scenario) {
 	v.validateDisk(&s.Disk, s.History.MaxAgeGyr)
 
 	v.oneOf("dust.model", s.Dust.Model, dustModels)
-	v.positive("dust.scale_height_pc", s.Dust.ScaleHeightPc)
-	v.atLeast("dust.midplane_av_per_kpc", s.Dust.MidplaneAvPerKpc, 0, "")
+	v.inRange("dust.scale_height_pc", s.Dust.ScaleHeightPc, 0, false, maxLengthPc, true, lengthWhy)
+	v.inRange("dust.midplane_av_per_kpc", s.Dust.MidplaneAvPerKpc, 0, true, 100, true,
+		"about 0.7-1 mag/kpc in the solar neighbourhood (common practice); 100 mag/kpc would hide every star beyond a few tens of pc")
 
 	st := &s.Stars
 	v.oneOf("stars.relations", st.Relations, relationsTables)
@@ -78,14 +115,17 @@ func (v *decoder) validate(s *Scenario) {
 }
 
 func (v *decoder) validateDisk(dk *Disk, maxAgeGyr float64) {
-	v.positive("disk.sigma_10gyr_kms", dk.Sigma10GyrKms)
+	v.inRange("disk.sigma_10gyr_kms", dk.Sigma10GyrKms, minSigmaKms, true, maxSigmaKms, true, sigmaWhy)
 	v.inRange("disk.heating_tau1_gyr", dk.HeatingTau1Gyr, 0, false, 14, true,
 		"a zero offset would give stars born today zero velocity dispersion")
 	v.inRange("disk.heating_beta", dk.HeatingBeta, 0, true, 1, true, "published thin-disk values lie near 0.3-0.55")
-	v.positive("disk.sheet_sigma_kms", dk.SheetSigmaKms)
-	v.positive("disk.surface_density_msun_pc2", dk.SurfaceDensityMsunPc2)
-	v.positive("disk.scale_length_kpc", dk.ScaleLengthKpc)
-	v.positive("disk.sun_radius_kpc", dk.SunRadiusKpc)
+	v.inRange("disk.sheet_sigma_kms", dk.SheetSigmaKms, minSigmaKms, true, maxSigmaKms, true, sigmaWhy)
+	v.inRange("disk.surface_density_msun_pc2", dk.SurfaceDensityMsunPc2, 1, true, 1000, true,
+		"the disk's surface density near the Sun is about 70 Msun/pc^2 within 1.1 kpc of the plane (Bovy & Rix 2013, ApJ 779, 115; from memory); a hundredth to ten times that spans every disk the model is meant for")
+	v.inRange("disk.scale_length_kpc", dk.ScaleLengthKpc, 0.5, true, 20, true,
+		"published thin-disk scale lengths lie near 2-3.5 kpc (Bland-Hawthorn & Gerhard 2016, ARA&A 54, 529; from memory)")
+	v.inRange("disk.sun_radius_kpc", dk.SunRadiusKpc, 4, true, 12, true,
+		"the Sun's distance from the Galactic centre is measured at 8.1-8.3 kpc (Bland-Hawthorn & Gerhard 2016; from memory)")
 	v.inRange("disk.sun_height_pc", dk.SunHeightPc, -1000, true, 1000, true, "")
 	if !v.errs.isBad("history.max_age_gyr") {
 		v.binEdges("disk.age_bin_edges_gyr", dk.AgeBinEdgesGyr, maxAgeGyr, true)
@@ -165,7 +205,8 @@ func (v *decoder) cone(p string, c Cone) {
 }
 
 func (v *decoder) distances(p string, lo, hi float64) {
-	v.atLeast(joinKey(p, "distance_min_pc"), lo, 0, "")
+	v.inRange(joinKey(p, "distance_min_pc"), lo, 0, true, maxLengthPc, true, lengthWhy)
+	v.inRange(joinKey(p, "distance_max_pc"), hi, 0, false, maxLengthPc, true, lengthWhy)
 	v.less(joinKey(p, "distance_min_pc"), lo, joinKey(p, "distance_max_pc"), hi, "empty distance range")
 }
 
@@ -175,7 +216,7 @@ func (v *decoder) validateCuts(c *Cuts) {
 	v.atLeast("cuts.ms_band_faint_mag", c.MSBandFaintMag, 0, "")
 	v.positive("cuts.period_min_d", c.PeriodMinD)
 	v.less("cuts.period_min_d", c.PeriodMinD, "cuts.period_max_d", c.PeriodMaxD, "empty period range")
-	v.atLeast("cuts.height_max_pc", c.HeightMaxPc, 0, "0 means no cut")
+	v.inRange("cuts.height_max_pc", c.HeightMaxPc, 0, true, maxLengthPc, true, "0 means no cut; "+lengthWhy)
 }
 
 // required reports the keys of table p that are missing, in one message,
