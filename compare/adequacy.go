@@ -175,7 +175,7 @@ func newAdequacy(data devianceRecord, reps []devianceRecord, regs []region, coun
 		a.ReplicateMean = s / b
 		a.ReplicateSD = math.Sqrt(math.Max(0, s2/b-a.ReplicateMean*a.ReplicateMean))
 		a.PValue = (1 + float64(ge)) / (1 + b)
-		a.PValueNormal = 0.5 * math.Erfc((a.Deviance-a.ReplicateMean)/(a.ReplicateSD*math.Sqrt2))
+		a.PValueNormal = normalUpperTail(a.Deviance, a.ReplicateMean, a.ReplicateSD)
 		if ge == 0 && a.ReplicateSD > 0 {
 			a.PValue = math.Min(a.PValue, a.PValueNormal)
 		}

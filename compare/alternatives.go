@@ -10,6 +10,8 @@ import (
 	"sort"
 	"strings"
 
+	"gonum.org/v1/gonum/stat"
+
 	"spinpop/compare/stats"
 )
 
@@ -58,7 +60,11 @@ type AltFit struct {
 // B), PUnderB = P(LR* ≤ LR | B) (small: the data reject B in favour of
 // A). For non-nested models this is the bootstrap form of Cox's test
 // (Cox 1962, JRSS B 24, 406; Williams 1970) [memory]: each model is
-// tested as the null against the other.
+// tested as the null against the other. When no replicate reaches the
+// observed LR, the p-value is the normal tail of the replicates' LR
+// instead of 1/(1 + B), as for the goodness of fit (Adequacy.PValue): an
+// LR thousands of units beyond every replicate must not read as "not
+// rejected at 1 %" merely because 20 replicates cannot show p < 0.048.
 type PairTest struct {
 	A             string  `json:"a"`
 	B             string  `json:"b"`
@@ -135,6 +141,23 @@ func CompareAlternatives(ctx context.Context, alts []Alternative, opts AltOption
 		res.Fits = append(res.Fits, af)
 	}
 
+	// Replicates are drawn on the bins every alternative reaches at its
+	// best fit, as the data are (a bin only one explanation can fill says
+	// nothing about the others, and would end every other's refit at
+	// ln L = −∞).
+	support := make([]bool, alts[0].Like.NumBins())
+	for i := range support {
+		support[i] = true
+	}
+	for h, a := range alts {
+		if err := useTemplates(a.Like, res.Fits[h].Fit, nil); err != nil {
+			return nil, err
+		}
+		for i, ok := range a.Like.reached() {
+			support[i] = support[i] && ok
+		}
+	}
+
 	// Replicates under each alternative, each refitted by every one.
 	H := len(alts)
 	lnL := make([][][]float64, H) // lnL[h][i][g]: replicate i drawn under h, refitted by g
@@ -159,6 +182,11 @@ func CompareAlternatives(ctx context.Context, alts []Alternative, opts AltOption
 		}
 		err := parallelReplicates(ctx, opts.Replicates, opts.Workers, progress, func(i int, counts []float64) error {
 			drawLikeMock(counts, mu, a.Like, altStream(opts.Seed, h, i))
+			for c, ok := range support {
+				if !ok {
+					counts[c] = 0
+				}
+			}
 			row := make([]float64, H)
 			for g, b := range alts {
 				l, err := b.Like.withCounts(counts, false)
@@ -209,6 +237,17 @@ func CompareAlternatives(ctx context.Context, alts []Alternative, opts AltOption
 			}
 			nb := float64(opts.Replicates)
 			pt.PUnderA, pt.PUnderB = (1+float64(geA))/(1+nb), (1+float64(leB))/(1+nb)
+			underA, underB := make([]float64, opts.Replicates), make([]float64, opts.Replicates)
+			for i := range opts.Replicates {
+				underA[i] = 2 * (lnL[a][i][b] - lnL[a][i][a])
+				underB[i] = 2 * (lnL[b][i][b] - lnL[b][i][a])
+			}
+			if m, sd := stat.MeanStdDev(underA, nil); geA == 0 && sd > 0 {
+				pt.PUnderA = math.Min(pt.PUnderA, normalUpperTail(pt.LR, m, sd))
+			}
+			if m, sd := stat.MeanStdDev(underB, nil); leB == 0 && sd > 0 {
+				pt.PUnderB = math.Min(pt.PUnderB, normalUpperTail(-pt.LR, -m, sd))
+			}
 			if res.Fits[a].HasEvidence && res.Fits[b].HasEvidence {
 				pt.LogBayesBOver = res.Fits[b].LogEvidence - res.Fits[a].LogEvidence
 			}
@@ -217,6 +256,18 @@ func CompareAlternatives(ctx context.Context, alts []Alternative, opts AltOption
 	}
 	res.Best, res.Outcome, res.Verdict = altVerdict(res)
 	return res, nil
+}
+
+// normalUpperTail is P(X ≥ x) for X normal with mean m and standard
+// deviation sd (with sd = 0: 0 beyond m, 1 up to it).
+func normalUpperTail(x, m, sd float64) float64 {
+	if !(sd > 0) {
+		if x > m {
+			return 0
+		}
+		return 1
+	}
+	return 0.5 * math.Erfc((x-m)/(sd*math.Sqrt2))
 }
 
 // altStream is the stream of replicate i under alternative h: a function
@@ -262,7 +313,7 @@ func altVerdict(r *AltResult) (best, outcome, text string) {
 		if !ok {
 			desc = "does not describe the catalog" + worstRegions(a)
 		}
-		lines = append(lines, fmt.Sprintf("%s: ln L = %.1f, deviance %.0f against %.0f ± %.0f from counting noise (p = %s) — %s", f.Name, f.LogL, a.Deviance, a.ReplicateMean, a.ReplicateSD, formatP(a.PValue), desc))
+		lines = append(lines, fmt.Sprintf("%s: ln L = %.1f, deviance %.0f against %.0f ± %.0f from counting noise (%s) — %s", f.Name, f.LogL, a.Deviance, a.ReplicateMean, a.ReplicateSD, pIs(a.PValue), desc))
 	}
 	c := order[0]
 	cf := r.Fits[c]
@@ -296,7 +347,7 @@ func altVerdict(r *AltResult) (best, outcome, text string) {
 				if p.B == cf.Name {
 					other, pv = p.A, p.PUnderA
 				}
-				ps = append(ps, fmt.Sprintf("%q rejected at bootstrap p = %s", other, formatP(pv)))
+				ps = append(ps, fmt.Sprintf("%q rejected at bootstrap %s", other, pIs(pv)))
 			}
 		}
 		return cf.Name, "prefers", lead + fmt.Sprintf("The catalog prefers %q (%s). %s", cf.Name, strings.Join(ps, ", "), summary)

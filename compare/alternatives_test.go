@@ -71,3 +71,35 @@ func TestCompareAlternatives(t *testing.T) {
 	assert.Empty(t, res.Best)
 	assert.Contains(t, res.Verdict, "Neither explanation fits")
 }
+
+// With few replicates, a likelihood ratio far beyond every replicate is
+// not stuck at the counting floor 1/(1 + B): the p-value follows the
+// replicates' normal tail, so "rejected at 1 %" does not need 100
+// replicates when the data are thousands of units of 2 ln L away.
+func TestPairPValueBeyondEveryReplicate(t *testing.T) {
+	tplA, tplB, hist := altSetup(t, 0.04, 0.12)
+	w, err := hist.Weights([]float64{0.15})
+	require.NoError(t, err)
+	nA := poissonData(tplA, w, 20000/tplA.totalStars(w), 3)
+	la, err := NewLikelihood(tplA, nA, LikeOptions{TemplateNoise: NoiseIgnore})
+	require.NoError(t, err)
+	lb, err := NewLikelihood(tplB, nA, LikeOptions{TemplateNoise: NoiseIgnore})
+	require.NoError(t, err)
+	res, err := CompareAlternatives(context.Background(), []Alternative{
+		{Name: "narrow", Like: la, History: hist},
+		{Name: "wide", Like: lb, History: hist},
+	}, AltOptions{Replicates: 19, Seed: 4, Workers: 2, NoEvidence: true})
+	require.NoError(t, err)
+	require.Len(t, res.Pairs, 1)
+	assert.Less(t, res.Pairs[0].PUnderB, 1.0/20, "beyond the counting floor of 19 replicates")
+	assert.Equal(t, "narrow", res.Best)
+}
+
+// The normal tail against a printed table: P(Z ≥ 1.96) = 0.0249979 and
+// P(Z ≥ 3) = 0.0013499 (Abramowitz & Stegun 1964, Table 26.1).
+func TestNormalUpperTail(t *testing.T) {
+	assert.InDelta(t, 0.0249979, normalUpperTail(1.96, 0, 1), 1e-7)
+	assert.InDelta(t, 0.0013499, normalUpperTail(10+3*2, 10, 2), 1e-7)
+	assert.Equal(t, 0.0, normalUpperTail(5, 4, 0))
+	assert.Equal(t, 1.0, normalUpperTail(3, 4, 0))
+}

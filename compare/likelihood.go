@@ -468,6 +468,21 @@ func (l *Likelihood) reachable() bool {
 	return true
 }
 
+// reached marks the bins some template star reaches (at the templates in
+// use).
+func (l *Likelihood) reached() []bool {
+	out := make([]bool, l.nb)
+	for i := range out {
+		for _, v := range l.rows[i*l.k : (i+1)*l.k] {
+			if v > 0 {
+				out[i] = true
+				break
+			}
+		}
+	}
+	return out
+}
+
 // NumAgeBins returns the length of the weight vector.
 func (l *Likelihood) NumAgeBins() int { return l.k }
 

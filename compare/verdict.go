@@ -35,10 +35,10 @@ func verdict(r *BurstResult) (strength, reason, calibration, text string) {
 	if !adequate {
 		p, calibration = r.PValueQuasi, "quasi-likelihood"
 	}
-	pText := fmt.Sprintf("bootstrap p = %s from %d replicates", formatP(p), r.Replicates)
+	pText := fmt.Sprintf("bootstrap %s from %d replicates", pIs(p), r.Replicates)
 	floor := p <= 1/float64(r.Replicates+1)+1e-15
 	if floor {
-		pText = fmt.Sprintf("bootstrap p = %s, none of %d replicates reaching the observed ratio", formatP(p), r.Replicates)
+		pText = fmt.Sprintf("bootstrap %s, none of %d replicates reaching the observed ratio", pIs(p), r.Replicates)
 		if p > pStrong {
 			pText += ", so more replicates could lower p"
 		}
@@ -65,12 +65,12 @@ func verdict(r *BurstResult) (strength, reason, calibration, text string) {
 	default:
 		strength = "none"
 	}
-	fitText := fmt.Sprintf("The burst model describes the catalog (deviance %.0f against %.0f ± %.0f from counting noise, p = %s).",
-		a.Deviance, a.ReplicateMean, a.ReplicateSD, formatP(a.PValue))
+	fitText := fmt.Sprintf("The burst model describes the catalog (deviance %.0f against %.0f ± %.0f from counting noise, %s).",
+		a.Deviance, a.ReplicateMean, a.ReplicateSD, pIs(a.PValue))
 	misfit := ""
 	if !adequate {
-		misfit = fmt.Sprintf("the best fit leaves a deviance of %.0f where counting noise gives %.0f ± %.0f (p = %s; dispersion φ̂ = %.2f)%s",
-			a.Deviance, a.ReplicateMean, a.ReplicateSD, formatP(a.PValue), a.Dispersion, worstRegions(a))
+		misfit = fmt.Sprintf("the best fit leaves a deviance of %.0f where counting noise gives %.0f ± %.0f (%s; dispersion φ̂ = %.2f)%s",
+			a.Deviance, a.ReplicateMean, a.ReplicateSD, pIs(a.PValue), a.Dispersion, worstRegions(a))
 	}
 	if !adequate && strength != "none" && r.LR <= misfitFactor*a.Excess {
 		reason = fmt.Sprintf("the burst improves the fit by 2Δln L = %.1f, no more than the misfit the best model still leaves (excess deviance %.1f)", r.LR, a.Excess)
@@ -127,11 +127,17 @@ func indexOf(names []string, s string) int {
 	return -1
 }
 
-func formatP(p float64) string {
-	if p >= 0.1 {
-		return fmt.Sprintf("%.2f", p)
+// pIs writes "p = …" for a p-value in a verdict.
+func pIs(p float64) string {
+	if p < 1e-15 {
+		// The normal tail underflows or is below what a tail
+		// approximation can be trusted to; say so rather than print 0.
+		return "p < 1e-15"
 	}
-	return fmt.Sprintf("%.2g", p)
+	if p >= 0.1 {
+		return fmt.Sprintf("p = %.2f", p)
+	}
+	return fmt.Sprintf("p = %.2g", p)
 }
 
 // formatAge writes best ± error (or +hi/−lo when the interval is lopsided

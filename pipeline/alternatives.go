@@ -3,6 +3,7 @@ package pipeline
 import (
 	"context"
 	"fmt"
+	"slices"
 
 	"spinpop/assemble"
 	"spinpop/compare"
@@ -34,6 +35,10 @@ type AlternativesOptions struct {
 func TestAlternatives(ctx context.Context, comps []*Comparison, opts AlternativesOptions) (*AlternativesOutcome, error) {
 	if len(comps) < 2 {
 		return nil, InputError{fmt.Errorf("a comparison of explanations needs at least two scenarios, got %d", len(comps))}
+	}
+	comps, err := onCommonCells(comps)
+	if err != nil {
+		return nil, err
 	}
 	out := &AlternativesOutcome{Comparisons: comps}
 	for _, c := range comps {
@@ -85,4 +90,41 @@ func (o *AlternativesOutcome) Report(outputs []string) map[string]any {
 	return map[string]any{"tool": "spinpop", "version": Version, "data": o.Comparisons[0].DataSummary(), "stars": r.N,
 		"replicates_per_alternative": r.Replicates, "fits": fits, "pairs": pairs,
 		"outcome": r.Outcome, "best": r.Best, "verdict": r.Verdict, "outputs": outputs}
+}
+
+// onCommonCells returns the comparisons scoring the same catalog stars:
+// each comparison leaves out the cells its own templates never reach and
+// (with compare.mask_below_age_gyr) those below its own law's young
+// gyrochrone, so explanations under different laws would otherwise score
+// different stars, and their likelihoods could not be compared. Every
+// comparison here leaves out the cells any of them leaves out (the
+// templates of each are zero in its own masked cells, so DropUnreached
+// covers both). The comparisons given are not changed.
+func onCommonCells(comps []*Comparison) ([]*Comparison, error) {
+	out := make([]*Comparison, len(comps))
+	for i, c := range comps {
+		d := *c
+		obs := *c.Observed
+		obs.Counts = slices.Clone(c.Observed.Counts)
+		changed := false
+		for j, o := range comps {
+			if j == i || o.Templates == nil {
+				continue
+			}
+			if stars, _ := obs.DropUnreached(o.Templates); stars > 0 {
+				d.DroppedStars += stars
+				changed = true
+			}
+		}
+		d.Observed = &obs
+		if changed {
+			l, err := c.Likelihood.WithCounts(obs.Counts)
+			if err != nil {
+				return nil, InputError{fmt.Errorf("%s: %w", c.Source, err)}
+			}
+			d.Likelihood = l
+		}
+		out[i] = &d
+	}
+	return out, nil
 }

@@ -93,6 +93,9 @@ func (d *decoder) fillCompare(s *Scenario) {
 	if len(c.Free) == 0 {
 		c.Free = nil // one spelling of "nothing is free", whether written or defaulted
 	}
+	if len(c.Alternatives) == 0 {
+		c.Alternatives = nil
+	}
 }
 
 // validateCompare checks [compare]; the cuts and the history are checked
@@ -133,6 +136,7 @@ func (v *decoder) validateCompare(s *Scenario) {
 	v.inRange("compare.mask_margin_dex", c.MaskMarginDex, 0, true, 1, true, "")
 	v.burstPart(s)
 	v.validateFree(s)
+	v.validateAlternatives(s)
 }
 
 // burstPart checks compare.burst_part: a part of that name must be a

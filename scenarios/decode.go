@@ -197,6 +197,10 @@ func (d *decoder) slice(p string, v any, rv reflect.Value) {
 		rv.Set(out)
 		return
 	}
+	if et.Kind() == reflect.String {
+		d.stringSlice(p, v, rv)
+		return
+	}
 	arr, ok := v.([]any)
 	if !ok {
 		d.wrongType(p, "an array of numbers", v)
@@ -214,6 +218,26 @@ func (d *decoder) slice(p string, v any, rv reflect.Value) {
 			return
 		}
 		out[i] = x
+	}
+	rv.Set(reflect.ValueOf(out))
+}
+
+// stringSlice decodes an array of strings. An empty array is nil: one
+// spelling of "none", whether written or left out.
+func (d *decoder) stringSlice(p string, v any, rv reflect.Value) {
+	arr, ok := v.([]any)
+	if !ok {
+		d.wrongType(p, "an array of strings", v)
+		return
+	}
+	var out []string
+	for i, e := range arr {
+		s, ok := e.(string)
+		if !ok {
+			d.errAt(p, "%s must be an array of strings, but element %d is %s", p, i+1, describe(e))
+			return
+		}
+		out = append(out, s)
 	}
 	rv.Set(reflect.ValueOf(out))
 }

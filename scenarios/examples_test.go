@@ -126,6 +126,8 @@ func TestFitExample(t *testing.T) {
 	assert.Equal(t, "per-color", fc.Normalisation)
 	assert.Equal(t, 0.1, fc.MaskAgeGyr)
 	fc.Free, bc.Free = nil, nil
+	require.Len(t, fc.Alternatives, 2, "fit.toml names the stall and burst-and-stall explanations")
+	fc.Alternatives = nil
 	assert.Equal(t, 200, fc.Bootstrap)
 	fc.Normalisation, fc.MaskAgeGyr, fc.Bootstrap = bc.Normalisation, bc.MaskAgeGyr, bc.Bootstrap
 	assert.Equal(t, bc, fc)

@@ -269,6 +269,20 @@ type Compare struct {
 	MaskAgeGyr    float64     `toml:"mask_below_age_gyr"` // leave out cells below the gyrochrone of this age (stars younger than the law describes); 0 = none (default)
 	MaskMarginDex float64     `toml:"mask_margin_dex"`    // how far below that gyrochrone a cell must lie to be left out (dex); default 0.1
 	Free          []FreeParam `toml:"free"`               // parameters fitted; default: see above
+	// Alternatives are other explanations of the same catalog, each this
+	// scenario with some keys changed; test-alternatives compares the
+	// scenario with each of them. Default: none.
+	Alternatives []Alternative `toml:"alternatives"`
+}
+
+// Alternative is one explanation of the catalog written as changes to the
+// scenario that holds it: keys set as --set sets them, history parts
+// dropped. Its own free parameters are the scenario's, less those of the
+// parts it drops, unless it sets compare.free itself.
+type Alternative struct {
+	Name string   `toml:"name"` // short name used in reports, e.g. "stall"; required, unique
+	Set  []string `toml:"set"`  // "key=value" settings, as --set takes them, e.g. "spin.law=torque"
+	Drop []string `toml:"drop"` // history parts this explanation does not have, e.g. ["burst"]
 }
 
 // FreeParam is one fitted parameter, named by its scenario path: a history

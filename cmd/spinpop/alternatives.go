@@ -1,6 +1,10 @@
 package main
 
 import (
+	"slices"
+
+	"spinpop/scenarios"
+
 	"context"
 	"fmt"
 	"io"
@@ -15,38 +19,48 @@ import (
 )
 
 func runTestAlternatives(args []string, stdout, stderr io.Writer) error {
-	fs := newFlagSet("test-alternatives", "test-alternatives SCENARIO SCENARIO... --out DIR [--replicates N] [--json] [--templates DIR] [--force]",
+	fs := newFlagSet("test-alternatives", "test-alternatives SCENARIO [SCENARIO...] --out DIR [--replicates N] [--json] [--templates DIR] [--force]",
 		"Which explanation does the catalog prefer? Each SCENARIO is one explanation — a burst, a\n"+
 			"stalled spin-down, both, neither — with its own physics, its history as written and the\n"+
 			"parameters of its [[compare.free]] (history and nuisance parameters) fitted to the same\n"+
-			"catalog. Every pair is compared by the likelihood ratio, calibrated by a parametric\n"+
-			"bootstrap under each member (the bootstrap form of Cox's test of non-nested models),\n"+
-			"with AIC, BIC and a grid evidence; each explanation's goodness of fit is calibrated by its\n"+
-			"own replicates. The verdict says which explanation the catalog prefers, that it cannot\n"+
-			"tell, or that none fits. Every scenario must read the same catalog with the same cuts\n"+
-			"and comparison space; their names (the name key) label them.", stdout)
+			"catalog; so is each of its [[compare.alternatives]] (the scenario with some keys set and\n"+
+			"some history parts dropped), so one scenario that names alternatives is enough\n"+
+			"(example:fit names a stall and a burst with a stall). Every pair is compared by the\n"+
+			"likelihood ratio, calibrated by a parametric bootstrap under each member (the bootstrap\n"+
+			"form of Cox's test of non-nested models), with AIC, BIC and a grid evidence; each\n"+
+			"explanation's goodness of fit is calibrated by its own replicates. The verdict says which\n"+
+			"explanation the catalog prefers, that it cannot tell, or that none fits. Every\n"+
+			"explanation must read the same catalog with the same cuts and comparison space; their\n"+
+			"names (the name key, or the alternative's name) label them.", stdout)
 	cf := addCompareFlags(fs)
 	reps := fs.Int("replicates", 200, "bootstrap replicates under each explanation")
 	pos, err := parseInterleaved(fs, args)
 	if err != nil {
 		return err
 	}
-	if len(pos) < 2 {
-		return usageErrorf("test-alternatives takes at least two scenarios, one per explanation; got %d (see spinpop test-alternatives --help)", len(pos))
+	if len(pos) < 1 {
+		return usageErrorf("test-alternatives takes the scenarios to compare, one per explanation, or one scenario with [[compare.alternatives]]; got none (see spinpop test-alternatives --help)")
 	}
 	if *reps < 20 {
 		return usageErrorf("--replicates = %d: the bootstrap needs at least 20 replicates per explanation (200 or more to judge goodness of fit at 1 %%)", *reps)
 	}
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
 	defer stop()
+	explanations, err := explanationsOf(pos, cf)
+	if err != nil {
+		return err
+	}
+	if len(explanations) < 2 {
+		return usageErrorf("test-alternatives needs at least two explanations; %s names no [[compare.alternatives]], so give a second scenario or add alternatives to it (see example:fit)", pos[0])
+	}
 	var comps []*pipeline.Comparison
-	for i, path := range pos {
+	for i, e := range explanations {
 		f := cf
 		if i > 0 {
 			force := true
 			f.force = &force // the folder is this run's own by now
 		}
-		c, err := setupComparison(ctx, path, f, stderr)
+		c, err := setupResolved(ctx, e.res, e.arg, f, stderr)
 		if err != nil {
 			return err
 		}
@@ -100,4 +114,44 @@ func runTestAlternatives(args []string, stdout, stderr io.Writer) error {
 	}
 	fmt.Fprintf(stdout, "\n%s\nwrote: %s\n", res.Verdict, wordList(outputs))
 	return nil
+}
+
+// explanation is one scenario to compare: a file (or example) as the user
+// gave it, or one of its alternatives (arg then says which).
+type explanation struct {
+	arg string
+	res *scenarios.Resolved
+}
+
+// explanationsOf resolves each scenario argument (with the --set
+// overrides) and, after each, its [[compare.alternatives]].
+func explanationsOf(args []string, cf compareFlags) ([]explanation, error) {
+	var sets []string
+	if cf.sets != nil {
+		sets = *cf.sets
+	}
+	overrides, err := scenarios.ParseOverrides(sets)
+	if err != nil {
+		return nil, inputError{err}
+	}
+	var out []explanation
+	for _, arg := range args {
+		res, err := loadScenario(arg, sets)
+		if err != nil {
+			return nil, err
+		}
+		out = append(out, explanation{arg, res})
+		for i := range res.Scenario.Compare.Alternatives {
+			alt, err := scenarios.AlternativeOverrides(&res.Scenario, i)
+			if err != nil {
+				return nil, inputError{err}
+			}
+			ares, err := scenarios.Resolve(arg, append(slices.Clone(overrides), alt...)...)
+			if err != nil {
+				return nil, inputError{err}
+			}
+			out = append(out, explanation{fmt.Sprintf("%s, alternative %q", arg, res.Scenario.Compare.Alternatives[i].Name), ares})
+		}
+	}
+	return out, nil
 }

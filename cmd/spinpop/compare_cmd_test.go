@@ -145,3 +145,48 @@ func TestComparisonInputErrors(t *testing.T) {
 	assert.Equal(t, 2, code)
 	assert.Contains(t, errs, "SHA-256")
 }
+
+// One scenario that names an alternative is enough for test-alternatives:
+// the demo catalog (drawn with a burst under the empirical law, see
+// testdata/demo-truth.toml) against the same scenario with the burst
+// dropped and a stalled spin-down instead. The alternative is fitted
+// without the burst's parameters, and the catalog must not prefer the
+// explanation that did not make it.
+func TestTestAlternativesInsideOneScenario(t *testing.T) {
+	if testing.Short() {
+		t.Skip("builds templates under two laws and bootstraps both; skipped with -short")
+	}
+	sc := fitScenario(t, `
+[[compare.alternatives]]
+name = "stall"
+set = ["spin.law=torque", "spin.stall.enabled=true"]
+drop = ["burst"]
+`)
+	out := filepath.Join(t.TempDir(), "alt")
+	code, stdout, errs := runCLI("test-alternatives", sc, "--out", out, "--templates", "none", "--replicates", "20")
+	require.Equal(t, 0, code, errs)
+	var res struct {
+		Fits []struct {
+			Name     string `json:"name"`
+			Scenario string `json:"scenario"`
+			K        int    `json:"k"`
+		} `json:"fits"`
+		Best    string `json:"best"`
+		Outcome string `json:"outcome"`
+	}
+	b, err := os.ReadFile(filepath.Join(out, "alternatives.json"))
+	require.NoError(t, err)
+	require.NoError(t, json.Unmarshal(b, &res))
+	require.Len(t, res.Fits, 2)
+	assert.Equal(t, "fit-small", res.Fits[0].Name)
+	assert.Equal(t, "stall", res.Fits[1].Name)
+	assert.Contains(t, res.Fits[1].Scenario, `alternative "stall"`)
+	assert.Equal(t, res.Fits[0].K-3, res.Fits[1].K, "the stall is fitted without the burst's age, width and fraction")
+	assert.Equal(t, "fit-small", res.Best, "the catalog was made with a burst under the empirical law: %s", stdout)
+
+	// Without alternatives, one scenario is not a comparison.
+	plain := fitScenario(t, "")
+	code, _, errs = runCLI("test-alternatives", plain, "--out", filepath.Join(t.TempDir(), "x"))
+	assert.Equal(t, 2, code)
+	assert.Contains(t, errs, "names no [[compare.alternatives]]")
+}

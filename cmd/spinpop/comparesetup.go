@@ -10,6 +10,7 @@ import (
 	"runtime"
 
 	"spinpop/pipeline"
+	"spinpop/scenarios"
 )
 
 // compareFlags are the flags every comparison command takes.
@@ -54,6 +55,12 @@ func setupComparison(ctx context.Context, arg string, f compareFlags, stderr io.
 	if err != nil {
 		return nil, err
 	}
+	return setupResolved(ctx, res, arg, f, stderr)
+}
+
+// setupResolved is setupComparison for a scenario already resolved (an
+// alternative of the scenario arg).
+func setupResolved(ctx context.Context, res *scenarios.Resolved, arg string, f compareFlags, stderr io.Writer) (*pipeline.Comparison, error) {
 	if *f.threads < 1 {
 		return nil, usageErrorf("--threads must be at least 1")
 	}
