@@ -4,10 +4,10 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"os"
 	"strings"
 
 	"spinpop/compare/catalog"
+	"spinpop/internal/regular"
 	"spinpop/model"
 )
 
@@ -69,7 +69,7 @@ func ReadObserved(spec DataSpec, space Space, rejects io.Writer) (*Observed, err
 	}
 	open := spec.Open
 	if open == nil {
-		open = func() (io.ReadCloser, error) { return os.Open(spec.Path) }
+		open = func() (io.ReadCloser, error) { return regular.Open(spec.Path) }
 	}
 	f, err := open()
 	if err != nil {

@@ -71,7 +71,13 @@ func RequireData(res *scenarios.Resolved, source string) error {
 	if res.Scenario.Data.File == "" {
 		return InputError{fmt.Errorf("%s has no [data] section: name an observed catalog with data.file and map its columns in [data.columns] (see spinpop examples fit)", source)}
 	}
-	return nil
+	// Open the catalog once now, so that a missing file, a folder or a
+	// FIFO is reported before minutes of template building, not after.
+	f, err := res.OpenData()
+	if err != nil {
+		return InputError{err}
+	}
+	return f.Close()
 }
 
 // SetupComparison builds or reuses the scenario's templates, reads and

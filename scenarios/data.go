@@ -3,10 +3,11 @@ package scenarios
 import (
 	"fmt"
 	"io/fs"
-	"os"
 	"reflect"
 	"strconv"
 	"strings"
+
+	"spinpop/internal/regular"
 )
 
 // The [data] section names an observed catalog. Loading a scenario checks
@@ -229,7 +230,7 @@ func (r *Resolved) OpenData() (fs.File, error) {
 	if r.DataFS != nil {
 		f, err = r.DataFS.Open(r.DataPath)
 	} else {
-		f, err = os.Open(r.DataPath)
+		f, err = regular.Open(r.DataPath) // a FIFO would block for ever
 	}
 	if err != nil {
 		return nil, &Error{File: r.dataAt.file, Line: r.dataAt.line, Key: "data.file", Err: err,

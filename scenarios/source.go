@@ -5,9 +5,10 @@ import (
 	"fmt"
 	"io"
 	"io/fs"
-	"os"
 	"path"
 	"path/filepath"
+
+	"spinpop/internal/regular"
 )
 
 // maxFileBytes bounds what the loader reads. Scenario files are a few
@@ -29,7 +30,8 @@ type source interface {
 type osSource struct{}
 
 func (osSource) read(name string) ([]byte, error) {
-	f, err := os.Open(name)
+	// Only regular files: a FIFO would block the open for ever.
+	f, err := regular.Open(name)
 	if err != nil {
 		return nil, err
 	}

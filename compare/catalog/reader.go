@@ -10,8 +10,9 @@ import (
 	"fmt"
 	"hash"
 	"io"
-	"os"
 	"strconv"
+
+	"spinpop/internal/regular"
 )
 
 // Options control Read.
@@ -71,7 +72,7 @@ func (s Summary) RejectedTotal() int {
 
 // ReadFile opens path and reads it with Read, naming the file in messages.
 func ReadFile(path string, opt Options, fn func(line int, s Star) error) (Summary, error) {
-	f, err := os.Open(path)
+	f, err := regular.Open(path) // a FIFO would block for ever, a device never end
 	if err != nil {
 		return Summary{}, err
 	}
