@@ -345,11 +345,20 @@ func refitPair(like *Likelihood, counts []float64, smooth, burst HistoryModel, f
 	if err != nil {
 		return replicate{}, err
 	}
-	init := append([][]float64{f1.Theta}, nestedStarts(smooth, burst, r0.Theta)...)
-	start1 := f1.Nuisance
-	r1, err := refitAt(l, burst, nu, f1.morph, FitOptions{Starts: opts.ReplicateStarts, Seed: opts.Seed, Init: init}, start1)
+	// The burst model is refitted on the expansion the replicate was drawn
+	// from (the smooth fit's), starting from the smooth refit's nuisance
+	// values and from burst-free histories, where it can do no worse than
+	// the smooth model; on the burst fit's own expansion a replicate can
+	// hold stars in bins that expansion does not reach at its start (the
+	// nuisance values of the two data fits differ), and the refit would
+	// begin at likelihood zero. That expansion is the fallback.
+	init := append(nestedStarts(smooth, burst, r0.Theta), f1.Theta)
+	r1, err := refitAt(l, burst, nu, f0.morph, FitOptions{Starts: opts.ReplicateStarts, Seed: opts.Seed, Init: init}, r0.Nuisance)
 	if err != nil {
-		return replicate{}, err
+		var err1 error
+		if r1, err1 = refitAt(l, burst, nu, f1.morph, FitOptions{Starts: opts.ReplicateStarts, Seed: opts.Seed, Init: init}, f1.Nuisance); err1 != nil {
+			return replicate{}, fmt.Errorf("%w (and on the burst fit's expansion: %v)", err, err1)
+		}
 	}
 	out := replicate{lr: math.Max(0, 2*(r1.LogL-r0.LogL))}
 	if out.d0, err = fitDeviance(l, r0, regs); err != nil {
