@@ -4,6 +4,8 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"math"
+	"strconv"
 	"strings"
 
 	"spinpop/compare/catalog"
@@ -24,6 +26,12 @@ type DataSpec struct {
 	SunZPc    float64         // z☉ added to d sin b when heights are derived from parallax
 	Cuts      model.Cuts      // the catalog cuts, the same the model applies
 	Relations *model.Relations
+	// LeaveOut, if not nil, names why a star that passed the cuts is left
+	// out of the comparison for the (color, period) cell it falls in
+	// (Space.Index2D), or returns "" to keep it. Such stars stay in
+	// Observed.Stars (the height check uses every star that passed the
+	// cuts) but not in Counts.
+	LeaveOut func(cell int) string
 }
 
 // ObservedStar is one star that passed every cut and lies in the space.
@@ -38,17 +46,22 @@ type Observed struct {
 	Rows     int            // data rows read, usable or not
 	Rejected map[string]int // unusable rows, by reason (catalog.Reason text)
 	CutAway  map[string]int // usable rows removed by each cut (CutNames)
+	LeftOut  map[string]int // stars past the cuts left out by DataSpec.LeaveOut, by its reason
 	SHA256   string         // hex SHA-256 of the file's bytes
 	Stars    []ObservedStar // the counted stars, in file order
 }
 
 // ReadObserved reads the catalog of spec, cuts it as the model is cut
 // (KeepStar), and bins the kept stars in space; stars that pass the cuts
-// but fall outside the space are counted under CutOutsideSpace. Unusable
-// rows (missing or malformed values) are counted by reason and written to
-// rejects as CSV with the columns line, reason, column, value, raw (nil
-// discards them). A file whose SHA-256 differs from spec.SHA256 is an
-// error naming the file and both hashes.
+// but fall outside the space are counted under CutOutsideSpace, and stars
+// in cells spec.LeaveOut names are counted in LeftOut. Every row not
+// counted in the space is written to rejects as CSV with the columns
+// line, reason, column, value, raw (nil discards them): unusable rows
+// (missing or malformed values) with the reader's reason, cut rows with
+// "cut: " and the cut's name (CutNames), rows left out with "left out: "
+// and LeaveOut's reason. So Rows = N + the rows written. A file whose
+// SHA-256 differs from spec.SHA256 is an error naming the file and both
+// hashes.
 func ReadObserved(spec DataSpec, space Space, rejects io.Writer) (*Observed, error) {
 	if spec.Relations == nil {
 		return nil, errors.New("compare: ReadObserved needs the main-sequence relations for the color–magnitude cut")
@@ -57,6 +70,7 @@ func ReadObserved(spec DataSpec, space Space, rejects io.Writer) (*Observed, err
 		Counts:   make([]float64, space.NumBins()),
 		Rejected: map[string]int{},
 		CutAway:  map[string]int{},
+		LeftOut:  map[string]int{},
 	}
 	for _, c := range CutNames {
 		obs.CutAway[c] = 0
@@ -81,16 +95,23 @@ func ReadObserved(spec DataSpec, space Space, rejects io.Writer) (*Observed, err
 		ok, why := KeepStar(spec.Cuts, spec.Relations, s.Color, s.AbsMag, s.PeriodD, s.ZPc)
 		if !ok {
 			obs.CutAway[why]++
-			return nil
+			return cutDetail(spec, space, s, why)
 		}
 		i := space.Index(s.Color, s.PeriodD, s.ZPc)
 		if i < 0 {
 			obs.CutAway[CutOutsideSpace]++
-			return nil
+			return cutDetail(spec, space, s, CutOutsideSpace)
+		}
+		obs.Stars = append(obs.Stars, ObservedStar{BV: s.Color, AbsMagV: s.AbsMag, PeriodD: s.PeriodD, ZPc: s.ZPc})
+		if spec.LeaveOut != nil {
+			if why := spec.LeaveOut(space.Index2D(s.Color, s.PeriodD)); why != "" {
+				obs.LeftOut[why]++
+				return &catalog.Exclude{Reason: "left out: " + why, Column: spec.Mapping.Color + ", " + spec.Mapping.Period,
+					Value: fmtValue(s.Color) + ", " + fmtValue(s.PeriodD)}
+			}
 		}
 		obs.Counts[i]++
 		obs.N++
-		obs.Stars = append(obs.Stars, ObservedStar{BV: s.Color, AbsMagV: s.AbsMag, PeriodD: s.PeriodD, ZPc: s.ZPc})
 		return nil
 	})
 	if err != nil {
@@ -114,6 +135,46 @@ func ReadObserved(spec DataSpec, space Space, rejects io.Writer) (*Observed, err
 	return obs, nil
 }
 
+// cutDetail says which value made a cut remove a star, for its row in
+// rejected.csv: the column as mapped, or the derived quantity (M_V from
+// apparent magnitude and parallax, z from parallax and position).
+func cutDetail(spec DataSpec, space Space, s catalog.Star, cut string) *catalog.Exclude {
+	m := spec.Mapping
+	ex := &catalog.Exclude{Reason: "cut: " + cut}
+	absMag, height := m.AbsMag, m.Height
+	if absMag == "" {
+		absMag = "M_V from " + m.AppMag + " and " + m.Parallax
+	}
+	if height == "" {
+		height = "z from " + m.Parallax + " and the position"
+	}
+	switch cut {
+	case CutColor:
+		ex.Column, ex.Value = m.Color, fmtValue(s.Color)
+	case CutMainSequence:
+		ex.Column, ex.Value = m.Color+", "+absMag, fmtValue(s.Color)+", "+fmtValue(s.AbsMag)
+	case CutPeriodWindow:
+		ex.Column, ex.Value = m.Period, fmtValue(s.PeriodD)
+	case CutHeight:
+		ex.Column, ex.Value = height, fmtValue(s.ZPc)
+	case CutOutsideSpace:
+		// The first dimension of the comparison space the star lies outside.
+		switch {
+		case binOf(space.ColorEdges, s.Color) < 0:
+			ex.Column, ex.Value = m.Color, fmtValue(s.Color)
+		case !(s.PeriodD > 0) || binOf(space.LogPeriodEdges, math.Log10(s.PeriodD)) < 0:
+			ex.Column, ex.Value = m.Period, fmtValue(s.PeriodD)
+		default:
+			ex.Column, ex.Value = height, fmtValue(s.ZPc)
+		}
+	}
+	return ex
+}
+
+// fmtValue writes a value the way rejected.csv shows it: enough digits to
+// see why it was cut.
+func fmtValue(v float64) string { return strconv.FormatFloat(v, 'g', 6, 64) }
+
 // DropUnreached removes from the data counts the (color, period)
 // cells that no template star reached in any age bin. Such cells make
 // every history impossible, and they are almost always the thin edge of
@@ -123,9 +184,17 @@ func ReadObserved(spec DataSpec, space Space, rejects io.Writer) (*Observed, err
 // are counted for the caller to report, never hidden. Observed.Stars keeps
 // every star that passed the cuts.
 func (obs *Observed) DropUnreached(tpl *Templates) (stars, cells int) {
+	return obs.DropCells(tpl.Space, UnreachedCells(tpl))
+}
+
+// UnreachedCells marks the (color, period) cells that no template star
+// reached in any age bin or height bin (NumColorPeriod values, true =
+// unreached).
+func UnreachedCells(tpl *Templates) []bool {
 	sp := tpl.Space
 	nb, nz := sp.NumBins(), sp.NumHeight()
-	for cell := 0; cell < sp.NumColorPeriod(); cell++ {
+	out := make([]bool, sp.NumColorPeriod())
+	for cell := range out {
 		reached := false
 		for k := 0; k < tpl.NumAgeBins() && !reached; k++ {
 			for z := 0; z < nz; z++ {
@@ -135,21 +204,9 @@ func (obs *Observed) DropUnreached(tpl *Templates) (stars, cells int) {
 				}
 			}
 		}
-		if reached {
-			continue
-		}
-		n := 0
-		for z := 0; z < nz; z++ {
-			n += int(obs.Counts[cell*nz+z])
-			obs.Counts[cell*nz+z] = 0
-		}
-		if n > 0 {
-			stars += n
-			cells++
-		}
+		out[cell] = !reached
 	}
-	obs.N -= stars
-	return stars, cells
+	return out
 }
 
 // DropCells removes from the data counts the (color, period) cells that

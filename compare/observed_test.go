@@ -3,6 +3,7 @@ package compare
 import (
 	"bytes"
 	"crypto/sha256"
+	"encoding/csv"
 	"encoding/hex"
 	"fmt"
 	"math"
@@ -83,16 +84,29 @@ func TestReadObservedCutsRejectsAndHash(t *testing.T) {
 		"12,abc,5,50",                                // not a number
 		"-3,0.8,5,50",                                // period not positive
 		"12,0.8,5",                                   // wrong number of fields
+		fmt.Sprintf("30,1.2,%.4f,50", ms(1.2)),       // passes the cuts, its cell left out ("young")
+		fmt.Sprintf("5,0.6,%.4f,50", ms(0.6)),        // passes the cuts, its cell left out ("unreached")
 	}
 	path, sha := writeCatalog(t, rows)
 	sp, err := NewSpace(0.45, 1.6, 8, 1, 60, 10, []float64{0, 100, 200, 400, 800})
 	require.NoError(t, err)
-	spec := DataSpec{Path: path, SHA256: strings.ToUpper(sha), Mapping: catalog.Mapping{Period: "period_d", Color: "b_v", AbsMag: "abs_mag_v", Height: "z_pc"}, Cuts: cuts, Relations: rel}
+	young, unreached := sp.Index2D(1.2, 30), sp.Index2D(0.6, 5)
+	require.True(t, young >= 0 && unreached >= 0 && young != unreached && young != sp.Index2D(0.8, 12) && young != sp.Index2D(1.0, 20))
+	spec := DataSpec{Path: path, SHA256: strings.ToUpper(sha), Mapping: catalog.Mapping{Period: "period_d", Color: "b_v", AbsMag: "abs_mag_v", Height: "z_pc"}, Cuts: cuts, Relations: rel,
+		LeaveOut: func(cell int) string {
+			switch cell {
+			case young:
+				return "young"
+			case unreached:
+				return "unreached"
+			}
+			return ""
+		}}
 	var rej bytes.Buffer
 	obs, err := ReadObserved(spec, sp, &rej)
 	require.NoError(t, err)
 	assert.Equal(t, 2, obs.N)
-	assert.Len(t, obs.Stars, 2)
+	assert.Len(t, obs.Stars, 4, "stars left out of the comparison still passed the cuts")
 	var total float64
 	for _, v := range obs.Counts {
 		total += v
@@ -101,12 +115,51 @@ func TestReadObservedCutsRejectsAndHash(t *testing.T) {
 	assert.Equal(t, 1.0, obs.Counts[sp.Index(1.0, 20, 120)])
 	assert.Equal(t, map[string]int{CutColor: 1, CutMainSequence: 1, CutPeriodWindow: 1, CutHeight: 1, CutOutsideSpace: 1}, obs.CutAway)
 	assert.Equal(t, map[string]int{"missing value": 1, "not a number": 1, "period not positive": 1, "wrong number of fields": 1}, obs.Rejected)
-	assert.Equal(t, 11, obs.Rows)
+	assert.Equal(t, map[string]int{"young": 1, "unreached": 1}, obs.LeftOut)
+	assert.Equal(t, 13, obs.Rows)
 	assert.Equal(t, sha, obs.SHA256)
-	lines := strings.Split(strings.TrimSpace(rej.String()), "\n")
-	assert.Len(t, lines, 5)
-	assert.True(t, strings.HasPrefix(lines[0], "line,reason"))
-	assert.True(t, strings.HasPrefix(lines[1], "9,missing value"), lines[1])
+
+	// rejected.csv lists every row not compared, once, with the reason it
+	// was counted under: the counts add up to the rows listed.
+	recs, err := csv.NewReader(&rej).ReadAll()
+	require.NoError(t, err)
+	require.NotEmpty(t, recs)
+	assert.Equal(t, []string{"line", "reason", "column", "value", "raw"}, recs[0])
+	listed := map[string]int{}
+	lineSeen := map[string]bool{}
+	for _, r := range recs[1:] {
+		listed[r[1]]++
+		assert.False(t, lineSeen[r[0]], "line %s listed twice", r[0])
+		lineSeen[r[0]] = true
+	}
+	want := map[string]int{}
+	for k, n := range obs.Rejected {
+		want[k] += n
+	}
+	for k, n := range obs.CutAway {
+		if n > 0 {
+			want["cut: "+k] += n
+		}
+	}
+	for k, n := range obs.LeftOut {
+		want["left out: "+k] += n
+	}
+	assert.Equal(t, want, listed)
+	assert.Equal(t, obs.Rows-obs.N, len(recs)-1, "every row not compared is listed")
+	byLine := map[string][]string{}
+	for _, r := range recs[1:] {
+		byLine[r[0]] = r
+	}
+	// Lines count from the header (line 1); the rows above start at line 2.
+	assert.Equal(t, []string{"9", "missing value", "period_d", "NA", "NA,0.8,5,50"}, byLine["9"])
+	assert.Equal(t, []string{"4", "cut: color", "b_v", "0.3", rows[2]}, byLine["4"])
+	assert.Equal(t, "cut: main_sequence", byLine["5"][1])
+	assert.Equal(t, "b_v, abs_mag_v", byLine["5"][2])
+	assert.Equal(t, []string{"6", "cut: period_window", "period_d", "150", rows[4]}, byLine["6"])
+	assert.Equal(t, []string{"7", "cut: height", "z_pc", "900", rows[5]}, byLine["7"])
+	assert.Equal(t, []string{"8", "cut: outside_space", "period_d", "0.7", rows[6]}, byLine["8"])
+	assert.Equal(t, []string{"13", "left out: young", "b_v, period_d", "1.2, 30", rows[11]}, byLine["13"])
+	assert.Equal(t, "left out: unreached", byLine["14"][1])
 
 	// Every kept row agrees with KeepStar, and the cut-away ones do not.
 	for _, s := range obs.Stars {
@@ -163,6 +216,8 @@ func TestReadObservedFITS(t *testing.T) {
 	assert.Equal(t, map[string]int{"missing value": 1, "period not positive": 1}, obs.Rejected)
 	assert.Equal(t, 9, obs.Rows)
 	assert.Contains(t, rej.String(), "\n8,missing value,period_d,,")
+	assert.Contains(t, rej.String(), "\n3,cut: color,b_v,0.3,\"period_d=12, b_v=0.3, ", "a FITS row is listed by its row number, with the mapped columns")
+	assert.Equal(t, obs.Rows-obs.N+1, strings.Count(rej.String(), "\n"), "every row not compared is listed")
 
 	spec.Format = "csv"
 	_, err = ReadObserved(spec, sp, nil)

@@ -183,6 +183,24 @@ func SetupComparison(ctx context.Context, res *scenarios.Resolved, opts Comparis
 // readData reads, cuts and bins the catalog of spec, leaves out the masked
 // and unreached cells, and makes the likelihood.
 func (c *Comparison) readData(spec compare.DataSpec, writeRejected func(write func(w io.Writer) error) error) error {
+	// Stars in cells the comparison leaves out are listed in rejected.csv
+	// with the rows the reader and the cuts left out, so the file holds
+	// every row not compared. The mask is applied first (the templates are
+	// zero there too, so its cells are also unreached).
+	unreached := compare.UnreachedCells(c.Templates)
+	maskedIn := make([]int, len(unreached))
+	droppedIn := make([]int, len(unreached))
+	spec.LeaveOut = func(cell int) string {
+		switch {
+		case c.Mask != nil && c.Mask[cell]:
+			maskedIn[cell]++
+			return LeftOutYoung
+		case unreached[cell]:
+			droppedIn[cell]++
+			return LeftOutUnreached
+		}
+		return ""
+	}
 	read := func(w io.Writer) error {
 		var err error
 		c.Observed, err = compare.ReadObserved(spec, c.Space, w)
@@ -197,17 +215,33 @@ func (c *Comparison) readData(spec compare.DataSpec, writeRejected func(write fu
 	if err != nil {
 		return InputError{err}
 	}
+	c.MaskedStars, c.MaskedBins = c.Observed.LeftOut[LeftOutYoung], nonZero(maskedIn)
+	c.DroppedStars, c.DroppedBins = c.Observed.LeftOut[LeftOutUnreached], nonZero(droppedIn)
 	if c.Observed.N == 0 {
-		return InputError{fmt.Errorf("%s: no star of the catalog passes the cuts and lies in the comparison space (cut away: %v; unusable: %v)", spec.Path, c.Observed.CutAway, c.Observed.Rejected)}
+		return InputError{fmt.Errorf("%s: no star of the catalog passes the cuts and lies in the comparison space (cut away: %v; unusable: %v; left out: %v)", spec.Path, c.Observed.CutAway, c.Observed.Rejected, c.Observed.LeftOut)}
 	}
-	if c.Mask != nil {
-		c.MaskedStars, c.MaskedBins = c.Observed.DropCells(c.Space, c.Mask)
-	}
-	c.DroppedStars, c.DroppedBins = c.Observed.DropUnreached(c.Templates)
 	if c.Likelihood, err = compare.NewLikelihood(c.Templates, c.Observed.Counts, assemble.LikeOptions(c.Scenario)); err != nil {
 		return InputError{fmt.Errorf("%s: %w", c.Source, err)}
 	}
 	return nil
+}
+
+// Reasons a star that passed the catalog cuts is left out of the
+// comparison (Observed.LeftOut keys; rejected.csv says "left out: " and
+// the reason).
+const (
+	LeftOutYoung     = "below_young_gyrochrone"   // compare.mask_below_age_gyr
+	LeftOutUnreached = "cell_no_template_reached" // no template star in its (color, period) cell
+)
+
+func nonZero(n []int) int {
+	k := 0
+	for _, v := range n {
+		if v > 0 {
+			k++
+		}
+	}
+	return k
 }
 
 // WithCatalog returns the comparison of the same scenario with another
@@ -268,6 +302,7 @@ type DataSummary struct {
 	Compared   int            `json:"stars_compared"`
 	Unusable   map[string]int `json:"unusable_rows"`
 	CutAway    map[string]int `json:"cut_away"`
+	LeftOut    int            `json:"rows_not_compared"` // Rows − Compared: the rows of rejected.csv
 	Templates  string         `json:"templates_file,omitempty"`
 	TplReused  bool           `json:"templates_reused"`
 	TplStars   int64          `json:"template_stars"`
@@ -284,6 +319,7 @@ type DataSummary struct {
 func (c *Comparison) DataSummary() DataSummary {
 	return DataSummary{
 		File: c.DataFile, SHA256: c.Observed.SHA256, Rows: c.Observed.Rows, Compared: c.Observed.N, Unusable: c.Observed.Rejected, CutAway: c.Observed.CutAway,
+		LeftOut:   c.Observed.Rows - c.Observed.N,
 		Templates: c.TemplateFile, TplReused: c.TemplatesReused, TplStars: c.Templates.StarsDrawn, AgeBins: c.Templates.NumAgeBins(),
 		SpaceBins: c.Space.NumColorPeriod(), SetupSecs: c.SetupSeconds, ScenarioSH: c.Resolved.Hash(), Dropped: c.DroppedStars,
 		Masked: c.MaskedStars, MaskAgeGyr: c.Scenario.Compare.MaskAgeGyr,

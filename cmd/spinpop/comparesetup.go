@@ -92,9 +92,9 @@ func setupResolved(ctx context.Context, res *scenarios.Resolved, arg string, f c
 }
 
 func printDataSummary(w io.Writer, d pipeline.DataSummary) {
-	fmt.Fprintf(w, "catalog %s (sha256 %s…): %d rows, %d stars compared\n", d.File, d.SHA256[:16], d.Rows, d.Compared)
+	fmt.Fprintf(w, "catalog %s (sha256 %s…): %d rows, %d stars compared, %d left out (each listed in rejected.csv with its reason)\n", d.File, d.SHA256[:16], d.Rows, d.Compared, d.LeftOut)
 	if len(d.Unusable) > 0 {
-		fmt.Fprintf(w, "  unusable rows (see rejected.csv): %s\n", tally(d.Unusable))
+		fmt.Fprintf(w, "  unusable rows: %s\n", tally(d.Unusable))
 	}
 	fmt.Fprintf(w, "  removed by the catalog cuts: %s\n", tally(d.CutAway))
 	reused := "built"

@@ -67,6 +67,12 @@ func (rd *reader) rows(p *plan, next func() bool, row func() int64, src *binaryR
 		rd.sum.Accepted++
 		if rd.fn != nil {
 			if err := rd.fn(num, s); err != nil {
+				if ex, ok := excluded(err); ok {
+					if err := rd.exclude(num, ex, []byte(rawText(p, format))); err != nil {
+						return err
+					}
+					continue
+				}
 				return fmt.Errorf("%s: row %d: %w", rd.name, num, err)
 			}
 		}

@@ -51,8 +51,9 @@ type Summary struct {
 	HeaderLine  int    // CSV and ECSV: line of the column-name row
 	Columns     []Column
 	Rows        int // data rows seen, accepted or rejected
-	Accepted    int
+	Accepted    int // usable rows, Excluded included
 	Rejected    map[Reason]int
+	Excluded    int // usable rows the row function left out (Exclude)
 	Bytes       int64    // bytes of the input as stored (compressed, if it is)
 	SHA256      [32]byte // of those bytes
 }
@@ -87,7 +88,8 @@ func ReadFile(path string, opt Options, fn func(line int, s Star) error) (Summar
 // gzip-compressed or not, or a Parquet file — and calls fn with the line
 // number (for FITS and Parquet, the row number) and the Star of every
 // usable row, in file order. Unusable rows go to opt.Rejects and are counted in the Summary.
-// An error from fn or from the sink stops the reading and is returned
+// fn may leave a usable row out by returning an *Exclude: the row then
+// goes to opt.Rejects too, with the reason fn gave. Any other error from fn or from the sink stops the reading and is returned
 // (wrapped with the line). Errors in the file itself are *Error values
 // wrapping one of the sentinel errors (ErrEmpty, ErrNoRows, ErrDelimiter,
 // ErrColumn, ErrUnit, ErrMapping, ErrFormat).
@@ -450,10 +452,29 @@ func (rd *reader) readRows(p *plan) error {
 		rd.sum.Accepted++
 		if rd.fn != nil {
 			if err := rd.fn(num, s); err != nil {
+				if ex, ok := excluded(err); ok {
+					if err := rd.exclude(num, ex, line); err != nil {
+						return err
+					}
+					continue
+				}
 				return fmt.Errorf("%s:%d: %w", rd.name, num, err)
 			}
 		}
 	}
+}
+
+// exclude records a usable row that the row function left out.
+func (rd *reader) exclude(line int, ex *Exclude, raw []byte) error {
+	rd.sum.Excluded++
+	if rd.opt.Rejects == nil {
+		return nil
+	}
+	err := rd.opt.Rejects.Reject(Rejection{Line: line, Excluded: ex.Reason, Column: ex.Column, Value: ex.Value, Raw: string(raw)})
+	if err != nil {
+		return fmt.Errorf("%s:%d: reject sink: %w", rd.name, line, err)
+	}
+	return nil
 }
 
 func (rd *reader) reject(line int, why Reason, column, value string, raw []byte) error {

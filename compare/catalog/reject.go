@@ -2,6 +2,7 @@ package catalog
 
 import (
 	"encoding/csv"
+	"errors"
 	"io"
 	"strconv"
 )
@@ -57,10 +58,14 @@ func Reasons() []Reason {
 	return out
 }
 
-// Rejection describes one unusable row.
+// Rejection describes one row left out: unusable (Reason), or usable but
+// excluded by the caller (Excluded, e.g. a catalog cut).
 type Rejection struct {
 	Line   int    // CSV, ECSV: line in the (decompressed) text; FITS, Parquet: row; from 1
-	Reason Reason //
+	Reason Reason // why an unusable row is unusable; not set when Excluded is
+	// Excluded, when not "", is why the caller left a usable row out
+	// (Exclude.Reason); it is written in place of Reason.
+	Excluded string
 	Column string // the offending column, "" for ReasonFieldCount
 	Value  string // the offending value as written
 	Raw    string // the whole line as written; FITS, Parquet: "column=value, …" of the mapped columns
@@ -92,7 +97,34 @@ func (c *CSVRejectWriter) Reject(r Rejection) error {
 			return err
 		}
 	}
-	return c.w.Write([]string{strconv.Itoa(r.Line), r.Reason.String(), r.Column, r.Value, r.Raw})
+	why := r.Reason.String()
+	if r.Excluded != "" {
+		why = r.Excluded
+	}
+	return c.w.Write([]string{strconv.Itoa(r.Line), why, r.Column, r.Value, r.Raw})
+}
+
+// Exclude, returned by the row function of Read, leaves a usable row out
+// for a reason of the caller's (a catalog cut, a cell the comparison
+// leaves out): the row goes to Options.Rejects as a Rejection with
+// Excluded = Reason and the row as written, it is counted in
+// Summary.Excluded, and reading goes on. So every row left out is listed
+// in one place, whoever left it out.
+type Exclude struct {
+	Reason string // e.g. "cut: color"; written in the reason column
+	Column string // the column (or derived quantity) that decided
+	Value  string // its value
+}
+
+func (e *Exclude) Error() string { return "excluded: " + e.Reason }
+
+// excluded reports whether err is an *Exclude, and returns it.
+func excluded(err error) (*Exclude, bool) {
+	var ex *Exclude
+	if errors.As(err, &ex) {
+		return ex, true
+	}
+	return nil, false
 }
 
 // Flush writes any buffered rows and reports a write error, if any. It
