@@ -34,6 +34,10 @@ type SimulateOptions struct {
 	Visit func(c *model.Chunk) error
 	// Progress, if set, is told how many stars are done.
 	Progress func(done, total int64)
+	// Chunks, if set, runs only these chunks of the run, exactly as the
+	// whole run would make them (one part of a run split across machines;
+	// see MergeParts). The tally and catalogue are then the part's.
+	Chunks *model.ChunkRange
 }
 
 // Simulation is what a simulated scenario gives: the run objects, the
@@ -169,7 +173,20 @@ func Simulate(ctx context.Context, res *scenarios.Resolved, opts SimulateOptions
 	}
 	var done int64
 	start := time.Now()
-	err = model.RunChunks(ctx, s.Run.Seed, s.Run.StarsGenerated, s.Run.ChunkStars, workers, built.Population.Fill,
+	total := s.Run.StarsGenerated
+	run := func(fill model.FillFunc, visit func(*model.Chunk) error) error {
+		return model.RunChunks(ctx, s.Run.Seed, s.Run.StarsGenerated, s.Run.ChunkStars, workers, fill, visit)
+	}
+	if r := opts.Chunks; r != nil {
+		if n := model.NumChunks(s.Run.StarsGenerated, s.Run.ChunkStars); r.First < 0 || r.Last > n || r.Last <= r.First {
+			return nil, InputError{fmt.Errorf("%s: chunks %s are not a non-empty part of the run's %d chunks", opts.Source, r, n)}
+		}
+		total = min(int64(r.Last)*int64(s.Run.ChunkStars), s.Run.StarsGenerated) - int64(r.First)*int64(s.Run.ChunkStars)
+		run = func(fill model.FillFunc, visit func(*model.Chunk) error) error {
+			return model.RunChunkRange(ctx, s.Run.Seed, s.Run.StarsGenerated, s.Run.ChunkStars, *r, workers, fill, visit)
+		}
+	}
+	err = run(built.Population.Fill,
 		func(c *model.Chunk) error {
 			tally.Add(c)
 			if catalog != nil && tally.Selected() <= s.Output.CatalogMaxStars {
@@ -186,7 +203,7 @@ func Simulate(ctx context.Context, res *scenarios.Resolved, opts SimulateOptions
 			}
 			done += int64(c.N)
 			if opts.Progress != nil {
-				opts.Progress(done, s.Run.StarsGenerated)
+				opts.Progress(done, total)
 			}
 			return nil
 		})
@@ -198,13 +215,45 @@ func Simulate(ctx context.Context, res *scenarios.Resolved, opts SimulateOptions
 	if !sim.CatalogTooLarge {
 		sim.Catalog = catalog
 	}
+	sim.fillManifest(opts.Source, workers, elapsed, total)
+	return sim, nil
+}
 
+// MergeParts makes the Simulation of a whole run from the tallies of its
+// parts (each made with SimulateOptions.Chunks), merged in the order
+// given, which must be chunk order: the tally, manifest and gyrochrones of
+// the one-machine run, with seconds the parts' summed time. No catalogue
+// is kept: the parts' catalogue rows concatenate in the same order.
+func MergeParts(res *scenarios.Resolved, source string, parts []*model.Tally, workers int, seconds float64) (*Simulation, error) {
+	s := &res.Scenario
+	built, err := Build(s, source)
+	if err != nil {
+		return nil, err
+	}
+	ce, pe, ze := TallyEdges(s)
+	sim := &Simulation{Resolved: res, Built: built, Tally: model.NewTally(built.AgeEdgesGyr, ce, pe, ze)}
+	for i, p := range parts {
+		if err := sim.Tally.Merge(p); err != nil {
+			return nil, fmt.Errorf("part %d of %d: %w", i+1, len(parts), err)
+		}
+	}
+	if got := sim.Tally.StepCounts[0]; got != s.Run.StarsGenerated {
+		return nil, fmt.Errorf("the parts hold %d stars, not the run's %d: a part is missing or counted twice", got, s.Run.StarsGenerated)
+	}
+	sim.CatalogTooLarge = sim.Tally.Selected() > s.Output.CatalogMaxStars
+	sim.fillManifest(source, workers, seconds, s.Run.StarsGenerated)
+	return sim, nil
+}
+
+// fillManifest fills the manifest's numbers from the tally.
+func (sim *Simulation) fillManifest(source string, workers int, elapsed float64, stars int64) {
+	res, s, built, tally := sim.Resolved, &sim.Resolved.Scenario, sim.Built, sim.Tally
 	m := &sim.Manifest
 	*m = Manifest{
-		Tool: "spinpop", Version: Version, Scenario: opts.Source, ScenarioName: s.Name, ScenarioHash: res.Hash(), Files: res.Files,
+		Tool: "spinpop", Version: Version, Scenario: source, ScenarioName: s.Name, ScenarioHash: res.Hash(), Files: res.Files,
 		Seed: s.Run.Seed, Threads: workers, CatalogStars: tally.Selected(),
 		Binaries: tally.Binaries, Evolved: tally.Evolved, Aliased: tally.Aliased,
-		Seconds: elapsed, StarsPerSecond: float64(s.Run.StarsGenerated) / max(elapsed, 1e-9),
+		Seconds: elapsed, StarsPerSecond: float64(stars) / max(elapsed, 1e-9),
 		Warnings: []string{},
 	}
 	for i, name := range model.Steps {
@@ -226,7 +275,6 @@ func Simulate(ctx context.Context, res *scenarios.Resolved, opts SimulateOptions
 	if s.Output.Catalog && sim.CatalogTooLarge {
 		m.Warnings = append(m.Warnings, fmt.Sprintf("the catalog has %d stars, more than output.catalog_max_stars = %d: catalog.csv was not written (raise the limit or lower run.stars_generated)", tally.Selected(), s.Output.CatalogMaxStars))
 	}
-	return sim, nil
 }
 
 func nanToZero(x []float64) []float64 {

@@ -85,9 +85,17 @@ type Sweep struct {
 	lines  func(string) int
 }
 
-// Load reads and checks a sweep file and reads its base scenario. Every
-// problem found is reported at once, naming the file, line and key.
+// Load reads and checks a sweep file (or a built-in one, example:NAME)
+// and reads its base scenario. Every problem found is reported at once,
+// naming the file, line and key.
 func Load(path string) (*Sweep, error) {
+	if isExample(path) {
+		data, err := exampleData(path)
+		if err != nil {
+			return nil, err
+		}
+		return parse(path, data)
+	}
 	data, err := os.ReadFile(path)
 	if err != nil {
 		return nil, scenarios.ValidationErrors{{File: path, Msg: "cannot read sweep file: " + err.Error(), Err: err}}
@@ -143,6 +151,10 @@ func parse(path string, data []byte) (*Sweep, error) {
 	s.Work = p.work(raw["work"])
 	if len(p.errs) == 0 {
 		ref := s.Scenario
+		if isExample(path) && !isExample(ref) {
+			p.errAt("scenario", "a built-in sweep file's base must be a built-in scenario (example:NAME), not %q", ref)
+			return nil, p.errs
+		}
 		if !strings.HasPrefix(ref, scenarios.ExamplePrefix) && !filepath.IsAbs(ref) {
 			ref = filepath.Join(filepath.Dir(path), ref)
 		}

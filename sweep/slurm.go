@@ -84,9 +84,11 @@ func Submit(ctx context.Context, sweepFile string, plan *Plan, out string, opt S
 	if err != nil {
 		return nil, err
 	}
-	absSweep, err := filepath.Abs(sweepFile)
-	if err != nil {
-		return nil, err
+	absSweep := sweepFile // a built-in sweep file stays example:NAME
+	if !isExample(sweepFile) {
+		if absSweep, err = filepath.Abs(sweepFile); err != nil {
+			return nil, err
+		}
 	}
 	if err := WritePlan(filepath.Join(absOut, "plan.json"), plan); err != nil {
 		return nil, err

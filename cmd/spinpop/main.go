@@ -55,6 +55,7 @@ func commands() []command {
 		{"heights", "young fraction against height above the plane, data against each hypothesis", runHeights},
 		{"inject", "injection–recovery: how often the burst test finds bursts of each age and size in a catalog like yours", runInject},
 		{"posterior", "posterior of the burst model's free parameters: corner plot, star-formation history band, chain", runPosterior},
+		{"sweep", "one scenario over a grid of choices, here or on a Slurm cluster: merged table, plots, systematics", runSweep},
 		{"demo", "the whole job on the built-in example scenario", runDemo},
 		{"examples", "list the built-in example scenarios, or print one", runExamples},
 	}

@@ -32,7 +32,14 @@ type progressBar struct {
 // batchInterval is how often a batch job's log hears from long work.
 const batchInterval = 10 * time.Second
 
+// progressOff silences every progress report (a sweep running points
+// side by side, whose reports would interleave).
+var progressOff bool
+
 func newProgressBar(label string, total int64) *progressBar {
+	if progressOff {
+		return newProgressTo(io.Discard, label, total, false, time.Now)
+	}
 	terminal := false
 	if fi, err := os.Stderr.Stat(); err == nil && fi.Mode()&os.ModeCharDevice != 0 {
 		terminal = true

@@ -28,6 +28,7 @@ func runSimulate(args []string, stdout, stderr io.Writer) error {
 	asJSON := fs.Bool("json", false, "print the summary as JSON")
 	force := fs.Bool("force", false, "write into a non-empty folder, replacing this tool's files there")
 	workers := fs.Int("threads", runtime.GOMAXPROCS(0), "worker threads (results do not depend on it)")
+	split := addSplitFlags(fs) // simulate_split.go: one run across machines
 	pos, err := parseInterleaved(fs, args)
 	if err != nil {
 		return err
@@ -35,6 +36,12 @@ func runSimulate(args []string, stdout, stderr io.Writer) error {
 	path, err := oneScenarioArg(pos, "simulate")
 	if err != nil {
 		return err
+	}
+	if split.active() {
+		if *workers < 1 {
+			return usageErrorf("--threads must be at least 1")
+		}
+		return runSimulateSplit(split, path, scenarioSets(fs), *seed, *out, *force, *workers, *asJSON, stdout)
 	}
 	res, err := loadScenario(path, scenarioSets(fs))
 	if err != nil {

@@ -1,0 +1,133 @@
+package main
+
+import (
+	"context"
+	"fmt"
+	"io"
+	"path/filepath"
+	"slices"
+
+	"spinpop/compare"
+	"spinpop/pipeline"
+	"spinpop/sweep"
+)
+
+// pointWorker does a sweep's work at one point, writing what the single
+// commands write into the point's folder:
+//   - simulate: catalog.csv, manifest.json and plots (as spinpop simulate);
+//     headline: catalogue stars.
+//   - compare: compare.json (as spinpop compare, the history as written,
+//     goodness of fit from compare.bootstrap replicates); headline: stars
+//     compared, ln L, adequacy.
+//   - test-burst: test.json and figures (as spinpop test-burst, with
+//     compare.bootstrap replicates), and the burst fraction's profile
+//     interval made as the age's; headline: burst age and fraction with
+//     their 68 % intervals, Δln L, bootstrap p, significance, the verdict's
+//     strength, and the burst model's adequacy (which replaces the
+//     as-written one of compare, kept as as_written_adequacy_p).
+type pointWorker struct {
+	templates string
+	threads   int
+	log       io.Writer // nil: quiet
+}
+
+func (w *pointWorker) logf(format string, args ...any) {
+	if w.log != nil {
+		fmt.Fprintf(w.log, format+"\n", args...)
+	}
+}
+
+func (w *pointWorker) Work(ctx context.Context, p *sweep.Point, steps []string, dir string) (sweep.Headline, error) {
+	var h sweep.Headline
+	label := fmt.Sprintf("sweep point %d (%.12s)", p.Index, p.Hash)
+	if slices.Contains(steps, sweep.StepSimulate) {
+		m, err := simulate(p.Scenario, label, dir, w.threads, io.Discard)
+		if err != nil {
+			return h, err
+		}
+		h.CatalogStars = sweep.I(m.CatalogStars)
+		w.logf("point %d: simulated, %d catalogue stars", p.Index, m.CatalogStars)
+	}
+	if !slices.Contains(steps, sweep.StepCompare) && !slices.Contains(steps, sweep.StepTestBurst) {
+		return h, nil
+	}
+	c, err := pipeline.SetupComparison(ctx, p.Scenario, pipeline.ComparisonOptions{
+		Source: label, Workers: w.threads, TemplateDir: w.templates,
+		WriteRejected: func(write func(io.Writer) error) error {
+			return writeFileAtomic(filepath.Join(dir, "rejected.csv"), write)
+		},
+	})
+	if err != nil {
+		return h, err
+	}
+	h.DataStars = sweep.I(int64(c.DataSummary().Compared))
+	reps := c.Scenario.Compare.Bootstrap
+	if slices.Contains(steps, sweep.StepCompare) {
+		sc, err := c.Score(ctx, pipeline.ScoreOptions{Replicates: reps})
+		if err != nil {
+			return h, err
+		}
+		h.LnL = sweep.F(sc.LogL)
+		out := map[string]any{
+			"tool": "spinpop", "version": version, "scenario": label, "scenario_sha256": c.Resolved.Hash(), "data": c.DataSummary(),
+			"history": sc.Label, "log_l": pipeline.Finite(sc.LogL), "pearson_chi2": sc.PearsonChi2, "bins_with_model": sc.NumBins,
+			"marginal_tests": sc.Marginals, "synthetic_catalog_stars": sc.SyntheticStars,
+		}
+		if g := sc.GoodnessOfFit; g != nil {
+			out["goodness_of_fit"] = pipeline.AdequacyReport(*g)
+			h.AdequacyP, h.Adequacy = sweep.F(g.PValue), adequacyWord(*g)
+		}
+		if err := writeJSON(filepath.Join(dir, "compare.json"), out); err != nil {
+			return h, err
+		}
+		w.logf("point %d: compared, ln L = %.2f", p.Index, sc.LogL)
+	}
+	if slices.Contains(steps, sweep.StepTestBurst) {
+		if err := w.burst(ctx, c, reps, dir, &h); err != nil {
+			return h, err
+		}
+		w.logf("point %d: burst test, %s", p.Index, h.Verdict)
+	}
+	return h, nil
+}
+
+func (w *pointWorker) burst(ctx context.Context, c *pipeline.Comparison, reps int, dir string, h *sweep.Headline) error {
+	res, err := c.BurstTest(ctx, reps, nil)
+	if err != nil {
+		return err
+	}
+	if _, err := writeBurstOutputs(dir, c, res); err != nil {
+		return err
+	}
+	t := res.Test
+	if h.AdequacyP != nil {
+		h.Extra = map[string]float64{"as_written_adequacy_p": *h.AdequacyP}
+	}
+	h.AdequacyP, h.Adequacy = sweep.F(t.AdequacyBurst.PValue), adequacyWord(t.AdequacyBurst)
+	h.DeltaLnL, h.PValue, h.SignificanceSigma = sweep.F(t.DeltaLogL), sweep.F(t.PValue), sweep.F(t.Significance)
+	h.Verdict = t.Strength
+	if t.AgeParam != "" {
+		iv := t.AgeInterval
+		h.BurstAgeGyr, h.BurstAgeLoGyr, h.BurstAgeHiGyr = sweep.F(iv.Best), sweep.F(iv.Lo68), sweep.F(iv.Hi68)
+	}
+	param, iv, err := c.BurstFraction(res)
+	if err != nil {
+		return fmt.Errorf("profile of the burst fraction: %w", err)
+	}
+	if param != "" {
+		h.BurstFraction, h.BurstFractionLo, h.BurstFractionHi = sweep.F(iv.Best), sweep.F(iv.Lo68), sweep.F(iv.Hi68)
+	}
+	return nil
+}
+
+// adequacyWord is the plain-words adequacy of a fit at the verdict's
+// level (a deviance reached by more than 1 % of its own replicates).
+func adequacyWord(a compare.Adequacy) string {
+	if a.Replicates == 0 {
+		return ""
+	}
+	if a.Adequate(0.01) {
+		return "adequate"
+	}
+	return "inadequate"
+}
