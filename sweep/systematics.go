@@ -90,9 +90,9 @@ func NewSystematics(t *Table) *Systematics {
 	s := &Systematics{Sweep: t.Name, Axes: t.Axes, Method: SystematicsMethod, Verdicts: map[string]int{},
 		SigmaMin: math.NaN(), SigmaMax: math.NaN(), Warnings: []string{}}
 	var age, frac, ageOK, fracOK []Choice
-	missing, inadequate := 0, []string{}
+	missing, floored, inadequate := 0, 0, []string{}
 	for _, r := range t.Rows {
-		c := Choice{Index: r.Index, Hash: r.Hash, Label: describeValues(t.Axes, r.Values), Status: r.Status, Headline: r.Headline}
+		c := Choice{Index: r.Index, Hash: r.Hash, Label: choiceLabel(t.Axes, r.Values), Status: r.Status, Headline: r.Headline}
 		h := &r.Headline
 		c.Adequate = h.Adequacy == "adequate"
 		c.Usable = r.Status == StatusDone && h.BurstAgeGyr != nil && h.BurstAgeLoGyr != nil && h.BurstAgeHiGyr != nil
@@ -116,6 +116,9 @@ func NewSystematics(t *Table) *Systematics {
 		if h.Verdict != "" {
 			s.Verdicts[h.Verdict]++
 		}
+		if b, ok := h.Extra[ExtraReplicates]; ok && h.PValue != nil && *h.PValue <= 1/(b+1)*(1+1e-9) {
+			floored++
+		}
 		if h.SignificanceSigma != nil {
 			s.SigmaMin = nanMin(s.SigmaMin, *h.SignificanceSigma)
 			s.SigmaMax = nanMax(s.SigmaMax, *h.SignificanceSigma)
@@ -138,10 +141,29 @@ func NewSystematics(t *Table) *Systematics {
 	if len(age) > 0 && len(ageOK) == 0 {
 		s.Warnings = append(s.Warnings, "under no choice does the burst model describe the catalog: every interval here is conditional on a model the data reject, and so is the envelope")
 	}
+	if floored > 0 {
+		s.Warnings = append(s.Warnings, fmt.Sprintf("under %d choice(s) no bootstrap replicate reached the observed likelihood ratio: their p-value is the floor 1/(B+1) of B replicates, and their significance a lower bound set by B, not by the data", floored))
+	}
 	if len(age) == 1 {
 		s.Warnings = append(s.Warnings, "only one choice is usable: the envelope is its own interval and says nothing about systematics")
 	}
 	return s
+}
+
+// ExtraReplicates is the Headline.Extra key of the bootstrap's replicate
+// count, by which a p-value at its floor 1/(B+1) is recognised.
+const ExtraReplicates = "bootstrap_replicates"
+
+// choiceLabel names a point by its axis values, strings bare.
+func choiceLabel(keys []string, vals []any) string {
+	if len(keys) == 0 {
+		return "the base"
+	}
+	parts := make([]string, len(keys))
+	for i, k := range keys {
+		parts[i] = k + " = " + cellText(vals[i])
+	}
+	return strings.Join(parts, ", ")
 }
 
 func envelope(cs []Choice, get func(Choice) (best, lo, hi float64)) *Envelope {
@@ -252,7 +274,11 @@ func (s *Systematics) Markdown() string {
 		fmt.Fprintf(&b, "| %s (%d) | | %s | %s | | | | |\n", c.name, c.age.Choices, envelopeText(c.age), envelopeText(c.frac))
 	}
 	b.WriteString("\nCombined interval: " + s.Method + ".")
-	if !math.IsNaN(s.SigmaMin) {
+	switch {
+	case math.IsNaN(s.SigmaMin):
+	case s.SigmaMin == s.SigmaMax:
+		fmt.Fprintf(&b, " Significance %.1fσ under every usable choice.", s.SigmaMin)
+	default:
 		fmt.Fprintf(&b, " Significance ranges from %.1fσ to %.1fσ over the usable choices.", s.SigmaMin, s.SigmaMax)
 	}
 	b.WriteString("\n")

@@ -231,7 +231,20 @@ func sweepPanel(t *sweep.Table, m sweepMetric, a int, key string, xs []float64, 
 	}
 	p.Legend.Top = true
 	p.Legend.TextStyle.Font.Size = vg.Points(8)
+	if len(names) > 0 {
+		legendRoom(p, len(names))
+	}
 	return p, nil
+}
+
+// legendRoom raises the top of the y axis so that a legend of n entries
+// in the top corner sits above the data.
+func legendRoom(p *plot.Plot, n int) {
+	lo, hi := p.Y.Min, p.Y.Max
+	if !(hi > lo) {
+		return
+	}
+	p.Y.Max = hi + (hi-lo)*(0.08+0.07*float64(n))
 }
 
 // sweepErrBar is a point with asymmetric error bars (lo below, hi above).
@@ -314,10 +327,10 @@ func shortChoice(c sweep.Choice, axes []string) string {
 func systematicsPanel(s *sweep.Systematics, title string, labels []string, all, adequate *sweep.Envelope,
 	get func(*sweep.Headline) (*float64, *float64, *float64)) (*plot.Plot, error) {
 	p := plot.New()
-	p.Title.Text = title
-	p.X.Label.Text = title
+	p.X.Label.Text = title + ", 68 % profile-likelihood interval under each choice"
 	n := len(s.Choices)
-	p.Y.Min, p.Y.Max = -0.7, float64(n)-0.3
+	// Room above the rows for the legend.
+	p.Y.Min, p.Y.Max = -0.7, float64(n)+1.2
 	p.Y.Tick.Marker = labelTicks(labels)
 	shade := adequate
 	if shade == nil {
@@ -328,7 +341,7 @@ func systematicsPanel(s *sweep.Systematics, title string, labels []string, all, 
 		if err != nil {
 			return nil, err
 		}
-		band.Color = color.RGBA{R: 0x1b, G: 0x9e, B: 0x77, A: 0x40}
+		band.Color = color.NRGBA{R: 0x1b, G: 0x9e, B: 0x77, A: 0x50}
 		band.LineStyle.Width = 0
 		p.Add(band)
 		name := "envelope, adequate choices"
@@ -392,5 +405,8 @@ func systematicsPanel(s *sweep.Systematics, title string, labels []string, all, 
 	}
 	p.Legend.Top = true
 	p.Legend.TextStyle.Font.Size = vg.Points(8)
+	// A margin of 5 % so that no interval ends on the frame.
+	pad := 0.05 * (p.X.Max - p.X.Min)
+	p.X.Min, p.X.Max = p.X.Min-pad, p.X.Max+pad
 	return p, nil
 }

@@ -100,8 +100,9 @@ func (w *pointWorker) burst(ctx context.Context, c *pipeline.Comparison, reps in
 		return err
 	}
 	t := res.Test
+	h.Extra = map[string]float64{sweep.ExtraReplicates: float64(t.Replicates)}
 	if h.AdequacyP != nil {
-		h.Extra = map[string]float64{"as_written_adequacy_p": *h.AdequacyP}
+		h.Extra["as_written_adequacy_p"] = *h.AdequacyP
 	}
 	h.AdequacyP, h.Adequacy = sweep.F(t.AdequacyBurst.PValue), adequacyWord(t.AdequacyBurst)
 	h.DeltaLnL, h.PValue, h.SignificanceSigma = sweep.F(t.DeltaLogL), sweep.F(t.PValue), sweep.F(t.Significance)
