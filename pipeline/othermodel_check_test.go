@@ -179,6 +179,9 @@ func TestOtherModelLong(t *testing.T) {
 	extra := strings.ReplaceAll(os.Getenv("SPINPOP_OTHERMODEL_EXTRA"), `\n`, "\n")
 	rs := runCheck(t, cases, reps, 0, extra)
 	falseClaims, smooth, found, covered, bursts := summarise(t, rs)
+	if fig := os.Getenv("SPINPOP_OTHERMODEL_FIGURE"); fig != "" {
+		require.NoError(t, writeCheckFigure(fig, rs))
+	}
 	assert.LessOrEqual(t, float64(falseClaims), 0.05*float64(smooth))
 	assert.GreaterOrEqual(t, float64(found), 0.9*float64(bursts))
 	assert.GreaterOrEqual(t, float64(covered), 0.9*float64(bursts))

@@ -1,0 +1,154 @@
+package pipeline
+
+import (
+	"image/color"
+	"math"
+	"os"
+
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/plotter"
+	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
+	"gonum.org/v1/plot/vg/vgimg"
+)
+
+// writeCheckFigure draws the long independent-model check for the issue
+// note and the README: left, each burst catalog's recovered age with its
+// 95 % interval against the true age (the ±0.1 Gyr target as a band);
+// right, each catalog's likelihood ratio against the misfit its burst fit
+// leaves (excess deviance), smooth and burst catalogs apart, with the line
+// LR = excess beyond which the verdict may claim a burst.
+func writeCheckFigure(path string, rs []checkResult) error {
+	left := plot.New()
+	left.Title.Text = "Burst catalogs: recovered age"
+	left.X.Label.Text = "true burst age (Gyr)"
+	left.Y.Label.Text = "recovered age, 95 % interval (Gyr)"
+	band, err := plotter.NewPolygon(plotter.XYs{{X: 0.3, Y: 0.2}, {X: 1.7, Y: 1.6}, {X: 1.7, Y: 1.8}, {X: 0.3, Y: 0.4}})
+	if err != nil {
+		return err
+	}
+	band.Color = color.RGBA{R: 210, G: 225, B: 240, A: 255}
+	band.LineStyle.Width = 0
+	left.Add(band)
+	diag, err := plotter.NewLine(plotter.XYs{{X: 0.3, Y: 0.3}, {X: 1.7, Y: 1.7}})
+	if err != nil {
+		return err
+	}
+	diag.Color = color.Gray{Y: 120}
+	left.Add(diag)
+	var found, missed plotter.XYs
+	var bars plotter.YErrors
+	var barPts plotter.XYs
+	for _, r := range rs {
+		if r.ageGyr == 0 || math.IsNaN(r.age) {
+			continue
+		}
+		p := plotter.XY{X: r.ageGyr, Y: r.age}
+		if r.claims() {
+			found = append(found, p)
+		} else {
+			missed = append(missed, p)
+		}
+		if !math.IsNaN(r.lo95) && !math.IsNaN(r.hi95) {
+			barPts = append(barPts, p)
+			bars = append(bars, struct{ Low, High float64 }{r.age - r.lo95, r.hi95 - r.age})
+		}
+	}
+	if len(barPts) > 0 {
+		eb, err := plotter.NewYErrorBars(struct {
+			plotter.XYer
+			plotter.YErrorer
+		}{barPts, bars})
+		if err != nil {
+			return err
+		}
+		left.Add(eb)
+	}
+	blue, orange := color.RGBA{R: 0, G: 90, B: 181, A: 255}, color.RGBA{R: 220, G: 120, B: 0, A: 255}
+	for _, s := range []struct {
+		pts   plotter.XYs
+		c     color.Color
+		shape draw.GlyphDrawer
+		name  string
+	}{{found, blue, draw.CircleGlyph{}, "burst claimed"}, {missed, orange, draw.TriangleGlyph{}, "not claimed"}} {
+		if len(s.pts) == 0 {
+			continue
+		}
+		sc, err := plotter.NewScatter(s.pts)
+		if err != nil {
+			return err
+		}
+		sc.GlyphStyle = draw.GlyphStyle{Color: s.c, Radius: vg.Points(3.5), Shape: s.shape}
+		left.Add(sc)
+		left.Legend.Add(s.name, sc)
+	}
+	left.Legend.Top, left.Legend.Left = true, true
+	left.X.Min, left.X.Max, left.Y.Min, left.Y.Max = 0.3, 1.7, 0.2, 1.8
+
+	right := plot.New()
+	right.Title.Text = "Evidence against remaining misfit"
+	right.X.Label.Text = "excess deviance of the burst fit (2 ln L units)"
+	right.Y.Label.Text = "likelihood ratio 2Δln L"
+	var smooth, burst plotter.XYs
+	hi := 1.0
+	for _, r := range rs {
+		ex := math.Max(r.deviance-r.exp, 1)
+		lr := math.Max(r.lr, 1)
+		hi = math.Max(hi, math.Max(ex, lr))
+		if r.ageGyr == 0 {
+			smooth = append(smooth, plotter.XY{X: ex, Y: lr})
+		} else {
+			burst = append(burst, plotter.XY{X: ex, Y: lr})
+		}
+	}
+	right.X.Scale, right.Y.Scale = plot.LogScale{}, plot.LogScale{}
+	right.X.Tick.Marker, right.Y.Tick.Marker = plot.LogTicks{Prec: -1}, plot.LogTicks{Prec: -1}
+	line, err := plotter.NewLine(plotter.XYs{{X: 1, Y: 1}, {X: hi * 2, Y: hi * 2}})
+	if err != nil {
+		return err
+	}
+	line.Color = color.Gray{Y: 120}
+	line.Dashes = []vg.Length{vg.Points(4), vg.Points(3)}
+	right.Add(line)
+	right.Legend.Add("LR = excess", line)
+	for _, s := range []struct {
+		pts   plotter.XYs
+		c     color.Color
+		shape draw.GlyphDrawer
+		name  string
+	}{{smooth, orange, draw.TriangleGlyph{}, "smooth catalogs"}, {burst, blue, draw.CircleGlyph{}, "burst catalogs"}} {
+		if len(s.pts) == 0 {
+			continue
+		}
+		sc, err := plotter.NewScatter(s.pts)
+		if err != nil {
+			return err
+		}
+		sc.GlyphStyle = draw.GlyphStyle{Color: s.c, Radius: vg.Points(3.5), Shape: s.shape}
+		right.Add(sc)
+		right.Legend.Add(s.name, sc)
+	}
+	right.Legend.Top, right.Legend.Left = true, true
+	right.Legend.YOffs, right.Legend.XOffs = -vg.Points(6), vg.Points(6)
+	right.X.Min, right.Y.Min, right.X.Max, right.Y.Max = 1, 1, hi*2, hi*2
+
+	img := vgimg.New(28*vg.Centimeter, 12*vg.Centimeter)
+	dc := draw.New(img)
+	tiles := draw.Tiles{Rows: 1, Cols: 2, PadX: vg.Centimeter, PadTop: vg.Points(4), PadBottom: vg.Points(4), PadLeft: vg.Points(4), PadRight: vg.Points(8)}
+	canvases := plot.Align([][]*plot.Plot{{left, right}}, tiles, dc)
+	left.Draw(canvases[0][0])
+	right.Draw(canvases[0][1])
+	return writePNG(path, img)
+}
+
+func writePNG(path string, img *vgimg.Canvas) error {
+	f, err := os.Create(path)
+	if err != nil {
+		return err
+	}
+	if _, err := (vgimg.PngCanvas{Canvas: img}).WriteTo(f); err != nil {
+		f.Close()
+		return err
+	}
+	return f.Close()
+}
