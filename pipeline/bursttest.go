@@ -3,6 +3,7 @@ package pipeline
 import (
 	"context"
 	"fmt"
+	"math"
 
 	"spinpop/compare"
 	"spinpop/internal/grid"
@@ -13,7 +14,12 @@ import (
 type BurstOutcome struct {
 	Test    *compare.BurstResult
 	Profile []compare.ProfilePoint // ln L along the burst age; empty without one
-	Heights *compare.HeightResult
+	// ProfileZoom is ln L on a fine grid over the burst age's 95 %
+	// interval and a third of its width each side: the part of the
+	// profile the interval is read from, which the whole range's grid
+	// resolves by a point or two.
+	ProfileZoom []compare.ProfilePoint
+	Heights     *compare.HeightResult
 }
 
 // BurstTest asks whether the catalog demands a burst: both hypotheses
@@ -46,6 +52,11 @@ func (c *Comparison) BurstTest(ctx context.Context, replicates int, progress fun
 		}
 		if out.Profile, _, err = compare.Profile(c.Likelihood, c.Burst, tr.AgeParam, grid.Linspace(lo, hi, 61)); err != nil {
 			return nil, err
+		}
+		if zlo, zhi, ok := ProfileZoomRange(tr.AgeInterval, lo, hi); ok {
+			if out.ProfileZoom, _, err = compare.Profile(c.Likelihood, c.Burst, tr.AgeParam, grid.Linspace(zlo, zhi, 41)); err != nil {
+				return nil, err
+			}
 		}
 	}
 	split := c.SplitAge(0, tr.Burst)
@@ -135,4 +146,15 @@ func (c *Comparison) Heights(ctx context.Context, splitAgeGyr float64) (*compare
 		return nil, err
 	}
 	return c.HeightCheck(c.SplitAge(splitAgeGyr, fb), fs, fb)
+}
+
+// ProfileZoomRange is the burst age's 95 % interval with a third of its
+// width added each side, inside [lo, hi]; ok is false when the interval
+// is empty.
+func ProfileZoomRange(iv compare.Interval, lo, hi float64) (zlo, zhi float64, ok bool) {
+	w := iv.Hi95 - iv.Lo95
+	if !(w > 0) {
+		return 0, 0, false
+	}
+	return math.Max(lo, iv.Lo95-w/3), math.Min(hi, iv.Hi95+w/3), true
 }

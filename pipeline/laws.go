@@ -13,6 +13,8 @@ import (
 // LawVariant is one spin-down prescription to compare.
 type LawVariant struct {
 	Label string
+	Law   string   // the law's scenario name (spin.law)
+	On    []string // switchable option tables this variant turns on; none for the law plain
 	Set   func(s *scenarios.Scenario)
 }
 
@@ -29,7 +31,7 @@ func LawVariants() []LawVariant {
 		}
 		for _, v := range variants {
 			name, on := spec.Name, v.On
-			out = append(out, LawVariant{v.Label, func(s *scenarios.Scenario) {
+			out = append(out, LawVariant{v.Label, name, on, func(s *scenarios.Scenario) {
 				s.Spin.Law = name
 				s.Spin.Options = s.Spin.Options.Clone()
 				tables, _ := spin.OptionTables()
@@ -47,6 +49,8 @@ func LawVariants() []LawVariant {
 // LawRun is the scenario's population observed under one law variant.
 type LawRun struct {
 	Label       string
+	Law         string   // the law's scenario name
+	On          []string // switchable option tables turned on
 	Tally       *model.Tally
 	Gyrochrones []model.Gyrochrone
 }
@@ -87,7 +91,7 @@ func CompareLaws(ctx context.Context, res *scenarios.Resolved, source string, st
 		if err != nil {
 			return nil, err
 		}
-		out = append(out, LawRun{Label: v.Label, Tally: t,
+		out = append(out, LawRun{Label: v.Label, Law: v.Law, On: v.On, Tally: t,
 			Gyrochrones: model.Gyrochrones(built.Law, built.Relations, s.Output.GyrochroneAgesGyr, s.Cuts.BVMin, s.Cuts.BVMax, 50)})
 	}
 	return out, nil

@@ -15,6 +15,7 @@ import (
 
 	"gonum.org/v1/plot/vg"
 
+	"spinpop/internal/figure"
 	"spinpop/pipeline"
 )
 
@@ -85,10 +86,28 @@ func runTestAlternatives(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	if err := writeGrid(filepath.Join(dir, "alternatives_period_histograms.png"), grid, 30*vg.Centimeter, 18*vg.Centimeter); err != nil {
+	if err := writeFigure(filepath.Join(dir, "alternatives_period_histograms.png"), grid, 34*vg.Centimeter, 18*vg.Centimeter); err != nil {
 		return err
 	}
-	outputs := []string{"rejected.csv", "alternatives_period_histograms.png", "alternatives.json"}
+	outputs := []string{"rejected.csv", "alternatives_period_histograms.png"}
+	// Where each alternative differs from the first, on the plane.
+	var diffs []*figure.Panel
+	for i := 1; i < len(names); i++ {
+		dp, err := modelDifferenceMap(comps[0].Likelihood.Space(), models[names[i]], models[names[0]], names[i], names[0])
+		if err != nil {
+			return err
+		}
+		diffs = append(diffs, dp)
+	}
+	if len(diffs) > 0 {
+		g := figure.Rows(diffs, min(len(diffs), 3))
+		if err := writeFigure(filepath.Join(dir, "alternatives_difference.png"), g,
+			vg.Length(20*min(len(diffs), 3))*vg.Centimeter, vg.Length(13*len(g))*vg.Centimeter); err != nil {
+			return err
+		}
+		outputs = append(outputs, "alternatives_difference.png")
+	}
+	outputs = append(outputs, "alternatives.json")
 	rep := o.Report(outputs)
 	if err := writeJSON(filepath.Join(dir, "alternatives.json"), rep); err != nil {
 		return err

@@ -56,14 +56,14 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	sp := c.Likelihood.Space()
 	dir := *cf.out
 	var outputs []string
-	if err := writeGrid(filepath.Join(dir, "residuals.png"), dataModelResiduals(sp, sc.Counts, sc.Mu, sc.Resid, name+" ("+sc.Label+")"), 36*vg.Centimeter, 11*vg.Centimeter); err != nil {
+	if err := writeFigure(filepath.Join(dir, "residuals.png"), dataModelResiduals(sp, sc.Counts, sc.Mu, sc.Resid, name+", "+sc.Label), 44*vg.Centimeter, 12*vg.Centimeter); err != nil {
 		return err
 	}
 	grid, err := periodHistsDataModel(sp, sc.Counts, map[string][]float64{name: sc.Mu}, []string{name}, 6)
 	if err != nil {
 		return err
 	}
-	if err := writeGrid(filepath.Join(dir, "period_histograms.png"), grid, 30*vg.Centimeter, 18*vg.Centimeter); err != nil {
+	if err := writeFigure(filepath.Join(dir, "period_histograms.png"), grid, 34*vg.Centimeter, 18*vg.Centimeter); err != nil {
 		return err
 	}
 	outputs = append(outputs, "rejected.csv", "residuals.png", "period_histograms.png", "compare.json")

@@ -51,3 +51,40 @@ func fixedOrNA(format string, x float64) string {
 	}
 	return s
 }
+
+// thousands writes a count with spaces between groups of three
+// digits (89 869), as SI writes large numbers (a space, not a comma,
+// which reads as a decimal mark in much of the world).
+func thousands(n int64) string {
+	s := fmt.Sprint(n)
+	neg := strings.HasPrefix(s, "-")
+	s = strings.TrimPrefix(s, "-")
+	var b strings.Builder
+	for i, r := range s {
+		if i > 0 && (len(s)-i)%3 == 0 {
+			b.WriteByte(' ')
+		}
+		b.WriteRune(r)
+	}
+	if neg {
+		return "-" + b.String()
+	}
+	return b.String()
+}
+
+// readable turns a model's name into a label for a figure: a file path or
+// example reference ("scenarios/burst-stall.toml", "example:burst") becomes
+// its bare name ("burst-stall", "burst"), and underscores become spaces.
+// Labels name models as people do, never by where their file lies.
+func readable(name string) string {
+	n := strings.TrimPrefix(name, "example:")
+	if i := strings.LastIndexAny(n, `/\`); i >= 0 {
+		n = n[i+1:]
+	}
+	n = strings.TrimSuffix(n, ".toml")
+	n = strings.ReplaceAll(n, "_", " ")
+	if strings.TrimSpace(n) == "" {
+		return name
+	}
+	return n
+}

@@ -49,7 +49,7 @@ func runHeights(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	if err := writePlot(filepath.Join(*cf.out, "height_check.png"), p, 16*vg.Centimeter, 11*vg.Centimeter); err != nil {
+	if err := writePlot(filepath.Join(*cf.out, "height_check.png"), p, 22*vg.Centimeter, 11*vg.Centimeter); err != nil {
 		return err
 	}
 	out := map[string]any{

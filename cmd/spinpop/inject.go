@@ -13,6 +13,7 @@ import (
 	"slices"
 	"strings"
 
+	"spinpop/internal/figure"
 	"spinpop/pipeline"
 
 	"gonum.org/v1/plot/vg"
@@ -126,7 +127,7 @@ func injectCmd(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	}
 	w := vg.Length(max(16, 4+3.2*float64(len(ages)))) * vg.Centimeter
 	h := vg.Length(max(11, 5+2.2*float64(len(fracs)))) * vg.Centimeter
-	if err := writePlot(filepath.Join(dir, "recovery_map.png"), mp, w, h); err != nil {
+	if err := writeFigure(filepath.Join(dir, "recovery_map.png"), figure.One(mp), w+3*vg.Centimeter, h); err != nil {
 		return err
 	}
 	bp, err := ageBiasPlotInject(rep)

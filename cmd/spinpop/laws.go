@@ -9,9 +9,9 @@ import (
 	"path/filepath"
 	"runtime"
 
+	"spinpop/internal/figure"
 	"spinpop/pipeline"
 
-	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/vg"
 )
 
@@ -58,19 +58,46 @@ func runLaws(args []string, stdout, stderr io.Writer) error {
 		}
 		return fmt.Errorf("interrupted; nothing was written to %s", *out)
 	}
-	var panels []*plot.Plot
+	var panels []*figure.Panel
 	for _, lr := range runs {
 		t := lr.Tally
-		p, err := periodColorPlot(fmt.Sprintf("%s (%d stars)", lr.Label, t.Selected()), t, gyroCurves(lr.Gyrochrones))
+		p, err := periodColorPlot(fmt.Sprintf("%s: %s stars", lr.Label, thousands(t.Selected())), t, gyroCurves(lr.Gyrochrones))
 		if err != nil {
 			return err
 		}
 		panels = append(panels, p)
 		fmt.Fprintf(stdout, "%-34s %10d %9.2f Gyr\n", lr.Label, t.Selected(), pipeline.MedianFromBins(t.AgeEdgesGyr, t.AgeSelected))
 	}
-	grid := inRows(panels, 3)
+	// A switched variant (weakened braking, the stall) differs from its
+	// law plain in a band of the plane that the densities alone hide: a
+	// map of the difference shows it, with both variants' gyrochrones.
+	for _, lr := range runs {
+		if len(lr.On) == 0 {
+			continue
+		}
+		for _, base := range runs {
+			if base.Law != lr.Law || len(base.On) != 0 {
+				continue
+			}
+			z := shareDifference(lr.Tally.PeriodColor, base.Tally.PeriodColor)
+			p, err := differencePanel(lr.Label+" minus "+base.Label, "difference in share of stars (%)",
+				lr.Tally.ColorEdges, lr.Tally.LogPerEdges, z, 0.01, gyroCurves(lr.Gyrochrones))
+			if err != nil {
+				return err
+			}
+			panels = append(panels, p)
+		}
+	}
+	// The gyrochrones' colors mean the same ages in every panel: one
+	// legend, at the end of each row, names them.
+	for i, pn := range panels {
+		if i%4 != 3 && i != len(panels)-1 {
+			figure.NoLegend(pn.Plot)
+		}
+	}
+	grid := figure.Rows(panels, 4)
 	name := filepath.Join(*out, "laws.png")
-	if err := writeGrid(name, grid, 42*vg.Centimeter, vg.Length(12*len(grid))*vg.Centimeter); err != nil {
+	if err := writeFigure(name, grid, 64*vg.Centimeter, vg.Length(14*len(grid))*vg.Centimeter); err != nil {
 		return err
 	}
 	fmt.Fprintln(stdout, "wrote:", name)

@@ -7,12 +7,11 @@ import (
 	"slices"
 	"strings"
 
+	"spinpop/internal/figure"
 	"spinpop/internal/grid"
 	"spinpop/pipeline"
 
 	"gonum.org/v1/plot"
-	"gonum.org/v1/plot/palette"
-	"gonum.org/v1/plot/palette/brewer"
 	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
@@ -51,39 +50,25 @@ func labelTicks(labels []string) plot.ConstantTicks {
 	return t
 }
 
-// rateGrid is the detection rate over injected age (columns) and mass
-// fraction (rows), on categorical axes.
-type rateGrid struct {
-	nAges, nFracs int
-	rate          []float64 // age-major
-}
-
-func (g rateGrid) Dims() (c, r int)   { return g.nAges, g.nFracs }
-func (g rateGrid) Z(c, r int) float64 { return g.rate[c*g.nFracs+r] }
-func (g rateGrid) X(c int) float64    { return float64(c) }
-func (g rateGrid) Y(r int) float64    { return float64(r) }
-
-// recoveryMapPlot draws the detection rate as a heat map on injected age ×
-// mass fraction, each cell labelled with its rate in per cent.
-func recoveryMapPlot(rep *pipeline.InjectReport) (*plot.Plot, error) {
+// recoveryMapPlot draws the detection rate as cells on injected age ×
+// mass fraction (categorical axes, one cell per injection), each labelled
+// with its rate in per cent, with the rate's color bar.
+func recoveryMapPlot(rep *pipeline.InjectReport) (*figure.Panel, error) {
 	na, nf := len(rep.AgesGyr), len(rep.Fractions)
-	g := rateGrid{nAges: na, nFracs: nf, rate: make([]float64, na*nf)}
+	rate := make([]float64, na*nf)
 	var xys plotter.XYs
 	var labels []string
 	for i, c := range rep.Cells {
-		g.rate[i] = c.DetectionRate
+		rate[i] = c.DetectionRate
 		xys = append(xys, plotter.XY{X: float64(i / nf), Y: float64(i % nf)})
 		labels = append(labels, fmt.Sprintf("%.0f %%", 100*c.DetectionRate))
 	}
-	p := plot.New()
-	p.Title.Text = fmt.Sprintf("Detection rate of the burst test (p < %g), %d mocks of %d stars per cell\n"+
+	p := figure.New(fmt.Sprintf("Detection rate of the burst test (p < %g), %d mocks of %d stars per cell\n"+
 		"false alarms under the smooth history: %.0f %% (p < %g)", detectionP, rep.Replicates, rep.StarsPerMock,
-		100*rep.FalseAlarm.Rate, detectionP)
-	p.X.Label.Text = "injected burst age (Gyr)"
-	p.Y.Label.Text = "injected burst mass fraction"
-	hm := plotter.NewHeatMap(g, rateColors)
-	hm.Min, hm.Max = 0, 1
-	p.Add(hm)
+		100*rep.FalseAlarm.Rate, detectionP), "injected burst age (Gyr)", "injected burst mass fraction")
+	scale := figure.Rate("detection rate")
+	p.Add(&figure.Cells{XEdges: grid.Linspace(-0.5, float64(na)-0.5, na+1), YEdges: grid.Linspace(-0.5, float64(nf)-0.5, nf+1),
+		Scale: scale, Value: func(i, j int) float64 { return rate[i*nf+j] }})
 	lab, err := plotter.NewLabels(plotter.XYLabels{XYs: xys, Labels: labels})
 	if err != nil {
 		return nil, err
@@ -93,7 +78,7 @@ func recoveryMapPlot(rep *pipeline.InjectReport) (*plot.Plot, error) {
 		lab.TextStyle[i].XAlign = draw.XCenter
 		lab.TextStyle[i].YAlign = draw.YCenter
 		lab.TextStyle[i].Color = color.Black
-		if g.rate[i] > 0.6 {
+		if rate[i] > 0.6 {
 			lab.TextStyle[i].Color = color.White
 		}
 	}
@@ -110,31 +95,8 @@ func recoveryMapPlot(rep *pipeline.InjectReport) (*plot.Plot, error) {
 	p.Y.Tick.Marker = labelTicks(fracLabels)
 	p.X.Min, p.X.Max = -0.5, float64(na)-0.5
 	p.Y.Min, p.Y.Max = -0.5, float64(nf)-0.5
-	return p, nil
+	return &figure.Panel{Plot: p, Bar: scale}, nil
 }
-
-// rateColors runs from pale yellow (never detected) through green and
-// teal to dark blue (always detected): ColorBrewer's sequential YlGnBu,
-// interpolated to 64 steps so neighbouring rates differ in shade.
-var rateColors = func() palette.Palette {
-	base := brewer.SequentialPalettes["YlGnBu"][9].Colors()
-	const n = 64
-	out := make([]color.Color, n)
-	for i := range out {
-		x := float64(i) / (n - 1) * float64(len(base)-1)
-		k := min(int(x), len(base)-2)
-		f := x - float64(k)
-		a, b := color.RGBAModel.Convert(base[k]).(color.RGBA), color.RGBAModel.Convert(base[k+1]).(color.RGBA)
-		mix := func(p, q uint8) uint8 { return uint8(math.Round((1-f)*float64(p) + f*float64(q))) }
-		out[i] = color.RGBA{R: mix(a.R, b.R), G: mix(a.G, b.G), B: mix(a.B, b.B), A: 0xff}
-	}
-	return colorList(out)
-}()
-
-// colorList is a fixed list of colors as a palette.
-type colorList []color.Color
-
-func (c colorList) Colors() []color.Color { return c }
 
 // errPoints are points with asymmetric vertical error bars.
 type errPoints struct {
@@ -147,7 +109,7 @@ type errPoints struct {
 // injected mass fraction, nudged sideways so the bars do not overlap.
 func ageBiasPlotInject(rep *pipeline.InjectReport) (*plot.Plot, error) {
 	na, nf := len(rep.AgesGyr), len(rep.Fractions)
-	p := plot.New()
+	p := figure.New("", "", "")
 	p.Title.Text = fmt.Sprintf("Recovered minus injected burst age (median and 16–84 %% of %d mocks)", rep.Replicates)
 	p.X.Label.Text = "injected burst age (Gyr)"
 	p.Y.Label.Text = "recovered − injected age (Gyr)"
@@ -206,7 +168,7 @@ func ageBiasPlotInject(rep *pipeline.InjectReport) (*plot.Plot, error) {
 			pts.YErrors[a].Low = c.AgeBiasMedianGyr - c.AgeBiasQ16Gyr
 			pts.YErrors[a].High = c.AgeBiasQ84Gyr - c.AgeBiasMedianGyr
 		}
-		col := overlayColors[f%len(overlayColors)]
+		col := figure.Curve(f)
 		bars, err := plotter.NewYErrorBars(pts)
 		if err != nil {
 			return nil, err
@@ -343,7 +305,7 @@ func cornerGrid(rep *pipeline.PosteriorReport, samples []float64) ([][]*plot.Plo
 	for row := range d {
 		grid[row] = make([]*plot.Plot, d)
 		for col := 0; col <= row; col++ {
-			p := plot.New()
+			p := figure.New("", "", "")
 			p.X.Tick.Marker = fewTicks{}
 			p.Y.Tick.Marker = fewTicks{}
 			p.X.Tick.Label.Font.Size = vg.Points(8)
@@ -390,7 +352,7 @@ func cornerDiagonal(p *plot.Plot, par pipeline.PosteriorParam, edges, samples []
 		counts[b] /= float64(n) * w
 		peak = math.Max(peak, counts[b])
 	}
-	l, err := stepLine(edges, counts, overlayColors[2])
+	l, err := stepLine(edges, counts, figure.Curve(0))
 	if err != nil {
 		return err
 	}
@@ -403,7 +365,7 @@ func cornerDiagonal(p *plot.Plot, par pipeline.PosteriorParam, edges, samples []
 		if err != nil {
 			return err
 		}
-		v.Color = overlayColors[1]
+		v.Color = figure.Curve(1)
 		v.Width = vg.Points(1)
 		if m.dashed {
 			v.Dashes = []vg.Length{vg.Points(3), vg.Points(2)}
@@ -446,10 +408,16 @@ func cornerPair(p *plot.Plot, rep *pipeline.PosteriorReport, xe1, ye1, samples [
 			peak = math.Max(peak, h.n[bx*bins+by])
 		}
 	}
-	hm := plotter.NewHeatMap(h, densityPalette())
-	hm.Min, hm.Max = 0, math.Max(peak, 1)
-	hm.Rasterized = true
-	p.Add(hm)
+	// Share of samples per cell; one color scale for every pair panel.
+	scale := figure.Sequential(1, "")
+	p.Add(&figure.Cells{XEdges: xe, YEdges: ye, Scale: scale, SkipEmpty: true,
+		Value: func(i, j int) float64 {
+			v := h.n[i*bins+j]
+			if v == 0 {
+				return math.NaN()
+			}
+			return v / math.Max(peak, 1)
+		}})
 	mx, my := rep.Parameters[ix].MAP, rep.Parameters[iy].MAP
 	sc, err := plotter.NewScatter(plotter.XYs{{X: mx, Y: my}})
 	if err != nil {
@@ -457,7 +425,7 @@ func cornerPair(p *plot.Plot, rep *pipeline.PosteriorReport, xe1, ye1, samples [
 	}
 	sc.Shape = thickCross{}
 	sc.Radius = vg.Points(4)
-	sc.Color = overlayColors[0]
+	sc.Color = figure.Curve(0)
 	p.Add(sc)
 	p.X.Min, p.X.Max = xe[0], xe[bins]
 	p.Y.Min, p.Y.Max = ye[0], ye[bins]
@@ -479,7 +447,7 @@ func (thickCross) DrawGlyph(c *draw.Canvas, sty draw.GlyphStyle, pt vg.Point) {
 // 16–84 % band (a filled polygon), and the rate of the best stored
 // position (MAP), dashed.
 func sfhBandPlot(title string, ages, med, lo, hi, mapRate []float64, logY bool) (*plot.Plot, error) {
-	p := plot.New()
+	p := figure.New("", "", "")
 	p.Title.Text = title
 	p.X.Label.Text = "lookback age (Gyr)"
 	p.Y.Label.Text = "rate (share of all mass per Gyr)"
@@ -494,7 +462,7 @@ func sfhBandPlot(title string, ages, med, lo, hi, mapRate []float64, logY bool) 
 	if err != nil {
 		return nil, err
 	}
-	band.Color = color.NRGBA{R: 0x75, G: 0x70, B: 0xb3, A: 0x60}
+	band.Color = color.NRGBA{R: 0x1f, G: 0x4e, B: 0xb4, A: 0x40} // figure.Curve(0), translucent
 	band.LineStyle.Width = 0
 	band.LineStyle.Color = color.Transparent
 	p.Add(band)
@@ -517,10 +485,10 @@ func sfhBandPlot(title string, ages, med, lo, hi, mapRate []float64, logY bool) 
 		p.Legend.Add(name, l)
 		return nil
 	}
-	if err := line(med, overlayColors[2], false, "posterior median"); err != nil {
+	if err := line(med, figure.Curve(0), false, "posterior median"); err != nil {
 		return nil, err
 	}
-	if err := line(mapRate, overlayColors[1], true, "best sample (MAP)"); err != nil {
+	if err := line(mapRate, figure.Curve(1), true, "best sample (MAP)"); err != nil {
 		return nil, err
 	}
 	p.X.Min, p.X.Max = ages[0], ages[len(ages)-1]
@@ -540,4 +508,19 @@ func sfhBandPlot(title string, ages, med, lo, hi, mapRate []float64, logY bool) 
 	p.Legend.Top = true
 	p.Legend.Left = false
 	return p, nil
+}
+
+// cornerLayout wraps the corner plot's panels; their small legends (none)
+// and the diagonal's titles stay inside.
+func cornerLayout(g [][]*plot.Plot) figure.Layout {
+	out := make(figure.Layout, len(g))
+	for i, row := range g {
+		out[i] = make([]*figure.Panel, len(row))
+		for j, p := range row {
+			if p != nil {
+				out[i][j] = &figure.Panel{Plot: p, LegendInside: true}
+			}
+		}
+	}
+	return out
 }

@@ -6,63 +6,42 @@ import (
 	"math"
 
 	"gonum.org/v1/plot"
-	"gonum.org/v1/plot/palette"
-	"gonum.org/v1/plot/palette/moreland"
 	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 
 	"spinpop/compare"
+	"spinpop/internal/figure"
 	"spinpop/internal/grid"
+	"spinpop/pipeline"
 )
 
-// planeGrid shows values on the comparison plane (B−V × log10 period),
-// given in the space's 2-D order (color-major).
-type planeGrid struct {
-	sp    compare.Space
-	z     []float64
-	trans func(float64) float64
-}
+// Figures of compare, test-burst, test-alternatives and heights.
 
-func (g planeGrid) Dims() (c, r int) { return g.sp.NumColor(), g.sp.NumLogPeriod() }
-func (g planeGrid) Z(c, r int) float64 {
-	v := g.z[c*g.sp.NumLogPeriod()+r]
-	if g.trans != nil {
-		return g.trans(v)
-	}
-	return v
-}
-func (g planeGrid) X(c int) float64 { return g.sp.ColorCenter(c) }
-func (g planeGrid) Y(r int) float64 {
-	return (g.sp.LogPeriodEdges[r] + g.sp.LogPeriodEdges[r+1]) / 2
-}
-
-func logCount(v float64) float64 { return math.Log10(1 + v) }
-
-// planePlot draws counts (log scale, shared maximum vmax) or, with
-// diverging set, signed values on a blue–red scale clipped at ±vmax.
-func planePlot(title string, sp compare.Space, z []float64, vmax float64, diverging bool) *plot.Plot {
-	p := plot.New()
-	p.Title.Text = title
-	p.X.Label.Text = "B−V (mag)"
-	p.Y.Label.Text = "log10 period (d)"
-	var hm *plotter.HeatMap
-	if diverging {
-		cm := moreland.SmoothBlueRed()
-		cm.SetMin(-vmax)
-		cm.SetMax(vmax)
-		hm = plotter.NewHeatMap(planeGrid{sp: sp, z: z}, cm.Palette(64))
-		hm.Min, hm.Max = -vmax, vmax
-		hm.Underflow, hm.Overflow = cm.Palette(64).Colors()[0], cm.Palette(64).Colors()[63]
-	} else {
-		hm = plotter.NewHeatMap(planeGrid{sp: sp, z: z, trans: logCount}, densityPalette())
-		hm.Min, hm.Max = 0, logCount(vmax)
-	}
-	hm.Rasterized = true
-	p.Add(hm)
+// planeCounts draws counts on the comparison plane (B−V × log period),
+// given color-major, cell by cell on a log scale shared up to vmax.
+func planeCounts(title string, sp compare.Space, z []float64, vmax float64) *figure.Panel {
+	np := sp.NumLogPeriod()
+	scale := figure.Density(vmax, labelStars)
+	p := figure.New(title, labelBV, labelLogPeriod)
+	p.Add(&figure.Cells{XEdges: sp.ColorEdges, YEdges: sp.LogPeriodEdges, Scale: scale,
+		Value: func(i, j int) float64 { return figure.LogCount(z[i*np+j]) }})
 	p.X.Min, p.X.Max = sp.ColorEdges[0], sp.ColorEdges[len(sp.ColorEdges)-1]
 	p.Y.Min, p.Y.Max = sp.LogPeriodEdges[0], sp.LogPeriodEdges[len(sp.LogPeriodEdges)-1]
-	return p
+	return &figure.Panel{Plot: p, Bar: scale}
+}
+
+// planeSigned draws signed values (residuals, differences) on the
+// comparison plane, clipped at ±limit, NaN cells Empty.
+func planeSigned(title, barLabel string, sp compare.Space, z []float64, limit float64) *figure.Panel {
+	np := sp.NumLogPeriod()
+	scale := figure.Diverging(limit, barLabel)
+	p := figure.New(title, labelBV, labelLogPeriod)
+	p.Add(&figure.Cells{XEdges: sp.ColorEdges, YEdges: sp.LogPeriodEdges, Scale: scale,
+		Value: func(i, j int) float64 { return z[i*np+j] }})
+	p.X.Min, p.X.Max = sp.ColorEdges[0], sp.ColorEdges[len(sp.ColorEdges)-1]
+	p.Y.Min, p.Y.Max = sp.LogPeriodEdges[0], sp.LogPeriodEdges[len(sp.LogPeriodEdges)-1]
+	return &figure.Panel{Plot: p, Bar: scale}
 }
 
 func maxOf(xs ...[]float64) float64 {
@@ -78,30 +57,55 @@ func maxOf(xs ...[]float64) float64 {
 }
 
 // dataModelResiduals is the data and model period–color densities side by
-// side, with the Pearson residual map (n − μ)/√μ.
-func dataModelResiduals(sp compare.Space, data, mu, resid []float64, modelName string) [][]*plot.Plot {
+// side, on one color scale, with the Pearson residual map (n − μ)/√μ.
+// Cells the model leaves empty have no residual and are drawn Empty.
+func dataModelResiduals(sp compare.Space, data, mu, resid []float64, modelName string) figure.Layout {
 	vmax := maxOf(data, mu)
-	r := planePlot("Pearson residuals (n−μ)/√μ, clipped at ±4", sp, resid, 4, true)
-	return [][]*plot.Plot{{
-		planePlot("Data", sp, data, vmax, false),
-		planePlot("Model: "+modelName, sp, mu, vmax, false),
-		r,
-	}}
+	r := make([]float64, len(resid))
+	for k := range resid {
+		r[k] = resid[k]
+		if !(mu[k] > 0) {
+			r[k] = math.NaN()
+		}
+	}
+	row := []*figure.Panel{
+		planeCounts("Data", sp, data, vmax),
+		planeCounts("Model: "+modelName, sp, mu, vmax),
+		planeSigned("Pearson residuals", "(n − μ)/√μ", sp, r, 4),
+	}
+	np := sp.NumLogPeriod()
+	for _, pn := range row {
+		fitRows(&pn.Plot.Y, sp.LogPeriodEdges, func(j int) float64 {
+			s := 0.0
+			for c := range sp.NumColor() {
+				s += data[c*np+j] + mu[c*np+j]
+			}
+			return s
+		})
+	}
+	return figure.Layout{row}
+}
+
+// modelDifferenceMap is where two fitted models differ on the plane, in
+// units of the second's counting noise.
+func modelDifferenceMap(sp compare.Space, a, b []float64, nameA, nameB string) (*figure.Panel, error) {
+	z := modelDifference(a, b)
+	return differencePanel(fmt.Sprintf("Where the models differ: %s minus %s", nameA, nameB),
+		fmt.Sprintf("(μ %s − μ %s)/√μ %s", nameA, nameB, nameB), sp.ColorEdges, sp.LogPeriodEdges, z, 1, nil)
 }
 
 // periodHistsDataModel draws, per group of color bins, the data's log-period
-// histogram (points with Poisson errors) against each hypothesis (lines).
-func periodHistsDataModel(sp compare.Space, data []float64, models map[string][]float64, order []string, panels int) ([][]*plot.Plot, error) {
+// histogram (points with Poisson errors) against each model (steps, each
+// its own color). The legend, beside the last panel of the first row,
+// covers no data.
+func periodHistsDataModel(sp compare.Space, data []float64, models map[string][]float64, order []string, panels int) (figure.Layout, error) {
 	nc, np := sp.NumColor(), sp.NumLogPeriod()
 	panels = min(panels, nc)
 	per := (nc + panels - 1) / panels
-	var row []*plot.Plot
+	var row []*figure.Panel
 	for start := 0; start < nc; start += per {
 		end := min(start+per, nc)
-		p := plot.New()
-		p.Title.Text = fmt.Sprintf("B−V %.2f–%.2f", sp.ColorEdges[start], sp.ColorEdges[end])
-		p.X.Label.Text = "log10 period (d)"
-		p.Y.Label.Text = "stars"
+		p := figure.New(fmt.Sprintf("B−V %.2f–%.2f", sp.ColorEdges[start], sp.ColorEdges[end]), labelLogPeriod, "stars")
 		sum := func(z []float64, j int) float64 {
 			s := 0.0
 			for c := start; c < end; c++ {
@@ -111,34 +115,35 @@ func periodHistsDataModel(sp compare.Space, data []float64, models map[string][]
 		}
 		var pts plotter.XYs
 		var errs plotter.YErrors
+		top := 0.0
 		for j := range np {
 			n := sum(data, j)
 			x := (sp.LogPeriodEdges[j] + sp.LogPeriodEdges[j+1]) / 2
 			pts = append(pts, plotter.XY{X: x, Y: n})
 			e := math.Sqrt(n)
 			errs = append(errs, struct{ Low, High float64 }{e, e})
+			top = math.Max(top, n+e)
 		}
 		for i, name := range order {
 			y := make([]float64, np)
 			for j := range np {
 				y[j] = sum(models[name], j)
+				top = math.Max(top, y[j])
 			}
-			l, err := stepLine(sp.LogPeriodEdges, y, overlayColors[(i+1)%len(overlayColors)])
+			l, err := stepLine(sp.LogPeriodEdges, y, figure.Curve(i))
 			if err != nil {
 				return nil, err
 			}
 			p.Add(l)
-			if start == 0 {
-				p.Legend.Add(name, l)
-			}
+			p.Legend.Add(readable(name), l)
 		}
 		sc, err := plotter.NewScatter(pts)
 		if err != nil {
 			return nil, err
 		}
 		sc.GlyphStyle.Shape = draw.CircleGlyph{}
-		sc.GlyphStyle.Radius = vg.Points(1.8)
-		sc.GlyphStyle.Color = color.Black
+		sc.GlyphStyle.Radius = vg.Points(2)
+		sc.GlyphStyle.Color = figure.Data
 		eb, err := plotter.NewYErrorBars(struct {
 			plotter.XYer
 			plotter.YErrorer
@@ -146,93 +151,154 @@ func periodHistsDataModel(sp compare.Space, data []float64, models map[string][]
 		if err != nil {
 			return nil, err
 		}
+		eb.Color = figure.Data
 		p.Add(eb, sc)
-		if start == 0 {
-			p.Legend.Add("data", sc)
-			p.Legend.Top = true
-			p.Legend.Left = true
-		}
-		row = append(row, p)
+		p.Legend.Add("data (±√n)", sc)
+		p.Y.Min, p.Y.Max = 0, 1.05*math.Max(top, 1)
+		fitRows(&p.X, sp.LogPeriodEdges, func(j int) float64 {
+			s := 0.0
+			for c := range nc {
+				s += data[c*np+j]
+			}
+			return s
+		})
+		row = append(row, &figure.Panel{Plot: p})
 	}
-	grid := inRows(row, 3)
-	return grid, nil
+	// One legend for all panels: the last of the first row keeps it.
+	cols := 3
+	for i, pn := range row {
+		if i != min(cols, len(row))-1 {
+			figure.NoLegend(pn.Plot)
+		}
+	}
+	return figure.Rows(row, cols), nil
 }
 
-// profilePlot is −Δ ln L of the burst age with the 68 % and 95 % levels.
-func profilePlot(name string, pts []compare.ProfilePoint, iv compare.Interval) (*plot.Plot, error) {
-	p := plot.New()
-	p.Title.Text = fmt.Sprintf("Profile likelihood of %s: %.3f (68%%: %.3f–%.3f)", name, iv.Best, iv.Lo68, iv.Hi68)
-	p.X.Label.Text = name
-	p.Y.Label.Text = "ln L_max − ln L"
+// profilePanels are the profile likelihood of a parameter in two panels:
+// zoomed to its 95 % interval on a fine grid (where the interval is read),
+// and over the whole range the fit may choose (where other peaks would
+// show), the zoom's span marked on it. The levels are Wilks' 0.5 and 1.92
+// times the dispersion φ̂ when it exceeds 1, as the interval's own.
+func profilePanels(param string, whole, zoom []compare.ProfilePoint, iv compare.Interval, phi, lo, hi float64) (figure.Layout, error) {
+	label := paramLabel(param)
+	scale := math.Max(1, phi)
 	best := math.Inf(-1)
-	for _, q := range pts {
-		best = max(best, q.LogL)
-	}
-	var xy plotter.XYs
-	for _, q := range pts {
-		if !math.IsInf(q.LogL, 0) && !math.IsNaN(q.LogL) {
-			xy = append(xy, plotter.XY{X: q.Value, Y: best - q.LogL})
+	for _, q := range append(append([]compare.ProfilePoint(nil), whole...), zoom...) {
+		if !math.IsNaN(q.LogL) {
+			best = max(best, q.LogL)
 		}
 	}
-	if len(xy) < 2 {
+	curve := func(pts []compare.ProfilePoint, xmin, xmax float64) plotter.XYs {
+		var xy plotter.XYs
+		for _, q := range pts {
+			if !math.IsInf(q.LogL, 0) && !math.IsNaN(q.LogL) && q.Value >= xmin && q.Value <= xmax {
+				xy = append(xy, plotter.XY{X: q.Value, Y: best - q.LogL})
+			}
+		}
+		return xy
+	}
+	panel := func(title string, pts []compare.ProfilePoint, xmin, xmax, ymax float64) (*plot.Plot, error) {
+		p := figure.New(title, label, "ln L(best) − ln L")
+		if xy := curve(pts, xmin, xmax); len(xy) >= 2 {
+			l, lp, err := plotter.NewLinePoints(xy)
+			if err != nil {
+				return nil, err
+			}
+			l.Color, l.Width = figure.Curve(0), figure.LineWidth
+			lp.Color, lp.Shape, lp.Radius = figure.Curve(0), draw.CircleGlyph{}, vg.Points(2)
+			p.Add(l, lp)
+			p.Legend.Add("profile", l)
+		}
+		for i, lev := range []struct {
+			y    float64
+			name string
+		}{{0.5, "68 %"}, {1.92, "95 %"}} {
+			h, err := plotter.NewLine(plotter.XYs{{X: xmin, Y: scale * lev.y}, {X: xmax, Y: scale * lev.y}})
+			if err != nil {
+				return nil, err
+			}
+			h.Color = figure.Curve(1 + i)
+			h.Dashes = figure.Dashed
+			h.Width = vg.Points(1.2)
+			p.Add(h)
+			name := lev.name + " level"
+			if scale > 1 {
+				name = fmt.Sprintf("%s level × dispersion %.2f", lev.name, scale)
+			}
+			p.Legend.Add(name, h)
+		}
+		p.X.Min, p.X.Max = xmin, xmax
+		p.Y.Min, p.Y.Max = 0, ymax
 		return p, nil
 	}
-	l, err := plotter.NewLine(xy)
+	title := fmt.Sprintf("%s: %s (68 %% interval %s–%s)", label, num(iv.Best), num(iv.Lo68), num(iv.Hi68))
+	var row []*figure.Panel
+	zlo, zhi, ok := pipeline.ProfileZoomRange(iv, lo, hi)
+	if ok && len(zoom) >= 2 {
+		zp, err := panel(title, zoom, zlo, zhi, 1.6*scale*1.92)
+		if err != nil {
+			return nil, err
+		}
+		row = append(row, &figure.Panel{Plot: zp})
+		title = fmt.Sprintf("The whole range of the fit, %s–%s", num(lo), num(hi))
+	}
+	ymax := 4 * scale
+	for _, q := range curve(whole, lo, hi) {
+		ymax = math.Max(ymax, q.Y)
+	}
+	wp, err := panel(title, whole, lo, hi, 1.05*ymax)
 	if err != nil {
 		return nil, err
 	}
-	l.Color = overlayColors[2]
-	l.Width = vg.Points(1.5)
-	p.Add(l)
-	for i, lev := range []struct {
-		y    float64
-		name string
-	}{{0.5, "68 %"}, {1.92, "95 %"}} {
-		h := plotter.NewFunction(func(float64) float64 { return lev.y })
-		h.Color = overlayColors[3+i]
-		h.Dashes = []vg.Length{vg.Points(4), vg.Points(3)}
-		p.Add(h)
-		p.Legend.Add(lev.name, h)
+	if ok && len(zoom) >= 2 {
+		figure.NoLegend(wp) // the zoom's legend serves both
+		box, err := plotter.NewPolygon(plotter.XYs{{X: zlo, Y: 0}, {X: zhi, Y: 0}, {X: zhi, Y: 1.05 * ymax}, {X: zlo, Y: 1.05 * ymax}})
+		if err != nil {
+			return nil, err
+		}
+		box.Color = color.NRGBA{R: 0x80, G: 0x80, B: 0x80, A: 0x40}
+		box.LineStyle.Color, box.LineStyle.Width = figure.Guide, vg.Points(0.8)
+		wp.Add(box)
+		wp.Legend.Add("span of the zoom", box)
 	}
-	p.Y.Min = 0
-	p.Y.Max = math.Min(maxY(xy), 20)
-	p.Legend.Top = true
-	return p, nil
+	row = append(row, &figure.Panel{Plot: wp})
+	return figure.Layout{row}, nil
 }
 
-func maxY(xy plotter.XYs) float64 {
-	m := 0.0
-	for _, q := range xy {
-		m = max(m, q.Y)
-	}
-	return m
-}
+// num writes a parameter value with three significant digits.
+func num(x float64) string { return fmt.Sprintf("%.3g", x) }
 
-// heightPlotFit is the young fraction against |z|: data with 68 % Wilson
-// intervals, each hypothesis as a line.
+// heightPlotFit is the young fraction against |z|: each hypothesis as
+// steps over the |z| bins, the data as points with 68 % Wilson intervals,
+// on axes that hold every point and bar.
 func heightPlotFit(h *compare.HeightResult) (*plot.Plot, error) {
-	p := plot.New()
-	p.Title.Text = fmt.Sprintf("Young fraction against height (split at the %.2f Gyr gyrochrone)", h.SplitAgeGyr)
-	p.X.Label.Text = "|z| (pc)"
-	p.Y.Label.Text = "fraction below the split gyrochrone"
+	p := figure.New(fmt.Sprintf("Young fraction against height (split at the %.2f Gyr gyrochrone)", h.SplitAgeGyr),
+		"|z| (pc)", "fraction below the split gyrochrone")
+	// An open last bin (to infinity or far beyond the stars) is drawn as
+	// wide as the one before it.
+	edges := append([]float64(nil), h.ZEdgesPc...)
+	if n := len(edges); n >= 3 && (math.IsInf(edges[n-1], 1) || edges[n-1] > 3*edges[n-2]) {
+		edges[n-1] = edges[n-2] + (edges[n-2] - edges[n-3])
+	}
 	var pts plotter.XYs
 	var errs plotter.YErrors
+	top := 0.0
 	for i := range h.Total {
 		if h.Total[i] == 0 || math.IsNaN(h.Fraction[i]) {
 			continue
 		}
-		x := (h.ZEdgesPc[i] + math.Min(h.ZEdgesPc[i+1], 2*h.ZEdgesPc[i]+200)) / 2
-		pts = append(pts, plotter.XY{X: x, Y: h.Fraction[i]})
+		pts = append(pts, plotter.XY{X: (edges[i] + edges[i+1]) / 2, Y: h.Fraction[i]})
 		errs = append(errs, struct{ Low, High float64 }{h.Fraction[i] - h.Lo68[i], h.Hi68[i] - h.Fraction[i]})
+		top = math.Max(top, h.Hi68[i])
 	}
 	for k, hy := range h.Hypotheses {
 		var xy plotter.XYs
 		for i := range hy.Fraction {
-			if math.IsNaN(hy.Fraction[i]) || h.Total[i] == 0 {
+			if math.IsNaN(hy.Fraction[i]) {
 				continue
 			}
-			x := (h.ZEdgesPc[i] + math.Min(h.ZEdgesPc[i+1], 2*h.ZEdgesPc[i]+200)) / 2
-			xy = append(xy, plotter.XY{X: x, Y: hy.Fraction[i]})
+			xy = append(xy, plotter.XY{X: edges[i], Y: hy.Fraction[i]}, plotter.XY{X: edges[i+1], Y: hy.Fraction[i]})
+			top = math.Max(top, hy.Fraction[i])
 		}
 		if len(xy) < 2 {
 			continue
@@ -241,10 +307,10 @@ func heightPlotFit(h *compare.HeightResult) (*plot.Plot, error) {
 		if err != nil {
 			return nil, err
 		}
-		l.Color = overlayColors[(k+1)%len(overlayColors)]
-		l.Width = vg.Points(1.5)
+		l.Color = figure.Curve(k)
+		l.Width = figure.LineWidth
 		p.Add(l)
-		p.Legend.Add(fmt.Sprintf("%s (ln L %.1f)", hy.Name, hy.LogL), l)
+		p.Legend.Add(fmt.Sprintf("%s (ln L %.1f)", readable(hy.Name), hy.LogL), l)
 	}
 	if len(pts) > 0 {
 		sc, err := plotter.NewScatter(pts)
@@ -252,7 +318,8 @@ func heightPlotFit(h *compare.HeightResult) (*plot.Plot, error) {
 			return nil, err
 		}
 		sc.GlyphStyle.Shape = draw.CircleGlyph{}
-		sc.GlyphStyle.Color = color.Black
+		sc.GlyphStyle.Color = figure.Data
+		sc.GlyphStyle.Radius = vg.Points(2.5)
 		eb, err := plotter.NewYErrorBars(struct {
 			plotter.XYer
 			plotter.YErrorer
@@ -260,51 +327,93 @@ func heightPlotFit(h *compare.HeightResult) (*plot.Plot, error) {
 		if err != nil {
 			return nil, err
 		}
+		eb.Color = figure.Data
 		p.Add(eb, sc)
 		p.Legend.Add("data (68 % interval)", sc)
 	}
-	p.Legend.Top = true
-	p.Y.Min = 0
+	// The axis ends with the last bin that holds a catalog star.
+	last := len(edges) - 1
+	for last > 1 && h.Total[last-1] == 0 {
+		last--
+	}
+	p.X.Min, p.X.Max = edges[0], edges[last]
+	p.Y.Min, p.Y.Max = 0, math.Min(1, 1.08*math.Max(top, 0.05))
 	return p, nil
 }
 
 // bootstrapPlot is the distribution of the likelihood-ratio statistic in
-// the bootstrap replicates with the observed value marked.
-func bootstrapPlot(lr float64, reps []float64) (*plot.Plot, error) {
-	p := plot.New()
-	p.Title.Text = fmt.Sprintf("Bootstrap under the smooth history: %d replicates", len(reps))
-	p.X.Label.Text = "LR = 2 Δln L"
-	p.Y.Label.Text = "replicates"
+// the bootstrap replicates (counts on a log axis, so that the tail's few
+// replicates show) with the observed value marked. When the observed value
+// lies far beyond every replicate, the axis stays on the replicates and an
+// arrow at its right edge says where the observed value is.
+func bootstrapPlot(lr float64, reps []float64, under string) (*plot.Plot, error) {
+	p := figure.New(fmt.Sprintf("Likelihood ratio in %d bootstrap replicates under the %s", len(reps), under),
+		"LR = 2 Δln L", "replicates (log scale)")
 	if len(reps) == 0 {
 		return p, nil
 	}
-	top := max(lr, maxOf(reps)) * 1.05
-	if top <= 0 {
-		top = 1
+	repMax := math.Max(maxOf(reps), 1e-3)
+	offScale := lr > 1.6*repMax
+	top := repMax * 1.08
+	if !offScale {
+		top = math.Max(lr, repMax) * 1.08
 	}
-	edges := grid.Linspace(0, top, 41)
-	y := make([]float64, 40)
+	lowest := 0.0
 	for _, v := range reps {
-		i := int(v / top * 40)
-		y[min(max(i, 0), 39)]++
+		lowest = math.Min(lowest, v)
 	}
-	l, err := stepLine(edges, y, overlayColors[2])
+	const nb = 30
+	edges := grid.Linspace(lowest, top, nb+1)
+	y := make([]float64, nb)
+	for _, v := range reps {
+		i := int((v - lowest) / (top - lowest) * nb)
+		y[min(max(i, 0), nb-1)]++
+	}
+	// Empty bins sit at the axis floor (a log axis has no 0).
+	const floor = 0.5
+	steps := make([]float64, nb)
+	for i := range y {
+		steps[i] = math.Max(y[i], floor)
+	}
+	l, err := stepLine(edges, steps, figure.Curve(0))
 	if err != nil {
 		return nil, err
 	}
 	p.Add(l)
-	obs := plotter.XYs{{X: lr, Y: 0}, {X: lr, Y: maxOf(y)}}
-	ol, err := plotter.NewLine(obs)
+	p.Legend.Add("replicates", l)
+	p.Y.Scale = plot.LogScale{}
+	p.Y.Tick.Marker = inRange{plot.LogTicks{Prec: -1}}
+	ymax := math.Max(maxOf(y), 1) * 2
+	p.Y.Min, p.Y.Max = floor, ymax
+	p.X.Min, p.X.Max = lowest, top
+	if !offScale {
+		ol, err := plotter.NewLine(plotter.XYs{{X: lr, Y: floor}, {X: lr, Y: ymax}})
+		if err != nil {
+			return nil, err
+		}
+		ol.Color = figure.Curve(1)
+		ol.Width = vg.Points(2)
+		p.Add(ol)
+		p.Legend.Add(fmt.Sprintf("observed LR = %.1f", lr), ol)
+		return p, nil
+	}
+	// Off scale: an arrow glyph at the right edge, named in the legend.
+	mk, err := plotter.NewScatter(plotter.XYs{{X: top, Y: math.Sqrt(floor * ymax)}})
 	if err != nil {
 		return nil, err
 	}
-	ol.Color = overlayColors[1]
-	ol.Width = vg.Points(2)
-	p.Add(ol)
-	p.Legend.Add("replicates", l)
-	p.Legend.Add(fmt.Sprintf("observed LR = %.1f", lr), ol)
-	p.Legend.Top = true
+	mk.Shape = rightArrow{}
+	mk.Color = figure.Curve(1)
+	mk.Radius = vg.Points(7)
+	p.Add(mk)
+	p.Legend.Add(fmt.Sprintf("observed LR = %.1f, off scale to the right", lr), mk)
 	return p, nil
 }
 
-var _ palette.Palette
+// rightArrow is a filled triangle pointing right whose tip is the point.
+type rightArrow struct{}
+
+func (rightArrow) DrawGlyph(c *draw.Canvas, sty draw.GlyphStyle, pt vg.Point) {
+	r := sty.Radius
+	c.FillPolygon(sty.Color, []vg.Point{{X: pt.X, Y: pt.Y}, {X: pt.X - 1.6*r, Y: pt.Y + r}, {X: pt.X - 1.6*r, Y: pt.Y - r}})
+}

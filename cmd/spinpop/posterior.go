@@ -15,6 +15,7 @@ import (
 	"gonum.org/v1/plot/vg"
 
 	"spinpop/compare"
+	"spinpop/internal/figure"
 	"spinpop/internal/grid"
 	"spinpop/pipeline"
 )
@@ -92,14 +93,14 @@ func posteriorCmd(ctx context.Context, args []string, stdout, stderr io.Writer) 
 		return err
 	}
 	side := vg.Length(max(14, 6.5*float64(d))) * vg.Centimeter
-	if err := writeGrid(filepath.Join(dir, "corner.png"), grid, side, side); err != nil {
+	if err := writeFigure(filepath.Join(dir, "corner.png"), cornerLayout(grid), side, side); err != nil {
 		return err
 	}
 	sp, err := sfhPlots(c, post, rep)
 	if err != nil {
 		return err
 	}
-	if err := writeGrid(filepath.Join(dir, "sfh.png"), [][]*plot.Plot{sp}, 32*vg.Centimeter, 12*vg.Centimeter); err != nil {
+	if err := writeFigure(filepath.Join(dir, "sfh.png"), figure.Layout{figure.Of(sp...)}, 36*vg.Centimeter, 12*vg.Centimeter); err != nil {
 		return err
 	}
 	rep.Outputs = []string{"rejected.csv", "chain.csv", "corner.png", "sfh.png", "posterior.json"}

@@ -10,9 +10,9 @@ import (
 	"path/filepath"
 	"runtime"
 
-	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/vg"
 
+	"spinpop/internal/figure"
 	"spinpop/model"
 	"spinpop/pipeline"
 	"spinpop/scenarios"
@@ -163,17 +163,16 @@ func writeJSON(path string, v any) error {
 
 func writeSimulationPlots(dir string, s *scenarios.Scenario, t *model.Tally, gc []gyroCurve) ([]string, error) {
 	var names []string
-	title := fmt.Sprintf("%s: catalog stars, %d", s.Name, t.Selected())
+	title := fmt.Sprintf("%s: %s catalog stars", s.Name, thousands(t.Selected()))
 	pc, err := periodColorPlot(title, t, gc)
 	if err != nil {
 		return nil, err
 	}
-	if err := writePlot(filepath.Join(dir, "period_color.png"), pc, 18*vg.Centimeter, 13*vg.Centimeter); err != nil {
+	if err := writeFigure(filepath.Join(dir, "period_color.png"), figure.One(pc), 20*vg.Centimeter, 13*vg.Centimeter); err != nil {
 		return nil, err
 	}
 	names = append(names, "period_color.png")
-	grid := periodHistograms(t, 6)
-	if err := writeGrid(filepath.Join(dir, "period_histograms.png"), grid, 27*vg.Centimeter, 16*vg.Centimeter); err != nil {
+	if err := writeFigure(filepath.Join(dir, "period_histograms.png"), periodHistograms(t, 6), 27*vg.Centimeter, 16*vg.Centimeter); err != nil {
 		return nil, err
 	}
 	names = append(names, "period_histograms.png")
@@ -197,7 +196,7 @@ func writeSimulationPlots(dir string, s *scenarios.Scenario, t *model.Tally, gc 
 	if err != nil {
 		return nil, err
 	}
-	if err := writeGrid(filepath.Join(dir, "age_selection.png"), [][]*plot.Plot{{ap, dp, cp}}, 36*vg.Centimeter, 11*vg.Centimeter); err != nil {
+	if err := writeFigure(filepath.Join(dir, "age_selection.png"), figure.Layout{figure.Of(ap, dp, cp)}, 40*vg.Centimeter, 11*vg.Centimeter); err != nil {
 		return nil, err
 	}
 	names = append(names, "age_selection.png")

@@ -4,11 +4,13 @@ import (
 	"context"
 	"fmt"
 	"io"
+	"math"
 	"os"
 	"os/signal"
 	"path/filepath"
 
 	"spinpop/compare"
+	"spinpop/internal/figure"
 	"spinpop/pipeline"
 
 	"gonum.org/v1/plot/vg"
@@ -85,40 +87,63 @@ func writeBurstOutputs(dir string, c *pipeline.Comparison, r *pipeline.BurstOutc
 	if err != nil {
 		return nil, err
 	}
-	if err := writeGrid(filepath.Join(dir, "fit_period_histograms.png"), grid, 30*vg.Centimeter, 18*vg.Centimeter); err != nil {
+	if err := writeFigure(filepath.Join(dir, "fit_period_histograms.png"), grid, 34*vg.Centimeter, 18*vg.Centimeter); err != nil {
 		return nil, err
 	}
 	resid := like.PearsonResiduals(r.Test.Burst.Weights)
-	if err := writeGrid(filepath.Join(dir, "fit_residuals.png"), dataModelResiduals(sp, data, muB, resid, "with burst"), 36*vg.Centimeter, 11*vg.Centimeter); err != nil {
+	if err := writeFigure(filepath.Join(dir, "fit_residuals.png"), dataModelResiduals(sp, data, muB, resid, "with burst"), 44*vg.Centimeter, 12*vg.Centimeter); err != nil {
 		return nil, err
 	}
-	outputs = append(outputs, "fit_period_histograms.png", "fit_residuals.png")
+	dp, err := modelDifferenceMap(sp, muB, muS, "burst", "smooth")
+	if err != nil {
+		return nil, err
+	}
+	if err := writeFigure(filepath.Join(dir, "fit_difference.png"), figure.One(dp), 20*vg.Centimeter, 13*vg.Centimeter); err != nil {
+		return nil, err
+	}
+	outputs = append(outputs, "fit_period_histograms.png", "fit_residuals.png", "fit_difference.png")
 	if len(r.Profile) > 0 {
-		p, err := profilePlot(r.Test.AgeParam, r.Profile, r.Test.AgeInterval)
+		lo, hi := profileRange(c, r)
+		g, err := profilePanels(r.Test.AgeParam, r.Profile, r.ProfileZoom, r.Test.AgeInterval, r.Test.Dispersion, lo, hi)
 		if err != nil {
 			return nil, err
 		}
-		if err := writePlot(filepath.Join(dir, "profile_burst_age.png"), p, 16*vg.Centimeter, 11*vg.Centimeter); err != nil {
+		if err := writeFigure(filepath.Join(dir, "profile_burst_age.png"), g, 30*vg.Centimeter, 11*vg.Centimeter); err != nil {
 			return nil, err
 		}
 		outputs = append(outputs, "profile_burst_age.png")
 	}
-	bp, err := bootstrapPlot(r.Test.LR, r.Test.LRReplicates)
+	bp, err := bootstrapPlot(r.Test.LR, r.Test.LRReplicates, "fitted smooth history")
 	if err != nil {
 		return nil, err
 	}
-	if err := writePlot(filepath.Join(dir, "bootstrap.png"), bp, 16*vg.Centimeter, 11*vg.Centimeter); err != nil {
+	if err := writePlot(filepath.Join(dir, "bootstrap.png"), bp, 20*vg.Centimeter, 11*vg.Centimeter); err != nil {
 		return nil, err
 	}
 	hp, err := heightPlotFit(r.Heights)
 	if err != nil {
 		return nil, err
 	}
-	if err := writePlot(filepath.Join(dir, "height_check.png"), hp, 16*vg.Centimeter, 11*vg.Centimeter); err != nil {
+	if err := writePlot(filepath.Join(dir, "height_check.png"), hp, 22*vg.Centimeter, 11*vg.Centimeter); err != nil {
 		return nil, err
 	}
 	outputs = append(outputs, "bootstrap.png", "height_check.png", "test.json")
 	return outputs, writeJSON(filepath.Join(dir, "test.json"), r.Report(c, outputs))
+}
+
+// profileRange is the range the fit may choose for the profiled
+// parameter (its [[compare.free]] bounds), or the profile's own span.
+func profileRange(c *pipeline.Comparison, r *pipeline.BurstOutcome) (lo, hi float64) {
+	for _, f := range c.Burst.Free {
+		if f.Name == r.Test.AgeParam {
+			return f.Min, f.Max
+		}
+	}
+	lo, hi = math.Inf(1), math.Inf(-1)
+	for _, q := range r.Profile {
+		lo, hi = math.Min(lo, q.Value), math.Max(hi, q.Value)
+	}
+	return lo, hi
 }
 
 func printBurstSummary(w io.Writer, r *pipeline.BurstOutcome) {
