@@ -44,7 +44,9 @@ func Apply(p *plot.Plot) {
 		a.Label.TextStyle.Font = font.From(plot.DefaultFont, LabelSize)
 		a.Tick.Label.Font = font.From(plot.DefaultFont, TickSize)
 		a.Padding = vg.Points(2)
-		a.Tick.Marker = cleanTicks{}
+		if _, plain := a.Tick.Marker.(plot.DefaultTicks); plain {
+			a.Tick.Marker = cleanTicks{}
+		}
 	}
 	p.Legend.TextStyle.Font = font.From(plot.DefaultFont, LegendSize)
 	p.Legend.ThumbnailWidth = vg.Points(18)
