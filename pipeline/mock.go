@@ -9,7 +9,7 @@ import (
 	"math"
 
 	"spinpop/assemble"
-	"spinpop/compare/catalog"
+	"spinpop/disk"
 	"spinpop/model"
 	"spinpop/scenarios"
 )
@@ -73,7 +73,7 @@ func Mock(ctx context.Context, res *scenarios.Resolved, o MockOptions, w io.Writ
 				}
 				plx := 1000/c.DistPc[i] + o.ParallaxErrorMas*r.NormFloat64()
 				vmag := c.ObsAbsMag[i] + 5*math.Log10(c.DistPc[i]) - 5
-				ra, dec := catalog.GalacticToICRS(c.LDeg[i], c.BDeg[i])
+				ra, dec := disk.GalacticToICRS(c.LDeg[i], c.BDeg[i])
 				buf = buf[:0]
 				buf = fmt.Appendf(buf, "%d,%.4f,%.4f,%.4f,%.5f,%.6f,%.6f\n", kept+1, c.MeasPeriodD[i], c.ObsBV[i], vmag, plx, ra, dec)
 				if _, err := bw.Write(buf); err != nil {

@@ -5,6 +5,8 @@ import (
 	"errors"
 	"math"
 	"strconv"
+
+	"spinpop/disk"
 )
 
 // rowSource gives the values of one row, whatever the file format: value
@@ -138,7 +140,7 @@ func (p *plan) convert(row rowSource) (Star, *fieldRef, Reason) {
 		if dec < -90 || dec > 90 {
 			return s, p.dec, ReasonPosition
 		}
-		s.LDeg, s.BDeg = ICRSToGalactic(ra, dec)
+		s.LDeg, s.BDeg = disk.ICRSToGalactic(ra, dec)
 	}
 	if p.absMag == nil {
 		s.AbsMag = appMag - 5*math.Log10(s.DistPc/10)

@@ -53,7 +53,7 @@ type Summary struct {
 	Rows        int // data rows seen, accepted or rejected
 	Accepted    int // usable rows, Excluded included
 	Rejected    map[Reason]int
-	Excluded    int // usable rows the row function left out (Exclude)
+	Excluded    int      // usable rows the row function left out (Exclude)
 	Bytes       int64    // bytes of the input as stored (compressed, if it is)
 	SHA256      [32]byte // of those bytes
 }

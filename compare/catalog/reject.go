@@ -66,9 +66,9 @@ type Rejection struct {
 	// Excluded, when not "", is why the caller left a usable row out
 	// (Exclude.Reason); it is written in place of Reason.
 	Excluded string
-	Column string // the offending column, "" for ReasonFieldCount
-	Value  string // the offending value as written
-	Raw    string // the whole line as written; FITS, Parquet: "column=value, …" of the mapped columns
+	Column   string // the offending column, "" for ReasonFieldCount
+	Value    string // the offending value as written
+	Raw      string // the whole line as written; FITS, Parquet: "column=value, …" of the mapped columns
 }
 
 // RejectSink receives every rejected row. An error it returns stops the

@@ -1,4 +1,4 @@
-package catalog
+package disk
 
 import "math"
 
@@ -77,7 +77,7 @@ func ICRSToGalactic(raDeg, decDeg float64) (lDeg, bDeg float64) {
 }
 
 // GalacticToICRS is the inverse of ICRSToGalactic: the transpose of the
-// same rotation. Used to give invented mock catalogs sky positions.
+// same rotation. Used to give simulated and mock catalogs sky positions.
 func GalacticToICRS(lDeg, bDeg float64) (raDeg, decDeg float64) {
 	l, b := lDeg*math.Pi/180, bDeg*math.Pi/180
 	cb := math.Cos(b)

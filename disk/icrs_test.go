@@ -1,4 +1,4 @@
-package catalog
+package disk
 
 import (
 	"encoding/csv"
@@ -18,7 +18,7 @@ func angSepDeg(l1, b1, l2, b2 float64) float64 {
 	return 2 * math.Asin(math.Sqrt(h)) / r
 }
 
-func readCSVRecords(t *testing.T, path string) [][]string {
+func readReference(t *testing.T, path string) [][]string {
 	t.Helper()
 	f, err := os.Open(path)
 	require.NoError(t, err)
@@ -31,7 +31,7 @@ func readCSVRecords(t *testing.T, path string) [][]string {
 }
 
 func TestICRSToGalacticAgainstAstropy(t *testing.T) {
-	recs := readCSVRecords(t, "../../testdata/icrs_galactic_reference.csv")
+	recs := readReference(t, "../testdata/icrs_galactic_reference.csv")
 	require.Greater(t, len(recs), 100)
 	for _, r := range recs {
 		v := make([]float64, 4)
@@ -64,7 +64,7 @@ func TestICRSToGalacticLandmarks(t *testing.T) {
 // The inverse rotation takes astropy's Galactic positions back to the ICRS
 // positions they came from.
 func TestGalacticToICRSAgainstAstropy(t *testing.T) {
-	recs := readCSVRecords(t, "../../testdata/icrs_galactic_reference.csv")
+	recs := readReference(t, "../testdata/icrs_galactic_reference.csv")
 	for _, r := range recs {
 		v := make([]float64, 4)
 		for i := range v {
