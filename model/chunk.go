@@ -49,6 +49,14 @@ type Chunk struct {
 	Index int // position in the run; fixes the chunk's random stream
 	N     int
 
+	// StarID numbers every star of the run from 1 in chunk order
+	// (Index·chunk size + i + 1), set by RunChunks: the same star has the
+	// same number in the catalog of a run and in a mock catalog of the same
+	// scenario and seed, whatever the thread count or the split of the run.
+	// Stored as float64 like every column: exact up to 2⁵³, far above the
+	// largest run a scenario allows.
+	StarID []float64
+
 	AgeBin        []int32
 	AgeGyr        []float64
 	MassMsun      []float64

@@ -5,6 +5,8 @@ import (
 	"math"
 	"slices"
 	"sync"
+
+	"spinpop/disk"
 )
 
 // Column is one per-star quantity as a catalog lists it. The table of
@@ -29,6 +31,11 @@ type Column struct {
 	Derived func(c *Chunk, i int) float64
 	Flag    Flag
 	Words   func(f Flag) string
+
+	// Integer marks a Stored or Derived column whose values are whole
+	// numbers (an identifier): writers write them as integers (Int64 in
+	// FITS and Parquet), not as rounded floats.
+	Integer bool
 
 	// Reset says when Fill sets a stored column to NaN before the stars of
 	// a chunk are made: quantities worked out only for stars that pass the
@@ -73,6 +80,7 @@ func (col *Column) IsWords() bool { return col.Words != nil }
 
 // builtinColumns are the catalog's columns, in file order.
 var builtinColumns = []Column{
+	{Name: "star_id", Doc: "the star's number in the run (from 1, in generation order): the same star has the same number in mock catalogs of the same scenario and seed", Stored: func(c *Chunk) *[]float64 { return &c.StarID }, Integer: true},
 	{Name: "mass_msun", Unit: "solMass", Doc: "mass of the (primary) star", Stored: func(c *Chunk) *[]float64 { return &c.MassMsun }},
 	{Name: "companion_mass_msun", Unit: "solMass", Doc: "mass of an unresolved companion; 0 when single", Stored: func(c *Chunk) *[]float64 { return &c.CompanionMsun }},
 	{Name: "age_gyr", Unit: "Gyr", Doc: "age", Stored: func(c *Chunk) *[]float64 { return &c.AgeGyr }},
@@ -89,6 +97,8 @@ var builtinColumns = []Column{
 	{Name: "distance_pc", Unit: "pc", Doc: "distance from the Sun", Stored: func(c *Chunk) *[]float64 { return &c.DistPc }},
 	{Name: "l_deg", Unit: "deg", Doc: "Galactic longitude", Stored: func(c *Chunk) *[]float64 { return &c.LDeg }, Reset: ResetJointDraw},
 	{Name: "b_deg", Unit: "deg", Doc: "Galactic latitude", Stored: func(c *Chunk) *[]float64 { return &c.BDeg }, Reset: ResetJointDraw},
+	{Name: "ra_deg", Unit: "deg", Doc: "right ascension (ICRS)", Derived: func(c *Chunk, i int) float64 { ra, _ := icrsOf(c, i); return ra }},
+	{Name: "dec_deg", Unit: "deg", Doc: "declination (ICRS)", Derived: func(c *Chunk, i int) float64 { _, dec := icrsOf(c, i); return dec }},
 	{Name: "z_pc", Unit: "pc", Doc: "height above the Galactic midplane", Stored: func(c *Chunk) *[]float64 { return &c.ZPc }},
 	{Name: "period_true_d", Unit: "d", Doc: "true rotation period", Stored: func(c *Chunk) *[]float64 { return &c.PeriodD }, Reset: ResetAlways},
 	{Name: "period_measured_d", Unit: "d", Doc: "period the survey reports", Stored: func(c *Chunk) *[]float64 { return &c.MeasPeriodD }, Reset: ResetAlways},
@@ -105,6 +115,16 @@ var builtinColumns = []Column{
 // chunkOnlyColumns are stored in a chunk but not written to a catalog.
 var chunkOnlyColumns = []func(c *Chunk) *[]float64{
 	func(c *Chunk) *[]float64 { return &c.DetectProb },
+}
+
+// icrsOf returns star i's ICRS position from its Galactic one (NaN when
+// it has none).
+func icrsOf(c *Chunk, i int) (raDeg, decDeg float64) {
+	l, b := c.LDeg[i], c.BDeg[i]
+	if math.IsNaN(l) || math.IsNaN(b) {
+		return math.NaN(), math.NaN()
+	}
+	return disk.GalacticToICRS(l, b)
 }
 
 func aliasWord(f Flag) string {

@@ -110,6 +110,10 @@ func RunChunkRange(ctx context.Context, seed uint64, nStars int64, chunkStars in
 				c.grow(n)
 				c.Index = ci
 				fill(c, ChunkStream(seed, ci))
+				first := int64(ci) * int64(chunkStars)
+				for k := range c.N {
+					c.StarID[k] = float64(first + int64(k) + 1)
+				}
 				ready[i%window] <- c
 			}
 		}()

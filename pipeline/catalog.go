@@ -56,6 +56,8 @@ func (cw *CatalogWriter) Add(c *model.Chunk) error {
 				} else {
 					b = append(b, '0')
 				}
+			case col.Integer:
+				b = strconv.AppendInt(b, int64(col.Float(c, i)), 10)
 			default:
 				b = appendFloat(b, col.Float(c, i))
 			}

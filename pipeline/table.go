@@ -6,8 +6,8 @@ import (
 )
 
 // CatalogTableColumns are the catalog's columns (model.CatalogColumns) as
-// tablewrite describes them: numbers as float64 with their units, flags as
-// booleans, words as strings.
+// tablewrite describes them: numbers as float64 with their units, whole
+// numbers (identifiers) as int64, flags as booleans, words as strings.
 func CatalogTableColumns() []tablewrite.Column {
 	cols := model.CatalogColumns()
 	out := make([]tablewrite.Column, len(cols))
@@ -17,6 +17,8 @@ func CatalogTableColumns() []tablewrite.Column {
 			out[i] = tablewrite.Column{Name: c.Name, Kind: tablewrite.String, Width: len("double")}
 		case c.Flag != 0:
 			out[i] = tablewrite.Column{Name: c.Name, Kind: tablewrite.Bool}
+		case c.Integer:
+			out[i] = tablewrite.Column{Name: c.Name, Unit: c.Unit, Kind: tablewrite.Int64}
 		default:
 			out[i] = tablewrite.Column{Name: c.Name, Unit: c.Unit, Kind: tablewrite.Float64}
 		}
@@ -53,6 +55,8 @@ func (t *TableCatalog) Add(c *model.Chunk) error {
 				t.w.SetString(j, col.Words(f))
 			case col.Flag != 0:
 				t.w.SetBool(j, f&col.Flag != 0)
+			case col.Integer:
+				t.w.SetInt64(j, int64(col.Float(c, i)))
 			default:
 				t.w.SetFloat64(j, col.Float(c, i))
 			}

@@ -3,6 +3,7 @@ package main
 import (
 	"bytes"
 	"encoding/json"
+	"math"
 	"os"
 	"path/filepath"
 	"runtime"
@@ -12,6 +13,8 @@ import (
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
+
+	"spinpop/disk"
 )
 
 // smallScenario writes a quick scenario that extends nothing (the examples
@@ -160,7 +163,35 @@ func TestSimulateOutputsAndManifest(t *testing.T) {
 	require.NoError(t, err)
 	lines := strings.Split(strings.TrimSpace(string(cat)), "\n")
 	assert.Equal(t, int(man.CatalogStars)+1, len(lines), "one row per catalog star plus the header")
-	assert.True(t, strings.HasPrefix(lines[0], "mass_msun,"), lines[0])
+	assert.True(t, strings.HasPrefix(lines[0], "star_id,mass_msun,"), lines[0])
+
+	// Every star is traceable: ids increase through the catalog (generation
+	// order), and the ICRS position is the Galactic one turned by the
+	// rotation checked against astropy (disk/icrs_test.go); six significant
+	// digits in the file allow 1e-3°.
+	head := strings.Split(lines[0], ",")
+	col := map[string]int{}
+	for i, h := range head {
+		col[h] = i
+	}
+	prev := int64(0)
+	for _, line := range lines[1:] {
+		f := strings.Split(line, ",")
+		id, err := strconv.ParseInt(f[col["star_id"]], 10, 64)
+		require.NoError(t, err, "star_id is an integer: %q", f[col["star_id"]])
+		require.Greater(t, id, prev)
+		require.LessOrEqual(t, id, man.Counts[0].Stars)
+		prev = id
+		num := func(name string) float64 {
+			x, err := strconv.ParseFloat(f[col[name]], 64)
+			require.NoError(t, err, name)
+			return x
+		}
+		l, b := disk.ICRSToGalactic(num("ra_deg"), num("dec_deg"))
+		dl := math.Abs(l - num("l_deg"))
+		require.Less(t, math.Min(dl, 360-dl)*math.Cos(b*math.Pi/180), 1e-3, line)
+		require.InDelta(t, num("b_deg"), b, 1e-3, line)
+	}
 }
 
 func TestGyrochronesCSV(t *testing.T) {
