@@ -1,6 +1,10 @@
 package model
 
-import "spinpop/disk"
+import (
+	"unsafe"
+
+	"spinpop/disk"
+)
 
 // Flag bits record what happened to a star on its way through the survey,
 // so a catalog row says why a star was or was not kept. The catalog's
@@ -119,4 +123,12 @@ func (c *Chunk) grow(n int) {
 	}
 	c.Flags = c.Flags[:n]
 	c.N = n
+}
+
+// ChunkBytesPerStar is the memory a chunk holds per star: one float64 per
+// stored column, the age bin, the flags and the drawn direction. A run
+// holds two chunks per worker (RunChunks), so its chunk memory is
+// 2 × workers × chunk size × this.
+func ChunkBytesPerStar() int {
+	return 8*len(storedColumns) + int(unsafe.Sizeof(int32(0))+unsafe.Sizeof(Flag(0))+unsafe.Sizeof(disk.Direction{}))
 }

@@ -348,3 +348,17 @@ func TestNumChunksNearMaxInt64(t *testing.T) {
 	assert.Equal(t, int(math.MaxInt64), NumChunks(math.MaxInt64, 1))
 	assert.Equal(t, 3, NumChunks(5, 2))
 }
+
+// ChunkBytesPerStar must match what a chunk actually allocates (measured
+// by the runtime's allocation counter), since run memory is estimated
+// from it.
+func TestChunkBytesPerStarMatchesAllocation(t *testing.T) {
+	const n = 1 << 16
+	var before, after runtime.MemStats
+	runtime.ReadMemStats(&before)
+	c := NewChunk(n)
+	runtime.ReadMemStats(&after)
+	got := float64(after.TotalAlloc-before.TotalAlloc) / n
+	assert.InEpsilon(t, float64(ChunkBytesPerStar()), got, 0.02, "allocated %.1f bytes per star", got)
+	runtime.KeepAlive(c)
+}

@@ -38,6 +38,10 @@ type SimulateOptions struct {
 	// whole run would make them (one part of a run split across machines;
 	// see MergeParts). The tally and catalogue are then the part's.
 	Chunks *model.ChunkRange
+	// Estimated, if set, is handed the run's estimated cost (EstimateRun)
+	// before any star is made; an error from it stops the run (for
+	// instance Estimate.Refusal).
+	Estimated func(Estimate) error
 }
 
 // Simulation is what a simulated scenario gives: the run objects, the
@@ -184,6 +188,11 @@ func Simulate(ctx context.Context, res *scenarios.Resolved, opts SimulateOptions
 		total = min(int64(r.Last)*int64(s.Run.ChunkStars), s.Run.StarsGenerated) - int64(r.First)*int64(s.Run.ChunkStars)
 		run = func(fill model.FillFunc, visit func(*model.Chunk) error) error {
 			return model.RunChunkRange(ctx, s.Run.Seed, s.Run.StarsGenerated, s.Run.ChunkStars, *r, workers, fill, visit)
+		}
+	}
+	if opts.Estimated != nil {
+		if err := opts.Estimated(EstimateRun(built, total, s.Run.ChunkStars, workers, opts.KeepCatalog)); err != nil {
+			return nil, err
 		}
 	}
 	err = run(built.Population.Fill,

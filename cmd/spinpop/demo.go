@@ -41,7 +41,7 @@ func runDemo(args []string, stdout, stderr io.Writer) error {
 			return err
 		}
 		fmt.Fprintf(stdout, "== example:%s → %s\n", name, dir)
-		sum, err := simulate(res, "example:"+name, dir, runtime.GOMAXPROCS(0), stderr)
+		sum, err := simulate(res, "example:"+name, dir, runtime.GOMAXPROCS(0), nil, stderr)
 		if err != nil {
 			return err
 		}

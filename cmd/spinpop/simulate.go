@@ -29,6 +29,7 @@ func runSimulate(args []string, stdout, stderr io.Writer) error {
 	force := fs.Bool("force", false, "write into a non-empty folder, replacing this tool's files there")
 	workers := fs.Int("threads", runtime.GOMAXPROCS(0), "worker threads (results do not depend on it)")
 	split := addSplitFlags(fs) // simulate_split.go: one run across machines
+	yes := fs.Bool("yes", false, "start the run even when its estimated memory or time is beyond this machine")
 	pos, err := parseInterleaved(fs, args)
 	if err != nil {
 		return err
@@ -56,14 +57,15 @@ func runSimulate(args []string, stdout, stderr io.Writer) error {
 	if err := prepareOutDir(*out, *force); err != nil {
 		return err
 	}
-	sum, err := simulate(res, path, *out, *workers, stderr)
+	sum, err := simulate(res, path, *out, *workers, estimateGate(stderr, *yes), stderr)
 	if err != nil {
 		return err
 	}
 	return printSummary(stdout, sum, *asJSON)
 }
 
-func simulate(res *scenarios.Resolved, path, dir string, workers int, stderr io.Writer) (*pipeline.Manifest, error) {
+// gate, if not nil, sees the run's estimate before it starts (estimateGate).
+func simulate(res *scenarios.Resolved, path, dir string, workers int, gate func(pipeline.Estimate) error, stderr io.Writer) (*pipeline.Manifest, error) {
 	s := &res.Scenario
 	catPath := filepath.Join(dir, "catalog.csv")
 	var cat *pipeline.CatalogWriter
@@ -87,7 +89,8 @@ func simulate(res *scenarios.Resolved, path, dir string, workers int, stderr io.
 	bar := newProgressBar("simulating", s.Run.StarsGenerated)
 	sim, err := pipeline.Simulate(ctx, res, pipeline.SimulateOptions{
 		Source: path, Workers: workers,
-		Progress: func(done, _ int64) { bar.Update(done) },
+		Progress:  func(done, _ int64) { bar.Update(done) },
+		Estimated: gate,
 		Visit: func(c *model.Chunk) error {
 			// Streamed, so memory does not grow with the catalog; a
 			// catalog over the limit stops being written.

@@ -41,7 +41,7 @@ func (w *pointWorker) Work(ctx context.Context, p *sweep.Point, steps []string, 
 	var h sweep.Headline
 	label := fmt.Sprintf("sweep point %d (%.12s)", p.Index, p.Hash)
 	if slices.Contains(steps, sweep.StepSimulate) {
-		m, err := simulate(p.Scenario, label, dir, w.threads, io.Discard)
+		m, err := simulate(p.Scenario, label, dir, w.threads, nil, io.Discard) // a sweep was planned: no estimate per point
 		if err != nil {
 			return h, err
 		}
