@@ -18,8 +18,10 @@ import (
 )
 
 // The Slurm tests submit real job arrays whose tasks are this test binary
-// in another role (envRole): a stand-in for the workflow until the
-// command-line program's sweep command is wired to it.
+// in another role (envRole), with work that does nothing but report, so
+// that the package's own machinery is tested alone; cmd/spinpop's
+// slurm_test.go sends the program itself (spinpop sweep --slurm,
+// simulate --slurm).
 const envRole = "SPINPOP_SWEEP_TEST_ROLE"
 
 func TestMain(m *testing.M) {
