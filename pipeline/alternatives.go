@@ -118,7 +118,7 @@ func onCommonCells(comps []*Comparison) ([]*Comparison, error) {
 		}
 		d.Observed = &obs
 		if changed {
-			l, err := c.Likelihood.WithCounts(obs.Counts)
+			l, err := compare.NewLikelihood(c.Templates, obs.Counts, assemble.LikeOptions(c.Scenario))
 			if err != nil {
 				return nil, InputError{fmt.Errorf("%s: %w", c.Source, err)}
 			}

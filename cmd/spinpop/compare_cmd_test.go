@@ -156,7 +156,11 @@ func TestTestAlternativesInsideOneScenario(t *testing.T) {
 	if testing.Short() {
 		t.Skip("builds templates under two laws and bootstraps both; skipped with -short")
 	}
-	sc := fitScenario(t, `
+	// Each law masks the cells below its own young gyrochrone, so the two
+	// explanations leave out different cells unless they are made to
+	// score the same stars.
+	sc := fitScenario(t, `mask_below_age_gyr = 0.1
+
 [[compare.alternatives]]
 name = "stall"
 set = ["spin.law=torque", "spin.stall.enabled=true"]
@@ -183,6 +187,13 @@ drop = ["burst"]
 	assert.Contains(t, res.Fits[1].Scenario, `alternative "stall"`)
 	assert.Equal(t, res.Fits[0].K-3, res.Fits[1].K, "the stall is fitted without the burst's age, width and fraction")
 	assert.Equal(t, "fit-small", res.Best, "the catalog was made with a burst under the empirical law: %s", stdout)
+	var data struct {
+		Data struct {
+			Compared int `json:"stars_compared"`
+		} `json:"data"`
+	}
+	require.NoError(t, json.Unmarshal(b, &data))
+	assert.Positive(t, data.Data.Compared)
 
 	// Without alternatives, one scenario is not a comparison.
 	plain := fitScenario(t, "")
