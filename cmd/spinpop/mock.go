@@ -12,17 +12,20 @@ import (
 )
 
 func runMock(args []string, stdout, stderr io.Writer) error {
-	fs := newFlagSet("mock", "mock SCENARIO --out FILE --stars N [--seed N] [--parallax-error-mas X]",
+	fs := newFlagSet("mock", "mock SCENARIO --out FILE --stars N [--seed N] [--parallax-error-mas X] [--truth]",
 		"Draw a mock observed catalog of N catalog stars from a scenario — selection included — in\n"+
-			"the form an observed catalog takes: period, B−V, apparent V, parallax (with Gaussian error)\n"+
-			"and ICRS position. Use it to make invented test catalogs, or to see what a catalog of your\n"+
-			"size would look like under a hypothesis. The first N catalog stars in chunk order are\n"+
-			"kept, which is a random subsample.", stdout)
+			"the form an observed catalog takes: star id, period, B−V, apparent V, parallax (with\n"+
+			"Gaussian error) and ICRS position. Use it to make invented test catalogs, or to see what a\n"+
+			"catalog of your size would look like under a hypothesis. The first N catalog stars in\n"+
+			"chunk order are kept, which is a random subsample. With --truth the file also holds what\n"+
+			"only the model knows (true age, mass, binarity, true period, detected) and the observed\n"+
+			"stars whose period the survey did not measure (detected = 0, period empty).", stdout)
 	out := fs.String("out", "", "catalog file to write (must not exist unless --force)")
 	n := fs.Int64("stars", 0, "catalog stars to keep")
 	seed := fs.Uint64("seed", 0, "random seed, overriding run.seed (0 keeps the scenario's)")
 	plxErr := fs.Float64("parallax-error-mas", 0.02, "standard deviation of the parallax error (mas)")
 	force := fs.Bool("force", false, "replace an existing file")
+	truth := fs.Bool("truth", false, "add the true age, mass, binarity, period and detection, and list undetected stars too")
 	pos, err := parseInterleaved(fs, args)
 	if err != nil {
 		return err
@@ -60,7 +63,7 @@ func runMock(args []string, stdout, stderr io.Writer) error {
 	bar := newProgressBar("mock", *n)
 	err = writeFileAtomic(*out, func(w io.Writer) error {
 		var err error
-		kept, err = pipeline.Mock(ctx, res, pipeline.MockOptions{Source: path, Stars: *n, ParallaxErrorMas: *plxErr,
+		kept, err = pipeline.Mock(ctx, res, pipeline.MockOptions{Source: path, Stars: *n, ParallaxErrorMas: *plxErr, Truth: *truth,
 			Workers: runtime.GOMAXPROCS(0), Built: built, Progress: func(k, _ int64) { bar.Update(k) }}, w)
 		return err
 	})
@@ -71,6 +74,10 @@ func runMock(args []string, stdout, stderr io.Writer) error {
 		}
 		return err
 	}
-	fmt.Fprintf(stdout, "wrote %d stars to %s\n", kept, *out)
+	if *truth {
+		fmt.Fprintf(stdout, "wrote %d catalog stars to %s, with the truth and the observed stars not in the catalog\n", kept, *out)
+	} else {
+		fmt.Fprintf(stdout, "wrote %d stars to %s\n", kept, *out)
+	}
 	return nil
 }
