@@ -13,6 +13,7 @@ import (
 	"gonum.org/v1/gonum/stat/distuv"
 
 	"spinpop/compare/stats"
+	"spinpop/internal/workerpanic"
 )
 
 // TestOptions control BurstTest.
@@ -384,10 +385,12 @@ func parallelReplicates(ctx context.Context, n, workers int, progress func(done,
 	jobs := make(chan int)
 	done := make(chan error)
 	var wg sync.WaitGroup
+	panics := workerpanic.New(cancel)
 	for range workers {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
+			defer panics.Catch()
 			scratch := make([]float64, scratchLen)
 			for i := range jobs {
 				if inner.Err() != nil {
@@ -424,6 +427,7 @@ func parallelReplicates(ctx context.Context, n, workers int, progress func(done,
 			progress(finished, n)
 		}
 	}
+	panics.Repanic()
 	if firstErr != nil {
 		return firstErr
 	}

@@ -120,6 +120,21 @@ func (t *Templates) check() error {
 // then two builders cannot corrupt the file: each writes its own temporary
 // file and renames it into place whole, and both write the same bytes.
 func Cached(dir, key string, build func() (*Templates, error)) (*Templates, bool, error) {
+	return CachedOrBuild(dir, key, build, nil)
+}
+
+// CacheError is a template cache that cannot be used (a folder that
+// cannot be made or written, a full disk): the templates are still good.
+type CacheError struct{ Err error }
+
+func (e *CacheError) Error() string { return "template cache: " + e.Err.Error() }
+func (e *CacheError) Unwrap() error { return e.Err }
+
+// CachedOrBuild is Cached that, with warn set, treats a cache it cannot
+// create, lock or write as no cache: warn is told (a *CacheError) and the
+// templates are built, or kept once built, and returned. A cache is a
+// convenience; a run should not fail for it.
+func CachedOrBuild(dir, key string, build func() (*Templates, error), warn func(error)) (*Templates, bool, error) {
 	if err := checkKey(key); err != nil {
 		return nil, false, err
 	}
@@ -128,9 +143,20 @@ func Cached(dir, key string, build func() (*Templates, error)) (*Templates, bool
 		return t, true, nil
 	}
 	if err := os.MkdirAll(dir, 0o755); err != nil {
-		return nil, false, fmt.Errorf("compare: template cache directory: %w", err)
+		err = fmt.Errorf("compare: template cache directory: %w", err)
+		if warn == nil {
+			return nil, false, err
+		}
+		warn(&CacheError{err})
+		t, err := build()
+		return t, false, err
 	}
 	lk, t, err := lockOrWait(path, key)
+	if err != nil && warn != nil {
+		warn(&CacheError{err})
+		t, err := build()
+		return t, false, err
+	}
 	if err != nil || t != nil {
 		return t, t != nil, err
 	}
@@ -145,7 +171,10 @@ func Cached(dir, key string, build func() (*Templates, error)) (*Templates, bool
 	}
 	t.Key = key
 	if err := writeTemplates(dir, path, t); err != nil {
-		return nil, false, err
+		if warn == nil {
+			return nil, false, err
+		}
+		warn(&CacheError{err})
 	}
 	return t, false, nil
 }

@@ -174,3 +174,24 @@ func TestCachedConcurrentProcesses(t *testing.T) {
 	assert.Equal(t, 1, strings.Count(string(log), "pid "), "exactly one process built: %s", log)
 	assert.Equal(t, procs-1, reusedCount)
 }
+
+// A cache that cannot be made (here its folder would sit below a plain
+// file, which fails for root too) is no cache: the templates are built,
+// the caller is warned, and the run goes on.
+func TestCachedOrBuildWithoutUsableCache(t *testing.T) {
+	tpl := randomTemplates(t, 3, 2, 4, 0, 4, 3)
+	file := filepath.Join(t.TempDir(), "plain-file")
+	require.NoError(t, os.WriteFile(file, nil, 0o644))
+	var warned []error
+	got, reused, err := CachedOrBuild(filepath.Join(file, "cache"), "k", func() (*Templates, error) { c := *tpl; return &c, nil },
+		func(e error) { warned = append(warned, e) })
+	require.NoError(t, err)
+	assert.False(t, reused)
+	assert.Equal(t, tpl.Counts, got.Counts)
+	require.Len(t, warned, 1)
+	var ce *CacheError
+	assert.True(t, errors.As(warned[0], &ce))
+	// Without a warn function the old contract holds: the error is returned.
+	_, _, err = Cached(filepath.Join(file, "cache"), "k", func() (*Templates, error) { c := *tpl; return &c, nil })
+	assert.Error(t, err)
+}

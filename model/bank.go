@@ -10,6 +10,7 @@ import (
 	"sync"
 	"sync/atomic"
 
+	"spinpop/internal/workerpanic"
 	"spinpop/model/spin"
 	"spinpop/model/spots"
 )
@@ -249,10 +250,12 @@ func (b *Bank) Observe(ctx context.Context, obs *Population, g Grid, opts Observ
 	vars = make([]float64, nk*nb)
 	var next atomic.Int64
 	var wg sync.WaitGroup
+	panics := workerpanic.New(nil)
 	for range workers {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
+			defer panics.Catch()
 			var lawSrc, spotSrc rand.PCG
 			lawR, spotR := rand.New(&lawSrc), rand.New(&spotSrc)
 			fine := make([]float64, ob.nC*ob.nZ*ob.nF)
@@ -270,6 +273,7 @@ func (b *Bank) Observe(ctx context.Context, obs *Population, g Grid, opts Observ
 		}()
 	}
 	wg.Wait()
+	panics.Repanic()
 	if err := ctx.Err(); err != nil {
 		return nil, nil, err
 	}

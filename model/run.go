@@ -7,6 +7,8 @@ import (
 	"math/rand/v2"
 	"runtime"
 	"sync"
+
+	"spinpop/internal/workerpanic"
 )
 
 // ChunkStream returns the random stream of chunk i of a run with the given
@@ -81,6 +83,7 @@ func RunChunkRange(ctx context.Context, seed uint64, nStars int64, chunkStars in
 	}
 	ctx, cancel := context.WithCancel(ctx)
 	defer cancel()
+	panics := workerpanic.New(cancel)
 
 	next := make(chan int)
 	var wg sync.WaitGroup
@@ -88,6 +91,7 @@ func RunChunkRange(ctx context.Context, seed uint64, nStars int64, chunkStars in
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
+			defer panics.Catch()
 			for {
 				// Take a free chunk before taking an index: then every index
 				// handed out already has memory to fill, and the in-order
@@ -153,5 +157,6 @@ func RunChunkRange(ctx context.Context, seed uint64, nStars int64, chunkStars in
 	}()
 	wg.Wait()
 	close(free)
+	panics.Repanic()
 	return err
 }

@@ -64,6 +64,9 @@ type ComparisonOptions struct {
 	WriteRejected func(write func(w io.Writer) error) error
 	// TemplateProgress, if set, is told how many template stars are done.
 	TemplateProgress func(done, total int64)
+	// Warn, if set, is told of trouble the run goes on without (a
+	// template cache that cannot be written, say).
+	Warn func(msg string)
 }
 
 // RequireData checks that a scenario names an observed catalog.
@@ -138,7 +141,11 @@ func SetupComparison(ctx context.Context, res *scenarios.Resolved, opts Comparis
 	case opts.TemplateDir == "" || opts.TemplateDir == "none":
 		c.Templates, err = build()
 	default:
-		c.Templates, c.TemplatesReused, err = compare.Cached(opts.TemplateDir, key, build)
+		c.Templates, c.TemplatesReused, err = compare.CachedOrBuild(opts.TemplateDir, key, build, func(e error) {
+			if opts.Warn != nil {
+				opts.Warn(fmt.Sprintf("%v; going on without the cache (choose another folder with --templates, or --templates none)", e))
+			}
+		})
 		c.TemplateFile = filepath.Join(opts.TemplateDir, key+".tpl")
 	}
 	if err != nil {
@@ -146,6 +153,16 @@ func SetupComparison(ctx context.Context, res *scenarios.Resolved, opts Comparis
 			return nil, fmt.Errorf("interrupted while building templates; nothing was written")
 		}
 		return nil, fmt.Errorf("templates: %w", err)
+	}
+	if empty(c.Templates.Counts) {
+		// The model, not the data, is empty: say so, with the step
+		// that removed the last star, before the data are blamed.
+		counts, err := SelectionCounts(ctx, res, arg, min(s.Compare.TemplateStars, 1_000_000), workers)
+		if err != nil {
+			return nil, err
+		}
+		return nil, InputError{fmt.Errorf("%s: %w; the observed catalog is not at fault and was not compared",
+			arg, &EmptySelection{What: fmt.Sprintf("the model (none of its %d template stars; the table below is of a run of %d)", c.Templates.StarsDrawn, counts[0].Stars), Counts: counts})}
 	}
 	if s.Compare.MaskAgeGyr > 0 {
 		c.Mask = compare.YoungMask(c.Space, c.GyrochroneAt(s.Compare.MaskAgeGyr), s.Compare.MaskMarginDex)

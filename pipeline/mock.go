@@ -48,6 +48,11 @@ type MockOptions struct {
 
 var errEnough = errors.New("enough stars")
 
+// MockDrawFactor bounds a mock's draw: at most this many times
+// run.stars_generated stars are drawn, so that a scenario whose survey
+// selects (almost) nothing ends instead of drawing for ever.
+const MockDrawFactor = 1000
+
 // Mock writes to w a mock observed catalog of the scenario's first
 // o.Stars catalog stars in chunk order (a random subsample), as CSV with
 // comment lines: star id, period, B−V, apparent V, parallax with Gaussian
@@ -81,7 +86,7 @@ func Mock(ctx context.Context, res *scenarios.Resolved, o MockOptions, w io.Writ
 	bw.WriteByte('\n')
 	const observed = model.FlagInMagRange | model.FlagInColorRange | model.FlagOnMainSeq
 	var buf []byte
-	err := model.RunChunks(ctx, s.Run.Seed, s.Run.StarsGenerated*1000, s.Run.ChunkStars, workers, built.Population.Fill,
+	err := model.RunChunks(ctx, s.Run.Seed, s.Run.StarsGenerated*MockDrawFactor, s.Run.ChunkStars, workers, built.Population.Fill,
 		func(c *model.Chunk) error {
 			// Parallax errors come from a stream of their own, tied to
 			// the chunk, so the mock is as reproducible as the run.

@@ -275,6 +275,10 @@ func (sim *Simulation) fillManifest(source string, workers int, elapsed float64,
 	for k := range tally.ColorEligible {
 		m.DetectedByBV = append(m.DetectedByBV, ColorFraction{tally.ColorEdges[k], tally.ColorEdges[k+1], tally.ColorEligible[k], tally.ColorDetected[k]})
 	}
+	if tally.Selected() == 0 {
+		// First, since every other number describes a survey that saw nothing.
+		m.Warnings = append(m.Warnings, (&EmptySelection{What: "the catalog", Counts: m.Counts}).Error())
+	}
 	m.Warnings = append(m.Warnings, rangeWarnings(s, built, tally)...)
 
 	sim.Gyrochrones = model.Gyrochrones(built.Law, built.Relations, s.Output.GyrochroneAgesGyr, s.Cuts.BVMin, s.Cuts.BVMax, 60)

@@ -1,17 +1,12 @@
 package main
 
 import (
-	"slices"
-
-	"spinpop/scenarios"
-
-	"context"
 	"fmt"
 	"io"
 	"math"
-	"os"
-	"os/signal"
-	"path/filepath"
+	"slices"
+
+	"spinpop/scenarios"
 
 	"gonum.org/v1/plot/vg"
 
@@ -45,7 +40,7 @@ func runTestAlternatives(args []string, stdout, stderr io.Writer) error {
 	if *reps < 20 {
 		return usageErrorf("--replicates = %d: the bootstrap needs at least 20 replicates per explanation (200 or more to judge goodness of fit at 1 %%)", *reps)
 	}
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
+	ctx, stop := signalContext()
 	defer stop()
 	explanations, err := explanationsOf(pos, cf)
 	if err != nil {
@@ -54,28 +49,31 @@ func runTestAlternatives(args []string, stdout, stderr io.Writer) error {
 	if len(explanations) < 2 {
 		return usageErrorf("test-alternatives needs at least two explanations; %s names no [[compare.alternatives]], so give a second scenario or add alternatives to it (see example:fit)", pos[0])
 	}
+	// One output folder for every explanation: each setup writes the same
+	// rejected.csv (the explanations must read the same catalog with the
+	// same cuts), the last one kept.
+	of := newOutFolder(cf, "alternatives.json", stdout, stderr)
+	defer of.close()
 	var comps []*pipeline.Comparison
-	for i, e := range explanations {
-		f := cf
-		if i > 0 {
-			force := true
-			f.force = &force // the folder is this run's own by now
-		}
-		c, err := setupResolved(ctx, e.res, e.arg, f, stderr)
+	for _, e := range explanations {
+		c, err := setupResolved(ctx, e.res, e.arg, cf, of, stderr)
 		if err != nil {
 			return err
 		}
 		comps = append(comps, c)
 	}
+	out := of.set
 	bar := newProgressBar("bootstrap", int64(*reps*len(comps)))
 	o, err := pipeline.TestAlternatives(ctx, comps, pipeline.AlternativesOptions{Replicates: *reps,
 		Progress: func(done, _ int) { bar.Update(int64(done)) }})
 	bar.Done()
 	if err != nil {
+		if ctx.Err() != nil {
+			return interrupted(of.dir)
+		}
 		return err
 	}
 	res := o.Result
-	dir := *cf.out
 	models := map[string][]float64{}
 	var names []string
 	for i, a := range o.Alternatives {
@@ -86,10 +84,9 @@ func runTestAlternatives(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	if err := writeFigure(filepath.Join(dir, "alternatives_period_histograms.png"), grid, 34*vg.Centimeter, 18*vg.Centimeter); err != nil {
+	if err := writeFigure(out, "alternatives_period_histograms.png", grid, 34*vg.Centimeter, 18*vg.Centimeter); err != nil {
 		return err
 	}
-	outputs := []string{"rejected.csv", "alternatives_period_histograms.png"}
 	// Where each alternative differs from the first, on the plane.
 	var diffs []*figure.Panel
 	for i := 1; i < len(names); i++ {
@@ -101,15 +98,17 @@ func runTestAlternatives(args []string, stdout, stderr io.Writer) error {
 	}
 	if len(diffs) > 0 {
 		g := figure.Rows(diffs, min(len(diffs), 3))
-		if err := writeFigure(filepath.Join(dir, "alternatives_difference.png"), g,
+		if err := writeFigure(out, "alternatives_difference.png", g,
 			vg.Length(20*min(len(diffs), 3))*vg.Centimeter, vg.Length(13*len(g))*vg.Centimeter); err != nil {
 			return err
 		}
-		outputs = append(outputs, "alternatives_difference.png")
 	}
-	outputs = append(outputs, "alternatives.json")
+	outputs := append(out.Names(), "alternatives.json")
 	rep := o.Report(outputs)
-	if err := writeJSON(filepath.Join(dir, "alternatives.json"), rep); err != nil {
+	if err := writeJSON(out, "alternatives.json", rep); err != nil {
+		return err
+	}
+	if _, err := publish(out); err != nil {
 		return err
 	}
 	if *cf.asJSON {

@@ -1,12 +1,8 @@
 package main
 
 import (
-	"context"
 	"fmt"
 	"io"
-	"os"
-	"os/signal"
-	"path/filepath"
 
 	"spinpop/compare"
 	"spinpop/pipeline"
@@ -32,12 +28,15 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
+	ctx, stop := signalContext()
 	defer stop()
-	c, err := setupComparison(ctx, path, cf, stderr)
+	of := newOutFolder(cf, "compare.json", stdout, stderr)
+	defer of.close()
+	c, err := setupComparison(ctx, path, cf, of, stderr)
 	if err != nil {
 		return err
 	}
+	out := of.set
 	if *reps < 0 {
 		return usageErrorf("--replicates must be ≥ 0")
 	}
@@ -50,23 +49,24 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	}})
 	bar.Done()
 	if err != nil {
+		if ctx.Err() != nil {
+			return interrupted(of.dir)
+		}
 		return err
 	}
 	name := c.Scenario.Name
 	sp := c.Likelihood.Space()
-	dir := *cf.out
-	var outputs []string
-	if err := writeFigure(filepath.Join(dir, "residuals.png"), dataModelResiduals(sp, sc.Counts, sc.Mu, sc.Resid, name+", "+sc.Label), 44*vg.Centimeter, 12*vg.Centimeter); err != nil {
+	if err := writeFigure(out, "residuals.png", dataModelResiduals(sp, sc.Counts, sc.Mu, sc.Resid, name+", "+sc.Label), 44*vg.Centimeter, 12*vg.Centimeter); err != nil {
 		return err
 	}
 	grid, err := periodHistsDataModel(sp, sc.Counts, map[string][]float64{name: sc.Mu}, []string{name}, 6)
 	if err != nil {
 		return err
 	}
-	if err := writeFigure(filepath.Join(dir, "period_histograms.png"), grid, 34*vg.Centimeter, 18*vg.Centimeter); err != nil {
+	if err := writeFigure(out, "period_histograms.png", grid, 34*vg.Centimeter, 18*vg.Centimeter); err != nil {
 		return err
 	}
-	outputs = append(outputs, "rejected.csv", "residuals.png", "period_histograms.png", "compare.json")
+	outputs := append(out.Names(), "compare.json")
 	params := map[string]float64{}
 	for i, n := range sc.Names {
 		params["history."+n] = sc.Theta[i]
@@ -75,20 +75,23 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 		params[n] = sc.Nuisance[i]
 	}
 	cmp := c.Scenario.Compare
-	out := map[string]any{
+	rep := map[string]any{
 		"tool": "spinpop", "version": version, "scenario": path, "scenario_sha256": c.Resolved.Hash(), "data": c.DataSummary(),
 		"history": sc.Label, "params": params, "log_l": pipeline.Finite(sc.LogL), "normalisation": cmp.Normalisation,
 		"template_noise": cmp.TemplateNoise, "pearson_chi2": sc.PearsonChi2, "bins_with_model": sc.NumBins,
 		"marginal_tests": sc.Marginals, "synthetic_catalog_stars": sc.SyntheticStars, "outputs": outputs,
 	}
 	if sc.GoodnessOfFit != nil {
-		out["goodness_of_fit"] = pipeline.AdequacyReport(*sc.GoodnessOfFit)
+		rep["goodness_of_fit"] = pipeline.AdequacyReport(*sc.GoodnessOfFit)
 	}
-	if err := writeJSON(filepath.Join(dir, "compare.json"), out); err != nil {
+	if err := writeJSON(out, "compare.json", rep); err != nil {
+		return err
+	}
+	if _, err := publish(out); err != nil {
 		return err
 	}
 	if *cf.asJSON {
-		return printJSON(stdout, out)
+		return printJSON(stdout, rep)
 	}
 	gof := sc.GoodnessOfFit
 	if gof != nil && !gof.Adequate(0.01) {

@@ -9,6 +9,7 @@ import (
 	"path/filepath"
 	"runtime"
 
+	"spinpop/internal/outset"
 	"spinpop/pipeline"
 	"spinpop/scenarios"
 )
@@ -43,10 +44,46 @@ func defaultTemplateDir() string {
 	return filepath.Join(os.TempDir(), "spinpop-templates")
 }
 
-// setupComparison loads the scenario (with its --set overrides), prepares
-// the output folder and sets the comparison up (see
-// pipeline.SetupComparison); rejected catalog rows go to DIR/rejected.csv.
-func setupComparison(ctx context.Context, arg string, f compareFlags, stderr io.Writer) (*pipeline.Comparison, error) {
+// outFolder is a command's output folder, opened (locked, checked,
+// staged) once the inputs have been checked, so that bad input leaves no
+// folder behind.
+type outFolder struct {
+	dir    string
+	force  bool
+	sub    string // subfolder of the comparison's files ("fit/" in the demo), or ""
+	report string // the command's JSON report, which also tells of an empty selection
+	asJSON bool
+	set    *outset.Set
+	stdout io.Writer
+	stderr io.Writer
+}
+
+func newOutFolder(f compareFlags, report string, stdout, stderr io.Writer) *outFolder {
+	return &outFolder{dir: *f.out, force: *f.force, report: report, asJSON: *f.asJSON, stdout: stdout, stderr: stderr}
+}
+
+func (o *outFolder) open() (*outset.Set, error) {
+	if o.set != nil {
+		return o.set, nil
+	}
+	var err error
+	o.set, err = openOutDir(o.dir, o.force, o.stderr)
+	return o.set, err
+}
+
+// close removes whatever was not published and unlocks the folder.
+func (o *outFolder) close() {
+	if o.set != nil {
+		o.set.Close()
+	}
+}
+
+// setupComparison loads the scenario (with its --set overrides), opens the
+// output folder and sets the comparison up (see pipeline.SetupComparison);
+// rejected catalog rows go to DIR/rejected.csv. A model that selects no
+// star is reported in the command's JSON report, published, and an input
+// error returned.
+func setupComparison(ctx context.Context, arg string, f compareFlags, of *outFolder, stderr io.Writer) (*pipeline.Comparison, error) {
 	var sets []string
 	if f.sets != nil {
 		sets = *f.sets
@@ -55,19 +92,20 @@ func setupComparison(ctx context.Context, arg string, f compareFlags, stderr io.
 	if err != nil {
 		return nil, err
 	}
-	return setupResolved(ctx, res, arg, f, stderr)
+	return setupResolved(ctx, res, arg, f, of, stderr)
 }
 
 // setupResolved is setupComparison for a scenario already resolved (an
 // alternative of the scenario arg).
-func setupResolved(ctx context.Context, res *scenarios.Resolved, arg string, f compareFlags, stderr io.Writer) (*pipeline.Comparison, error) {
+func setupResolved(ctx context.Context, res *scenarios.Resolved, arg string, f compareFlags, of *outFolder, stderr io.Writer) (*pipeline.Comparison, error) {
 	if *f.threads < 1 {
 		return nil, usageErrorf("--threads must be at least 1")
 	}
 	if err := pipeline.RequireData(res, arg); err != nil {
 		return nil, err
 	}
-	if err := prepareOutDir(*f.out, *f.force); err != nil {
+	out, err := of.open()
+	if err != nil {
 		return nil, err
 	}
 	var bar *progressBar
@@ -75,7 +113,7 @@ func setupResolved(ctx context.Context, res *scenarios.Resolved, arg string, f c
 	c, err := pipeline.SetupComparison(ctx, res, pipeline.ComparisonOptions{
 		Source: arg, Workers: *f.threads, TemplateDir: *f.templates,
 		WriteRejected: func(write func(io.Writer) error) error {
-			return writeFileAtomic(filepath.Join(*f.out, "rejected.csv"), write)
+			return out.Write(of.sub+"rejected.csv", write)
 		},
 		TemplateProgress: func(done, total int64) {
 			if bar == nil {
@@ -83,8 +121,16 @@ func setupResolved(ctx context.Context, res *scenarios.Resolved, arg string, f c
 			}
 			bar.Update(done)
 		},
+		Warn: func(msg string) { fmt.Fprintln(stderr, "warning:", msg) },
 	})
 	if err != nil {
+		if ctx.Err() != nil {
+			return nil, interrupted(of.dir)
+		}
+		if pipeline.IsEmptySelection(err) {
+			head := map[string]any{"tool": "spinpop", "version": version, "scenario": arg, "scenario_sha256": res.Hash()}
+			return nil, emptyOutcome(out, of.report, head, err, of.stdout, of.asJSON)
+		}
 		return nil, err
 	}
 	c.Stage = func(msg string) { fmt.Fprintf(stderr, "fit: %s\n", msg) }

@@ -1,11 +1,8 @@
 package main
 
 import (
-	"context"
 	"fmt"
 	"io"
-	"os"
-	"os/signal"
 	"path/filepath"
 	"runtime"
 )
@@ -28,7 +25,19 @@ func runDemo(args []string, stdout, stderr io.Writer) error {
 	if len(pos) > 0 {
 		return usageErrorf("demo takes no scenario; it runs the built-in examples (got %s)", wordList(pos))
 	}
-	if err := prepareOutDir(*out, *force); err != nil {
+	// The whole demo is one output set: its three subfolders appear
+	// together at the end, or not at all.
+	ctx, stop := signalContext()
+	defer stop()
+	asJSON := false
+	threads := runtime.GOMAXPROCS(0)
+	fitDir := filepath.Join(*out, "fit")
+	cf := compareFlags{out: out, templates: templates, force: force, asJSON: &asJSON, threads: &threads}
+	of := newOutFolder(cf, "fit/test.json", stdout, stderr)
+	of.sub = "fit/"
+	defer of.close()
+	set, err := of.open()
+	if err != nil {
 		return err
 	}
 	for _, name := range []string{"smooth", "burst"} {
@@ -36,12 +45,8 @@ func runDemo(args []string, stdout, stderr io.Writer) error {
 		if err != nil {
 			return err
 		}
-		dir := filepath.Join(*out, name)
-		if err := prepareOutDir(dir, *force); err != nil {
-			return err
-		}
-		fmt.Fprintf(stdout, "== example:%s → %s\n", name, dir)
-		sum, err := simulate(res, "example:"+name, dir, runtime.GOMAXPROCS(0), nil, stderr)
+		fmt.Fprintf(stdout, "== example:%s → %s\n", name, filepath.Join(*out, name))
+		sum, err := simulate(ctx, res, "example:"+name, set, name+"/", threads, nil)
 		if err != nil {
 			return err
 		}
@@ -51,14 +56,8 @@ func runDemo(args []string, stdout, stderr io.Writer) error {
 		fmt.Fprintln(stdout)
 	}
 
-	dir := filepath.Join(*out, "fit")
-	fmt.Fprintf(stdout, "== example:fit → %s: does the Larkspur catalog demand a burst?\n", dir)
-	asJSON := false
-	threads := runtime.GOMAXPROCS(0)
-	cf := compareFlags{out: &dir, templates: templates, force: force, asJSON: &asJSON, threads: &threads}
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
-	defer stop()
-	c, err := setupComparison(ctx, "example:fit", cf, stderr)
+	fmt.Fprintf(stdout, "== example:fit → %s: does the Larkspur catalog demand a burst?\n", fitDir)
+	c, err := setupComparison(ctx, "example:fit", cf, of, stderr)
 	if err != nil {
 		return err
 	}
@@ -68,10 +67,16 @@ func runDemo(args []string, stdout, stderr io.Writer) error {
 	}
 	res, err := burstTest(ctx, c, b)
 	if err != nil {
+		if ctx.Err() != nil {
+			return interrupted(*out)
+		}
 		return err
 	}
-	outputs, err := writeBurstOutputs(dir, c, res)
+	outputs, err := writeBurstOutputs(set, "fit/", c, res)
 	if err != nil {
+		return err
+	}
+	if _, err := publish(set); err != nil {
 		return err
 	}
 	printDataSummary(stdout, c.DataSummary())

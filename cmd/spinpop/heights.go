@@ -1,13 +1,9 @@
 package main
 
 import (
-	"context"
 	"fmt"
 	"io"
 	"maps"
-	"os"
-	"os/signal"
-	"path/filepath"
 
 	"spinpop/compare"
 	"spinpop/pipeline"
@@ -35,37 +31,47 @@ func runHeights(args []string, stdout, stderr io.Writer) error {
 	if *split < 0 || *split > 14 {
 		return usageErrorf("--split-age-gyr must be an age in (0, 14] Gyr")
 	}
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
+	ctx, stop := signalContext()
 	defer stop()
-	c, err := setupComparison(ctx, path, cf, stderr)
+	of := newOutFolder(cf, "heights.json", stdout, stderr)
+	defer of.close()
+	c, err := setupComparison(ctx, path, cf, of, stderr)
 	if err != nil {
 		return err
 	}
+	out := of.set
 	h, err := c.Heights(ctx, *split)
 	if err != nil {
+		if ctx.Err() != nil {
+			return interrupted(of.dir)
+		}
 		return err
 	}
 	p, err := heightPlotFit(h)
 	if err != nil {
 		return err
 	}
-	if err := writePlot(filepath.Join(*cf.out, "height_check.png"), p, 22*vg.Centimeter, 11*vg.Centimeter); err != nil {
+	if err := writePlot(out, "height_check.png", p, 22*vg.Centimeter, 11*vg.Centimeter); err != nil {
 		return err
 	}
-	out := map[string]any{
+	outputs := append(out.Names(), "heights.json")
+	rep := map[string]any{
 		"tool": "spinpop", "version": version, "scenario": path, "scenario_sha256": c.Resolved.Hash(), "data": c.DataSummary(),
-		"outputs": []string{"rejected.csv", "height_check.png", "heights.json"},
+		"outputs": outputs,
 	}
-	maps.Copy(out, pipeline.HeightReport(h))
-	if err := writeJSON(filepath.Join(*cf.out, "heights.json"), out); err != nil {
+	maps.Copy(rep, pipeline.HeightReport(h))
+	if err := writeJSON(out, "heights.json", rep); err != nil {
+		return err
+	}
+	if _, err := publish(out); err != nil {
 		return err
 	}
 	if *cf.asJSON {
-		return printJSON(stdout, out)
+		return printJSON(stdout, rep)
 	}
 	printDataSummary(stdout, c.DataSummary())
 	printHeightTable(stdout, h)
-	fmt.Fprintf(stdout, "wrote: %s\n", wordList(out["outputs"].([]string)))
+	fmt.Fprintf(stdout, "wrote: %s\n", wordList(outputs))
 	return nil
 }
 

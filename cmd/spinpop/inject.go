@@ -7,9 +7,6 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"os"
-	"os/signal"
-	"path/filepath"
 	"slices"
 	"strings"
 
@@ -22,7 +19,7 @@ import (
 const detectionP = pipeline.DetectionP
 
 func runInject(args []string, stdout, stderr io.Writer) error {
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
+	ctx, stop := signalContext()
 	defer stop()
 	return injectCmd(ctx, args, stdout, stderr)
 }
@@ -99,10 +96,13 @@ func injectCmd(ctx context.Context, args []string, stdout, stderr io.Writer) err
 		return injectionUsage(err)
 	}
 
-	c, err := setupComparison(ctx, path, cf, stderr)
+	of := newOutFolder(cf, "inject.json", stdout, stderr)
+	defer of.close()
+	c, err := setupComparison(ctx, path, cf, of, stderr)
 	if err != nil {
 		return err
 	}
+	out := of.set
 	opts := pipeline.InjectOptions{AgesGyr: ages, Fractions: fracs, Replicates: *reps, Stars: *stars,
 		Bootstrap: *boot, NullMocks: *nullMocks, Seed: *seed}
 	bar := newProgressBar("injection", int64(opts.Jobs()))
@@ -111,7 +111,7 @@ func injectCmd(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	bar.Done()
 	if err != nil {
 		if ctx.Err() != nil {
-			return fmt.Errorf("interrupted; nothing but rejected.csv was written to %s", *cf.out)
+			return interrupted(of.dir)
 		}
 		var ie *pipeline.InjectionError
 		if errors.As(err, &ie) {
@@ -120,25 +120,27 @@ func injectCmd(ctx context.Context, args []string, stdout, stderr io.Writer) err
 		return fmt.Errorf("injection–recovery: %w", err)
 	}
 
-	dir := *cf.out
 	mp, err := recoveryMapPlot(rep)
 	if err != nil {
 		return err
 	}
 	w := vg.Length(max(16, 4+3.2*float64(len(ages)))) * vg.Centimeter
 	h := vg.Length(max(11, 5+2.2*float64(len(fracs)))) * vg.Centimeter
-	if err := writeFigure(filepath.Join(dir, "recovery_map.png"), figure.One(mp), w+3*vg.Centimeter, h); err != nil {
+	if err := writeFigure(out, "recovery_map.png", figure.One(mp), w+3*vg.Centimeter, h); err != nil {
 		return err
 	}
 	bp, err := ageBiasPlotInject(rep)
 	if err != nil {
 		return err
 	}
-	if err := writePlot(filepath.Join(dir, "age_bias.png"), bp, 18*vg.Centimeter, 12*vg.Centimeter); err != nil {
+	if err := writePlot(out, "age_bias.png", bp, 18*vg.Centimeter, 12*vg.Centimeter); err != nil {
 		return err
 	}
-	rep.Outputs = []string{"rejected.csv", "recovery_map.png", "age_bias.png", "inject.json"}
-	if err := writeJSON(filepath.Join(dir, "inject.json"), rep); err != nil {
+	rep.Outputs = append(out.Names(), "inject.json")
+	if err := writeJSON(out, "inject.json", rep); err != nil {
+		return err
+	}
+	if _, err := publish(out); err != nil {
 		return err
 	}
 	if *cf.asJSON {

@@ -1,15 +1,12 @@
 package main
 
 import (
-	"context"
 	"fmt"
 	"io"
-	"os"
-	"os/signal"
-	"path/filepath"
 	"runtime"
 
 	"spinpop/internal/figure"
+	"spinpop/internal/outset"
 	"spinpop/pipeline"
 
 	"gonum.org/v1/plot/vg"
@@ -40,34 +37,91 @@ func runLaws(args []string, stdout, stderr io.Writer) error {
 	if *stars < 0 {
 		return usageErrorf("--stars must be positive")
 	}
-	if err := prepareOutDir(*out, *force); err != nil {
+	set, err := openOutDir(*out, *force, stderr)
+	if err != nil {
 		return err
 	}
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
+	defer set.Close()
+	ctx, stop := signalContext()
 	defer stop()
 
 	bars := func(label string, total int64) (func(int64), func()) {
 		bar := newProgressBar(label, total)
 		return bar.Update, bar.Done
 	}
-	fmt.Fprintf(stdout, "%-34s %10s %12s\n", "spin-down law", "catalog", "median age")
 	runs, err := pipeline.CompareLaws(ctx, res, path, *stars, runtime.GOMAXPROCS(0), bars)
 	if err != nil {
-		if pipeline.IsInputError(err) {
-			return err
+		if ctx.Err() != nil {
+			return interrupted(*out)
 		}
-		return fmt.Errorf("interrupted; nothing was written to %s", *out)
+		return err
 	}
+	type lawJSON struct {
+		Label        string               `json:"law"`
+		CatalogStars int64                `json:"catalog_stars"`
+		MedianAgeGyr *float64             `json:"median_age_gyr"` // null: no catalog star
+		Counts       []pipeline.StepCount `json:"counts"`
+	}
+	var laws []lawJSON
 	var panels []*figure.Panel
+	var lines, warnings []string
+	nonEmpty := 0
 	for _, lr := range runs {
 		t := lr.Tally
+		counts := pipeline.StepCounts(t)
+		med := pipeline.MedianFromBins(t.AgeEdgesGyr, t.AgeSelected)
+		lj := lawJSON{Label: lr.Label, CatalogStars: t.Selected(), Counts: counts}
+		if t.Selected() > 0 {
+			nonEmpty++
+			lj.MedianAgeGyr = &med
+		} else {
+			warnings = append(warnings, fmt.Sprintf("%s: %v", lr.Label, &pipeline.EmptySelection{What: "this law's catalog", Counts: counts}))
+		}
+		laws = append(laws, lj)
 		p, err := periodColorPlot(fmt.Sprintf("%s: %s stars", lr.Label, thousands(t.Selected())), t, gyroCurves(lr.Gyrochrones))
 		if err != nil {
 			return err
 		}
 		panels = append(panels, p)
-		fmt.Fprintf(stdout, "%-34s %10d %9.2f Gyr\n", lr.Label, t.Selected(), pipeline.MedianFromBins(t.AgeEdgesGyr, t.AgeSelected))
+		lines = append(lines, fmt.Sprintf("%-34s %10d %12s", lr.Label, t.Selected(), gyr(med)))
 	}
+	rep := map[string]any{"tool": "spinpop", "version": version, "scenario": path, "scenario_sha256": res.Hash(), "laws": laws}
+	var empty error
+	if nonEmpty == 0 {
+		// Said first: there is nothing to draw.
+		empty = &pipeline.EmptySelection{What: "every law's catalog", Counts: laws[0].Counts}
+		fmt.Fprintf(stdout, "Every catalog is empty: %v.\n\n", empty)
+		rep["outcome"], rep["message"] = "empty_selection", empty.Error()
+	} else if err := writeLawsFigure(set, runs, panels); err != nil {
+		return err
+	}
+	outputs := append(set.Names(), "laws.json")
+	rep["outputs"] = outputs
+	if err := writeJSON(set, "laws.json", rep); err != nil {
+		return err
+	}
+	if _, err := publish(set); err != nil {
+		return err
+	}
+	fmt.Fprintf(stdout, "%-34s %10s %12s\n", "spin-down law", "catalog", "median age")
+	for _, l := range lines {
+		fmt.Fprintln(stdout, l)
+	}
+	if nonEmpty > 0 {
+		for _, w := range warnings {
+			fmt.Fprintln(stdout, "warning:", w)
+		}
+	}
+	fmt.Fprintf(stdout, "wrote into %s: %s\n", *out, wordList(outputs))
+	if empty != nil {
+		return inputError{empty}
+	}
+	return nil
+}
+
+// writeLawsFigure draws the laws' period–color densities, and the
+// difference each switched variant makes, into laws.png.
+func writeLawsFigure(set *outset.Set, runs []pipeline.LawRun, panels []*figure.Panel) error {
 	// A switched variant (weakened braking, the stall) differs from its
 	// law plain in a band of the plane that the densities alone hide: a
 	// map of the difference shows it, with both variants' gyrochrones.
@@ -96,10 +150,5 @@ func runLaws(args []string, stdout, stderr io.Writer) error {
 		}
 	}
 	grid := figure.Rows(panels, 4)
-	name := filepath.Join(*out, "laws.png")
-	if err := writeFigure(name, grid, 64*vg.Centimeter, vg.Length(14*len(grid))*vg.Centimeter); err != nil {
-		return err
-	}
-	fmt.Fprintln(stdout, "wrote:", name)
-	return nil
+	return writeFigure(set, "laws.png", grid, 64*vg.Centimeter, vg.Length(14*len(grid))*vg.Centimeter)
 }

@@ -11,8 +11,11 @@
 //	spinpop mock SCENARIO --out FILE --stars N
 //	spinpop demo --out DIR
 //
-// Exit status: 0 on success, 2 for bad input (scenario, flags, folders),
-// 1 when the run itself fails.
+// Exit status: 0 on success; 2 for bad input (scenario, flags, data, an
+// output folder that is not empty or is in use, a selection that keeps no
+// star); 1 when the run itself fails (reading or writing files, a full
+// disk, an interruption, an internal error — a panic is caught and
+// reported as one).
 package main
 
 import (
@@ -20,7 +23,9 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"runtime/debug"
 
+	"spinpop/internal/outset"
 	"spinpop/pipeline"
 )
 
@@ -65,7 +70,15 @@ func main() {
 	os.Exit(run(os.Args[1:], os.Stdout, os.Stderr))
 }
 
-func run(args []string, stdout, stderr io.Writer) int {
+func run(args []string, stdout, stderr io.Writer) (code int) {
+	// A panic is a bug of ours, never the user's input: it is reported as
+	// an internal error with what a bug report needs, and exits 1. (Panics
+	// on worker goroutines are carried here by the pools that run them.)
+	defer func() {
+		if p := recover(); p != nil {
+			code = reportPanic(p, debug.Stack(), stderr)
+		}
+	}()
 	if len(args) == 0 || args[0] == "-h" || args[0] == "--help" || args[0] == "help" {
 		printUsage(stdout)
 		if len(args) == 0 {
@@ -99,11 +112,43 @@ func exitCode(err error, stderr io.Writer) int {
 		return 0
 	}
 	fmt.Fprintln(stderr, "spinpop:", err)
+	return exitClass(err)
+}
+
+// exitClass is the exit status of a failed command. Failures of the run
+// are looked for first: a write error met while reading input (rejected.csv
+// written as the catalog is read, say) is still a failure of the run.
+func exitClass(err error) int {
+	var ioe *outset.IOError
+	var rf runFailure
+	if errors.As(err, &ioe) || errors.As(err, &rf) {
+		return 1
+	}
 	var ue usageError
 	var ie inputError
 	if errors.As(err, &ue) || errors.As(err, &ie) || pipeline.IsInputError(err) {
 		return 2
 	}
+	return 1
+}
+
+// runFailure marks an error as a failure of the run (exit status 1) even
+// where it wraps an error of the input.
+type runFailure struct{ err error }
+
+func (e runFailure) Error() string { return e.err.Error() }
+func (e runFailure) Unwrap() error { return e.err }
+
+func runFailuref(format string, args ...any) error {
+	return runFailure{fmt.Errorf(format, args...)}
+}
+
+// reportPanic prints a caught panic as an internal error and returns its
+// exit status, 1.
+func reportPanic(p any, stack []byte, stderr io.Writer) int {
+	fmt.Fprintf(stderr, "spinpop: internal error: %v\n", p)
+	fmt.Fprintf(stderr, "This is a bug in spinpop %s, not a fault of your input. Please report it with the command line,\n"+
+		"the scenario (spinpop check SCENARIO --json) and the trace below.\n\n%s", version, stack)
 	return 1
 }
 

@@ -1,15 +1,16 @@
 package main
 
 import (
-	"context"
+	"errors"
 	"fmt"
 	"io"
 	"os"
-	"os/signal"
 	"runtime"
 
 	"spinpop/pipeline"
 )
+
+var errNoMockStars = errors.New("no catalog star")
 
 func runMock(args []string, stdout, stderr io.Writer) error {
 	fs := newFlagSet("mock", "mock SCENARIO --out FILE --stars N [--seed N] [--parallax-error-mas X] [--truth]",
@@ -53,7 +54,8 @@ func runMock(args []string, stdout, stderr io.Writer) error {
 	if *seed != 0 {
 		res.Scenario.Run.Seed = *seed
 	}
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
+	s := &res.Scenario
+	ctx, stop := signalContext()
 	defer stop()
 	built, err := pipeline.Build(&res.Scenario, path)
 	if err != nil {
@@ -65,14 +67,31 @@ func runMock(args []string, stdout, stderr io.Writer) error {
 		var err error
 		kept, err = pipeline.Mock(ctx, res, pipeline.MockOptions{Source: path, Stars: *n, ParallaxErrorMas: *plxErr, Truth: *truth,
 			Workers: runtime.GOMAXPROCS(0), Built: built, Progress: func(k, _ int64) { bar.Update(k) }}, w)
+		if err == nil && kept == 0 {
+			return errNoMockStars // a catalog of no stars is not written
+		}
 		return err
 	})
 	bar.Done()
-	if err != nil {
-		if ctx.Err() != nil {
-			return fmt.Errorf("interrupted; %s was not written", *out)
+	drawn := s.Run.StarsGenerated * pipeline.MockDrawFactor
+	switch {
+	case ctx.Err() != nil:
+		return runFailuref("interrupted; %s was not written", *out)
+	case errors.Is(err, errNoMockStars):
+		counts, cerr := pipeline.SelectionCounts(ctx, res, path, min(drawn, 1_000_000), runtime.GOMAXPROCS(0))
+		if cerr != nil {
+			return cerr
 		}
+		return inputError{fmt.Errorf("%s was not written: %w (%d stars drawn, %d × run.stars_generated)",
+			*out, &pipeline.EmptySelection{What: "the mock catalog", Counts: counts}, drawn, pipeline.MockDrawFactor)}
+	case err != nil:
 		return err
+	}
+	if kept < *n {
+		// The draw is bounded (pipeline.MockDrawFactor) so that a survey
+		// that selects almost nothing cannot run for ever; say so first.
+		fmt.Fprintf(stdout, "warning: only %d of the %d stars asked for: the scenario's survey selected %d catalog stars among the %d drawn (at most %d × run.stars_generated); raise run.stars_generated for more\n",
+			kept, *n, kept, drawn, pipeline.MockDrawFactor)
 	}
 	if *truth {
 		fmt.Fprintf(stdout, "wrote %d catalog stars to %s, with the truth and the observed stars not in the catalog\n", kept, *out)

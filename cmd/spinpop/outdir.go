@@ -1,42 +1,70 @@
 package main
 
 import (
+	"context"
+	"errors"
 	"fmt"
 	"io"
 	"os"
+	"os/signal"
 	"path/filepath"
+	"syscall"
+
+	"spinpop/internal/outset"
+	"spinpop/pipeline"
 )
 
-// prepareOutDir makes sure dir exists and is empty, or that the user asked
-// for --force. With --force we still only ever replace the files this run
-// writes; nothing else in the folder is touched.
-func prepareOutDir(dir string, force bool) error {
+// openOutDir opens the output set of a command writing into folder dir:
+// the folder is locked against a second run, must be empty (or new)
+// unless force, and everything is staged until publish (see
+// internal/outset). The caller defers Close, which removes whatever was
+// not published.
+func openOutDir(dir string, force bool, stderr io.Writer) (*outset.Set, error) {
 	if dir == "" {
-		return usageErrorf("--out DIR is required: name a folder for the outputs")
+		return nil, usageErrorf("--out DIR is required: name a folder for the outputs")
 	}
-	entries, err := os.ReadDir(dir)
+	out, err := outset.Open(dir, outset.Options{Force: force})
 	switch {
-	case os.IsNotExist(err):
-		if err := os.MkdirAll(dir, 0o755); err != nil {
-			return fmt.Errorf("creating output folder %s: %w", dir, err)
-		}
-		return nil
+	case errors.Is(err, outset.ErrBusy):
+		return nil, usageErrorf("output folder %s is in use by another spinpop run; wait for it to finish or choose another folder", dir)
+	case errors.Is(err, outset.ErrNotEmpty):
+		return nil, usageErrorf("output folder %s is not empty (%v); choose a new folder or pass --force to replace this tool's files in it", dir, errors.Unwrap(err))
 	case err != nil:
-		return usageErrorf("output folder %s cannot be read: %v", dir, err)
+		return nil, err
 	}
-	if len(entries) > 0 && !force {
-		return usageErrorf("output folder %s is not empty (%d entries); choose a new folder or pass --force to replace this tool's files in it", dir, len(entries))
+	if out.Recovered {
+		fmt.Fprintf(stderr, "note: %s held what an interrupted spinpop run left; it is removed\n", dir)
 	}
-	return nil
+	return out, nil
 }
 
-// writeFileAtomic writes the output under a temporary name in the same
-// folder and renames it into place, so a reader (or a crash) never sees a
-// half-written file.
+// signalContext is cancelled by Ctrl-C (SIGINT) or SIGTERM, so that a
+// command stops, removes its staged outputs and exits, leaving nothing.
+func signalContext() (context.Context, context.CancelFunc) {
+	return signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+}
+
+// interrupted is the error of a command stopped by a signal, once its
+// staged outputs are gone.
+func interrupted(dir string) error {
+	return runFailuref("interrupted; nothing was written to %s", dir)
+}
+
+// publish makes the set's files visible, all at once, and lists them.
+func publish(out *outset.Set) ([]string, error) {
+	names := out.Names()
+	return names, out.Commit()
+}
+
+// writeFileAtomic writes one file (not a folder of outputs) under a
+// temporary name beside it and renames it into place, so a reader, a crash
+// or an interruption never leaves a half-written file. A failure to write
+// is an *outset.IOError (exit status 1); an error of write itself is
+// returned as it is.
 func writeFileAtomic(path string, write func(w io.Writer) error) (err error) {
 	tmp, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".partial-*")
 	if err != nil {
-		return fmt.Errorf("writing %s: %w", path, err)
+		return &outset.IOError{Op: "writing", Path: path, Err: err}
 	}
 	defer func() {
 		if err != nil {
@@ -44,21 +72,59 @@ func writeFileAtomic(path string, write func(w io.Writer) error) (err error) {
 			os.Remove(tmp.Name())
 		}
 	}()
-	if err = write(tmp); err != nil {
-		return fmt.Errorf("writing %s: %w", path, err)
+	ew := &errWriter{w: tmp}
+	if err = write(ew); err != nil {
+		if ew.err != nil && errors.Is(err, ew.err) {
+			return &outset.IOError{Op: "writing", Path: path, Err: ew.err}
+		}
+		return err
 	}
-	if err = tmp.Sync(); err != nil {
-		return fmt.Errorf("writing %s: %w", path, err)
-	}
-	if err = tmp.Close(); err != nil {
-		return fmt.Errorf("writing %s: %w", path, err)
-	}
-	// CreateTemp makes private files; outputs are ordinary shared files.
-	if err = os.Chmod(tmp.Name(), 0o644); err != nil {
-		return fmt.Errorf("writing %s: %w", path, err)
-	}
-	if err = os.Rename(tmp.Name(), path); err != nil {
-		return fmt.Errorf("writing %s: %w", path, err)
+	for _, step := range []func() error{tmp.Sync, tmp.Close, func() error { return os.Chmod(tmp.Name(), 0o644) }, func() error { return os.Rename(tmp.Name(), path) }} {
+		if err = step(); err != nil {
+			return &outset.IOError{Op: "writing", Path: path, Err: err}
+		}
 	}
 	return nil
+}
+
+// errWriter remembers its first write error, to tell it from the errors
+// of the data being written.
+type errWriter struct {
+	w   io.Writer
+	err error
+}
+
+func (e *errWriter) Write(p []byte) (int, error) {
+	n, err := e.w.Write(p)
+	if err != nil && e.err == nil {
+		e.err = err
+	}
+	return n, err
+}
+
+// emptyOutcome handles a selection that kept no star: the command's JSON
+// report says so (with the selection table), is published, and the error
+// returned (exit status 2) names the step that emptied it.
+func emptyOutcome(out *outset.Set, report string, head map[string]any, err error, stdout io.Writer, asJSON bool) error {
+	var es *pipeline.EmptySelection
+	if !errors.As(err, &es) {
+		return err
+	}
+	rep := map[string]any{}
+	for k, v := range head {
+		rep[k] = v
+	}
+	r := es.Report()
+	rep["outcome"], rep["message"], rep["emptied_at_step"], rep["counts"] = r.Outcome, r.Message, r.Step, r.Counts
+	rep["outputs"] = append(out.Names(), report)
+	if err := writeJSON(out, report, rep); err != nil {
+		return err
+	}
+	if _, err := publish(out); err != nil {
+		return err
+	}
+	if asJSON {
+		printJSON(stdout, rep)
+	}
+	return inputError{fmt.Errorf("%w (wrote %s)", err, out.Final(report))}
 }

@@ -11,6 +11,7 @@ import (
 	"gonum.org/v1/plot/vg"
 
 	"spinpop/internal/figure"
+	"spinpop/internal/outset"
 	"spinpop/model"
 )
 
@@ -267,12 +268,20 @@ func detectedByColorPlot(t *model.Tally) (*plot.Plot, error) {
 	return fractionPlot("Period detected, by color", labelBV, t.ColorEdges, t.ColorDetected, t.ColorEligible, figure.Curve(0))
 }
 
-// writeFigure renders a layout to a PNG file, whole or not at all.
-func writeFigure(path string, g figure.Layout, w, h vg.Length) error {
+// writeFigure renders a layout to PNG file name of the output set.
+func writeFigure(set *outset.Set, name string, g figure.Layout, w, h vg.Length) error {
+	return set.Write(name, func(out io.Writer) error { return g.WritePNG(out, w, h) })
+}
+
+// writeFigureFile renders a layout to a PNG file of its own, outside an
+// output set (the sweep's plots, added to as points finish): written under
+// a temporary name and renamed, whole or not at all.
+func writeFigureFile(path string, g figure.Layout, w, h vg.Length) error {
 	return writeFileAtomic(path, func(out io.Writer) error { return g.WritePNG(out, w, h) })
 }
 
-// writePlot renders one plot (legend beside it) to a PNG file.
-func writePlot(path string, p *plot.Plot, w, h vg.Length) error {
-	return writeFigure(path, figure.One(&figure.Panel{Plot: p}), w, h)
+// writePlot renders one plot (legend beside it) to PNG file name of the
+// output set.
+func writePlot(set *outset.Set, name string, p *plot.Plot, w, h vg.Length) error {
+	return writeFigure(set, name, figure.One(&figure.Panel{Plot: p}), w, h)
 }

@@ -39,5 +39,5 @@ func writeGrid(path string, grid [][]*plot.Plot, w, h vg.Length) error {
 	for i, row := range grid {
 		l[i] = figure.Of(row...)
 	}
-	return writeFigure(path, l, w, h)
+	return writeFigureFile(path, l, w, h)
 }

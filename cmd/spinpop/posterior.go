@@ -6,9 +6,6 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
-	"os"
-	"os/signal"
-	"path/filepath"
 	"strconv"
 
 	"gonum.org/v1/plot"
@@ -17,11 +14,12 @@ import (
 	"spinpop/compare"
 	"spinpop/internal/figure"
 	"spinpop/internal/grid"
+	"spinpop/internal/outset"
 	"spinpop/pipeline"
 )
 
 func runPosterior(args []string, stdout, stderr io.Writer) error {
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
+	ctx, stop := signalContext()
 	defer stop()
 	return posteriorCmd(ctx, args, stdout, stderr)
 }
@@ -61,10 +59,13 @@ func posteriorCmd(ctx context.Context, args []string, stdout, stderr io.Writer) 
 		return usageErrorf("--burn %d: want at least 1 and fewer than --steps (%d) steps of burn-in", *burn, *steps)
 	}
 
-	c, err := setupComparison(ctx, path, cf, stderr)
+	of := newOutFolder(cf, "posterior.json", stdout, stderr)
+	defer of.close()
+	c, err := setupComparison(ctx, path, cf, of, stderr)
 	if err != nil {
 		return err
 	}
+	out := of.set
 	d := c.Burst.Dim()
 	if d == 0 {
 		return usageErrorf("%s: the burst model has no free parameter; list some in [[compare.free]]", path)
@@ -78,13 +79,12 @@ func posteriorCmd(ctx context.Context, args []string, stdout, stderr io.Writer) 
 	bar.Done()
 	if err != nil {
 		if ctx.Err() != nil {
-			return fmt.Errorf("interrupted; nothing but rejected.csv was written to %s", *cf.out)
+			return interrupted(of.dir)
 		}
 		return fmt.Errorf("posterior: %w", err)
 	}
 
-	dir := *cf.out
-	if err := writeChainCSV(filepath.Join(dir, "chain.csv"), post); err != nil {
+	if err := writeChainCSV(out, "chain.csv", post); err != nil {
 		return err
 	}
 	first := post.Burn * post.Walkers * d
@@ -93,18 +93,21 @@ func posteriorCmd(ctx context.Context, args []string, stdout, stderr io.Writer) 
 		return err
 	}
 	side := vg.Length(max(14, 6.5*float64(d))) * vg.Centimeter
-	if err := writeFigure(filepath.Join(dir, "corner.png"), cornerLayout(grid), side, side); err != nil {
+	if err := writeFigure(out, "corner.png", cornerLayout(grid), side, side); err != nil {
 		return err
 	}
 	sp, err := sfhPlots(c, post, rep)
 	if err != nil {
 		return err
 	}
-	if err := writeFigure(filepath.Join(dir, "sfh.png"), figure.Layout{figure.Of(sp...)}, 36*vg.Centimeter, 12*vg.Centimeter); err != nil {
+	if err := writeFigure(out, "sfh.png", figure.Layout{figure.Of(sp...)}, 36*vg.Centimeter, 12*vg.Centimeter); err != nil {
 		return err
 	}
-	rep.Outputs = []string{"rejected.csv", "chain.csv", "corner.png", "sfh.png", "posterior.json"}
-	if err := writeJSON(filepath.Join(dir, "posterior.json"), rep); err != nil {
+	rep.Outputs = append(out.Names(), "posterior.json")
+	if err := writeJSON(out, "posterior.json", rep); err != nil {
+		return err
+	}
+	if _, err := publish(out); err != nil {
 		return err
 	}
 	if *cf.asJSON {
@@ -151,9 +154,9 @@ func sfhPlots(c *pipeline.Comparison, post *compare.Posterior, rep *pipeline.Pos
 
 // writeChainCSV writes every walker's position after burn-in, one row per
 // walker and step, with its log-posterior.
-func writeChainCSV(path string, post *compare.Posterior) error {
+func writeChainCSV(out *outset.Set, name string, post *compare.Posterior) error {
 	d := len(post.Names)
-	return writeFileAtomic(path, func(w io.Writer) error {
+	return out.Write(name, func(w io.Writer) error {
 		bw := bufio.NewWriter(w)
 		bw.WriteString("walker,step")
 		for _, n := range post.Names {

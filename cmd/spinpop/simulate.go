@@ -5,14 +5,13 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
-	"os"
-	"os/signal"
-	"path/filepath"
+	"math"
 	"runtime"
 
 	"gonum.org/v1/plot/vg"
 
 	"spinpop/internal/figure"
+	"spinpop/internal/outset"
 	"spinpop/model"
 	"spinpop/pipeline"
 	"spinpop/scenarios"
@@ -23,7 +22,7 @@ func runSimulate(args []string, stdout, stderr io.Writer) error {
 		"Make the scenario's synthetic population, observe it through its survey and write into DIR:\n"+
 			"catalog.csv (catalog stars), manifest.json (what was run, counts after each selection step)\n"+
 			"and PNG plots. SCENARIO is a file or example:NAME (see spinpop examples).", stdout)
-	out := fs.String("out", "", "output folder (created if missing; must be empty unless --force)")
+	outDir := fs.String("out", "", "output folder (created if missing; must be empty unless --force)")
 	seed := fs.Uint64("seed", 0, "random seed, overriding run.seed (0 keeps the scenario's)")
 	asJSON := fs.Bool("json", false, "print the summary as JSON")
 	force := fs.Bool("force", false, "write into a non-empty folder, replacing this tool's files there")
@@ -42,7 +41,7 @@ func runSimulate(args []string, stdout, stderr io.Writer) error {
 		if *workers < 1 {
 			return usageErrorf("--threads must be at least 1")
 		}
-		return runSimulateSplit(split, path, scenarioSets(fs), *seed, *out, *force, *workers, *asJSON, stdout)
+		return runSimulateSplit(split, path, scenarioSets(fs), *seed, *outDir, *force, *workers, *asJSON, stdout, stderr)
 	}
 	res, err := loadScenario(path, scenarioSets(fs))
 	if err != nil {
@@ -54,38 +53,52 @@ func runSimulate(args []string, stdout, stderr io.Writer) error {
 	if *workers < 1 {
 		return usageErrorf("--threads must be at least 1")
 	}
-	if err := prepareOutDir(*out, *force); err != nil {
-		return err
-	}
-	sum, err := simulate(res, path, *out, *workers, estimateGate(stderr, *yes), stderr)
+	out, err := openOutDir(*outDir, *force, stderr)
 	if err != nil {
 		return err
 	}
-	return printSummary(stdout, sum, *asJSON)
+	defer out.Close()
+	ctx, stop := signalContext()
+	defer stop()
+	sum, err := simulate(ctx, res, path, out, "", *workers, estimateGate(stderr, *yes))
+	if err != nil {
+		return err
+	}
+	if _, err := publish(out); err != nil {
+		return err
+	}
+	if err := printSummary(stdout, sum, *asJSON); err != nil {
+		return err
+	}
+	if sum.CatalogStars == 0 {
+		return inputError{fmt.Errorf("%w; wrote only %s", &pipeline.EmptySelection{What: "the catalog", Counts: sum.Counts}, out.Final("manifest.json"))}
+	}
+	return nil
 }
 
-// gate, if not nil, sees the run's estimate before it starts (estimateGate).
-func simulate(res *scenarios.Resolved, path, dir string, workers int, gate func(pipeline.Estimate) error, stderr io.Writer) (*pipeline.Manifest, error) {
+// simulate runs the scenario and writes its outputs into the output set,
+// under prefix (a subfolder such as "smooth/", or ""); the caller
+// publishes them. A catalog that is empty is no catalog: only the
+// manifest is written, which says where the stars went. gate, if not nil,
+// sees the run's estimate before it starts (estimateGate).
+func simulate(ctx context.Context, res *scenarios.Resolved, path string, out *outset.Set, prefix string, workers int, gate func(pipeline.Estimate) error) (*pipeline.Manifest, error) {
 	s := &res.Scenario
-	catPath := filepath.Join(dir, "catalog.csv")
+	catName := prefix + "catalog.csv"
 	var cat *pipeline.CatalogWriter
-	var catTmp *os.File
+	var catFile *outset.File
 	if s.Output.Catalog {
 		var err error
-		if catTmp, err = os.CreateTemp(dir, ".catalog.csv.partial-*"); err != nil {
-			return nil, fmt.Errorf("writing %s: %w", catPath, err)
+		if catFile, err = out.Create(catName); err != nil {
+			return nil, err
 		}
 		defer func() {
-			if catTmp != nil {
-				catTmp.Close()
-				os.Remove(catTmp.Name())
+			if catFile != nil {
+				catFile.Close()
 			}
 		}()
-		cat = pipeline.NewCatalogWriter(catTmp)
+		cat = pipeline.NewCatalogWriter(catFile)
 	}
 
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
-	defer stop()
 	bar := newProgressBar("simulating", s.Run.StarsGenerated)
 	sim, err := pipeline.Simulate(ctx, res, pipeline.SimulateOptions{
 		Source: path, Workers: workers,
@@ -97,41 +110,40 @@ func simulate(res *scenarios.Resolved, path, dir string, workers int, gate func(
 			if cat == nil || cat.Rows() > s.Output.CatalogMaxStars {
 				return nil
 			}
-			if err := cat.Add(c); err != nil {
-				return fmt.Errorf("writing %s: %w", catPath, err)
-			}
-			return nil
+			return cat.Add(c)
 		},
 	})
 	bar.Done()
 	if err != nil {
 		if ctx.Err() != nil {
-			return nil, fmt.Errorf("interrupted; nothing was written to %s", dir)
+			return nil, interrupted(out.Dir())
 		}
 		return nil, err
 	}
 	sum := &sim.Manifest
+	empty := sim.Tally.Selected() == 0
 
-	// Outputs: the catalog is renamed into place only now, whole.
-	if cat != nil && !sim.CatalogTooLarge {
+	// Outputs, staged: the output set publishes them together.
+	if cat != nil {
 		if err := cat.Flush(); err != nil {
-			return nil, fmt.Errorf("writing %s: %w", catPath, err)
+			return nil, err
 		}
-		if err := catTmp.Close(); err != nil {
-			return nil, fmt.Errorf("writing %s: %w", catPath, err)
+		err := catFile.Close()
+		catFile = nil
+		if err != nil {
+			return nil, err
 		}
-		if err := os.Chmod(catTmp.Name(), 0o644); err != nil {
-			return nil, fmt.Errorf("writing %s: %w", catPath, err)
+		if sim.CatalogTooLarge || empty {
+			if err := out.Discard(catName); err != nil {
+				return nil, err
+			}
+		} else {
+			sum.CatalogWritten = true
+			sum.Outputs = append(sum.Outputs, "catalog.csv")
 		}
-		if err := os.Rename(catTmp.Name(), catPath); err != nil {
-			return nil, fmt.Errorf("writing %s: %w", catPath, err)
-		}
-		catTmp = nil
-		sum.CatalogWritten = true
-		sum.Outputs = append(sum.Outputs, "catalog.csv")
 	}
-	if s.Output.Plots {
-		names, err := writeSimulationPlots(dir, s, sim.Tally, gyroCurves(sim.Gyrochrones))
+	if s.Output.Plots && !empty {
+		names, err := writeSimulationPlots(out, prefix, s, sim.Tally, gyroCurves(sim.Gyrochrones))
 		if err != nil {
 			return nil, err
 		}
@@ -140,7 +152,7 @@ func simulate(res *scenarios.Resolved, path, dir string, workers int, gate func(
 	sum.Outputs = append(sum.Outputs, "manifest.json")
 	man := *sum
 	man.Resolved = string(res.Canonical())
-	if err := writeJSON(filepath.Join(dir, "manifest.json"), man); err != nil {
+	if err := writeJSON(out, prefix+"manifest.json", man); err != nil {
 		return nil, err
 	}
 	sum.Gyrochrones = nil
@@ -156,26 +168,26 @@ func gyroCurves(gs []model.Gyrochrone) []gyroCurve {
 	return gc
 }
 
-func writeJSON(path string, v any) error {
-	return writeFileAtomic(path, func(w io.Writer) error {
+func writeJSON(out *outset.Set, name string, v any) error {
+	return out.Write(name, func(w io.Writer) error {
 		enc := json.NewEncoder(w)
 		enc.SetIndent("", "  ")
 		return enc.Encode(v)
 	})
 }
 
-func writeSimulationPlots(dir string, s *scenarios.Scenario, t *model.Tally, gc []gyroCurve) ([]string, error) {
+func writeSimulationPlots(out *outset.Set, prefix string, s *scenarios.Scenario, t *model.Tally, gc []gyroCurve) ([]string, error) {
 	var names []string
 	title := fmt.Sprintf("%s: %s catalog stars", s.Name, thousands(t.Selected()))
 	pc, err := periodColorPlot(title, t, gc)
 	if err != nil {
 		return nil, err
 	}
-	if err := writeFigure(filepath.Join(dir, "period_color.png"), figure.One(pc), 20*vg.Centimeter, 13*vg.Centimeter); err != nil {
+	if err := writeFigure(out, prefix+"period_color.png", figure.One(pc), 20*vg.Centimeter, 13*vg.Centimeter); err != nil {
 		return nil, err
 	}
 	names = append(names, "period_color.png")
-	if err := writeFigure(filepath.Join(dir, "period_histograms.png"), periodHistograms(t, 6), 27*vg.Centimeter, 16*vg.Centimeter); err != nil {
+	if err := writeFigure(out, prefix+"period_histograms.png", periodHistograms(t, 6), 27*vg.Centimeter, 16*vg.Centimeter); err != nil {
 		return nil, err
 	}
 	names = append(names, "period_histograms.png")
@@ -183,7 +195,7 @@ func writeSimulationPlots(dir string, s *scenarios.Scenario, t *model.Tally, gc 
 	if err != nil {
 		return nil, err
 	}
-	if err := writePlot(filepath.Join(dir, "height.png"), hp, 15*vg.Centimeter, 10*vg.Centimeter); err != nil {
+	if err := writePlot(out, prefix+"height.png", hp, 15*vg.Centimeter, 10*vg.Centimeter); err != nil {
 		return nil, err
 	}
 	names = append(names, "height.png")
@@ -199,11 +211,21 @@ func writeSimulationPlots(dir string, s *scenarios.Scenario, t *model.Tally, gc 
 	if err != nil {
 		return nil, err
 	}
-	if err := writeFigure(filepath.Join(dir, "age_selection.png"), figure.Layout{figure.Of(ap, dp, cp)}, 40*vg.Centimeter, 11*vg.Centimeter); err != nil {
+	if err := writeFigure(out, prefix+"age_selection.png", figure.Layout{figure.Of(ap, dp, cp)}, 40*vg.Centimeter, 11*vg.Centimeter); err != nil {
 		return nil, err
 	}
 	names = append(names, "age_selection.png")
 	return names, nil
+}
+
+// writeJSONFile writes v as indented JSON to a file of its own, whole
+// (outside an output set).
+func writeJSONFile(path string, v any) error {
+	return writeFileAtomic(path, func(w io.Writer) error {
+		enc := json.NewEncoder(w)
+		enc.SetIndent("", "  ")
+		return enc.Encode(v)
+	})
 }
 
 func printSummary(w io.Writer, s *pipeline.Manifest, asJSON bool) error {
@@ -211,6 +233,10 @@ func printSummary(w io.Writer, s *pipeline.Manifest, asJSON bool) error {
 		enc := json.NewEncoder(w)
 		enc.SetIndent("", "  ")
 		return enc.Encode(s)
+	}
+	if s.CatalogStars == 0 {
+		// Said first: every number below describes a survey that saw nothing.
+		fmt.Fprintf(w, "The catalog is empty: %v.\n\n", &pipeline.EmptySelection{What: "the catalog", Counts: s.Counts})
 	}
 	fmt.Fprintf(w, "spinpop %s — scenario %q (sha256 %s…), seed %d\n", s.Version, s.ScenarioName, s.ScenarioHash[:16], s.Seed)
 	fmt.Fprintf(w, "%d stars in %.1f s (%.2g stars/s on %d threads)\n\n", s.Counts[0].Stars, s.Seconds, s.StarsPerSecond, s.Threads)
@@ -223,14 +249,25 @@ func printSummary(w io.Writer, s *pipeline.Manifest, asJSON bool) error {
 		fmt.Fprintf(w, "  %-20s %11d   %s\n", c.Step, c.Stars, frac)
 	}
 	fmt.Fprintf(w, "\ncatalog: %d stars (%d unresolved binaries, %d evolved, %d aliased periods)\n", s.CatalogStars, s.Binaries, s.Evolved, s.Aliased)
-	fmt.Fprintf(w, "median age: %.2f Gyr of dwarfs in the field, %.2f Gyr in the catalog\n", s.MedianAgeGyr.Generated, s.MedianAgeGyr.Catalog)
-	for _, warn := range s.Warnings {
+	fmt.Fprintf(w, "median age: %s of dwarfs in the field, %s in the catalog\n", gyr(s.MedianAgeGyr.Generated), gyr(s.MedianAgeGyr.Catalog))
+	for i, warn := range s.Warnings {
+		if i == 0 && s.CatalogStars == 0 {
+			continue // said first, above
+		}
 		fmt.Fprintln(w, "warning:", warn)
 	}
 	if len(s.Outputs) > 0 {
 		fmt.Fprintf(w, "wrote: %s\n", wordList(s.Outputs))
 	}
 	return nil
+}
+
+// gyr formats an age, or a dash when there is none (a median of no stars).
+func gyr(x float64) string {
+	if math.IsNaN(x) {
+		return "— (no stars)"
+	}
+	return fmt.Sprintf("%.2f Gyr", x)
 }
 
 func printJSON(w io.Writer, v any) error {

@@ -9,12 +9,12 @@ import (
 	"fmt"
 	"io"
 	"os"
-	"os/signal"
 	"path/filepath"
 	"sort"
 	"strconv"
 	"strings"
 
+	"spinpop/internal/outset"
 	"spinpop/model"
 	"spinpop/pipeline"
 	"spinpop/scenarios"
@@ -52,7 +52,7 @@ func (f *splitFlags) active() bool {
 }
 
 // runSimulateSplit runs one of the split modes of simulate.
-func runSimulateSplit(f *splitFlags, arg string, sets []string, seed uint64, out string, force bool, threads int, asJSON bool, stdout io.Writer) error {
+func runSimulateSplit(f *splitFlags, arg string, sets []string, seed uint64, out string, force bool, threads int, asJSON bool, stdout, stderr io.Writer) error {
 	modes := 0
 	for _, on := range []bool{f.part != "", f.merge, f.slurm.slurm} {
 		if on {
@@ -79,7 +79,7 @@ func runSimulateSplit(f *splitFlags, arg string, sets []string, seed uint64, out
 	nChunks := model.NumChunks(s.Run.StarsGenerated, s.Run.ChunkStars)
 	switch {
 	case f.merge:
-		return mergeSimParts(res, arg, out, force, threads, asJSON, stdout)
+		return mergeSimParts(res, arg, out, force, threads, asJSON, stdout, stderr)
 	case f.parts < 1:
 		return usageErrorf("--parts N (at least 1) is needed with --part and --slurm")
 	case f.slurm.slurm:
@@ -145,7 +145,10 @@ func runSimPart(res *scenarios.Resolved, arg, out string, r model.ChunkRange, th
 	if res.Scenario.Output.Catalog {
 		cat = pipeline.NewCatalogWriter(tmp)
 	}
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
+	// Parts of one run write into one folder from many machines at once,
+	// so a part is not an output set (which locks the folder): each of its
+	// two files is written whole, the record last.
+	ctx, stop := signalContext()
 	defer stop()
 	max := res.Scenario.Output.CatalogMaxStars
 	sim, err := pipeline.Simulate(ctx, res, pipeline.SimulateOptions{Source: arg, Workers: threads, Chunks: &r,
@@ -156,6 +159,9 @@ func runSimPart(res *scenarios.Resolved, arg, out string, r model.ChunkRange, th
 			return cat.Add(c)
 		}})
 	if err != nil {
+		if ctx.Err() != nil {
+			return runFailuref("interrupted; part %s was not written", r)
+		}
 		return err
 	}
 	if cat != nil {
@@ -175,7 +181,7 @@ func runSimPart(res *scenarios.Resolved, arg, out string, r model.ChunkRange, th
 	tmp = nil
 	host, _ := os.Hostname()
 	rec := simPart{ScenarioHash: res.Hash(), Seed: res.Scenario.Run.Seed, Chunks: r, Seconds: sim.Manifest.Seconds, Host: host, Tally: sim.Tally}
-	if err := writeJSON(base+".json", rec); err != nil {
+	if err := writeJSONFile(base+".json", rec); err != nil {
 		return err
 	}
 	fmt.Fprintf(stdout, "part %s of scenario %.16s…: %d stars, %d catalogue stars in %.1f s; wrote %s.json and .csv\n",
@@ -186,7 +192,7 @@ func runSimPart(res *scenarios.Resolved, arg, out string, r model.ChunkRange, th
 // mergeSimParts merges every part record in DIR/parts (checked to be of
 // this scenario and seed and to tile the run) into the outputs of a
 // one-machine run.
-func mergeSimParts(res *scenarios.Resolved, arg, out string, force bool, threads int, asJSON bool, stdout io.Writer) error {
+func mergeSimParts(res *scenarios.Resolved, arg, out string, force bool, threads int, asJSON bool, stdout, stderr io.Writer) error {
 	s := &res.Scenario
 	names, err := filepath.Glob(filepath.Join(out, "parts", "part-*.json"))
 	if err != nil {
@@ -239,15 +245,22 @@ func mergeSimParts(res *scenarios.Resolved, arg, out string, force bool, threads
 		return err
 	}
 	m := &sim.Manifest
+	// The merged run is an output set like a one-machine run's (the parts
+	// folder beside it is not part of it, hence Force once checked above).
+	set, err := openOutDir(out, true, stderr)
+	if err != nil {
+		return err
+	}
+	defer set.Close()
 	if s.Output.Catalog && !sim.CatalogTooLarge {
-		if err := concatParts(filepath.Join(out, "catalog.csv"), out, parts, order); err != nil {
+		if err := concatParts(set, "catalog.csv", out, parts, order); err != nil {
 			return err
 		}
 		m.CatalogWritten = true
 		m.Outputs = append(m.Outputs, "catalog.csv")
 	}
 	if s.Output.Plots {
-		plots, err := writeSimulationPlots(out, s, sim.Tally, gyroCurves(sim.Gyrochrones))
+		plots, err := writeSimulationPlots(set, "", s, sim.Tally, gyroCurves(sim.Gyrochrones))
 		if err != nil {
 			return err
 		}
@@ -257,7 +270,10 @@ func mergeSimParts(res *scenarios.Resolved, arg, out string, force bool, threads
 	m.Outputs = append(m.Outputs, "manifest.json")
 	man := *m
 	man.Resolved = string(res.Canonical())
-	if err := writeJSON(filepath.Join(out, "manifest.json"), man); err != nil {
+	if err := writeJSON(set, "manifest.json", man); err != nil {
+		return err
+	}
+	if _, err := publish(set); err != nil {
 		return err
 	}
 	m.Gyrochrones = nil
@@ -266,8 +282,8 @@ func mergeSimParts(res *scenarios.Resolved, arg, out string, force bool, threads
 
 // concatParts writes the catalogue: the header once, then each part's
 // rows in chunk order.
-func concatParts(path, out string, parts []simPart, order []int) error {
-	return writeFileAtomic(path, func(w io.Writer) error {
+func concatParts(set *outset.Set, name, out string, parts []simPart, order []int) error {
+	return set.Write(name, func(w io.Writer) error {
 		for i, k := range order {
 			f, err := os.Open(partBase(out, parts[k].Chunks) + ".csv")
 			if err != nil {

@@ -4,10 +4,10 @@ import (
 	"context"
 	"fmt"
 	"io"
-	"path/filepath"
 	"slices"
 
 	"spinpop/compare"
+	"spinpop/internal/outset"
 	"spinpop/pipeline"
 	"spinpop/sweep"
 )
@@ -40,32 +40,48 @@ func (w *pointWorker) logf(format string, args ...any) {
 func (w *pointWorker) Work(ctx context.Context, p *sweep.Point, steps []string, dir string) (sweep.Headline, error) {
 	var h sweep.Headline
 	label := fmt.Sprintf("sweep point %d (%.12s)", p.Index, p.Hash)
+	// A point's files are one output set, published when the point's work
+	// is done (the sweep's own records beside them are the runner's).
+	set, err := outset.Open(dir, outset.Options{Force: true})
+	if err != nil {
+		return h, err
+	}
+	defer set.Close()
+	if err := w.work(ctx, p, steps, label, set, &h); err != nil {
+		return h, err
+	}
+	return h, set.Commit()
+}
+
+func (w *pointWorker) work(ctx context.Context, p *sweep.Point, steps []string, label string, set *outset.Set, hp *sweep.Headline) error {
+	h := hp
 	if slices.Contains(steps, sweep.StepSimulate) {
-		m, err := simulate(p.Scenario, label, dir, w.threads, nil, io.Discard) // a sweep was planned: no estimate per point
+		m, err := simulate(ctx, p.Scenario, label, set, "", w.threads, nil) // a sweep was planned: no estimate per point
 		if err != nil {
-			return h, err
+			return err
 		}
 		h.CatalogStars = sweep.I(m.CatalogStars)
 		w.logf("point %d: simulated, %d catalogue stars", p.Index, m.CatalogStars)
 	}
 	if !slices.Contains(steps, sweep.StepCompare) && !slices.Contains(steps, sweep.StepTestBurst) {
-		return h, nil
+		return nil
 	}
 	c, err := pipeline.SetupComparison(ctx, p.Scenario, pipeline.ComparisonOptions{
 		Source: label, Workers: w.threads, TemplateDir: w.templates,
 		WriteRejected: func(write func(io.Writer) error) error {
-			return writeFileAtomic(filepath.Join(dir, "rejected.csv"), write)
+			return set.Write("rejected.csv", write)
 		},
+		Warn: func(msg string) { w.logf("point %d: warning: %s", p.Index, msg) },
 	})
 	if err != nil {
-		return h, err
+		return err
 	}
 	h.DataStars = sweep.I(int64(c.DataSummary().Compared))
 	reps := c.Scenario.Compare.Bootstrap
 	if slices.Contains(steps, sweep.StepCompare) {
 		sc, err := c.Score(ctx, pipeline.ScoreOptions{Replicates: reps})
 		if err != nil {
-			return h, err
+			return err
 		}
 		h.LnL = sweep.F(sc.LogL)
 		out := map[string]any{
@@ -77,26 +93,26 @@ func (w *pointWorker) Work(ctx context.Context, p *sweep.Point, steps []string, 
 			out["goodness_of_fit"] = pipeline.AdequacyReport(*g)
 			h.AdequacyP, h.Adequacy = sweep.F(g.PValue), adequacyWord(*g)
 		}
-		if err := writeJSON(filepath.Join(dir, "compare.json"), out); err != nil {
-			return h, err
+		if err := writeJSON(set, "compare.json", out); err != nil {
+			return err
 		}
 		w.logf("point %d: compared, ln L = %.2f", p.Index, sc.LogL)
 	}
 	if slices.Contains(steps, sweep.StepTestBurst) {
-		if err := w.burst(ctx, c, reps, dir, &h); err != nil {
-			return h, err
+		if err := w.burst(ctx, c, reps, set, h); err != nil {
+			return err
 		}
 		w.logf("point %d: burst test, %s", p.Index, h.Verdict)
 	}
-	return h, nil
+	return nil
 }
 
-func (w *pointWorker) burst(ctx context.Context, c *pipeline.Comparison, reps int, dir string, h *sweep.Headline) error {
+func (w *pointWorker) burst(ctx context.Context, c *pipeline.Comparison, reps int, set *outset.Set, h *sweep.Headline) error {
 	res, err := c.BurstTest(ctx, reps, nil)
 	if err != nil {
 		return err
 	}
-	if _, err := writeBurstOutputs(dir, c, res); err != nil {
+	if _, err := writeBurstOutputs(set, "", c, res); err != nil {
 		return err
 	}
 	t := res.Test

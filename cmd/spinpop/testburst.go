@@ -5,12 +5,11 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"os"
-	"os/signal"
-	"path/filepath"
+	"strings"
 
 	"spinpop/compare"
 	"spinpop/internal/figure"
+	"spinpop/internal/outset"
 	"spinpop/pipeline"
 
 	"gonum.org/v1/plot/vg"
@@ -34,22 +33,31 @@ func runTestBurst(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
+	ctx, stop := signalContext()
 	defer stop()
-	c, err := setupComparison(ctx, path, cf, stderr)
+	of := newOutFolder(cf, "test.json", stdout, stderr)
+	defer of.close()
+	c, err := setupComparison(ctx, path, cf, of, stderr)
 	if err != nil {
 		return err
 	}
+	out := of.set
 	b := c.Scenario.Compare.Bootstrap
 	if *reps >= 0 {
 		b = *reps
 	}
 	res, err := burstTest(ctx, c, b)
 	if err != nil {
+		if ctx.Err() != nil {
+			return interrupted(of.dir)
+		}
 		return err
 	}
-	outputs, err := writeBurstOutputs(*cf.out, c, res)
+	outputs, err := writeBurstOutputs(out, "", c, res)
 	if err != nil {
+		return err
+	}
+	if _, err := publish(out); err != nil {
 		return err
 	}
 	if *cf.asJSON {
@@ -68,9 +76,9 @@ func burstTest(ctx context.Context, c *pipeline.Comparison, replicates int) (*pi
 	return c.BurstTest(ctx, replicates, func(done, total int) { bar.Update(int64(done)) })
 }
 
-// writeBurstOutputs writes the test's figures and test.json, and returns
-// the names of the files written.
-func writeBurstOutputs(dir string, c *pipeline.Comparison, r *pipeline.BurstOutcome) ([]string, error) {
+// writeBurstOutputs writes the test's figures and test.json into the
+// output set, under prefix, and returns the names of the set's files.
+func writeBurstOutputs(out *outset.Set, prefix string, c *pipeline.Comparison, r *pipeline.BurstOutcome) ([]string, error) {
 	like := c.Likelihood
 	sp := like.Space()
 	data := like.Counts()
@@ -82,53 +90,55 @@ func writeBurstOutputs(dir string, c *pipeline.Comparison, r *pipeline.BurstOutc
 		return nil, err
 	}
 	muB := like.Expected(r.Test.Burst.Weights, nil)
-	outputs := []string{"rejected.csv"}
 	grid, err := periodHistsDataModel(sp, data, map[string][]float64{"smooth": muS, "burst": muB}, []string{"smooth", "burst"}, 6)
 	if err != nil {
 		return nil, err
 	}
-	if err := writeFigure(filepath.Join(dir, "fit_period_histograms.png"), grid, 34*vg.Centimeter, 18*vg.Centimeter); err != nil {
+	if err := writeFigure(out, prefix+"fit_period_histograms.png", grid, 34*vg.Centimeter, 18*vg.Centimeter); err != nil {
 		return nil, err
 	}
 	resid := like.PearsonResiduals(r.Test.Burst.Weights)
-	if err := writeFigure(filepath.Join(dir, "fit_residuals.png"), dataModelResiduals(sp, data, muB, resid, "with burst"), 44*vg.Centimeter, 12*vg.Centimeter); err != nil {
+	if err := writeFigure(out, prefix+"fit_residuals.png", dataModelResiduals(sp, data, muB, resid, "with burst"), 44*vg.Centimeter, 12*vg.Centimeter); err != nil {
 		return nil, err
 	}
 	dp, err := modelDifferenceMap(sp, muB, muS, "burst", "smooth")
 	if err != nil {
 		return nil, err
 	}
-	if err := writeFigure(filepath.Join(dir, "fit_difference.png"), figure.One(dp), 20*vg.Centimeter, 13*vg.Centimeter); err != nil {
+	if err := writeFigure(out, prefix+"fit_difference.png", figure.One(dp), 20*vg.Centimeter, 13*vg.Centimeter); err != nil {
 		return nil, err
 	}
-	outputs = append(outputs, "fit_period_histograms.png", "fit_residuals.png", "fit_difference.png")
 	if len(r.Profile) > 0 {
 		lo, hi := profileRange(c, r)
 		g, err := profilePanels(r.Test.AgeParam, r.Profile, r.ProfileZoom, r.Test.AgeInterval, r.Test.Dispersion, lo, hi)
 		if err != nil {
 			return nil, err
 		}
-		if err := writeFigure(filepath.Join(dir, "profile_burst_age.png"), g, 30*vg.Centimeter, 11*vg.Centimeter); err != nil {
+		if err := writeFigure(out, prefix+"profile_burst_age.png", g, 30*vg.Centimeter, 11*vg.Centimeter); err != nil {
 			return nil, err
 		}
-		outputs = append(outputs, "profile_burst_age.png")
 	}
 	bp, err := bootstrapPlot(r.Test.LR, r.Test.LRReplicates, "fitted smooth history")
 	if err != nil {
 		return nil, err
 	}
-	if err := writePlot(filepath.Join(dir, "bootstrap.png"), bp, 20*vg.Centimeter, 11*vg.Centimeter); err != nil {
+	if err := writePlot(out, prefix+"bootstrap.png", bp, 20*vg.Centimeter, 11*vg.Centimeter); err != nil {
 		return nil, err
 	}
 	hp, err := heightPlotFit(r.Heights)
 	if err != nil {
 		return nil, err
 	}
-	if err := writePlot(filepath.Join(dir, "height_check.png"), hp, 22*vg.Centimeter, 11*vg.Centimeter); err != nil {
+	if err := writePlot(out, prefix+"height_check.png", hp, 22*vg.Centimeter, 11*vg.Centimeter); err != nil {
 		return nil, err
 	}
-	outputs = append(outputs, "bootstrap.png", "height_check.png", "test.json")
-	return outputs, writeJSON(filepath.Join(dir, "test.json"), r.Report(c, outputs))
+	var outputs []string // the names in the test's own folder
+	for _, n := range append(out.Names(), prefix+"test.json") {
+		if rel, ok := strings.CutPrefix(n, prefix); ok {
+			outputs = append(outputs, rel)
+		}
+	}
+	return outputs, writeJSON(out, prefix+"test.json", r.Report(c, outputs))
 }
 
 // profileRange is the range the fit may choose for the profiled
