@@ -135,6 +135,32 @@ func ReadObserved(spec DataSpec, space Space, rejects io.Writer) (*Observed, err
 	return obs, nil
 }
 
+// CheckCatalog reads the catalog of spec through once, without cutting or
+// binning it: the format, the column mapping, every row's syntax and the
+// SHA-256. Cuts and Relations are not needed. Commands call it before
+// building templates, so that a malformed catalog is reported in a moment
+// rather than after minutes of simulation; the errors are ReadObserved's.
+func CheckCatalog(spec DataSpec) error {
+	open := spec.Open
+	if open == nil {
+		open = func() (io.ReadCloser, error) { return regular.Open(spec.Path) }
+	}
+	f, err := open()
+	if err != nil {
+		return fmt.Errorf("compare: observed catalog %s cannot be opened: %w", spec.Path, err)
+	}
+	defer f.Close()
+	opt := catalog.Options{Mapping: spec.Mapping, ZSunPc: spec.SunZPc, Format: spec.Format, Extension: spec.Extension, Name: spec.Path}
+	sum, err := catalog.Read(f, opt, nil)
+	if err != nil {
+		return fmt.Errorf("compare: reading observed catalog: %w", err)
+	}
+	if want := strings.ToLower(strings.TrimSpace(spec.SHA256)); want != "" && want != sum.SHA256Hex() {
+		return fmt.Errorf("compare: observed catalog %s has SHA-256 %s, but the scenario expects %s; point data.file at the intended catalog or update data.sha256", spec.Path, sum.SHA256Hex(), want)
+	}
+	return nil
+}
+
 // cutDetail says which value made a cut remove a star, for its row in
 // rejected.csv: the column as mapped, or the derived quantity (M_V from
 // apparent magnitude and parallax, z from parallax and position).

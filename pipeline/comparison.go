@@ -69,18 +69,41 @@ type ComparisonOptions struct {
 	Warn func(msg string)
 }
 
-// RequireData checks that a scenario names an observed catalog.
+// RequireData checks that a scenario names an observed catalog and that
+// the catalog reads (compare.CheckCatalog): format, columns, rows, checksum.
 func RequireData(res *scenarios.Resolved, source string) error {
 	if res.Scenario.Data.File == "" {
 		return InputError{fmt.Errorf("%s has no [data] section: name an observed catalog with data.file and map its columns in [data.columns] (see spinpop examples fit)", source)}
 	}
-	// Open the catalog once now, so that a missing file, a folder or a
-	// FIFO is reported before minutes of template building, not after.
+	// Open and read the catalog through once now, so that a missing file,
+	// a FIFO, a wrong format, mapping or checksum is reported in a moment,
+	// not after minutes of template building.
 	f, err := res.OpenData()
 	if err != nil {
 		return InputError{err}
 	}
-	return f.Close()
+	f.Close()
+	if err := compare.CheckCatalog(dataSpec(res)); err != nil {
+		return InputError{err}
+	}
+	return nil
+}
+
+// dataSpec is where the scenario's catalog is and how it is read; the
+// cuts and relations are the caller's to add.
+func dataSpec(res *scenarios.Resolved) compare.DataSpec {
+	s := &res.Scenario
+	return compare.DataSpec{
+		Path: res.DataPath, SHA256: s.Data.SHA256, Mapping: assemble.Mapping(s), SunZPc: s.Disk.SunHeightPc,
+		Format: s.Data.Format, Extension: s.Data.Extension,
+		Open: func() (io.ReadCloser, error) {
+			f, err := res.OpenData()
+			if err != nil {
+				return nil, err
+			}
+			return f, nil
+		},
+	}
 }
 
 // SetupComparison builds or reuses the scenario's templates, reads and
@@ -89,8 +112,10 @@ func RequireData(res *scenarios.Resolved, source string) error {
 func SetupComparison(ctx context.Context, res *scenarios.Resolved, opts ComparisonOptions) (*Comparison, error) {
 	start := time.Now()
 	arg := opts.Source
-	if err := RequireData(res, arg); err != nil {
-		return nil, err
+	// The catalog is read in full below; RequireData (which reads it too)
+	// is for callers that want a bad catalog reported before the templates.
+	if res.Scenario.Data.File == "" {
+		return nil, RequireData(res, arg)
 	}
 	s := &res.Scenario
 	workers := opts.Workers
@@ -174,18 +199,8 @@ func SetupComparison(ctx context.Context, res *scenarios.Resolved, opts Comparis
 		}
 	}
 
-	spec := compare.DataSpec{
-		Path: res.DataPath, SHA256: s.Data.SHA256, Mapping: assemble.Mapping(s), SunZPc: s.Disk.SunHeightPc,
-		Format: s.Data.Format, Extension: s.Data.Extension,
-		Cuts: assemble.Cuts(s), Relations: c.Built.Relations,
-		Open: func() (io.ReadCloser, error) {
-			f, err := res.OpenData()
-			if err != nil {
-				return nil, err
-			}
-			return f, nil
-		},
-	}
+	spec := dataSpec(res)
+	spec.Cuts, spec.Relations = assemble.Cuts(s), c.Built.Relations
 	c.DataFile = res.DataPath
 	if err := c.readData(spec, opts.WriteRejected); err != nil {
 		return nil, err

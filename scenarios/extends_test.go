@@ -215,3 +215,33 @@ func TestLoadMissingTopFile(t *testing.T) {
 	assert.Contains(t, err.Error(), p+": cannot read scenario")
 	assert.ErrorIs(t, err, fs.ErrNotExist)
 }
+
+// A rule between two keys blames the one the user changed: here the child
+// raises the bright limit above the faint limit its parent sets, and the
+// message must name the child's line, not the parent's (which was fine
+// alone). With both keys in one file the maximum is blamed, as before; an
+// override (--set) is blamed on its own label.
+func TestPairRuleBlamesTheLaterLayer(t *testing.T) {
+	dir := t.TempDir()
+	writeFiles(t, dir, map[string]string{
+		"parent.toml": minimal + "[survey]\nbright_limit_mag = 9.0\nfaint_limit_mag = 16.0\n",
+		"child.toml":  "extends = \"parent.toml\"\n\n[survey]\nbright_limit_mag = 20.0\n",
+	})
+	_, err := Load(filepath.Join(dir, "child.toml"))
+	require.Error(t, err)
+	assert.Contains(t, err.Error(), filepath.Join(dir, "child.toml")+":4: survey.faint_limit_mag = 16 must be greater than survey.bright_limit_mag = 20")
+
+	writeFiles(t, dir, map[string]string{"child.toml": "extends = \"parent.toml\"\n\n[survey]\nfaint_limit_mag = 5.0\n"})
+	_, err = Load(filepath.Join(dir, "child.toml"))
+	require.Error(t, err)
+	assert.Contains(t, err.Error(), filepath.Join(dir, "child.toml")+":4: survey.faint_limit_mag = 5 must be greater")
+
+	base, err := ReadBase(filepath.Join(dir, "parent.toml"))
+	require.NoError(t, err)
+	o, err := ParseOverride("survey.bright_limit_mag=20")
+	require.NoError(t, err)
+	_, err = base.Resolve(o)
+	require.Error(t, err)
+	assert.Contains(t, err.Error(), "--set survey.bright_limit_mag=20")
+	assert.NotContains(t, err.Error(), "parent.toml:")
+}

@@ -12,6 +12,10 @@ type origin struct {
 	file string // "" for the built-in defaults and derived defaults
 	line int
 	note string // for defaults: how the value was chosen
+	// rank is the layer's place in the merge, from 1 for the built-in
+	// defaults up (0: a derived default); a rule between two keys blames
+	// the one set in the later layer, the user's own change.
+	rank int
 }
 
 // merged is the merged tree and, for every key path in it (tables too),
@@ -20,13 +24,17 @@ type merged struct {
 	top     string // the loaded file, for problems with no better place
 	root    map[string]any
 	origins map[string]origin
+	layers  int // layers applied so far
 }
 
 func newMerged(top string) *merged {
 	return &merged{top: top, root: make(map[string]any), origins: make(map[string]origin)}
 }
 
-func (m *merged) apply(l *layer) { m.mergeTable(m.root, l.data, "", l, 0) }
+func (m *merged) apply(l *layer) {
+	m.layers++
+	m.mergeTable(m.root, l.data, "", l, 0)
+}
 
 // mergeTable merges src into dst; line is the line of path in l.
 func (m *merged) mergeTable(dst, src map[string]any, path string, l *layer, line int) {
@@ -63,11 +71,11 @@ func replacesTable(t map[string]any) bool {
 func (m *merged) originIn(l *layer, table bool, line int) origin {
 	if l.file == "" {
 		if table {
-			return origin{}
+			return origin{rank: m.layers}
 		}
-		return origin{note: "built-in default"}
+		return origin{note: "built-in default", rank: m.layers}
 	}
-	return origin{file: l.file, line: line}
+	return origin{file: l.file, line: line, rank: m.layers}
 }
 
 // record notes l as the origin of p and of everything below it. line is

@@ -303,12 +303,30 @@ func (v *decoder) inRange(p string, x, lo float64, loClosed bool, hi float64, hi
 	v.errAt(p, "%s = %s is out of range; it must be in %s%s, %s%s%s", p, formatFloat(x), l, formatFloat(lo), formatFloat(hi), r, because(why))
 }
 
-// less checks a < b, blaming the second key (usually the maximum).
+// less checks a < b. It blames the line of the key set in the later layer
+// (the user's change, not the file it extends, which was fine alone), the
+// second key (usually the maximum) when both come from the same layer.
 func (v *decoder) less(pa string, a float64, pb string, b float64, what string) {
 	if v.errs.isBad(pa) || v.errs.isBad(pb) || a < b {
 		return
 	}
-	v.errAt(pb, "%s = %s must be greater than %s = %s (%s)", pb, formatFloat(b), pa, formatFloat(a), what)
+	format, args := "%s = %s must be greater than %s = %s (%s)", []any{pb, formatFloat(b), pa, formatFloat(a), what}
+	if v.rankOf(pa) > v.rankOf(pb) {
+		if o, own := v.origins[pb]; own && o.file == "" && o.note != "" {
+			format += " (" + o.note + "; set it explicitly)"
+		}
+		v.errVia(pb, pa, format, args...)
+		return
+	}
+	v.errAt(pb, format, args...)
+}
+
+// rankOf is the merge rank of the layer that set p (see origin.rank).
+func (v *decoder) rankOf(p string) int {
+	if o, ok := v.origins[p]; ok {
+		return o.rank
+	}
+	return v.locate(p).rank
 }
 
 // oneOf checks an enumerated value and reports whether it is valid.

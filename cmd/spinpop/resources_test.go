@@ -35,3 +35,4 @@ func TestRunEstimateAndRefusal(t *testing.T) {
 	entries, _ := os.ReadDir(dir)
 	assert.Empty(t, entries, "a refused run writes nothing")
 }
+

@@ -5,6 +5,7 @@ import (
 	"errors"
 	"math"
 	"strconv"
+	"strings"
 
 	"spinpop/disk"
 )
@@ -35,11 +36,45 @@ func parseValue(b []byte) (float64, Reason, bool) {
 			return 0, ReasonMissing, false
 		}
 	}
+	if !plainNumber(b) {
+		return 0, ReasonNotNumeric, false
+	}
 	v, err := strconv.ParseFloat(string(b), 64)
 	if err != nil && !errors.Is(err, strconv.ErrRange) {
 		return 0, ReasonNotNumeric, false
 	}
 	return finite(v)
+}
+
+// plainNumber reports whether b is written as a table writer writes a
+// number: decimal digits, a sign, a point and an exponent (12, -0.5,
+// 1.5e-3), or a word for infinity or not-a-number (refused later as not
+// finite). strconv.ParseFloat alone also takes Go's own literals, such as
+// 1_0.5 (underscores between digits) and 0x1p3 (hexadecimal): in a
+// catalog those are typos or another program's syntax, and reading them
+// as 10.5 and 8 would hide the mistake.
+func plainNumber(b []byte) bool {
+	for _, c := range b {
+		switch {
+		case c >= '0' && c <= '9', c == '.', c == '+', c == '-', c == 'e', c == 'E':
+		default:
+			return isSpecialWord(b)
+		}
+	}
+	return true
+}
+
+// isSpecialWord reports the spellings of infinity and not-a-number that
+// ParseFloat takes (any case, optional sign).
+func isSpecialWord(b []byte) bool {
+	if len(b) > 0 && (b[0] == '+' || b[0] == '-') {
+		b = b[1:]
+	}
+	switch strings.ToLower(string(b)) {
+	case "inf", "infinity", "nan":
+		return true
+	}
+	return false
 }
 
 // finite accepts a number that is neither NaN nor infinite.

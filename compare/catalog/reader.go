@@ -11,6 +11,7 @@ import (
 	"hash"
 	"io"
 	"strconv"
+	"unicode/utf8"
 
 	"spinpop/internal/regular"
 )
@@ -220,9 +221,86 @@ func (rd *reader) next() ([]byte, error) {
 		return b, err
 	case errors.Is(err, errLineTooLong):
 		return nil, rd.errorf(rd.lr.line+1, ErrFormat, "line longer than %d bytes; is this a text table?", maxLineBytes)
+	case rd.sum.Compressed:
+		return nil, rd.gzipError(err)
 	default:
 		return nil, rd.errorf(rd.lr.line+1, ErrFormat, "reading: %v", err)
 	}
+}
+
+// gzipError explains a failure of the gzip layer. The gzip reader reports
+// bytes appended after the compressed stream as an "invalid header" (it
+// looks for a next member there), which named a line of text that is not
+// the problem; the problem is the file's tail.
+func (rd *reader) gzipError(err error) error {
+	after := fmt.Sprintf("after line %d of the decompressed text", rd.lr.line)
+	switch {
+	case errors.Is(err, gzip.ErrHeader):
+		return rd.errorf(0, ErrFormat, "the gzip stream ends (%s) but more bytes follow that are not another gzip member: something was appended to the compressed file, or it is damaged; remove the trailing bytes or compress the table again", after)
+	case errors.Is(err, gzip.ErrChecksum):
+		return rd.errorf(0, ErrFormat, "the gzip checksum does not match (%s): the compressed file is damaged; get a fresh copy", after)
+	case errors.Is(err, io.ErrUnexpectedEOF):
+		return rd.errorf(0, ErrFormat, "the gzip stream is cut short (%s): the file is truncated; get a complete copy", after)
+	}
+	return rd.errorf(0, ErrFormat, "decompressing (%s): %v; the gzip file is damaged", after, err)
+}
+
+// checkText refuses a line with bytes no text table holds: control
+// characters other than tab, carriage return and form feed, or mostly
+// invalid UTF-8. Without it the bytes of a binary file (or of a gzip file
+// of one) were split into "columns" and listed in a message, or read as a
+// header "with the wrong delimiter".
+func (rd *reader) checkText(line []byte) error {
+	bad, where := 0, -1
+	for i, c := range line {
+		if c < 0x20 && c != '\t' && c != '\r' && c != '\f' || c == 0x7f {
+			bad++
+			if where < 0 {
+				where = i
+			}
+		}
+	}
+	if bad == 0 && utf8.Valid(line) {
+		return nil
+	}
+	if bad == 0 {
+		// Text in another encoding (Latin-1 "°" or "µ" in a header) is
+		// still text; much invalid UTF-8 is not.
+		invalid := 0
+		for s := line; len(s) > 0; {
+			r, n := utf8.DecodeRune(s)
+			if r == utf8.RuneError && n <= 1 {
+				invalid++
+			}
+			s = s[max(n, 1):]
+		}
+		if invalid*4 < len(line) {
+			return nil
+		}
+	}
+	what := "text"
+	if rd.sum.Compressed {
+		what = "text inside the gzip file"
+	}
+	detail := "bytes that are not valid UTF-8 text"
+	switch {
+	case where >= 0 && line[where] == 0:
+		detail = fmt.Sprintf("a NUL byte at byte %d", where+1)
+	case where >= 0:
+		detail = fmt.Sprintf("the control byte 0x%02x at byte %d", line[where], where+1)
+	}
+	return rd.errorf(rd.lr.line, ErrFormat, "holds %s, so this is binary data, not a text table (the %s must be CSV or ECSV; FITS and Parquet files are recognised by their first bytes, gzip is the only compression read)", detail, what)
+}
+
+// blankName names the run of spaces and tabs b.
+func blankName(b []byte) string {
+	switch {
+	case bytes.IndexByte(b, '\t') >= 0 && bytes.IndexByte(b, ' ') >= 0:
+		return "spaces and tabs"
+	case bytes.IndexByte(b, '\t') >= 0:
+		return "a tab"
+	}
+	return "spaces"
 }
 
 // readHeader finds the format and the column-name row, and resolves the
@@ -238,8 +316,8 @@ func (rd *reader) readHeader() (*plan, error) {
 		if err != nil {
 			return nil, err
 		}
-		if bytes.IndexByte(line, 0) >= 0 {
-			return nil, rd.errorf(rd.lr.line, ErrFormat, "contains NUL bytes, so it is not a text table (only plain or gzip-compressed CSV/ECSV are read)")
+		if err := rd.checkText(line); err != nil {
+			return nil, err
 		}
 		if !isBlank(line) {
 			break
@@ -256,6 +334,13 @@ func (rd *reader) readHeader() (*plan, error) {
 			}
 			if err != nil {
 				return nil, err
+			}
+			if err := rd.checkText(line); err != nil {
+				return nil, err
+			}
+			if len(line) > 0 && line[0] != '#' && isComment(line) {
+				return nil, rd.errorf(rd.lr.line, ErrFormat, "this ECSV header line has %s before its \"#\"; every header line must start with \"#\" in the first column (indent the YAML after \"# \", with spaces)",
+					blankName(line[:len(line)-len(bytes.TrimLeft(line, " \t"))]))
 			}
 			if len(line) > 0 && line[0] == '#' {
 				t := line[1:]
@@ -283,6 +368,9 @@ func (rd *reader) readHeader() (*plan, error) {
 				return nil, rd.errorf(0, ErrEmpty, "file holds only comments; expected a header row naming the columns")
 			}
 			if err != nil {
+				return nil, err
+			}
+			if err := rd.checkText(line); err != nil {
 				return nil, err
 			}
 		}
