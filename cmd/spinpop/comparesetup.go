@@ -155,4 +155,3 @@ func printDataSummary(w io.Writer, d pipeline.DataSummary) {
 		fmt.Fprintf(w, "warning: %d catalog stars lie in comparison cells that no template star reached; they are left out of the comparison (raise compare.template_stars or use coarser bins to keep them)\n", d.Dropped)
 	}
 }
-

@@ -35,4 +35,3 @@ func TestRunEstimateAndRefusal(t *testing.T) {
 	entries, _ := os.ReadDir(dir)
 	assert.Empty(t, entries, "a refused run writes nothing")
 }
-
