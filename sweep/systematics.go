@@ -144,6 +144,9 @@ func NewSystematics(t *Table) *Systematics {
 	if floored > 0 {
 		s.Warnings = append(s.Warnings, fmt.Sprintf("under %d choice(s) no bootstrap replicate reached the observed likelihood ratio: their p-value is the floor 1/(B+1) of B replicates, and their significance a lower bound set by B, not by the data", floored))
 	}
+	if len(ageOK) == 1 && len(age) > 1 {
+		s.Warnings = append(s.Warnings, fmt.Sprintf("the burst model describes the catalog under one choice only (%s): the envelope over adequate choices is that choice's own interval, so the data have picked the model rather than bounded the systematics; the envelope over all choices shows how far the answer moves with a wrong pick", ageOK[0].Label))
+	}
 	if len(age) == 1 {
 		s.Warnings = append(s.Warnings, "only one choice is usable: the envelope is its own interval and says nothing about systematics")
 	}

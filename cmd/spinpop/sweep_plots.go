@@ -13,6 +13,7 @@ import (
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 
+	"spinpop/internal/figure"
 	"spinpop/sweep"
 )
 
@@ -81,11 +82,11 @@ func writeSweepPlots(out string, t *sweep.Table) ([]string, error) {
 			panels = append(panels, p)
 		}
 		cols := min(len(panels), 3)
-		grid := inRows(panels, cols)
+		grid := legendsInside(inRows(panels, cols))
 		name := filepath.Join("plots", fileSafe(key)+".png")
 		w := vg.Length(cols) * 12 * vg.Centimeter
 		h := vg.Length(len(grid)) * 9 * vg.Centimeter
-		if err := writeGrid(filepath.Join(out, name), grid, w, h); err != nil {
+		if err := writeFigure(filepath.Join(out, name), grid, w, h); err != nil {
 			return nil, err
 		}
 		written = append(written, name)
@@ -235,6 +236,23 @@ func sweepPanel(t *sweep.Table, m sweepMetric, a int, key string, xs []float64, 
 		legendRoom(p, len(names))
 	}
 	return p, nil
+}
+
+// legendsInside lays plots out with their legends inside the axes, in
+// the room legendRoom (or the systematics panel's spare rows) leaves
+// above the data: beside the axes a legend of long labels would squeeze
+// the data to nothing.
+func legendsInside(grid [][]*plot.Plot) figure.Layout {
+	l := make(figure.Layout, len(grid))
+	for i, row := range grid {
+		l[i] = make([]*figure.Panel, len(row))
+		for j, p := range row {
+			if p != nil {
+				l[i][j] = &figure.Panel{Plot: p, LegendInside: true}
+			}
+		}
+	}
+	return l
 }
 
 // legendRoom raises the top of the y axis so that a legend of n entries
