@@ -258,7 +258,7 @@ func finishSweep(out string, plan *sweep.Plan) (*sweep.Table, []string, error) {
 			return nil, nil, err
 		}
 		if row != nil {
-			if err := writeFigure(filepath.Join(out, "systematics.png"), legendsInside([][]*plot.Plot{row}), systematicsWidth, systematicsHeight(len(sy.Choices))); err != nil {
+			if err := writeFigureFile(filepath.Join(out, "systematics.png"), legendsInside([][]*plot.Plot{row}), systematicsWidth, systematicsHeight(len(sy.Choices))); err != nil {
 				return nil, nil, err
 			}
 			written = append(written, "systematics.png")

@@ -86,7 +86,7 @@ func writeSweepPlots(out string, t *sweep.Table) ([]string, error) {
 		name := filepath.Join("plots", fileSafe(key)+".png")
 		w := vg.Length(cols) * 12 * vg.Centimeter
 		h := vg.Length(len(grid)) * 9 * vg.Centimeter
-		if err := writeFigure(filepath.Join(out, name), grid, w, h); err != nil {
+		if err := writeFigureFile(filepath.Join(out, name), grid, w, h); err != nil {
 			return nil, err
 		}
 		written = append(written, name)
