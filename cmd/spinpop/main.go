@@ -26,6 +26,7 @@ import (
 	"runtime/debug"
 
 	"spinpop/internal/outset"
+	"spinpop/internal/workerpanic"
 	"spinpop/pipeline"
 )
 
@@ -70,15 +71,7 @@ func main() {
 	os.Exit(run(os.Args[1:], os.Stdout, os.Stderr))
 }
 
-func run(args []string, stdout, stderr io.Writer) (code int) {
-	// A panic is a bug of ours, never the user's input: it is reported as
-	// an internal error with what a bug report needs, and exits 1. (Panics
-	// on worker goroutines are carried here by the pools that run them.)
-	defer func() {
-		if p := recover(); p != nil {
-			code = reportPanic(p, debug.Stack(), stderr)
-		}
-	}()
+func run(args []string, stdout, stderr io.Writer) int {
 	if len(args) == 0 || args[0] == "-h" || args[0] == "--help" || args[0] == "help" {
 		printUsage(stdout)
 		if len(args) == 0 {
@@ -92,16 +85,30 @@ func run(args []string, stdout, stderr io.Writer) (code int) {
 	}
 	for _, c := range commands() {
 		if c.name == args[0] {
-			if stopProfile := startProfile(stderr); stopProfile != nil {
-				defer stopProfile()
-			}
-			err := c.run(args[1:], stdout, stderr)
-			return exitCode(err, stderr)
+			return runCommand(c, args[1:], stdout, stderr)
 		}
 	}
 	fmt.Fprintf(stderr, "spinpop: unknown command %q\n\n", args[0])
 	printUsage(stderr)
 	return 2
+}
+
+// runCommand runs one command and returns its exit status.
+func runCommand(c command, args []string, stdout, stderr io.Writer) (code int) {
+	// A panic is a bug of ours, never the user's input: it is reported as
+	// an internal error with what a bug report needs, and exits 1. (Panics
+	// on worker goroutines are carried here by the pools that run them;
+	// the command's deferred clean-ups, such as removing staged outputs,
+	// have run by the time it arrives.)
+	defer func() {
+		if p := recover(); p != nil {
+			code = reportPanic(p, debug.Stack(), stderr)
+		}
+	}()
+	if stopProfile := startProfile(stderr); stopProfile != nil {
+		defer stopProfile()
+	}
+	return exitCode(c.run(args, stdout, stderr), stderr)
 }
 
 func exitCode(err error, stderr io.Writer) int {
@@ -146,6 +153,10 @@ func runFailuref(format string, args ...any) error {
 // reportPanic prints a caught panic as an internal error and returns its
 // exit status, 1.
 func reportPanic(p any, stack []byte, stderr io.Writer) int {
+	if wp, ok := p.(*workerpanic.Panic); ok {
+		// The worker's own stack says where; the one here only how it got back.
+		p, stack = wp.Value, append(append(wp.Stack, "\ncarried to:\n"...), stack...)
+	}
 	fmt.Fprintf(stderr, "spinpop: internal error: %v\n", p)
 	fmt.Fprintf(stderr, "This is a bug in spinpop %s, not a fault of your input. Please report it with the command line,\n"+
 		"the scenario (spinpop check SCENARIO --json) and the trace below.\n\n%s", version, stack)
