@@ -67,7 +67,7 @@ type RegionMisfit struct {
 // ask for enough.
 func (a Adequacy) Adequate(alpha float64) bool { return a.PValue > alpha }
 
-// deviance writes each bin's contribution 2[n ln(n/μ) − (n − μ)] into per
+// deviance writes each bin's Poisson contribution 2[n ln(n/μ) − (n − μ)] into per
 // (if not nil) and returns the sum. A bin with data and μ ≤ 0 contributes
 // +Inf.
 func deviance(n, mu, per []float64) float64 {

@@ -249,7 +249,7 @@ func fitDeviance(like *Likelihood, f FitResult, regs []region) (devianceRecord, 
 	}
 	mu := like.Fitted(f.Weights, nil)
 	per := make([]float64, len(mu))
-	total := deviance(like.Counts(), mu, per)
+	total := deviance(like.Counts(), mu, per) + like.addConstraint(per)
 	return devianceRecord{total: total, regions: regionSums(regs, per)}, nil
 }
 

@@ -874,6 +874,31 @@ func (l *Likelihood) Fitted(weights, dst []float64) []float64 {
 	return dst
 }
 
+// addConstraint adds to per, bin by bin, the Barlow–Beeston-lite
+// constraint term of the last Fitted evaluation, (β_i − 1)² m_i/r_i =
+// (β_i − 1)²/δ_i² (twice the −½ q m of bbLogL), and returns its sum; 0
+// without template noise. A deviance without it would read a fit whose
+// per-bin factors absorb the misfit (weight piled into a noisy age bin)
+// as one that describes the catalog perfectly.
+func (l *Likelihood) addConstraint(per []float64) float64 {
+	if !l.bb {
+		return 0
+	}
+	var s float64
+	for i, m := range l.m {
+		r := l.r[i]
+		mu := l.scales[l.groupOf(i)] * m
+		if !(r > 0) || !(mu > 0) {
+			continue
+		}
+		dev := l.t[i]/mu - 1
+		q := dev * dev * m / r
+		per[i] += q
+		s += q
+	}
+	return s
+}
+
 // logLFull returns ln L at weights with its gradient with respect to the
 // weights (into grad) and to the expectation and variance of each bin in
 // template units (into dm and dv, see binDerivatives; dv is zeroed for

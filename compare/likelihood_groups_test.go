@@ -199,3 +199,38 @@ func (l *Likelihood) tplExpected(w []float64) []float64 {
 	stats.MatVec(l.rows, l.nb, l.k, w, out)
 	return out
 }
+
+// The deviance of a Barlow–Beeston-lite fit counts each bin's constraint
+// term as well as its Poisson term: with fixed normalisation and one age
+// bin, bin i's factor has the closed form β = ½[(1 − mδ²) + √((1 − mδ²)² +
+// 4nδ²)], δ² = v/m² (Conway 2011, "Incorporating nuisance parameters in
+// likelihoods for multisource spectra", eq. for the "lite" case [memory]),
+// and the deviance is Σ 2[βm − n + n ln(n/βm)] + (β − 1)²/δ². Templates
+// noisy enough for β to absorb the misfit must not read as a perfect fit.
+func TestBBLiteDevianceCountsTheConstraint(t *testing.T) {
+	sp, err := NewSpace(0.5, 1.5, 2, 1, 100, 2, []float64{0, 100})
+	require.NoError(t, err)
+	m := []float64{40, 25, 10, 60}
+	v := []float64{400, 150, 90, 30} // relative variances 0.25, 0.24, 0.9, 0.0083
+	n := []float64{70, 12, 0, 55}
+	tpl := &Templates{Space: sp, AgeEdgesGyr: []float64{0, 1}, Counts: m, Var: v, StarsDrawn: 1000, DrawnPerBin: []int64{1000}}
+	like, err := NewLikelihood(tpl, n, LikeOptions{Normalisation: NormAbsolute, MassScale: 1, TemplateNoise: NoiseBarlowBeeston})
+	require.NoError(t, err)
+	rec, err := fitDeviance(like, FitResult{Weights: []float64{1}}, nil)
+	require.NoError(t, err)
+	var want, poissonOnly float64
+	for i := range m {
+		d2 := v[i] / (m[i] * m[i])
+		a := 1 - m[i]*d2
+		beta := 0.5 * (a + math.Sqrt(a*a+4*n[i]*d2))
+		mu := beta * m[i]
+		p := 2 * mu
+		if n[i] > 0 {
+			p = 2 * (mu - n[i] + n[i]*math.Log(n[i]/mu))
+		}
+		poissonOnly += p
+		want += p + (beta-1)*(beta-1)/d2
+	}
+	assert.InDelta(t, want, rec.total, 1e-9*want)
+	assert.Greater(t, rec.total, poissonOnly+1, "the constraint terms are counted")
+}
