@@ -5,12 +5,14 @@ import (
 	"io"
 	"math"
 	"slices"
+	"strings"
 
 	"spinpop/scenarios"
 
 	"gonum.org/v1/plot/vg"
 
 	"spinpop/internal/figure"
+	"spinpop/internal/report"
 	"spinpop/pipeline"
 )
 
@@ -103,9 +105,53 @@ func runTestAlternatives(args []string, stdout, stderr io.Writer) error {
 			return err
 		}
 	}
-	outputs := append(out.Names(), "alternatives.json")
+	outputs := append(out.Names(), "alternatives.json", reportFile)
 	rep := o.Report(outputs)
 	if err := writeJSON(out, "alternatives.json", rep); err != nil {
+		return err
+	}
+	var text strings.Builder
+	w := &text
+	if res.Outcome != "prefers" {
+		fmt.Fprintf(w, "%s\n\n", res.Verdict)
+	}
+	printDataSummary(w, comps[0].DataSummary())
+	fmt.Fprintln(w)
+	for _, f := range res.Fits {
+		fmt.Fprintf(w, "%-24s ln L = %10.2f  k = %2d  AIC = %10.1f  BIC = %10.1f  deviance %.0f vs %.0f ± %.0f (p = %.3g)\n",
+			f.Name, f.LogL, f.K, f.AIC, f.BIC, f.Adequacy.Deviance, f.Adequacy.ReplicateMean, f.Adequacy.ReplicateSD, f.Adequacy.PValue)
+	}
+	for _, p := range res.Pairs {
+		fmt.Fprintf(w, "%s vs %s: 2Δln L = %.1f; bootstrap p under %s = %.3g, under %s = %.3g", p.B, p.A, p.LR, p.A, p.PUnderA, p.B, p.PUnderB)
+		if !math.IsNaN(p.LogBayesBOver) {
+			fmt.Fprintf(w, "; ln B = %.1f", p.LogBayesBOver)
+		}
+		fmt.Fprintln(w)
+	}
+	fmt.Fprintf(w, "\n%s\n", res.Verdict)
+	page := newReport("test-alternatives", "which explanation does the catalog prefer?", comps[0].Resolved, strings.Join(comps[0].Resolved.Files, " ← "))
+	page.Verdict = report.Line{Text: res.Verdict, Tone: map[string]report.Tone{"prefers": report.Good, "cannot-tell": report.Caution, "neither-fits": report.Bad}[res.Outcome]}
+	if page.Verdict.Tone == "" {
+		page.Verdict.Tone = report.Neutral
+	}
+	var fits, pairs []report.Row
+	for _, f := range res.Fits {
+		page.Adequacy = append(page.Adequacy, adequacyLine(fmt.Sprintf("%q", f.Name), f.Adequacy))
+		fits = append(fits, row(f.Name, fmt.Sprintf("ln L = %.2f", f.LogL), fmt.Sprintf("k = %d, AIC = %.1f, BIC = %.1f", f.K, f.AIC, f.BIC)))
+	}
+	for _, p := range res.Pairs {
+		note := fmt.Sprintf("bootstrap p under %s = %.3g, under %s = %.3g", p.A, p.PUnderA, p.B, p.PUnderB)
+		if !math.IsNaN(p.LogBayesBOver) {
+			note += fmt.Sprintf("; ln B = %.1f", p.LogBayesBOver)
+		}
+		pairs = append(pairs, row(p.B+" vs "+p.A, fmt.Sprintf("2Δln L = %.1f", p.LR), note))
+	}
+	page.Tables = []report.Table{{Title: "Each explanation fitted", Rows: fits}, {Title: "Pairs", Rows: pairs}}
+	page.Data = reportData(comps[0].DataSummary())
+	page.Summary = text.String()
+	page.Figures = figures(outputs, captions, "alternatives_difference.png", "alternatives_period_histograms.png")
+	page.Outputs = otherOutputs(outputs, page.Figures)
+	if err := writeReport(out, "", page); err != nil {
 		return err
 	}
 	if _, err := publish(out); err != nil {
@@ -114,23 +160,8 @@ func runTestAlternatives(args []string, stdout, stderr io.Writer) error {
 	if *cf.asJSON {
 		return printJSON(stdout, rep)
 	}
-	if res.Outcome != "prefers" {
-		fmt.Fprintf(stdout, "%s\n\n", res.Verdict)
-	}
-	printDataSummary(stdout, comps[0].DataSummary())
-	fmt.Fprintln(stdout)
-	for _, f := range res.Fits {
-		fmt.Fprintf(stdout, "%-24s ln L = %10.2f  k = %2d  AIC = %10.1f  BIC = %10.1f  deviance %.0f vs %.0f ± %.0f (p = %.3g)\n",
-			f.Name, f.LogL, f.K, f.AIC, f.BIC, f.Adequacy.Deviance, f.Adequacy.ReplicateMean, f.Adequacy.ReplicateSD, f.Adequacy.PValue)
-	}
-	for _, p := range res.Pairs {
-		fmt.Fprintf(stdout, "%s vs %s: 2Δln L = %.1f; bootstrap p under %s = %.3g, under %s = %.3g", p.B, p.A, p.LR, p.A, p.PUnderA, p.B, p.PUnderB)
-		if !math.IsNaN(p.LogBayesBOver) {
-			fmt.Fprintf(stdout, "; ln B = %.1f", p.LogBayesBOver)
-		}
-		fmt.Fprintln(stdout)
-	}
-	fmt.Fprintf(stdout, "\n%s\nwrote: %s\n", res.Verdict, wordList(outputs))
+	io.WriteString(stdout, text.String())
+	fmt.Fprintf(stdout, "wrote: %s\n", wordList(outputs))
 	return nil
 }
 

@@ -3,8 +3,10 @@ package main
 import (
 	"fmt"
 	"io"
+	"strings"
 
 	"spinpop/compare"
+	"spinpop/internal/report"
 	"spinpop/pipeline"
 
 	"gonum.org/v1/plot/vg"
@@ -66,7 +68,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	if err := writeFigure(out, "period_histograms.png", grid, 34*vg.Centimeter, 18*vg.Centimeter); err != nil {
 		return err
 	}
-	outputs := append(out.Names(), "compare.json")
+	outputs := append(out.Names(), "compare.json", reportFile)
 	params := map[string]float64{}
 	for i, n := range sc.Names {
 		params["history."+n] = sc.Theta[i]
@@ -87,36 +89,70 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	if err := writeJSON(out, "compare.json", rep); err != nil {
 		return err
 	}
+	var text strings.Builder
+	w := &text
+	gof := sc.GoodnessOfFit
+	if gof != nil && !gof.Adequate(0.01) {
+		fmt.Fprintf(w, "The scenario does not describe the catalog: deviance %.0f where its own replicates give %.0f ± %.0f (bootstrap p = %.3g, dispersion %.2f)%s.\n\n",
+			gof.Deviance, gof.ReplicateMean, gof.ReplicateSD, gof.PValue, gof.Dispersion, compare.WorstRegions(*gof))
+	}
+	printDataSummary(w, c.DataSummary())
+	fmt.Fprintf(w, "\nhistory %s:", sc.Label)
+	for i, n := range sc.Names {
+		fmt.Fprintf(w, " history.%s = %.4g", n, sc.Theta[i])
+	}
+	for i, n := range sc.NuisanceNames {
+		fmt.Fprintf(w, " %s = %.4g", n, sc.Nuisance[i])
+	}
+	fmt.Fprintf(w, "\nln L = %.2f (%s normalisation, template noise: %s); Pearson χ² = %.1f over %d bins\n", sc.LogL, cmp.Normalisation, cmp.TemplateNoise, sc.PearsonChi2, sc.NumBins)
+	if gof != nil {
+		fmt.Fprintf(w, "goodness of fit: deviance %.1f against %.1f ± %.1f from %d bootstrap replicates (p = %.3g, dispersion %.2f)\n",
+			gof.Deviance, gof.ReplicateMean, gof.ReplicateSD, gof.Replicates, gof.PValue, gof.Dispersion)
+	}
+	fmt.Fprintf(w, "marginals against a synthetic catalog of %d stars (two-sample KS; Anderson–Darling k-sample, Scholz & Stephens 1987):\n", sc.SyntheticStars)
+	for _, k := range pipeline.MarginalNames {
+		if m, ok := sc.Marginals[k]; ok {
+			fmt.Fprintf(w, "  %-13s KS D = %.4f p = %.3g; AD = %.2f p ≈ %.3g\n", k, m.KSD, m.KSP, m.ADStat, m.ADP)
+		}
+	}
+	// The report: the goodness of fit is the verdict of a comparison.
+	page := newReport("compare", "the scenario against its catalog", c.Resolved, strings.Join(c.Resolved.Files, " ← "))
+	page.Data = reportData(c.DataSummary())
+	if gof != nil {
+		page.Verdict = adequacyLine("The scenario ("+sc.Label+")", *gof)
+	} else {
+		page.Verdict = report.Line{Text: "Goodness of fit not calibrated (--replicates 0): the numbers below say how well the scenario fits, not whether the fit is adequate.", Tone: report.Caution}
+	}
+	rows := []report.Row{
+		row("ln L", fmt.Sprintf("%.2f", sc.LogL), fmt.Sprintf("%s normalisation, template noise: %s", cmp.Normalisation, cmp.TemplateNoise)),
+		row("Pearson χ²", fmt.Sprintf("%.1f", sc.PearsonChi2), fmt.Sprintf("over %d bins", sc.NumBins)),
+	}
+	for i, n := range sc.Names {
+		rows = append(rows, row("history."+n, fmt.Sprintf("%.4g", sc.Theta[i]), sc.Label))
+	}
+	for i, n := range sc.NuisanceNames {
+		rows = append(rows, row(n, fmt.Sprintf("%.4g", sc.Nuisance[i]), "nuisance parameter"))
+	}
+	for _, k := range pipeline.MarginalNames {
+		if m, ok := sc.Marginals[k]; ok {
+			rows = append(rows, row("marginal: "+k, fmt.Sprintf("KS p = %.3g; AD p ≈ %.3g", m.KSP, m.ADP),
+				fmt.Sprintf("KS D = %.4f, AD = %.2f, against %d synthetic stars", m.KSD, m.ADStat, sc.SyntheticStars)))
+		}
+	}
+	page.Tables = []report.Table{{Title: "The comparison", Rows: rows}}
+	page.Summary = text.String()
+	page.Figures = figures(outputs, captions, "residuals.png", "period_histograms.png")
+	page.Outputs = otherOutputs(outputs, page.Figures)
+	if err := writeReport(out, "", page); err != nil {
+		return err
+	}
 	if _, err := publish(out); err != nil {
 		return err
 	}
 	if *cf.asJSON {
 		return printJSON(stdout, rep)
 	}
-	gof := sc.GoodnessOfFit
-	if gof != nil && !gof.Adequate(0.01) {
-		fmt.Fprintf(stdout, "The scenario does not describe the catalog: deviance %.0f where its own replicates give %.0f ± %.0f (bootstrap p = %.3g, dispersion %.2f)%s.\n\n",
-			gof.Deviance, gof.ReplicateMean, gof.ReplicateSD, gof.PValue, gof.Dispersion, compare.WorstRegions(*gof))
-	}
-	printDataSummary(stdout, c.DataSummary())
-	fmt.Fprintf(stdout, "\nhistory %s:", sc.Label)
-	for i, n := range sc.Names {
-		fmt.Fprintf(stdout, " history.%s = %.4g", n, sc.Theta[i])
-	}
-	for i, n := range sc.NuisanceNames {
-		fmt.Fprintf(stdout, " %s = %.4g", n, sc.Nuisance[i])
-	}
-	fmt.Fprintf(stdout, "\nln L = %.2f (%s normalisation, template noise: %s); Pearson χ² = %.1f over %d bins\n", sc.LogL, cmp.Normalisation, cmp.TemplateNoise, sc.PearsonChi2, sc.NumBins)
-	if gof != nil {
-		fmt.Fprintf(stdout, "goodness of fit: deviance %.1f against %.1f ± %.1f from %d bootstrap replicates (p = %.3g, dispersion %.2f)\n",
-			gof.Deviance, gof.ReplicateMean, gof.ReplicateSD, gof.Replicates, gof.PValue, gof.Dispersion)
-	}
-	fmt.Fprintf(stdout, "marginals against a synthetic catalog of %d stars (two-sample KS; Anderson–Darling k-sample, Scholz & Stephens 1987):\n", sc.SyntheticStars)
-	for _, k := range pipeline.MarginalNames {
-		if m, ok := sc.Marginals[k]; ok {
-			fmt.Fprintf(stdout, "  %-13s KS D = %.4f p = %.3g; AD = %.2f p ≈ %.3g\n", k, m.KSD, m.KSP, m.ADStat, m.ADP)
-		}
-	}
+	io.WriteString(stdout, text.String())
 	fmt.Fprintf(stdout, "wrote: %s\n", wordList(outputs))
 	return nil
 }

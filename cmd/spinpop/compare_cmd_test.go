@@ -65,6 +65,18 @@ func TestTestBurstFindsTheHiddenBurst(t *testing.T) {
 	// stdout is read by people: no Go syntax for lists or maps.
 	assert.NotContains(t, stdout, "map[")
 	assert.NotContains(t, stdout, "wrote: [")
+	// The report: the verdict as printed, six figures, the catalog's checksum.
+	var tj struct {
+		Verdict string `json:"verdict"`
+		Data    struct {
+			SHA256 string `json:"sha256"`
+		} `json:"data"`
+		ScenarioSHA string `json:"scenario_sha256"`
+	}
+	tjb, err := os.ReadFile(filepath.Join(out, "test.json"))
+	require.NoError(t, err)
+	require.NoError(t, json.Unmarshal(tjb, &tj))
+	checkReport(t, out, []string{"burst at 0.7"}, 6, tj.Data.SHA256, tj.ScenarioSHA)
 	// With 30 replicates the bootstrap p-value cannot go below 1/31.
 	assert.Contains(t, stdout, "burst at 0.7")
 	var res struct {
@@ -109,12 +121,15 @@ func TestTestBurstFindsTheHiddenBurst(t *testing.T) {
 	assert.Equal(t, res1["p_value"], res2["p_value"])
 
 	// compare and heights on the same templates.
-	code, stdout, errs = runCLI("compare", sc, "--out", filepath.Join(t.TempDir(), "c"), "--templates", tpl, "--fit")
+	cdir, hdir := filepath.Join(t.TempDir(), "c"), filepath.Join(t.TempDir(), "h")
+	code, stdout, errs = runCLI("compare", sc, "--out", cdir, "--templates", tpl, "--fit")
 	require.Equal(t, 0, code, errs)
 	assert.Contains(t, stdout, "Pearson χ²")
 	assert.Contains(t, stdout, "log10_period")
-	code, stdout, errs = runCLI("heights", sc, "--out", filepath.Join(t.TempDir(), "h"), "--templates", tpl, "--json")
+	checkReport(t, cdir, []string{"describe", "Pearson χ²"}, 2, tj.Data.SHA256)
+	code, stdout, errs = runCLI("heights", sc, "--out", hdir, "--templates", tpl, "--json")
 	require.Equal(t, 0, code, errs)
+	checkReport(t, hdir, []string{"young fraction against height"}, 1, tj.Data.SHA256)
 	var h struct {
 		Fraction   []*float64 `json:"fraction"`
 		Hypotheses map[string]struct {
@@ -187,6 +202,7 @@ drop = ["burst"]
 	assert.Contains(t, res.Fits[1].Scenario, `alternative "stall"`)
 	assert.Equal(t, res.Fits[0].K-3, res.Fits[1].K, "the stall is fitted without the burst's age, width and fraction")
 	assert.Equal(t, "fit-small", res.Best, "the catalog was made with a burst under the empirical law: %s", stdout)
+	checkReport(t, out, []string{"fit-small"}, 2)
 	var data struct {
 		Data struct {
 			Compared int `json:"stars_compared"`

@@ -4,8 +4,10 @@ import (
 	"fmt"
 	"io"
 	"maps"
+	"strings"
 
 	"spinpop/compare"
+	"spinpop/internal/report"
 	"spinpop/pipeline"
 
 	"gonum.org/v1/plot/vg"
@@ -54,7 +56,7 @@ func runHeights(args []string, stdout, stderr io.Writer) error {
 	if err := writePlot(out, "height_check.png", p, 22*vg.Centimeter, 11*vg.Centimeter); err != nil {
 		return err
 	}
-	outputs := append(out.Names(), "heights.json")
+	outputs := append(out.Names(), "heights.json", reportFile)
 	rep := map[string]any{
 		"tool": "spinpop", "version": version, "scenario": path, "scenario_sha256": c.Resolved.Hash(), "data": c.DataSummary(),
 		"outputs": outputs,
@@ -63,16 +65,57 @@ func runHeights(args []string, stdout, stderr io.Writer) error {
 	if err := writeJSON(out, "heights.json", rep); err != nil {
 		return err
 	}
+	var text strings.Builder
+	printDataSummary(&text, c.DataSummary())
+	printHeightTable(&text, h)
+	page := newReport("heights", "young fraction against height above the plane", c.Resolved, strings.Join(c.Resolved.Files, " ← "))
+	page.Data = reportData(c.DataSummary())
+	page.Verdict = heightsVerdict(h)
+	var rows []report.Row
+	for _, x := range h.Hypotheses {
+		rows = append(rows, row(x.Name, fmt.Sprintf("binomial ln L = %.1f", x.LogL), ""))
+	}
+	page.Tables = []report.Table{{Title: "Each hypothesis against the young fraction by |z|", Rows: rows}}
+	page.Summary = text.String()
+	page.Figures = figures(outputs, captions, "height_check.png")
+	page.Outputs = otherOutputs(outputs, page.Figures)
+	if err := writeReport(out, "", page); err != nil {
+		return err
+	}
 	if _, err := publish(out); err != nil {
 		return err
 	}
 	if *cf.asJSON {
 		return printJSON(stdout, rep)
 	}
-	printDataSummary(stdout, c.DataSummary())
-	printHeightTable(stdout, h)
+	io.WriteString(stdout, text.String())
 	fmt.Fprintf(stdout, "wrote: %s\n", wordList(outputs))
 	return nil
+}
+
+// heightsVerdict names the hypothesis the young fraction by height
+// favours, and by how much (a difference in binomial ln L).
+func heightsVerdict(h *compare.HeightResult) report.Line {
+	if len(h.Hypotheses) < 2 {
+		return report.Line{Text: fmt.Sprintf("Young fraction against height, split at the %.2f Gyr gyrochrone.", h.SplitAgeGyr), Tone: report.Neutral}
+	}
+	best, second := 0, 1
+	if h.Hypotheses[1].LogL > h.Hypotheses[0].LogL {
+		best, second = 1, 0
+	}
+	for i := 2; i < len(h.Hypotheses); i++ {
+		switch {
+		case h.Hypotheses[i].LogL > h.Hypotheses[best].LogL:
+			best, second = i, best
+		case h.Hypotheses[i].LogL > h.Hypotheses[second].LogL:
+			second = i
+		}
+	}
+	d := h.Hypotheses[best].LogL - h.Hypotheses[second].LogL
+	return report.Line{Tone: report.Neutral, Text: fmt.Sprintf(
+		"The young fraction against height (split at the %.2f Gyr gyrochrone) is described better by %s than by %s: binomial Δln L = %.1f. "+
+			"This check uses the hypotheses fitted to the period–color plane; it is a consistency check, not a separate test.",
+		h.SplitAgeGyr, h.Hypotheses[best].Name, h.Hypotheses[second].Name, d)}
 }
 
 // printHeightTable prints the young fraction per |z| bin, data and each

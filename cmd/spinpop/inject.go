@@ -11,6 +11,7 @@ import (
 	"strings"
 
 	"spinpop/internal/figure"
+	"spinpop/internal/report"
 	"spinpop/pipeline"
 
 	"gonum.org/v1/plot/vg"
@@ -136,8 +137,23 @@ func injectCmd(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	if err := writePlot(out, "age_bias.png", bp, 18*vg.Centimeter, 12*vg.Centimeter); err != nil {
 		return err
 	}
-	rep.Outputs = append(out.Names(), "inject.json")
+	rep.Outputs = append(out.Names(), "inject.json", reportFile)
 	if err := writeJSON(out, "inject.json", rep); err != nil {
+		return err
+	}
+	var text strings.Builder
+	printInjectReport(&text, rep)
+	page := newReport("inject", "what can the burst test find in a catalog like yours?", c.Resolved, strings.Join(c.Resolved.Files, " ← "))
+	page.Data = reportData(rep.Data)
+	page.Verdict = report.Line{Text: plainWords(text.String()), Tone: report.Neutral}
+	if rep.FalseAlarm.Rate > 2*detectionP+0.05 {
+		page.Verdict.Tone = report.Caution
+		page.Warnings = append(page.Warnings, fmt.Sprintf("Smooth histories raise a false alarm in %s of mocks at p < %g: the test is not calibrated for this catalog.", pct(rep.FalseAlarm.Rate), detectionP))
+	}
+	page.Summary = text.String()
+	page.Figures = figures(rep.Outputs, captions, "recovery_map.png", "age_bias.png")
+	page.Outputs = otherOutputs(rep.Outputs, page.Figures)
+	if err := writeReport(out, "", page); err != nil {
 		return err
 	}
 	if _, err := publish(out); err != nil {
@@ -148,7 +164,7 @@ func injectCmd(ctx context.Context, args []string, stdout, stderr io.Writer) err
 		enc.SetIndent("", "  ")
 		return enc.Encode(rep)
 	}
-	printInjectReport(stdout, rep)
+	io.WriteString(stdout, text.String())
 	return nil
 }
 
@@ -253,4 +269,22 @@ func printInjectReport(w io.Writer, r *pipeline.InjectReport) {
 		fmt.Fprintf(w, "note: with %d mocks per cell every rate is uncertain by about ±%.0f %%; raise --replicates\n", r.Replicates, 100*0.5/math.Sqrt(float64(r.Replicates)))
 	}
 	fmt.Fprintf(w, "wrote: %s\n", wordList(r.Outputs))
+}
+
+// plainWords is the "In plain words" part of the printed injection report,
+// as one paragraph.
+func plainWords(text string) string {
+	_, after, ok := strings.Cut(text, "In plain words:\n")
+	if !ok {
+		return ""
+	}
+	var parts []string
+	for _, l := range strings.Split(after, "\n") {
+		l = strings.TrimSpace(l)
+		if l == "" || strings.HasPrefix(l, "wrote:") || strings.HasPrefix(l, "note:") {
+			continue
+		}
+		parts = append(parts, l)
+	}
+	return strings.Join(parts, " ")
 }

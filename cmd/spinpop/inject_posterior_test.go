@@ -145,6 +145,7 @@ func TestInjectAndPosterior(t *testing.T) {
 		code, stdout, stderr := ipRun(ctx, injectCmd, append(args, "--json")...)
 		require.Equal(t, 0, code, stderr)
 		ipCheckOutputs(t, out, "inject.json", "recovery_map.png", "age_bias.png", "rejected.csv")
+		checkReport(t, out, []string{"detects a burst"}, 2)
 
 		var rep ipInjectJSON
 		b, err := os.ReadFile(filepath.Join(out, "inject.json"))
@@ -215,6 +216,7 @@ func TestInjectAndPosterior(t *testing.T) {
 			"--walkers", "8", "--steps", "300", "--burn", "100", "--seed", "5")
 		require.Equal(t, 0, code, stderr)
 		ipCheckOutputs(t, out, "posterior.json", "chain.csv", "corner.png", "sfh.png", "rejected.csv")
+		checkReport(t, out, []string{"Posterior medians"}, 2)
 
 		var rep struct {
 			Walkers    int       `json:"walkers"`

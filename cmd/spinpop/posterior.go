@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"io"
 	"strconv"
+	"strings"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/vg"
@@ -15,6 +16,7 @@ import (
 	"spinpop/internal/figure"
 	"spinpop/internal/grid"
 	"spinpop/internal/outset"
+	"spinpop/internal/report"
 	"spinpop/pipeline"
 )
 
@@ -103,8 +105,35 @@ func posteriorCmd(ctx context.Context, args []string, stdout, stderr io.Writer) 
 	if err := writeFigure(out, "sfh.png", figure.Layout{figure.Of(sp...)}, 36*vg.Centimeter, 12*vg.Centimeter); err != nil {
 		return err
 	}
-	rep.Outputs = append(out.Names(), "posterior.json")
+	rep.Outputs = append(out.Names(), "posterior.json", reportFile)
 	if err := writeJSON(out, "posterior.json", rep); err != nil {
+		return err
+	}
+	var text strings.Builder
+	printPosteriorReport(&text, rep)
+	page := newReport("posterior", "posterior of the burst model's free parameters", c.Resolved, strings.Join(c.Resolved.Files, " ← "))
+	page.Data = reportData(rep.Data)
+	var medians []string
+	var rows []report.Row
+	for _, p := range rep.Parameters {
+		medians = append(medians, fmt.Sprintf("%s %s", paramLabel(p.Name), formatInterval(p.Median, p.Q16, p.Q84)))
+		conv := "converged"
+		if !p.Converged {
+			conv = "not converged"
+		}
+		rows = append(rows, row(paramLabel(p.Name), formatInterval(p.Median, p.Q16, p.Q84),
+			fmt.Sprintf("best sample %.4g; prior %s [%g, %g]; %s", p.MAP, p.Prior, p.PriorMin, p.PriorMax, conv)))
+	}
+	page.Verdict = report.Line{Tone: report.Neutral, Text: "Posterior medians with their 16–84 % ranges: " + strings.Join(medians, "; ") + "."}
+	page.Warnings = rep.Warnings
+	if len(rep.Warnings) > 0 {
+		page.Verdict.Tone = report.Caution
+	}
+	page.Tables = []report.Table{{Title: fmt.Sprintf("%d walkers × %d steps, first %d dropped; mean acceptance %.2f", rep.Walkers, rep.Steps, rep.Burn, rep.AcceptanceMean), Rows: rows}}
+	page.Summary = text.String()
+	page.Figures = figures(rep.Outputs, captions, "corner.png", "sfh.png")
+	page.Outputs = otherOutputs(rep.Outputs, page.Figures)
+	if err := writeReport(out, "", page); err != nil {
 		return err
 	}
 	if _, err := publish(out); err != nil {
@@ -115,7 +144,7 @@ func posteriorCmd(ctx context.Context, args []string, stdout, stderr io.Writer) 
 		enc.SetIndent("", "  ")
 		return enc.Encode(rep)
 	}
-	printPosteriorReport(stdout, rep)
+	io.WriteString(stdout, text.String())
 	return nil
 }
 

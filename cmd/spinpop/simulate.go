@@ -7,11 +7,13 @@ import (
 	"io"
 	"math"
 	"runtime"
+	"strings"
 
 	"gonum.org/v1/plot/vg"
 
 	"spinpop/internal/figure"
 	"spinpop/internal/outset"
+	"spinpop/internal/report"
 	"spinpop/model"
 	"spinpop/pipeline"
 	"spinpop/scenarios"
@@ -149,10 +151,13 @@ func simulate(ctx context.Context, res *scenarios.Resolved, path string, out *ou
 		}
 		sum.Outputs = append(sum.Outputs, names...)
 	}
-	sum.Outputs = append(sum.Outputs, "manifest.json")
+	sum.Outputs = append(sum.Outputs, "manifest.json", reportFile)
 	man := *sum
 	man.Resolved = string(res.Canonical())
 	if err := writeJSON(out, prefix+"manifest.json", man); err != nil {
+		return nil, err
+	}
+	if err := writeSimulationReport(out, prefix, res, path, sum); err != nil {
 		return nil, err
 	}
 	sum.Gyrochrones = nil
@@ -274,4 +279,48 @@ func printJSON(w io.Writer, v any) error {
 	enc := json.NewEncoder(w)
 	enc.SetIndent("", "  ")
 	return enc.Encode(v)
+}
+
+// writeSimulationReport writes simulate's report.html: what the survey saw
+// (and any warning) first, then the counts after each selection step.
+func writeSimulationReport(out *outset.Set, prefix string, res *scenarios.Resolved, path string, m *pipeline.Manifest) error {
+	rep := newReport("simulate", "the population as the survey sees it", res, path)
+	first := int64(0)
+	if len(m.Counts) > 0 {
+		first = m.Counts[0].Stars
+	}
+	rep.Verdict = report.Line{Tone: report.Neutral, Text: fmt.Sprintf(
+		"The survey's catalog holds %s of the %s stars generated (seed %d); the median age is %.2f Gyr in the catalog against %.2f Gyr for all dwarfs in the field.",
+		thousands(m.CatalogStars), thousands(first), m.Seed, m.MedianAgeGyr.Catalog, m.MedianAgeGyr.Generated)}
+	if len(m.Warnings) > 0 {
+		rep.Verdict.Tone = report.Caution
+	}
+	if m.CatalogStars == 0 {
+		rep.Verdict = report.Line{Tone: report.Bad, Text: fmt.Sprintf(
+			"The survey's catalog is empty: none of the %s stars generated passed the selection; the table below shows the step that removed the last of them.", thousands(first))}
+	}
+	rep.Warnings = m.Warnings
+	var rows []report.Row
+	for i, c := range m.Counts {
+		note := ""
+		if i > 0 && m.Counts[i-1].Stars > 0 {
+			note = fmt.Sprintf("%.1f %% of the step before", 100*float64(c.Stars)/float64(m.Counts[i-1].Stars))
+		}
+		rows = append(rows, report.Row{Name: c.Step, Value: thousands(c.Stars), Note: note})
+	}
+	makeup := []report.Row{
+		{Name: "catalog stars", Value: thousands(m.CatalogStars)},
+		{Name: "unresolved binaries", Value: thousands(m.Binaries)},
+		{Name: "evolved", Value: thousands(m.Evolved)},
+		{Name: "aliased periods", Value: thousands(m.Aliased), Note: "half or double the true period"},
+	}
+	rep.Tables = []report.Table{{Title: "Stars after each selection step", Rows: rows}, {Title: "The catalog's make-up", Rows: makeup}}
+	var text strings.Builder
+	if err := printSummary(&text, m, false); err != nil {
+		return err
+	}
+	rep.Summary = text.String()
+	rep.Figures = figures(m.Outputs, captions, "period_color.png", "period_histograms.png", "height.png", "age_selection.png")
+	rep.Outputs = otherOutputs(m.Outputs, rep.Figures)
+	return writeReport(out, prefix, rep)
 }

@@ -10,6 +10,7 @@ import (
 	"spinpop/compare"
 	"spinpop/internal/figure"
 	"spinpop/internal/outset"
+	"spinpop/internal/report"
 	"spinpop/pipeline"
 
 	"gonum.org/v1/plot/vg"
@@ -133,12 +134,58 @@ func writeBurstOutputs(out *outset.Set, prefix string, c *pipeline.Comparison, r
 		return nil, err
 	}
 	var outputs []string // the names in the test's own folder
-	for _, n := range append(out.Names(), prefix+"test.json") {
+	for _, n := range append(out.Names(), prefix+"test.json", prefix+reportFile) {
 		if rel, ok := strings.CutPrefix(n, prefix); ok {
 			outputs = append(outputs, rel)
 		}
 	}
-	return outputs, writeJSON(out, prefix+"test.json", r.Report(c, outputs))
+	if err := writeJSON(out, prefix+"test.json", r.Report(c, outputs)); err != nil {
+		return nil, err
+	}
+	return outputs, writeBurstReport(out, prefix, c, r, outputs)
+}
+
+// writeBurstReport writes the burst test's report.html: the verdict and
+// both models' goodness of fit first.
+func writeBurstReport(out *outset.Set, prefix string, c *pipeline.Comparison, r *pipeline.BurstOutcome, outputs []string) error {
+	t := r.Test
+	rep := newReport("test-burst", "does the catalog demand a burst?", c.Resolved, strings.Join(c.Resolved.Files, " ← "))
+	rep.Verdict = report.Line{Text: t.Verdict, Tone: strengthTone(t.Strength, t.Calibration)}
+	rep.Adequacy = []report.Line{adequacyLine("The smooth history", t.AdequacySmooth), adequacyLine("The history with a burst", t.AdequacyBurst)}
+	if t.StrengthReason != "" {
+		rep.Warnings = append(rep.Warnings, t.StrengthReason)
+	}
+	rep.Data = reportData(c.DataSummary())
+	rows := []report.Row{
+		row("ln L, smooth history", fmt.Sprintf("%.2f", t.Smooth.LogL), fmt.Sprintf("%d free parameters", t.KSmooth)),
+		row("ln L, with burst", fmt.Sprintf("%.2f", t.Burst.LogL), fmt.Sprintf("%d free parameters", t.KBurst)),
+		row("likelihood ratio 2Δln L", fmt.Sprintf("%.2f", t.LR), ""),
+		row("bootstrap p-value", fmt.Sprintf("%.4g", t.PValue), fmt.Sprintf("%d replicates; %.1fσ", t.Replicates, t.Significance)),
+		row("ΔAIC, ΔBIC (burst − smooth)", fmt.Sprintf("%.1f, %.1f", t.AICBurst-t.AICSmooth, t.BICBurst-t.BICSmooth), "negative favours the burst"),
+	}
+	if t.HasEvidence {
+		rows = append(rows, row("ln Bayes factor (burst/smooth)", fmt.Sprintf("%.2f", t.LogBayesFactor), t.EvidenceNote))
+	}
+	if t.AgeParam != "" {
+		iv := t.AgeInterval
+		rows = append(rows, row("burst age", fmt.Sprintf("%.3f Gyr", iv.Best),
+			fmt.Sprintf("68 %% %.3f–%.3f, 95 %% %.3f–%.3f Gyr (profile likelihood)", iv.Lo68, iv.Hi68, iv.Lo95, iv.Hi95)))
+	}
+	for i, n := range t.Burst.Names {
+		rows = append(rows, row("history."+n, fmt.Sprintf("%.4g", t.Burst.Theta[i]), "best fit with the burst"))
+	}
+	for i, n := range t.Burst.NuisanceNames {
+		rows = append(rows, row(n, fmt.Sprintf("%.4g | %.4g", t.Smooth.Nuisance[i], t.Burst.Nuisance[i]), "nuisance parameter: smooth | with burst"))
+	}
+	rep.Tables = []report.Table{{Title: "The test", Rows: rows}}
+	var sum strings.Builder
+	printDataSummary(&sum, c.DataSummary())
+	printBurstSummary(&sum, r)
+	rep.Summary = sum.String()
+	rep.Figures = figures(outputs, captions, "fit_residuals.png", "fit_difference.png", "fit_period_histograms.png",
+		"profile_burst_age.png", "bootstrap.png", "height_check.png")
+	rep.Outputs = otherOutputs(outputs, rep.Figures)
+	return writeReport(out, prefix, rep)
 }
 
 // profileRange is the range the fit may choose for the profiled

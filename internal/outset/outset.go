@@ -190,6 +190,20 @@ func (s *Set) Create(name string) (*File, error) {
 	return &File{f: f, final: s.Final(name)}, nil
 }
 
+// ReadStaged returns the contents of file name as written so far, before
+// publication: a report that embeds other files of the same set (the
+// figures in report.html) reads them here.
+func (s *Set) ReadStaged(name string) ([]byte, error) {
+	if !s.Has(name) {
+		return nil, fmt.Errorf("outset: %s is not in the set", name)
+	}
+	b, err := os.ReadFile(filepath.Join(s.stage, filepath.FromSlash(name)))
+	if err != nil {
+		return nil, &IOError{"reading", s.Final(name), err}
+	}
+	return b, nil
+}
+
 // Discard drops file name from the set (a file that turned out not to be
 // wanted, such as a catalog over its size limit).
 func (s *Set) Discard(name string) error {
@@ -308,12 +322,14 @@ func syncPath(p string) error {
 	return f.Sync()
 }
 
-// publishOrder is the order of publication: .json files (reports and
-// manifests, which describe the others) last, otherwise as written.
+// publishOrder is the order of publication: .json and .html files
+// (reports and manifests, which describe the others) last, otherwise as
+// written.
 func (s *Set) publishOrder() []string {
 	out := slices.Clone(s.names)
+	isReport := func(n string) bool { return strings.HasSuffix(n, ".json") || strings.HasSuffix(n, ".html") }
 	slices.SortStableFunc(out, func(a, b string) int {
-		ja, jb := strings.HasSuffix(a, ".json"), strings.HasSuffix(b, ".json")
+		ja, jb := isReport(a), isReport(b)
 		switch {
 		case ja == jb:
 			return 0

@@ -168,8 +168,25 @@ func TestUnfinishedPublicationIsRemovedWithForce(t *testing.T) {
 }
 
 func TestReportsArePublishedLast(t *testing.T) {
-	s := &Set{names: []string{"manifest.json", "a.png", "catalog.csv", "sub/test.json", "b.png"}}
-	assert.Equal(t, []string{"a.png", "catalog.csv", "b.png", "manifest.json", "sub/test.json"}, s.publishOrder())
+	s := &Set{names: []string{"manifest.json", "a.png", "report.html", "catalog.csv", "sub/test.json", "b.png"}}
+	assert.Equal(t, []string{"a.png", "catalog.csv", "b.png", "manifest.json", "report.html", "sub/test.json"}, s.publishOrder())
+}
+
+// A report that embeds the set's figures reads them before publication;
+// a name not in the set is refused.
+func TestReadStaged(t *testing.T) {
+	dir := t.TempDir()
+	s, err := Open(dir, Options{})
+	require.NoError(t, err)
+	defer s.Close()
+	write(t, s, "a.png", "png bytes")
+	b, err := s.ReadStaged("a.png")
+	require.NoError(t, err)
+	assert.Equal(t, "png bytes", string(b))
+	_, err = os.Stat(filepath.Join(dir, "a.png"))
+	assert.True(t, os.IsNotExist(err), "not published yet")
+	_, err = s.ReadStaged("b.png")
+	assert.Error(t, err)
 }
 
 func TestNamesStayInside(t *testing.T) {
