@@ -132,8 +132,16 @@ func TestStallOpensGapWithoutBurst(t *testing.T) {
 	p1, g1 := counts(true)
 	require.Greater(t, p1, 150)
 	dp, dg := density(p1, g1)
-	assert.Less(t, dg/dp, 0.7, "stall: a sparse band above the pile-up (pile %d, gap %d)", p1, g1)
+	withStall := dg / dp
+	t.Logf("stall: pile %d, gap %d, gap/pile density %.3f", p1, g1, withStall)
+	assert.Less(t, withStall, 0.8, "stall: a sparse band above the pile-up (pile %d, gap %d)", p1, g1)
 	p0, g0 := counts(false)
 	dp, dg = density(p0, g0)
+	t.Logf("no stall: pile %d, gap %d, gap/pile density %.3f", p0, g0, dg/dp)
 	assert.Greater(t, dg/dp, 1.0, "no stall: no gap (%d, %d)", p0, g0)
+	// The gap is the stall's doing: it lowers the density ratio by more
+	// than half. (Measured: 0.75 against 2.2 in the high-latitude field of
+	// issue 11, whose older mix fills the gap more than the earlier
+	// low-latitude field did, where the first bound was 0.7.)
+	assert.Less(t, withStall, 0.5*dg/dp, "the stall empties the band")
 }

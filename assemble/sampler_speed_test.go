@@ -31,7 +31,9 @@ func resolveBase(t *testing.T, sets ...string) *scenarios.Scenario {
 // The share kept is the sampler's exact ratio of integrals
 // (disk.Sampler.ProposalEfficiency), not a timing.
 func TestBuildRefusesACrawlingSampler(t *testing.T) {
-	_, err := Build(resolveBase(t, "disk.sigma_10gyr_kms=1.0", "disk.sheet_sigma_kms=1.0"))
+	// A field looking away from the plane (the base field looks down,
+	// through the midplane, at b = −34°).
+	_, err := Build(resolveBase(t, "disk.sigma_10gyr_kms=1.0", "disk.sheet_sigma_kms=1.0", "survey.field.b_deg=34.0"))
 	require.Error(t, err)
 	assert.Contains(t, err.Error(), "disk.sigma_10gyr_kms = 1 and disk.sheet_sigma_kms = 1 make a disk so thin")
 	assert.Contains(t, err.Error(), "would keep 1 proposal in")

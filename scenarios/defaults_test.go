@@ -49,8 +49,8 @@ func TestDefaultsFilled(t *testing.T) {
 
 	// Derived defaults.
 	// Source: Nyquist sampling: a period needs at least two samples per cycle.
-	assert.Equal(t, 2*0.0204, s.Cuts.PeriodMinD)
-	assert.Equal(t, 1400.0/3, s.Cuts.PeriodMaxD, "baseline holds min_cycles cycles")
+	assert.Equal(t, 2*0.03125, s.Cuts.PeriodMinD)
+	assert.Equal(t, 1000.0/3, s.Cuts.PeriodMaxD, "baseline holds min_cycles cycles")
 	assert.Equal(t, DefaultAgeBinEdges(10), s.Disk.AgeBinEdgesGyr)
 }
 

@@ -28,7 +28,7 @@ func TestExamplesLoad(t *testing.T) {
 		"floor":   {Kind: "constant", Values: map[string]float64{"weight": 0.6}, Arrays: map[string][]float64{}},
 		"decline": {Kind: "exponential", Values: map[string]float64{"timescale_gyr": 8, "weight": 0.4}, Arrays: map[string][]float64{}},
 	}, b.History.Parts)
-	assert.Equal(t, Field{Kind: "cone", LDeg: 58, BDeg: 21, RadiusDeg: 11, DistanceMaxPc: 1500}, b.Survey.Field)
+	assert.Equal(t, Field{Kind: "cone", LDeg: 197, BDeg: -34, RadiusDeg: 8, DistanceMaxPc: 1500}, b.Survey.Field)
 
 	smooth, err := LoadExample("smooth.toml")
 	require.NoError(t, err)

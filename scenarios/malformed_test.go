@@ -537,7 +537,7 @@ var malformedCases = []malformedCase{
 		text: minimal + "[cuts]\nperiod_max_d = 0.01\n",
 		// period_min_d defaults to 2 × 0.0204 d, above the explicit maximum.
 		lineOf: "period_max_d",
-		want:   []string{"cuts.period_max_d = 0.01 must be greater than cuts.period_min_d = 0.0408 (empty period range)"},
+		want:   []string{"cuts.period_max_d = 0.01 must be greater than cuts.period_min_d = 0.0625 (empty period range)"},
 	},
 }
 
@@ -614,7 +614,7 @@ func TestBuiltinDefaultBlamedAsDefault(t *testing.T) {
 	text := minimal + "[cuts]\nperiod_min_d = 600.0\n"
 	_, err := LoadBytes("x.toml", []byte(text), nil)
 	require.Error(t, err)
-	assert.Contains(t, err.Error(), "cuts.period_max_d = 466.6666666666667 must be greater than cuts.period_min_d = 600 (empty period range) (default: survey.baseline_d / survey.min_cycles; set it explicitly)")
+	assert.Contains(t, err.Error(), "cuts.period_max_d = 333.3333333333333 must be greater than cuts.period_min_d = 600 (empty period range) (default: survey.baseline_d / survey.min_cycles; set it explicitly)")
 }
 
 func TestTooManyErrorsAreCapped(t *testing.T) {

@@ -146,13 +146,13 @@ type Spots struct {
 type Survey struct {
 	Name             string  `toml:"name"`                 // default ""
 	Band             string  `toml:"band"`                 // "V" (default) or "Ks"
-	BrightLimitMag   float64 `toml:"bright_limit_mag"`     // default 9
-	FaintLimitMag    float64 `toml:"faint_limit_mag"`      // default 16
-	NoiseFloorPpm    float64 `toml:"noise_floor_ppm"`      // per cadence; default 60
-	NoiseRefMag      float64 `toml:"noise_ref_mag"`        // default 12
-	NoisePpmAtRefMag float64 `toml:"noise_ppm_at_ref_mag"` // default 250
-	CadenceD         float64 `toml:"cadence_d"`            // default 0.0204 (about 30 min)
-	BaselineD        float64 `toml:"baseline_d"`           // default 1400
+	BrightLimitMag   float64 `toml:"bright_limit_mag"`     // default 10
+	FaintLimitMag    float64 `toml:"faint_limit_mag"`      // default 16.5
+	NoiseFloorPpm    float64 `toml:"noise_floor_ppm"`      // per cadence; default 70
+	NoiseRefMag      float64 `toml:"noise_ref_mag"`        // default 13
+	NoisePpmAtRefMag float64 `toml:"noise_ppm_at_ref_mag"` // default 320
+	CadenceD         float64 `toml:"cadence_d"`            // default 0.03125 (45 min)
+	BaselineD        float64 `toml:"baseline_d"`           // default 1000
 	MinCycles        float64 `toml:"min_cycles"`           // default 3
 	DetectionSNR     float64 `toml:"detection_snr"`        // default 10
 	DetectionSharp   float64 `toml:"detection_sharpness"`  // logistic slope of detection in ln SNR; default 4

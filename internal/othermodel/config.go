@@ -77,10 +77,10 @@ type Survey struct {
 // examples change.
 func ExampleSurvey() Survey {
 	return Survey{
-		LDeg: 58, BDeg: 21, RadiusDeg: 11, DistMaxPc: 1500,
-		VMinMag: 9, VMaxMag: 16,
+		LDeg: 197, BDeg: -34, RadiusDeg: 8, DistMaxPc: 1500,
+		VMinMag: 10, VMaxMag: 16.5,
 		BVMinMag: 0.45, BVMaxMag: 1.6,
-		PeriodMinD: 2 * 0.0204, PeriodMaxD: 1400.0 / 3.0,
+		PeriodMinD: 2 * 0.03125, PeriodMaxD: 1000.0 / 3.0,
 	}
 }
 
@@ -140,10 +140,11 @@ type Config struct {
 }
 
 // DefaultConfig returns the model with the example survey, a constant
-// history, 30,000 catalog stars and the Barnes (2007) law.
+// history, 24,000 catalog stars (the demo catalog's size) and the Barnes
+// (2007) law.
 func DefaultConfig() Config {
 	return Config{
-		Stars:   30000,
+		Stars:   24000,
 		History: SmoothHistory(),
 		Survey:  ExampleSurvey(),
 

@@ -121,7 +121,7 @@ func round(v, scale float64) float64 { return math.Round(v*scale) / scale }
 
 // CatalogHeader is the CSV header: the measured columns the example
 // scenario's [data.columns] maps, then truth columns the reader ignores.
-const CatalogHeader = "source_id,prot_d,bv_mag,vmag,plx_mas,ra_deg,dec_deg,true_age_gyr,true_mass_msun,true_dist_pc,true_z_pc,true_period_d"
+const CatalogHeader = "star_id,prot_d,bv_mag,vmag,plx_mas,ra_deg,dec_deg,true_age_gyr,true_mass_msun,true_dist_pc,true_z_pc,true_period_d"
 
 // WriteCatalog generates a catalog with cfg and seed and writes it to path
 // as CSV (under a temporary name, then renamed; an existing file is an
