@@ -189,7 +189,8 @@ func ageBiasPlotInject(rep *pipeline.InjectReport) (*plot.Plot, error) {
 		p.Add(bars, line, sc)
 		p.Legend.Add(fmt.Sprintf("%g %% of the mass", 100*frac), sc)
 	}
-	// Room above the bars for the legend, one row per fraction.
+	// The axis holds every bar with a twentieth of its span to spare (the
+	// legend sits beside the plot, not over it).
 	ylo, yhi := 0.0, 0.0
 	for _, c := range rep.Cells {
 		ylo, yhi = math.Min(ylo, c.AgeBiasQ16Gyr), math.Max(yhi, c.AgeBiasQ84Gyr)
@@ -198,9 +199,7 @@ func ageBiasPlotInject(rep *pipeline.InjectReport) (*plot.Plot, error) {
 		ylo, yhi = -0.01, 0.01
 	}
 	span := yhi - ylo
-	ylo -= 0.05 * span
-	head := math.Min(0.6, 0.06*float64(nf)+0.06)
-	p.Y.Min, p.Y.Max = ylo, ylo+(yhi-ylo)/(1-head)
+	p.Y.Min, p.Y.Max = ylo-0.05*span, yhi+0.05*span
 	p.X.Min, p.X.Max = xmin, xmax
 	p.Legend.Top = true
 	p.Legend.Left = false
@@ -409,7 +408,7 @@ func cornerPair(p *plot.Plot, rep *pipeline.PosteriorReport, xe1, ye1, samples [
 		}
 	}
 	// Share of samples per cell; one color scale for every pair panel.
-	scale := figure.Sequential(1, "")
+	scale := cornerScale
 	p.Add(&figure.Cells{XEdges: xe, YEdges: ye, Scale: scale, SkipEmpty: true,
 		Value: func(i, j int) float64 {
 			v := h.n[i*bins+j]
@@ -510,8 +509,12 @@ func sfhBandPlot(title string, ages, med, lo, hi, mapRate []float64, logY bool) 
 	return p, nil
 }
 
-// cornerLayout wraps the corner plot's panels; their small legends (none)
-// and the diagonal's titles stay inside.
+// cornerScale is the one color scale of a corner plot's pair panels:
+// samples per cell as a share of the panel's fullest cell.
+var cornerScale = figure.Sequential(1, "samples per cell, share of the fullest")
+
+// cornerLayout wraps the corner plot's panels, their titles inside, and
+// puts the pair panels' one color bar in the empty corner at the top right.
 func cornerLayout(g [][]*plot.Plot) figure.Layout {
 	out := make(figure.Layout, len(g))
 	for i, row := range g {
@@ -521,6 +524,9 @@ func cornerLayout(g [][]*plot.Plot) figure.Layout {
 				out[i][j] = &figure.Panel{Plot: p, LegendInside: true}
 			}
 		}
+	}
+	if d := len(g); d >= 2 && out[0][d-1] == nil {
+		out[0][d-1] = &figure.Panel{Bar: cornerScale}
 	}
 	return out
 }

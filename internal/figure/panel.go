@@ -40,9 +40,17 @@ const (
 	gap      = vg.Length(6)
 )
 
-// Draw draws the panel on c.
+// Draw draws the panel on c. A panel with a Bar and no Plot is a colour
+// bar alone (the one scale of a grid of maps, such as a corner plot's).
 func (pn *Panel) Draw(c draw.Canvas) {
 	p := pn.Plot
+	if p == nil {
+		if pn.Bar != nil {
+			h := c.Max.Y - c.Min.Y
+			drawBar(c, pn.Bar, c.Min.X+(c.Max.X-c.Min.X)/3, c.Min.Y+0.15*h, c.Max.Y-0.15*h)
+		}
+		return
+	}
 	var leg *plot.Legend
 	if !pn.LegendInside && hasEntries(p) {
 		l := p.Legend
