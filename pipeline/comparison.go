@@ -187,7 +187,7 @@ func SetupComparison(ctx context.Context, res *scenarios.Resolved, opts Comparis
 			return nil, err
 		}
 		return nil, InputError{fmt.Errorf("%s: %w; the observed catalog is not at fault and was not compared",
-			arg, &EmptySelection{What: fmt.Sprintf("the model (none of its %d template stars; the table below is of a run of %d)", c.Templates.StarsDrawn, counts[0].Stars), Counts: counts})}
+			arg, &EmptySelection{What: fmt.Sprintf("the model (none of its %d template stars)", c.Templates.StarsDrawn), Counts: counts})}
 	}
 	if s.Compare.MaskAgeGyr > 0 {
 		c.Mask = compare.YoungMask(c.Space, c.GyrochroneAt(s.Compare.MaskAgeGyr), s.Compare.MaskMarginDex)
@@ -249,6 +249,11 @@ func (c *Comparison) readData(spec compare.DataSpec, writeRejected func(write fu
 	}
 	c.MaskedStars, c.MaskedBins = c.Observed.LeftOut[LeftOutYoung], nonZero(maskedIn)
 	c.DroppedStars, c.DroppedBins = c.Observed.LeftOut[LeftOutUnreached], nonZero(droppedIn)
+	if n := c.Observed.LeftOut[LeftOutUnreached]; c.Observed.N == 0 && n > 0 {
+		// The catalog has stars; the model put none where they are.
+		return InputError{fmt.Errorf("%s: the model's selection is too small or lies elsewhere: all %d catalog stars that pass the cuts lie in cells where none of its %.0f template stars fell (the catalog is not at fault; raise compare.template_stars, or compare the scenario's survey and cuts with the catalog's)",
+			c.Source, n, sum(c.Templates.Counts))}
+	}
 	if c.Observed.N == 0 {
 		return InputError{fmt.Errorf("%s: no star of the catalog passes the cuts and lies in the comparison space (cut away: %v; unusable: %v; left out: %v)", spec.Path, c.Observed.CutAway, c.Observed.Rejected, c.Observed.LeftOut)}
 	}

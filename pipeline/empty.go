@@ -135,3 +135,11 @@ func StepCounts(t *model.Tally) []StepCount {
 	}
 	return out
 }
+
+func sum(x []float64) float64 {
+	s := 0.0
+	for _, v := range x {
+		s += v
+	}
+	return s
+}
