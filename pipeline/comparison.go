@@ -251,7 +251,7 @@ func (c *Comparison) readData(spec compare.DataSpec, writeRejected func(write fu
 	c.DroppedStars, c.DroppedBins = c.Observed.LeftOut[LeftOutUnreached], nonZero(droppedIn)
 	if n := c.Observed.LeftOut[LeftOutUnreached]; c.Observed.N == 0 && n > 0 {
 		// The catalog has stars; the model put none where they are.
-		return InputError{fmt.Errorf("%s: the model's selection is too small or lies elsewhere: all %d catalog stars that pass the cuts lie in cells where none of its %.0f template stars fell (the catalog is not at fault; raise compare.template_stars, or compare the scenario's survey and cuts with the catalog's)",
+		return InputError{fmt.Errorf("%s: the model's selection is too small or lies elsewhere: all %d catalog stars that pass the cuts lie in cells that none of the model's %.0f template stars in the comparison space reached (the catalog is not at fault; raise compare.template_stars, or compare the scenario's survey and cuts with the catalog's)",
 			c.Source, n, sum(c.Templates.Counts))}
 	}
 	if c.Observed.N == 0 {
