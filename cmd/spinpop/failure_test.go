@@ -156,7 +156,7 @@ func TestSimulateEmptySelection(t *testing.T) {
 	assert.Contains(t, out, "the magnitude_range step removed the last")
 	assert.Contains(t, errs, "survey.bright_limit_mag")
 	assert.NotContains(t, out, "NaN")
-	assert.Equal(t, []string{"manifest.json"}, visibleFiles(t, dir), "only the manifest: no catalog of no stars, no empty plots")
+	assert.Equal(t, []string{"manifest.json", "report.html"}, visibleFiles(t, dir), "the manifest and its report only: no catalog of no stars, no empty plots")
 	b, err := os.ReadFile(filepath.Join(dir, "manifest.json"))
 	require.NoError(t, err)
 	var man map[string]any
@@ -252,7 +252,7 @@ func TestForceNeverMixesTwoRuns(t *testing.T) {
 	require.Contains(t, visibleFiles(t, dir), "period_color.png")
 	code, _, errs = runCLI("simulate", sc, "--out", dir, "--force", "--set", "output.plots=false", "--seed", "99")
 	require.Equal(t, 0, code, errs)
-	assert.Equal(t, []string{"catalog.csv", "manifest.json"}, visibleFiles(t, dir))
+	assert.Equal(t, []string{"catalog.csv", "manifest.json", "report.html"}, visibleFiles(t, dir))
 }
 
 // helperEnv makes the test binary run spinpop's main on the arguments in
