@@ -172,6 +172,11 @@ func (v *decoder) validateHistory(h *History) {
 	if len(v.errs.errs)+v.errs.dropped > before || v.errs.isBad("history") || v.errs.isBad("history.max_age_gyr") {
 		return // sfh.New would only repeat what is said
 	}
+	for n := range h.Parts {
+		if v.errs.isBad(joinKey("history."+n, "kind")) {
+			return // reported when decoded; building would call the kind ""
+		}
+	}
 	if _, err := BuildHistory(h); err != nil {
 		key := "history"
 		var pe *sfh.ParamError

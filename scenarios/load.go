@@ -258,6 +258,10 @@ func parseLayer(name string, data []byte) (l *layer, err error) {
 			l, err = nil, ValidationErrors{{File: name, Msg: fmt.Sprintf("not a readable TOML file (the parser failed: %v)", r)}}
 		}
 	}()
+	if line, b := binaryByte(data); line > 0 {
+		return nil, ValidationErrors{{File: name, Line: line,
+			Msg: fmt.Sprintf("holds the byte 0x%02x, which no text file holds: this is binary data, not a TOML scenario (was another file given by mistake?)", b)}}
+	}
 	if line := nestingTooDeep(data); line > 0 {
 		return nil, ValidationErrors{{File: name, Line: line,
 			Msg: fmt.Sprintf("keys or tables nest more than %d levels deep here; a scenario needs a few at most (is this a scenario file?)", maxNesting)}}
@@ -294,4 +298,22 @@ func errText(err error) string {
 		return pe.Err.Error()
 	}
 	return err.Error()
+}
+
+// binaryByte returns the line of the first control byte a text file does
+// not hold (anything below 0x20 but tab, line feed and carriage return, or
+// DEL), and the byte; line 0 when there is none. TOML forbids them outside
+// comments too, but its parser's message ("expected '=' but got '<'")
+// hides that the file is not text at all.
+func binaryByte(data []byte) (line int, b byte) {
+	line = 1
+	for _, c := range data {
+		switch {
+		case c == '\n':
+			line++
+		case c < 0x20 && c != '\t' && c != '\r' || c == 0x7f:
+			return line, c
+		}
+	}
+	return 0, 0
 }

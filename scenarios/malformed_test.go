@@ -282,7 +282,7 @@ var malformedCases = []malformedCase{
 		name:   "binary garbage",
 		text:   "\x00\x01\x02\xff\xfe\x89PNG\r\n\x1a\n",
 		lineOf: "",
-		want:   []string{"x.toml", "not valid TOML"},
+		want:   []string{"x.toml:1: holds the byte 0x00, which no text file holds: this is binary data, not a TOML scenario"},
 	},
 	{
 		name: "empty file",

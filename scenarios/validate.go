@@ -162,7 +162,7 @@ func (v *decoder) validateSurvey(sv *Survey) {
 	v.inRange("survey.half_alias_prob", sv.HalfAliasProb, 0, true, 1, true, "")
 	v.inRange("survey.double_alias_prob", sv.DoubleAliasProb, 0, true, 1, true, "")
 	if sum := sv.HalfAliasProb + sv.DoubleAliasProb; sum > 1 && !v.errs.isBad("survey.half_alias_prob") && !v.errs.isBad("survey.double_alias_prob") {
-		v.errAt("survey.double_alias_prob", "survey.half_alias_prob + survey.double_alias_prob = %s; as probabilities of exclusive outcomes they must add up to at most 1", formatFloat(sum))
+		v.errAt("survey.double_alias_prob", "survey.half_alias_prob + survey.double_alias_prob = %.6g; as probabilities of exclusive outcomes they must add up to at most 1", sum)
 	}
 	v.validateField(&sv.Field)
 }

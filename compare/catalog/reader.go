@@ -251,6 +251,14 @@ func (rd *reader) gzipError(err error) error {
 // of one) were split into "columns" and listed in a message, or read as a
 // header "with the wrong delimiter".
 func (rd *reader) checkText(line []byte) error {
+	if rd.lr.line == 1 && (bytes.HasPrefix(line, []byte("\xff\xfe")) || bytes.HasPrefix(line, []byte("\xfe\xff"))) {
+		return rd.errorf(1, ErrFormat, "is UTF-16 text (it starts with a UTF-16 byte-order mark); save it as UTF-8 (for instance with iconv -f UTF-16 -t UTF-8)")
+	}
+	if rd.lr.line <= 2 {
+		if t := bytes.ToLower(bytes.TrimSpace(line)); bytes.HasPrefix(t, []byte("<!doctype html")) || bytes.HasPrefix(t, []byte("<html")) {
+			return rd.errorf(rd.lr.line, ErrFormat, "is an HTML page, not a table (a download that returned an error page?); fetch the catalog file itself")
+		}
+	}
 	bad, where := 0, -1
 	for i, c := range line {
 		if c < 0x20 && c != '\t' && c != '\r' && c != '\f' || c == 0x7f {
