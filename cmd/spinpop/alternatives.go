@@ -134,6 +134,11 @@ func runTestAlternatives(args []string, stdout, stderr io.Writer) error {
 	if page.Verdict.Tone == "" {
 		page.Verdict.Tone = report.Neutral
 	}
+	for _, f := range res.Fits {
+		if f.Name == res.Best && page.Verdict.Tone == report.Good && !f.Adequacy.Adequate(0.01) {
+			page.Verdict.Tone = report.Caution // preferred, but it does not describe the catalog either
+		}
+	}
 	var fits, pairs []report.Row
 	for _, f := range res.Fits {
 		page.Adequacy = append(page.Adequacy, adequacyLine(fmt.Sprintf("%q", f.Name), f.Adequacy))
