@@ -365,3 +365,18 @@ func TestInterruptedBySignalLeavesNothing(t *testing.T) {
 		})
 	}
 }
+
+// A template cache that cannot be made is no reason to fail: the run
+// warns and goes on without it (its folder would sit below a plain file,
+// which fails for root too).
+func TestUnusableTemplateCacheOnlyWarns(t *testing.T) {
+	file := filepath.Join(t.TempDir(), "plain-file")
+	require.NoError(t, os.WriteFile(file, nil, 0o644))
+	dir := filepath.Join(t.TempDir(), "cmp")
+	code, _, errs := runCLI("compare", fitScenario(t, ""), "--out", dir, "--templates", filepath.Join(file, "cache"),
+		"--replicates", "0", "--set", "compare.template_stars=100000")
+	require.Equal(t, 0, code, errs)
+	assert.Contains(t, errs, "warning: template cache")
+	assert.Contains(t, errs, "going on without the cache")
+	assert.Contains(t, visibleFiles(t, dir), "compare.json")
+}
