@@ -79,3 +79,27 @@ func TestProgressOnTerminalRedrawsInPlace(t *testing.T) {
 	assert.Contains(t, s, "\rsimulating [")
 	assert.True(t, strings.HasSuffix(s, "\r"))
 }
+
+// A sweep whose points run side by side logs the runner's lines, and a
+// line over the whole sweep every ten seconds, also while no point ends.
+func TestSweepProgressInBatchLog(t *testing.T) {
+	clk := &fakeClock{t: time.Unix(0, 0)}
+	var log bytes.Buffer
+	sp := newSweepProgressClock(&log, 4, time.Hour, clk.now) // the test ticks by hand
+	clk.advance(3 * time.Second)
+	_, err := sp.Write([]byte("point 0 0123456789ab done in 3.0s\n"))
+	assert.NoError(t, err)
+	clk.advance(9 * time.Second)
+	sp.tick() // 12 s: a line
+	clk.advance(5 * time.Second)
+	sp.tick() // 17 s: too soon
+	clk.advance(5 * time.Second)
+	_, err = sp.Write([]byte("point 1 ba9876543210 failed after 22.0s: boom\n")) // 22 s: a line
+	assert.NoError(t, err)
+	sp.Close()
+	assert.Equal(t, "point 0 0123456789ab done in 3.0s\n"+
+		"sweep points: 1 of 4 (25 %) after 12s, eta 36s\n"+
+		"sweep points: 2 of 4 (50 %) after 22s, eta 22s\n"+
+		"point 1 ba9876543210 failed after 22.0s: boom\n"+
+		"sweep points: finished after 22s\n", log.String())
+}

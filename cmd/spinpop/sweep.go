@@ -13,6 +13,7 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+	"time"
 
 	"gonum.org/v1/plot"
 
@@ -105,7 +106,13 @@ func runSweep(args []string, stdout, stderr io.Writer) error {
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
 	defer stop()
 	progressOff = *workers > 1 // parallel points would draw their bars over each other
-	r := &sweep.Runner{Out: *out, Workers: *workers, Log: stderr,
+	log := io.Writer(stderr)
+	if progressOff {
+		sp := newSweepProgress(stderr, len(plan.Points), time.Second)
+		defer sp.Close()
+		log = sp
+	}
+	r := &sweep.Runner{Out: *out, Workers: *workers, Log: log,
 		Worker: &pointWorker{templates: *templates, threads: *threads}}
 	sum, runErr := r.Run(ctx, s, plan)
 	if runErr != nil && ctx.Err() != nil {
