@@ -3,10 +3,13 @@ package main
 import (
 	"bytes"
 	"math"
+	"os"
+	"path/filepath"
 	"strings"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 
 	"spinpop/compare"
 )
@@ -50,4 +53,19 @@ func TestHeightTableEmptyBinIsNA(t *testing.T) {
 	assert.Contains(t, empty, "n/a")
 	assert.NotContains(t, empty, "0.000")
 	assert.Equal(t, len([]rune(full)), len([]rune(empty)), "columns stay aligned:\n%s\n%s", full, empty)
+}
+
+// Every "wrote:" line of every command lists its files in words: none
+// formats the list with %v (which prints Go's [a b c]).
+func TestNoWroteLineInGoSyntax(t *testing.T) {
+	files, err := filepath.Glob("*.go")
+	require.NoError(t, err)
+	for _, f := range files {
+		if strings.HasSuffix(f, "_test.go") {
+			continue
+		}
+		b, err := os.ReadFile(f)
+		require.NoError(t, err)
+		assert.NotContains(t, string(b), `wrote: %v`, f)
+	}
 }

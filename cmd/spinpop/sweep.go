@@ -288,7 +288,7 @@ func printSweepSummary(w io.Writer, out string, sum *sweep.Summary, t *sweep.Tab
 		fmt.Fprintf(w, "  point %d failed: %s\n", i, firstLineOf(sum.Failures[i]))
 	}
 	fmt.Fprintf(w, "table: %d done, %d failed, %d missing\n", t.Done, t.Failed, t.Missing)
-	fmt.Fprintf(w, "wrote: %v\n", written)
+	fmt.Fprintf(w, "wrote: %s\n", wordList(written))
 }
 
 func firstLineOf(s string) string {
@@ -313,7 +313,7 @@ func sweepMerge(out string, stdout io.Writer) error {
 	if t.Failed > 0 || t.Missing > 0 {
 		fmt.Fprintf(stdout, "warning: %d point(s) failed and %d are missing; the table says which, and the plots leave them out\n", t.Failed, t.Missing)
 	}
-	fmt.Fprintf(stdout, "sweep %q in %s: %d done, %d failed, %d missing\nwrote: %v\n", t.Name, out, t.Done, t.Failed, t.Missing, written)
+	fmt.Fprintf(stdout, "sweep %q in %s: %d done, %d failed, %d missing\nwrote: %s\n", t.Name, out, t.Done, t.Failed, t.Missing, wordList(written))
 	return nil
 }
 
