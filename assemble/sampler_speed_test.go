@@ -24,9 +24,10 @@ func resolveBase(t *testing.T, sets ...string) *scenarios.Scenario {
 	return &res.Scenario
 }
 
-// A disk so cold that the field (which starts 20.8 pc above the midplane,
-// at the Sun) holds almost none of it made the position sampler keep about
-// 3 proposals in a million: 64 stars/s, nine hours for the default run.
+// A disk so cold that the field (a cone looking away from the midplane,
+// which starts 20.8 pc above it, at the Sun) holds almost none of it made
+// the position sampler keep about 3 proposals in a million: 64 stars/s,
+// nine hours for the default run.
 // Build refuses it with the reason; the default disk keeps most proposals.
 // The share kept is the sampler's exact ratio of integrals
 // (disk.Sampler.ProposalEfficiency), not a timing.

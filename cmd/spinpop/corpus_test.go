@@ -33,7 +33,7 @@ var scenarioCorpus = []corpusCase{
 	{file: "alias-probabilities-over-one.toml", phrase: "survey.half_alias_prob + survey.double_alias_prob = 1.3;"},
 	{file: "binary-file.toml", phrase: "this is binary data, not a TOML scenario"},
 	{file: "burst-without-age.toml", phrase: "history.b.age_gyr is missing"},
-	{file: "cadence-above-baseline.toml", phrase: "cadence-above-baseline.toml:3: survey.baseline_d = 1400 must be greater than survey.cadence_d = 2000"},
+	{file: "cadence-above-baseline.toml", phrase: "must be greater than survey.cadence_d = 2000 (a baseline must hold many cadences)"},
 	{file: "chunk-too-large.toml", phrase: "run.chunk_stars = 16777216 is out of range; it must be in [256, 1048576]"},
 	{file: "chunk-too-small.toml", phrase: "run.chunk_stars = 10 is out of range"},
 	{file: "color-range-empty.toml", phrase: "cuts.b_v_max = 0.5 must be greater than cuts.b_v_min = 1.5 (empty color range)"},
