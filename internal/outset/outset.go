@@ -27,6 +27,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"io/fs"
 	"os"
 	"path/filepath"
 	"slices"
@@ -57,7 +58,16 @@ type IOError struct {
 	Err  error
 }
 
-func (e *IOError) Error() string { return e.Op + " " + e.Path + ": " + e.Err.Error() }
+func (e *IOError) Error() string {
+	err := e.Err
+	// The path the user knows is Path; an *os.PathError inside would
+	// name the private staging file instead.
+	var pe *fs.PathError
+	if errors.As(err, &pe) {
+		err = pe.Err
+	}
+	return e.Op + " " + e.Path + ": " + err.Error()
+}
 func (e *IOError) Unwrap() error { return e.Err }
 
 // Options tune Open.

@@ -250,3 +250,10 @@ func TestDiscard(t *testing.T) {
 	require.NoError(t, s.Commit())
 	assert.Equal(t, []string{"manifest.json"}, visible(t, dir))
 }
+
+// A write error names the file the user will see, not the staging file.
+func TestErrorsNameTheFinalPath(t *testing.T) {
+	err := &IOError{Op: "writing", Path: "out/laws.png", Err: &os.PathError{Op: "write", Path: "out/.spinpop-stage-1/laws.png", Err: syscall.ENOSPC}}
+	assert.Equal(t, "writing out/laws.png: no space left on device", err.Error())
+	assert.ErrorIs(t, err, syscall.ENOSPC)
+}
