@@ -115,6 +115,12 @@ func TestSlurmSweepCommandEqualsLocal(t *testing.T) {
 	start := time.Now()
 	msg := runExe(t, exe, "sweep", file, "--out", onSlurm, "--slurm", "--points-per-task", "2", "--time", "0:10:00", "--mem", "500M")
 	assert.Contains(t, msg, "submitted 6 of 6 points")
+	// While the array is queued or running, submitting again is refused
+	// (its points would run twice at once).
+	again := exec.Command(exe, "sweep", file, "--out", onSlurm, "--slurm")
+	refusal, err := again.CombinedOutput()
+	assert.Error(t, err)
+	assert.Contains(t, string(refusal), "is still queued or running")
 	waitSlurm(t, msg, 3*time.Minute)
 	t.Logf("sweep of 6 points in 3 tasks plus merge through Slurm: %.1f s", time.Since(start).Seconds())
 	script, err := os.ReadFile(filepath.Join(onSlurm, "slurm", "array-1.sh"))

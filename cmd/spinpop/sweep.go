@@ -2,11 +2,13 @@ package main
 
 import (
 	"context"
+	"encoding/json"
 	"errors"
 	"flag"
 	"fmt"
 	"io"
 	"os"
+	"os/exec"
 	"os/signal"
 	"path/filepath"
 	"runtime"
@@ -425,6 +427,9 @@ func sweepSubmit(s *sweep.Sweep, plan *sweep.Plan, out string, f slurmFlags, tem
 			return err
 		}
 	}
+	if busy := activeSubmission(absOut); busy != "" {
+		return usageErrorf("%s; submitting again now would run its points twice at once. Wait for it (squeue -j ID) or cancel it (scancel ID), then submit again", busy)
+	}
 	opt.TaskCommand = []string{exe, "sweep", "--task"}
 	opt.MergeCommand = []string{exe, "sweep", "--merge", absOut}
 	opt.Env = []string{envSweepTemplates + "=" + templates, envSweepThreads + "=" + strconv.Itoa(threads)}
@@ -441,4 +446,37 @@ func sweepSubmit(s *sweep.Sweep, plan *sweep.Plan, out string, f slurmFlags, tem
 	fmt.Fprintf(stdout, "scripts: %s, %s; task logs in %s\n", sub.ArrayScript, sub.MergeScript, filepath.Join(absOut, "slurm", "logs"))
 	fmt.Fprintf(stdout, "when the merge job has run: %s/results.csv; submit the same command again to rerun only failed or missing points\n", out)
 	return nil
+}
+
+// activeSubmission names an earlier submission of this sweep whose jobs
+// Slurm still lists (queued or running), or returns "". Without squeue,
+// or when it cannot answer, nothing is known and "" is returned.
+func activeSubmission(out string) string {
+	names, _ := filepath.Glob(filepath.Join(out, "slurm", "submission-*.json"))
+	for _, n := range names {
+		b, err := os.ReadFile(n)
+		if err != nil {
+			continue
+		}
+		var sub sweep.Submission
+		if json.Unmarshal(b, &sub) != nil {
+			continue
+		}
+		var ids []string
+		for _, id := range []string{sub.ArrayJobID, sub.MergeJobID} {
+			if id != "" {
+				ids = append(ids, id)
+			}
+		}
+		if len(ids) == 0 {
+			continue
+		}
+		ctx, cancel := context.WithTimeout(context.Background(), 30*time.Second)
+		listed, err := exec.CommandContext(ctx, "squeue", "-h", "-o", "%i", "-j", strings.Join(ids, ",")).Output()
+		cancel()
+		if err == nil && strings.TrimSpace(string(listed)) != "" {
+			return fmt.Sprintf("%s: job array %s (merge job %s) is still queued or running", filepath.Base(n), sub.ArrayJobID, sub.MergeJobID)
+		}
+	}
+	return ""
 }
