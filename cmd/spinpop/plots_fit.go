@@ -382,7 +382,7 @@ func bootstrapPlot(lr float64, reps []float64, under string) (*plot.Plot, error)
 	p.Add(l)
 	p.Legend.Add("replicates", l)
 	p.Y.Scale = plot.LogScale{}
-	p.Y.Tick.Marker = inRange{plot.LogTicks{Prec: -1}}
+	p.Y.Tick.Marker = countsOnly{figure.LogTicks{}}
 	ymax := math.Max(maxOf(y), 1) * 2
 	p.Y.Min, p.Y.Max = floor, ymax
 	p.X.Min, p.X.Max = lowest, top
@@ -416,4 +416,18 @@ type rightArrow struct{}
 func (rightArrow) DrawGlyph(c *draw.Canvas, sty draw.GlyphStyle, pt vg.Point) {
 	r := sty.Radius
 	c.FillPolygon(sty.Color, []vg.Point{{X: pt.X, Y: pt.Y}, {X: pt.X - 1.6*r, Y: pt.Y + r}, {X: pt.X - 1.6*r, Y: pt.Y - r}})
+}
+
+// countsOnly drops the labels of ticks below one: on a log axis of
+// counts the space below 1 is only the floor empty bins are drawn at.
+type countsOnly struct{ plot.Ticker }
+
+func (c countsOnly) Ticks(lo, hi float64) []plot.Tick {
+	t := c.Ticker.Ticks(lo, hi)
+	for i := range t {
+		if t[i].Value < 1 {
+			t[i].Label = ""
+		}
+	}
+	return t
 }

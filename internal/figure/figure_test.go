@@ -155,3 +155,19 @@ func TestCleanTicks(t *testing.T) {
 	}
 	_ = plot.Tick{}
 }
+
+// A log axis of a few counts is labelled at 1, 2 and 5; a wide one at the
+// powers of ten only.
+func TestLogTicks(t *testing.T) {
+	labels := func(lo, hi float64) []string {
+		var out []string
+		for _, tk := range (LogTicks{}).Ticks(lo, hi) {
+			if tk.Label != "" {
+				out = append(out, tk.Label)
+			}
+		}
+		return out
+	}
+	assert.Equal(t, []string{"0.5", "1", "2", "5"}, labels(0.5, 6))
+	assert.Equal(t, []string{"1", "10", "100", "1000"}, labels(0.5, 2000))
+}

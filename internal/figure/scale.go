@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"image/color"
 	"math"
+	"strconv"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/palette"
@@ -127,6 +128,34 @@ func (CountTicks) Ticks(lo, hi float64) []plot.Tick {
 			t := plot.Tick{Value: v}
 			if m == 1 || (short && (m == 2 || m == 5)) {
 				t.Label = fmt.Sprintf("%g", math.Pow(10, e)*float64(m))
+			}
+			ticks = append(ticks, t)
+		}
+	}
+	return ticks
+}
+
+// LogTicks label a logarithmic axis in its own units: 1, 2 and 5 times
+// each power of ten when the axis spans under two decades (a count axis
+// from 0.5 to 6 would otherwise carry the one label "1"), the powers of
+// ten alone when it spans more, with unlabelled minor ticks between.
+type LogTicks struct{}
+
+func (LogTicks) Ticks(lo, hi float64) []plot.Tick {
+	if !(lo > 0) || !(hi > lo) {
+		return nil
+	}
+	few := math.Log10(hi/lo) < 2
+	var ticks []plot.Tick
+	for e := math.Floor(math.Log10(lo)); e <= math.Ceil(math.Log10(hi)); e++ {
+		for m := 1; m <= 9; m++ {
+			v := float64(m) * math.Pow(10, e)
+			if v < lo*(1-1e-9) || v > hi*(1+1e-9) {
+				continue
+			}
+			t := plot.Tick{Value: v}
+			if m == 1 || (few && (m == 2 || m == 5)) {
+				t.Label = strconv.FormatFloat(v, 'g', -1, 64)
 			}
 			ticks = append(ticks, t)
 		}
