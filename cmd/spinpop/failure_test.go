@@ -7,6 +7,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"math"
 	"math/rand/v2"
 	"os"
 	"os/exec"
@@ -410,4 +411,16 @@ func TestFullDiskExitOneEverywhere(t *testing.T) {
 		require.NoError(t, err)
 		assert.Empty(t, es, "%v left %v", args, es)
 	}
+}
+
+// Every JSON written (files and --json) holds null where a number does not
+// exist, instead of failing on NaN after the run's work is done.
+func TestEncodeJSONNeverFailsOnNaN(t *testing.T) {
+	var b bytes.Buffer
+	rep := struct {
+		Median float64   `json:"median_age_gyr"`
+		P      []float64 `json:"p_values"`
+	}{math.NaN(), []float64{0.5, math.NaN()}}
+	require.NoError(t, encodeJSON(&b, rep))
+	assert.JSONEq(t, `{"median_age_gyr": null, "p_values": [0.5, null]}`, b.String())
 }

@@ -2,7 +2,6 @@ package main
 
 import (
 	"context"
-	"encoding/json"
 	"errors"
 	"fmt"
 	"io"
@@ -160,9 +159,7 @@ func injectCmd(ctx context.Context, args []string, stdout, stderr io.Writer) err
 		return err
 	}
 	if *cf.asJSON {
-		enc := json.NewEncoder(stdout)
-		enc.SetIndent("", "  ")
-		return enc.Encode(rep)
+		return encodeJSON(stdout, rep)
 	}
 	io.WriteString(stdout, text.String())
 	return nil

@@ -3,7 +3,6 @@ package main
 import (
 	"bufio"
 	"context"
-	"encoding/json"
 	"fmt"
 	"io"
 	"strconv"
@@ -140,9 +139,7 @@ func posteriorCmd(ctx context.Context, args []string, stdout, stderr io.Writer) 
 		return err
 	}
 	if *cf.asJSON {
-		enc := json.NewEncoder(stdout)
-		enc.SetIndent("", "  ")
-		return enc.Encode(rep)
+		return encodeJSON(stdout, rep)
 	}
 	io.WriteString(stdout, text.String())
 	return nil

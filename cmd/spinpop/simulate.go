@@ -3,6 +3,7 @@ package main
 import (
 	"context"
 	"encoding/json"
+	"errors"
 	"fmt"
 	"io"
 	"math"
@@ -175,9 +176,7 @@ func gyroCurves(gs []model.Gyrochrone) []gyroCurve {
 
 func writeJSON(out *outset.Set, name string, v any) error {
 	return out.Write(name, func(w io.Writer) error {
-		enc := json.NewEncoder(w)
-		enc.SetIndent("", "  ")
-		return enc.Encode(v)
+		return encodeJSON(w, v)
 	})
 }
 
@@ -227,17 +226,13 @@ func writeSimulationPlots(out *outset.Set, prefix string, s *scenarios.Scenario,
 // (outside an output set).
 func writeJSONFile(path string, v any) error {
 	return writeFileAtomic(path, func(w io.Writer) error {
-		enc := json.NewEncoder(w)
-		enc.SetIndent("", "  ")
-		return enc.Encode(v)
+		return encodeJSON(w, v)
 	})
 }
 
 func printSummary(w io.Writer, s *pipeline.Manifest, asJSON bool) error {
 	if asJSON {
-		enc := json.NewEncoder(w)
-		enc.SetIndent("", "  ")
-		return enc.Encode(s)
+		return encodeJSON(w, s)
 	}
 	if s.CatalogStars == 0 {
 		// Said first: every number below describes a survey that saw nothing.
@@ -276,9 +271,24 @@ func gyr(x float64) string {
 }
 
 func printJSON(w io.Writer, v any) error {
-	enc := json.NewEncoder(w)
-	enc.SetIndent("", "  ")
-	return enc.Encode(v)
+	return encodeJSON(w, v)
+}
+
+// encodeJSON writes v as indented JSON. A number JSON cannot hold (NaN,
+// ±Inf) anywhere in v is written null (pipeline.JSONSafe) rather than
+// failing the write; values without one are written exactly as
+// encoding/json writes them.
+func encodeJSON(w io.Writer, v any) error {
+	b, err := json.MarshalIndent(v, "", "  ")
+	var uv *json.UnsupportedValueError
+	if errors.As(err, &uv) {
+		b, err = json.MarshalIndent(pipeline.JSONSafe(v), "", "  ")
+	}
+	if err != nil {
+		return err
+	}
+	_, err = w.Write(append(b, '\n'))
+	return err
 }
 
 // writeSimulationReport writes simulate's report.html: what the survey saw
