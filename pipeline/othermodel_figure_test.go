@@ -65,22 +65,11 @@ func writeCheckFigure(path string, rs []checkResult) error {
 		left.Add(eb)
 	}
 	blue, orange := color.RGBA{R: 0, G: 90, B: 181, A: 255}, color.RGBA{R: 220, G: 120, B: 0, A: 255}
-	for _, s := range []struct {
-		pts   plotter.XYs
-		c     color.Color
-		shape draw.GlyphDrawer
-		name  string
-	}{{found, blue, draw.CircleGlyph{}, "burst claimed"}, {missed, orange, draw.TriangleGlyph{}, "not claimed"}} {
-		if len(s.pts) == 0 {
-			continue
-		}
-		sc, err := plotter.NewScatter(s.pts)
-		if err != nil {
-			return err
-		}
-		sc.GlyphStyle = draw.GlyphStyle{Color: s.c, Radius: vg.Points(3.5), Shape: s.shape}
-		left.Add(sc)
-		left.Legend.Add(s.name, sc)
+	if err := addScatter(left, found, blue, draw.CircleGlyph{}, "burst claimed"); err != nil {
+		return err
+	}
+	if err := addScatter(left, missed, orange, draw.TriangleGlyph{}, "not claimed"); err != nil {
+		return err
 	}
 	left.Legend.Top, left.Legend.Left = true, true
 	left.X.Min, left.X.Max, left.Y.Min, left.Y.Max = 0.3, 1.7, 0.2, 1.8
@@ -111,22 +100,11 @@ func writeCheckFigure(path string, rs []checkResult) error {
 	line.Dashes = []vg.Length{vg.Points(4), vg.Points(3)}
 	right.Add(line)
 	right.Legend.Add("LR = excess", line)
-	for _, s := range []struct {
-		pts   plotter.XYs
-		c     color.Color
-		shape draw.GlyphDrawer
-		name  string
-	}{{smooth, orange, draw.TriangleGlyph{}, "smooth catalogs"}, {burst, blue, draw.CircleGlyph{}, "burst catalogs"}} {
-		if len(s.pts) == 0 {
-			continue
-		}
-		sc, err := plotter.NewScatter(s.pts)
-		if err != nil {
-			return err
-		}
-		sc.GlyphStyle = draw.GlyphStyle{Color: s.c, Radius: vg.Points(3.5), Shape: s.shape}
-		right.Add(sc)
-		right.Legend.Add(s.name, sc)
+	if err := addScatter(right, smooth, orange, draw.TriangleGlyph{}, "smooth catalogs"); err != nil {
+		return err
+	}
+	if err := addScatter(right, burst, blue, draw.CircleGlyph{}, "burst catalogs"); err != nil {
+		return err
 	}
 	right.Legend.Top, right.Legend.Left = true, true
 	right.Legend.YOffs, right.Legend.XOffs = -vg.Points(6), vg.Points(6)
@@ -139,6 +117,21 @@ func writeCheckFigure(path string, rs []checkResult) error {
 	left.Draw(canvases[0][0])
 	right.Draw(canvases[0][1])
 	return writePNG(path, img)
+}
+
+// addScatter adds points with a legend entry (nothing when there are none).
+func addScatter(p *plot.Plot, pts plotter.XYs, c color.Color, shape draw.GlyphDrawer, name string) error {
+	if len(pts) == 0 {
+		return nil
+	}
+	sc, err := plotter.NewScatter(pts)
+	if err != nil {
+		return err
+	}
+	sc.GlyphStyle = draw.GlyphStyle{Color: c, Radius: vg.Points(3.5), Shape: shape}
+	p.Add(sc)
+	p.Legend.Add(name, sc)
+	return nil
 }
 
 func writePNG(path string, img *vgimg.Canvas) error {
