@@ -17,8 +17,9 @@ import (
 	"spinpop/model/spots"
 )
 
-// testPopulation builds, by hand, a population like the base example
-// scenario: a cone toward (58°, 21°) out to 1.5 kpc, nBins equal age bins
+// testPopulation builds, by hand, a population of the base example's kind
+// (its field and survey numbers are older test settings, not the example
+// survey's): a cone toward (58°, 21°) out to 1.5 kpc, nBins equal age bins
 // over 10 Gyr of constant star formation, Kroupa masses, the Barnes (2007)
 // law, spots, binaries with some tidal locking, a metallicity spread and a
 // dust layer. The numbers are test settings, not physics claims.

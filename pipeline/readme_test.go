@@ -1,8 +1,10 @@
 package pipeline_test
 
 import (
+	"io/fs"
 	"os"
 	"regexp"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -10,6 +12,7 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"spinpop/model"
+	"spinpop/scenarios"
 )
 
 // README's list of catalog.csv columns is the column table's, in order.
@@ -34,5 +37,48 @@ func TestReadmeListsTheCatalogColumns(t *testing.T) {
 		if i < len(docs) && c.Name == listed[i] {
 			assert.Equal(t, c.Doc, docs[i], "README's description of %s", c.Name)
 		}
+	}
+}
+
+// What README says of the example survey is what base.toml sets, and the
+// demo catalog's size it quotes is the embedded file's row count: numbers
+// quoted in prose go stale silently otherwise.
+func TestReadmeQuotesTheExampleSurveyAndDemoCatalog(t *testing.T) {
+	b, err := os.ReadFile("../README.md")
+	require.NoError(t, err)
+	text := string(b)
+	res, err := scenarios.LoadExample("base")
+	require.NoError(t, err)
+	sv := res.Scenario.Survey
+	m := regexp.MustCompile(`a cone of radius ([0-9.]+)° at l = ([0-9.]+)°, b = ([−+]?[0-9.]+)°, out to ([0-9.]+) kpc\)\s+every ([0-9.]+) minutes for ([0-9.]+) days, V ([0-9.]+)–([0-9]+(?:\.[0-9]+)?)`).FindStringSubmatch(text)
+	require.NotNil(t, m, "README describes the example survey's field, cadence, baseline and magnitudes")
+	num := func(s string) float64 {
+		x, err := strconv.ParseFloat(strings.Replace(s, "−", "-", 1), 64)
+		require.NoError(t, err, s)
+		return x
+	}
+	f := sv.Field
+	assert.Equal(t, f.RadiusDeg, num(m[1]), "radius")
+	assert.Equal(t, f.LDeg, num(m[2]), "l")
+	assert.Equal(t, f.BDeg, num(m[3]), "b")
+	assert.Equal(t, f.DistanceMaxPc, 1000*num(m[4]), "distance")
+	assert.InDelta(t, sv.CadenceD*24*60, num(m[5]), 1e-9, "cadence in minutes")
+	assert.Equal(t, sv.BaselineD, num(m[6]), "baseline")
+	assert.Equal(t, sv.BrightLimitMag, num(m[7]), "bright limit")
+	assert.Equal(t, sv.FaintLimitMag, num(m[8]), "faint limit")
+
+	data, err := fs.ReadFile(scenarios.ExamplesFS(), "data/larkspur-rotation.csv")
+	require.NoError(t, err)
+	rows := 0
+	for _, line := range strings.Split(strings.TrimSpace(string(data)), "\n")[1:] {
+		if !strings.HasPrefix(line, "#") {
+			rows++
+		}
+	}
+	rows-- // the header
+	quoted := regexp.MustCompile("The demo catalog \\(`[^`]+`, ([0-9,]+) stars\\)").FindAllStringSubmatch(text, -1)
+	require.NotEmpty(t, quoted, "README quotes the demo catalog's size")
+	for _, q := range quoted {
+		assert.Equal(t, strconv.Itoa(rows), strings.ReplaceAll(q[1], ",", ""), "README: %q", q[0])
 	}
 }
