@@ -101,7 +101,7 @@ func TestReadFITSFromAstropy(t *testing.T) {
 
 // writeExampleFITS converts the example ECSV into a FITS table with our
 // writer, giving plx the unit asked for.
-func writeExampleFITS(t *testing.T, path, plxUnit string) {
+func writeExampleFITS(t testing.TB, path, plxUnit string) {
 	var rows [][]float64
 	recs := readECSVBody(t, "../../testdata/catalog_example.ecsv")
 	for _, r := range recs {
@@ -131,7 +131,7 @@ func writeExampleFITS(t *testing.T, path, plxUnit string) {
 }
 
 // readECSVBody returns the data rows of a space-delimited ECSV file.
-func readECSVBody(t *testing.T, path string) [][]string {
+func readECSVBody(t testing.TB, path string) [][]string {
 	b, err := os.ReadFile(path)
 	require.NoError(t, err)
 	var out [][]string
@@ -267,7 +267,7 @@ func TestDeclaredFormatMustMatch(t *testing.T) {
 	assert.Contains(t, err.Error(), `a FITS extension ("STARS") was given, but this is a text table`)
 }
 
-func writeExampleParquet(t *testing.T, path string, plxUnit string) {
+func writeExampleParquet(t testing.TB, path string, plxUnit string) {
 	recs := readECSVBody(t, "../../testdata/catalog_example.ecsv")
 	cols := []parquettable.WriteColumn{
 		{Name: "star_id", Type: parquettable.Int64}, {Name: "prot", Unit: "d", Type: parquettable.Float64},

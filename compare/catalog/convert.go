@@ -144,7 +144,9 @@ func (p *plan) convert(row rowSource) (Star, *fieldRef, Reason) {
 		if !ok {
 			return s, p.parallax, why
 		}
-		if plx <= 0 {
+		// A parallax so small that the distance overflows (1e-320 mas, a
+		// fuzzer's find) is as unusable as a negative one.
+		if plx <= 0 || math.IsInf(1000/plx, 0) {
 			return s, p.parallax, ReasonParallax
 		}
 		s.DistPc = 1000 / plx

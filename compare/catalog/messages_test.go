@@ -160,3 +160,15 @@ func TestDeclaredFormatHonoured(t *testing.T) {
 	_, err = readBytes(t, []byte(ecsv), "ecsv")
 	assert.NoError(t, err)
 }
+
+// A positive parallax so small that 1000/plx overflows gave a star at an
+// infinite distance with M_V and z of −Inf (found by FuzzReadFITS; the
+// input is kept in testdata/fuzz). It is rejected like a parallax ≤ 0.
+func TestTinyParallaxRejected(t *testing.T) {
+	c, err := readString(t, "prot,color,app_mag,plx,ra,dec\n10,0.7,12,1e-320,10,20\n10,0.7,12,2,10,20\n", exampleMapping)
+	require.NoError(t, err)
+	require.Len(t, c.rejects, 1)
+	assert.Equal(t, ReasonParallax, c.rejects[0].Reason)
+	assert.Equal(t, "plx", c.rejects[0].Column)
+	assert.Equal(t, []int{3}, c.lines)
+}

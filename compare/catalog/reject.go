@@ -21,7 +21,8 @@ const (
 	ReasonNotFinite
 	// ReasonPeriod: the rotation period is not positive.
 	ReasonPeriod
-	// ReasonParallax: the parallax is not positive, so no distance follows.
+	// ReasonParallax: the parallax is not positive (or so small that the
+	// distance overflows), so no distance follows.
 	ReasonParallax
 	// ReasonPosition: a latitude or declination lies outside [−90°, 90°].
 	ReasonPosition
