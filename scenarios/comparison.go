@@ -192,6 +192,9 @@ func (v *decoder) heightEdges(p string, edges []float64) {
 			return
 		}
 	}
+	if last := edges[len(edges)-1]; last > maxLengthPc {
+		v.errAt(p, "%s ends at %s pc, beyond %s pc (%s)", p, formatFloat(last), formatFloat(maxLengthPc), lengthWhy)
+	}
 }
 
 // validateFree checks the free parameters: each names a scalar key of an
