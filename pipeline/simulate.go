@@ -36,7 +36,7 @@ type SimulateOptions struct {
 	Progress func(done, total int64)
 	// Chunks, if set, runs only these chunks of the run, exactly as the
 	// whole run would make them (one part of a run split across machines;
-	// see MergeParts). The tally and catalogue are then the part's.
+	// see MergeParts). The tally and catalog are then the part's.
 	Chunks *model.ChunkRange
 	// Estimated, if set, is handed the run's estimated cost (EstimateRun)
 	// before any star is made; an error from it stops the run (for
@@ -231,8 +231,8 @@ func Simulate(ctx context.Context, res *scenarios.Resolved, opts SimulateOptions
 // MergeParts makes the Simulation of a whole run from the tallies of its
 // parts (each made with SimulateOptions.Chunks), merged in the order
 // given, which must be chunk order: the tally, manifest and gyrochrones of
-// the one-machine run, with seconds the parts' summed time. No catalogue
-// is kept: the parts' catalogue rows concatenate in the same order.
+// the one-machine run, with seconds the parts' summed time. No catalog
+// is kept: the parts' catalog rows concatenate in the same order.
 func MergeParts(res *scenarios.Resolved, source string, parts []*model.Tally, workers int, seconds float64) (*Simulation, error) {
 	s := &res.Scenario
 	built, err := Build(s, source)

@@ -25,8 +25,8 @@ import (
 // into --parts contiguous ranges (model.SplitChunks); each part runs its
 // range exactly as the whole run would (streams from seed and chunk) and
 // writes DIR/parts/part-FIRST-LAST.json (its tally) and .csv (its
-// catalogue rows); --merge-parts adds the tallies and concatenates the rows
-// in chunk order, giving the catalogue of a one-machine run byte for byte
+// catalog rows); --merge-parts adds the tallies and concatenates the rows
+// in chunk order, giving the catalog of a one-machine run byte for byte
 // and its manifest's counts exactly. --slurm --parts N does both through
 // a job array and a dependent merge job.
 
@@ -184,7 +184,7 @@ func runSimPart(res *scenarios.Resolved, arg, out string, r model.ChunkRange, th
 	if err := writeJSONFile(base+".json", rec); err != nil {
 		return err
 	}
-	fmt.Fprintf(stdout, "part %s of scenario %.16s…: %d stars, %d catalogue stars in %.1f s; wrote %s.json and .csv\n",
+	fmt.Fprintf(stdout, "part %s of scenario %.16s…: %d stars, %d catalog stars in %.1f s; wrote %s.json and .csv\n",
 		r, res.Hash(), sim.Tally.StepCounts[0], sim.Tally.Selected(), sim.Manifest.Seconds, base)
 	return nil
 }
@@ -280,14 +280,14 @@ func mergeSimParts(res *scenarios.Resolved, arg, out string, force bool, threads
 	return printSummary(stdout, m, asJSON)
 }
 
-// concatParts writes the catalogue: the header once, then each part's
+// concatParts writes the catalog: the header once, then each part's
 // rows in chunk order.
 func concatParts(set *outset.Set, name, out string, parts []simPart, order []int) error {
 	return set.Write(name, func(w io.Writer) error {
 		for i, k := range order {
 			f, err := os.Open(partBase(out, parts[k].Chunks) + ".csv")
 			if err != nil {
-				return fmt.Errorf("the part's catalogue rows: %w", err)
+				return fmt.Errorf("the part's catalog rows: %w", err)
 			}
 			br := bufio.NewReaderSize(f, 1<<20)
 			header, err := br.ReadString('\n')

@@ -134,7 +134,7 @@ func TestSlurmSweepCommandEqualsLocal(t *testing.T) {
 	got, err := os.ReadFile(filepath.Join(onSlurm, "results.csv"))
 	require.NoError(t, err, "the merge job wrote no table; see %s", filepath.Join(onSlurm, "slurm", "logs"))
 	assert.True(t, bytes.Equal(want, got), "Slurm table:\n%s\nlocal table:\n%s", got, want)
-	// Every point's catalogue too.
+	// Every point's catalog too.
 	cats, _ := filepath.Glob(filepath.Join(here, "points", "*", "out", "catalog.csv"))
 	require.Len(t, cats, 6)
 	for _, c := range cats {
@@ -171,7 +171,7 @@ func TestSlurmSplitSimulateEqualsLocal(t *testing.T) {
 	want, err := os.ReadFile(filepath.Join(here, "catalog.csv"))
 	require.NoError(t, err)
 	got, err := os.ReadFile(filepath.Join(onSlurm, "catalog.csv"))
-	require.NoError(t, err, "the merge job wrote no catalogue; see %s", filepath.Join(onSlurm, "slurm", "logs"))
-	assert.True(t, bytes.Equal(want, got), "catalogue differs from the one-machine run")
+	require.NoError(t, err, "the merge job wrote no catalog; see %s", filepath.Join(onSlurm, "slurm", "logs"))
+	assert.True(t, bytes.Equal(want, got), "catalog differs from the one-machine run")
 	assert.Equal(t, manifestCounts(t, here), manifestCounts(t, onSlurm))
 }

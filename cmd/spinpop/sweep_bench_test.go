@@ -32,7 +32,7 @@ func BenchmarkSweepDryRun1000(b *testing.B) {
 }
 
 // A sweep of points whose own work is next to nothing (a simulate of
-// 1,000 stars, no catalogue, no plots): the command's cost per point —
+// 1,000 stars, no catalog, no plots): the command's cost per point —
 // resolving, the point's folder and markers, the once-per-scenario
 // tables, the merge, the table's plots — beyond the work a real point
 // does.

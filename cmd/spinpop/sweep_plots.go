@@ -28,7 +28,7 @@ type sweepMetric struct {
 }
 
 var sweepMetrics = []sweepMetric{
-	{"catalogue stars", func(h *sweep.Headline) (*float64, *float64, *float64) {
+	{"catalog stars", func(h *sweep.Headline) (*float64, *float64, *float64) {
 		if h.CatalogStars == nil {
 			return nil, nil, nil
 		}
@@ -48,7 +48,7 @@ var sweepMetrics = []sweepMetric{
 
 // writeSweepPlots writes plots/<axis key>.png for each axis: one panel per
 // headline number the sweep produced, every finished point a marker
-// (with its interval), coloured by the values of the other axes when they
+// (with its interval), colored by the values of the other axes when they
 // are few. It returns the files written, relative to out.
 func writeSweepPlots(out string, t *sweep.Table) ([]string, error) {
 	if len(t.Axes) == 0 || t.Done == 0 {

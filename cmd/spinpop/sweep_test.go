@@ -179,7 +179,7 @@ func TestSweepCommandSimulate(t *testing.T) {
 	assert.NoFileExists(t, filepath.Join(out, "systematics.md"), "no burst test, no systematics")
 }
 
-// A run split into parts, each run alone, then merged: the catalogue is
+// A run split into parts, each run alone, then merged: the catalog is
 // the one-machine run's byte for byte and the counts are the same
 // (model/split.go: chunk i draws only from (seed, i)).
 func TestSimulateSplitEqualsOneRun(t *testing.T) {
@@ -197,7 +197,7 @@ func TestSimulateSplitEqualsOneRun(t *testing.T) {
 	require.NoError(t, err)
 	got, err := os.ReadFile(filepath.Join(split, "catalog.csv"))
 	require.NoError(t, err)
-	assert.True(t, bytes.Equal(want, got), "merged catalogue differs from the one-machine run")
+	assert.True(t, bytes.Equal(want, got), "merged catalog differs from the one-machine run")
 	assert.Equal(t, manifestCounts(t, whole), manifestCounts(t, split))
 
 	// A missing part is named.

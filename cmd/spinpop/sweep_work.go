@@ -15,7 +15,7 @@ import (
 // pointWorker does a sweep's work at one point, writing what the single
 // commands write into the point's folder:
 //   - simulate: catalog.csv, manifest.json and plots (as spinpop simulate);
-//     headline: catalogue stars.
+//     headline: catalog stars.
 //   - compare: compare.json (as spinpop compare, the history as written,
 //     goodness of fit from compare.bootstrap replicates); headline: stars
 //     compared, ln L, adequacy.
@@ -61,7 +61,7 @@ func (w *pointWorker) work(ctx context.Context, p *sweep.Point, steps []string, 
 			return err
 		}
 		h.CatalogStars = sweep.I(m.CatalogStars)
-		w.logf("point %d: simulated, %d catalogue stars", p.Index, m.CatalogStars)
+		w.logf("point %d: simulated, %d catalog stars", p.Index, m.CatalogStars)
 	}
 	if !slices.Contains(steps, sweep.StepCompare) && !slices.Contains(steps, sweep.StepTestBurst) {
 		return nil

@@ -40,7 +40,7 @@ const (
 	gap      = vg.Length(6)
 )
 
-// Draw draws the panel on c. A panel with a Bar and no Plot is a colour
+// Draw draws the panel on c. A panel with a Bar and no Plot is a color
 // bar alone (the one scale of a grid of maps, such as a corner plot's).
 func (pn *Panel) Draw(c draw.Canvas) {
 	p := pn.Plot

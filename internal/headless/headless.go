@@ -379,7 +379,7 @@ func ForTest(t T) string {
 	return ""
 }
 
-// Blank says whether an image is a single colour (a page that rendered
+// Blank says whether an image is a single color (a page that rendered
 // nothing).
 func Blank(img image.Image) bool {
 	b := img.Bounds()
