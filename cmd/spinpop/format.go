@@ -88,3 +88,14 @@ func readable(name string) string {
 	}
 	return n
 }
+
+// keyLabel turns a scenario key into an axis label: a history parameter
+// as paramLabel writes it ("history.burst.age_gyr" → "burst age (Gyr)"),
+// any other key with its dots and underscores as spaces ("spin.law" →
+// "spin law"). Figures name quantities, not configuration paths.
+func keyLabel(key string) string {
+	if rest, ok := strings.CutPrefix(key, "history."); ok {
+		return paramLabel(rest)
+	}
+	return paramLabel(strings.ReplaceAll(key, ".", " "))
+}

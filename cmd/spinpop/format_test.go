@@ -69,3 +69,12 @@ func TestNoWroteLineInGoSyntax(t *testing.T) {
 		assert.NotContains(t, string(b), `wrote: %v`, f)
 	}
 }
+
+// Axis labels name quantities with their units, not configuration paths.
+func TestKeyLabel(t *testing.T) {
+	assert.Equal(t, "burst age (Gyr)", keyLabel("history.burst.age_gyr"))
+	assert.Equal(t, "spin law", keyLabel("spin.law"))
+	assert.Equal(t, "run seed", keyLabel("run.seed"))
+	assert.Equal(t, "stall", readable("scenarios/stall.toml"))
+	assert.Equal(t, "burst", readable("example:burst"))
+}

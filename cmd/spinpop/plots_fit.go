@@ -90,6 +90,7 @@ func dataModelResiduals(sp compare.Space, data, mu, resid []float64, modelName s
 // units of the second's counting noise.
 func modelDifferenceMap(sp compare.Space, a, b []float64, nameA, nameB string) (*figure.Panel, error) {
 	z := modelDifference(a, b)
+	nameA, nameB = readable(nameA), readable(nameB)
 	return differencePanel(fmt.Sprintf("Where the models differ: %s minus %s", nameA, nameB),
 		fmt.Sprintf("(μ %s − μ %s)/√μ %s", nameA, nameB, nameB), sp.ColorEdges, sp.LogPeriodEdges, z, 1, nil)
 }

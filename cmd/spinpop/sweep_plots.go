@@ -175,10 +175,7 @@ func otherAxesGroups(t *sweep.Table, a int) ([]int, []string) {
 }
 
 func sweepPanel(t *sweep.Table, m sweepMetric, a int, key string, xs []float64, ticks plot.Ticker, groups []int, names []string) (*plot.Plot, error) {
-	p := plot.New()
-	p.Title.Text = m.label
-	p.X.Label.Text = key
-	p.Y.Label.Text = ""
+	p := figure.New(m.label, keyLabel(key), "")
 	if ticks != nil {
 		p.X.Tick.Marker = ticks
 		n := len(ticks.Ticks(0, 0))
@@ -344,8 +341,7 @@ func shortChoice(c sweep.Choice, axes []string) string {
 
 func systematicsPanel(s *sweep.Systematics, title string, labels []string, all, adequate *sweep.Envelope,
 	get func(*sweep.Headline) (*float64, *float64, *float64)) (*plot.Plot, error) {
-	p := plot.New()
-	p.X.Label.Text = title + ", 68 % profile-likelihood interval under each choice"
+	p := figure.New("", title+", 68 % profile-likelihood interval under each choice", "")
 	n := len(s.Choices)
 	// Room above the rows for the legend.
 	p.Y.Min, p.Y.Max = -0.7, float64(n)+1.2

@@ -148,11 +148,24 @@ func TestScales(t *testing.T) {
 	assert.Equal(t, []string{"1", "10", "100"}, labels)
 }
 
-// Axis labels are written in their shortest form.
+// Axis labels are written with the digits their spacing needs: no
+// trailing zeros, no two alike, exponents only far from 1.
 func TestCleanTicks(t *testing.T) {
-	for _, tk := range (cleanTicks{}).Ticks(0, 5000) {
-		assert.NotContains(t, tk.Label, ".00")
+	for _, r := range [][2]float64{{0, 5000}, {1.6666, 1.6700}, {1.9e-18, 1.2e-17}, {0.5, 1}, {3130, 3136}} {
+		seen := map[string]bool{}
+		for _, tk := range (cleanTicks{}).Ticks(r[0], r[1]) {
+			if tk.Label == "" {
+				continue
+			}
+			assert.NotContains(t, tk.Label, ".00", "%v", r)
+			assert.False(t, seen[tk.Label], "%v: label %s twice", r, tk.Label)
+			seen[tk.Label] = true
+			assert.Less(t, len(tk.Label), 9, "%v: %s", r, tk.Label)
+		}
 	}
+	assert.Equal(t, "5000", tickLabel(5000, 1000))
+	assert.Equal(t, "0.75", tickLabel(0.75, 0.25))
+	assert.Equal(t, "1.2e-17", tickLabel(1.16e-17, 2e-18))
 	_ = plot.Tick{}
 }
 
@@ -170,4 +183,25 @@ func TestLogTicks(t *testing.T) {
 	}
 	assert.Equal(t, []string{"0.5", "1", "2", "5"}, labels(0.5, 6))
 	assert.Equal(t, []string{"1", "10", "100", "1000"}, labels(0.5, 2000))
+}
+
+// An axis whose points all have one value is opened so that its ticks
+// read different numbers.
+func TestOpenSpan(t *testing.T) {
+	p := New("", "", "")
+	p.Y.Min, p.Y.Max = 3133.08, 3133.08+1e-9
+	openSpan(&p.Y)
+	assert.Less(t, p.Y.Min, 3133.0)
+	assert.Greater(t, p.Y.Max, 3136.0)
+	seen := map[string]bool{}
+	for _, tk := range p.Y.Tick.Marker.Ticks(p.Y.Min, p.Y.Max) {
+		if tk.Label != "" {
+			assert.False(t, seen[tk.Label], "label %s twice", tk.Label)
+			seen[tk.Label] = true
+		}
+	}
+	q := New("", "", "")
+	q.X.Min, q.X.Max = 0.5, 1
+	openSpan(&q.X)
+	assert.Equal(t, 0.5, q.X.Min, "a real range is left alone")
 }

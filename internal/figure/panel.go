@@ -75,6 +75,8 @@ func (pn *Panel) Draw(c draw.Canvas) {
 	side = min(side, 0.6*(c.Max.X-c.Min.X))
 	main := c
 	main.Max.X -= side
+	openSpan(&p.X)
+	openSpan(&p.Y)
 	p.Draw(main)
 	da := p.DataCanvas(main)
 	x := main.Max.X
@@ -214,3 +216,23 @@ func (g Layout) WritePNG(w io.Writer, width, height vg.Length) error {
 
 // One is a figure of one panel.
 func One(p *Panel) Layout { return Layout{{p}} }
+
+// openSpan widens a linear axis whose range is too narrow to label: every
+// point at the same value (or equal to ten digits) would get ticks that
+// all read the same number. The axis is opened to ±0.1 % of its value
+// (±1 about zero), so the points sit in the middle with distinct labels.
+func openSpan(a *plot.Axis) {
+	if _, lin := a.Scale.(plot.LinearScale); !lin {
+		return
+	}
+	mid := (a.Min + a.Max) / 2
+	mag := math.Max(math.Abs(a.Min), math.Abs(a.Max))
+	if a.Max-a.Min > 1e-9*mag && a.Max > a.Min {
+		return
+	}
+	half := 1e-3 * mag
+	if half == 0 {
+		half = 1
+	}
+	a.Min, a.Max = mid-half, mid+half
+}

@@ -9,6 +9,7 @@ import (
 	"image/color"
 	"math"
 	"strconv"
+	"strings"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/font"
@@ -113,19 +114,60 @@ func NoLegend(p *plot.Plot) {
 	p.Legend.ThumbnailWidth = vg.Points(18)
 }
 
-// cleanTicks are the plot package's default ticks with their labels
-// written in the shortest form ("5000", not "5000.00"; "0.4", not "0.40").
+// cleanTicks are the plot package's default ticks with labels written
+// from the tick values with as many digits as the spacing of the ticks
+// needs, and no more: "5000", not "5000.00"; "1.6685" and "1.6690", not
+// "1.67" twice; plain digits between 10⁻⁴ and 10⁶, the exponent form
+// beyond (1.2e-17, not 0.000000000000000012).
 type cleanTicks struct{}
 
 func (cleanTicks) Ticks(lo, hi float64) []plot.Tick {
 	t := plot.DefaultTicks{}.Ticks(lo, hi)
+	step := math.Inf(1)
+	prev := math.NaN()
+	for _, tk := range t {
+		if tk.Label == "" {
+			continue
+		}
+		if !math.IsNaN(prev) {
+			step = math.Min(step, tk.Value-prev)
+		}
+		prev = tk.Value
+	}
+	if math.IsInf(step, 1) || !(step > 0) {
+		return t
+	}
 	for i := range t {
 		if t[i].Label != "" {
-			v, err := strconv.ParseFloat(t[i].Label, 64)
-			if err == nil && math.Abs(v) < 1e6 {
-				t[i].Label = strconv.FormatFloat(v, 'f', -1, 64)
-			}
+			t[i].Label = tickLabel(t[i].Value, step)
 		}
 	}
 	return t
+}
+
+// tickLabel writes v to the precision a tick spacing of step asks for.
+func tickLabel(v, step float64) string {
+	a := math.Abs(v)
+	if a < step*1e-9 {
+		return "0"
+	}
+	if a >= 1e-4 && a < 1e6 {
+		// Enough decimals that the spacing itself is written exactly
+		// (a spacing of 0.25 needs two).
+		decimals := max(0, int(math.Ceil(-math.Log10(step)-1e-9)))
+		for decimals < 15 {
+			x := step * math.Pow(10, float64(decimals))
+			if math.Abs(x-math.Round(x)) <= 1e-6*x {
+				break
+			}
+			decimals++
+		}
+		s := strconv.FormatFloat(v, 'f', decimals, 64)
+		if strings.Contains(s, ".") {
+			s = strings.TrimRight(strings.TrimRight(s, "0"), ".")
+		}
+		return s
+	}
+	sig := min(max(int(math.Ceil(math.Log10(a/step)+1e-9))+1, 1), 15)
+	return strconv.FormatFloat(v, 'g', sig, 64)
 }
