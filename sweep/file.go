@@ -4,7 +4,6 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"os"
 	"path/filepath"
 	"slices"
 	"strconv"
@@ -12,6 +11,7 @@ import (
 
 	"github.com/BurntSushi/toml"
 
+	"spinpop/internal/regular"
 	"spinpop/scenarios"
 )
 
@@ -96,7 +96,7 @@ func Load(path string) (*Sweep, error) {
 		}
 		return parse(path, data)
 	}
-	data, err := os.ReadFile(path)
+	data, err := regular.ReadFile(path) // a FIFO would block for ever
 	if err != nil {
 		return nil, scenarios.ValidationErrors{{File: path, Msg: "cannot read sweep file: " + err.Error(), Err: err}}
 	}

@@ -7,6 +7,7 @@ package regular
 
 import (
 	"fmt"
+	"io"
 	"io/fs"
 	"os"
 )
@@ -38,6 +39,16 @@ func Describe(m fs.FileMode) string {
 		return "a file of unknown type"
 	}
 	return "not a regular file"
+}
+
+// ReadFile reads the whole of path if it is a regular file (see Open).
+func ReadFile(path string) ([]byte, error) {
+	f, err := Open(path)
+	if err != nil {
+		return nil, err
+	}
+	defer f.Close()
+	return io.ReadAll(f)
 }
 
 // Open opens path for reading if it is a regular file (symbolic links are

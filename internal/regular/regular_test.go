@@ -44,3 +44,14 @@ func TestOpenRefusesWhatIsNotARegularFile(t *testing.T) {
 	_, err = Open(filepath.Join(dir, "missing"))
 	assert.True(t, errors.Is(err, os.ErrNotExist))
 }
+
+func TestReadFile(t *testing.T) {
+	dir := t.TempDir()
+	file := filepath.Join(dir, "a.txt")
+	require.NoError(t, os.WriteFile(file, []byte("hello"), 0o600))
+	b, err := ReadFile(file)
+	require.NoError(t, err)
+	assert.Equal(t, "hello", string(b))
+	_, err = ReadFile(os.DevNull)
+	assert.Contains(t, err.Error(), "is a character device, not a regular file")
+}
