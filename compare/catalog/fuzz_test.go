@@ -120,4 +120,3 @@ func FuzzReadParquet(f *testing.F) {
 	f.Add(ref)
 	f.Fuzz(func(t *testing.T, data []byte) { checkRead(t, data, "auto", exampleMapping) })
 }
-
