@@ -40,3 +40,7 @@ func exampleData(ref string) ([]byte, error) {
 	}
 	return b, nil
 }
+
+// ExampleText returns the text of built-in sweep file NAME, to print and
+// copy (a copy runs from any folder: its base is a built-in scenario).
+func ExampleText(name string) ([]byte, error) { return exampleData(scenarios.ExamplePrefix + name) }

@@ -3,14 +3,16 @@ package main
 import (
 	"fmt"
 	"io"
+	"slices"
 	"strings"
 
 	"spinpop/scenarios"
+	"spinpop/sweep"
 )
 
 func runExamples(args []string, stdout, stderr io.Writer) error {
 	fs := newFlagSet("examples", "examples [NAME]",
-		"Without NAME, list the built-in example scenarios. With NAME, print that file, to copy and edit\n(spinpop examples burst > my-burst.toml). Use them directly as example:NAME.", stdout)
+		"Without NAME, list the built-in example scenarios and sweep files. With NAME, print that file,\nto copy and edit (spinpop examples burst > my-burst.toml). Use them directly as example:NAME\n(a sweep file with spinpop sweep example:NAME).", stdout)
 	pos, err := parseInterleaved(fs, args)
 	if err != nil {
 		return err
@@ -20,6 +22,9 @@ func runExamples(args []string, stdout, stderr io.Writer) error {
 		for _, ex := range scenarios.Examples() {
 			fmt.Fprintln(stdout, "example:"+strings.TrimSuffix(ex, ".toml"))
 		}
+		for _, ex := range sweep.Examples() {
+			fmt.Fprintf(stdout, "example:%s (a sweep file: spinpop sweep example:%s)\n", ex, ex)
+		}
 		return nil
 	case 1:
 		name := strings.TrimPrefix(pos[0], "example:")
@@ -27,6 +32,9 @@ func runExamples(args []string, stdout, stderr io.Writer) error {
 			name += ".toml"
 		}
 		text, err := scenarios.ExampleText(name)
+		if err != nil && slices.Contains(sweep.Examples(), strings.TrimSuffix(name, ".toml")) {
+			text, err = sweep.ExampleText(strings.TrimSuffix(name, ".toml"))
+		}
 		if err != nil {
 			return usageErrorf("no example %q; the examples are %s", pos[0], wordList(scenarios.Examples()))
 		}

@@ -221,3 +221,21 @@ func manifestCounts(t *testing.T, dir string) string {
 	require.True(t, i > 0 && j > i)
 	return s[i:j]
 }
+
+// The built-in sweep file is listed and printed by examples, and a copy
+// of it plans the same points as the built-in one.
+func TestSweepExampleCopyRuns(t *testing.T) {
+	code, list, _ := runCLI("examples")
+	require.Equal(t, 0, code)
+	assert.Contains(t, list, "example:systematics (a sweep file: spinpop sweep example:systematics)\n")
+	code, text, errs := runCLI("examples", "systematics")
+	require.Equal(t, 0, code, errs)
+	file := filepath.Join(t.TempDir(), "mine.toml")
+	require.NoError(t, os.WriteFile(file, []byte(text), 0o644))
+	code, builtIn, errs := runCLI("sweep", "example:systematics", "--dry-run")
+	require.Equal(t, 0, code, errs)
+	code, copied, errs := runCLI("sweep", file, "--dry-run")
+	require.Equal(t, 0, code, errs)
+	assert.Equal(t, builtIn, copied)
+	assert.Contains(t, builtIn, "8 points of example:fit")
+}
