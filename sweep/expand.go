@@ -44,6 +44,17 @@ type Point struct {
 	Values   []any // one per axis, in the sweep's axis order
 	Scenario *scenarios.Resolved
 	Hash     string // the scenario's canonical hash: the point's identity and folder name
+
+	base      *scenarios.Base
+	overrides []scenarios.Override
+}
+
+// With resolves the point's scenario with more overrides after its own
+// (an alternative's, scenarios.AlternativeOverrides), exactly as a file
+// that extends the point's scenario would.
+func (p *Point) With(extra ...scenarios.Override) (*scenarios.Resolved, error) {
+	ov := append(append([]scenarios.Override{}, p.overrides...), extra...)
+	return p.base.Resolve(ov...)
 }
 
 // Point resolves point i. Its errors are the scenario's, labelled with the
@@ -64,7 +75,7 @@ func (s *Sweep) Point(i int) (*Point, error) {
 	if err != nil {
 		return nil, err
 	}
-	return &Point{Index: i, Values: vals, Scenario: res, Hash: res.Hash()}, nil
+	return &Point{Index: i, Values: vals, Scenario: res, Hash: res.Hash(), base: s.base, overrides: ov}, nil
 }
 
 // Plan is the list of a sweep's points with their hashes: what a dry run

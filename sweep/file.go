@@ -19,7 +19,7 @@ import (
 //
 //	name = "laws"                    # optional; default: the file name
 //	scenario = "example:fit"         # the base: a path relative to this file, or example:NAME
-//	work = ["test-burst"]            # at each point, in this order: simulate, compare, test-burst
+//	work = ["test-burst"]            # at each point, in this order: simulate, compare, test-burst, test-alternatives
 //
 //	[set]                            # keys set at every point, as in a scenario file
 //	compare.bootstrap = 200
@@ -44,16 +44,21 @@ import (
 
 // Work steps a sweep can ask for, in the order they run at a point.
 const (
-	StepSimulate  = "simulate"
-	StepCompare   = "compare"
-	StepTestBurst = "test-burst"
+	StepSimulate     = "simulate"
+	StepCompare      = "compare"
+	StepTestBurst    = "test-burst"
+	StepAlternatives = "test-alternatives"
 )
 
 // Steps lists the work steps in their order.
-var Steps = []string{StepSimulate, StepCompare, StepTestBurst}
+var Steps = []string{StepSimulate, StepCompare, StepTestBurst, StepAlternatives}
 
 // needsData: steps that compare with an observed catalog.
-var needsData = map[string]bool{StepCompare: true, StepTestBurst: true}
+var needsData = map[string]bool{StepCompare: true, StepTestBurst: true, StepAlternatives: true}
+
+// minAltReplicates is the fewest bootstrap replicates the comparison of
+// alternatives accepts (as spinpop test-alternatives does).
+const minAltReplicates = 20
 
 // maxPoints bounds a sweep: past this a file is a mistake (a step of
 // 1e-9), not a plan.
@@ -183,6 +188,16 @@ func parse(path string, data []byte) (*Sweep, error) {
 	for _, w := range s.Work {
 		if needsData[w] && res.Scenario.Data.File == "" {
 			p.errAt("work", "work %q compares with an observed catalog, but scenario %s names none ([data] file = …)", w, s.Scenario)
+			return nil, p.errs
+		}
+	}
+	if slices.Contains(s.Work, StepAlternatives) {
+		if len(res.Scenario.Compare.Alternatives) == 0 {
+			p.errAt("work", "work %q compares the scenario with its [[compare.alternatives]], but scenario %s names none (example:fit names two)", StepAlternatives, s.Scenario)
+			return nil, p.errs
+		}
+		if b := res.Scenario.Compare.Bootstrap; b < minAltReplicates {
+			p.errAt("work", "work %q needs compare.bootstrap ≥ %d replicates per explanation (it is %d); set it in [set]", StepAlternatives, minAltReplicates, b)
 			return nil, p.errs
 		}
 	}

@@ -43,6 +43,8 @@ var headlineColumns = []struct {
 	{"p_value", func(h *Headline) string { return floatCell(h.PValue) }},
 	{"significance_sigma", func(h *Headline) string { return floatCell(h.SignificanceSigma) }},
 	{"verdict", func(h *Headline) string { return h.Verdict }},
+	{"preferred", func(h *Headline) string { return h.Preferred }},
+	{"alternatives_outcome", func(h *Headline) string { return h.AlternativesOutcome }},
 }
 
 func floatCell(x *float64) string {

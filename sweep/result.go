@@ -40,6 +40,13 @@ type Headline struct {
 	SignificanceSigma *float64 `json:"significance_sigma,omitempty"`
 	Verdict           string   `json:"verdict,omitempty"`
 
+	// test-alternatives: the explanation the catalog prefers ("" when it
+	// cannot tell or none fits) and the outcome ("prefers", "cannot-tell",
+	// "neither-fits"); each explanation's ln L and adequacy p go into
+	// Extra as "ln_l[NAME]" and "adequacy_p[NAME]".
+	Preferred           string `json:"preferred,omitempty"`
+	AlternativesOutcome string `json:"alternatives_outcome,omitempty"`
+
 	// Extra holds further numbers by name (units in the names); each
 	// becomes a column.
 	Extra map[string]float64 `json:"extra,omitempty"`

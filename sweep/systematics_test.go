@@ -91,3 +91,17 @@ func TestBuiltInSweepExamplesLoad(t *testing.T) {
 	_, err := Load("example:nosuch")
 	assert.ErrorContains(t, err, "no built-in sweep file nosuch; there are example:systematics")
 }
+
+// The comparison of alternatives needs alternatives to compare and enough
+// replicates; both are the sweep file's errors, at its work line.
+func TestAlternativesStepChecked(t *testing.T) {
+	_, err := Load(writeSweep(t, "name = \"a\"\nscenario = \"example:fit\"\nwork = [\"test-alternatives\"]\n[set]\ncompare.alternatives = []\n"))
+	require.Error(t, err)
+	assert.Contains(t, err.Error(), "sweep.toml:3")
+	assert.Contains(t, err.Error(), "names none")
+	_, err = Load(writeSweep(t, "name = \"a\"\nscenario = \"example:fit\"\nwork = [\"test-alternatives\"]\n[set]\ncompare.bootstrap = 10\n"))
+	require.Error(t, err)
+	assert.Contains(t, err.Error(), "needs compare.bootstrap ≥ 20")
+	_, err = Load(writeSweep(t, "name = \"a\"\nscenario = \"example:fit\"\nwork = [\"test-alternatives\", \"test-burst\"]\n"))
+	require.NoError(t, err)
+}

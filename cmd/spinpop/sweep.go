@@ -40,11 +40,12 @@ func runSweep(args []string, stdout, stderr io.Writer) error {
 		"       spinpop sweep --task   (inside a Slurm job array only)",
 		"Run one scenario over a grid of choices. SWEEP.toml names a base scenario, the keys to vary\n"+
 			"(axes of values, ranges, every choice of a key, seeds; crossed or zipped) and the work at each\n"+
-			"point (simulate, compare, test-burst). Each point runs in DIR/points/<scenario hash>/; the points\n"+
-			"are merged into DIR/results.csv and results.json, plots of the headline numbers against each\n"+
-			"axis (DIR/plots/), and, when the work holds the burst test, a systematic-error table\n"+
-			"(systematics.md, .csv, .json). Run it again to go on: finished points are skipped, failed and\n"+
-			"missing ones are run. --dry-run lists the points and their hashes (with --out, their status).\n"+
+			"point (simulate, compare, test-burst, test-alternatives). Each point runs in\n"+
+			"DIR/points/<scenario hash>/; the points are merged into DIR/results.csv and results.json,\n"+
+			"plots of the headline numbers against each axis (DIR/plots/), and, when the work holds the\n"+
+			"burst test, a systematic-error table (systematics.md, .csv, .json). Run it again to go on:\n"+
+			"finished points are skipped, failed and missing ones are run. --dry-run lists the points and\n"+
+			"their hashes (with --out, their status).\n"+
 			"--slurm sends the points that are not finished to a Slurm cluster as one job array plus a merge\n"+
 			"job that runs after it; DIR must be on a file system every node sees.", stdout)
 	out := fs.String("out", "", "the sweep's folder (created if missing; an existing one must hold this sweep, and is resumed)")

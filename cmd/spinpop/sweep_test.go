@@ -239,3 +239,40 @@ func TestSweepExampleCopyRuns(t *testing.T) {
 	assert.Equal(t, builtIn, copied)
 	assert.Contains(t, builtIn, "8 points of example:fit")
 }
+
+// The comparison of alternatives at a point: the point's scenario against
+// each of its [[compare.alternatives]] (example:fit names a stall and a
+// burst with a stall), each explanation's ln L and adequacy in the table.
+func TestSweepAlternativesStep(t *testing.T) {
+	if testing.Short() {
+		t.Skip("skipping in -short: three fits with bootstraps (≈ 6 s)")
+	}
+	dir := t.TempDir()
+	file := filepath.Join(dir, "a.toml")
+	require.NoError(t, os.WriteFile(file, []byte(`name = "alt"
+scenario = "example:fit"
+work = ["test-alternatives"]
+[set]
+compare.bootstrap = 20
+compare.template_stars = 300_000
+compare.free = [
+  { path = "history.burst.age_gyr", min = 0.1, max = 3.0 },
+  { path = "history.burst.mass_fraction", min = 0.0, max = 0.6 },
+]
+`), 0o644))
+	out := filepath.Join(dir, "out")
+	code, stdout, errs := runCLI("sweep", file, "--out", out, "--templates", "none")
+	require.Equal(t, 0, code, "%s %s", stdout, errs)
+	rows := readTable(t, filepath.Join(out, "results.csv"))
+	require.Len(t, rows, 1)
+	r := rows[0]
+	assert.Contains(t, []string{"prefers", "cannot-tell", "neither-fits"}, r["alternatives_outcome"])
+	if r["alternatives_outcome"] == "prefers" {
+		assert.Contains(t, []string{"fit", "stall", "burst-and-stall"}, r["preferred"])
+	}
+	for _, name := range []string{"fit", "stall", "burst-and-stall"} {
+		assert.NotEmpty(t, r["ln_l["+name+"]"], name)
+		assert.NotEmpty(t, r["adequacy_p["+name+"]"], name)
+	}
+	assert.FileExists(t, filepath.Join(out, "points", r["hash"], "out", "alternatives.json"))
+}

@@ -9,6 +9,7 @@ import (
 	"spinpop/compare"
 	"spinpop/internal/outset"
 	"spinpop/pipeline"
+	"spinpop/scenarios"
 	"spinpop/sweep"
 )
 
@@ -25,6 +26,10 @@ import (
 //     their 68 % intervals, Δln L, bootstrap p, significance, the verdict's
 //     strength, and the burst model's adequacy (which replaces the
 //     as-written one of compare, kept as as_written_adequacy_p).
+//   - test-alternatives: alternatives.json (as spinpop test-alternatives:
+//     the point's scenario against each of its [[compare.alternatives]],
+//     compare.bootstrap replicates under each); headline: the preferred
+//     explanation and the outcome, each one's ln L and adequacy p.
 type pointWorker struct {
 	templates string
 	threads   int
@@ -63,7 +68,7 @@ func (w *pointWorker) work(ctx context.Context, p *sweep.Point, steps []string, 
 		h.CatalogStars = sweep.I(m.CatalogStars)
 		w.logf("point %d: simulated, %d catalog stars", p.Index, m.CatalogStars)
 	}
-	if !slices.Contains(steps, sweep.StepCompare) && !slices.Contains(steps, sweep.StepTestBurst) {
+	if !slices.Contains(steps, sweep.StepCompare) && !slices.Contains(steps, sweep.StepTestBurst) && !slices.Contains(steps, sweep.StepAlternatives) {
 		return nil
 	}
 	c, err := pipeline.SetupComparison(ctx, p.Scenario, pipeline.ComparisonOptions{
@@ -104,7 +109,53 @@ func (w *pointWorker) work(ctx context.Context, p *sweep.Point, steps []string, 
 		}
 		w.logf("point %d: burst test, %s", p.Index, h.Verdict)
 	}
+	if slices.Contains(steps, sweep.StepAlternatives) {
+		if err := w.alternatives(ctx, p, c, reps, label, set, h); err != nil {
+			return err
+		}
+		w.logf("point %d: alternatives, %s %s", p.Index, h.AlternativesOutcome, h.Preferred)
+	}
 	return nil
+}
+
+// alternatives compares the point's scenario with each of its
+// [[compare.alternatives]] (each resolved on the point, so the axis values
+// hold in every explanation), as spinpop test-alternatives does, with
+// compare.bootstrap replicates under each; it writes alternatives.json.
+func (w *pointWorker) alternatives(ctx context.Context, p *sweep.Point, c *pipeline.Comparison, reps int, label string, set *outset.Set, h *sweep.Headline) error {
+	comps := []*pipeline.Comparison{c}
+	for i, a := range p.Scenario.Scenario.Compare.Alternatives {
+		ov, err := scenarios.AlternativeOverrides(&p.Scenario.Scenario, i)
+		if err != nil {
+			return err
+		}
+		res, err := p.With(ov...)
+		if err != nil {
+			return err
+		}
+		ac, err := pipeline.SetupComparison(ctx, res, pipeline.ComparisonOptions{
+			Source: fmt.Sprintf("%s, alternative %q", label, a.Name), Workers: w.threads, TemplateDir: w.templates,
+			Warn: func(msg string) { w.logf("point %d: warning: %s", p.Index, msg) },
+		})
+		if err != nil {
+			return err
+		}
+		comps = append(comps, ac)
+	}
+	o, err := pipeline.TestAlternatives(ctx, comps, pipeline.AlternativesOptions{Replicates: reps})
+	if err != nil {
+		return err
+	}
+	r := o.Result
+	h.Preferred, h.AlternativesOutcome = r.Best, r.Outcome
+	if h.Extra == nil {
+		h.Extra = map[string]float64{}
+	}
+	for _, f := range r.Fits {
+		h.Extra["ln_l["+f.Name+"]"] = f.LogL
+		h.Extra["adequacy_p["+f.Name+"]"] = f.Adequacy.PValue
+	}
+	return writeJSON(set, "alternatives.json", o.Report([]string{"alternatives.json"}))
 }
 
 func (w *pointWorker) burst(ctx context.Context, c *pipeline.Comparison, reps int, set *outset.Set, h *sweep.Headline) error {
