@@ -115,6 +115,17 @@ func TestUnwritableOutputFolderExitOneEverywhere(t *testing.T) {
 	assert.Equal(t, 1, code, errs)
 }
 
+func TestOutputFolderThatIsAFileIsBadInput(t *testing.T) {
+	file := filepath.Join(t.TempDir(), "plain-file")
+	require.NoError(t, os.WriteFile(file, []byte("mine"), 0o644))
+	code, _, errs := runCLI("simulate", smallScenario(t, 2000), "--out", file)
+	assert.Equal(t, 2, code, errs)
+	assert.Contains(t, errs, "is a file, not a folder")
+	b, err := os.ReadFile(file)
+	require.NoError(t, err)
+	assert.Equal(t, "mine", string(b))
+}
+
 func TestReadOnlyOutputFolderExitOne(t *testing.T) {
 	parent := t.TempDir()
 	require.NoError(t, os.Chmod(parent, 0o555))

@@ -23,6 +23,9 @@ func openOutDir(dir string, force bool, stderr io.Writer) (*outset.Set, error) {
 	if dir == "" {
 		return nil, usageErrorf("--out DIR is required: name a folder for the outputs")
 	}
+	if fi, err := os.Stat(dir); err == nil && !fi.IsDir() {
+		return nil, usageErrorf("--out %s is a file, not a folder; name a folder for the outputs", dir)
+	}
 	out, err := outset.Open(dir, outset.Options{Force: force})
 	switch {
 	case errors.Is(err, outset.ErrBusy):
