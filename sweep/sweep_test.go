@@ -91,7 +91,7 @@ func TestExpandPointsAreTheOverriddenScenario(t *testing.T) {
 func TestSweepFileErrors(t *testing.T) {
 	cases := []struct{ text, want string }{
 		{"scenario = \"example:base\"\nwrk = [\"simulate\"]\n", `sweep.toml:2: unknown key "wrk"; did you mean "work"?`},
-		{"scenario = \"example:base\"\nwork = [\"simulat\"]\n", `sweep.toml:2: work step simulat is not one of simulate, compare, test-burst; did you mean "simulate"?`},
+		{"scenario = \"example:base\"\nwork = [\"simulat\"]\n", `sweep.toml:2: work step simulat is not one of simulate, compare, test-burst, test-alternatives; did you mean "simulate"?`},
 		{"scenario = \"example:base\"\nwork = [\"compare\"]\n", `work "compare" compares with an observed catalog, but scenario example:base names none`},
 		{"scenario = \"nothere.toml\"\nwork = [\"simulate\"]\n", `sweep.toml:1: scenario = "nothere.toml": `},
 		{"scenario = \"example:base\"\nwork = [\"simulate\"]\n[[axis]]\nkey = \"spin.turnover\"\nchoices = \"all\"\n[[axis]]\nkey = \"run.seed\"\nchoices = \"all\"\n",
