@@ -8,6 +8,7 @@ import (
 	"spinpop/internal/figure"
 	"spinpop/internal/outset"
 	"spinpop/pipeline"
+	"spinpop/scenarios"
 
 	"gonum.org/v1/plot/vg"
 )
@@ -34,8 +35,8 @@ func runLaws(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	if *stars < 0 {
-		return usageErrorf("--stars must be positive")
+	if *stars < 0 || *stars > scenarios.MaxStars {
+		return usageErrorf("--stars must be between 1 and %g (run.stars_generated's range)", float64(scenarios.MaxStars))
 	}
 	set, err := openOutDir(*out, *force, stderr)
 	if err != nil {

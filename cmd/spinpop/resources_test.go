@@ -35,3 +35,10 @@ func TestRunEstimateAndRefusal(t *testing.T) {
 	entries, _ := os.ReadDir(dir)
 	assert.Empty(t, entries, "a refused run writes nothing")
 }
+
+// laws --stars has run.stars_generated's range: 9·10¹⁸ stars ran for ever.
+func TestLawsStarsBounded(t *testing.T) {
+	code, _, errs := runCLI("laws", "example:base", "--stars", "9000000000000000000", "--out", filepath.Join(t.TempDir(), "out"))
+	assert.Equal(t, 2, code)
+	assert.Contains(t, errs, "--stars must be between 1 and 1e+14")
+}
