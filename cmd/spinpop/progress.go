@@ -27,6 +27,11 @@ type progressBar struct {
 	shown    bool
 	last     time.Time
 	done     int64
+	// The first report: the rate, and so the eta, is measured from it, so
+	// that set-up done between making the bar and the first finished unit
+	// (the fits before a bootstrap) does not read as slow work.
+	begun     time.Time
+	begunDone int64
 }
 
 // batchInterval is how often a batch job's log hears from long work.
@@ -63,6 +68,9 @@ func (p *progressBar) Update(done int64) {
 	defer p.mu.Unlock()
 	p.done = max(p.done, done)
 	now := p.now()
+	if p.begun.IsZero() {
+		p.begun, p.begunDone = now, p.done
+	}
 	if !p.terminal {
 		if now.Sub(p.last) < batchInterval {
 			return
@@ -89,13 +97,18 @@ func (p *progressBar) fraction() float64 {
 	return min(max(frac, 0), 1)
 }
 
-// eta is " eta 1m20s" once a hundredth of the work is done, else "".
+// eta is " eta 1m20s" once a hundredth of the work is done, else "": the
+// remaining units at the rate measured since the first report.
 func (p *progressBar) eta(now time.Time) string {
 	frac := p.fraction()
 	if frac <= 0.01 {
 		return ""
 	}
-	rem := time.Duration(float64(now.Sub(p.start)) * (1 - frac) / frac)
+	units := p.done - p.begunDone
+	if units <= 0 || !now.After(p.begun) {
+		return "" // no rate yet
+	}
+	rem := time.Duration(float64(now.Sub(p.begun)) / float64(units) * float64(max(p.total-p.done, 0)))
 	return fmt.Sprintf(" eta %s", rem.Round(time.Second))
 }
 

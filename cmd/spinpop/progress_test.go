@@ -103,3 +103,22 @@ func TestSweepProgressInBatchLog(t *testing.T) {
 		"point 1 ba9876543210 failed after 22.0s: boom\n"+
 		"sweep points: finished after 22s\n", log.String())
 }
+
+// Set-up between making the bar and the first finished unit (fits before
+// a bootstrap) does not inflate the eta: 3 minutes of fits, then ten
+// replicates in 10 s, leaves 49 replicates ≈ 49 s, not the 14 minutes the
+// time since the bar was made would give.
+func TestProgressEtaFromFirstReport(t *testing.T) {
+	clk := &fakeClock{t: time.Unix(0, 0)}
+	var log bytes.Buffer
+	p := newProgressTo(&log, "bootstrap", 60, false, clk.now)
+	clk.advance(3 * time.Minute)
+	p.Update(1)
+	for i := 2; i <= 11; i++ {
+		clk.advance(time.Second)
+		p.Update(int64(i))
+	}
+	lines := strings.Split(strings.TrimSpace(log.String()), "\n")
+	assert.Equal(t, "bootstrap: 1 of 60 (2 %) after 3m0s", lines[0], "no rate yet, no eta")
+	assert.Equal(t, "bootstrap: 11 of 60 (18 %) after 3m10s, eta 49s", lines[len(lines)-1])
+}
