@@ -162,16 +162,18 @@ func (e Estimate) String() string {
 }
 
 // Refusal returns why the run should not start on this machine, or nil:
-// more memory than is available, or longer than MaxRunSeconds. The error
+// more memory than is available, or longer than MaxRunSeconds. countKey
+// is the scenario key that set the star count (run.stars_generated,
+// compare.template_stars), override how to go on all the same. The error
 // is an InputError (exit status 2): the scenario asks for more than the
 // machine can do, and the user decides whether to go on (--yes).
-func (e Estimate) Refusal(override string) error {
+func (e Estimate) Refusal(countKey, override string) error {
 	var why []string
 	if e.AvailableBytes > 0 && e.PeakBytes > e.AvailableBytes {
 		why = append(why, fmt.Sprintf("it would need ≈ %s of memory and %s is available (lower run.chunk_stars or --threads)", BytesString(e.PeakBytes), BytesString(e.AvailableBytes)))
 	}
 	if e.Seconds > MaxRunSeconds {
-		why = append(why, fmt.Sprintf("it would take ≈ %s, more than a day on this machine (lower run.stars_generated, or split the run across machines with a sweep)", DurationString(e.Seconds)))
+		why = append(why, fmt.Sprintf("it would take ≈ %s, more than a day on this machine (lower %s, or split the run across machines with a sweep)", DurationString(e.Seconds), countKey))
 	}
 	if len(why) == 0 {
 		return nil

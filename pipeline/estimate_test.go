@@ -31,12 +31,12 @@ func TestEstimateScales(t *testing.T) {
 	// No machine of today makes 10¹² stars in a day on two threads (the
 	// generator makes about 10⁶ per second per core): refused, with both
 	// the reason and the override named.
-	err = huge.Refusal("pass --yes")
+	err = huge.Refusal("run.stars_generated", "pass --yes")
 	require.Error(t, err)
 	assert.True(t, IsInputError(err), "a refusal is bad input: exit status 2")
 	assert.Contains(t, err.Error(), "refusing to start a run of 1e12 stars: it would take ≈")
 	assert.Contains(t, err.Error(), "pass --yes to start it all the same")
-	assert.NoError(t, small.Refusal("pass --yes"))
+	assert.NoError(t, small.Refusal("run.stars_generated", "pass --yes"))
 
 	wide := EstimateRun(b, 2e6, 1<<20, 8, false)
 	chunkBytes := float64(2 * 2 * 8 * (1 << 20) * model.ChunkBytesPerStar()) // ×2 GC headroom, 2 chunks per worker, 8 workers
@@ -53,11 +53,11 @@ func TestEstimateScales(t *testing.T) {
 // message says what to lower.
 func TestEstimateRefusesMemory(t *testing.T) {
 	e := Estimate{Stars: 2e6, Seconds: 1, PeakBytes: 40 << 30, AvailableBytes: 20 << 30}
-	err := e.Refusal("pass --yes")
+	err := e.Refusal("run.stars_generated", "pass --yes")
 	require.Error(t, err)
 	assert.Contains(t, err.Error(), "it would need ≈ 40 GiB of memory and 20 GiB is available (lower run.chunk_stars or --threads)")
 	e.AvailableBytes = 0 // unknown: no refusal on memory
-	assert.NoError(t, e.Refusal("pass --yes"))
+	assert.NoError(t, e.Refusal("run.stars_generated", "pass --yes"))
 }
 
 func TestHumanUnits(t *testing.T) {

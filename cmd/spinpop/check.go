@@ -39,12 +39,18 @@ func runCheck(args []string, stdout, stderr io.Writer) error {
 	// a scenario beyond this machine is refused unless --yes.
 	s := &res.Scenario
 	est := pipeline.EstimateRun(built, s.Run.StarsGenerated, s.Run.ChunkStars, *threads, false)
-	if err := est.Refusal(yesFlag); err != nil && !*yes {
+	if err := est.Refusal("run.stars_generated", yesFlag); err != nil && !*yes {
 		return fmt.Errorf("%s: %w", path, err)
 	}
 	var tplSeconds float64
 	if s.Data.File != "" {
 		tplSeconds = est.Seconds / float64(est.Stars) * float64(s.Compare.TemplateStars)
+		// The comparison commands' template run is judged alike.
+		tpl := est
+		tpl.Stars, tpl.Seconds = s.Compare.TemplateStars, tplSeconds
+		if err := tpl.Refusal("compare.template_stars", yesFlag); err != nil && !*yes {
+			return fmt.Errorf("%s: the template run of a comparison: %w", path, err)
+		}
 	}
 	if *asJSON {
 		enc := json.NewEncoder(stdout)

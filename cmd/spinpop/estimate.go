@@ -15,7 +15,7 @@ const yesFlag = "pass --yes"
 func estimateGate(stderr io.Writer, yes bool) func(pipeline.Estimate) error {
 	return func(e pipeline.Estimate) error {
 		fmt.Fprintf(stderr, "estimate: %s\n", e)
-		if err := e.Refusal(yesFlag); err != nil && !yes {
+		if err := e.Refusal("run.stars_generated", yesFlag); err != nil && !yes {
 			return err
 		}
 		return nil

@@ -42,3 +42,11 @@ func TestLawsStarsBounded(t *testing.T) {
 	assert.Equal(t, 2, code)
 	assert.Contains(t, errs, "--stars must be between 1 and 1e+14")
 }
+
+// check judges a comparison's template run like the simulation run.
+func TestCheckRefusesAnEndlessTemplateRun(t *testing.T) {
+	code, _, errs := runCLI("check", "example:fit", "--set", "compare.template_stars=1e13")
+	assert.Equal(t, 2, code)
+	assert.Contains(t, errs, "the template run of a comparison: refusing to start a run of 1e13 stars")
+	assert.Contains(t, errs, "lower compare.template_stars")
+}
