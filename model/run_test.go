@@ -17,9 +17,8 @@ import (
 	"spinpop/model/spots"
 )
 
-// testPopulation builds, by hand, a population of the base example's kind
-// (its field and survey numbers are older test settings, not the example
-// survey's): a cone toward (58°, 21°) out to 1.5 kpc, nBins equal age bins
+// testPopulation builds, by hand, a population like the base example
+// scenario: a cone toward (197°, −34°) out to 1.5 kpc, nBins equal age bins
 // over 10 Gyr of constant star formation, Kroupa masses, the Barnes (2007)
 // law, spots, binaries with some tidal locking, a metallicity spread and a
 // dust layer. The numbers are test settings, not physics claims.
@@ -40,7 +39,7 @@ func testPopulation(tb testing.TB, nBins int) *Population {
 		require.NoError(tb, err)
 	}
 	sun := disk.DefaultSun()
-	smp, err := disk.NewMixtureSampler(disk.Cone{LDeg: 58, BDeg: 21, RadiusDeg: 11, DistMaxPc: 1500}, sun,
+	smp, err := disk.NewMixtureSampler(disk.Cone{LDeg: 197, BDeg: -34, RadiusDeg: 8, DistMaxPc: 1500}, sun,
 		disk.Sheet{SheetSigmaKms: 20, SurfaceDensityMsunPc2: 70}, disk.DefaultRadial(), mixes, disk.SamplerOptions{})
 	require.NoError(tb, err)
 	prob := make([]float64, nBins)
@@ -50,7 +49,7 @@ func testPopulation(tb testing.TB, nBins int) *Population {
 	dust := disk.DefaultDustLayer()
 	amp := spots.DefaultAmplitudeModel()
 	det := spots.DefaultDetection()
-	det.BaselineD = 1400
+	det.BaselineD = 1000
 	p := &Population{
 		BinProb:   prob,
 		Age:       func(k int, r *rand.Rand) float64 { return edges[k] + r.Float64()*(edges[k+1]-edges[k]) },
@@ -64,7 +63,7 @@ func testPopulation(tb testing.TB, nBins int) *Population {
 		Evolved:   true,
 		Binaries:  Binaries{FractionScale: 1, MassRatioMin: 0.1, TidalLockFraction: 0.05, TidalLockMaxD: 7},
 		Metals:    Metallicity{SigmaDex: 0.1, ColorPerDex: 0.2, AbsMagPerDex: 0.5},
-		Survey:    Survey{Band: BandV, BrightLimitMag: 9, FaintLimitMag: 16, Detect: det, Recovery: spots.DefaultRecoveryOptions()},
+		Survey:    Survey{Band: BandV, BrightLimitMag: 10, FaintLimitMag: 16.5, Detect: det, Recovery: spots.DefaultRecoveryOptions()},
 		Cuts:      Cuts{BVMin: 0.45, BVMax: 1.6, MSBandBrightMag: 0.4, MSBandFaintMag: 0.4, PeriodMinD: 0.05, PeriodMaxD: 400},
 	}
 	require.NoError(tb, p.Prepare())

@@ -27,7 +27,7 @@ type Detection struct {
 	MinCycles    float64 // rotations the baseline must hold
 }
 
-// DefaultDetection returns a 90-day, 30-minute-cadence light curve with
+// DefaultDetection returns a 120-day, 45-minute-cadence light curve with
 // DefaultNoiseModel, threshold SNR 10, sharpness 4 (p ≈ 6 % at half the
 // threshold, ≈ 94 % at twice it) and at least 3 cycles [common practice,
 // no source: periodogram searches are usually trusted only for a few
@@ -35,8 +35,8 @@ type Detection struct {
 func DefaultDetection() Detection {
 	return Detection{
 		Noise:        DefaultNoiseModel(),
-		BaselineD:    90,
-		CadenceD:     1.0 / 48,
+		BaselineD:    120,
+		CadenceD:     1.0 / 32,
 		ThresholdSNR: 10,
 		Sharpness:    4,
 		MinCycles:    3,

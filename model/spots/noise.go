@@ -17,7 +17,7 @@ type NoiseModel struct {
 }
 
 // DefaultNoiseModel returns a floor of 30 ppm and 100 ppm of photon noise
-// per 30-minute cadence at magnitude 12 in the survey band: the order of
+// per 45-minute cadence at magnitude 12 in the survey band: the order of
 // a 1 m-class space photometer [memory; an illustration, the scenario
 // should state its survey's values].
 func DefaultNoiseModel() NoiseModel {

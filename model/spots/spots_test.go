@@ -120,7 +120,7 @@ func TestDetectionProbability(t *testing.T) {
 	// ... while an old, slow, quiet one (Ro = 2.5, ~150 ppm) at magnitude
 	// 18 is almost never found, and never with fewer than 3 cycles.
 	assert.Less(t, d.Probability(a.MedianPpm(2.5), 18, 28), 0.05)
-	assert.Zero(t, d.Probability(1e6, 10, 35), "90-d baseline holds < 3 cycles of 35 d")
+	assert.Zero(t, d.Probability(1e6, 10, 45), "120-d baseline holds < 3 cycles of 45 d")
 
 	// Monotone: brighter and larger signals are easier.
 	prev := 1.0
@@ -246,7 +246,7 @@ func TestProbabilityAtNoise(t *testing.T) {
 			}
 		}
 	}
-	assert.Zero(t, d.ProbabilityAtNoise(300, 100, 40), "baseline holds < MinCycles")
+	assert.Zero(t, d.ProbabilityAtNoise(300, 100, 45), "baseline holds < MinCycles")
 	assert.Zero(t, d.ProbabilityAtNoise(math.NaN(), 100, 10))
 }
 
