@@ -3,7 +3,7 @@ package pipeline
 import (
 	"context"
 	"fmt"
-	"slices"
+	"io"
 
 	"spinpop/assemble"
 	"spinpop/compare"
@@ -22,8 +22,12 @@ type AlternativesOutcome struct {
 
 // AlternativesOptions tune TestAlternatives.
 type AlternativesOptions struct {
-	Replicates int // bootstrap replicates under each explanation (0: 200)
-	Progress   func(done, total int)
+	// WriteRejected, if set, is handed a function that writes rejected.csv
+	// again once every explanation leaves out the same cells (see
+	// ComparisonOptions.WriteRejected).
+	WriteRejected func(write func(w io.Writer) error) error
+	Replicates    int // bootstrap replicates under each explanation (0: 200)
+	Progress      func(done, total int)
 }
 
 // TestAlternatives compares the explanations of one catalog that the
@@ -36,7 +40,7 @@ func TestAlternatives(ctx context.Context, comps []*Comparison, opts Alternative
 	if len(comps) < 2 {
 		return nil, InputError{fmt.Errorf("a comparison of explanations needs at least two scenarios, got %d", len(comps))}
 	}
-	comps, err := onCommonCells(comps)
+	comps, err := onCommonCells(comps, opts.WriteRejected)
 	if err != nil {
 		return nil, err
 	}
@@ -96,33 +100,36 @@ func (o *AlternativesOutcome) Report(outputs []string) map[string]any {
 // each comparison leaves out the cells its own templates never reach and
 // (with compare.mask_below_age_gyr) those below its own law's young
 // gyrochrone, so explanations under different laws would otherwise score
-// different stars, and their likelihoods could not be compared. Every
-// comparison here leaves out the cells any of them leaves out (the
-// templates of each are zero in its own masked cells, so DropUnreached
-// covers both). The comparisons given are not changed.
-func onCommonCells(comps []*Comparison) ([]*Comparison, error) {
+// different stars, and their likelihoods could not be compared. Each is
+// read again leaving out, besides its own, every cell another leaves out
+// (the templates of each are zero in its own masked cells, so the
+// unreached cells cover both); the first writes rejected.csv through
+// writeRejected, listing every row not compared. The comparisons given are
+// not changed.
+func onCommonCells(comps []*Comparison, writeRejected func(write func(w io.Writer) error) error) ([]*Comparison, error) {
+	unreached := make([][]bool, len(comps))
+	for i, c := range comps {
+		unreached[i] = compare.UnreachedCells(c.Templates)
+	}
 	out := make([]*Comparison, len(comps))
 	for i, c := range comps {
-		d := *c
-		obs := *c.Observed
-		obs.Counts = slices.Clone(c.Observed.Counts)
-		changed := false
-		for j, o := range comps {
-			if j == i || o.Templates == nil {
+		other := make([]bool, len(unreached[i]))
+		for j := range comps {
+			if j == i {
 				continue
 			}
-			if stars, _ := obs.DropUnreached(o.Templates); stars > 0 {
-				d.DroppedStars += stars
-				changed = true
+			for cell, u := range unreached[j] {
+				other[cell] = other[cell] || u
 			}
 		}
-		d.Observed = &obs
-		if changed {
-			l, err := compare.NewLikelihood(c.Templates, obs.Counts, assemble.LikeOptions(c.Scenario))
-			if err != nil {
-				return nil, InputError{fmt.Errorf("%s: %w", c.Source, err)}
-			}
-			d.Likelihood = l
+		d := *c
+		d.OtherOut, d.Observed, d.Likelihood = other, nil, nil
+		w := writeRejected
+		if i > 0 {
+			w = nil
+		}
+		if err := d.readData(c.spec, w); err != nil {
+			return nil, err
 		}
 		out[i] = &d
 	}

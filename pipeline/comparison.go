@@ -50,6 +50,13 @@ type Comparison struct {
 	// alike; MaskedStars data stars fell there.
 	Mask                    []bool
 	MaskedStars, MaskedBins int
+	// OtherOut marks the cells another explanation of the same catalog
+	// leaves out (test-alternatives scores every explanation on the same
+	// stars); OtherStars data stars fell there. Nil outside such a test.
+	OtherOut   []bool
+	OtherStars int
+
+	spec compare.DataSpec // how the catalog was read, for reading it again
 }
 
 // ComparisonOptions tune SetupComparison.
@@ -219,6 +226,7 @@ func (c *Comparison) readData(spec compare.DataSpec, writeRejected func(write fu
 	// with the rows the reader and the cuts left out, so the file holds
 	// every row not compared. The mask is applied first (the templates are
 	// zero there too, so its cells are also unreached).
+	c.spec = spec
 	unreached := compare.UnreachedCells(c.Templates)
 	maskedIn := make([]int, len(unreached))
 	droppedIn := make([]int, len(unreached))
@@ -230,6 +238,8 @@ func (c *Comparison) readData(spec compare.DataSpec, writeRejected func(write fu
 		case unreached[cell]:
 			droppedIn[cell]++
 			return LeftOutUnreached
+		case c.OtherOut != nil && c.OtherOut[cell]:
+			return LeftOutOther
 		}
 		return ""
 	}
@@ -249,6 +259,7 @@ func (c *Comparison) readData(spec compare.DataSpec, writeRejected func(write fu
 	}
 	c.MaskedStars, c.MaskedBins = c.Observed.LeftOut[LeftOutYoung], nonZero(maskedIn)
 	c.DroppedStars, c.DroppedBins = c.Observed.LeftOut[LeftOutUnreached], nonZero(droppedIn)
+	c.OtherStars = c.Observed.LeftOut[LeftOutOther]
 	if n := c.Observed.LeftOut[LeftOutUnreached]; c.Observed.N == 0 && n > 0 {
 		// The catalog has stars; the model put none where they are.
 		return InputError{fmt.Errorf("%s: the model's selection is too small or lies elsewhere: all %d catalog stars that pass the cuts lie in cells that none of the model's %.0f template stars in the comparison space reached (the catalog is not at fault; raise compare.template_stars, or compare the scenario's survey and cuts with the catalog's)",
@@ -267,8 +278,9 @@ func (c *Comparison) readData(spec compare.DataSpec, writeRejected func(write fu
 // comparison (Observed.LeftOut keys; rejected.csv says "left out: " and
 // the reason).
 const (
-	LeftOutYoung     = "below_young_gyrochrone"   // compare.mask_below_age_gyr
-	LeftOutUnreached = "cell_no_template_reached" // no template star in its (color, period) cell
+	LeftOutYoung     = "below_young_gyrochrone"              // compare.mask_below_age_gyr
+	LeftOutUnreached = "cell_no_template_reached"            // no template star in its (color, period) cell
+	LeftOutOther     = "cell_another_explanation_leaves_out" // test-alternatives: masked or unreached under another explanation
 )
 
 func nonZero(n []int) int {
@@ -347,6 +359,7 @@ type DataSummary struct {
 	SpaceBins  int            `json:"comparison_bins"`
 	SetupSecs  float64        `json:"setup_seconds"`
 	Dropped    int            `json:"stars_in_cells_no_template_reached"`
+	OtherOut   int            `json:"stars_in_cells_another_explanation_leaves_out,omitempty"`
 	Masked     int            `json:"stars_below_youngest_gyrochrone"`
 	MaskAgeGyr float64        `json:"mask_below_age_gyr"`
 	ScenarioSH string         `json:"scenario_sha256"`
@@ -359,7 +372,7 @@ func (c *Comparison) DataSummary() DataSummary {
 		LeftOut:   c.Observed.Rows - c.Observed.N,
 		Templates: c.TemplateFile, TplReused: c.TemplatesReused, TplStars: c.Templates.StarsDrawn, AgeBins: c.Templates.NumAgeBins(),
 		SpaceBins: c.Space.NumColorPeriod(), SetupSecs: c.SetupSeconds, ScenarioSH: c.Resolved.Hash(), Dropped: c.DroppedStars,
-		Masked: c.MaskedStars, MaskAgeGyr: c.Scenario.Compare.MaskAgeGyr,
+		Masked: c.MaskedStars, MaskAgeGyr: c.Scenario.Compare.MaskAgeGyr, OtherOut: c.OtherStars,
 	}
 }
 

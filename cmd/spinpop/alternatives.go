@@ -67,8 +67,14 @@ func runTestAlternatives(args []string, stdout, stderr io.Writer) error {
 	out := of.set
 	bar := newProgressBar("bootstrap", int64(*reps*len(comps)))
 	o, err := pipeline.TestAlternatives(ctx, comps, pipeline.AlternativesOptions{Replicates: *reps,
-		Progress: func(done, _ int) { bar.Update(int64(done)) }})
+		Progress: func(done, _ int) { bar.Update(int64(done)) },
+		WriteRejected: func(write func(io.Writer) error) error {
+			return out.Write(of.sub+"rejected.csv", write)
+		}})
 	bar.Done()
+	if err == nil {
+		comps = o.Comparisons // every explanation on the same stars
+	}
 	if err != nil {
 		if ctx.Err() != nil {
 			return interrupted(of.dir)

@@ -205,11 +205,21 @@ drop = ["burst"]
 	checkReport(t, out, []string{"fit-small"}, 2)
 	var data struct {
 		Data struct {
+			Rows     int `json:"rows"`
 			Compared int `json:"stars_compared"`
+			Other    int `json:"stars_in_cells_another_explanation_leaves_out"`
 		} `json:"data"`
 	}
 	require.NoError(t, json.Unmarshal(b, &data))
 	assert.Positive(t, data.Data.Compared)
+	assert.Positive(t, data.Data.Other, "the two laws' young masks differ, so each leaves out cells the other keeps")
+	// rejected.csv lists every row not compared, those left out for the
+	// other explanation included.
+	rej, err := os.ReadFile(filepath.Join(out, "rejected.csv"))
+	require.NoError(t, err)
+	lines := strings.Split(strings.TrimSpace(string(rej)), "\n")
+	assert.Equal(t, data.Data.Rows-data.Data.Compared, len(lines)-1, "rows listed = rows not compared")
+	assert.Equal(t, data.Data.Other, strings.Count(string(rej), "cell_another_explanation_leaves_out"))
 
 	// Without alternatives, one scenario is not a comparison.
 	plain := fitScenario(t, "")

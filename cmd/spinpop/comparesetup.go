@@ -151,6 +151,9 @@ func printDataSummary(w io.Writer, d pipeline.DataSummary) {
 	if d.MaskAgeGyr > 0 {
 		fmt.Fprintf(w, "%d catalog stars lie below the gyrochrone of %.3g Gyr (compare.mask_below_age_gyr): cells there hold stars younger than the model describes and are left out, in data and model\n", d.Masked, d.MaskAgeGyr)
 	}
+	if d.OtherOut > 0 {
+		fmt.Fprintf(w, "%d catalog stars lie in cells another explanation leaves out (below its young gyrochrone, or where its templates never reach); every explanation is scored without them\n", d.OtherOut)
+	}
 	if d.Dropped > 0 {
 		fmt.Fprintf(w, "warning: %d catalog stars lie in comparison cells that no template star reached; they are left out of the comparison (raise compare.template_stars or use coarser bins to keep them)\n", d.Dropped)
 	}
