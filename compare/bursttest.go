@@ -21,8 +21,8 @@ type TestOptions struct {
 	Replicates int    // parametric-bootstrap replicates B (0: 1000)
 	Seed       uint64 // replicate i draws from a stream of (Seed, i)
 	Workers    int    // goroutines (0: GOMAXPROCS); results do not depend on it
-	// Progress, if not nil, is called on the calling goroutine after each
-	// finished replicate.
+	// Progress, if not nil, is called on the calling goroutine with 0 when
+	// the replicates begin (after the fits) and after each finished one.
 	Progress func(done, total int)
 	// FitStarts is the number of starts of the fits to the data (0: 4);
 	// ReplicateStarts of the refits of each replicate (0: 2), which also
@@ -377,6 +377,9 @@ func refitPair(like *Likelihood, counts []float64, smooth, burst HistoryModel, f
 // does not depend on the number of workers. The first error, or the
 // context's, stops the run and is returned.
 func parallelReplicates(ctx context.Context, n, workers int, progress func(done, total int), job func(i int, scratch []float64) error, scratchLen int) error {
+	if progress != nil {
+		progress(0, n) // the replicates begin (a progress bar times them from here)
+	}
 	if workers <= 0 {
 		workers = runtime.GOMAXPROCS(0)
 	}

@@ -27,11 +27,11 @@ type progressBar struct {
 	shown    bool
 	last     time.Time
 	done     int64
-	// The first report: the rate, and so the eta, is measured from it, so
-	// that set-up done between making the bar and the first finished unit
-	// (the fits before a bootstrap) does not read as slow work.
-	begun     time.Time
-	begunDone int64
+	// begun is when the work said it began (an Update(0) after the bar
+	// was made): the eta's rate is measured from then, so that set-up done
+	// between making the bar and the work (the fits before a bootstrap)
+	// does not read as slow work.
+	begun time.Time
 }
 
 // batchInterval is how often a batch job's log hears from long work.
@@ -68,8 +68,8 @@ func (p *progressBar) Update(done int64) {
 	defer p.mu.Unlock()
 	p.done = max(p.done, done)
 	now := p.now()
-	if p.begun.IsZero() {
-		p.begun, p.begunDone = now, p.done
+	if done == 0 && p.begun.IsZero() {
+		p.begun = now
 	}
 	if !p.terminal {
 		if now.Sub(p.last) < batchInterval {
@@ -98,17 +98,17 @@ func (p *progressBar) fraction() float64 {
 }
 
 // eta is " eta 1m20s" once a hundredth of the work is done, else "": the
-// remaining units at the rate measured since the first report.
+// remaining units at the rate measured since the work began.
 func (p *progressBar) eta(now time.Time) string {
 	frac := p.fraction()
 	if frac <= 0.01 {
 		return ""
 	}
-	units := p.done - p.begunDone
-	if units <= 0 || !now.After(p.begun) {
-		return "" // no rate yet
+	origin := p.start
+	if !p.begun.IsZero() {
+		origin = p.begun
 	}
-	rem := time.Duration(float64(now.Sub(p.begun)) / float64(units) * float64(max(p.total-p.done, 0)))
+	rem := time.Duration(float64(now.Sub(origin)) * (1 - frac) / frac)
 	return fmt.Sprintf(" eta %s", rem.Round(time.Second))
 }
 

@@ -104,21 +104,21 @@ func TestSweepProgressInBatchLog(t *testing.T) {
 		"sweep points: finished after 22s\n", log.String())
 }
 
-// Set-up between making the bar and the first finished unit (fits before
-// a bootstrap) does not inflate the eta: 3 minutes of fits, then ten
-// replicates in 10 s, leaves 49 replicates ≈ 49 s, not the 14 minutes the
-// time since the bar was made would give.
-func TestProgressEtaFromFirstReport(t *testing.T) {
+// Set-up between making the bar and the work (fits before a bootstrap,
+// which reports Update(0) when it begins) does not inflate the eta: 3
+// minutes of fits, then ten replicates in 10 s, leaves 50 replicates ≈
+// 50 s, not the 16 minutes the time since the bar was made would give.
+func TestProgressEtaFromWhenWorkBegan(t *testing.T) {
 	clk := &fakeClock{t: time.Unix(0, 0)}
 	var log bytes.Buffer
 	p := newProgressTo(&log, "bootstrap", 60, false, clk.now)
 	clk.advance(3 * time.Minute)
-	p.Update(1)
-	for i := 2; i <= 11; i++ {
+	p.Update(0)
+	for i := 1; i <= 11; i++ {
 		clk.advance(time.Second)
 		p.Update(int64(i))
 	}
 	lines := strings.Split(strings.TrimSpace(log.String()), "\n")
-	assert.Equal(t, "bootstrap: 1 of 60 (2 %) after 3m0s", lines[0], "no rate yet, no eta")
-	assert.Equal(t, "bootstrap: 11 of 60 (18 %) after 3m10s, eta 49s", lines[len(lines)-1])
+	assert.Equal(t, "bootstrap: 0 of 60 (0 %) after 3m0s", lines[0])
+	assert.Equal(t, "bootstrap: 10 of 60 (17 %) after 3m10s, eta 50s", lines[len(lines)-1])
 }
