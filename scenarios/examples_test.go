@@ -2,6 +2,7 @@ package scenarios
 
 import (
 	"io/fs"
+	"maps"
 	"os"
 	"path/filepath"
 	"reflect"
@@ -97,7 +98,15 @@ func TestFitExample(t *testing.T) {
 	burst, err := LoadExample("burst")
 	require.NoError(t, err)
 	assert.Equal(t, []string{"base.toml", "burst.toml", "fit.toml"}, fit.Files)
-	assert.Equal(t, burst.Scenario.History, fit.Scenario.History, "the model is burst.toml's")
+	// The model is burst.toml's with one broad, old part more for the fit
+	// to shape.
+	fitParts := maps.Clone(fit.Scenario.History.Parts)
+	require.Contains(t, fitParts, "old")
+	assert.Equal(t, "burst", fitParts["old"].Kind)
+	assert.GreaterOrEqual(t, fitParts["old"].Values["age_gyr"], 2.0)
+	delete(fitParts, "old")
+	assert.Equal(t, burst.Scenario.History.Parts, fitParts, "the model is burst.toml's")
+	assert.Equal(t, burst.Scenario.History.MaxAgeGyr, fit.Scenario.History.MaxAgeGyr)
 
 	d := fit.Scenario.Data
 	assert.Equal(t, "example:data/larkspur-rotation.csv", d.File, "the demo catalog, named so that a copy of fit.toml finds it anywhere")
