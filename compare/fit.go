@@ -287,7 +287,7 @@ func (o *objective) maximise(theta0, nu0 []float64) (theta, nu []float64, logL f
 		copy(g, o.lastG)
 		return o.lastF
 	}
-	x, f, conv := minimizeBFGS(fg, x0, 400)
+	x, f, conv := minimize(fg, x0, 400)
 	if math.IsInf(f, 1) || math.IsNaN(f) {
 		if o.err != nil {
 			return nil, nil, 0, false, o.err
