@@ -159,21 +159,7 @@ func runTestAlternatives(args []string, stdout, stderr io.Writer) error {
 	}
 	page.Tables = []report.Table{{Title: "Each explanation fitted", Rows: fits}, {Title: "Pairs", Rows: pairs}}
 	page.Data = reportData(comps[0].DataSummary())
-	page.Summary = text.String()
-	page.Figures = figures(outputs, captions, "alternatives_difference.png", "alternatives_period_histograms.png")
-	page.Outputs = otherOutputs(outputs, page.Figures)
-	if err := writeReport(out, "", page); err != nil {
-		return err
-	}
-	if _, err := publish(out); err != nil {
-		return err
-	}
-	if *cf.asJSON {
-		return printJSON(stdout, rep)
-	}
-	io.WriteString(stdout, text.String())
-	fmt.Fprintf(stdout, "wrote: %s\n", wordList(outputs))
-	return nil
+	return finishReport(out, page, text.String(), outputs, captions, outputs, *cf.asJSON, rep, stdout, "alternatives_difference.png", "alternatives_period_histograms.png")
 }
 
 // explanation is one scenario to compare: a file (or example) as the user

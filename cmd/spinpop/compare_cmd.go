@@ -140,19 +140,5 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 		}
 	}
 	page.Tables = []report.Table{{Title: "The comparison", Rows: rows}}
-	page.Summary = text.String()
-	page.Figures = figures(outputs, captions, "residuals.png", "period_histograms.png")
-	page.Outputs = otherOutputs(outputs, page.Figures)
-	if err := writeReport(out, "", page); err != nil {
-		return err
-	}
-	if _, err := publish(out); err != nil {
-		return err
-	}
-	if *cf.asJSON {
-		return printJSON(stdout, rep)
-	}
-	io.WriteString(stdout, text.String())
-	fmt.Fprintf(stdout, "wrote: %s\n", wordList(outputs))
-	return nil
+	return finishReport(out, page, text.String(), outputs, captions, outputs, *cf.asJSON, rep, stdout, "residuals.png", "period_histograms.png")
 }

@@ -76,21 +76,7 @@ func runHeights(args []string, stdout, stderr io.Writer) error {
 		rows = append(rows, row(x.Name, fmt.Sprintf("binomial ln L = %.1f", x.LogL), ""))
 	}
 	page.Tables = []report.Table{{Title: "Each hypothesis against the young fraction by |z|", Rows: rows}}
-	page.Summary = text.String()
-	page.Figures = figures(outputs, captions, "height_check.png")
-	page.Outputs = otherOutputs(outputs, page.Figures)
-	if err := writeReport(out, "", page); err != nil {
-		return err
-	}
-	if _, err := publish(out); err != nil {
-		return err
-	}
-	if *cf.asJSON {
-		return printJSON(stdout, rep)
-	}
-	io.WriteString(stdout, text.String())
-	fmt.Fprintf(stdout, "wrote: %s\n", wordList(outputs))
-	return nil
+	return finishReport(out, page, text.String(), outputs, captions, outputs, *cf.asJSON, rep, stdout, "height_check.png")
 }
 
 // heightsVerdict names the hypothesis the young fraction by height

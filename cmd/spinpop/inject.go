@@ -149,20 +149,7 @@ func injectCmd(ctx context.Context, args []string, stdout, stderr io.Writer) err
 		page.Verdict.Tone = report.Caution
 		page.Warnings = append(page.Warnings, fmt.Sprintf("Smooth histories raise a false alarm in %s of mocks at p < %g: the test is not calibrated for this catalog.", pct(rep.FalseAlarm.Rate), detectionP))
 	}
-	page.Summary = text.String()
-	page.Figures = figures(rep.Outputs, captions, "recovery_map.png", "age_bias.png")
-	page.Outputs = otherOutputs(rep.Outputs, page.Figures)
-	if err := writeReport(out, "", page); err != nil {
-		return err
-	}
-	if _, err := publish(out); err != nil {
-		return err
-	}
-	if *cf.asJSON {
-		return encodeJSON(stdout, rep)
-	}
-	io.WriteString(stdout, text.String())
-	return nil
+	return finishReport(out, page, text.String(), rep.Outputs, captions, nil, *cf.asJSON, rep, stdout, "recovery_map.png", "age_bias.png")
 }
 
 func hasDuplicates(x []float64) bool {

@@ -129,20 +129,7 @@ func posteriorCmd(ctx context.Context, args []string, stdout, stderr io.Writer) 
 		page.Verdict.Tone = report.Caution
 	}
 	page.Tables = []report.Table{{Title: fmt.Sprintf("%d walkers × %d steps, first %d dropped; mean acceptance %.2f", rep.Walkers, rep.Steps, rep.Burn, rep.AcceptanceMean), Rows: rows}}
-	page.Summary = text.String()
-	page.Figures = figures(rep.Outputs, captions, "corner.png", "sfh.png")
-	page.Outputs = otherOutputs(rep.Outputs, page.Figures)
-	if err := writeReport(out, "", page); err != nil {
-		return err
-	}
-	if _, err := publish(out); err != nil {
-		return err
-	}
-	if *cf.asJSON {
-		return encodeJSON(stdout, rep)
-	}
-	io.WriteString(stdout, text.String())
-	return nil
+	return finishReport(out, page, text.String(), rep.Outputs, captions, nil, *cf.asJSON, rep, stdout, "corner.png", "sfh.png")
 }
 
 // sfhPlots are two panels: the whole history, on a logarithmic rate axis

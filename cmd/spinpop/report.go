@@ -124,3 +124,28 @@ var captions = map[string]string{
 func row(name, value, note string) report.Row {
 	return report.Row{Name: name, Value: value, Note: note}
 }
+
+// finishReport ends a run that writes a report page: the page gets the
+// printed text and the figures (in the order given, the other outputs
+// listed after them), the set is published, and the text is printed —
+// with "wrote: …" when wrote is not nil — or, with asJSON, the JSON
+// report instead.
+func finishReport(out *outset.Set, page *report.Report, text string, outputs []string, captions map[string]string, wrote []string, asJSON bool, jsonRep any, stdout io.Writer, order ...string) error {
+	page.Summary = text
+	page.Figures = figures(outputs, captions, order...)
+	page.Outputs = otherOutputs(outputs, page.Figures)
+	if err := writeReport(out, "", page); err != nil {
+		return err
+	}
+	if _, err := publish(out); err != nil {
+		return err
+	}
+	if asJSON {
+		return encodeJSON(stdout, jsonRep)
+	}
+	io.WriteString(stdout, text)
+	if wrote != nil {
+		fmt.Fprintf(stdout, "wrote: %s\n", wordList(wrote))
+	}
+	return nil
+}
