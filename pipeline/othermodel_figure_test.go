@@ -23,14 +23,14 @@ func writeCheckFigure(path string, rs []checkResult) error {
 	left.Title.Text = "Burst catalogs: recovered age"
 	left.X.Label.Text = "true burst age (Gyr)"
 	left.Y.Label.Text = "recovered age, 95 % interval (Gyr)"
-	band, err := plotter.NewPolygon(plotter.XYs{{X: 0.3, Y: 0.2}, {X: 1.7, Y: 1.6}, {X: 1.7, Y: 1.8}, {X: 0.3, Y: 0.4}})
+	band, err := plotter.NewPolygon(plotter.XYs{{X: 0.3, Y: 0.2}, {X: 3, Y: 2.9}, {X: 3, Y: 3.1}, {X: 0.3, Y: 0.4}})
 	if err != nil {
 		return err
 	}
 	band.Color = color.RGBA{R: 210, G: 225, B: 240, A: 255}
 	band.LineStyle.Width = 0
 	left.Add(band)
-	diag, err := plotter.NewLine(plotter.XYs{{X: 0.3, Y: 0.3}, {X: 1.7, Y: 1.7}})
+	diag, err := plotter.NewLine(plotter.XYs{{X: 0.3, Y: 0.3}, {X: 3, Y: 3}})
 	if err != nil {
 		return err
 	}
@@ -72,7 +72,15 @@ func writeCheckFigure(path string, rs []checkResult) error {
 		return err
 	}
 	left.Legend.Top, left.Legend.Left = true, true
+	// Axes fitted to the catalogs: every recovered age and interval in
+	// the frame, however far off.
 	left.X.Min, left.X.Max, left.Y.Min, left.Y.Max = 0.3, 1.7, 0.2, 1.8
+	for _, r := range rs {
+		if r.ageGyr > 0 {
+			left.Y.Max = math.Max(left.Y.Max, math.Max(r.age, r.hi95)+0.1)
+			left.X.Max = math.Max(left.X.Max, r.ageGyr+0.2)
+		}
+	}
 
 	right := plot.New()
 	right.Title.Text = "Evidence against remaining misfit"
