@@ -52,7 +52,7 @@ func newTestWorld(t testing.TB, hist *sfh.History, edges []float64) *testWorld {
 		mixes[k], err = avr.BinMixture(edges[k], edges[k+1], 4)
 		require.NoError(t, err)
 	}
-	field := disk.Cone{LDeg: 58, BDeg: 21, RadiusDeg: 8, DistMinPc: 0, DistMaxPc: 600}
+	field := disk.Cone{LDeg: 197, BDeg: -34, RadiusDeg: 8, DistMinPc: 0, DistMaxPc: 600}
 	smp, err := disk.NewMixtureSampler(field, sun, disk.Sheet{SheetSigmaKms: 20, SurfaceDensityMsunPc2: 70}, disk.Radial{ScaleLengthKpc: 2.6}, mixes, disk.SamplerOptions{})
 	require.NoError(t, err)
 	nb := len(edges) - 1
@@ -68,7 +68,7 @@ func newTestWorld(t testing.TB, hist *sfh.History, edges []float64) *testWorld {
 	}
 	det := spots.Detection{
 		Noise:     spots.NoiseModel{FloorPpm: 60, RefMag: 12, PpmAtRefMag: 250},
-		BaselineD: 1400, CadenceD: 0.0204, ThresholdSNR: 10, Sharpness: 4, MinCycles: 3,
+		BaselineD: 1000, CadenceD: 0.03125, ThresholdSNR: 10, Sharpness: 4, MinCycles: 3,
 	}
 	amp := &spots.AmplitudeModel{RoSat: 0.15, AmpSatPpm: 10000, Slope: 1, ScatterDex: 0.3}
 	pop := &model.Population{
@@ -82,9 +82,9 @@ func newTestWorld(t testing.TB, hist *sfh.History, edges []float64) *testWorld {
 		Spots:     amp,
 		Evolved:   true,
 		Binaries:  model.Binaries{FractionScale: 1, MassRatioMin: 0.1, TidalLockMaxD: 7},
-		Survey: model.Survey{Band: model.BandV, BrightLimitMag: 9, FaintLimitMag: 16, Detect: det,
+		Survey: model.Survey{Band: model.BandV, BrightLimitMag: 10, FaintLimitMag: 16.5, Detect: det,
 			Recovery: spots.RecoveryOptions{RelScatter: 0.03, HalfProb: 0.02, DoubleProb: 0.01}},
-		Cuts: model.Cuts{BVMin: 0.45, BVMax: 1.6, MSBandBrightMag: 0.4, MSBandFaintMag: 0.4, PeriodMinD: 0.0408, PeriodMaxD: 466.67},
+		Cuts: model.Cuts{BVMin: 0.45, BVMax: 1.6, MSBandBrightMag: 0.4, MSBandFaintMag: 0.4, PeriodMinD: 0.0625, PeriodMaxD: 333.33},
 	}
 	require.NoError(t, pop.Prepare())
 	return &testWorld{pop: pop, sampler: smp, edges: edges, hist: hist, rel: rel, law: law}

@@ -535,7 +535,7 @@ var malformedCases = []malformedCase{
 	{
 		name: "derived default blamed on its source",
 		text: minimal + "[cuts]\nperiod_max_d = 0.01\n",
-		// period_min_d defaults to 2 × 0.0204 d, above the explicit maximum.
+		// period_min_d defaults to 2 × 0.03125 d, above the explicit maximum.
 		lineOf: "period_max_d",
 		want:   []string{"cuts.period_max_d = 0.01 must be greater than cuts.period_min_d = 0.0625 (empty period range)"},
 	},
