@@ -1,37 +1,17 @@
 package disk
 
 import (
-	"encoding/csv"
 	"math"
-	"os"
 	"strconv"
 	"testing"
 
 	"github.com/stretchr/testify/require"
+
+	"spinpop/internal/testref"
 )
 
-// angSepDeg is the great-circle distance between two (lon, lat) points.
-func angSepDeg(l1, b1, l2, b2 float64) float64 {
-	r := math.Pi / 180
-	// Haversine form, accurate for small angles.
-	h := math.Pow(math.Sin((b2-b1)*r/2), 2) + math.Cos(b1*r)*math.Cos(b2*r)*math.Pow(math.Sin((l2-l1)*r/2), 2)
-	return 2 * math.Asin(math.Sqrt(h)) / r
-}
-
-func readReference(t *testing.T, path string) [][]string {
-	t.Helper()
-	f, err := os.Open(path)
-	require.NoError(t, err)
-	defer f.Close()
-	cr := csv.NewReader(f)
-	cr.Comment = '#'
-	recs, err := cr.ReadAll()
-	require.NoError(t, err)
-	return recs[1:] // drop the column names
-}
-
 func TestICRSToGalacticAgainstAstropy(t *testing.T) {
-	recs := readReference(t, "../testdata/icrs_galactic_reference.csv")
+	recs := testref.ReadCSV(t, "../testdata/icrs_galactic_reference.csv")
 	require.Greater(t, len(recs), 100)
 	for _, r := range recs {
 		v := make([]float64, 4)
@@ -44,7 +24,7 @@ func TestICRSToGalacticAgainstAstropy(t *testing.T) {
 		// Source: astropy 5.2 SkyCoord(ra, dec, frame='icrs').galactic,
 		// testdata/icrs_galactic_reference.py. Same matrix, so agreement
 		// is to rounding: 1e-9 deg = 3.6 µas.
-		require.Less(t, angSepDeg(l, b, v[2], v[3]), 1e-9, "ra=%g dec=%g", v[0], v[1])
+		require.Less(t, testref.AngSepDeg(l, b, v[2], v[3]), 1e-9, "ra=%g dec=%g", v[0], v[1])
 		require.InDelta(t, v[3], b, 1e-9)
 		require.True(t, l >= 0 && l < 360, "l=%g", l)
 	}
@@ -64,7 +44,7 @@ func TestICRSToGalacticLandmarks(t *testing.T) {
 // The inverse rotation takes astropy's Galactic positions back to the ICRS
 // positions they came from.
 func TestGalacticToICRSAgainstAstropy(t *testing.T) {
-	recs := readReference(t, "../testdata/icrs_galactic_reference.csv")
+	recs := testref.ReadCSV(t, "../testdata/icrs_galactic_reference.csv")
 	for _, r := range recs {
 		v := make([]float64, 4)
 		for i := range v {
@@ -75,6 +55,6 @@ func TestGalacticToICRSAgainstAstropy(t *testing.T) {
 		// Source: astropy 5.2 SkyCoord(ra, dec, frame='icrs').galactic,
 		// testdata/icrs_galactic_reference.py, read in reverse.
 		ra, dec := GalacticToICRS(v[2], v[3])
-		require.Less(t, angSepDeg(ra, dec, v[0], v[1]), 1e-9, "l=%g b=%g", v[2], v[3])
+		require.Less(t, testref.AngSepDeg(ra, dec, v[0], v[1]), 1e-9, "l=%g b=%g", v[2], v[3])
 	}
 }

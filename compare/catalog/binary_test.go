@@ -18,6 +18,7 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"spinpop/fitstable"
+	"spinpop/internal/testref"
 	"spinpop/parquettable"
 )
 
@@ -26,7 +27,7 @@ var exampleMapping = Mapping{Period: "prot", Color: "color", AppMag: "app_mag", 
 // checkExample compares stars read from a copy of the example catalog with
 // the values astropy and numpy computed (testdata/catalog_example.py).
 func checkExample(t *testing.T, stars []Star) {
-	expected := readCSVRecords(t, "../../testdata/catalog_example_expected.csv")
+	expected := testref.ReadCSV(t, "../../testdata/catalog_example_expected.csv")
 	j := 0
 	for _, rec := range expected {
 		if rec[3] == "nan" {
@@ -43,7 +44,7 @@ func checkExample(t *testing.T, stars []Star) {
 		j++
 		// Source: astropy 5.2 SkyCoord(...).galactic and numpy in
 		// testdata/catalog_example.py.
-		assert.Less(t, angSepDeg(s.LDeg, s.BDeg, want[0], want[1]), 1e-9, "star %s", rec[0])
+		assert.Less(t, testref.AngSepDeg(s.LDeg, s.BDeg, want[0], want[1]), 1e-9, "star %s", rec[0])
 		assert.InDelta(t, want[2], s.DistPc, 1e-9*want[2])
 		assert.InDelta(t, want[3], s.AbsMag, 1e-10)
 		assert.InDelta(t, want[4], s.ZPc, 1e-7)

@@ -13,6 +13,8 @@ import (
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
+
+	"spinpop/internal/testref"
 )
 
 // collected is what a test read produced.
@@ -91,7 +93,7 @@ func TestReadDerivedFromParallaxAndPosition(t *testing.T) {
 }
 
 func TestReadECSVFromAstropy(t *testing.T) {
-	expected := readCSVRecords(t, "../../testdata/catalog_example_expected.csv")
+	expected := testref.ReadCSV(t, "../../testdata/catalog_example_expected.csv")
 	m := Mapping{Period: "prot", Color: "color", AppMag: "app_mag", Parallax: "plx", RA: "ra", Dec: "dec"}
 	for _, file := range []string{"catalog_example.ecsv", "catalog_example_comma.ecsv"} {
 		t.Run(file, func(t *testing.T) {
@@ -128,7 +130,7 @@ func TestReadECSVFromAstropy(t *testing.T) {
 				j++
 				// Source: astropy 5.2 SkyCoord(...).galactic and numpy in
 				// testdata/catalog_example.py.
-				assert.Less(t, angSepDeg(s.LDeg, s.BDeg, want[0], want[1]), 1e-9, "star %s", rec[0])
+				assert.Less(t, testref.AngSepDeg(s.LDeg, s.BDeg, want[0], want[1]), 1e-9, "star %s", rec[0])
 				assert.InDelta(t, want[2], s.DistPc, 1e-9*want[2])
 				assert.InDelta(t, want[3], s.AbsMag, 1e-10)
 				assert.InDelta(t, want[4], s.ZPc, 1e-7)
