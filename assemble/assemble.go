@@ -140,6 +140,10 @@ func observing(s *scenarios.Scenario, p *model.Population, law spin.Law) error {
 	if err := det.Validate(); err != nil {
 		return fmt.Errorf("survey: %w", err)
 	}
+	search := spots.SearchCompleteness{HalfPeriodD: s.Survey.SearchHalfD, TurnoverPower: s.Survey.SearchTauPower, Steepness: s.Survey.SearchSteepness}
+	if err := search.Validate(); err != nil {
+		return fmt.Errorf("survey: %w", err)
+	}
 	rec := spots.RecoveryOptions{RelScatter: s.Survey.PeriodScatterRel, HalfProb: s.Survey.HalfAliasProb, DoubleProb: s.Survey.DoubleAliasProb}
 	if err := rec.Validate(); err != nil {
 		return fmt.Errorf("survey: %w", err)
@@ -162,7 +166,7 @@ func observing(s *scenarios.Scenario, p *model.Population, law spin.Law) error {
 	p.Law, p.Turnover, p.Spots = law, turn, amp
 	p.Binaries.FractionScale = s.Stars.BinaryFractionScale
 	p.Binaries.TidalLockFraction = s.Stars.TidalLockFraction
-	p.Survey = model.Survey{Band: band, BrightLimitMag: s.Survey.BrightLimitMag, FaintLimitMag: s.Survey.FaintLimitMag, Detect: det, Recovery: rec, Color: color}
+	p.Survey = model.Survey{Band: band, BrightLimitMag: s.Survey.BrightLimitMag, FaintLimitMag: s.Survey.FaintLimitMag, Detect: det, Search: search, Recovery: rec, Color: color}
 	p.Cuts = Cuts(s)
 	return nil
 }

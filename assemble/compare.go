@@ -152,8 +152,11 @@ func BankMargin(s *scenarios.Scenario) model.BankMargin {
 }
 
 func LikeOptions(s *scenarios.Scenario) compare.LikeOptions {
-
-	return compare.LikeOptions{Normalisation: s.Compare.Normalisation, TemplateNoise: s.Compare.TemplateNoise}
+	// Within each color × height cell needs the heights compared: the
+	// 3-D comparison. The other normalisations compare the (color,
+	// period) plane; heights enter the height check only.
+	return compare.LikeOptions{Normalisation: s.Compare.Normalisation, TemplateNoise: s.Compare.TemplateNoise,
+		Use3D: s.Compare.Normalisation == compare.NormPerColorHeight}
 }
 
 // Hypotheses are the two star-formation-history families of the

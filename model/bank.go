@@ -237,6 +237,9 @@ func (b *Bank) Observe(ctx context.Context, obs *Population, g Grid, opts Observ
 	if err := obs.Survey.Recovery.Validate(); err != nil {
 		return nil, nil, err
 	}
+	if err := obs.Survey.Search.Validate(); err != nil {
+		return nil, nil, err
+	}
 	if err := b.covers(obs); err != nil {
 		return nil, nil, err
 	}

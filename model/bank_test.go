@@ -286,3 +286,31 @@ func TestScatteredLaw(t *testing.T) {
 	require.True(t, ok)
 	assert.Equal(t, p0, g, "gyrochrones are the median")
 }
+
+// Re-observing with a search completeness (periods lost beyond what the
+// signal-to-noise sees) gives what a run with that completeness gives, and
+// is not the expectation without it.
+func TestBankObserveSearchCompleteness(t *testing.T) {
+	p := testPopulation(t, 4)
+	g := bankGrid()
+	_, bank := randomTemplatesAndBank(t, p, g, 1_000_000, BankMargin{})
+	q := *p
+	q.Survey.Search = spots.SearchCompleteness{HalfPeriodD: 12, TurnoverPower: 1, Steepness: 6}
+	counts, _ := randomTemplatesAndBank(t, &q, g, 1_000_000, BankMargin{})
+	exp, vars, err := bank.Observe(context.Background(), &q, g, ObserveOptions{BaseFractionScale: 1})
+	require.NoError(t, err)
+	r, dof := chi2PerBin(counts, exp, vars)
+	t.Logf("χ²/dof = %.3f over %d bins", r, dof)
+	assert.Greater(t, dof, 150)
+	assert.Less(t, r, 1.2)
+	old, oldVar, err := bank.Observe(context.Background(), p, g, ObserveOptions{BaseFractionScale: 1})
+	require.NoError(t, err)
+	r2, _ := chi2PerBin(counts, old, oldVar)
+	assert.Greater(t, r2, 3.0)
+	var sOld, sNew float64
+	for i := range old {
+		sOld += old[i]
+		sNew += exp[i]
+	}
+	assert.Less(t, sNew, sOld, "a search that loses periods catalogs fewer stars")
+}

@@ -31,7 +31,8 @@ type Survey struct {
 	Band           Band // band of the magnitude limits and the photometric noise
 	BrightLimitMag float64
 	FaintLimitMag  float64
-	Detect         spots.Detection // noise model, cadence, baseline, threshold
+	Detect         spots.Detection          // noise model, cadence, baseline, threshold
+	Search         spots.SearchCompleteness // periods the search loses beyond Detect's signal-to-noise
 	Recovery       spots.RecoveryOptions
 	Color          ColorCalibration // how the catalog's B−V scale relates to the model's
 }
@@ -444,6 +445,15 @@ func (p *Population) rotate(s spin.Star, comp, noisePpm float64, lawR, spotR *ra
 		// No spot model: a period is found whenever the light curve can
 		// hold it (Nyquist at the short end, MinCycles at the long end).
 		rot.prob = 0
+	}
+	if p.Survey.Search.Enabled() && rot.prob > 0 {
+		tauRatio := math.NaN()
+		if p.Survey.Search.TurnoverPower != 0 {
+			if tau, ok := p.Turnover.Days(s); ok {
+				tauRatio = tau / p.Turnover.Solar()
+			}
+		}
+		rot.prob *= p.Survey.Search.Efficiency(per, tauRatio)
 	}
 	return rot
 }

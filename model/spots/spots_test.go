@@ -277,3 +277,25 @@ func TestRecoverStreamUse(t *testing.T) {
 	b.NormFloat64()
 	assert.Equal(t, b.Uint64(), a.Uint64())
 }
+
+// The search completeness is the logistic its comment states: one half at
+// P½, 1/(1 + 2^k) at twice it, P½ scaled by (τ_c/τ_c☉)^power, and no loss
+// when disabled. Worked by hand from the definition.
+func TestSearchCompleteness(t *testing.T) {
+	s := SearchCompleteness{HalfPeriodD: 20, TurnoverPower: 1, Steepness: 6}
+	require.NoError(t, s.Validate())
+	assert.InDelta(t, 0.5, s.Efficiency(20, 1), 1e-15)
+	assert.InDelta(t, 1/(1+64.0), s.Efficiency(40, 1), 1e-15)
+	assert.InDelta(t, 0.5, s.Efficiency(40, 2), 1e-15, "a star with twice the Sun's turnover time has P½ twice as long")
+	assert.InDelta(t, 64/(1+64.0), s.Efficiency(10, 1), 1e-15)
+	half := SearchCompleteness{HalfPeriodD: 20, TurnoverPower: 0.5, Steepness: 6}
+	assert.InDelta(t, 0.5, half.Efficiency(20*math.Sqrt(4), 4), 1e-15)
+	fixed := SearchCompleteness{HalfPeriodD: 20, TurnoverPower: 0, Steepness: 6}
+	assert.InDelta(t, 0.5, fixed.Efficiency(20, math.NaN()), 1e-15, "a fixed-period loss needs no turnover time")
+	assert.Equal(t, 0.0, s.Efficiency(20, math.NaN()), "no turnover time, no Rossby-scaled loss")
+	assert.Equal(t, 1.0, SearchCompleteness{}.Efficiency(500, 1), "disabled: no loss")
+	assert.NoError(t, SearchCompleteness{}.Validate())
+	for _, bad := range []SearchCompleteness{{HalfPeriodD: -1, Steepness: 6}, {HalfPeriodD: 20, TurnoverPower: 4, Steepness: 6}, {HalfPeriodD: 20, TurnoverPower: 1}} {
+		assert.Error(t, bad.Validate(), "%+v", bad)
+	}
+}
