@@ -37,6 +37,11 @@ type TestOptions struct {
 	// Stage, if not nil, is told what the test is doing before the
 	// bootstrap (the fits with nuisance parameters take a while).
 	Stage func(msg string)
+	// AgeCalibration, if not nil, gives the 1σ uncertainty of ln(age)
+	// that the spin-down law's own calibration carries into a burst age
+	// (ok false: none known). The age interval combines it with the
+	// profile's (see BurstResult.AgeInterval).
+	AgeCalibration func(ageGyr float64) (sigmaLn float64, ok bool)
 }
 
 // BurstResult is the outcome of BurstTest.
@@ -79,10 +84,20 @@ type BurstResult struct {
 	HasEvidence    bool
 	EvidenceNote   string
 
-	// AgeParam names the burst's age parameter ("" if not free); AgeInterval
-	// is its profile-likelihood interval under the burst model.
-	AgeParam    string
-	AgeInterval Interval
+	// AgeParam names the burst's age parameter ("" if not free).
+	// AgeIntervalProfile is its profile-likelihood interval under the
+	// burst model (scaled by the dispersion when the model leaves misfit);
+	// AgeCalibrationSigma the 1σ uncertainty of ln(age) from the law's
+	// calibration (0 when none is known); AgeInterval the two combined,
+	// each side's distance from the best age in ln(age) added in quadrature
+	// with 1σ (68 %) or 1.96σ (95 %) of the calibration. A field catalog
+	// cannot calibrate the law that dates it, so the calibration enters
+	// even where the law's coefficients were fitted as nuisance
+	// parameters (conservative: the profile already holds part of it).
+	AgeParam            string
+	AgeIntervalProfile  Interval
+	AgeCalibrationSigma float64
+	AgeInterval         Interval
 
 	// Adequacy of each fitted model (see Adequacy), calibrated by the same
 	// replicates.
@@ -235,7 +250,7 @@ func BurstTest(ctx context.Context, like *Likelihood, smooth, burst HistoryModel
 		if err != nil {
 			return nil, err
 		}
-		res.AgeInterval = iv
+		res.setAgeInterval(iv, opts.AgeCalibration)
 	}
 	res.Strength, res.StrengthReason, res.Calibration, res.Verdict = verdict(res)
 	return res, nil
@@ -465,4 +480,17 @@ func bootstrapP(lr float64, reps []float64, seed uint64) (p, pRand float64) {
 	b := float64(len(reps))
 	u := replicateStream(seed, -1).Float64()
 	return (1 + float64(ge)) / (1 + b), (float64(gt) + u*(1+float64(eq))) / (1 + b)
+}
+
+// setAgeInterval records the burst age's profile interval and, where cal
+// knows the law's calibration at the best age, the two combined.
+func (r *BurstResult) setAgeInterval(iv Interval, cal func(float64) (float64, bool)) {
+	r.AgeIntervalProfile, r.AgeInterval, r.AgeCalibrationSigma = iv, iv, 0
+	if cal == nil || !(iv.Best > 0) {
+		return
+	}
+	if s, ok := cal(iv.Best); ok && s > 0 {
+		r.AgeCalibrationSigma = s
+		r.AgeInterval = WithCalibration(iv, s)
+	}
 }

@@ -191,3 +191,25 @@ func TestBootstrapWithNuisanceUniformUnderNull(t *testing.T) {
 	}
 	assert.InDelta(t, 0.08, mean, 0.005, "the nuisance parameter is recovered on average")
 }
+
+// The burst age's interval: the profile's alone without a law
+// calibration, the two combined with one, and a verdict that says so.
+func TestAgeIntervalWithCalibration(t *testing.T) {
+	iv := Interval{Best: 0.8, Lo68: 0.79, Hi68: 0.81, Lo95: 0.78, Hi95: 0.82}
+	var r BurstResult
+	r.setAgeInterval(iv, nil)
+	assert.Equal(t, iv, r.AgeInterval)
+	assert.Equal(t, 0.0, r.AgeCalibrationSigma)
+	r.setAgeInterval(iv, func(float64) (float64, bool) { return 0, false })
+	assert.Equal(t, iv, r.AgeInterval, "a law without a calibration")
+	r.setAgeInterval(iv, func(age float64) (float64, bool) { assert.Equal(t, 0.8, age); return 0.12, true })
+	assert.Equal(t, iv, r.AgeIntervalProfile)
+	assert.Equal(t, WithCalibration(iv, 0.12), r.AgeInterval)
+	assert.Equal(t, 0.12, r.AgeCalibrationSigma)
+
+	r.AgeParam = "burst.age_gyr"
+	r.Replicates, r.PValue, r.LR, r.DeltaLogL = 100, 0.001, 40, 20
+	_, _, _, text := verdict(&r)
+	assert.Contains(t, text, "the spin-down law's calibration, ±12 % in age, included", text)
+	assert.Contains(t, text, formatAge(r.AgeInterval), "the verdict quotes the combined interval")
+}

@@ -556,3 +556,31 @@ func intervalFrom(pts []ProfilePoint, maxL, best, scale float64) Interval {
 	iv.HiOpen = !ok
 	return iv
 }
+
+// WithCalibration widens an interval of a positive quantity (an age) by a
+// calibration uncertainty sigmaLn of its logarithm: each bound's distance
+// from the best value in ln is added in quadrature with sigmaLn (68 %
+// bounds) or 1.959964·sigmaLn (95 % bounds). The best value and the open
+// flags stay.
+func WithCalibration(iv Interval, sigmaLn float64) Interval {
+	if !(iv.Best > 0) || !(sigmaLn > 0) {
+		return iv
+	}
+	lb := math.Log(iv.Best)
+	widen := func(bound, z float64, up bool) float64 {
+		d := 0.0
+		if bound > 0 {
+			d = math.Abs(math.Log(bound) - lb)
+		}
+		d = math.Hypot(d, z*sigmaLn)
+		if up {
+			return math.Exp(lb + d)
+		}
+		return math.Exp(lb - d)
+	}
+	const z95 = 1.959963984540054 // Φ⁻¹(0.975)
+	out := iv
+	out.Lo68, out.Hi68 = widen(iv.Lo68, 1, false), widen(iv.Hi68, 1, true)
+	out.Lo95, out.Hi95 = widen(iv.Lo95, z95, false), widen(iv.Hi95, z95, true)
+	return out
+}

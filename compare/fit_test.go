@@ -160,3 +160,19 @@ func TestProfileAutoOnStaircase(t *testing.T) {
 	assert.Greater(t, iv.Hi95-iv.Lo95, 0.5, "the plateau of the bin [2, 3] Gyr")
 	assert.Less(t, iv.Hi95-iv.Lo95, 2.0, "but not the neighbouring bins")
 }
+
+// WithCalibration adds a calibration uncertainty of ln(age) to each side
+// of an interval in quadrature, worked by hand: best 1.0, profile bounds
+// e^{±0.03} (68 %) and e^{±0.06} (95 %), σ = 0.1 → e^{±√(0.03²+0.1²)} =
+// e^{±0.104403} and e^{±√(0.06²+0.196²)} = e^{±0.204974}.
+func TestWithCalibration(t *testing.T) {
+	iv := Interval{Best: 1, Lo68: math.Exp(-0.03), Hi68: math.Exp(0.03), Lo95: math.Exp(-0.06), Hi95: math.Exp(0.06), HiOpen: true}
+	w := WithCalibration(iv, 0.1)
+	assert.InDelta(t, math.Exp(-0.104403), w.Lo68, 1e-6)
+	assert.InDelta(t, math.Exp(0.104403), w.Hi68, 1e-6)
+	assert.InDelta(t, math.Exp(-0.204974), w.Lo95, 1e-6)
+	assert.InDelta(t, math.Exp(0.204974), w.Hi95, 1e-6)
+	assert.Equal(t, 1.0, w.Best)
+	assert.True(t, w.HiOpen)
+	assert.Equal(t, iv, WithCalibration(iv, 0), "no calibration, no change")
+}

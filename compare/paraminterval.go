@@ -2,7 +2,7 @@ package compare
 
 // ParamInterval is the profile-likelihood interval of any free parameter
 // of the burst model, made exactly as BurstTest makes the burst age's
-// (AgeInterval): ln L profiled around the fit best, nuisance parameters
+// (AgeIntervalProfile): ln L profiled around the fit best, nuisance parameters
 // refitted at every point on best's expansion, and the Δln L levels
 // multiplied by the dispersion when it exceeds 1 (the quasi-likelihood
 // interval). A sweep reports the burst's mass fraction with it, so that

@@ -47,6 +47,9 @@ func verdict(r *BurstResult) (strength, reason, calibration, text string) {
 	if r.AgeParam != "" {
 		if r.AgeInterval.Hi68 > r.AgeInterval.Lo68 {
 			at = " at " + formatAge(r.AgeInterval) + " Gyr"
+			if r.AgeCalibrationSigma > 0 {
+				at += fmt.Sprintf(" (the spin-down law's calibration, ±%.0f %% in age, included)", 100*r.AgeCalibrationSigma)
+			}
 		} else if i := indexOf(r.Burst.Names, r.AgeParam); i >= 0 {
 			at = fmt.Sprintf(" at %.3g Gyr", r.Burst.Theta[i])
 		}

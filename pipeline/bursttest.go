@@ -7,6 +7,7 @@ import (
 
 	"spinpop/compare"
 	"spinpop/internal/grid"
+	"spinpop/model/spin"
 )
 
 // BurstOutcome is the burst test with the burst-age profile and the height
@@ -29,7 +30,7 @@ type BurstOutcome struct {
 func (c *Comparison) BurstTest(ctx context.Context, replicates int, progress func(done, total int)) (*BurstOutcome, error) {
 	tr, err := compare.BurstTest(ctx, c.Likelihood, c.Smooth, c.Burst, compare.TestOptions{
 		Replicates: replicates, Seed: c.Scenario.Run.Seed, Workers: c.Workers, Progress: progress,
-		Nuisance: c.Nuisance, Stage: c.Stage,
+		Nuisance: c.Nuisance, Stage: c.Stage, AgeCalibration: c.ageCalibration(),
 	})
 	if err != nil {
 		if ctx.Err() != nil {
@@ -89,7 +90,9 @@ func (r *BurstOutcome) Report(c *Comparison, outputs []string) map[string]any {
 		"chernoff_p": Finite(t.ChernoffP), "chernoff_note": t.ChernoffNote,
 		"log_bayes_factor": Finite(t.LogBayesFactor), "evidence_params": t.EvidenceParams, "has_evidence": t.HasEvidence, "evidence_note": t.EvidenceNote,
 		"age_param": t.AgeParam, "age_interval": t.AgeInterval, "age_profile": prof,
-		"strength": t.Strength, "strength_reason": t.StrengthReason, "calibration": t.Calibration, "verdict": t.Verdict,
+		"age_interval_profile": t.AgeIntervalProfile, "age_calibration_sigma_ln": Finite(t.AgeCalibrationSigma),
+		"age_calibration_color_bv": Finite(c.MedianColor()),
+		"strength":                 t.Strength, "strength_reason": t.StrengthReason, "calibration": t.Calibration, "verdict": t.Verdict,
 		"adequacy_smooth": AdequacyReport(t.AdequacySmooth), "adequacy_burst": AdequacyReport(t.AdequacyBurst),
 		"dispersion": Finite(t.Dispersion), "p_value_quasi": Finite(t.PValueQuasi),
 		"nuisance_params": c.Nuisance.Names(),
@@ -157,4 +160,39 @@ func ProfileZoomRange(iv compare.Interval, lo, hi float64) (zlo, zhi float64, ok
 		return 0, 0, false
 	}
 	return math.Max(lo, iv.Lo95-w/3), math.Min(hi, iv.Hi95+w/3), true
+}
+
+// ageCalibration is the burst test's law calibration: the uncertainty of
+// ln(age) the scenario's spin-down law carries at the catalog's median
+// color (spin.AgeCalibration); nil-safe for laws without one.
+func (c *Comparison) ageCalibration() func(ageGyr float64) (float64, bool) {
+	law, bv := c.Built.Population.Law, c.MedianColor()
+	return func(ageGyr float64) (float64, bool) { return spin.AgeCalibration(law, bv, ageGyr) }
+}
+
+// MedianColor returns the median B−V of the compared catalog stars, read
+// from the binned counts (linear within the bin that holds it); NaN
+// without stars.
+func (c *Comparison) MedianColor() float64 {
+	sp := c.Likelihood.Space()
+	nC := len(sp.ColorEdges) - 1
+	n := c.Likelihood.Counts()
+	per := len(n) / nC // bins per color column, 2-D or 3-D
+	col := make([]float64, nC)
+	var tot float64
+	for i, v := range n {
+		col[i/per] += v
+		tot += v
+	}
+	if !(tot > 0) {
+		return math.NaN()
+	}
+	half, cum := tot/2, 0.0
+	for i, v := range col {
+		if cum+v >= half && v > 0 {
+			return sp.ColorEdges[i] + (half-cum)/v*(sp.ColorEdges[i+1]-sp.ColorEdges[i])
+		}
+		cum += v
+	}
+	return sp.ColorEdges[nC]
 }

@@ -175,7 +175,9 @@ func (w *pointWorker) burst(ctx context.Context, c *pipeline.Comparison, reps in
 	h.DeltaLnL, h.PValue, h.SignificanceSigma = sweep.F(t.DeltaLogL), sweep.F(t.PValue), sweep.F(t.Significance)
 	h.Verdict = t.Strength
 	if t.AgeParam != "" {
-		iv := t.AgeInterval
+		// The profile's interval: the sweep itself is the account of the
+		// systematics, so the law's calibration is not added per point.
+		iv := t.AgeIntervalProfile
 		h.BurstAgeGyr, h.BurstAgeLoGyr, h.BurstAgeHiGyr = sweep.F(iv.Best), sweep.F(iv.Lo68), sweep.F(iv.Hi68)
 	}
 	param, iv, err := c.BurstFraction(res)

@@ -168,8 +168,7 @@ func writeBurstReport(out *outset.Set, prefix string, c *pipeline.Comparison, r 
 	}
 	if t.AgeParam != "" {
 		iv := t.AgeInterval
-		rows = append(rows, row("burst age", fmt.Sprintf("%.3f Gyr", iv.Best),
-			fmt.Sprintf("68 %% %.3f–%.3f, 95 %% %.3f–%.3f Gyr (profile likelihood)", iv.Lo68, iv.Hi68, iv.Lo95, iv.Hi95)))
+		rows = append(rows, row("burst age", fmt.Sprintf("%.3f Gyr", iv.Best), ageIntervalText(t)))
 	}
 	for i, n := range t.Burst.Names {
 		rows = append(rows, row("history."+n, fmt.Sprintf("%.4g", t.Burst.Theta[i]), "best fit with the burst"))
@@ -236,8 +235,7 @@ func printBurstSummary(w io.Writer, r *pipeline.BurstOutcome) {
 		fmt.Fprintf(w, "ln Bayes factor (burst/smooth) = %.2f over %s (%s)\n", t.LogBayesFactor, wordList(t.EvidenceParams), t.EvidenceNote)
 	}
 	if t.AgeParam != "" {
-		iv := t.AgeInterval
-		fmt.Fprintf(w, "burst age %.3f Gyr, 68%% %.3f–%.3f, 95%% %.3f–%.3f Gyr (profile likelihood)\n", iv.Best, iv.Lo68, iv.Hi68, iv.Lo95, iv.Hi95)
+		fmt.Fprintf(w, "burst age %.3f Gyr, %s\n", t.AgeInterval.Best, ageIntervalText(t))
 	}
 	h := r.Heights
 	fmt.Fprintf(w, "height check (split at the %.2f Gyr gyrochrone):", h.SplitAgeGyr)
@@ -247,4 +245,15 @@ func printBurstSummary(w io.Writer, r *pipeline.BurstOutcome) {
 	fmt.Fprintln(w)
 	fmt.Fprintln(w)
 	fmt.Fprintln(w, t.Verdict)
+}
+
+// ageIntervalText gives the burst age's intervals and what they hold: the
+// profile likelihood, and the law's calibration where it is known.
+func ageIntervalText(t *compare.BurstResult) string {
+	iv, p := t.AgeInterval, t.AgeIntervalProfile
+	if !(t.AgeCalibrationSigma > 0) {
+		return fmt.Sprintf("68%% %.3f–%.3f, 95%% %.3f–%.3f Gyr (profile likelihood)", iv.Lo68, iv.Hi68, iv.Lo95, iv.Hi95)
+	}
+	return fmt.Sprintf("68%% %.3f–%.3f, 95%% %.3f–%.3f Gyr (profile likelihood %.3f–%.3f at 95%%, with the spin-down law's calibration, ±%.0f%% in age at 1σ)",
+		iv.Lo68, iv.Hi68, iv.Lo95, iv.Hi95, p.Lo95, p.Hi95, 100*t.AgeCalibrationSigma)
 }
