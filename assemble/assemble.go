@@ -179,14 +179,9 @@ func (b *Built) ageInBin(k int, r *rand.Rand) float64 { return b.binSamplers[k].
 // the history, and templates built from them serve any history).
 func (b *Built) sampler() (*disk.Sampler, error) {
 	s := b.Scenario
-	avr := disk.AVR{Sigma10Kms: s.Disk.Sigma10GyrKms, Tau1Gyr: s.Disk.HeatingTau1Gyr, Beta: s.Disk.HeatingBeta}
-	mixes := make([]disk.Mixture, len(b.AgeEdgesGyr)-1)
-	for k := range mixes {
-		m, err := avr.BinMixture(b.AgeEdgesGyr[k], b.AgeEdgesGyr[k+1], 4)
-		if err != nil {
-			return nil, fmt.Errorf("disk: %w", err)
-		}
-		mixes[k] = m
+	mixes, err := binMixtures(s, b.AgeEdgesGyr)
+	if err != nil {
+		return nil, err
 	}
 	field, err := Field(s)
 	if err != nil {
@@ -316,4 +311,57 @@ func plainLaw(s *scenarios.Scenario, rel *model.Relations) (spin.Law, error) {
 		return nil, fmt.Errorf("spin.law = %q: %w", s.Spin.Law, err)
 	}
 	return l, nil
+}
+
+// binMixtures returns each age bin's vertical mixture: the tracer profiles
+// over the ages inside the bin, formed at a constant rate within it (four
+// sub-ages per bin).
+func binMixtures(s *scenarios.Scenario, ageEdgesGyr []float64) ([]disk.Mixture, error) {
+	avr := disk.AVR{Sigma10Kms: s.Disk.Sigma10GyrKms, Tau1Gyr: s.Disk.HeatingTau1Gyr, Beta: s.Disk.HeatingBeta}
+	mixes := make([]disk.Mixture, len(ageEdgesGyr)-1)
+	for k := range mixes {
+		m, err := avr.BinMixture(ageEdgesGyr[k], ageEdgesGyr[k+1], 4)
+		if err != nil {
+			return nil, fmt.Errorf("disk: %w", err)
+		}
+		mixes[k] = m
+	}
+	return mixes, nil
+}
+
+// HeatingWeight returns the importance weight that turns the stars of a
+// run of scenario run into stars of a disk heated as in scenario other:
+// for a star of age bin k at height |z|, the ratio of other's vertical
+// density of that bin to run's (disk.Mixture.Density). Both profiles are
+// normalised per unit mass formed, so templates re-weighted by it are
+// other's templates per unit mass, as a run of other would make them. nil
+// when the two disks' heating and potential are the same.
+func HeatingWeight(run, other *scenarios.Scenario, ageEdgesGyr []float64) (func(bin int, absZPc float64) float64, error) {
+	a, b := run.Disk, other.Disk
+	if a.Sigma10GyrKms == b.Sigma10GyrKms && a.HeatingTau1Gyr == b.HeatingTau1Gyr && a.HeatingBeta == b.HeatingBeta &&
+		a.SheetSigmaKms == b.SheetSigmaKms && a.SurfaceDensityMsunPc2 == b.SurfaceDensityMsunPc2 {
+		return nil, nil
+	}
+	from, err := binMixtures(run, ageEdgesGyr)
+	if err != nil {
+		return nil, err
+	}
+	to, err := binMixtures(other, ageEdgesGyr)
+	if err != nil {
+		return nil, err
+	}
+	sFrom := disk.Sheet{SheetSigmaKms: a.SheetSigmaKms, SurfaceDensityMsunPc2: a.SurfaceDensityMsunPc2}
+	sTo := disk.Sheet{SheetSigmaKms: b.SheetSigmaKms, SurfaceDensityMsunPc2: b.SurfaceDensityMsunPc2}
+	for _, s := range []disk.Sheet{sFrom, sTo} {
+		if err := s.Validate(); err != nil {
+			return nil, fmt.Errorf("disk: %w", err)
+		}
+	}
+	pFrom, pTo := make([]disk.MixtureDensity, len(from)), make([]disk.MixtureDensity, len(to))
+	for k := range from {
+		pFrom[k], pTo[k] = from[k].Prepare(sFrom), to[k].Prepare(sTo)
+	}
+	return func(k int, absZPc float64) float64 {
+		return pTo[k].At(absZPc) / pFrom[k].At(absZPc)
+	}, nil
 }

@@ -21,6 +21,11 @@ type BankObserver struct {
 	// Apply returns the observing population at values (one per nuisance
 	// parameter, in order).
 	Apply func(values []float64) (*model.Population, error)
+	// Reweight, when not nil, returns the importance weight of a stored
+	// star at values (model.ObserveOptions.Weight; nil: none), for nuisance
+	// parameters that change where stars are rather than how they are
+	// observed — the disk's heating.
+	Reweight func(values []float64) (func(bin int, absZPc float64) float64, error)
 	// BaseFractionScale is the binary fraction scale of the run that made
 	// the bank.
 	BaseFractionScale float64
@@ -42,8 +47,14 @@ func (o *BankObserver) Observe(ctx context.Context, values []float64) (*Template
 	if err != nil {
 		return nil, err
 	}
+	var weight func(int, float64) float64
+	if o.Reweight != nil {
+		if weight, err = o.Reweight(values); err != nil {
+			return nil, err
+		}
+	}
 	g := model.Grid{ColorEdges: o.Space.ColorEdges, LogPeriodEdges: o.Space.LogPeriodEdges, HeightEdgesPc: o.Space.HeightEdgesPc}
-	counts, vars, err := o.Bank.Observe(ctx, p, g, model.ObserveOptions{Workers: o.Workers, BaseFractionScale: o.BaseFractionScale})
+	counts, vars, err := o.Bank.Observe(ctx, p, g, model.ObserveOptions{Workers: o.Workers, BaseFractionScale: o.BaseFractionScale, Weight: weight})
 	if err != nil {
 		return nil, err
 	}

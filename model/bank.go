@@ -194,6 +194,12 @@ type ObserveOptions struct {
 	// move smoothly with the parameters (0: one step of the fine grid,
 	// log10 2/32 ≈ 0.0094 dex).
 	MinKernelDex float64
+	// Weight, when not nil, multiplies each stored star's weight by
+	// Weight(age bin, |z| in pc): the ratio of another disk's density to
+	// the run's at the star's place (an importance weight), so that a
+	// change of the disk's heating is re-observed without new stars. It
+	// must be ≥ 0 and finite, and the same for every worker.
+	Weight func(bin int, absZPc float64) float64
 }
 
 // Observe returns, for every age bin k and grid bin i, the expected number
@@ -322,6 +328,7 @@ type observer struct {
 	recut      bool // the bank holds stars beyond the cuts: apply them
 	sameNoise  bool // the survey noise is the bank's: read the stored noise
 	baseScale  float64
+	weight     func(bin int, absZPc float64) float64 // ObserveOptions.Weight
 	nC, nP, nZ int
 	// The fine grid: nF bins of fineStepDex from fineLo (log10 days).
 	nF     int
@@ -340,8 +347,8 @@ func newObserver(b *Bank, obs *Population, g Grid, opts ObserveOptions) *observe
 	ob := &observer{
 		bank: b, obs: obs, g: g, cuts: cuts, recut: b.Margin != BankMargin{},
 		sameNoise: obs.Survey.Detect.Noise == b.Noise && b.NoisePpm != nil,
-		baseScale: opts.BaseFractionScale,
-		nC:        len(g.ColorEdges) - 1, nP: len(g.LogPeriodEdges) - 1, nZ: len(g.HeightEdgesPc) - 1,
+		baseScale: opts.BaseFractionScale, weight: opts.Weight,
+		nC: len(g.ColorEdges) - 1, nP: len(g.LogPeriodEdges) - 1, nZ: len(g.HeightEdgesPc) - 1,
 	}
 	rec := obs.Survey.Recovery
 	delta := fineStepDex
@@ -417,6 +424,7 @@ func (ob *observer) bin(k int, fine, fineVar []float64, lawSrc, spotSrc *rand.PC
 	scale := p.Binaries.FractionScale
 	reweight := scale != ob.baseScale && ob.baseScale > 0
 	inv := 1 / fineStepDex
+	place := ob.weight
 	for s := b.Start[k]; s < b.Start[k+1]; s++ {
 		bv := p.Survey.Color.Apply(float64(b.ModelBV[s]))
 		if ob.recut && (!ob.cuts.InColorRange(bv) || !ob.cuts.OnMainSequence(p.Relations, bv, float64(b.ObsAbsMag[s]))) {
@@ -441,6 +449,11 @@ func (ob *observer) bin(k int, fine, fineVar []float64, lawSrc, spotSrc *rand.PC
 				weight = (1 - f1) / (1 - f0)
 			}
 			if !(weight > 0) {
+				continue
+			}
+		}
+		if place != nil {
+			if weight *= place(k, float64(b.AbsZPc[s])); !(weight > 0) {
 				continue
 			}
 		}

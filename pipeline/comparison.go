@@ -423,18 +423,41 @@ func (c *Comparison) Fit(ctx context.Context, m compare.HistoryModel, nuStart []
 func (c *Comparison) setNuisance(ctx context.Context, params []compare.NuisanceParam, key string) error {
 	scen := *c.Scenario
 	base := c.Built.Population
-	c.Nuisance = &compare.Nuisance{Params: params, Source: &compare.BankObserver{
+	at := func(values []float64) (*scenarios.Scenario, error) {
+		s2 := scen
+		for j, p := range params {
+			if !scenarios.SetAt(&s2, p.Name, values[j]) {
+				return nil, fmt.Errorf("nuisance parameter %s is not a number key of the scenario", p.Name)
+			}
+		}
+		return &s2, nil
+	}
+	obs := &compare.BankObserver{
 		Bank: c.Templates.Bank, Space: c.Space, AgeEdgesGyr: c.Built.AgeEdgesGyr,
 		BaseFractionScale: scen.Stars.BinaryFractionScale, Workers: c.Workers, Mask: c.Mask,
 		Apply: func(values []float64) (*model.Population, error) {
-			s2 := scen
-			for j, p := range params {
-				if !scenarios.SetAt(&s2, p.Name, values[j]) {
-					return nil, fmt.Errorf("nuisance parameter %s is not a number key of the scenario", p.Name)
-				}
+			s2, err := at(values)
+			if err != nil {
+				return nil, err
 			}
-			return assemble.ObservingPopulation(&s2, base)
-		}}}
+			return assemble.ObservingPopulation(s2, base)
+		}}
+	for _, p := range params {
+		if scenarios.IsPlacementPath(p.Name) {
+			// The disk's heating moves stars in height: the stored stars
+			// are re-weighted by the ratio of vertical densities.
+			edges := c.Built.AgeEdgesGyr
+			obs.Reweight = func(values []float64) (func(int, float64) float64, error) {
+				s2, err := at(values)
+				if err != nil {
+					return nil, err
+				}
+				return assemble.HeatingWeight(&scen, s2, edges)
+			}
+			break
+		}
+	}
+	c.Nuisance = &compare.Nuisance{Params: params, Source: obs}
 	nominal, err := c.Nuisance.Templates(ctx, c.Nuisance.Nominal())
 	if err != nil {
 		return InputError{fmt.Errorf("%s: %w", c.Source, err)}

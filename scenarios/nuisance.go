@@ -18,7 +18,10 @@ import (
 // re-observes the stars it stored when it built the templates instead of
 // making new ones. Keys that change which stars exist (the IMF, the disk,
 // the dust, the survey's magnitude limits, the field) cannot be nuisance
-// parameters; a sweep varies them instead.
+// parameters; a sweep varies them instead. One exception: the disk's
+// heating (placementKeys) moves stars in height without changing which
+// stars form, so the stored stars are re-weighted by the ratio of vertical
+// densities at their heights (an importance weight) instead.
 
 // nuisanceKeys are the paths outside the spin-down laws' option tables a
 // nuisance parameter may name, with the values each can take (as validate
@@ -46,7 +49,20 @@ var nuisanceKeys = map[string]domain{
 	"survey.color_scale":           {lo: 0.7, hi: 1.3},
 	"stars.binary_fraction_scale":  {lo: 0, hi: 2},
 	"stars.tidal_lock_fraction":    {lo: 0, hi: 1},
+	// placementKeys: re-weighted, not re-observed.
+	"disk.sigma_10gyr_kms":  {lo: minSigmaKms, hi: maxSigmaKms},
+	"disk.heating_tau1_gyr": {lo: 0, hi: 14, loOpen: true},
+	"disk.heating_beta":     {lo: 0, hi: 1},
 }
+
+// placementKeys are the nuisance paths that move stars rather than change
+// how they are observed: the disk's heating.
+var placementKeys = map[string]bool{"disk.sigma_10gyr_kms": true, "disk.heating_tau1_gyr": true, "disk.heating_beta": true}
+
+// IsPlacementPath reports whether a nuisance path moves stars in height
+// (the disk's heating), so that templates at its values need the stored
+// stars re-weighted (assemble.HeatingWeight).
+func IsPlacementPath(path string) bool { return placementKeys[path] }
 
 // lawOptionKey returns the registry's entry for a path spin.<table>.<key>
 // naming a number key of one of the law's option tables.
