@@ -32,6 +32,11 @@ type DataSpec struct {
 	// Observed.Stars (the height check uses every star that passed the
 	// cuts) but not in Counts.
 	LeaveOut func(cell int) string
+	// LeaveOutBin is LeaveOut for a whole (color, period, height) bin
+	// (Space.Index), asked after LeaveOut keeps the star: for a comparison
+	// in three dimensions, whose bins the templates may miss one height
+	// at a time.
+	LeaveOutBin func(bin int) string
 }
 
 // ObservedStar is one star that passed every cut and lies in the space.
@@ -108,6 +113,13 @@ func ReadObserved(spec DataSpec, space Space, rejects io.Writer) (*Observed, err
 				obs.LeftOut[why]++
 				return &catalog.Exclude{Reason: "left out: " + why, Column: spec.Mapping.Color + ", " + spec.Mapping.Period,
 					Value: fmtValue(s.Color) + ", " + fmtValue(s.PeriodD)}
+			}
+		}
+		if spec.LeaveOutBin != nil {
+			if why := spec.LeaveOutBin(i); why != "" {
+				obs.LeftOut[why]++
+				return &catalog.Exclude{Reason: "left out: " + why, Column: spec.Mapping.Color + ", " + spec.Mapping.Period + ", |z|",
+					Value: fmtValue(s.Color) + ", " + fmtValue(s.PeriodD) + ", " + fmtValue(math.Abs(s.ZPc))}
 			}
 		}
 		obs.Counts[i]++
@@ -231,6 +243,24 @@ func UnreachedCells(tpl *Templates) []bool {
 			}
 		}
 		out[cell] = !reached
+	}
+	return out
+}
+
+// UnreachedBins reports the (color, period, height) bins (Space.Index)
+// that no template star of any age bin reached.
+func UnreachedBins(tpl *Templates) []bool {
+	nb := tpl.Space.NumBins()
+	out := make([]bool, nb)
+	for i := range out {
+		reached := false
+		for k := 0; k < tpl.NumAgeBins(); k++ {
+			if tpl.Counts[k*nb+i] > 0 {
+				reached = true
+				break
+			}
+		}
+		out[i] = !reached
 	}
 	return out
 }

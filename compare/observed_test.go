@@ -167,6 +167,25 @@ func TestReadObservedCutsRejectsAndHash(t *testing.T) {
 		assert.True(t, ok)
 	}
 
+	// A comparison in three dimensions leaves out single (color, period,
+	// height) bins too, after the (color, period) cells, and lists them
+	// with the height.
+	bin := sp.Index(1.0, 20, 120)
+	spec.LeaveOutBin = func(i int) string {
+		if i == bin {
+			return "bin unreached"
+		}
+		return ""
+	}
+	rej.Reset()
+	obs3, err := ReadObserved(spec, sp, &rej)
+	require.NoError(t, err)
+	assert.Equal(t, 1, obs3.N)
+	assert.Equal(t, 0.0, obs3.Counts[bin])
+	assert.Equal(t, map[string]int{"young": 1, "unreached": 1, "bin unreached": 1}, obs3.LeftOut)
+	assert.Contains(t, rej.String(), `left out: bin unreached,"b_v, period_d, |z|"`)
+	spec.LeaveOutBin = nil
+
 	spec.SHA256 = strings.Repeat("0", 64)
 	_, err = ReadObserved(spec, sp, nil)
 	require.Error(t, err)

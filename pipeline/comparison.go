@@ -230,6 +230,17 @@ func (c *Comparison) readData(spec compare.DataSpec, writeRejected func(write fu
 	unreached := compare.UnreachedCells(c.Templates)
 	maskedIn := make([]int, len(unreached))
 	droppedIn := make([]int, len(unreached))
+	if lo := assemble.LikeOptions(c.Scenario); lo.Use3D {
+		// Compared in three dimensions, a bin the templates miss at one
+		// height is left out like a (color, period) cell they miss at all.
+		un3 := compare.UnreachedBins(c.Templates)
+		spec.LeaveOutBin = func(bin int) string {
+			if un3[bin] {
+				return LeftOutUnreached
+			}
+			return ""
+		}
+	}
 	spec.LeaveOut = func(cell int) string {
 		switch {
 		case c.Mask != nil && c.Mask[cell]:
@@ -279,7 +290,7 @@ func (c *Comparison) readData(spec compare.DataSpec, writeRejected func(write fu
 // the reason).
 const (
 	LeftOutYoung     = "below_young_gyrochrone"              // compare.mask_below_age_gyr
-	LeftOutUnreached = "cell_no_template_reached"            // no template star in its (color, period) cell
+	LeftOutUnreached = "cell_no_template_reached"            // no template star in its (color, period) cell, or in its (color, period, height) bin when heights are compared
 	LeftOutOther     = "cell_another_explanation_leaves_out" // test-alternatives: masked or unreached under another explanation
 )
 
