@@ -107,23 +107,32 @@ func TestBankObserveMatchesGenerator(t *testing.T) {
 // stream), so each side's noise enters the χ².
 func TestBankObserveOtherLaw(t *testing.T) {
 	p := testPopulation(t, 4)
-	g := bankGrid()
-	_, bank := randomTemplatesAndBank(t, p, g, 1_000_000, BankMargin{})
 	q := *p
 	q.Law = spin.MamajekHillenbrand2008()
 	require.NoError(t, q.Prepare())
-	counts, _ := randomTemplatesAndBank(t, &q, g, 1_000_000, BankMargin{})
-	exp, vars, err := bank.Observe(context.Background(), &q, g, ObserveOptions{BaseFractionScale: 1})
+	bankFollowsRun(t, p, &q, 200)
+}
+
+// bankFollowsRun checks that the bank of a run of p, re-observed through
+// q, gives what a run of q gives (χ²/dof below 1.2 over more than minDof
+// bins, each side's noise in the variance), and that the bank observed
+// through p does not (χ²/dof above 3). It returns both expectations.
+func bankFollowsRun(t *testing.T, p, q *Population, minDof int) (exp, old []float64) {
+	t.Helper()
+	g := bankGrid()
+	_, bank := randomTemplatesAndBank(t, p, g, 1_000_000, BankMargin{})
+	counts, _ := randomTemplatesAndBank(t, q, g, 1_000_000, BankMargin{})
+	exp, vars, err := bank.Observe(context.Background(), q, g, ObserveOptions{BaseFractionScale: 1})
 	require.NoError(t, err)
 	r, dof := chi2PerBin(counts, exp, vars)
 	t.Logf("χ²/dof = %.3f over %d bins", r, dof)
-	assert.Greater(t, dof, 200)
+	assert.Greater(t, dof, minDof)
 	assert.Less(t, r, 1.2)
-	// And it is not the old law's expectation.
 	old, oldVar, err := bank.Observe(context.Background(), p, g, ObserveOptions{BaseFractionScale: 1})
 	require.NoError(t, err)
 	r2, _ := chi2PerBin(counts, old, oldVar)
-	assert.Greater(t, r2, 3.0)
+	assert.Greater(t, r2, 3.0, "the bank observed as run is not the other run's expectation")
+	return exp, old
 }
 
 // A changed binary fraction re-weights the stored binaries and single stars
@@ -292,21 +301,9 @@ func TestScatteredLaw(t *testing.T) {
 // is not the expectation without it.
 func TestBankObserveSearchCompleteness(t *testing.T) {
 	p := testPopulation(t, 4)
-	g := bankGrid()
-	_, bank := randomTemplatesAndBank(t, p, g, 1_000_000, BankMargin{})
 	q := *p
 	q.Survey.Search = spots.SearchCompleteness{HalfPeriodD: 12, TurnoverPower: 1, Steepness: 6}
-	counts, _ := randomTemplatesAndBank(t, &q, g, 1_000_000, BankMargin{})
-	exp, vars, err := bank.Observe(context.Background(), &q, g, ObserveOptions{BaseFractionScale: 1})
-	require.NoError(t, err)
-	r, dof := chi2PerBin(counts, exp, vars)
-	t.Logf("χ²/dof = %.3f over %d bins", r, dof)
-	assert.Greater(t, dof, 150)
-	assert.Less(t, r, 1.2)
-	old, oldVar, err := bank.Observe(context.Background(), p, g, ObserveOptions{BaseFractionScale: 1})
-	require.NoError(t, err)
-	r2, _ := chi2PerBin(counts, old, oldVar)
-	assert.Greater(t, r2, 3.0)
+	exp, old := bankFollowsRun(t, p, &q, 150)
 	var sOld, sNew float64
 	for i := range old {
 		sOld += old[i]
