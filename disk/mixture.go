@@ -40,23 +40,12 @@ func (m Mixture) validate(bin int) error {
 	return nil
 }
 
-// Density returns the mixture's vertical density in pc⁻¹ at height zPc in
-// the sheet s, normalised to unit integral over all z: the weighted mean
-// of its components' tracer densities (Sheet.TracerDensity). The ratio of
-// two mixtures' densities at a star's height is the importance weight that
-// turns stars placed by one into stars placed by the other.
-func (m Mixture) Density(s Sheet, zPc float64) float64 {
-	var num, den float64
-	for _, c := range m {
-		num += c.Weight * s.TracerDensity(zPc, c.SigmaKms)
-		den += c.Weight
-	}
-	return num / den
-}
-
-// MixtureDensity is a mixture's vertical density in one sheet with every
-// per-component constant worked out once: for the many evaluations an
-// importance weight per star needs (Density works them out per call).
+// MixtureDensity is a mixture's vertical density in one sheet, normalised
+// to unit integral over all z: the weighted mean of its components' tracer
+// densities (Sheet.TracerDensity), with every per-component constant
+// worked out once for the many evaluations an importance weight per star
+// needs. The ratio of two mixtures' densities at a star's height is the
+// weight that turns stars placed by one into stars placed by the other.
 type MixtureDensity struct {
 	invZ0 float64
 	exps  []float64 // n_j of each component
@@ -79,7 +68,7 @@ func (m Mixture) Prepare(s Sheet) MixtureDensity {
 	return d
 }
 
-// At returns the density in pc⁻¹ at height zPc (equal to Mixture.Density).
+// At returns the density in pc⁻¹ at height zPc.
 func (d MixtureDensity) At(zPc float64) float64 {
 	lc := logCosh(zPc * d.invZ0)
 	var v float64

@@ -85,25 +85,25 @@ func BenchmarkTracerDensity(b *testing.B) {
 }
 
 // A mixture's density integrates to one over all z (Simpson's rule on a
-// fine grid, common practice) and is the weighted mean of its components.
+// fine grid, common practice) and is the weighted mean of its components'
+// tracer densities.
 func TestMixtureDensity(t *testing.T) {
 	s := Sheet{SheetSigmaKms: 20, SurfaceDensityMsunPc2: 70}
 	m := Mixture{{SigmaKms: 8, Weight: 1}, {SigmaKms: 25, Weight: 3}}
+	d := m.Prepare(s)
 	const h, zMax = 0.5, 20000.0
 	n := int(2 * zMax / h)
-	sum := m.Density(s, -zMax) + m.Density(s, zMax)
+	sum := d.At(-zMax) + d.At(zMax)
 	for i := 1; i < n; i++ {
 		c := 2.0
 		if i%2 == 1 {
 			c = 4
 		}
-		sum += c * m.Density(s, -zMax+float64(i)*h)
+		sum += c * d.At(-zMax+float64(i)*h)
 	}
 	assert.InDelta(t, 1, sum*h/3, 1e-6)
-	z := 170.0
-	assert.InDelta(t, (s.TracerDensity(z, 8)+3*s.TracerDensity(z, 25))/4, m.Density(s, z), 1e-15)
-	p := m.Prepare(s)
 	for _, z := range []float64{0, 35, -170, 900, 5000} {
-		assert.InDelta(t, m.Density(s, z), p.At(z), 1e-12*m.Density(s, z), "prepared density at %g pc", z)
+		want := (s.TracerDensity(z, 8) + 3*s.TracerDensity(z, 25)) / 4
+		assert.InDelta(t, want, d.At(z), 1e-12*want, "density at %g pc", z)
 	}
 }
