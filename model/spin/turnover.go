@@ -97,10 +97,22 @@ func (t TurnoverTime) Rossby(periodD float64, s Star) (ro float64, ok bool) {
 
 // Solar returns τ_c of the Sun in this prescription (T_eff = 5772 K for
 // Cranmer & Saar, 1 M☉ for Wright et al.).
+// It is worked out once per prescription: per-star code (the search
+// completeness) reads it for every detected star.
 func (t TurnoverTime) Solar() float64 {
-	tau, _ := t.Days(Star{MassMsun: solarMassMsun, TeffK: solarTeffK})
-	return tau
+	if t.Valid() {
+		return solarTauD[t]
+	}
+	return math.NaN()
 }
+
+// solarTauD holds Solar for each prescription, indexed by TurnoverTime.
+var solarTauD = func() (out [Wright2018 + 1]float64) {
+	for t := CranmerSaar2011; t <= Wright2018; t++ {
+		out[t], _ = t.Days(Star{MassMsun: solarMassMsun, TeffK: solarTeffK})
+	}
+	return out
+}()
 
 // CranmerSaar2011Days evaluates the Cranmer & Saar (2011) fit at teffK
 // without range checks: τ_c = 314.24 exp[−T/1952.5 − (T/6250)^18] + 0.002 d.
