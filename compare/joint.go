@@ -60,6 +60,27 @@ func FitJoint(ctx context.Context, like *Likelihood, m HistoryModel, nu *Nuisanc
 		return FitResult{}, err
 	}
 	evals += best.Evaluations
+	// The starting grid: every combination of the parameters' Starts
+	// (the others at the centre), scored exactly; the search begins at
+	// the best. A given NuisanceStart (a previous answer) skips it.
+	if opts.NuisanceStart == nil {
+		for _, v := range nu.startGrid(centre) {
+			if err := ctx.Err(); err != nil {
+				return FitResult{}, err
+			}
+			r, err := profileAtValues(ctx, like, m, nu, v, FitOptions{Starts: 1, Init: [][]float64{best.Theta}, Seed: opts.Seed})
+			if err != nil {
+				return FitResult{}, err
+			}
+			evals += r.Evaluations
+			if opts.Stage != nil {
+				opts.Stage(fmt.Sprintf("starting grid: ln L = %.2f at %s", r.LogL, nu.describe(v)))
+			}
+			if r.LogL > best.LogL {
+				best, centre = r, v
+			}
+		}
+	}
 	var mo *morph
 	round := 0
 	for round < maxRounds {
@@ -225,6 +246,38 @@ func profileWith(like *Likelihood, m HistoryModel, nu *Nuisance, v []float64, t 
 	r.LogL += r.LogPrior
 	r.Templates = t
 	return r, nil
+}
+
+// maxStartGrid bounds the starting grid's size: each point costs a
+// re-observation of the stored stars and a history fit. (Scenarios apply
+// the same bound, scenarios.MaxStartGrid, with the key named.)
+const maxStartGrid = 64
+
+// startGrid returns the product of the parameters' Starts, the parameters
+// without any held at centre; nil when none has Starts. The grid's size is
+// checked by Validate.
+func (n *Nuisance) startGrid(centre []float64) [][]float64 {
+	grid := [][]float64{append([]float64(nil), centre...)}
+	any := false
+	for j, p := range n.Params {
+		if len(p.Starts) == 0 {
+			continue
+		}
+		any = true
+		var next [][]float64
+		for _, g := range grid {
+			for _, s := range p.Starts {
+				v := append([]float64(nil), g...)
+				v[j] = s
+				next = append(next, v)
+			}
+		}
+		grid = next
+	}
+	if !any {
+		return nil
+	}
+	return grid
 }
 
 func equalValues(a, b []float64) bool {

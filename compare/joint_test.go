@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"math"
+	"strings"
 	"sync"
 	"testing"
 
@@ -254,4 +255,63 @@ func BenchmarkBankObserve(b *testing.B) {
 	}
 	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(s.tpl.Bank.Len()), "ns/star")
 	b.ReportMetric(float64(s.tpl.Bank.Len()), "stars")
+}
+
+// The starting grid: every combination of the parameters' starting values
+// is scored exactly before the search, and the search's first expansion
+// is centred on the best of them — here the true coefficient, far from
+// the nominal one — rather than on the nominal values.
+func TestFitJointStartsAtBestOfGrid(t *testing.T) {
+	s := newJointSetup(t)
+	nu := s.nuisance()
+	nu.Params[0].Starts = []float64{0.65, 0.84, 0.93}
+	nu.Params[1].Starts = []float64{-0.03, 0.015}
+	m := s.burstModel(t)
+	trueNu := []float64{0.84, 0.015}
+	truth, err := s.obs.Observe(context.Background(), trueNu)
+	require.NoError(t, err)
+	w, err := m.Weights([]float64{0.6, 0.2})
+	require.NoError(t, err)
+	data := Asimov(truth, w, 30000)
+	nominal, err := s.obs.Observe(context.Background(), nu.Nominal())
+	require.NoError(t, err)
+	like, err := NewLikelihood(nominal, data, LikeOptions{TemplateNoise: NoiseIgnore})
+	require.NoError(t, err)
+	var grid, expansions []string
+	opts := FitOptions{Starts: 3, Stage: func(msg string) {
+		switch {
+		case strings.HasPrefix(msg, "starting grid"):
+			grid = append(grid, msg)
+		case strings.HasPrefix(msg, "expansion"):
+			expansions = append(expansions, msg)
+		}
+	}}
+	joint, err := FitJoint(context.Background(), like, m, nu, opts)
+	require.NoError(t, err)
+	assert.Len(t, grid, 6, "3 × 2 starting values")
+	require.NotEmpty(t, expansions)
+	assert.Contains(t, expansions[0], "spin.a = 0.84, survey.color_offset_mag = 0.015", "the search starts at the best grid point")
+	assert.InDelta(t, trueNu[0], joint.Nuisance[0], 0.01, "coefficient a")
+	assert.InDelta(t, 0.6, joint.Theta[0], 0.02, "burst age")
+
+	// A given starting point (a previous answer) skips the grid.
+	grid, expansions = nil, nil
+	opts.NuisanceStart = joint.Nuisance
+	_, err = FitJoint(context.Background(), like, m, nu, opts)
+	require.NoError(t, err)
+	assert.Empty(t, grid)
+}
+
+// Starting values outside the bounds, or a grid too large to score, are
+// refused before any template is made.
+func TestNuisanceStartsValidated(t *testing.T) {
+	nu := &Nuisance{Source: shiftObserver{}, Params: []NuisanceParam{
+		{Name: "x", Nominal: 1, Min: 0, Max: 2, Starts: []float64{0.5, 2.5}},
+	}}
+	assert.ErrorContains(t, nu.Validate(), "starting value 2.5 lies outside its bounds [0, 2]")
+	nu.Params[0].Starts = []float64{0, 0.25, 0.5, 0.75, 1, 1.25, 1.5, 1.75, 2}
+	nu.Params = append(nu.Params, NuisanceParam{Name: "y", Nominal: 1, Min: 0, Max: 2, Starts: nu.Params[0].Starts})
+	assert.ErrorContains(t, nu.Validate(), "more than 64 points")
+	nu.Params[1].Starts = nu.Params[1].Starts[:7]
+	assert.NoError(t, nu.Validate(), "9 × 7 = 63 points")
 }

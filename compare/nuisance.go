@@ -29,6 +29,11 @@ type NuisanceParam struct {
 	// for the quadratic interpolation (see Nuisance); 0 means Sigma, or an
 	// eighth of the range when the prior is flat.
 	Step float64
+	// Starts are values the joint fit tries before its search begins (see
+	// FitJoint): for a parameter whose effect is far from quadratic over
+	// its range, so that a search from one value can stop on a local
+	// maximum. Empty: the starting value alone.
+	Starts []float64
 }
 
 // logPrior returns the constraint term at v (0 at the nominal value).
@@ -97,6 +102,7 @@ func (n *Nuisance) Validate() error {
 		return errors.New("compare: nuisance parameters need a source of templates")
 	}
 	seen := map[string]bool{}
+	size := 1
 	for _, p := range n.Params {
 		switch {
 		case seen[p.Name]:
@@ -108,7 +114,18 @@ func (n *Nuisance) Validate() error {
 		case p.Sigma < 0 || p.Step < 0 || math.IsNaN(p.Sigma) || math.IsNaN(p.Step):
 			return fmt.Errorf("compare: nuisance parameter %q: prior width %g and step %g must be ≥ 0", p.Name, p.Sigma, p.Step)
 		}
+		for _, v := range p.Starts {
+			if !(v >= p.Min && v <= p.Max) {
+				return fmt.Errorf("compare: nuisance parameter %q: starting value %g lies outside its bounds [%g, %g]", p.Name, v, p.Min, p.Max)
+			}
+		}
+		if len(p.Starts) > 0 && size <= maxStartGrid {
+			size *= len(p.Starts)
+		}
 		seen[p.Name] = true
+	}
+	if size > maxStartGrid {
+		return fmt.Errorf("compare: the nuisance parameters' starting values make a grid of more than %d points (each is a re-observation and a fit)", maxStartGrid)
 	}
 	return nil
 }

@@ -118,7 +118,15 @@ func AlternativeOverrides(s *Scenario, i int) ([]Override, error) {
 			if len(pieces) == 3 && pieces[0] == "history" && slices.Contains(a.Drop, pieces[1]) {
 				continue
 			}
-			free = append(free, map[string]any{"path": f.Path, "min": f.Min, "max": f.Max, "prior": f.Prior, "sigma": f.Sigma})
+			item := map[string]any{"path": f.Path, "min": f.Min, "max": f.Max, "prior": f.Prior, "sigma": f.Sigma}
+			if len(f.Starts) > 0 {
+				starts := make([]any, len(f.Starts))
+				for i, x := range f.Starts {
+					starts[i] = x
+				}
+				item["starts"] = starts
+			}
+			free = append(free, item)
 		}
 		if err := add("compare.free", free); err != nil {
 			return nil, err

@@ -41,9 +41,19 @@ func TestAlternativesResolveAsScenarios(t *testing.T) {
 		hand = append(hand, o)
 	}
 	free := make([]any, 0, len(s.Compare.Free))
+	starts := 0
 	for _, f := range s.Compare.Free {
-		free = append(free, map[string]any{"path": f.Path, "min": f.Min, "max": f.Max, "prior": f.Prior, "sigma": f.Sigma})
+		item := map[string]any{"path": f.Path, "min": f.Min, "max": f.Max, "prior": f.Prior, "sigma": f.Sigma}
+		if len(f.Starts) > 0 {
+			item["starts"] = []any{f.Starts[0]}
+			for _, x := range f.Starts[1:] {
+				item["starts"] = append(item["starts"].([]any), x)
+			}
+			starts++
+		}
+		free = append(free, item)
 	}
+	assert.Equal(t, 2, starts, "the search completeness's starting values go with the alternative")
 	o, err := NewOverride("free", "compare.free", free)
 	require.NoError(t, err)
 	byHand, err := Resolve("example:fit", append(hand, o)...)

@@ -105,6 +105,12 @@ func toTree(rv reflect.Value) map[string]any {
 		if len(rv.Interface().(Compare).Alternatives) == 0 {
 			delete(out, "alternatives")
 		}
+	case reflect.TypeFor[FreeParam]():
+		// Likewise a free parameter without starting values: they change
+		// where a fit starts, and so the run only when given.
+		if len(rv.Interface().(FreeParam).Starts) == 0 {
+			delete(out, "starts")
+		}
 	case reflect.TypeFor[Field]():
 		f := rv.Interface().(Field)
 		if keys, ok := fieldKeys[f.Kind]; ok {

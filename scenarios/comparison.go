@@ -197,13 +197,24 @@ func (v *decoder) heightEdges(p string, edges []float64) {
 	}
 }
 
+// MaxStartGrid bounds the joint fit's starting grid: the product of the
+// free parameters' numbers of starting values.
+const MaxStartGrid = 64
+
 // validateFree checks the free parameters: each names a scalar key of an
 // existing history part, once, with a non-empty range inside the values
 // that key can take and a prior that suits the range.
 func (v *decoder) validateFree(s *Scenario) {
 	valid := freePaths(s)
 	seen := make(map[string]int)
+	grid := 1
 	for i, f := range s.Compare.Free {
+		if n := len(f.Starts); n > 0 && grid <= MaxStartGrid {
+			grid *= n
+			if grid > MaxStartGrid {
+				v.errAt(joinKey(elemKey("compare.free", i), "starts"), "the starting values of compare.free up to %s make a grid of more than %d points, each a re-observation of the stored stars and a fit; give fewer values", elemKey("compare.free", i), MaxStartGrid)
+			}
+		}
 		p := elemKey("compare.free", i)
 		key := func(k string) string { return joinKey(p, k) }
 		v.required(p, []string{"max", "min", "path"}, v.present, "each [[compare.free]] parameter")

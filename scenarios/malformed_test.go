@@ -425,6 +425,25 @@ var malformedCases = []malformedCase{
 		want:   []string{"compare.free[0].max = 1.5 must be ≤ 1: history.b.mass_fraction takes values in [0, 1]"},
 	},
 	{
+		name:   "starting values on a history parameter",
+		text:   minimal + burstPart + "[[compare.free]]\npath = \"history.b.age_gyr\"\nmin = 0.1\nmax = 1.0\nstarts = [0.3, 0.6]\n",
+		lineOf: "starts =",
+		want:   []string{"compare.free[0].starts: starting values apply to nuisance parameters"},
+	},
+	{
+		name:   "starting value outside the range",
+		text:   minimal + "[[compare.free]]\npath = \"spin.period_scatter_dex\"\nmin = 0.0\nmax = 0.3\nstarts = [0.1, 0.4]\n",
+		lineOf: "starts =",
+		want:   []string{"compare.free[0].starts[1] = 0.4 lies outside [0, 0.3]; every starting value must be one the parameter can take"},
+	},
+	{
+		name: "starting grid too large",
+		text: minimal + "[[compare.free]]\npath = \"spin.period_scatter_dex\"\nmin = 0.0\nmax = 0.3\nstarts = [0.0, 0.05, 0.1, 0.15, 0.2, 0.25, 0.3, 0.12]\n" +
+			"[[compare.free]]\npath = \"survey.detection_snr\"\nmin = 3.0\nmax = 30.0\nstarts = [4.0, 6.0, 8.0, 10.0, 15.0, 20.0, 25.0, 30.0, 5.0]\n",
+		lineOf: "starts = [4.0",
+		want:   []string{"the starting values of compare.free up to compare.free[1] make a grid of more than 64 points"},
+	},
+	{
 		name:   "free width from zero",
 		text:   minimal + burstPart + "[[compare.free]]\npath = \"history.b.width_gyr\"\nmin = 0.0\nmax = 0.5\n",
 		lineOf: "min =",

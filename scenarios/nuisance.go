@@ -245,6 +245,15 @@ func (v *decoder) validateNuisance(s *Scenario, p string, f FreeParam) {
 	} else if f.Sigma != 0 {
 		v.errAt(key("sigma"), "%s is the width of a gaussian prior; with prior = %s leave it out", key("sigma"), quoteString(f.Prior))
 	}
+	if len(f.Starts) > 0 && !IsNuisancePath(s, f.Path) {
+		v.errAt(key("starts"), "%s: starting values apply to nuisance parameters; a history parameter's fit already starts from a scan of the burst age and several points", key("starts"))
+	}
+	for i, x := range f.Starts {
+		if !(x >= f.Min && x <= f.Max) {
+			v.errAt(key("starts"), "%s[%d] = %s lies outside [%s, %s]; every starting value must be one the parameter can take", key("starts"), i, formatFloat(x), formatFloat(f.Min), formatFloat(f.Max))
+			break
+		}
+	}
 	if !IsNuisancePath(s, f.Path) || !ActiveNuisance(s, f.Path) {
 		return
 	}

@@ -297,4 +297,8 @@ type FreeParam struct {
 	Max   float64 `toml:"max"`   // upper bound, > min; required
 	Prior string  `toml:"prior"` // "uniform" (default) | "log-uniform" (needs min > 0) | "gaussian" (nuisance paths only)
 	Sigma float64 `toml:"sigma"` // gaussian: width about the scenario's value; 0 = the published uncertainty where one is known
+	// Starts (nuisance paths only) are values the joint fit scores before
+	// its search begins, for a parameter whose effect is far from
+	// quadratic over its range; the search starts at the best combination.
+	Starts []float64 `toml:"starts"`
 }
