@@ -26,6 +26,8 @@ type FitOptions struct {
 	// NuisanceStart, for FitJoint, is where the nuisance parameters start
 	// and the first expansion is centred (nil: their nominal values).
 	NuisanceStart []float64
+	// MaxRounds, for FitJoint, bounds its expansions (0: MaxRounds).
+	MaxRounds int
 	// Stage, if not nil, is told what a long fit is doing (FitJoint: one
 	// line per expansion), for progress reports.
 	Stage func(msg string)
@@ -51,7 +53,11 @@ type FitResult struct {
 	LogPrior      float64
 	Templates     *Templates
 	Rounds        int
-	morph         *morph
+	// RoundLimit is set when FitJoint stopped at its limit of expansions
+	// (FitOptions.MaxRounds) with the last one still improving ln L: the answer may
+	// not be the maximum, and Converged is false.
+	RoundLimit bool
+	morph      *morph
 }
 
 // LogLData returns the data's log-likelihood at the fit, without the

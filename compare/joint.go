@@ -6,10 +6,11 @@ import (
 	"math"
 )
 
-// maxRounds bounds the expansions a joint fit makes (see FitJoint), and
+// MaxRounds bounds the expansions a joint fit makes by default (see
+// FitJoint and FitOptions.MaxRounds), and
 // minStepFraction how far its trust region may shrink.
 const (
-	maxRounds       = 12
+	MaxRounds       = 12
 	minStepFraction = 1.0 / 32
 )
 
@@ -44,6 +45,9 @@ func FitJoint(ctx context.Context, like *Likelihood, m HistoryModel, nu *Nuisanc
 	}
 	if opts.Starts <= 0 {
 		opts.Starts = 4
+	}
+	if opts.MaxRounds <= 0 {
+		opts.MaxRounds = MaxRounds
 	}
 	centre := nu.Nominal()
 	if opts.NuisanceStart != nil {
@@ -83,7 +87,8 @@ func FitJoint(ctx context.Context, like *Likelihood, m HistoryModel, nu *Nuisanc
 	}
 	var mo *morph
 	round := 0
-	for round < maxRounds {
+	improving := false // the last round moved the centre
+	for round < opts.MaxRounds {
 		round++
 		if err := ctx.Err(); err != nil {
 			return FitResult{}, err
@@ -184,8 +189,10 @@ func FitJoint(ctx context.Context, like *Likelihood, m HistoryModel, nu *Nuisanc
 			}
 			best = cand
 			centre = append([]float64(nil), cand.Nuisance...)
+			improving = true
 			continue
 		}
+		improving = false
 		if !far {
 			break // the expansion agrees: the centre is the maximum
 		}
@@ -212,6 +219,8 @@ func FitJoint(ctx context.Context, like *Likelihood, m HistoryModel, nu *Nuisanc
 	best.Templates = mo.exact
 	best.morph = mo
 	best.Rounds = round
+	best.RoundLimit = round == opts.MaxRounds && improving
+	best.Converged = best.Converged && !best.RoundLimit
 	best.Evaluations = evals
 	return best, nil
 }

@@ -173,6 +173,15 @@ func TestFitJointRecoversNuisanceAndBurst(t *testing.T) {
 	assert.InDelta(t, trueNu[0], joint.Nuisance[0], 0.01, "coefficient a")
 	assert.InDelta(t, trueNu[1], joint.Nuisance[1], 0.004, "color offset")
 	require.NotNil(t, joint.Templates)
+	assert.False(t, joint.RoundLimit, "converged well inside the round limit")
+
+	// Stopped after one expansion, which moved the centre toward the
+	// truth: the fit says it stopped at its limit and is not converged.
+	short, err := FitJoint(context.Background(), like, m, nu, FitOptions{Starts: 3, MaxRounds: 1})
+	require.NoError(t, err)
+	assert.True(t, short.RoundLimit)
+	assert.False(t, short.Converged)
+	assert.NotEqual(t, nu.Nominal(), short.Nuisance, "the one expansion moved")
 
 	// Held at the nominal values: the burst moves.
 	lnom, err := NewLikelihood(nominal, data, LikeOptions{TemplateNoise: NoiseIgnore})

@@ -113,7 +113,7 @@ func FitReport(f compare.FitResult) map[string]any {
 		p[n] = f.Nuisance[i]
 	}
 	return map[string]any{"params": p, "log_l": Finite(f.LogL), "log_prior": Finite(f.LogPrior), "expansions": f.Rounds,
-		"converged": f.Converged, "evaluations": f.Evaluations, "age_bin_weights": FiniteAll(f.Weights)}
+		"converged": f.Converged, "stopped_at_round_limit": f.RoundLimit, "evaluations": f.Evaluations, "age_bin_weights": FiniteAll(f.Weights)}
 }
 
 // AdequacyReport is a goodness of fit's numbers, NaN-free.

@@ -11,6 +11,7 @@ import (
 
 	"gonum.org/v1/plot/vg"
 
+	"spinpop/compare"
 	"spinpop/internal/figure"
 	"spinpop/internal/report"
 	"spinpop/pipeline"
@@ -121,6 +122,12 @@ func runTestAlternatives(args []string, stdout, stderr io.Writer) error {
 	if res.Outcome != "prefers" {
 		fmt.Fprintf(w, "%s\n\n", res.Verdict)
 	}
+	var fitNames []string
+	var fitResults []compare.FitResult
+	for _, f := range res.Fits {
+		fitNames, fitResults = append(fitNames, f.Name), append(fitResults, f.Fit)
+	}
+	warnRoundLimits(w, fitNames, fitResults)
 	printDataSummary(w, comps[0].DataSummary())
 	fmt.Fprintln(w)
 	for _, f := range res.Fits {

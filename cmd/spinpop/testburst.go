@@ -208,6 +208,7 @@ func printBurstSummary(w io.Writer, r *pipeline.BurstOutcome) {
 		fmt.Fprintf(w, "\nwarning: the models do not describe this catalog (deviance %.0f where counting noise gives %.0f ± %.0f); read the verdict at the end first\n",
 			t.AdequacyBurst.Deviance, t.AdequacyBurst.ReplicateMean, t.AdequacyBurst.ReplicateSD)
 	}
+	warnRoundLimits(w, []string{"smooth-history", "with-burst"}, []compare.FitResult{t.Smooth, t.Burst})
 	fmt.Fprintln(w)
 	fmt.Fprintf(w, "smooth history: ln L = %.2f (%d free parameters)\n", t.Smooth.LogL, t.KSmooth)
 	fmt.Fprintf(w, "with burst:     ln L = %.2f (%d free parameters)", t.Burst.LogL, t.KBurst)
@@ -245,6 +246,16 @@ func printBurstSummary(w io.Writer, r *pipeline.BurstOutcome) {
 	fmt.Fprintln(w)
 	fmt.Fprintln(w)
 	fmt.Fprintln(w, t.Verdict)
+}
+
+// warnRoundLimits says which joint fits stopped at their round limit
+// while ln L was still rising: their answers may not be maxima.
+func warnRoundLimits(w io.Writer, names []string, fits []compare.FitResult) {
+	for i, f := range fits {
+		if f.RoundLimit {
+			fmt.Fprintf(w, "warning: the %s fit stopped at its limit of %d expansions while ln L was still rising: it may not be the maximum, and the test compares the fits as found\n", names[i], f.Rounds)
+		}
+	}
 }
 
 // ageIntervalText gives the burst age's intervals and what they hold: the

@@ -1,0 +1,36 @@
+package main
+
+import (
+	"bytes"
+	"strings"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+
+	"spinpop/compare"
+	"spinpop/pipeline"
+)
+
+// A joint fit that stopped at its round limit while still improving is
+// said so before any number of the test, naming the fit; fits that
+// converged get no such line.
+func TestBurstSummaryWarnsOfRoundLimit(t *testing.T) {
+	out := &pipeline.BurstOutcome{
+		Test: &compare.BurstResult{
+			Smooth: compare.FitResult{Rounds: 5, Converged: true},
+			Burst:  compare.FitResult{Rounds: 12, RoundLimit: true},
+		},
+		Heights: &compare.HeightResult{SplitAgeGyr: 0.8},
+	}
+	var b bytes.Buffer
+	printBurstSummary(&b, out)
+	text := b.String()
+	assert.Contains(t, text, "warning: the with-burst fit stopped at its limit of 12 expansions while ln L was still rising")
+	assert.NotContains(t, text, "the smooth-history fit stopped")
+	assert.Less(t, strings.Index(text, "warning:"), strings.Index(text, "smooth history: ln L"), "the warning comes first")
+
+	out.Test.Burst.RoundLimit = false
+	b.Reset()
+	printBurstSummary(&b, out)
+	assert.NotContains(t, b.String(), "stopped at its limit")
+}
