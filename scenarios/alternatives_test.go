@@ -9,6 +9,50 @@ import (
 	"github.com/stretchr/testify/require"
 )
 
+// freeItem is a free parameter as a user writes it in an override.
+func freeItem(f FreeParam) map[string]any {
+	item := map[string]any{"path": f.Path, "min": f.Min, "max": f.Max, "prior": f.Prior, "sigma": f.Sigma}
+	if len(f.Starts) > 0 {
+		starts := make([]any, len(f.Starts))
+		for i, x := range f.Starts {
+			starts[i] = x
+		}
+		item["starts"] = starts
+	}
+	return item
+}
+
+// A nuisance parameter's starting values stay with it in an alternative
+// that drops a history part.
+func TestAlternativesKeepStartingValues(t *testing.T) {
+	fit, err := Resolve("example:fit")
+	require.NoError(t, err)
+	free := make([]any, 0, len(fit.Scenario.Compare.Free))
+	found := false
+	for _, f := range fit.Scenario.Compare.Free {
+		if f.Path == "spin.period_scatter_dex" {
+			f.Starts, found = []float64{0, 0.1}, true
+		}
+		free = append(free, freeItem(f))
+	}
+	require.True(t, found, "example:fit frees spin.period_scatter_dex")
+	o, err := NewOverride("free", "compare.free", free)
+	require.NoError(t, err)
+	withStarts, err := Resolve("example:fit", o)
+	require.NoError(t, err)
+	alt, err := AlternativeOverrides(&withStarts.Scenario, 0)
+	require.NoError(t, err)
+	stall, err := Resolve("example:fit", append([]Override{o}, alt...)...)
+	require.NoError(t, err)
+	for _, f := range stall.Scenario.Compare.Free {
+		if f.Path == "spin.period_scatter_dex" {
+			assert.Equal(t, []float64{0, 0.1}, f.Starts)
+			return
+		}
+	}
+	t.Fatal("the stall alternative lost spin.period_scatter_dex")
+}
+
 // Each alternative of example:fit resolves as a scenario of its own that
 // equals the one a user would write by hand: the same settings given as
 // --set, the dropped part removed with its free parameters.
@@ -41,19 +85,9 @@ func TestAlternativesResolveAsScenarios(t *testing.T) {
 		hand = append(hand, o)
 	}
 	free := make([]any, 0, len(s.Compare.Free))
-	starts := 0
 	for _, f := range s.Compare.Free {
-		item := map[string]any{"path": f.Path, "min": f.Min, "max": f.Max, "prior": f.Prior, "sigma": f.Sigma}
-		if len(f.Starts) > 0 {
-			item["starts"] = []any{f.Starts[0]}
-			for _, x := range f.Starts[1:] {
-				item["starts"] = append(item["starts"].([]any), x)
-			}
-			starts++
-		}
-		free = append(free, item)
+		free = append(free, freeItem(f))
 	}
-	assert.Equal(t, 2, starts, "the search completeness's starting values go with the alternative")
 	o, err := NewOverride("free", "compare.free", free)
 	require.NoError(t, err)
 	byHand, err := Resolve("example:fit", append(hand, o)...)
