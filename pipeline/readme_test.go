@@ -3,6 +3,7 @@ package pipeline_test
 import (
 	"io/fs"
 	"os"
+	"path/filepath"
 	"regexp"
 	"strconv"
 	"strings"
@@ -81,4 +82,34 @@ func TestReadmeQuotesTheExampleSurveyAndDemoCatalog(t *testing.T) {
 	for _, q := range quoted {
 		assert.Equal(t, strconv.Itoa(rows), strings.ReplaceAll(q[1], ",", ""), "README: %q", q[0])
 	}
+}
+
+// The README's snippet that frees the search completeness with starting
+// values is a valid addition to a copy of example:fit, and gives the
+// starting grid it says.
+func TestReadmeSearchCompletenessSnippetResolves(t *testing.T) {
+	b, err := os.ReadFile("../README.md")
+	require.NoError(t, err)
+	text := string(b)
+	at := strings.Index(text, "Freeing it in a copy of\n`example:fit`")
+	require.GreaterOrEqual(t, at, 0, "README shows how to free the search completeness")
+	start := strings.Index(text[at:], "```toml\n")
+	require.GreaterOrEqual(t, start, 0)
+	body := text[at+start+len("```toml\n"):]
+	body = body[:strings.Index(body, "```")]
+	// Appended to example:fit's own list, as a copy of the file would be.
+	fit, err := scenarios.ExampleText("fit")
+	require.NoError(t, err)
+	path := filepath.Join(t.TempDir(), "fit-search.toml")
+	require.NoError(t, os.WriteFile(path, append(fit, []byte("\n"+body)...), 0o644))
+	res, err := scenarios.Resolve(path)
+	require.NoError(t, err)
+	grid := 1
+	for _, f := range res.Scenario.Compare.Free {
+		if len(f.Starts) > 0 {
+			grid *= len(f.Starts)
+		}
+	}
+	assert.Equal(t, 15, grid, "the snippet's comment: 5 × 3 starting points")
+	assert.Equal(t, 60.0, res.Scenario.Survey.SearchHalfD)
 }
