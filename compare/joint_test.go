@@ -79,6 +79,22 @@ func (s *jointSetup) burstModel(t testing.TB) HistoryModel {
 	}}
 }
 
+// asimovLikelihood is noise-free data of 30,000 stars made by re-observing
+// the stored stars at trueNu with a burst at 0.6 Gyr of 20 %, in a
+// likelihood whose templates are made at nu's nominal values.
+func (s *jointSetup) asimovLikelihood(t testing.TB, m HistoryModel, nu *Nuisance, trueNu []float64) (*Likelihood, *Templates, []float64) {
+	truth, err := s.obs.Observe(context.Background(), trueNu)
+	require.NoError(t, err)
+	w, err := m.Weights([]float64{0.6, 0.2})
+	require.NoError(t, err)
+	data := Asimov(truth, w, 30000)
+	nominal, err := s.obs.Observe(context.Background(), nu.Nominal())
+	require.NoError(t, err)
+	like, err := NewLikelihood(nominal, data, LikeOptions{TemplateNoise: NoiseIgnore})
+	require.NoError(t, err)
+	return like, nominal, data
+}
+
 // The nuisance gradient of the joint objective agrees with finite
 // differences. Common practice, no source: central differences.
 func TestJointObjectiveGradient(t *testing.T) {
@@ -156,15 +172,7 @@ func TestFitJointRecoversNuisanceAndBurst(t *testing.T) {
 	nu := s.nuisance()
 	m := s.burstModel(t)
 	trueNu := []float64{0.82, 0.015}
-	truth, err := s.obs.Observe(context.Background(), trueNu)
-	require.NoError(t, err)
-	w, err := m.Weights([]float64{0.6, 0.2})
-	require.NoError(t, err)
-	data := Asimov(truth, w, 30000)
-	nominal, err := s.obs.Observe(context.Background(), nu.Nominal())
-	require.NoError(t, err)
-	like, err := NewLikelihood(nominal, data, LikeOptions{TemplateNoise: NoiseIgnore})
-	require.NoError(t, err)
+	like, nominal, data := s.asimovLikelihood(t, m, nu, trueNu)
 	joint, err := FitJoint(context.Background(), like, m, nu, FitOptions{Starts: 3})
 	require.NoError(t, err)
 	t.Logf("joint: θ = %v, ν = %v, ln L = %.2f, rounds %d, evaluations %d", joint.Theta, joint.Nuisance, joint.LogL, joint.Rounds, joint.Evaluations)
@@ -277,15 +285,7 @@ func TestFitJointStartsAtBestOfGrid(t *testing.T) {
 	nu.Params[1].Starts = []float64{-0.03, 0.015}
 	m := s.burstModel(t)
 	trueNu := []float64{0.84, 0.015}
-	truth, err := s.obs.Observe(context.Background(), trueNu)
-	require.NoError(t, err)
-	w, err := m.Weights([]float64{0.6, 0.2})
-	require.NoError(t, err)
-	data := Asimov(truth, w, 30000)
-	nominal, err := s.obs.Observe(context.Background(), nu.Nominal())
-	require.NoError(t, err)
-	like, err := NewLikelihood(nominal, data, LikeOptions{TemplateNoise: NoiseIgnore})
-	require.NoError(t, err)
+	like, _, _ := s.asimovLikelihood(t, m, nu, trueNu)
 	var grid, expansions []string
 	opts := FitOptions{Starts: 3, Stage: func(msg string) {
 		switch {

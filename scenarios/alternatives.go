@@ -118,15 +118,7 @@ func AlternativeOverrides(s *Scenario, i int) ([]Override, error) {
 			if len(pieces) == 3 && pieces[0] == "history" && slices.Contains(a.Drop, pieces[1]) {
 				continue
 			}
-			item := map[string]any{"path": f.Path, "min": f.Min, "max": f.Max, "prior": f.Prior, "sigma": f.Sigma}
-			if len(f.Starts) > 0 {
-				starts := make([]any, len(f.Starts))
-				for i, x := range f.Starts {
-					starts[i] = x
-				}
-				item["starts"] = starts
-			}
-			free = append(free, item)
+			free = append(free, freeItem(f))
 		}
 		if err := add("compare.free", free); err != nil {
 			return nil, err
@@ -143,4 +135,18 @@ func AlternativeOverrides(s *Scenario, i int) ([]Override, error) {
 		out = append(out, o)
 	}
 	return out, nil
+}
+
+// freeItem is a free parameter as an override's value: the keys a user
+// writes in [[compare.free]].
+func freeItem(f FreeParam) map[string]any {
+	item := map[string]any{"path": f.Path, "min": f.Min, "max": f.Max, "prior": f.Prior, "sigma": f.Sigma}
+	if len(f.Starts) > 0 {
+		starts := make([]any, len(f.Starts))
+		for i, x := range f.Starts {
+			starts[i] = x
+		}
+		item["starts"] = starts
+	}
+	return item
 }

@@ -9,19 +9,6 @@ import (
 	"github.com/stretchr/testify/require"
 )
 
-// freeItem is a free parameter as a user writes it in an override.
-func freeItem(f FreeParam) map[string]any {
-	item := map[string]any{"path": f.Path, "min": f.Min, "max": f.Max, "prior": f.Prior, "sigma": f.Sigma}
-	if len(f.Starts) > 0 {
-		starts := make([]any, len(f.Starts))
-		for i, x := range f.Starts {
-			starts[i] = x
-		}
-		item["starts"] = starts
-	}
-	return item
-}
-
 // A nuisance parameter's starting values stay with it in an alternative
 // that drops a history part.
 func TestAlternativesKeepStartingValues(t *testing.T) {
