@@ -494,3 +494,37 @@ func (r *BurstResult) setAgeInterval(iv Interval, cal func(float64) (float64, bo
 		r.AgeInterval = WithCalibration(iv, s)
 	}
 }
+
+// RivalAge is another maximum of the burst fit that the age interval does
+// not hold: its burst age, how far below the best it lies in ln L, and
+// that distance divided by the dispersion (as the interval's levels are).
+type RivalAge struct {
+	AgeGyr, DeltaLogL, ScaledDelta float64
+}
+
+// RivalAges returns the burst fit's other maxima (FitResult.OtherMaxima)
+// that lie inside the 95 % level of ln L — Δ ln L / φ̂ ≤ ½χ²₁(0.95), φ̂
+// the dispersion when above 1 — with a burst age outside the 95 %
+// interval: answers the data cannot tell from the best one that the
+// interval, drawn about one maximum, leaves out.
+func (r *BurstResult) RivalAges() []RivalAge {
+	age := -1
+	for i, n := range r.Burst.Names {
+		if n == r.AgeParam {
+			age = i
+		}
+	}
+	if age < 0 {
+		return nil
+	}
+	phi := math.Max(r.Dispersion, 1)
+	var out []RivalAge
+	for _, o := range r.Burst.OtherMaxima {
+		d := r.Burst.LogL - o.LogL
+		a := o.Theta[age]
+		if d/phi <= dLogL95 && (a < r.AgeInterval.Lo95 || a > r.AgeInterval.Hi95) {
+			out = append(out, RivalAge{AgeGyr: a, DeltaLogL: d, ScaledDelta: d / phi})
+		}
+	}
+	return out
+}

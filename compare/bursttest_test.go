@@ -213,3 +213,29 @@ func TestAgeIntervalWithCalibration(t *testing.T) {
 	assert.Contains(t, text, "the spin-down law's calibration, ±12 % in age, included", text)
 	assert.Contains(t, text, formatAge(r.AgeInterval), "the verdict quotes the combined interval")
 }
+
+// A second maximum of the burst fit is a rival when it lies inside the
+// 95 % level of ln L (½χ²₁(0.95) = 1.92, scaled by the dispersion) and
+// its burst age outside the 95 % interval; one further down, or one whose
+// age the interval holds, is not.
+func TestRivalAges(t *testing.T) {
+	r := &BurstResult{
+		AgeParam:    "burst.age_gyr",
+		Dispersion:  1.5,
+		AgeInterval: Interval{Best: 1.28, Lo95: 1.2, Hi95: 1.36},
+		Burst: FitResult{Names: []string{"burst.width_gyr", "burst.age_gyr"}, LogL: -1209.2, OtherMaxima: []LocalMaximum{
+			{LogL: -1210.7, Theta: []float64{0.05, 1.43}}, // Δ 1.5, /1.5 = 1.0: a rival
+			{LogL: -1213.2, Theta: []float64{0.05, 0.9}},  // Δ 4.0, /1.5 = 2.67: too far down
+			{LogL: -1209.5, Theta: []float64{0.05, 1.3}},  // inside the interval
+		}},
+	}
+	got := r.RivalAges()
+	require.Len(t, got, 1)
+	assert.InDelta(t, 1.43, got[0].AgeGyr, 1e-12)
+	assert.InDelta(t, 1.5, got[0].DeltaLogL, 1e-9)
+	assert.InDelta(t, 1.0, got[0].ScaledDelta, 1e-9)
+
+	r.Dispersion = 0.8 // below 1: not scaled (no underdispersion credit)
+	r.Burst.OtherMaxima[0].LogL = -1211.2
+	assert.Empty(t, r.RivalAges(), "Δ 2.0 > 1.92 unscaled")
+}

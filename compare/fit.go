@@ -57,7 +57,20 @@ type FitResult struct {
 	// (FitOptions.MaxRounds) with the last one still improving ln L: the answer may
 	// not be the maximum, and Converged is false.
 	RoundLimit bool
-	morph      *morph
+	// OtherMaxima are where FitJoint's other searches from its starting
+	// grid ended (lower ln L), best first: a maximum close in ln L but
+	// far in the answer says the answer is less certain than an interval
+	// drawn about one maximum.
+	OtherMaxima []LocalMaximum
+	morph       *morph
+}
+
+// LocalMaximum is where one search of a joint fit ended.
+type LocalMaximum struct {
+	LogL       float64
+	Theta      []float64 // history parameters, in FitResult.Names' order
+	Nuisance   []float64
+	RoundLimit bool // that search stopped at its round limit while improving
 }
 
 // LogLData returns the data's log-likelihood at the fit, without the

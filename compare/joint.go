@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"math"
+	"sort"
 )
 
 // MaxRounds bounds the expansions a joint fit makes by default (see
@@ -30,6 +31,10 @@ const (
 // the proposal agrees with the centre or the steps have shrunk 32-fold. The
 // answer is the final centre: Nuisance, Templates, Weights and LogL all
 // belong to that one point, made exactly; like's templates are left there.
+//
+// With a starting grid (NuisanceParam.Starts) the search runs from the
+// grid's two best points; the better answer is returned and the other is
+// kept in OtherMaxima.
 func FitJoint(ctx context.Context, like *Likelihood, m HistoryModel, nu *Nuisance, opts FitOptions) (FitResult, error) {
 	if nu.Dim() == 0 {
 		return Fit(like, m, opts)
@@ -53,26 +58,27 @@ func FitJoint(ctx context.Context, like *Likelihood, m HistoryModel, nu *Nuisanc
 	if opts.NuisanceStart != nil {
 		centre = append([]float64(nil), opts.NuisanceStart...)
 	}
-	steps := make([]float64, nu.Dim())
-	for j, p := range nu.Params {
-		steps[j] = p.step()
-	}
 	evals := 0
 	// The centre's profile likelihood, with every history start.
-	best, err := profileAtValues(ctx, like, m, nu, centre, opts)
+	first, err := profileAtValues(ctx, like, m, nu, centre, opts)
 	if err != nil {
 		return FitResult{}, err
 	}
-	evals += best.Evaluations
+	evals += first.Evaluations
 	// The starting grid: every combination of the parameters' Starts
-	// (the others at the centre), scored exactly; the search begins at
-	// the best. A given NuisanceStart (a previous answer) skips it.
+	// (the others at the centre), scored exactly. The search runs from the
+	// best point and, when there is a grid, from the second best too: the
+	// likelihood over many nuisance parameters can have several maxima,
+	// and one search cannot tell whether another lies near in ln L but
+	// far in the answer (FitResult.OtherMaxima). A given NuisanceStart (a
+	// previous answer) skips the grid.
+	scored := []FitResult{first}
 	if opts.NuisanceStart == nil {
 		for _, v := range nu.startGrid(centre) {
 			if err := ctx.Err(); err != nil {
 				return FitResult{}, err
 			}
-			r, err := profileAtValues(ctx, like, m, nu, v, FitOptions{Starts: 1, Init: [][]float64{best.Theta}, Seed: opts.Seed})
+			r, err := profileAtValues(ctx, like, m, nu, v, FitOptions{Starts: 1, Init: [][]float64{first.Theta}, Seed: opts.Seed})
 			if err != nil {
 				return FitResult{}, err
 			}
@@ -80,24 +86,83 @@ func FitJoint(ctx context.Context, like *Likelihood, m HistoryModel, nu *Nuisanc
 			if opts.Stage != nil {
 				opts.Stage(fmt.Sprintf("starting grid: ln L = %.2f at %s", r.LogL, nu.describe(v)))
 			}
-			if r.LogL > best.LogL {
-				best, centre = r, v
-			}
+			scored = append(scored, r)
 		}
 	}
+	// Stable: among equal ln L the earlier point (the centre first) wins.
+	sort.SliceStable(scored, func(a, b int) bool { return scored[a].LogL > scored[b].LogL })
+	searches := min(len(scored), gridSearches)
+	var best FitResult
+	var mo *morph
+	var steps []float64
+	var others []FitResult
+	for k := range searches {
+		if opts.Stage != nil && searches > 1 {
+			opts.Stage(fmt.Sprintf("search %d of %d from the starting grid", k+1, searches))
+		}
+		r, rmo, rsteps, err := searchFrom(ctx, like, m, nu, scored[k], opts)
+		if err != nil {
+			return FitResult{}, err
+		}
+		evals += r.Evaluations
+		if k == 0 || r.LogL > best.LogL {
+			if k > 0 {
+				others = append(others, best)
+			}
+			best, mo, steps = r, rmo, rsteps
+		} else {
+			others = append(others, r)
+		}
+	}
+	centre = best.Nuisance
+	// The answer and the expansion about it, for the bootstrap replicates.
+	if mo == nil || !equalValues(mo.centre, centre) {
+		if mo, err = newMorph(ctx, like, nu, centre, steps); err != nil {
+			return FitResult{}, err
+		}
+	}
+	if err := like.SetTemplates(mo.exact); err != nil {
+		return FitResult{}, err
+	}
+	best.Templates = mo.exact
+	best.morph = mo
+	best.Evaluations = evals
+	for _, o := range others {
+		best.OtherMaxima = append(best.OtherMaxima, LocalMaximum{LogL: o.LogL, Theta: o.Theta, Nuisance: o.Nuisance, RoundLimit: o.RoundLimit})
+	}
+	return best, nil
+}
+
+// gridSearches is how many of the starting grid's best points the joint
+// fit searches from (see FitJoint): two, so that a second maximum can be
+// seen, at twice the cost of a fit with a grid.
+const gridSearches = 2
+
+// searchFrom runs the trust-region search of FitJoint from the scored
+// point start and returns its answer (Rounds, RoundLimit and Evaluations
+// its own), the last expansion made and the steps it ended with.
+func searchFrom(ctx context.Context, like *Likelihood, m HistoryModel, nu *Nuisance, start FitResult, opts FitOptions) (FitResult, *morph, []float64, error) {
+	best := start
+	centre := append([]float64(nil), start.Nuisance...)
+	steps := make([]float64, nu.Dim())
+	for j, p := range nu.Params {
+		steps[j] = p.step()
+	}
+	evals := 0
+	var err error
 	var mo *morph
 	round := 0
 	improving := false // the last round moved the centre
 	for round < opts.MaxRounds {
 		round++
 		if err := ctx.Err(); err != nil {
-			return FitResult{}, err
+			return FitResult{}, nil, nil, err
 		}
 		if opts.Stage != nil {
 			opts.Stage(fmt.Sprintf("expansion %d: ln L = %.2f at %s", round, best.LogL, nu.describe(centre)))
 		}
 		if mo, err = newMorph(ctx, like, nu, centre, steps); err != nil {
-			return FitResult{}, err
+			return FitResult{}, nil, nil, err
 		}
 		warm := FitOptions{Starts: 1, Init: [][]float64{best.Theta}, Seed: opts.Seed}
 		cand := best
@@ -109,7 +174,7 @@ func FitJoint(ctx context.Context, like *Likelihood, m HistoryModel, nu *Nuisanc
 		for _, sp := range mo.sides {
 			r, err := profileWith(like, m, nu, sp.values, sp.tpl, warm)
 			if err != nil {
-				return FitResult{}, err
+				return FitResult{}, nil, nil, err
 			}
 			evals += r.Evaluations
 			if r.LogL > cand.LogL {
@@ -130,7 +195,7 @@ func FitJoint(ctx context.Context, like *Likelihood, m HistoryModel, nu *Nuisanc
 		if moves > 1 {
 			r, err := profileAtValues(ctx, like, m, nu, combined, FitOptions{Starts: 1, Init: [][]float64{cand.Theta, best.Theta}, Seed: opts.Seed})
 			if err != nil {
-				return FitResult{}, err
+				return FitResult{}, nil, nil, err
 			}
 			evals += r.Evaluations
 			if r.LogL > cand.LogL {
@@ -145,7 +210,7 @@ func FitJoint(ctx context.Context, like *Likelihood, m HistoryModel, nu *Nuisanc
 		o := newObjective(like, m, nu, mo)
 		prop, err := o.fit(m, FitOptions{Starts: 1, Init: [][]float64{best.Theta}, Seed: opts.Seed}, centre)
 		if err != nil {
-			return FitResult{}, err
+			return FitResult{}, nil, nil, err
 		}
 		var starts [][]float64
 		if round == 1 {
@@ -171,7 +236,7 @@ func FitJoint(ctx context.Context, like *Likelihood, m HistoryModel, nu *Nuisanc
 		if far {
 			r, err := profileAtValues(ctx, like, m, nu, prop.Nuisance, FitOptions{Starts: 1, Init: [][]float64{prop.Theta, best.Theta}, Seed: opts.Seed})
 			if err != nil {
-				return FitResult{}, err
+				return FitResult{}, nil, nil, err
 			}
 			evals += r.Evaluations
 			if r.LogL > cand.LogL {
@@ -207,22 +272,11 @@ func FitJoint(ctx context.Context, like *Likelihood, m HistoryModel, nu *Nuisanc
 			break
 		}
 	}
-	// The answer and the expansion about it, for the bootstrap replicates.
-	if mo == nil || !equalValues(mo.centre, centre) {
-		if mo, err = newMorph(ctx, like, nu, centre, steps); err != nil {
-			return FitResult{}, err
-		}
-	}
-	if err := like.SetTemplates(mo.exact); err != nil {
-		return FitResult{}, err
-	}
-	best.Templates = mo.exact
-	best.morph = mo
 	best.Rounds = round
 	best.RoundLimit = round == opts.MaxRounds && improving
 	best.Converged = best.Converged && !best.RoundLimit
 	best.Evaluations = evals
-	return best, nil
+	return best, mo, steps, nil
 }
 
 // profileAtValues fits the history with the templates made exactly at

@@ -182,6 +182,7 @@ func TestFitJointRecoversNuisanceAndBurst(t *testing.T) {
 	assert.InDelta(t, trueNu[1], joint.Nuisance[1], 0.004, "color offset")
 	require.NotNil(t, joint.Templates)
 	assert.False(t, joint.RoundLimit, "converged well inside the round limit")
+	assert.Empty(t, joint.OtherMaxima, "no starting grid: one search")
 
 	// Stopped after one expansion, which moved the centre toward the
 	// truth: the fit says it stopped at its limit and is not converged.
@@ -302,6 +303,11 @@ func TestFitJointStartsAtBestOfGrid(t *testing.T) {
 	assert.Contains(t, expansions[0], "spin.a = 0.84, survey.color_offset_mag = 0.015", "the search starts at the best grid point")
 	assert.InDelta(t, trueNu[0], joint.Nuisance[0], 0.01, "coefficient a")
 	assert.InDelta(t, 0.6, joint.Theta[0], 0.02, "burst age")
+	// A second search ran from the second-best grid point; on this
+	// likelihood, with one maximum, it ends no higher.
+	require.Len(t, joint.OtherMaxima, 1)
+	assert.LessOrEqual(t, joint.OtherMaxima[0].LogL, joint.LogL)
+	assert.Len(t, joint.OtherMaxima[0].Nuisance, 2)
 
 	// A given starting point (a previous answer) skips the grid.
 	grid, expansions = nil, nil

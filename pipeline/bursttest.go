@@ -91,8 +91,8 @@ func (r *BurstOutcome) Report(c *Comparison, outputs []string) map[string]any {
 		"log_bayes_factor": Finite(t.LogBayesFactor), "evidence_params": t.EvidenceParams, "has_evidence": t.HasEvidence, "evidence_note": t.EvidenceNote,
 		"age_param": t.AgeParam, "age_interval": t.AgeInterval, "age_profile": prof,
 		"age_interval_profile": t.AgeIntervalProfile, "age_calibration_sigma_ln": Finite(t.AgeCalibrationSigma),
-		"age_calibration_color_bv": Finite(c.MedianColor()),
-		"strength":                 t.Strength, "strength_reason": t.StrengthReason, "calibration": t.Calibration, "verdict": t.Verdict,
+		"age_calibration_color_bv": Finite(c.MedianColor()), "rival_ages": rivals(t.RivalAges()),
+		"strength": t.Strength, "strength_reason": t.StrengthReason, "calibration": t.Calibration, "verdict": t.Verdict,
 		"adequacy_smooth": AdequacyReport(t.AdequacySmooth), "adequacy_burst": AdequacyReport(t.AdequacyBurst),
 		"dispersion": Finite(t.Dispersion), "p_value_quasi": Finite(t.PValueQuasi),
 		"nuisance_params": c.Nuisance.Names(),
@@ -112,8 +112,29 @@ func FitReport(f compare.FitResult) map[string]any {
 	for i, n := range f.NuisanceNames {
 		p[n] = f.Nuisance[i]
 	}
+	others := []map[string]any{}
+	for _, o := range f.OtherMaxima {
+		q := map[string]float64{}
+		for i, n := range f.Names {
+			q["history."+n] = o.Theta[i]
+		}
+		for i, n := range f.NuisanceNames {
+			q[n] = o.Nuisance[i]
+		}
+		others = append(others, map[string]any{"params": q, "log_l": Finite(o.LogL), "stopped_at_round_limit": o.RoundLimit})
+	}
 	return map[string]any{"params": p, "log_l": Finite(f.LogL), "log_prior": Finite(f.LogPrior), "expansions": f.Rounds,
-		"converged": f.Converged, "stopped_at_round_limit": f.RoundLimit, "evaluations": f.Evaluations, "age_bin_weights": FiniteAll(f.Weights)}
+		"converged": f.Converged, "stopped_at_round_limit": f.RoundLimit, "other_maxima": others,
+		"evaluations": f.Evaluations, "age_bin_weights": FiniteAll(f.Weights)}
+}
+
+// rivals is RivalAges for JSON.
+func rivals(rs []compare.RivalAge) []map[string]any {
+	out := []map[string]any{}
+	for _, r := range rs {
+		out = append(out, map[string]any{"age_gyr": Finite(r.AgeGyr), "delta_log_l": Finite(r.DeltaLogL), "delta_log_l_scaled": Finite(r.ScaledDelta)})
+	}
+	return out
 }
 
 // AdequacyReport is a goodness of fit's numbers, NaN-free.

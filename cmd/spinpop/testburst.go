@@ -209,6 +209,10 @@ func printBurstSummary(w io.Writer, r *pipeline.BurstOutcome) {
 			t.AdequacyBurst.Deviance, t.AdequacyBurst.ReplicateMean, t.AdequacyBurst.ReplicateSD)
 	}
 	warnRoundLimits(w, []string{"smooth-history", "with-burst"}, []compare.FitResult{t.Smooth, t.Burst})
+	for _, r := range t.RivalAges() {
+		fmt.Fprintf(w, "warning: a second search of the with-burst fit ended %.2f below the best in ln L (%.2f after the dispersion; the 95 %% level is 1.92) with the burst at %.3f Gyr, outside the 95 %% interval: the data cannot tell the two apart, and the interval does not show it\n",
+			r.DeltaLogL, r.ScaledDelta, r.AgeGyr)
+	}
 	fmt.Fprintln(w)
 	fmt.Fprintf(w, "smooth history: ln L = %.2f (%d free parameters)\n", t.Smooth.LogL, t.KSmooth)
 	fmt.Fprintf(w, "with burst:     ln L = %.2f (%d free parameters)", t.Burst.LogL, t.KBurst)

@@ -34,3 +34,22 @@ func TestBurstSummaryWarnsOfRoundLimit(t *testing.T) {
 	printBurstSummary(&b, out)
 	assert.NotContains(t, b.String(), "stopped at its limit")
 }
+
+// A second maximum the data cannot tell from the best, with the burst
+// outside the 95 % interval, is said first, with its age.
+func TestBurstSummaryWarnsOfRivalAge(t *testing.T) {
+	out := &pipeline.BurstOutcome{
+		Test: &compare.BurstResult{
+			AgeParam: "burst.age_gyr", Dispersion: 1, AgeInterval: compare.Interval{Best: 1.28, Lo95: 1.2, Hi95: 1.36},
+			Burst: compare.FitResult{Names: []string{"burst.age_gyr"}, Theta: []float64{1.28}, LogL: -1209.2,
+				OtherMaxima: []compare.LocalMaximum{{LogL: -1210.7, Theta: []float64{1.43}}}},
+		},
+		Heights: &compare.HeightResult{SplitAgeGyr: 0.8},
+	}
+	var b bytes.Buffer
+	printBurstSummary(&b, out)
+	text := b.String()
+	assert.Contains(t, text, "warning: a second search of the with-burst fit ended 1.50 below the best in ln L")
+	assert.Contains(t, text, "with the burst at 1.430 Gyr, outside the 95 % interval")
+	assert.Less(t, strings.Index(text, "warning:"), strings.Index(text, "smooth history: ln L"), "the warning comes first")
+}
