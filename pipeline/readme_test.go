@@ -16,11 +16,17 @@ import (
 	"spinpop/scenarios"
 )
 
-// README's list of catalog.csv columns is the column table's, in order.
-func TestReadmeListsTheCatalogColumns(t *testing.T) {
+// readme returns the project README's text.
+func readme(t *testing.T) string {
+	t.Helper()
 	b, err := os.ReadFile("../README.md")
 	require.NoError(t, err)
-	text := string(b)
+	return string(b)
+}
+
+// README's list of catalog.csv columns is the column table's, in order.
+func TestReadmeListsTheCatalogColumns(t *testing.T) {
+	text := readme(t)
 	start := strings.Index(text, "Columns of `catalog.csv`")
 	require.GreaterOrEqual(t, start, 0, "README has no list of catalog.csv columns")
 	row := regexp.MustCompile("^\\| `([a-z0-9_]+)` \\| (.*) \\|$")
@@ -45,9 +51,7 @@ func TestReadmeListsTheCatalogColumns(t *testing.T) {
 // demo catalog's size it quotes is the embedded file's row count: numbers
 // quoted in prose go stale silently otherwise.
 func TestReadmeQuotesTheExampleSurveyAndDemoCatalog(t *testing.T) {
-	b, err := os.ReadFile("../README.md")
-	require.NoError(t, err)
-	text := string(b)
+	text := readme(t)
 	res, err := scenarios.LoadExample("base")
 	require.NoError(t, err)
 	sv := res.Scenario.Survey
@@ -88,9 +92,7 @@ func TestReadmeQuotesTheExampleSurveyAndDemoCatalog(t *testing.T) {
 // values is a valid addition to a copy of example:fit, and gives the
 // starting grid it says.
 func TestReadmeSearchCompletenessSnippetResolves(t *testing.T) {
-	b, err := os.ReadFile("../README.md")
-	require.NoError(t, err)
-	text := string(b)
+	text := readme(t)
 	at := strings.Index(text, "Freeing it in a copy of\n`example:fit`")
 	require.GreaterOrEqual(t, at, 0, "README shows how to free the search completeness")
 	start := strings.Index(text[at:], "```toml\n")

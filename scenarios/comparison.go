@@ -209,14 +209,14 @@ func (v *decoder) validateFree(s *Scenario) {
 	seen := make(map[string]int)
 	grid := 1
 	for i, f := range s.Compare.Free {
+		p := elemKey("compare.free", i)
+		key := func(k string) string { return joinKey(p, k) }
 		if n := len(f.Starts); n > 0 && grid <= MaxStartGrid {
 			grid *= n
 			if grid > MaxStartGrid {
-				v.errAt(joinKey(elemKey("compare.free", i), "starts"), "the starting values of compare.free up to %s make a grid of more than %d points, each a re-observation of the stored stars and a fit; give fewer values", elemKey("compare.free", i), MaxStartGrid)
+				v.errAt(key("starts"), "the starting values of compare.free up to %s make a grid of more than %d points, each a re-observation of the stored stars and a fit; give fewer values", p, MaxStartGrid)
 			}
 		}
-		p := elemKey("compare.free", i)
-		key := func(k string) string { return joinKey(p, k) }
 		v.required(p, []string{"max", "min", "path"}, v.present, "each [[compare.free]] parameter")
 		dom, pathOK := v.freePath(key("path"), f.Path, s.History, s.Spin.Law, valid)
 		if pathOK {

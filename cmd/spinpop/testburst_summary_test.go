@@ -11,6 +11,13 @@ import (
 	"spinpop/pipeline"
 )
 
+// summaryText is test-burst's printed summary of out.
+func summaryText(out *pipeline.BurstOutcome) string {
+	var b bytes.Buffer
+	printBurstSummary(&b, out)
+	return b.String()
+}
+
 // A joint fit that stopped at its round limit while still improving is
 // said so before any number of the test, naming the fit; fits that
 // converged get no such line.
@@ -22,17 +29,13 @@ func TestBurstSummaryWarnsOfRoundLimit(t *testing.T) {
 		},
 		Heights: &compare.HeightResult{SplitAgeGyr: 0.8},
 	}
-	var b bytes.Buffer
-	printBurstSummary(&b, out)
-	text := b.String()
+	text := summaryText(out)
 	assert.Contains(t, text, "warning: the with-burst fit stopped at its limit of 12 expansions while ln L was still rising")
 	assert.NotContains(t, text, "the smooth-history fit stopped")
 	assert.Less(t, strings.Index(text, "warning:"), strings.Index(text, "smooth history: ln L"), "the warning comes first")
 
 	out.Test.Burst.RoundLimit = false
-	b.Reset()
-	printBurstSummary(&b, out)
-	assert.NotContains(t, b.String(), "stopped at its limit")
+	assert.NotContains(t, summaryText(out), "stopped at its limit")
 }
 
 // A second maximum the data cannot tell from the best, with the burst
@@ -46,9 +49,7 @@ func TestBurstSummaryWarnsOfRivalAge(t *testing.T) {
 		},
 		Heights: &compare.HeightResult{SplitAgeGyr: 0.8},
 	}
-	var b bytes.Buffer
-	printBurstSummary(&b, out)
-	text := b.String()
+	text := summaryText(out)
 	assert.Contains(t, text, "warning: a second search of the with-burst fit ended 1.50 below the best in ln L")
 	assert.Contains(t, text, "with the burst at 1.430 Gyr, outside the 95 % interval")
 	assert.Less(t, strings.Index(text, "warning:"), strings.Index(text, "smooth history: ln L"), "the warning comes first")
