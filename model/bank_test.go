@@ -311,3 +311,33 @@ func TestBankObserveSearchCompleteness(t *testing.T) {
 	}
 	assert.Less(t, sNew, sOld, "a search that loses periods catalogs fewer stars")
 }
+
+// Re-observing with a free-form loss against Rossby number gives what a
+// run with it gives, and the templates are linear in each node's value
+// (stars count with their detection probability and each lies between two
+// nodes): half-way between two values of a node, the expectation is the
+// mean of the two. The joint fit's quadratic expansion relies on that to
+// be exact in these parameters.
+func TestBankObserveRossbyBands(t *testing.T) {
+	p := testPopulation(t, 4)
+	q := *p
+	q.Survey.Search = spots.SearchCompleteness{RossbyBands: []float64{1, 1, 0.7, 0.3, 0.1, 0.05}}
+	bankFollowsRun(t, p, &q, 150)
+
+	g := bankGrid()
+	_, bank := randomTemplatesAndBank(t, p, g, 300_000, BankMargin{})
+	at := func(e24 float64) []float64 {
+		r := *p
+		r.Survey.Search = spots.SearchCompleteness{RossbyBands: []float64{1, 1, 0.7, e24, 0.1, 0.05}}
+		exp, _, err := bank.Observe(context.Background(), &r, g, ObserveOptions{BaseFractionScale: 1})
+		require.NoError(t, err)
+		return exp
+	}
+	lo, mid, hi := at(0.2), at(0.5), at(0.8)
+	var moved float64
+	for i := range mid {
+		assert.InDelta(t, 0.5*(lo[i]+hi[i]), mid[i], 1e-9*(1+hi[i]), "bin %d", i)
+		moved += hi[i] - lo[i]
+	}
+	assert.Greater(t, moved, 1.0, "the 24 d node changes the templates")
+}

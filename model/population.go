@@ -448,7 +448,7 @@ func (p *Population) rotate(s spin.Star, comp, noisePpm float64, lawR, spotR *ra
 	}
 	if p.Survey.Search.Enabled() && rot.prob > 0 {
 		tauRatio := math.NaN()
-		if p.Survey.Search.TurnoverPower != 0 {
+		if p.Survey.Search.NeedsTurnover() {
 			if tau, ok := p.Turnover.Days(s); ok {
 				tauRatio = tau / p.Turnover.Solar()
 			}

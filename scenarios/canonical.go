@@ -105,6 +105,12 @@ func toTree(rv reflect.Value) map[string]any {
 		if len(rv.Interface().(Compare).Alternatives) == 0 {
 			delete(out, "alternatives")
 		}
+	case reflect.TypeFor[Survey]():
+		// A search without a free-form loss hashes as it did before the
+		// table existed: all 1 is no loss at all.
+		if rv.Interface().(Survey).SearchByRossby.Lossless() {
+			delete(out, "search_by_rossby")
+		}
 	case reflect.TypeFor[FreeParam]():
 		// Likewise a free parameter without starting values: they change
 		// where a fit starts, and so the run only when given.

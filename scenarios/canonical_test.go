@@ -246,3 +246,27 @@ distance_max_pc = 900.0
 	require.Error(t, err)
 	assert.Contains(t, err.Error(), "c.toml:17: survey.field.cones[1].l_deg is missing; each cone needs b_deg, distance_max_pc, l_deg, radius_deg")
 }
+
+// The free-form search loss is part of a scenario's identity only when it
+// loses something: written out at its defaults (every node 1) the
+// scenario hashes as one without the table, as every scenario did before
+// the table existed; one node below 1 is another run. Its node paths are
+// nuisance parameters a fit may free.
+func TestSearchByRossbyIdentity(t *testing.T) {
+	plain := loadMinimal(t, "")
+	atDefaults := loadMinimal(t, "[survey.search_by_rossby]\nefficiency_3d = 1.0\nefficiency_96d = 1.0\n")
+	assert.Equal(t, plain.Hash(), atDefaults.Hash())
+	assert.NotContains(t, string(plain.Canonical()), "search_by_rossby")
+	lossy := loadMinimal(t, "[survey.search_by_rossby]\nefficiency_48d = 0.5\n")
+	assert.NotEqual(t, plain.Hash(), lossy.Hash())
+	back, err := LoadBytes("back.toml", lossy.Canonical(), nil)
+	require.NoError(t, err)
+	assert.Equal(t, lossy.Hash(), back.Hash())
+	assert.Equal(t, []float64{1, 1, 1, 1, 0.5, 1}, back.Scenario.Survey.SearchByRossby.Values())
+	for _, k := range searchByRossbyKeys {
+		assert.True(t, IsNuisancePath(&lossy.Scenario, "survey.search_by_rossby."+k), k)
+		v, ok := ValueAt(&lossy.Scenario, "survey.search_by_rossby."+k)
+		assert.True(t, ok, k)
+		assert.Equal(t, map[bool]float64{true: 0.5, false: 1}[k == "efficiency_48d"], v, k)
+	}
+}

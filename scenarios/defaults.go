@@ -90,6 +90,14 @@ period_scatter_rel = 0.03
 half_alias_prob = 0.02
 double_alias_prob = 0.01
 
+[survey.search_by_rossby]
+efficiency_3d = 1.0
+efficiency_6d = 1.0
+efficiency_12d = 1.0
+efficiency_24d = 1.0
+efficiency_48d = 1.0
+efficiency_96d = 1.0
+
 [survey.field]
 kind = "cone"
 

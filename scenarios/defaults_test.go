@@ -129,6 +129,10 @@ func TestEveryKeyHasADefaultOrIsRequired(t *testing.T) {
 		}
 		for k := range defs {
 			_, ok := tree[k]
+			if joinKey(path, k) == "survey.search_by_rossby" {
+				// Left out of the canonical form at its defaults (no loss).
+				_, ok = fieldsOf(reflect.TypeFor[Survey]()).index[k]
+			}
 			assert.True(t, ok, "default for unknown key %s", joinKey(path, k))
 		}
 	}

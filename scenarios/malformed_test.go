@@ -425,6 +425,12 @@ var malformedCases = []malformedCase{
 		want:   []string{"compare.free[0].max = 1.5 must be ≤ 1: history.b.mass_fraction takes values in [0, 1]"},
 	},
 	{
+		name:   "search efficiency above one",
+		text:   minimal + "[survey.search_by_rossby]\nefficiency_24d = 1.2\n",
+		lineOf: "efficiency_24d =",
+		want:   []string{"survey.search_by_rossby.efficiency_24d = 1.2 is out of range; it must be in [0, 1] (1 keeps every period there)"},
+	},
+	{
 		name:   "starting values on a history parameter",
 		text:   minimal + burstPart + "[[compare.free]]\npath = \"history.b.age_gyr\"\nmin = 0.1\nmax = 1.0\nstarts = [0.3, 0.6]\n",
 		lineOf: "starts =",

@@ -144,27 +144,61 @@ type Spots struct {
 // Survey describes the invented survey: where it looks, how deep, how well
 // it measures.
 type Survey struct {
-	Name             string  `toml:"name"`                  // default ""
-	Band             string  `toml:"band"`                  // "V" (default) or "Ks"
-	BrightLimitMag   float64 `toml:"bright_limit_mag"`      // default 10
-	FaintLimitMag    float64 `toml:"faint_limit_mag"`       // default 16.5
-	NoiseFloorPpm    float64 `toml:"noise_floor_ppm"`       // per cadence; default 70
-	NoiseRefMag      float64 `toml:"noise_ref_mag"`         // default 13
-	NoisePpmAtRefMag float64 `toml:"noise_ppm_at_ref_mag"`  // default 320
-	CadenceD         float64 `toml:"cadence_d"`             // default 0.03125 (45 min)
-	BaselineD        float64 `toml:"baseline_d"`            // default 1000
-	MinCycles        float64 `toml:"min_cycles"`            // default 3
-	DetectionSNR     float64 `toml:"detection_snr"`         // default 10
-	DetectionSharp   float64 `toml:"detection_sharpness"`   // logistic slope of detection in ln SNR; default 4
-	SearchHalfD      float64 `toml:"search_half_period_d"`  // period the search finds half of, at the Sun's turnover time; default 0 (no loss)
-	SearchTauPower   float64 `toml:"search_turnover_power"` // that period ∝ τ_c^power (0: fixed period, 1: fixed Rossby number); default 1
-	SearchSteepness  float64 `toml:"search_steepness"`      // logistic slope of that loss in ln P; default 6
-	ColorOffsetMag   float64 `toml:"color_offset_mag"`      // catalog B−V zero point relative to the model's; default 0
-	ColorScale       float64 `toml:"color_scale"`           // catalog B−V scale about B−V = 1 relative to the model's; default 1
-	PeriodScatterRel float64 `toml:"period_scatter_rel"`    // default 0.03
-	HalfAliasProb    float64 `toml:"half_alias_prob"`       // default 0.02
-	DoubleAliasProb  float64 `toml:"double_alias_prob"`     // default 0.01
-	Field            Field   `toml:"field"`
+	Name             string         `toml:"name"`                  // default ""
+	Band             string         `toml:"band"`                  // "V" (default) or "Ks"
+	BrightLimitMag   float64        `toml:"bright_limit_mag"`      // default 10
+	FaintLimitMag    float64        `toml:"faint_limit_mag"`       // default 16.5
+	NoiseFloorPpm    float64        `toml:"noise_floor_ppm"`       // per cadence; default 70
+	NoiseRefMag      float64        `toml:"noise_ref_mag"`         // default 13
+	NoisePpmAtRefMag float64        `toml:"noise_ppm_at_ref_mag"`  // default 320
+	CadenceD         float64        `toml:"cadence_d"`             // default 0.03125 (45 min)
+	BaselineD        float64        `toml:"baseline_d"`            // default 1000
+	MinCycles        float64        `toml:"min_cycles"`            // default 3
+	DetectionSNR     float64        `toml:"detection_snr"`         // default 10
+	DetectionSharp   float64        `toml:"detection_sharpness"`   // logistic slope of detection in ln SNR; default 4
+	SearchHalfD      float64        `toml:"search_half_period_d"`  // period the search finds half of, at the Sun's turnover time; default 0 (no loss)
+	SearchTauPower   float64        `toml:"search_turnover_power"` // that period ∝ τ_c^power (0: fixed period, 1: fixed Rossby number); default 1
+	SearchSteepness  float64        `toml:"search_steepness"`      // logistic slope of that loss in ln P; default 6
+	SearchByRossby   SearchByRossby `toml:"search_by_rossby"`      // a free-form loss against Rossby number; default none
+	ColorOffsetMag   float64        `toml:"color_offset_mag"`      // catalog B−V zero point relative to the model's; default 0
+	ColorScale       float64        `toml:"color_scale"`           // catalog B−V scale about B−V = 1 relative to the model's; default 1
+	PeriodScatterRel float64        `toml:"period_scatter_rel"`    // default 0.03
+	HalfAliasProb    float64        `toml:"half_alias_prob"`       // default 0.02
+	DoubleAliasProb  float64        `toml:"double_alias_prob"`     // default 0.01
+	Field            Field          `toml:"field"`
+}
+
+// SearchByRossby is the period search's efficiency at six Rossby-scaled
+// periods P·τ_c☉/τ_c a factor of two apart (spots.RossbyNodesD), linear
+// in ln P between them and flat beyond: a loss of slow rotators whose
+// shape is not known, for a fit to free node by node. All 1 (the
+// default): no such loss. A table left at its defaults is not part of a
+// scenario's identity.
+type SearchByRossby struct {
+	Efficiency3D  float64 `toml:"efficiency_3d"`  // default 1
+	Efficiency6D  float64 `toml:"efficiency_6d"`  // default 1
+	Efficiency12D float64 `toml:"efficiency_12d"` // default 1
+	Efficiency24D float64 `toml:"efficiency_24d"` // default 1
+	Efficiency48D float64 `toml:"efficiency_48d"` // default 1
+	Efficiency96D float64 `toml:"efficiency_96d"` // default 1
+}
+
+// searchByRossbyKeys are SearchByRossby's keys in node order (as Values).
+var searchByRossbyKeys = []string{"efficiency_3d", "efficiency_6d", "efficiency_12d", "efficiency_24d", "efficiency_48d", "efficiency_96d"}
+
+// Values returns the six efficiencies in node order.
+func (s SearchByRossby) Values() []float64 {
+	return []float64{s.Efficiency3D, s.Efficiency6D, s.Efficiency12D, s.Efficiency24D, s.Efficiency48D, s.Efficiency96D}
+}
+
+// Lossless reports whether every node keeps every period.
+func (s SearchByRossby) Lossless() bool {
+	for _, e := range s.Values() {
+		if e != 1 {
+			return false
+		}
+	}
+	return true
 }
 
 // Field is the survey footprint: a cone, an all-sky sphere or a list of

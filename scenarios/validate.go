@@ -159,6 +159,9 @@ func (v *decoder) validateSurvey(sv *Survey) {
 	v.atLeast("survey.search_half_period_d", sv.SearchHalfD, 0, "0 = the search loses no periods")
 	v.inRange("survey.search_turnover_power", sv.SearchTauPower, 0, true, 3, true, "0: a loss at a fixed period, 1: at a fixed Rossby number")
 	v.inRange("survey.search_steepness", sv.SearchSteepness, 0, false, 50, true, "logistic slope in ln P")
+	for i, e := range sv.SearchByRossby.Values() {
+		v.inRange(fmt.Sprintf("survey.search_by_rossby.%s", searchByRossbyKeys[i]), e, 0, true, 1, true, "1 keeps every period there")
+	}
 	v.inRange("survey.color_offset_mag", sv.ColorOffsetMag, -0.3, true, 0.3, true, "a zero-point difference, not a new color scale")
 	v.inRange("survey.color_scale", sv.ColorScale, 0.7, true, 1.3, true, "a small stretch of the color scale")
 	v.inRange("survey.period_scatter_rel", sv.PeriodScatterRel, 0, true, 1, false, "")

@@ -21,14 +21,36 @@ import (
 // partly with the convective turnover time τ_c. HalfPeriodD 0 means no
 // such loss (ε = 1): the scenarios' default, kept so that a fit can free
 // it as a nuisance parameter of selection.
+//
+// RossbyBands is a second, free-form factor for a loss whose shape is not
+// known: the efficiency at the Rossby-scaled periods RossbyNodesD
+// (P·τ_c☉/τ_c, so one node is one Rossby number), linear in ln P between
+// nodes and flat beyond the end nodes. Templates depend linearly on each
+// node's value (a star counts with its detection probability and lies
+// between two nodes), so the quadratic template expansion of a joint fit
+// is exact in them and the fit cannot stop on a local maximum of their
+// shape, as it can with the logistic's half period. Empty: no such loss.
 type SearchCompleteness struct {
 	HalfPeriodD   float64 // P½ for a star of the Sun's turnover time (d); 0 = no loss
 	TurnoverPower float64 // how P½ scales with τ_c
 	Steepness     float64 // logistic slope in ln P
+
+	RossbyBands []float64 // efficiency at RossbyNodesD, each in [0, 1]; empty = 1 everywhere
 }
 
+// RossbyNodesD are the Rossby-scaled periods P·τ_c☉/τ_c (days) at which
+// SearchCompleteness.RossbyBands gives the efficiency: a factor of two
+// apart, from where nearly every period survives to beyond the slowest
+// rotators of a few-Gyr-old K dwarf (the choice of nodes is ours).
+var RossbyNodesD = [...]float64{3, 6, 12, 24, 48, 96}
+
 // Enabled reports whether the search loses any periods.
-func (s SearchCompleteness) Enabled() bool { return s.HalfPeriodD > 0 }
+func (s SearchCompleteness) Enabled() bool { return s.HalfPeriodD > 0 || len(s.RossbyBands) > 0 }
+
+// NeedsTurnover reports whether Efficiency reads its tauRatio argument.
+func (s SearchCompleteness) NeedsTurnover() bool {
+	return len(s.RossbyBands) > 0 || (s.HalfPeriodD > 0 && s.TurnoverPower != 0)
+}
 
 // Validate reports parameters that cannot describe a completeness; with
 // HalfPeriodD 0 (no loss) the other two are not read and not checked.
@@ -36,8 +58,16 @@ func (s SearchCompleteness) Validate() error {
 	if !(s.HalfPeriodD >= 0) || math.IsInf(s.HalfPeriodD, 1) {
 		return fmt.Errorf("spots: search completeness HalfPeriodD must be finite and ≥ 0 (days; 0 = no loss), got %g", s.HalfPeriodD)
 	}
-	if !s.Enabled() {
-		return nil // the other two are not read
+	if n := len(s.RossbyBands); n != 0 && n != len(RossbyNodesD) {
+		return fmt.Errorf("spots: search completeness RossbyBands holds %d values; want one per node of RossbyNodesD (%d) or none", n, len(RossbyNodesD))
+	}
+	for k, e := range s.RossbyBands {
+		if !(e >= 0 && e <= 1) {
+			return fmt.Errorf("spots: search completeness RossbyBands[%d] (at %g d) = %g; an efficiency lies in [0, 1]", k, RossbyNodesD[k], e)
+		}
+	}
+	if s.HalfPeriodD == 0 {
+		return nil // the logistic's other two are not read
 	}
 	switch {
 	case !(s.TurnoverPower >= 0) || !(s.TurnoverPower <= 3):
@@ -49,21 +79,48 @@ func (s SearchCompleteness) Validate() error {
 }
 
 // Efficiency returns ε for a period periodD of a star whose turnover time
-// is tauRatio = τ_c/τ_c☉ (read only when TurnoverPower ≠ 0). A star
-// without a turnover time (tauRatio NaN) when one is needed, or a
-// non-positive period, gives 0; a disabled completeness gives 1.
+// is tauRatio = τ_c/τ_c☉ (read only when NeedsTurnover). A star without a
+// turnover time (tauRatio NaN) when one is needed, or a non-positive
+// period, gives 0; a disabled completeness gives 1.
 func (s SearchCompleteness) Efficiency(periodD, tauRatio float64) float64 {
 	if !s.Enabled() {
 		return 1
 	}
-	if !(periodD > 0) {
+	if !(periodD > 0) || (s.NeedsTurnover() && !(tauRatio > 0)) {
 		return 0
 	}
+	eff := 1.0
+	if len(s.RossbyBands) > 0 {
+		eff = s.bandEfficiency(periodD / tauRatio)
+	}
+	if s.HalfPeriodD == 0 {
+		return eff
+	}
+	return eff * s.logistic(periodD, tauRatio)
+}
+
+// bandEfficiency interpolates RossbyBands linearly in ln x at a
+// Rossby-scaled period x, flat beyond the end nodes.
+func (s SearchCompleteness) bandEfficiency(x float64) float64 {
+	last := len(RossbyNodesD) - 1
+	switch {
+	case x <= RossbyNodesD[0]:
+		return s.RossbyBands[0]
+	case x >= RossbyNodesD[last]:
+		return s.RossbyBands[last]
+	}
+	k := 0
+	for x >= RossbyNodesD[k+1] {
+		k++
+	}
+	f := math.Log(x/RossbyNodesD[k]) / math.Log(RossbyNodesD[k+1]/RossbyNodesD[k])
+	return s.RossbyBands[k] + f*(s.RossbyBands[k+1]-s.RossbyBands[k])
+}
+
+// logistic is the half-period loss alone.
+func (s SearchCompleteness) logistic(periodD, tauRatio float64) float64 {
 	half := s.HalfPeriodD
 	if s.TurnoverPower != 0 {
-		if !(tauRatio > 0) {
-			return 0
-		}
 		half *= math.Exp(s.TurnoverPower * math.Log(tauRatio))
 	}
 	return 1 / (1 + math.Exp(s.Steepness*math.Log(periodD/half)))

@@ -299,3 +299,29 @@ func TestSearchCompleteness(t *testing.T) {
 		assert.Error(t, bad.Validate(), "%+v", bad)
 	}
 }
+
+// The free-form loss is the interpolation its comment states: each node's
+// value at its Rossby-scaled period P·τ_c☉/τ_c, linear in ln P between
+// nodes (the mean of two neighbours at their geometric mean), flat beyond
+// the end nodes, and a factor on top of the logistic. Worked by hand.
+func TestSearchRossbyBands(t *testing.T) {
+	bands := []float64{1, 0.9, 0.8, 0.4, 0.1, 0}
+	s := SearchCompleteness{RossbyBands: bands}
+	require.NoError(t, s.Validate())
+	assert.True(t, s.Enabled())
+	assert.True(t, s.NeedsTurnover())
+	for k, x := range RossbyNodesD {
+		assert.InDelta(t, bands[k], s.Efficiency(x, 1), 1e-15, "node %g d", x)
+	}
+	assert.InDelta(t, 0.4, s.Efficiency(48, 2), 1e-15, "48 d at twice the Sun's turnover time is Rossby-scaled 24 d")
+	assert.InDelta(t, 0.25, s.Efficiency(24*math.Sqrt2, 1), 1e-12, "half-way in ln P between 24 d (0.4) and 48 d (0.1)")
+	assert.InDelta(t, 0.4+0.25*(0.1-0.4), s.Efficiency(24*math.Pow(2, 0.25), 1), 1e-12, "a quarter of the way in ln P")
+	assert.Equal(t, 1.0, s.Efficiency(0.5, 1), "flat below the first node")
+	assert.Equal(t, 0.0, s.Efficiency(500, 1), "flat beyond the last node")
+	assert.Equal(t, 0.0, s.Efficiency(20, math.NaN()), "no turnover time, no Rossby number")
+	both := SearchCompleteness{HalfPeriodD: 24, TurnoverPower: 1, Steepness: 6, RossbyBands: bands}
+	assert.InDelta(t, 0.5*0.4, both.Efficiency(48, 2), 1e-15, "a factor on the logistic: at ratio 2 its half point is 48 d, and 48 d is the 24 d node")
+	for _, bad := range []SearchCompleteness{{RossbyBands: []float64{1, 1}}, {RossbyBands: []float64{1, 1, 1, 1.2, 1, 1}}, {RossbyBands: []float64{1, 1, 1, math.NaN(), 1, 1}}} {
+		assert.Error(t, bad.Validate(), "%+v", bad)
+	}
+}
