@@ -104,7 +104,7 @@ func NuisanceParams(s *scenarios.Scenario) ([]compare.NuisanceParam, error) {
 		if err != nil {
 			return nil, err
 		}
-		p := compare.NuisanceParam{Name: f.Path, Nominal: nom, Min: f.Min, Max: f.Max, Starts: f.Starts}
+		p := compare.NuisanceParam{Name: f.Path, Nominal: nom, Min: f.Min, Max: f.Max, Starts: f.Starts, Linear: scenarios.IsLinearPath(f.Path)}
 		if f.Prior == "gaussian" {
 			p.Sigma = f.Sigma
 			if p.Sigma == 0 {

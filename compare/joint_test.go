@@ -330,3 +330,56 @@ func TestNuisanceStartsValidated(t *testing.T) {
 	nu.Params[1].Starts = nu.Params[1].Starts[:7]
 	assert.NoError(t, nu.Validate(), "9 × 7 = 63 points")
 }
+
+// linearObserver makes templates linear in each value: the base counts
+// times 1 + Σ_j v_j g_j(i), a stand-in for a detection efficiency, and
+// counts its re-observations.
+type linearObserver struct {
+	base  *Templates
+	calls *int
+}
+
+func (o linearObserver) Observe(_ context.Context, v []float64) (*Templates, error) {
+	*o.calls++
+	t := *o.base
+	t.Counts = append([]float64(nil), o.base.Counts...)
+	for i := range t.Counts {
+		f := 1.0
+		for j, x := range v {
+			f += x * (0.5 + 0.5*math.Sin(float64(i*(j+2))))
+		}
+		t.Counts[i] *= f
+	}
+	return &t, nil
+}
+
+// A parameter the templates are linear in is expanded from one side
+// point, not two, and the expansion is still exact anywhere in it (here
+// at values four steps below the centre, where the side point is above).
+func TestMorphLinearParameterOneSide(t *testing.T) {
+	tpl := randomTemplates(t, 6, 5, 12, 0, 50, 4)
+	data := poissonData(tpl, randomWeights(6, 5), 1, 5)
+	like, err := NewLikelihood(tpl, data, LikeOptions{})
+	require.NoError(t, err)
+	for _, linear := range []bool{false, true} {
+		calls := 0
+		nu := &Nuisance{Source: linearObserver{tpl, &calls}, Params: []NuisanceParam{
+			{Name: "e1", Nominal: 0.5, Min: 0, Max: 1, Linear: linear},
+			{Name: "e2", Nominal: 0.5, Min: 0, Max: 1, Linear: linear}}}
+		mo, err := newMorph(context.Background(), like, nu, nu.Nominal(), nil)
+		require.NoError(t, err)
+		want := map[bool]int{false: 5, true: 3}[linear] // centre plus two sides, or one side, per parameter
+		assert.Equal(t, want, calls, "re-observations with linear = %v", linear)
+		rows := make([]float64, len(mo.t0))
+		for _, v := range [][]float64{{0.0, 0.5}, {0.9, 0.1}, {0.2, 1.0}} {
+			mo.apply(v, rows, make([]float64, len(rows)), nil, nil)
+			exact, err := nu.Templates(context.Background(), v)
+			require.NoError(t, err)
+			wantRows, _, err := like.rowsOf(exact)
+			require.NoError(t, err)
+			for i := range rows {
+				require.InDelta(t, wantRows[i], rows[i], 1e-9*(1+wantRows[i]), "linear = %v, at %v, entry %d", linear, v, i)
+			}
+		}
+	}
+}

@@ -34,6 +34,11 @@ type NuisanceParam struct {
 	// its range, so that a search from one value can stop on a local
 	// maximum. Empty: the starting value alone.
 	Starts []float64
+	// Linear says the templates are linear in this parameter (a
+	// detection efficiency that multiplies each star's weight): the
+	// expansion then makes templates on one side of its centre only, the
+	// quadratic term being zero, which saves a re-observation per round.
+	Linear bool
 }
 
 // logPrior returns the constraint term at v (0 at the nominal value).
@@ -74,7 +79,8 @@ type Observer interface {
 // templates at other values come from.
 //
 // How a fit moves them cheaply. Templates at the centre ν_c and at
-// ν_c ± δ_j for each parameter j (2J + 1 re-observations) fix, bin by bin,
+// ν_c ± δ_j for each parameter j (2J + 1 re-observations; one side only
+// for a parameter the templates are Linear in) fix, bin by bin,
 // a quadratic in each ν_j through the three points, continued linearly
 // beyond them; the templates at any ν are the centre's plus the sum of
 // the J changes ("vertical" template interpolation, the piecewise-quadratic
@@ -281,6 +287,9 @@ func newMorph(ctx context.Context, like *Likelihood, nu *Nuisance, centre, steps
 			if fp, err = mo.side(ctx, like, nu, centre, j, up); err != nil {
 				return nil, err
 			}
+		}
+		if p.Linear && fp != nil {
+			mo.lo[j] = 0 // the trust region reaches as far down as up
 		}
 		if mo.lo[j] > 0 {
 			if fm, err = mo.side(ctx, like, nu, centre, j, down); err != nil {

@@ -263,8 +263,11 @@ func TestSearchByRossbyIdentity(t *testing.T) {
 	require.NoError(t, err)
 	assert.Equal(t, lossy.Hash(), back.Hash())
 	assert.Equal(t, []float64{1, 1, 1, 1, 0.5, 1}, back.Scenario.Survey.SearchByRossby.Values())
+	assert.False(t, IsLinearPath("survey.search_half_period_d"), "the logistic is not linear in its half period")
+	assert.False(t, IsLinearPath("survey.search_by_rossby.efficiency_7d"), "no such node")
 	for _, k := range searchByRossbyKeys {
 		assert.True(t, IsNuisancePath(&lossy.Scenario, "survey.search_by_rossby."+k), k)
+		assert.True(t, IsLinearPath("survey.search_by_rossby."+k), k)
 		v, ok := ValueAt(&lossy.Scenario, "survey.search_by_rossby."+k)
 		assert.True(t, ok, k)
 		assert.Equal(t, map[bool]float64{true: 0.5, false: 1}[k == "efficiency_48d"], v, k)

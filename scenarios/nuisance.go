@@ -65,6 +65,16 @@ var nuisanceKeys = map[string]domain{
 // how they are observed: the disk's heating.
 var placementKeys = map[string]bool{"disk.sigma_10gyr_kms": true, "disk.heating_tau1_gyr": true, "disk.heating_beta": true}
 
+// IsLinearPath reports whether a catalog's expected counts are linear in
+// a nuisance path: the free-form search loss's nodes (a star counts with
+// its detection probability, which is linear in the two nodes it lies
+// between). A fit's template expansion then needs one re-observation of
+// such a parameter, not two (compare.NuisanceParam.Linear).
+func IsLinearPath(path string) bool {
+	_, known := nuisanceKeys[path]
+	return known && strings.HasPrefix(path, "survey.search_by_rossby.")
+}
+
 // IsPlacementPath reports whether a nuisance path moves stars in height
 // (the disk's heating), so that templates at its values need the stored
 // stars re-weighted (assemble.HeatingWeight).
