@@ -321,14 +321,14 @@ func TestBankObserveSearchCompleteness(t *testing.T) {
 func TestBankObserveRossbyBands(t *testing.T) {
 	p := testPopulation(t, 4)
 	q := *p
-	q.Survey.Search = spots.SearchCompleteness{RossbyBands: []float64{1, 1, 0.7, 0.3, 0.1, 0.05}}
+	q.Survey.Search = spots.SearchCompleteness{RossbyBands: []float64{1, 1, 0.7, 0.3, 0.1, 0.05}, TurnoverPower: 1}
 	bankFollowsRun(t, p, &q, 150)
 
 	g := bankGrid()
 	_, bank := randomTemplatesAndBank(t, p, g, 300_000, BankMargin{})
 	at := func(e24 float64) []float64 {
 		r := *p
-		r.Survey.Search = spots.SearchCompleteness{RossbyBands: []float64{1, 1, 0.7, e24, 0.1, 0.05}}
+		r.Survey.Search = spots.SearchCompleteness{RossbyBands: []float64{1, 1, 0.7, e24, 0.1, 0.05}, TurnoverPower: 1}
 		exp, _, err := bank.Observe(context.Background(), &r, g, ObserveOptions{BaseFractionScale: 1})
 		require.NoError(t, err)
 		return exp

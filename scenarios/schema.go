@@ -168,9 +168,10 @@ type Survey struct {
 	Field            Field          `toml:"field"`
 }
 
-// SearchByRossby is the period search's efficiency at six Rossby-scaled
-// periods P·τ_c☉/τ_c a factor of two apart (spots.RossbyNodesD), linear
-// in ln P between them and flat beyond: a loss of slow rotators whose
+// SearchByRossby is the period search's efficiency at six scaled periods
+// x = P·(τ_c☉/τ_c)^search_turnover_power a factor of two apart
+// (spots.RossbyNodesD; with the default power 1, Rossby numbers), linear
+// in ln x between them and flat beyond: a loss of slow rotators whose
 // shape is not known, for a fit to free node by node. All 1 (the
 // default): no such loss. A table left at its defaults is not part of a
 // scenario's identity.

@@ -23,9 +23,11 @@ import (
 // it as a nuisance parameter of selection.
 //
 // RossbyBands is a second, free-form factor for a loss whose shape is not
-// known: the efficiency at the Rossby-scaled periods RossbyNodesD
-// (P·τ_c☉/τ_c, so one node is one Rossby number), linear in ln P between
-// nodes and flat beyond the end nodes. Templates depend linearly on each
+// known: the efficiency at the scaled periods RossbyNodesD of
+// x = P·(τ_c☉/τ_c)^TurnoverPower (with power 1 one node is one Rossby
+// number; a survey whose loss moves less with color than τ_c does needs
+// a lower power), linear in ln x between nodes and flat beyond the end
+// nodes. Templates depend linearly on each
 // node's value (a star counts with its detection probability and lies
 // between two nodes), so the quadratic template expansion of a joint fit
 // is exact in them and the fit cannot stop on a local maximum of their
@@ -49,7 +51,7 @@ func (s SearchCompleteness) Enabled() bool { return s.HalfPeriodD > 0 || len(s.R
 
 // NeedsTurnover reports whether Efficiency reads its tauRatio argument.
 func (s SearchCompleteness) NeedsTurnover() bool {
-	return len(s.RossbyBands) > 0 || (s.HalfPeriodD > 0 && s.TurnoverPower != 0)
+	return s.TurnoverPower != 0 && (len(s.RossbyBands) > 0 || s.HalfPeriodD > 0)
 }
 
 // Validate reports parameters that cannot describe a completeness; with
@@ -65,6 +67,9 @@ func (s SearchCompleteness) Validate() error {
 		if !(e >= 0 && e <= 1) {
 			return fmt.Errorf("spots: search completeness RossbyBands[%d] (at %g d) = %g; an efficiency lies in [0, 1]", k, RossbyNodesD[k], e)
 		}
+	}
+	if len(s.RossbyBands) > 0 && !(s.TurnoverPower >= 0 && s.TurnoverPower <= 3) {
+		return fmt.Errorf("spots: search completeness TurnoverPower must be in [0, 3] (0: a fixed period, 1: a fixed Rossby number), got %g", s.TurnoverPower)
 	}
 	if s.HalfPeriodD == 0 {
 		return nil // the logistic's other two are not read
@@ -89,14 +94,18 @@ func (s SearchCompleteness) Efficiency(periodD, tauRatio float64) float64 {
 	if !(periodD > 0) || (s.NeedsTurnover() && !(tauRatio > 0)) {
 		return 0
 	}
+	scale := 1.0 // (τ_c/τ_c☉)^TurnoverPower
+	if s.TurnoverPower != 0 {
+		scale = math.Exp(s.TurnoverPower * math.Log(tauRatio))
+	}
 	eff := 1.0
 	if len(s.RossbyBands) > 0 {
-		eff = s.bandEfficiency(periodD / tauRatio)
+		eff = s.bandEfficiency(periodD / scale)
 	}
 	if s.HalfPeriodD == 0 {
 		return eff
 	}
-	return eff * s.logistic(periodD, tauRatio)
+	return eff / (1 + math.Exp(s.Steepness*math.Log(periodD/(s.HalfPeriodD*scale))))
 }
 
 // bandEfficiency interpolates RossbyBands linearly in ln x at a
@@ -115,13 +124,4 @@ func (s SearchCompleteness) bandEfficiency(x float64) float64 {
 	}
 	f := math.Log(x/RossbyNodesD[k]) / math.Log(RossbyNodesD[k+1]/RossbyNodesD[k])
 	return s.RossbyBands[k] + f*(s.RossbyBands[k+1]-s.RossbyBands[k])
-}
-
-// logistic is the half-period loss alone.
-func (s SearchCompleteness) logistic(periodD, tauRatio float64) float64 {
-	half := s.HalfPeriodD
-	if s.TurnoverPower != 0 {
-		half *= math.Exp(s.TurnoverPower * math.Log(tauRatio))
-	}
-	return 1 / (1 + math.Exp(s.Steepness*math.Log(periodD/half)))
 }

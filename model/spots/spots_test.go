@@ -306,7 +306,7 @@ func TestSearchCompleteness(t *testing.T) {
 // the end nodes, and a factor on top of the logistic. Worked by hand.
 func TestSearchRossbyBands(t *testing.T) {
 	bands := []float64{1, 0.9, 0.8, 0.4, 0.1, 0}
-	s := SearchCompleteness{RossbyBands: bands}
+	s := SearchCompleteness{RossbyBands: bands, TurnoverPower: 1}
 	require.NoError(t, s.Validate())
 	assert.True(t, s.Enabled())
 	assert.True(t, s.NeedsTurnover())
@@ -319,9 +319,13 @@ func TestSearchRossbyBands(t *testing.T) {
 	assert.Equal(t, 1.0, s.Efficiency(0.5, 1), "flat below the first node")
 	assert.Equal(t, 0.0, s.Efficiency(500, 1), "flat beyond the last node")
 	assert.Equal(t, 0.0, s.Efficiency(20, math.NaN()), "no turnover time, no Rossby number")
+	half := SearchCompleteness{RossbyBands: bands, TurnoverPower: 0.5}
+	assert.InDelta(t, 0.4, half.Efficiency(48, 4), 1e-15, "power ½: at 4 times the Sun's turnover time 48 d scales to 24 d")
+	fixed := SearchCompleteness{RossbyBands: bands}
+	assert.InDelta(t, 0.1, fixed.Efficiency(48, math.NaN()), 1e-15, "power 0: a fixed period, no turnover time needed")
 	both := SearchCompleteness{HalfPeriodD: 24, TurnoverPower: 1, Steepness: 6, RossbyBands: bands}
 	assert.InDelta(t, 0.5*0.4, both.Efficiency(48, 2), 1e-15, "a factor on the logistic: at ratio 2 its half point is 48 d, and 48 d is the 24 d node")
-	for _, bad := range []SearchCompleteness{{RossbyBands: []float64{1, 1}}, {RossbyBands: []float64{1, 1, 1, 1.2, 1, 1}}, {RossbyBands: []float64{1, 1, 1, math.NaN(), 1, 1}}} {
+	for _, bad := range []SearchCompleteness{{RossbyBands: []float64{1, 1}}, {RossbyBands: []float64{1, 1, 1, 1.2, 1, 1}}, {RossbyBands: []float64{1, 1, 1, math.NaN(), 1, 1}}, {RossbyBands: bands, TurnoverPower: -1}} {
 		assert.Error(t, bad.Validate(), "%+v", bad)
 	}
 }
