@@ -10,7 +10,7 @@ import (
 )
 
 // The speed targets of issue 8, on the demo (example:fit: its catalog, its
-// eight nuisance parameters, per-color likelihood, 40 age bins × 690
+// thirteen nuisance parameters, per-color likelihood, 40 age bins × 690
 // comparison cells). The comparison is set up once (templates and the
 // bank of template stars: not timed).
 var (
