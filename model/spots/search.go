@@ -30,8 +30,9 @@ import (
 // nodes. Templates depend linearly on each
 // node's value (a star counts with its detection probability and lies
 // between two nodes), so the quadratic template expansion of a joint fit
-// is exact in them and the fit cannot stop on a local maximum of their
-// shape, as it can with the logistic's half period. Empty: no such loss.
+// is exact in them and needs no starting grid, unlike the logistic's half
+// period (the fit as a whole can still end on a local maximum through the
+// other parameters). Empty: no such loss.
 type SearchCompleteness struct {
 	HalfPeriodD   float64 // P½ for a star of the Sun's turnover time (d); 0 = no loss
 	TurnoverPower float64 // how P½ scales with τ_c
@@ -40,7 +41,7 @@ type SearchCompleteness struct {
 	RossbyBands []float64 // efficiency at RossbyNodesD, each in [0, 1]; empty = 1 everywhere
 }
 
-// RossbyNodesD are the Rossby-scaled periods P·τ_c☉/τ_c (days) at which
+// RossbyNodesD are the scaled periods x (days; see SearchCompleteness) at which
 // SearchCompleteness.RossbyBands gives the efficiency: a factor of two
 // apart, from where nearly every period survives to beyond the slowest
 // rotators of a few-Gyr-old K dwarf (the choice of nodes is ours).
@@ -54,8 +55,9 @@ func (s SearchCompleteness) NeedsTurnover() bool {
 	return s.TurnoverPower != 0 && (len(s.RossbyBands) > 0 || s.HalfPeriodD > 0)
 }
 
-// Validate reports parameters that cannot describe a completeness; with
-// HalfPeriodD 0 (no loss) the other two are not read and not checked.
+// Validate reports parameters that cannot describe a completeness; keys a
+// completeness does not read (the steepness without a half period, the
+// power without any loss) are not checked.
 func (s SearchCompleteness) Validate() error {
 	if !(s.HalfPeriodD >= 0) || math.IsInf(s.HalfPeriodD, 1) {
 		return fmt.Errorf("spots: search completeness HalfPeriodD must be finite and ≥ 0 (days; 0 = no loss), got %g", s.HalfPeriodD)
@@ -68,16 +70,13 @@ func (s SearchCompleteness) Validate() error {
 			return fmt.Errorf("spots: search completeness RossbyBands[%d] (at %g d) = %g; an efficiency lies in [0, 1]", k, RossbyNodesD[k], e)
 		}
 	}
-	if len(s.RossbyBands) > 0 && !(s.TurnoverPower >= 0 && s.TurnoverPower <= 3) {
+	if !s.Enabled() {
+		return nil // no loss: the other keys are not read
+	}
+	if !(s.TurnoverPower >= 0) || !(s.TurnoverPower <= 3) {
 		return fmt.Errorf("spots: search completeness TurnoverPower must be in [0, 3] (0: a fixed period, 1: a fixed Rossby number), got %g", s.TurnoverPower)
 	}
-	if s.HalfPeriodD == 0 {
-		return nil // the logistic's other two are not read
-	}
-	switch {
-	case !(s.TurnoverPower >= 0) || !(s.TurnoverPower <= 3):
-		return fmt.Errorf("spots: search completeness TurnoverPower must be in [0, 3] (0: a fixed period, 1: a fixed Rossby number), got %g", s.TurnoverPower)
-	case !(s.Steepness > 0) || !(s.Steepness <= 50):
+	if s.HalfPeriodD > 0 && (!(s.Steepness > 0) || !(s.Steepness <= 50)) {
 		return fmt.Errorf("spots: search completeness Steepness must be in (0, 50] (logistic slope in ln P), got %g", s.Steepness)
 	}
 	return nil
@@ -109,7 +108,7 @@ func (s SearchCompleteness) Efficiency(periodD, tauRatio float64) float64 {
 }
 
 // bandEfficiency interpolates RossbyBands linearly in ln x at a
-// Rossby-scaled period x, flat beyond the end nodes.
+// scaled period x, flat beyond the end nodes.
 func (s SearchCompleteness) bandEfficiency(x float64) float64 {
 	last := len(RossbyNodesD) - 1
 	switch {
