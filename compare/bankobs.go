@@ -33,31 +33,67 @@ type BankObserver struct {
 	// Mask, when not nil, marks (color, period) cells left out of the
 	// comparison (Templates.ZeroCells), emptied in every set of templates.
 	Mask []bool
+	// SearchNodes, when not nil, gives for each nuisance parameter the
+	// node of the free-form search loss it sets
+	// (spots.SearchCompleteness.RossbyBands), or −1: the templates'
+	// derivatives in those come from the pass that makes the templates
+	// (ObserveSlopes).
+	SearchNodes []int
+}
+
+// Slopes implements SlopeObserver.
+func (o *BankObserver) Slopes(j int) bool {
+	return j >= 0 && j < len(o.SearchNodes) && o.SearchNodes[j] >= 0
 }
 
 // Observe implements Observer.
 func (o *BankObserver) Observe(ctx context.Context, values []float64) (*Templates, error) {
+	t, _, err := o.ObserveSlopes(ctx, values, nil)
+	return t, err
+}
+
+// ObserveSlopes implements SlopeObserver: every j in params must be a
+// parameter Slopes accepts.
+func (o *BankObserver) ObserveSlopes(ctx context.Context, values []float64, params []int) (*Templates, []*Templates, error) {
 	if o.Bank == nil || o.Apply == nil {
-		return nil, errors.New("compare: BankObserver needs a bank and an Apply function")
+		return nil, nil, errors.New("compare: BankObserver needs a bank and an Apply function")
 	}
 	if o.Bank.NumAgeBins() != len(o.AgeEdgesGyr)-1 {
-		return nil, fmt.Errorf("compare: the bank has %d age bins, the age edges %d", o.Bank.NumAgeBins(), len(o.AgeEdgesGyr)-1)
+		return nil, nil, fmt.Errorf("compare: the bank has %d age bins, the age edges %d", o.Bank.NumAgeBins(), len(o.AgeEdgesGyr)-1)
+	}
+	nodes := make([]int, len(params))
+	for i, j := range params {
+		if !o.Slopes(j) {
+			return nil, nil, fmt.Errorf("compare: no derivative in nuisance parameter %d: it sets no search-efficiency node", j)
+		}
+		nodes[i] = o.SearchNodes[j]
 	}
 	p, err := o.Apply(values)
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	var weight func(int, float64) float64
 	if o.Reweight != nil {
 		if weight, err = o.Reweight(values); err != nil {
-			return nil, err
+			return nil, nil, err
 		}
 	}
 	g := model.Grid{ColorEdges: o.Space.ColorEdges, LogPeriodEdges: o.Space.LogPeriodEdges, HeightEdgesPc: o.Space.HeightEdgesPc}
-	counts, vars, err := o.Bank.Observe(ctx, p, g, model.ObserveOptions{Workers: o.Workers, BaseFractionScale: o.BaseFractionScale, Weight: weight})
+	counts, vars, slopes, err := o.Bank.ObserveSlopes(ctx, p, g, model.ObserveOptions{Workers: o.Workers, BaseFractionScale: o.BaseFractionScale, Weight: weight, BandSlopes: nodes})
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
+	t := o.templates(counts, vars)
+	ds := make([]*Templates, len(slopes))
+	for i, s := range slopes {
+		ds[i] = o.templates(s, nil)
+	}
+	return t, ds, nil
+}
+
+// templates wraps counts (and variances, or nil) made from the bank,
+// with the mask applied.
+func (o *BankObserver) templates(counts, vars []float64) *Templates {
 	var drawn int64
 	for _, d := range o.Bank.DrawnPerBin {
 		drawn += d
@@ -73,5 +109,5 @@ func (o *BankObserver) Observe(ctx context.Context, values []float64) (*Template
 	if o.Mask != nil {
 		t.ZeroCells(o.Mask)
 	}
-	return t, nil
+	return t
 }

@@ -177,6 +177,13 @@ func searchFrom(ctx context.Context, like *Likelihood, m HistoryModel, nu *Nuisa
 				return FitResult{}, nil, nil, err
 			}
 			evals += r.Evaluations
+			if sp.derived && r.LogL > cand.LogL {
+				// It would win: score it on templates made there.
+				if r, err = profileAtValues(ctx, like, m, nu, sp.values, warm); err != nil {
+					return FitResult{}, nil, nil, err
+				}
+				evals += r.Evaluations
+			}
 			if r.LogL > cand.LogL {
 				cand = r
 			}
@@ -282,8 +289,12 @@ func searchFrom(ctx context.Context, like *Likelihood, m HistoryModel, nu *Nuisa
 // profileAtValues fits the history with the templates made exactly at
 // nuisance values v, and returns the fit with v, its constraint terms and
 // its templates.
+//
+// The templates come with their derivatives when the source gives any
+// (SlopeObserver): a point scored exactly is the next centre of the
+// search if it wins, and the expansion there needs them.
 func profileAtValues(ctx context.Context, like *Likelihood, m HistoryModel, nu *Nuisance, v []float64, opts FitOptions) (FitResult, error) {
-	t, err := nu.Templates(ctx, v)
+	t, _, err := nu.templatesAndSlopes(ctx, v)
 	if err != nil {
 		return FitResult{}, err
 	}

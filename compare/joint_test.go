@@ -13,6 +13,7 @@ import (
 
 	"spinpop/model"
 	"spinpop/model/spin"
+	"spinpop/model/spots"
 	"spinpop/sfh"
 )
 
@@ -79,16 +80,16 @@ func (s *jointSetup) burstModel(t testing.TB) HistoryModel {
 	}}
 }
 
-// asimovLikelihood is noise-free data of 30,000 stars made by re-observing
-// the stored stars at trueNu with a burst at 0.6 Gyr of 20 %, in a
+// asimovLikelihood is noise-free data of 30,000 stars made by nu's source
+// (re-observing the stored stars) at trueNu with a burst at 0.6 Gyr of 20 %, in a
 // likelihood whose templates are made at nu's nominal values.
 func (s *jointSetup) asimovLikelihood(t testing.TB, m HistoryModel, nu *Nuisance, trueNu []float64) (*Likelihood, *Templates, []float64) {
-	truth, err := s.obs.Observe(context.Background(), trueNu)
+	truth, err := nu.Source.Observe(context.Background(), trueNu)
 	require.NoError(t, err)
 	w, err := m.Weights([]float64{0.6, 0.2})
 	require.NoError(t, err)
 	data := Asimov(truth, w, 30000)
-	nominal, err := s.obs.Observe(context.Background(), nu.Nominal())
+	nominal, err := nu.Source.Observe(context.Background(), nu.Nominal())
 	require.NoError(t, err)
 	like, err := NewLikelihood(nominal, data, LikeOptions{TemplateNoise: NoiseIgnore})
 	require.NoError(t, err)
@@ -382,4 +383,130 @@ func TestMorphLinearParameterOneSide(t *testing.T) {
 			}
 		}
 	}
+}
+
+// slopeObserver is linearObserver that also gives its derivatives,
+// worked from its formula: ∂counts_i/∂v_j = base_i·g_j(i).
+type slopeObserver struct{ linearObserver }
+
+func (o slopeObserver) Slopes(j int) bool { return j == 0 } // the first parameter only
+
+func (o slopeObserver) ObserveSlopes(ctx context.Context, v []float64, params []int) (*Templates, []*Templates, error) {
+	t, err := o.Observe(ctx, v)
+	if err != nil {
+		return nil, nil, err
+	}
+	var ds []*Templates
+	for _, j := range params {
+		d := *o.base
+		d.Var = nil
+		d.Counts = make([]float64, len(o.base.Counts))
+		for i, c := range o.base.Counts {
+			d.Counts[i] = c * (0.5 + 0.5*math.Sin(float64(i*(j+2))))
+		}
+		ds = append(ds, &d)
+	}
+	return t, ds, nil
+}
+
+// A linear parameter whose derivative the source gives costs no
+// re-observation: the centre's pass makes the expansion, which is exact
+// in it; the side point made from the derivative holds the counts a
+// re-observation there gives.
+func TestMorphLinearParameterFromSlopes(t *testing.T) {
+	tpl := randomTemplates(t, 6, 5, 12, 0, 50, 4)
+	data := poissonData(tpl, randomWeights(6, 5), 1, 5)
+	like, err := NewLikelihood(tpl, data, LikeOptions{})
+	require.NoError(t, err)
+	calls := 0
+	nu := &Nuisance{Source: slopeObserver{linearObserver{tpl, &calls}}, Params: []NuisanceParam{
+		{Name: "e1", Nominal: 0.5, Min: 0, Max: 1, Linear: true},
+		{Name: "e2", Nominal: 0.5, Min: 0, Max: 1, Linear: true}}}
+	ctx := context.Background()
+	mo, err := newMorph(ctx, like, nu, nu.Nominal(), nil)
+	require.NoError(t, err)
+	assert.Equal(t, 2, calls, "the centre (with e1's derivative) and e2's side point")
+	require.Len(t, mo.sides, 2)
+	for _, sp := range mo.sides {
+		exact, err := linearObserver{tpl, new(int)}.Observe(ctx, sp.values)
+		require.NoError(t, err)
+		assert.InDeltaSlice(t, exact.Counts, sp.tpl.Counts, 1e-9, "side point at %v", sp.values)
+		assert.Equal(t, sp.values[0] != 0.5, sp.derived, "only e1's side point is made from its derivative")
+	}
+	rows := make([]float64, len(mo.t0))
+	for _, v := range [][]float64{{0.0, 0.5}, {0.9, 0.1}, {0.2, 1.0}} {
+		mo.apply(v, rows, make([]float64, len(rows)), nil, nil)
+		exact, err := linearObserver{tpl, new(int)}.Observe(ctx, v)
+		require.NoError(t, err)
+		wantRows, _, err := like.rowsOf(exact)
+		require.NoError(t, err)
+		for i := range rows {
+			require.InDelta(t, wantRows[i], rows[i], 1e-9*(1+wantRows[i]), "at %v, entry %d", v, i)
+		}
+	}
+	lo, hi := mo.trustRegion(nu)
+	assert.Equal(t, []float64{0.25, 0.25}, lo, "two steps of an eighth of the range below 0.5")
+	assert.Equal(t, []float64{0.75, 0.75}, hi, "and above")
+}
+
+// countingBank counts a BankObserver's passes over its stars.
+type countingBank struct {
+	*BankObserver
+	passes *int
+}
+
+func (c countingBank) Observe(ctx context.Context, v []float64) (*Templates, error) {
+	*c.passes++
+	return c.BankObserver.Observe(ctx, v)
+}
+
+func (c countingBank) ObserveSlopes(ctx context.Context, v []float64, params []int) (*Templates, []*Templates, error) {
+	*c.passes++
+	return c.BankObserver.ObserveSlopes(ctx, v, params)
+}
+
+// A joint fit freeing two nodes of the free-form search loss with the
+// law's coefficient recovers all three and the burst from noise-free
+// data, whether the nodes' derivatives come from the templates' own pass
+// or from side points re-observed — the former in fewer passes.
+func TestFitJointSearchNodesFromSlopes(t *testing.T) {
+	s := newJointSetup(t)
+	m := s.burstModel(t)
+	base := s.obs.Apply
+	obs := *s.obs
+	obs.Apply = func(v []float64) (*model.Population, error) {
+		p, err := base([]float64{v[0], 0})
+		if err != nil {
+			return nil, err
+		}
+		p.Survey.Search = spots.SearchCompleteness{TurnoverPower: 1, RossbyBands: []float64{1, 1, 1, v[1], v[2], 1}}
+		return p, nil
+	}
+	params := []NuisanceParam{
+		{Name: "spin.a", Nominal: 0.7725, Min: 0.6, Max: 0.95, Sigma: 0.05},
+		{Name: "efficiency_24d", Nominal: 1, Min: 0, Max: 1, Linear: true},
+		{Name: "efficiency_48d", Nominal: 1, Min: 0, Max: 1, Linear: true},
+	}
+	trueNu := []float64{0.82, 0.6, 0.3}
+	passes := map[bool]int{}
+	for _, withSlopes := range []bool{false, true} {
+		o := obs
+		if withSlopes {
+			o.SearchNodes = []int{-1, 3, 4}
+		}
+		n := 0
+		nu := &Nuisance{Source: countingBank{&o, &n}, Params: params}
+		like, _, _ := s.asimovLikelihood(t, m, nu, trueNu)
+		n = 0
+		joint, err := FitJoint(context.Background(), like, m, nu, FitOptions{Starts: 3})
+		require.NoError(t, err)
+		passes[withSlopes] = n
+		t.Logf("slopes %v: θ = %v, ν = %v, ln L = %.2f, rounds %d, passes %d", withSlopes, joint.Theta, joint.Nuisance, joint.LogL, joint.Rounds, n)
+		assert.InDelta(t, 0.6, joint.Theta[0], 0.02, "burst age")
+		assert.InDelta(t, 0.2, joint.Theta[1], 0.02, "burst fraction")
+		assert.InDelta(t, trueNu[0], joint.Nuisance[0], 0.01, "coefficient a")
+		assert.InDelta(t, trueNu[1], joint.Nuisance[1], 0.05, "24 d node")
+		assert.InDelta(t, trueNu[2], joint.Nuisance[2], 0.05, "48 d node")
+	}
+	assert.Less(t, passes[true], passes[false])
 }

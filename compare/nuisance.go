@@ -36,8 +36,9 @@ type NuisanceParam struct {
 	Starts []float64
 	// Linear says the templates are linear in this parameter (a
 	// detection efficiency that multiplies each star's weight): the
-	// expansion then makes templates on one side of its centre only, the
-	// quadratic term being zero, which saves a re-observation per round.
+	// expansion's quadratic term is then zero, so it makes templates on
+	// one side of its centre only — or none, when the source gives the
+	// derivative with the centre's templates (SlopeObserver).
 	Linear bool
 }
 
@@ -75,12 +76,27 @@ type Observer interface {
 	Observe(ctx context.Context, values []float64) (*Templates, error)
 }
 
+// SlopeObserver is an Observer that can also give, from the same pass
+// that makes the templates, their exact derivatives in some parameters
+// they are Linear in: a fit's expansion then needs no re-observation for
+// those at all.
+type SlopeObserver interface {
+	Observer
+	// Slopes reports whether ObserveSlopes gives the derivative in
+	// parameter j.
+	Slopes(j int) bool
+	// ObserveSlopes returns the templates at values and, for each j in
+	// params, ∂Counts/∂values[j] (Var nil).
+	ObserveSlopes(ctx context.Context, values []float64, params []int) (*Templates, []*Templates, error)
+}
+
 // Nuisance is the nuisance part of a model: its parameters and where
 // templates at other values come from.
 //
 // How a fit moves them cheaply. Templates at the centre ν_c and at
 // ν_c ± δ_j for each parameter j (2J + 1 re-observations; one side only
-// for a parameter the templates are Linear in) fix, bin by bin,
+// for a parameter the templates are Linear in, none when the source
+// gives the derivative in it with the centre's templates) fix, bin by bin,
 // a quadratic in each ν_j through the three points, continued linearly
 // beyond them; the templates at any ν are the centre's plus the sum of
 // the J changes ("vertical" template interpolation, the piecewise-quadratic
@@ -95,8 +111,9 @@ type Nuisance struct {
 	Params []NuisanceParam
 	Source Observer
 
-	mu    sync.Mutex
-	cache map[string]*Templates
+	mu     sync.Mutex
+	cache  map[string]*Templates
+	slopes map[string][]*Templates // derivatives (slopeParams' order) by values
 }
 
 // Validate checks the parameters.
@@ -198,11 +215,63 @@ func (n *Nuisance) Templates(ctx context.Context, values []float64) (*Templates,
 	return t, nil
 }
 
+// slopeParams returns the parameters whose template derivatives the
+// source gives directly (see SlopeObserver), in order.
+func (n *Nuisance) slopeParams() []int {
+	so, ok := n.Source.(SlopeObserver)
+	if !ok {
+		return nil
+	}
+	var out []int
+	for j, p := range n.Params {
+		if p.Linear && so.Slopes(j) {
+			out = append(out, j)
+		}
+	}
+	return out
+}
+
+// templatesAndSlopes returns the templates at values and their
+// derivatives in the parameters of slopeParams (in that order), made in
+// one pass and kept as Templates keeps its sets.
+func (n *Nuisance) templatesAndSlopes(ctx context.Context, values []float64) (*Templates, []*Templates, error) {
+	params := n.slopeParams()
+	if len(params) == 0 {
+		t, err := n.Templates(ctx, values)
+		return t, nil, err
+	}
+	key := valuesKey(values)
+	n.mu.Lock()
+	t, ok := n.cache[key]
+	ds, dok := n.slopes[key]
+	n.mu.Unlock()
+	if ok && dok {
+		return t, ds, nil
+	}
+	t, ds, err := n.Source.(SlopeObserver).ObserveSlopes(ctx, values, params)
+	if err != nil {
+		return nil, nil, fmt.Errorf("compare: templates and their derivatives at %s: %w", n.describe(values), err)
+	}
+	n.mu.Lock()
+	if n.cache == nil {
+		n.cache = map[string]*Templates{}
+	}
+	if n.slopes == nil {
+		n.slopes = map[string][]*Templates{}
+	}
+	if old, ok := n.cache[key]; ok {
+		t = old // the same numbers; keep the set others may hold
+	}
+	n.cache[key], n.slopes[key] = t, ds
+	n.mu.Unlock()
+	return t, ds, nil
+}
+
 // ResetCache forgets every set of templates made so far (for timing a
 // fit from scratch).
 func (n *Nuisance) ResetCache() {
 	n.mu.Lock()
-	n.cache = nil
+	n.cache, n.slopes = nil, nil
 	n.mu.Unlock()
 }
 
@@ -257,14 +326,48 @@ type morph struct {
 type sidePoint struct {
 	values []float64
 	tpl    *Templates
+	// derived marks templates made from the centre's and a derivative
+	// (stepped), not observed: exact in the counts, approximate in the
+	// variances.
+	derived bool
+}
+
+// stepped returns the templates t + d·ds, ds a derivative of t's counts
+// in one parameter, clamped at zero (rounding can leave −1e−17). Each
+// bin keeps t's variance per count, as the expansion does (morph.rho):
+// a count where t has none gets a variance equal to it.
+func stepped(t, ds *Templates, d float64) *Templates {
+	out := *t
+	out.Key = "" // made here, from no scenario's templates
+	out.Counts = make([]float64, len(t.Counts))
+	if t.Var != nil {
+		out.Var = make([]float64, len(t.Var))
+	}
+	for i, c := range t.Counts {
+		v := math.Max(c+d*ds.Counts[i], 0)
+		out.Counts[i] = v
+		if t.Var == nil {
+			continue
+		}
+		if c > 0 {
+			out.Var[i] = t.Var[i] * v / c
+		} else {
+			out.Var[i] = v
+		}
+	}
+	return &out
 }
 
 // newMorph builds the expansion of nu about centre for like's layout, with
 // side points at the parameters' steps (steps nil) or at steps.
 func newMorph(ctx context.Context, like *Likelihood, nu *Nuisance, centre, steps []float64) (*morph, error) {
-	t0, err := nu.Templates(ctx, centre)
+	t0, slopes, err := nu.templatesAndSlopes(ctx, centre)
 	if err != nil {
 		return nil, err
+	}
+	slopeOf := map[int]*Templates{}
+	for i, j := range nu.slopeParams() {
+		slopeOf[j] = slopes[i]
 	}
 	mo := &morph{centre: append([]float64(nil), centre...), nb: like.nb, k: like.k, exact: t0}
 	mo.t0, mo.var0, err = like.rowsOf(t0)
@@ -282,6 +385,23 @@ func newMorph(ctx context.Context, like *Likelihood, nu *Nuisance, centre, steps
 		c := centre[j]
 		up, down := math.Min(c+d, p.Max), math.Max(c-d, p.Min)
 		mo.hi[j], mo.lo[j] = up-c, c-down
+		if ds, ok := slopeOf[j]; ok {
+			// The derivative itself: exact, as the templates are linear
+			// here. The fit still gets a side point (it scores them and
+			// searches from them), made from the derivative.
+			if mo.a[j], _, err = like.rowsOf(ds); err != nil {
+				return nil, err
+			}
+			mo.b[j] = make([]float64, len(mo.t0))
+			v := up
+			if mo.hi[j] == 0 {
+				v = down
+			}
+			vals := append([]float64(nil), centre...)
+			vals[j] = v
+			mo.sides = append(mo.sides, sidePoint{values: vals, tpl: stepped(t0, ds, v-c), derived: true})
+			continue
+		}
 		var fp, fm []float64
 		if mo.hi[j] > 0 {
 			if fp, err = mo.side(ctx, like, nu, centre, j, up); err != nil {

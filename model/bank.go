@@ -200,6 +200,13 @@ type ObserveOptions struct {
 	// change of the disk's heating is re-observed without new stars. It
 	// must be ≥ 0 and finite, and the same for every worker.
 	Weight func(bin int, absZPc float64) float64
+	// BandSlopes, when not empty, asks ObserveSlopes for the derivatives
+	// of the counts in these nodes' values of obs's search completeness
+	// (indices into spots.SearchCompleteness.RossbyBands, which obs must
+	// set). Counts are linear in each node, so a derivative is exact and
+	// holds wherever the node is: one pass gives what a re-observation per
+	// node would by differences.
+	BandSlopes []int
 }
 
 // Observe returns, for every age bin k and grid bin i, the expected number
@@ -229,25 +236,53 @@ type ObserveOptions struct {
 // from above. Age bins are processed whole by one worker each: the sums do
 // not depend on the number of workers.
 func (b *Bank) Observe(ctx context.Context, obs *Population, g Grid, opts ObserveOptions) (counts, vars []float64, err error) {
+	if len(opts.BandSlopes) > 0 {
+		return nil, nil, errors.New("model: Bank.Observe returns no derivatives; ObserveSlopes does")
+	}
+	counts, vars, _, err = b.ObserveSlopes(ctx, obs, g, opts)
+	return counts, vars, err
+}
+
+// ObserveSlopes is Observe that also returns, from the same pass,
+// slopes[i] = ∂counts/∂RossbyBands[opts.BandSlopes[i]] (k-major, as
+// counts). A completeness without RossbyBands is differentiated about
+// bands of 1 at every node (the same counts, but for stars without a
+// turnover time, which the bands then lose).
+func (b *Bank) ObserveSlopes(ctx context.Context, obs *Population, g Grid, opts ObserveOptions) (counts, vars []float64, slopes [][]float64, err error) {
 	if obs == nil || obs.Law == nil || !obs.Turnover.Valid() || obs.Relations == nil {
-		return nil, nil, errors.New("model: Bank.Observe needs a population with a law, a turnover time and relations")
+		return nil, nil, nil, errors.New("model: Bank.Observe needs a population with a law, a turnover time and relations")
 	}
 	for _, ax := range [][]float64{g.ColorEdges, g.LogPeriodEdges, g.HeightEdgesPc} {
 		if len(ax) < 2 {
-			return nil, nil, errors.New("model: Bank.Observe needs at least two edges on every grid axis")
+			return nil, nil, nil, errors.New("model: Bank.Observe needs at least two edges on every grid axis")
 		}
 	}
 	if err := obs.Survey.Color.Validate(); err != nil {
-		return nil, nil, err
+		return nil, nil, nil, err
 	}
 	if err := obs.Survey.Recovery.Validate(); err != nil {
-		return nil, nil, err
+		return nil, nil, nil, err
 	}
 	if err := obs.Survey.Search.Validate(); err != nil {
-		return nil, nil, err
+		return nil, nil, nil, err
+	}
+	for _, node := range opts.BandSlopes {
+		if n := len(spots.RossbyNodesD); node < 0 || node >= n {
+			return nil, nil, nil, fmt.Errorf("model: a derivative in search-efficiency node %d asked; the nodes are 0 to %d", node, n-1)
+		}
+	}
+	if len(opts.BandSlopes) > 0 && len(obs.Survey.Search.RossbyBands) == 0 {
+		// No band factor is a factor of 1 at every node: the derivatives
+		// are taken about that.
+		o := *obs
+		o.Survey.Search.RossbyBands = make([]float64, len(spots.RossbyNodesD))
+		for i := range o.Survey.Search.RossbyBands {
+			o.Survey.Search.RossbyBands[i] = 1
+		}
+		obs = &o
 	}
 	if err := b.covers(obs); err != nil {
-		return nil, nil, err
+		return nil, nil, nil, err
 	}
 	workers := opts.Workers
 	if workers <= 0 {
@@ -257,6 +292,10 @@ func (b *Bank) Observe(ctx context.Context, obs *Population, g Grid, opts Observ
 	nk, nb := b.NumAgeBins(), g.NumBins()
 	counts = make([]float64, nk*nb)
 	vars = make([]float64, nk*nb)
+	slopes = make([][]float64, len(opts.BandSlopes))
+	for i := range slopes {
+		slopes[i] = make([]float64, nk*nb)
+	}
 	var next atomic.Int64
 	var wg sync.WaitGroup
 	panics := workerpanic.New(nil)
@@ -269,6 +308,10 @@ func (b *Bank) Observe(ctx context.Context, obs *Population, g Grid, opts Observ
 			lawR, spotR := rand.New(&lawSrc), rand.New(&spotSrc)
 			fine := make([]float64, ob.nC*ob.nZ*ob.nF)
 			fineVar := make([]float64, len(fine))
+			fineSlopes := make([][]float64, len(slopes))
+			for i := range fineSlopes {
+				fineSlopes[i] = make([]float64, len(fine))
+			}
 			for {
 				k := int(next.Add(1) - 1)
 				if k >= nk || ctx.Err() != nil {
@@ -276,17 +319,23 @@ func (b *Bank) Observe(ctx context.Context, obs *Population, g Grid, opts Observ
 				}
 				clear(fine)
 				clear(fineVar)
-				ob.bin(k, fine, fineVar, &lawSrc, &spotSrc, lawR, spotR)
+				for _, fs := range fineSlopes {
+					clear(fs)
+				}
+				ob.bin(k, fine, fineVar, fineSlopes, &lawSrc, &spotSrc, lawR, spotR)
 				ob.spread(fine, fineVar, counts[k*nb:(k+1)*nb], vars[k*nb:(k+1)*nb])
+				for i, fs := range fineSlopes {
+					ob.spread(fs, nil, slopes[i][k*nb:(k+1)*nb], nil)
+				}
 			}
 		}()
 	}
 	wg.Wait()
 	panics.Repanic()
 	if err := ctx.Err(); err != nil {
-		return nil, nil, err
+		return nil, nil, nil, err
 	}
-	return counts, vars, nil
+	return counts, vars, slopes, nil
 }
 
 // covers reports cuts or a color calibration of obs that would need stars
@@ -329,6 +378,7 @@ type observer struct {
 	sameNoise  bool // the survey noise is the bank's: read the stored noise
 	baseScale  float64
 	weight     func(bin int, absZPc float64) float64 // ObserveOptions.Weight
+	slopeNodes []int                                 // ObserveOptions.BandSlopes
 	nC, nP, nZ int
 	// The fine grid: nF bins of fineStepDex from fineLo (log10 days).
 	nF     int
@@ -347,7 +397,7 @@ func newObserver(b *Bank, obs *Population, g Grid, opts ObserveOptions) *observe
 	ob := &observer{
 		bank: b, obs: obs, g: g, cuts: cuts, recut: b.Margin != BankMargin{},
 		sameNoise: obs.Survey.Detect.Noise == b.Noise && b.NoisePpm != nil,
-		baseScale: opts.BaseFractionScale, weight: opts.Weight,
+		baseScale: opts.BaseFractionScale, weight: opts.Weight, slopeNodes: opts.BandSlopes,
 		nC: len(g.ColorEdges) - 1, nP: len(g.LogPeriodEdges) - 1, nZ: len(g.HeightEdgesPc) - 1,
 	}
 	rec := obs.Survey.Recovery
@@ -419,7 +469,11 @@ func newObserver(b *Bank, obs *Population, g Grid, opts ObserveOptions) *observe
 // bin places the stars of age bin k on the fine grid of each (color,
 // height) column: fine[(c·nZ + z)·nF + f], and their squared weights in
 // fineVar.
-func (ob *observer) bin(k int, fine, fineVar []float64, lawSrc, spotSrc *rand.PCG, lawR, spotR *rand.Rand) {
+//
+// fineSlopes, one per node of ob.slopeNodes, receive each star's
+// derivative in that node's value: its weight without the band factor
+// times its interpolation weight on the node.
+func (ob *observer) bin(k int, fine, fineVar []float64, fineSlopes [][]float64, lawSrc, spotSrc *rand.PCG, lawR, spotR *rand.Rand) {
 	b, p := ob.bank, ob.obs
 	scale := p.Binaries.FractionScale
 	reweight := scale != ob.baseScale && ob.baseScale > 0
@@ -468,10 +522,12 @@ func (ob *observer) bin(k int, fine, fineVar []float64, lawSrc, spotSrc *rand.PC
 			noise = p.Survey.Detect.Noise.PpmPerCadence(float64(b.AppMag[s]))
 		}
 		rot := p.rotate(st, comp, noise, lawR, spotR)
-		if !rot.ok || !(rot.prob > 0) {
+		// A star no node value could make detectable adds nothing to any
+		// derivative either; one with a zero band factor can still add
+		// to them.
+		if !rot.ok || !(rot.prob > 0 || len(fineSlopes) > 0 && rot.preSearch > 0) {
 			continue
 		}
-		w := weight * rot.prob
 		u := (math.Log10(rot.periodD) - ob.fineLo) * inv
 		if !(u >= 0) || u >= float64(ob.nF-1) {
 			continue // too far outside the grid to reach it
@@ -479,6 +535,13 @@ func (ob *observer) bin(k int, fine, fineVar []float64, lawSrc, spotSrc *rand.PC
 		i0 := int(u)
 		frac := u - float64(i0)
 		base := (c*ob.nZ+z)*ob.nF + i0
+		if len(fineSlopes) > 0 {
+			ob.addSlopes(fineSlopes, base, frac, weight*rot.preSearch, rot.periodD, rot.tauRatio)
+		}
+		w := weight * rot.prob
+		if !(w > 0) {
+			continue
+		}
 		fine[base] += w * (1 - frac)
 		fine[base+1] += w * frac
 		w2 := w * w
@@ -487,16 +550,53 @@ func (ob *observer) bin(k int, fine, fineVar []float64, lawSrc, spotSrc *rand.PC
 	}
 }
 
+// addSlopes adds a star of weight w before the search's factor, placed
+// at fine bin base with weight frac on the next, to the derivatives in
+// the nodes ob.slopeNodes.
+func (ob *observer) addSlopes(fineSlopes [][]float64, base int, frac, w, periodD, tauRatio float64) {
+	rest, k, f, banded := ob.obs.Survey.Search.SplitBands(periodD, tauRatio)
+	if !banded || !(rest > 0) {
+		return
+	}
+	w *= rest
+	for i, node := range ob.slopeNodes {
+		var phi float64 // the star's interpolation weight on node
+		switch node {
+		case k:
+			phi = 1 - f
+		case k + 1:
+			phi = f
+		default:
+			continue
+		}
+		if phi == 0 {
+			continue
+		}
+		fineSlopes[i][base] += w * phi * (1 - frac)
+		fineSlopes[i][base+1] += w * phi * frac
+	}
+}
+
 // spread maps one age bin's fine columns onto the period bins through the
-// recovery kernel, into that bin's counts and variances.
+// recovery kernel, into that bin's counts and variances (fineVar and vr
+// nil: counts only).
 func (ob *observer) spread(fine, fineVar, cnt, vr []float64) {
 	for c := range ob.nC {
 		for z := range ob.nZ {
 			col := fine[(c*ob.nZ+z)*ob.nF : (c*ob.nZ+z+1)*ob.nF]
-			colVar := fineVar[(c*ob.nZ+z)*ob.nF : (c*ob.nZ+z+1)*ob.nF]
+			var colVar []float64 // nil for a derivative: no variance
+			if fineVar != nil {
+				colVar = fineVar[(c*ob.nZ+z)*ob.nF : (c*ob.nZ+z+1)*ob.nF]
+			}
 			base := c * ob.nP * ob.nZ
 			for f, h := range col {
 				if h == 0 {
+					continue
+				}
+				if colVar == nil {
+					for _, e := range ob.kernel[f] {
+						cnt[base+e.p*ob.nZ+z] += h * e.w
+					}
 					continue
 				}
 				hv := colVar[f]

@@ -341,3 +341,59 @@ func TestBankObserveRossbyBands(t *testing.T) {
 	}
 	assert.Greater(t, moved, 1.0, "the 24 d node changes the templates")
 }
+
+// The derivatives in search-efficiency nodes from one pass are the
+// differences of two re-observations (the counts are linear in a node, so
+// the difference quotient is exact up to rounding), including for a node
+// at 0, where stars the band factor empties still carry a derivative (the
+// 48 d node's holds only such stars: this bank has none beyond 48 d); the
+// counts themselves are Observe's.
+func TestBankObserveSlopes(t *testing.T) {
+	p := testPopulation(t, 4)
+	g := bankGrid()
+	_, bank := randomTemplatesAndBank(t, p, g, 300_000, BankMargin{})
+	centre := []float64{1, 1, 0.7, 0, 0, 0} // stars between 24 and 48 d count for nothing but node 4's derivative
+	with := func(bands []float64) *Population {
+		r := *p
+		r.Survey.Search = spots.SearchCompleteness{RossbyBands: bands, TurnoverPower: 1}
+		return &r
+	}
+	ctx := context.Background()
+	nodes := []int{1, 3, 4}
+	counts, vars, slopes, err := bank.ObserveSlopes(ctx, with(centre), g, ObserveOptions{BaseFractionScale: 1, BandSlopes: nodes})
+	require.NoError(t, err)
+	plain, plainVar, err := bank.Observe(ctx, with(centre), g, ObserveOptions{BaseFractionScale: 1})
+	require.NoError(t, err)
+	assert.Equal(t, plain, counts)
+	assert.Equal(t, plainVar, vars)
+	require.Len(t, slopes, len(nodes))
+	for i, node := range nodes {
+		moved := append([]float64(nil), centre...)
+		const d = 0.25
+		if moved[node] += d; moved[node] > 1 {
+			moved[node] -= 2 * d
+		}
+		other, _, err := bank.Observe(ctx, with(moved), g, ObserveOptions{BaseFractionScale: 1})
+		require.NoError(t, err)
+		var total float64
+		for b := range counts {
+			want := (other[b] - counts[b]) / (moved[node] - centre[node])
+			assert.InDelta(t, want, slopes[i][b], 1e-9*(1+math.Abs(want)), "node %d, bin %d", node, b)
+			total += slopes[i][b]
+		}
+		assert.Greater(t, total, 1.0, "node %d's derivative holds stars", node)
+	}
+
+	// A survey without the band factor is differentiated about bands of 1.
+	ones := []float64{1, 1, 1, 1, 1, 1}
+	_, _, atOnes, err := bank.ObserveSlopes(ctx, with(ones), g, ObserveOptions{BaseFractionScale: 1, BandSlopes: nodes})
+	require.NoError(t, err)
+	_, _, lossless, err := bank.ObserveSlopes(ctx, with(nil), g, ObserveOptions{BaseFractionScale: 1, BandSlopes: nodes})
+	require.NoError(t, err)
+	assert.Equal(t, atOnes, lossless)
+
+	_, _, _, err = bank.ObserveSlopes(ctx, with(centre), g, ObserveOptions{BandSlopes: []int{6}})
+	assert.ErrorContains(t, err, "node 6")
+	_, _, err = bank.Observe(ctx, with(centre), g, ObserveOptions{BandSlopes: []int{1}})
+	assert.ErrorContains(t, err, "ObserveSlopes")
+}

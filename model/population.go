@@ -409,8 +409,12 @@ func (p *Population) star(c *Chunk, i int, r *rand.Rand) {
 // passes the photometric cuts.
 type rotation struct {
 	periodD, rossby, ampPpm, prob float64
-	locked                        bool // a tidally locked binary: the period is the orbit's
-	ok                            bool // false outside the law's calibrated range: no period
+	// preSearch is prob before the search completeness's factor, and
+	// tauRatio the τ_c/τ_c☉ that factor read (NaN when not read): what
+	// Bank's node derivatives need to split that factor.
+	preSearch, tauRatio float64
+	locked              bool // a tidally locked binary: the period is the orbit's
+	ok                  bool // false outside the law's calibrated range: no period
 }
 
 // rotate gives star s (with a companion of comp solar masses, 0 if
@@ -434,7 +438,12 @@ func (p *Population) rotate(s spin.Star, comp, noisePpm float64, lawR, spotR *ra
 	if !ok {
 		return rot
 	}
-	rot.rossby, _ = p.Turnover.Rossby(per, s)
+	// τ_c once: the Rossby number and the search completeness read it.
+	tau, tauOK := p.Turnover.Days(s)
+	rot.rossby = math.NaN()
+	if tauOK && per > 0 {
+		rot.rossby = per / tau // as TurnoverTime.Rossby
+	}
 	rot.prob, rot.ampPpm = 1, math.NaN()
 	if p.Spots != nil {
 		// A star outside the turnover-time fit has no Rossby number; its
@@ -446,14 +455,12 @@ func (p *Population) rotate(s spin.Star, comp, noisePpm float64, lawR, spotR *ra
 		// hold it (Nyquist at the short end, MinCycles at the long end).
 		rot.prob = 0
 	}
+	rot.preSearch, rot.tauRatio = rot.prob, math.NaN()
 	if p.Survey.Search.Enabled() && rot.prob > 0 {
-		tauRatio := math.NaN()
-		if p.Survey.Search.NeedsTurnover() {
-			if tau, ok := p.Turnover.Days(s); ok {
-				tauRatio = tau / p.Turnover.Solar()
-			}
+		if p.Survey.Search.NeedsTurnover() && tauOK {
+			rot.tauRatio = tau / p.Turnover.Solar()
 		}
-		rot.prob *= p.Survey.Search.Efficiency(per, tauRatio)
+		rot.prob *= p.Survey.Search.Efficiency(per, rot.tauRatio)
 	}
 	return rot
 }

@@ -60,3 +60,56 @@ func BenchmarkBurstTestDemo200(b *testing.B) {
 		}
 	}
 }
+
+// BenchmarkObserveDemo times one re-observation of the demo's bank at a
+// search loss (the 24 d node at 0.875, as at a fit's side point): what
+// every set of templates a joint fit makes costs.
+func BenchmarkObserveDemo(b *testing.B) {
+	c := demoComparison(b)
+	v := lossyDemoValues(b, c)
+	for b.Loop() {
+		if _, err := c.Nuisance.Source.Observe(context.Background(), v); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+// BenchmarkObserveDemoWithSlopes is BenchmarkObserveDemo that also makes
+// the derivatives in the five free search-efficiency nodes (the pass a
+// fit's expansion makes at each centre).
+func BenchmarkObserveDemoWithSlopes(b *testing.B) {
+	c := demoComparison(b)
+	v := lossyDemoValues(b, c)
+	so, ok := c.Nuisance.Source.(compare.SlopeObserver)
+	if !ok {
+		b.Fatal("the demo's source of templates gives no derivatives")
+	}
+	var params []int
+	for j := range v {
+		if so.Slopes(j) {
+			params = append(params, j)
+		}
+	}
+	if len(params) != 5 {
+		b.Fatalf("%d parameters with derivatives; example:fit frees five nodes", len(params))
+	}
+	for b.Loop() {
+		if _, _, err := so.ObserveSlopes(context.Background(), v, params); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+// lossyDemoValues returns the demo's nuisance values with the 24 d node
+// of the search loss at 0.875.
+func lossyDemoValues(b *testing.B, c *Comparison) []float64 {
+	v := c.Nuisance.Nominal()
+	for j, name := range c.Nuisance.Names() {
+		if name == "survey.search_by_rossby.efficiency_24d" {
+			v[j] = 0.875
+			return v
+		}
+	}
+	b.Fatal("example:fit does not free the 24 d node")
+	return nil
+}

@@ -453,6 +453,18 @@ func (c *Comparison) setNuisance(ctx context.Context, params []compare.NuisanceP
 			}
 			return assemble.ObservingPopulation(s2, base)
 		}}
+	// The search loss's nodes: their derivatives come with the templates.
+	for j, p := range params {
+		if node, ok := scenarios.SearchNode(p.Name); ok {
+			if obs.SearchNodes == nil {
+				obs.SearchNodes = make([]int, len(params))
+				for i := range obs.SearchNodes {
+					obs.SearchNodes[i] = -1
+				}
+			}
+			obs.SearchNodes[j] = node
+		}
+	}
 	for _, p := range params {
 		if scenarios.IsPlacementPath(p.Name) {
 			// The disk's heating moves stars in height: the stored stars

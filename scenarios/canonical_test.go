@@ -1,6 +1,7 @@
 package scenarios
 
 import (
+	"fmt"
 	"regexp"
 	"sort"
 	"strings"
@@ -8,6 +9,8 @@ import (
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
+
+	"spinpop/model/spots"
 )
 
 func TestCanonicalRoundTrip(t *testing.T) {
@@ -265,9 +268,13 @@ func TestSearchByRossbyIdentity(t *testing.T) {
 	assert.Equal(t, []float64{1, 1, 1, 1, 0.5, 1}, back.Scenario.Survey.SearchByRossby.Values())
 	assert.False(t, IsLinearPath("survey.search_half_period_d"), "the logistic is not linear in its half period")
 	assert.False(t, IsLinearPath("survey.search_by_rossby.efficiency_7d"), "no such node")
-	for _, k := range searchByRossbyKeys {
+	for i, k := range searchByRossbyKeys {
 		assert.True(t, IsNuisancePath(&lossy.Scenario, "survey.search_by_rossby."+k), k)
 		assert.True(t, IsLinearPath("survey.search_by_rossby."+k), k)
+		node, ok := SearchNode("survey.search_by_rossby." + k)
+		assert.True(t, ok, k)
+		assert.Equal(t, i, node)
+		assert.Equal(t, k, fmt.Sprintf("efficiency_%gd", spots.RossbyNodesD[node]), "the key names its node's scaled period")
 		v, ok := ValueAt(&lossy.Scenario, "survey.search_by_rossby."+k)
 		assert.True(t, ok, k)
 		assert.Equal(t, map[bool]float64{true: 0.5, false: 1}[k == "efficiency_48d"], v, k)

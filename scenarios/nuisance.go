@@ -71,8 +71,24 @@ var placementKeys = map[string]bool{"disk.sigma_10gyr_kms": true, "disk.heating_
 // between). A fit's template expansion then needs one re-observation of
 // such a parameter, not two (compare.NuisanceParam.Linear).
 func IsLinearPath(path string) bool {
-	_, known := nuisanceKeys[path]
-	return known && strings.HasPrefix(path, "survey.search_by_rossby.")
+	_, ok := SearchNode(path)
+	return ok
+}
+
+// SearchNode returns the node of the free-form search loss a nuisance
+// path sets (its index in spots.RossbyNodesD), and false for any other
+// path.
+func SearchNode(path string) (int, bool) {
+	key, ok := strings.CutPrefix(path, "survey.search_by_rossby.")
+	if _, known := nuisanceKeys[path]; !known || !ok {
+		return 0, false
+	}
+	for i, k := range searchByRossbyKeys {
+		if k == key {
+			return i, true
+		}
+	}
+	return 0, false
 }
 
 // IsPlacementPath reports whether a nuisance path moves stars in height

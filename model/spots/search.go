@@ -93,13 +93,10 @@ func (s SearchCompleteness) Efficiency(periodD, tauRatio float64) float64 {
 	if !(periodD > 0) || (s.NeedsTurnover() && !(tauRatio > 0)) {
 		return 0
 	}
-	scale := 1.0 // (τ_c/τ_c☉)^TurnoverPower
-	if s.TurnoverPower != 0 {
-		scale = math.Exp(s.TurnoverPower * math.Log(tauRatio))
-	}
+	scale := s.scale(tauRatio)
 	eff := 1.0
 	if len(s.RossbyBands) > 0 {
-		eff = s.bandEfficiency(periodD / scale)
+		eff = s.bandEfficiency(BandNodes(periodD / scale))
 	}
 	if s.HalfPeriodD == 0 {
 		return eff
@@ -107,20 +104,68 @@ func (s SearchCompleteness) Efficiency(periodD, tauRatio float64) float64 {
 	return eff / (1 + math.Exp(s.Steepness*math.Log(periodD/(s.HalfPeriodD*scale))))
 }
 
-// bandEfficiency interpolates RossbyBands linearly in ln x at a
-// scaled period x, flat beyond the end nodes.
-func (s SearchCompleteness) bandEfficiency(x float64) float64 {
+// scale returns (τ_c/τ_c☉)^TurnoverPower for tauRatio = τ_c/τ_c☉.
+func (s SearchCompleteness) scale(tauRatio float64) float64 {
+	switch s.TurnoverPower {
+	case 0:
+		return 1
+	case 1:
+		return tauRatio // the default: spare an exp and a log per star
+	}
+	return math.Exp(s.TurnoverPower * math.Log(tauRatio))
+}
+
+// SplitBands returns the two parts of Efficiency: rest, everything but
+// the RossbyBands factor, and the nodes k, k+1 with the weight f of the
+// upper one, so that Efficiency = rest·((1−f)·RossbyBands[k] +
+// f·RossbyBands[k+1]) when bands are set. It is how templates get their
+// derivatives in each node's value from one pass over the stars: a star
+// adds rest·(1−f) to node k's and rest·f to node k+1's. bands is false
+// (and k, f unset) when no band factor applies — none is set, or rest is
+// already 0.
+func (s SearchCompleteness) SplitBands(periodD, tauRatio float64) (rest float64, k int, f float64, bands bool) {
+	if !s.Enabled() {
+		return 1, 0, 0, false
+	}
+	if !(periodD > 0) || (s.NeedsTurnover() && !(tauRatio > 0)) {
+		return 0, 0, 0, false
+	}
+	scale := s.scale(tauRatio)
+	rest = 1
+	if s.HalfPeriodD > 0 {
+		rest = 1 / (1 + math.Exp(s.Steepness*math.Log(periodD/(s.HalfPeriodD*scale))))
+	}
+	if len(s.RossbyBands) == 0 {
+		return rest, 0, 0, false
+	}
+	k, f = BandNodes(periodD / scale)
+	return rest, k, f, true
+}
+
+// bandEfficiency is RossbyBands interpolated at node k with weight f on
+// node k+1 (exactly the end node's value beyond the last).
+func (s SearchCompleteness) bandEfficiency(k int, f float64) float64 {
+	if f == 1 {
+		return s.RossbyBands[k+1]
+	}
+	return s.RossbyBands[k] + f*(s.RossbyBands[k+1]-s.RossbyBands[k])
+}
+
+// BandNodes returns where a scaled period x lies among RossbyNodesD: the
+// lower node k of the pair it lies between and its weight f ∈ [0, 1] on
+// node k+1, linear in ln x; flat beyond the end nodes (f = 0 at the first
+// pair's lower node, 1 at the last pair's upper node).
+func BandNodes(x float64) (k int, f float64) {
 	last := len(RossbyNodesD) - 1
 	switch {
 	case x <= RossbyNodesD[0]:
-		return s.RossbyBands[0]
+		return 0, 0
 	case x >= RossbyNodesD[last]:
-		return s.RossbyBands[last]
+		return last - 1, 1
 	}
-	k := 0
-	for x >= RossbyNodesD[k+1] {
-		k++
-	}
-	f := math.Log(x/RossbyNodesD[k]) / math.Log(RossbyNodesD[k+1]/RossbyNodesD[k])
-	return s.RossbyBands[k] + f*(s.RossbyBands[k+1]-s.RossbyBands[k])
+	// The nodes are 3·2^k d: one logarithm places x (this runs for every
+	// detected star of every re-observation).
+	u := math.Log(x/RossbyNodesD[0]) * (1 / math.Ln2)
+	k = min(int(u), last-1)
+	return k, min(u-float64(k), 1)
 }

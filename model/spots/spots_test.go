@@ -329,3 +329,31 @@ func TestSearchRossbyBands(t *testing.T) {
 		assert.Error(t, bad.Validate(), "%+v", bad)
 	}
 }
+
+// SplitBands takes the efficiency apart as its comment says: the
+// logistic's share and the two nodes' weights, worked by hand, and the
+// parts multiply back to Efficiency.
+func TestSearchSplitBands(t *testing.T) {
+	bands := []float64{1, 0.9, 0.8, 0.4, 0.1, 0}
+	both := SearchCompleteness{HalfPeriodD: 24, TurnoverPower: 1, Steepness: 6, RossbyBands: bands}
+	rest, k, f, ok := both.SplitBands(48*math.Sqrt2, 2)
+	require.True(t, ok)
+	assert.Equal(t, 3, k, "scaled period 24√2 d lies between the 24 d and 48 d nodes")
+	assert.InDelta(t, 0.5, f, 1e-12, "half-way in ln x")
+	assert.InDelta(t, 1/(1+math.Pow(math.Sqrt2, 6)), rest, 1e-12, "the logistic at √2 times its half point (48 d at ratio 2)")
+	for _, c := range []struct{ p, tau float64 }{{1, 1}, {5, 0.7}, {33, 1.3}, {70, 1}, {400, 2}} {
+		rest, k, f, ok := both.SplitBands(c.p, c.tau)
+		require.True(t, ok)
+		want := both.Efficiency(c.p, c.tau)
+		assert.InDelta(t, want, rest*((1-f)*bands[k]+f*bands[k+1]), 1e-14, "P %g d, τ ratio %g", c.p, c.tau)
+	}
+	k, f = BandNodes(2)
+	assert.Equal(t, []float64{0, 0}, []float64{float64(k), f}, "below the first node: all weight on it")
+	k, f = BandNodes(200)
+	assert.Equal(t, []float64{4, 1}, []float64{float64(k), f}, "beyond the last node: all weight on it")
+	_, _, _, ok = SearchCompleteness{HalfPeriodD: 24, Steepness: 6}.SplitBands(30, 1)
+	assert.False(t, ok, "no bands, no split")
+	rest, _, _, ok = both.SplitBands(30, math.NaN())
+	assert.False(t, ok)
+	assert.Equal(t, 0.0, rest, "no turnover time: nothing is detected")
+}
