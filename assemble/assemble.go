@@ -141,9 +141,7 @@ func observing(s *scenarios.Scenario, p *model.Population, law spin.Law) error {
 		return fmt.Errorf("survey: %w", err)
 	}
 	search := spots.SearchCompleteness{HalfPeriodD: s.Survey.SearchHalfD, TurnoverPower: s.Survey.SearchTauPower, Steepness: s.Survey.SearchSteepness}
-	if !s.Survey.SearchByRossby.Lossless() {
-		search.RossbyBands = s.Survey.SearchByRossby.Values()
-	}
+	search.RossbyBands = s.Survey.SearchBands()
 	if err := search.Validate(); err != nil {
 		return fmt.Errorf("survey: %w", err)
 	}

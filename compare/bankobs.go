@@ -4,6 +4,9 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"slices"
+
+	"gonum.org/v1/gonum/floats"
 
 	"spinpop/model"
 )
@@ -33,17 +36,20 @@ type BankObserver struct {
 	// Mask, when not nil, marks (color, period) cells left out of the
 	// comparison (Templates.ZeroCells), emptied in every set of templates.
 	Mask []bool
-	// SearchNodes, when not nil, gives for each nuisance parameter the
-	// node of the free-form search loss it sets
-	// (spots.SearchCompleteness.RossbyBands), or −1: the templates'
-	// derivatives in those come from the pass that makes the templates
-	// (ObserveSlopes).
-	SearchNodes []int
+	// SearchParams, when not nil, marks the nuisance parameters the
+	// free-form search loss's node efficiencies
+	// (spots.SearchCompleteness.RossbyBands) are linear in, and
+	// SearchGradient gives, at values, the derivative of every node's
+	// efficiency in parameter j: the templates' derivatives in those come
+	// from the pass that makes the templates (ObserveSlopes), by the chain
+	// rule through the nodes.
+	SearchParams   []bool
+	SearchGradient func(values []float64, j int) ([]float64, error)
 }
 
 // Slopes implements SlopeObserver.
 func (o *BankObserver) Slopes(j int) bool {
-	return j >= 0 && j < len(o.SearchNodes) && o.SearchNodes[j] >= 0
+	return j >= 0 && j < len(o.SearchParams) && o.SearchParams[j] && o.SearchGradient != nil
 }
 
 // Observe implements Observer.
@@ -61,13 +67,24 @@ func (o *BankObserver) ObserveSlopes(ctx context.Context, values []float64, para
 	if o.Bank.NumAgeBins() != len(o.AgeEdgesGyr)-1 {
 		return nil, nil, fmt.Errorf("compare: the bank has %d age bins, the age edges %d", o.Bank.NumAgeBins(), len(o.AgeEdgesGyr)-1)
 	}
-	nodes := make([]int, len(params))
+	grads := make([][]float64, len(params))
+	var nodes []int // the nodes any parameter's efficiency gradient reaches
 	for i, j := range params {
 		if !o.Slopes(j) {
 			return nil, nil, fmt.Errorf("compare: no derivative in nuisance parameter %d: it sets no search-efficiency node", j)
 		}
-		nodes[i] = o.SearchNodes[j]
+		g, err := o.SearchGradient(values, j)
+		if err != nil {
+			return nil, nil, err
+		}
+		grads[i] = g
+		for k, d := range g {
+			if d != 0 && !slices.Contains(nodes, k) {
+				nodes = append(nodes, k)
+			}
+		}
 	}
+	slices.Sort(nodes)
 	p, err := o.Apply(values)
 	if err != nil {
 		return nil, nil, err
@@ -84,9 +101,15 @@ func (o *BankObserver) ObserveSlopes(ctx context.Context, values []float64, para
 		return nil, nil, err
 	}
 	t := o.templates(counts, vars)
-	ds := make([]*Templates, len(slopes))
-	for i, s := range slopes {
-		ds[i] = o.templates(s, nil)
+	ds := make([]*Templates, len(params))
+	for i, g := range grads {
+		d := make([]float64, len(counts))
+		for q, k := range nodes {
+			if g[k] != 0 {
+				floats.AddScaled(d, g[k], slopes[q])
+			}
+		}
+		ds[i] = o.templates(d, nil)
 	}
 	return t, ds, nil
 }

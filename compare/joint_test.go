@@ -498,7 +498,12 @@ func TestFitJointSearchNodesFromSlopes(t *testing.T) {
 	for _, withSlopes := range []bool{false, true} {
 		o := obs
 		if withSlopes {
-			o.SearchNodes = []int{-1, 3, 4}
+			o.SearchParams = []bool{false, true, true}
+			o.SearchGradient = func(_ []float64, j int) ([]float64, error) {
+				g := make([]float64, 6)
+				g[j+2] = 1 // parameter 1 sets node 3 (24 d), 2 node 4 (48 d)
+				return g, nil
+			}
 		}
 		n := 0
 		nu := &Nuisance{Source: countingBank{&o, &n}, Params: params}
@@ -515,4 +520,76 @@ func TestFitJointSearchNodesFromSlopes(t *testing.T) {
 		assert.InDelta(t, trueNu[2], joint.Nuisance[2], 0.02, "48 d node")
 	}
 	assert.Less(t, passes[true], passes[false])
+}
+
+// The monotone form of the search loss: shares r24, r48 of the periods
+// kept from one node to the next, so that the efficiencies are 1, 1, 1,
+// r24, r24·r48, r24·r48 — linear in each share with the other held, not
+// jointly. The derivative in a share that ObserveSlopes makes by the
+// chain rule through the nodes equals the difference quotient of two
+// re-observations (exact, as the templates are linear in the share), at a
+// point where the other share is 0 too (a product without r_j, not ε/r_j);
+// and a joint fit on noise-free data recovers both shares and the burst.
+func TestFitJointSearchFalloffShares(t *testing.T) {
+	s := newJointSetup(t)
+	m := s.burstModel(t)
+	base := s.obs.Apply
+	o := *s.obs
+	o.Apply = func(v []float64) (*model.Population, error) {
+		p, err := base([]float64{v[0], 0})
+		if err != nil {
+			return nil, err
+		}
+		p.Survey.Search = spots.SearchCompleteness{TurnoverPower: 1, RossbyBands: []float64{1, 1, 1, v[1], v[1] * v[2], v[1] * v[2]}}
+		return p, nil
+	}
+	o.SearchParams = []bool{false, true, true}
+	o.SearchGradient = func(v []float64, j int) ([]float64, error) {
+		if j == 1 {
+			return []float64{0, 0, 0, 1, v[2], v[2]}, nil
+		}
+		return []float64{0, 0, 0, 0, v[1], v[1]}, nil
+	}
+	ctx := context.Background()
+	for _, at := range [][]float64{{0.78, 0.7, 0.4}, {0.78, 0.5, 0}, {0.78, 0, 0.6}} {
+		tpl, ds, err := o.ObserveSlopes(ctx, at, []int{1, 2})
+		require.NoError(t, err)
+		for q, j := range []int{1, 2} {
+			moved := append([]float64(nil), at...)
+			moved[j] += 0.25
+			t2, err := o.Observe(ctx, moved)
+			require.NoError(t, err)
+			var worst, scale float64
+			for i := range tpl.Counts {
+				fd := (t2.Counts[i] - tpl.Counts[i]) / 0.25
+				worst = math.Max(worst, math.Abs(fd-ds[q].Counts[i]))
+				scale = math.Max(scale, math.Abs(fd))
+			}
+			if at[1] == 0 && j == 2 {
+				// Nothing is kept beyond 24 d whatever the 48 d share.
+				assert.Zero(t, scale, "share %d at %v", j, at)
+				assert.Zero(t, worst, "share %d at %v", j, at)
+				continue
+			}
+			require.Positive(t, scale, "share %d at %v moves the templates", j, at)
+			assert.Less(t, worst, 1e-9*scale, "share %d at %v", j, at)
+		}
+	}
+
+	params := []NuisanceParam{
+		{Name: "spin.a", Nominal: 0.7725, Min: 0.6, Max: 0.95, Sigma: 0.05},
+		{Name: "kept_24d", Nominal: 1, Min: 0, Max: 1, Linear: true},
+		{Name: "kept_48d", Nominal: 1, Min: 0, Max: 1, Linear: true},
+	}
+	trueNu := []float64{0.82, 0.6, 0.5}
+	nu := &Nuisance{Source: &o, Params: params}
+	like, _, _ := s.asimovLikelihood(t, m, nu, trueNu)
+	joint, err := FitJoint(ctx, like, m, nu, FitOptions{Starts: 3})
+	require.NoError(t, err)
+	t.Logf("θ = %v, ν = %v, ln L = %.2f, rounds %d", joint.Theta, joint.Nuisance, joint.LogL, joint.Rounds)
+	assert.InDelta(t, 0.6, joint.Theta[0], 0.02, "burst age")
+	assert.InDelta(t, 0.2, joint.Theta[1], 0.02, "burst fraction")
+	assert.InDelta(t, trueNu[0], joint.Nuisance[0], 0.01, "coefficient a")
+	assert.InDelta(t, trueNu[1], joint.Nuisance[1], 0.02, "24 d share")
+	assert.InDelta(t, trueNu[2], joint.Nuisance[2], 0.03, "48 d share")
 }

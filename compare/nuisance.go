@@ -206,13 +206,30 @@ func (n *Nuisance) Templates(ctx context.Context, values []float64) (*Templates,
 	if err != nil {
 		return nil, fmt.Errorf("compare: templates at %s: %w", n.describe(values), err)
 	}
+	t, _ = n.store(key, t, nil)
+	return t, nil
+}
+
+// store keeps templates t (and derivatives ds, when not nil) made at the
+// values of key, returning the set to use: one already kept for key has
+// the same numbers, and others may hold it.
+func (n *Nuisance) store(key string, t *Templates, ds []*Templates) (*Templates, []*Templates) {
 	n.mu.Lock()
+	defer n.mu.Unlock()
 	if n.cache == nil {
 		n.cache = map[string]*Templates{}
 	}
+	if old, ok := n.cache[key]; ok {
+		t = old
+	}
 	n.cache[key] = t
-	n.mu.Unlock()
-	return t, nil
+	if ds != nil {
+		if n.slopes == nil {
+			n.slopes = map[string][]*Templates{}
+		}
+		n.slopes[key] = ds
+	}
+	return t, ds
 }
 
 // slopeParams returns the parameters whose template derivatives the
@@ -252,18 +269,7 @@ func (n *Nuisance) templatesAndSlopes(ctx context.Context, values []float64) (*T
 	if err != nil {
 		return nil, nil, fmt.Errorf("compare: templates and their derivatives at %s: %w", n.describe(values), err)
 	}
-	n.mu.Lock()
-	if n.cache == nil {
-		n.cache = map[string]*Templates{}
-	}
-	if n.slopes == nil {
-		n.slopes = map[string][]*Templates{}
-	}
-	if old, ok := n.cache[key]; ok {
-		t = old // the same numbers; keep the set others may hold
-	}
-	n.cache[key], n.slopes[key] = t, ds
-	n.mu.Unlock()
+	t, ds = n.store(key, t, ds)
 	return t, ds, nil
 }
 

@@ -453,17 +453,26 @@ func (c *Comparison) setNuisance(ctx context.Context, params []compare.NuisanceP
 			}
 			return assemble.ObservingPopulation(s2, base)
 		}}
-	// The search loss's nodes: their derivatives come with the templates.
+	// The search loss's nodes and shares: their derivatives come with the
+	// templates.
 	for j, p := range params {
-		if node, ok := scenarios.SearchNode(p.Name); ok {
-			if obs.SearchNodes == nil {
-				obs.SearchNodes = make([]int, len(params))
-				for i := range obs.SearchNodes {
-					obs.SearchNodes[i] = -1
-				}
+		if scenarios.IsLinearPath(p.Name) {
+			if obs.SearchParams == nil {
+				obs.SearchParams = make([]bool, len(params))
 			}
-			obs.SearchNodes[j] = node
+			obs.SearchParams[j] = true
 		}
+	}
+	obs.SearchGradient = func(values []float64, j int) ([]float64, error) {
+		s2, err := at(values)
+		if err != nil {
+			return nil, err
+		}
+		g, ok := scenarios.SearchGradient(s2, params[j].Name)
+		if !ok {
+			return nil, fmt.Errorf("nuisance parameter %s sets no node of the search loss", params[j].Name)
+		}
+		return g, nil
 	}
 	for _, p := range params {
 		if scenarios.IsPlacementPath(p.Name) {

@@ -111,6 +111,9 @@ func toTree(rv reflect.Value) map[string]any {
 		if rv.Interface().(Survey).SearchByRossby.Lossless() {
 			delete(out, "search_by_rossby")
 		}
+		if rv.Interface().(Survey).SearchFalloff.Lossless() {
+			delete(out, "search_falloff")
+		}
 	case reflect.TypeFor[FreeParam]():
 		// Likewise a free parameter without starting values: they change
 		// where a fit starts, and so the run only when given.

@@ -250,6 +250,53 @@ distance_max_pc = 900.0
 	assert.Contains(t, err.Error(), "c.toml:17: survey.field.cones[1].l_deg is missing; each cone needs b_deg, distance_max_pc, l_deg, radius_deg")
 }
 
+// The monotone search loss: the efficiency at a node is the product of the
+// shares kept up to it, times the node-by-node table's value; the table
+// left at 1 is not part of a scenario's identity; each share is a linear
+// nuisance path whose gradient is the nodes' difference quotient (exact:
+// each node is linear in each share), also where another share is 0.
+func TestSearchFalloff(t *testing.T) {
+	plain := loadMinimal(t, "")
+	atDefaults := loadMinimal(t, "[survey.search_falloff]\nkept_3d = 1.0\nkept_96d = 1.0\n")
+	assert.Equal(t, plain.Hash(), atDefaults.Hash())
+	assert.NotContains(t, string(plain.Canonical()), "search_falloff")
+	assert.Nil(t, plain.Scenario.Survey.SearchBands(), "no loss: no bands")
+
+	lossy := loadMinimal(t, "[survey.search_falloff]\nkept_12d = 0.5\nkept_48d = 0.4\n[survey.search_by_rossby]\nefficiency_96d = 0.5\n")
+	assert.NotEqual(t, plain.Hash(), lossy.Hash())
+	back, err := LoadBytes("back.toml", lossy.Canonical(), nil)
+	require.NoError(t, err)
+	assert.Equal(t, lossy.Hash(), back.Hash())
+	// By hand: 1, 1, 0.5, 0.5, 0.5·0.4, 0.5·0.4·0.5 (the table's 96 d node).
+	assert.InDeltaSlice(t, []float64{1, 1, 0.5, 0.5, 0.2, 0.1}, back.Scenario.Survey.SearchBands(), 1e-15)
+
+	_, err = LoadBytes("bad.toml", []byte(minimal+"\n[survey.search_falloff]\nkept_6d = 1.5\n"), nil)
+	require.Error(t, err)
+	assert.Contains(t, err.Error(), "survey.search_falloff.kept_6d")
+
+	for _, zeroAt := range []string{"", "kept_6d"} {
+		s := lossy.Scenario
+		if zeroAt != "" {
+			require.True(t, SetAt(&s, "survey.search_falloff."+zeroAt, 0))
+		}
+		for _, k := range searchFalloffKeys {
+			path := "survey.search_falloff." + k
+			assert.True(t, IsNuisancePath(&s, path), k)
+			assert.True(t, IsLinearPath(path), k)
+			g, ok := SearchGradient(&s, path)
+			require.True(t, ok, k)
+			v, _ := ValueAt(&s, path)
+			s2 := s
+			require.True(t, SetAt(&s2, path, v+0.25))
+			lo, hi := s.Survey.SearchBands(), s2.Survey.SearchBands()
+			for n := range g {
+				assert.InDelta(t, (hi[n]-lo[n])/0.25, g[n], 1e-12, "%s, node %d, zero at %q", k, n, zeroAt)
+			}
+		}
+	}
+	assert.False(t, IsLinearPath("survey.search_falloff.kept_7d"), "no such node")
+}
+
 // The free-form search loss is part of a scenario's identity only when it
 // loses something: written out at its defaults (every node 1) the
 // scenario hashes as one without the table, as every scenario did before
@@ -271,10 +318,12 @@ func TestSearchByRossbyIdentity(t *testing.T) {
 	for i, k := range searchByRossbyKeys {
 		assert.True(t, IsNuisancePath(&lossy.Scenario, "survey.search_by_rossby."+k), k)
 		assert.True(t, IsLinearPath("survey.search_by_rossby."+k), k)
-		node, ok := SearchNode("survey.search_by_rossby." + k)
+		g, ok := SearchGradient(&lossy.Scenario, "survey.search_by_rossby."+k)
 		assert.True(t, ok, k)
-		assert.Equal(t, i, node)
-		assert.Equal(t, k, fmt.Sprintf("efficiency_%gd", spots.RossbyNodesD[node]), "the key names its node's scaled period")
+		want := make([]float64, len(spots.RossbyNodesD))
+		want[i] = 1
+		assert.Equal(t, want, g, "%s sets its own node alone", k)
+		assert.Equal(t, k, fmt.Sprintf("efficiency_%gd", spots.RossbyNodesD[i]), "the key names its node's scaled period")
 		v, ok := ValueAt(&lossy.Scenario, "survey.search_by_rossby."+k)
 		assert.True(t, ok, k)
 		assert.Equal(t, map[bool]float64{true: 0.5, false: 1}[k == "efficiency_48d"], v, k)

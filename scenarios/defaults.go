@@ -98,6 +98,14 @@ efficiency_24d = 1.0
 efficiency_48d = 1.0
 efficiency_96d = 1.0
 
+[survey.search_falloff]
+kept_3d = 1.0
+kept_6d = 1.0
+kept_12d = 1.0
+kept_24d = 1.0
+kept_48d = 1.0
+kept_96d = 1.0
+
 [survey.field]
 kind = "cone"
 

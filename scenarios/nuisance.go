@@ -46,6 +46,12 @@ var nuisanceKeys = map[string]domain{
 	"survey.search_by_rossby.efficiency_24d": {lo: 0, hi: 1},
 	"survey.search_by_rossby.efficiency_48d": {lo: 0, hi: 1},
 	"survey.search_by_rossby.efficiency_96d": {lo: 0, hi: 1},
+	"survey.search_falloff.kept_3d":          {lo: 0, hi: 1},
+	"survey.search_falloff.kept_6d":          {lo: 0, hi: 1},
+	"survey.search_falloff.kept_12d":         {lo: 0, hi: 1},
+	"survey.search_falloff.kept_24d":         {lo: 0, hi: 1},
+	"survey.search_falloff.kept_48d":         {lo: 0, hi: 1},
+	"survey.search_falloff.kept_96d":         {lo: 0, hi: 1},
 	"survey.noise_floor_ppm":                 {lo: 0, hi: math.Inf(1)},
 	"survey.noise_ppm_at_ref_mag":            {lo: 0, hi: math.Inf(1), loOpen: true},
 	"survey.period_scatter_rel":              {lo: 0, hi: 0.999},
@@ -66,29 +72,72 @@ var nuisanceKeys = map[string]domain{
 var placementKeys = map[string]bool{"disk.sigma_10gyr_kms": true, "disk.heating_tau1_gyr": true, "disk.heating_beta": true}
 
 // IsLinearPath reports whether a catalog's expected counts are linear in
-// a nuisance path: the free-form search loss's nodes (a star counts with
-// its detection probability, which is linear in the two nodes it lies
-// between). A fit's template expansion then needs one re-observation of
-// such a parameter, not two (compare.NuisanceParam.Linear).
+// a nuisance path: the free-form search loss's nodes and shares (a star
+// counts with its detection probability, which is linear in the two nodes
+// it lies between, and each node's efficiency is linear in each share). A
+// fit's template expansion then needs one re-observation of such a
+// parameter, not two (compare.NuisanceParam.Linear), or none when the
+// derivative comes with the templates (SearchGradient).
 func IsLinearPath(path string) bool {
-	_, ok := SearchNode(path)
+	_, _, ok := searchKey(path)
 	return ok
 }
 
-// SearchNode returns the node of the free-form search loss a nuisance
-// path sets (its index in spots.RossbyNodesD), and false for any other
-// path.
-func SearchNode(path string) (int, bool) {
-	key, ok := strings.CutPrefix(path, "survey.search_by_rossby.")
-	if _, known := nuisanceKeys[path]; !known || !ok {
-		return 0, false
+// searchKey returns which table of the free-form search loss a path
+// names (falloff: [survey.search_falloff]) and its node.
+func searchKey(path string) (node int, falloff, ok bool) {
+	if _, known := nuisanceKeys[path]; !known {
+		return 0, false, false
 	}
-	for i, k := range searchByRossbyKeys {
-		if k == key {
-			return i, true
+	for _, t := range []struct {
+		prefix string
+		keys   []string
+	}{{"survey.search_by_rossby.", searchByRossbyKeys}, {"survey.search_falloff.", searchFalloffKeys}} {
+		key, ok := strings.CutPrefix(path, t.prefix)
+		if !ok {
+			continue
+		}
+		for i, k := range t.keys {
+			if k == key {
+				return i, t.prefix == "survey.search_falloff.", true
+			}
 		}
 	}
-	return 0, false
+	return 0, false, false
+}
+
+// SearchGradient returns, for a path IsLinearPath accepts, the derivative
+// of each node's efficiency (Survey.SearchBands, in node order) in the
+// path's value at s, and false for any other path. The templates'
+// derivative in the path is then Σ_k grad[k]·∂templates/∂(node k's
+// efficiency), which the template bank gives from one pass.
+func SearchGradient(s *Scenario, path string) ([]float64, bool) {
+	node, falloff, ok := searchKey(path)
+	if !ok {
+		return nil, false
+	}
+	e, r := s.Survey.SearchByRossby.Values(), s.Survey.SearchFalloff.Values()
+	grad := make([]float64, len(e))
+	if !falloff {
+		// ε_k = e_k·Π_{i≤k} r_i.
+		grad[node] = 1
+		for _, ri := range r[:node+1] {
+			grad[node] *= ri
+		}
+		return grad, true
+	}
+	// ∂ε_k/∂r_j = e_k·Π_{i≤k, i≠j} r_i for k ≥ j: the product without
+	// r_j, not ε_k/r_j, which r_j = 0 would leave undefined.
+	kept := 1.0
+	for k := range e {
+		if k != node {
+			kept *= r[k]
+		}
+		if k >= node {
+			grad[k] = e[k] * kept
+		}
+	}
+	return grad, true
 }
 
 // IsPlacementPath reports whether a nuisance path moves stars in height

@@ -160,6 +160,7 @@ type Survey struct {
 	SearchTauPower   float64        `toml:"search_turnover_power"` // that period ∝ τ_c^power (0: fixed period, 1: fixed Rossby number); default 1
 	SearchSteepness  float64        `toml:"search_steepness"`      // logistic slope of that loss in ln P; default 6
 	SearchByRossby   SearchByRossby `toml:"search_by_rossby"`      // a free-form loss against Rossby number; default none
+	SearchFalloff    SearchFalloff  `toml:"search_falloff"`        // the same loss, falling with period by construction; default none
 	ColorOffsetMag   float64        `toml:"color_offset_mag"`      // catalog B−V zero point relative to the model's; default 0
 	ColorScale       float64        `toml:"color_scale"`           // catalog B−V scale about B−V = 1 relative to the model's; default 1
 	PeriodScatterRel float64        `toml:"period_scatter_rel"`    // default 0.03
@@ -200,6 +201,62 @@ func (s SearchByRossby) Lossless() bool {
 		}
 	}
 	return true
+}
+
+// SearchFalloff is a free-form search loss at the nodes of SearchByRossby
+// that can only fall with period: KeptND is the share of the periods found
+// at the node before (N/2 d) that are still found at N d, and Kept3D the
+// share found at 3 d, so the efficiency at a node is the product of the
+// shares up to it. It multiplies SearchByRossby's efficiencies. A fit that
+// frees the nodes of SearchByRossby can bend the loss up again at long
+// periods, and so take up misfit that is no search loss (a dip at 48 d and
+// everything kept at 96 d); freeing these instead, each still in [0, 1],
+// keeps the loss one a period search makes: the longer the period, the
+// more is lost [common practice; injection-and-recovery tests of period
+// searches report completeness falling with period]. The templates are
+// still linear in each share (the others held). All 1 (the default): no
+// such loss, and not part of a scenario's identity.
+type SearchFalloff struct {
+	Kept3D  float64 `toml:"kept_3d"`  // default 1
+	Kept6D  float64 `toml:"kept_6d"`  // default 1
+	Kept12D float64 `toml:"kept_12d"` // default 1
+	Kept24D float64 `toml:"kept_24d"` // default 1
+	Kept48D float64 `toml:"kept_48d"` // default 1
+	Kept96D float64 `toml:"kept_96d"` // default 1
+}
+
+// searchFalloffKeys are SearchFalloff's keys in node order (as Values).
+var searchFalloffKeys = []string{"kept_3d", "kept_6d", "kept_12d", "kept_24d", "kept_48d", "kept_96d"}
+
+// Values returns the six shares in node order.
+func (s SearchFalloff) Values() []float64 {
+	return []float64{s.Kept3D, s.Kept6D, s.Kept12D, s.Kept24D, s.Kept48D, s.Kept96D}
+}
+
+// Lossless reports whether every share is 1.
+func (s SearchFalloff) Lossless() bool {
+	for _, e := range s.Values() {
+		if e != 1 {
+			return false
+		}
+	}
+	return true
+}
+
+// SearchBands returns the free-form search loss's efficiency at each node
+// (spots.RossbyNodesD): SearchByRossby's value times the product of
+// SearchFalloff's shares up to the node; nil when neither loses anything.
+func (sv Survey) SearchBands() []float64 {
+	if sv.SearchByRossby.Lossless() && sv.SearchFalloff.Lossless() {
+		return nil
+	}
+	out := sv.SearchByRossby.Values()
+	kept := 1.0
+	for k, r := range sv.SearchFalloff.Values() {
+		kept *= r
+		out[k] *= kept
+	}
+	return out
 }
 
 // Field is the survey footprint: a cone, an all-sky sphere or a list of

@@ -162,6 +162,9 @@ func (v *decoder) validateSurvey(sv *Survey) {
 	for i, e := range sv.SearchByRossby.Values() {
 		v.inRange(fmt.Sprintf("survey.search_by_rossby.%s", searchByRossbyKeys[i]), e, 0, true, 1, true, "1 keeps every period there")
 	}
+	for i, e := range sv.SearchFalloff.Values() {
+		v.inRange(fmt.Sprintf("survey.search_falloff.%s", searchFalloffKeys[i]), e, 0, true, 1, true, "a share of the periods found at the node before; 1 loses none")
+	}
 	v.inRange("survey.color_offset_mag", sv.ColorOffsetMag, -0.3, true, 0.3, true, "a zero-point difference, not a new color scale")
 	v.inRange("survey.color_scale", sv.ColorScale, 0.7, true, 1.3, true, "a small stretch of the color scale")
 	v.inRange("survey.period_scatter_rel", sv.PeriodScatterRel, 0, true, 1, false, "")
