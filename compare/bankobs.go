@@ -9,6 +9,7 @@ import (
 	"gonum.org/v1/gonum/floats"
 
 	"spinpop/model"
+	"spinpop/model/spots"
 )
 
 // BankObserver makes templates at nuisance values by re-observing the
@@ -76,6 +77,9 @@ func (o *BankObserver) ObserveSlopes(ctx context.Context, values []float64, para
 		g, err := o.SearchGradient(values, j)
 		if err != nil {
 			return nil, nil, err
+		}
+		if len(g) != len(spots.RossbyNodesD) {
+			return nil, nil, fmt.Errorf("compare: the search-efficiency gradient in nuisance parameter %d has %d entries; want one per node (%d)", j, len(g), len(spots.RossbyNodesD))
 		}
 		grads[i] = g
 		for k, d := range g {

@@ -160,7 +160,7 @@ type Survey struct {
 	SearchTauPower   float64        `toml:"search_turnover_power"` // that period ∝ τ_c^power (0: fixed period, 1: fixed Rossby number); default 1
 	SearchSteepness  float64        `toml:"search_steepness"`      // logistic slope of that loss in ln P; default 6
 	SearchByRossby   SearchByRossby `toml:"search_by_rossby"`      // a free-form loss against Rossby number; default none
-	SearchFalloff    SearchFalloff  `toml:"search_falloff"`        // the same loss, falling with period by construction; default none
+	SearchFalloff    SearchFalloff  `toml:"search_falloff"`        // the same nodes as shares kept from node to node: a loss that only grows with period; default none
 	ColorOffsetMag   float64        `toml:"color_offset_mag"`      // catalog B−V zero point relative to the model's; default 0
 	ColorScale       float64        `toml:"color_scale"`           // catalog B−V scale about B−V = 1 relative to the model's; default 1
 	PeriodScatterRel float64        `toml:"period_scatter_rel"`    // default 0.03
@@ -194,8 +194,11 @@ func (s SearchByRossby) Values() []float64 {
 }
 
 // Lossless reports whether every node keeps every period.
-func (s SearchByRossby) Lossless() bool {
-	for _, e := range s.Values() {
+func (s SearchByRossby) Lossless() bool { return allOne(s.Values()) }
+
+// allOne reports whether every value is 1.
+func allOne(v []float64) bool {
+	for _, e := range v {
 		if e != 1 {
 			return false
 		}
@@ -204,18 +207,19 @@ func (s SearchByRossby) Lossless() bool {
 }
 
 // SearchFalloff is a free-form search loss at the nodes of SearchByRossby
-// that can only fall with period: KeptND is the share of the periods found
-// at the node before (N/2 d) that are still found at N d, and Kept3D the
-// share found at 3 d, so the efficiency at a node is the product of the
-// shares up to it. It multiplies SearchByRossby's efficiencies. A fit that
-// frees the nodes of SearchByRossby can bend the loss up again at long
-// periods, and so take up misfit that is no search loss (a dip at 48 d and
-// everything kept at 96 d); freeing these instead, each still in [0, 1],
-// keeps the loss one a period search makes: the longer the period, the
-// more is lost [common practice; injection-and-recovery tests of period
-// searches report completeness falling with period]. The templates are
-// still linear in each share (the others held). All 1 (the default): no
-// such loss, and not part of a scenario's identity.
+// that can only grow with period (when SearchByRossby's efficiencies do
+// not rise with period themselves; left at 1 they do not): KeptND is the
+// share of the periods found at the node before (N/2 d) that are still
+// found at N d, and Kept3D the share found at 3 d, so the efficiency at a
+// node is the product of the shares up to it, times SearchByRossby's
+// value there. It is the form for a survey whose spot-amplitude detection
+// is trusted and whose period search's own loss, which grows with period
+// [common practice: injection-and-recovery tests of period searches], is
+// not known. Where the detection itself may be off, the free nodes of
+// SearchByRossby can also rise with period and correct it (on catalogs of
+// the independent model they do, and fit better). The templates are
+// linear in each share, the others held. All 1 (the default): no such
+// loss, and not part of a scenario's identity.
 type SearchFalloff struct {
 	Kept3D  float64 `toml:"kept_3d"`  // default 1
 	Kept6D  float64 `toml:"kept_6d"`  // default 1
@@ -234,14 +238,7 @@ func (s SearchFalloff) Values() []float64 {
 }
 
 // Lossless reports whether every share is 1.
-func (s SearchFalloff) Lossless() bool {
-	for _, e := range s.Values() {
-		if e != 1 {
-			return false
-		}
-	}
-	return true
-}
+func (s SearchFalloff) Lossless() bool { return allOne(s.Values()) }
 
 // SearchBands returns the free-form search loss's efficiency at each node
 // (spots.RossbyNodesD): SearchByRossby's value times the product of

@@ -163,7 +163,11 @@ func (v *decoder) validateSurvey(sv *Survey) {
 		v.inRange(fmt.Sprintf("survey.search_by_rossby.%s", searchByRossbyKeys[i]), e, 0, true, 1, true, "1 keeps every period there")
 	}
 	for i, e := range sv.SearchFalloff.Values() {
-		v.inRange(fmt.Sprintf("survey.search_falloff.%s", searchFalloffKeys[i]), e, 0, true, 1, true, "a share of the periods found at the node before; 1 loses none")
+		hint := "the share of the periods found at the node before still found here; 1 loses none"
+		if i == 0 {
+			hint = "the share of the periods found at 3 d; 1 loses none"
+		}
+		v.inRange(fmt.Sprintf("survey.search_falloff.%s", searchFalloffKeys[i]), e, 0, true, 1, true, hint)
 	}
 	v.inRange("survey.color_offset_mag", sv.ColorOffsetMag, -0.3, true, 0.3, true, "a zero-point difference, not a new color scale")
 	v.inRange("survey.color_scale", sv.ColorScale, 0.7, true, 1.3, true, "a small stretch of the color scale")
