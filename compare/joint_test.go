@@ -593,3 +593,39 @@ func TestFitJointSearchFalloffShares(t *testing.T) {
 	assert.InDelta(t, trueNu[1], joint.Nuisance[1], 0.02, "24 d share")
 	assert.InDelta(t, trueNu[2], joint.Nuisance[2], 0.03, "48 d share")
 }
+
+// valuesObserver makes templates whose counts are the values themselves,
+// counting its calls.
+type valuesObserver struct{ calls *int }
+
+func (o valuesObserver) Observe(_ context.Context, v []float64) (*Templates, error) {
+	*o.calls++
+	return &Templates{Counts: append([]float64(nil), v...)}, nil
+}
+
+// A Nuisance keeps at most maxCachedSets sets of templates, dropping the
+// oldest: a burst test over many catalogs once grew past the machine's
+// 24 GB keeping every point it scored. A recent point is served from the
+// cache; a dropped one is made again, to the same numbers.
+func TestNuisanceCacheBounded(t *testing.T) {
+	calls := 0
+	nu := &Nuisance{Source: valuesObserver{&calls}, Params: []NuisanceParam{{Name: "x", Min: 0, Max: 1000}}}
+	ctx := context.Background()
+	const n = 3 * maxCachedSets
+	for i := range n {
+		_, err := nu.Templates(ctx, []float64{float64(i)})
+		require.NoError(t, err)
+	}
+	require.Equal(t, n, calls)
+	assert.LessOrEqual(t, len(nu.cache), maxCachedSets)
+	assert.Len(t, nu.order, len(nu.cache))
+	recent, err := nu.Templates(ctx, []float64{float64(n - 1)})
+	require.NoError(t, err)
+	assert.Equal(t, n, calls, "the last point is kept")
+	assert.Equal(t, []float64{float64(n - 1)}, recent.Counts)
+	first, err := nu.Templates(ctx, []float64{0})
+	require.NoError(t, err)
+	assert.Equal(t, n+1, calls, "the first point was dropped and is made again")
+	assert.Equal(t, []float64{0}, first.Counts)
+	assert.LessOrEqual(t, len(nu.cache), maxCachedSets)
+}

@@ -114,7 +114,15 @@ type Nuisance struct {
 	mu     sync.Mutex
 	cache  map[string]*Templates
 	slopes map[string][]*Templates // derivatives (slopeParams' order) by values
+	order  []string                // cache's keys, oldest first
 }
+
+// maxCachedSets bounds the sets of templates a Nuisance keeps (the
+// oldest go first). A fit asks again only for points of its last round or
+// two, and each set is megabytes: a burst test over many catalogs that kept
+// every point it ever scored grew past 24 GB. Templates dropped are made
+// again, to the same numbers, if asked for.
+const maxCachedSets = 48
 
 // Validate checks the parameters.
 func (n *Nuisance) Validate() error {
@@ -221,6 +229,13 @@ func (n *Nuisance) store(key string, t *Templates, ds []*Templates) (*Templates,
 	}
 	if old, ok := n.cache[key]; ok {
 		t = old
+	} else {
+		n.order = append(n.order, key)
+		for len(n.order) > maxCachedSets {
+			delete(n.cache, n.order[0])
+			delete(n.slopes, n.order[0])
+			n.order = n.order[1:]
+		}
 	}
 	n.cache[key] = t
 	if ds != nil {
@@ -277,7 +292,7 @@ func (n *Nuisance) templatesAndSlopes(ctx context.Context, values []float64) (*T
 // fit from scratch).
 func (n *Nuisance) ResetCache() {
 	n.mu.Lock()
-	n.cache, n.slopes = nil, nil
+	n.cache, n.slopes, n.order = nil, nil, nil
 	n.mu.Unlock()
 }
 
