@@ -52,6 +52,8 @@ type AltFit struct {
 	LogEvidence    float64  `json:"log_evidence"`
 	EvidenceParams []string `json:"evidence_params"`
 	HasEvidence    bool     `json:"has_evidence"`
+	// Strains are the nuisance parameters this fit strains (Strains).
+	Strains []Strain `json:"-"`
 }
 
 // PairTest compares two alternatives by their likelihood ratio
@@ -128,7 +130,8 @@ func CompareAlternatives(ctx context.Context, alts []Alternative, opts AltOption
 			return nil, fmt.Errorf("compare: fit of %q: %w", a.Name, err)
 		}
 		k := a.History.Dim() + a.Nuisance.Dim() + a.Like.NumScales()
-		af := AltFit{Name: a.Name, Fit: f, K: k, LogL: f.LogL, AIC: stats.AIC(f.LogL, k), BIC: stats.BIC(f.LogL, k, res.N), LogEvidence: math.NaN()}
+		af := AltFit{Name: a.Name, Fit: f, K: k, LogL: f.LogL, AIC: stats.AIC(f.LogL, k), BIC: stats.BIC(f.LogL, k, res.N), LogEvidence: math.NaN(),
+			Strains: Strains(f, a.Nuisance)}
 		if data[h], err = fitDeviance(a.Like, f, regs); err != nil {
 			return nil, err
 		}

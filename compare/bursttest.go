@@ -112,6 +112,10 @@ type BurstResult struct {
 	// does not, and the ratio is divided by the dispersion).
 	Calibration string
 
+	// Strains are the nuisance parameters the with-burst fit strains
+	// (Strains): a verdict that claims a burst says so.
+	Strains []Strain
+
 	Strength string // "strong", "moderate", "weak", "none" or "unreliable"
 	// StrengthReason says, for "unreliable", why no verdict is given.
 	StrengthReason string
@@ -252,6 +256,7 @@ func BurstTest(ctx context.Context, like *Likelihood, smooth, burst HistoryModel
 		}
 		res.setAgeInterval(iv, opts.AgeCalibration)
 	}
+	res.Strains = Strains(f1, nu)
 	res.Strength, res.StrengthReason, res.Calibration, res.Verdict = verdict(res)
 	return res, nil
 }

@@ -91,6 +91,13 @@ func verdict(r *BurstResult) (strength, reason, calibration, text string) {
 	default:
 		sentence = fmt.Sprintf("no evidence for a burst: the best burst%s improves the fit (%s) no more than smooth-history mocks do by chance (%s).", at, dl, pText)
 	}
+	if strength != "none" && len(r.Strains) > 0 {
+		names := make([]string, len(r.Strains))
+		for i, s := range r.Strains {
+			names[i] = s.Name
+		}
+		sentence += fmt.Sprintf(" Caution: the fit strains %s (see the warnings), so the burst's age may be biased beyond its interval.", strings.Join(names, ", "))
+	}
 	if !adequate {
 		return strength, "", calibration, fmt.Sprintf("The models do not describe the catalog fully: %s. Judged against that misfit (quasi-likelihood), %s", misfit, sentence)
 	}

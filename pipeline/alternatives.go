@@ -85,7 +85,8 @@ func (o *AlternativesOutcome) Report(outputs []string) map[string]any {
 		c := o.Comparisons[i]
 		fits[i] = map[string]any{"name": f.Name, "scenario": c.Source, "scenario_sha256": c.Resolved.Hash(), "fit": FitReport(f.Fit),
 			"log_l": Finite(f.LogL), "k": f.K, "aic": Finite(f.AIC), "bic": Finite(f.BIC), "adequacy": AdequacyReport(f.Adequacy),
-			"log_evidence": Finite(f.LogEvidence), "evidence_params": f.EvidenceParams, "has_evidence": f.HasEvidence}
+			"log_evidence": Finite(f.LogEvidence), "evidence_params": f.EvidenceParams, "has_evidence": f.HasEvidence,
+			"nuisance_strains": StrainsReport(f.Strains)}
 	}
 	pairs := make([]map[string]any, len(r.Pairs))
 	for i, p := range r.Pairs {

@@ -95,9 +95,9 @@ func (r *BurstOutcome) Report(c *Comparison, outputs []string) map[string]any {
 		"strength": t.Strength, "strength_reason": t.StrengthReason, "calibration": t.Calibration, "verdict": t.Verdict,
 		"adequacy_smooth": AdequacyReport(t.AdequacySmooth), "adequacy_burst": AdequacyReport(t.AdequacyBurst),
 		"dispersion": Finite(t.Dispersion), "p_value_quasi": Finite(t.PValueQuasi),
-		"nuisance_params": c.Nuisance.Names(),
-		"height_check":    HeightReport(r.Heights),
-		"outputs":         outputs,
+		"nuisance_params": c.Nuisance.Names(), "nuisance_strains": StrainsReport(t.Strains),
+		"height_check": HeightReport(r.Heights),
+		"outputs":      outputs,
 	}
 }
 
@@ -126,6 +126,16 @@ func FitReport(f compare.FitResult) map[string]any {
 	return map[string]any{"params": p, "log_l": Finite(f.LogL), "log_prior": Finite(f.LogPrior), "expansions": f.Rounds,
 		"converged": f.Converged, "stopped_at_round_limit": f.RoundLimit, "other_maxima": others,
 		"evaluations": f.Evaluations, "age_bin_weights": FiniteAll(f.Weights)}
+}
+
+// StrainsReport is a fit's strained nuisance parameters for JSON.
+func StrainsReport(ss []compare.Strain) []map[string]any {
+	out := []map[string]any{}
+	for _, s := range ss {
+		out = append(out, map[string]any{"path": s.Name, "value": Finite(s.Value), "scenario_value": Finite(s.Nominal),
+			"prior_sigma": Finite(s.Sigma), "pull_sigma": Finite(s.Pull), "at_bound": s.Bound, "min": Finite(s.Min), "max": Finite(s.Max)})
+	}
+	return out
 }
 
 // rivals is RivalAges for JSON.

@@ -128,6 +128,13 @@ func runTestAlternatives(args []string, stdout, stderr io.Writer) error {
 		fitNames, fitResults = append(fitNames, f.Name), append(fitResults, f.Fit)
 	}
 	warnRoundLimits(w, fitNames, fitResults)
+	var strainWarnings []string
+	for _, f := range res.Fits {
+		if s := compare.StrainWarning(fmt.Sprintf("the fit of %q", f.Name), f.Strains); s != "" {
+			fmt.Fprintf(w, "warning: %s\n", s)
+			strainWarnings = append(strainWarnings, strings.ToUpper(s[:1])+s[1:]+".")
+		}
+	}
 	printDataSummary(w, comps[0].DataSummary())
 	fmt.Fprintln(w)
 	for _, f := range res.Fits {
@@ -152,6 +159,7 @@ func runTestAlternatives(args []string, stdout, stderr io.Writer) error {
 			page.Verdict.Tone = report.Caution // preferred, but it does not describe the catalog either
 		}
 	}
+	page.Warnings = append(page.Warnings, strainWarnings...)
 	var fits, pairs []report.Row
 	for _, f := range res.Fits {
 		page.Adequacy = append(page.Adequacy, adequacyLine(fmt.Sprintf("%q", f.Name), f.Adequacy))

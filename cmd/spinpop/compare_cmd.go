@@ -86,6 +86,8 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	if sc.GoodnessOfFit != nil {
 		rep["goodness_of_fit"] = pipeline.AdequacyReport(*sc.GoodnessOfFit)
 	}
+	strains := compare.Strains(compare.FitResult{NuisanceNames: sc.NuisanceNames, Nuisance: sc.Nuisance}, c.Nuisance)
+	rep["nuisance_strains"] = pipeline.StrainsReport(strains)
 	if err := writeJSON(out, "compare.json", rep); err != nil {
 		return err
 	}
@@ -95,6 +97,10 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	if gof != nil && !gof.Adequate(0.01) {
 		fmt.Fprintf(w, "The scenario does not describe the catalog: deviance %.0f where its own replicates give %.0f ± %.0f (bootstrap p = %.3g, dispersion %.2f)%s.\n\n",
 			gof.Deviance, gof.ReplicateMean, gof.ReplicateSD, gof.PValue, gof.Dispersion, compare.WorstRegions(*gof))
+	}
+	strainWarning := compare.StrainWarning("the fit", strains)
+	if strainWarning != "" {
+		fmt.Fprintf(w, "warning: %s\n\n", strainWarning)
 	}
 	printDataSummary(w, c.DataSummary())
 	fmt.Fprintf(w, "\nhistory %s:", sc.Label)
@@ -122,6 +128,9 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 		page.Verdict = adequacyLine("The scenario ("+sc.Label+")", *gof)
 	} else {
 		page.Verdict = report.Line{Text: "Goodness of fit not calibrated (--replicates 0): the numbers below say how well the scenario fits, not whether the fit is adequate.", Tone: report.Caution}
+	}
+	if strainWarning != "" {
+		page.Warnings = append(page.Warnings, "T"+strainWarning[1:]+".")
 	}
 	rows := []report.Row{
 		row("ln L", fmt.Sprintf("%.2f", sc.LogL), fmt.Sprintf("%s normalisation, template noise: %s", cmp.Normalisation, cmp.TemplateNoise)),

@@ -54,3 +54,18 @@ func TestBurstSummaryWarnsOfRivalAge(t *testing.T) {
 	assert.Contains(t, text, "with the burst at 1.430 Gyr, outside the 95 % interval")
 	assert.Less(t, strings.Index(text, "warning:"), strings.Index(text, "smooth history: ln L"), "the warning comes first")
 }
+
+// A with-burst fit that strains a nuisance parameter is said first, with
+// the parameter, its value and its prior.
+func TestBurstSummaryWarnsOfStrains(t *testing.T) {
+	out := &pipeline.BurstOutcome{
+		Test:    &compare.BurstResult{Strains: []compare.Strain{{Name: "survey.color_offset_mag", Value: 0.075, Sigma: 0.03, Pull: 2.5}}},
+		Heights: &compare.HeightResult{SplitAgeGyr: 0.8},
+	}
+	text := summaryText(out)
+	assert.Contains(t, text, "warning: the with-burst fit strains its nuisance parameters: survey.color_offset_mag = 0.075 (2.5σ from its prior 0 ± 0.03)")
+	assert.Less(t, strings.Index(text, "warning:"), strings.Index(text, "smooth history: ln L"), "the warning comes first")
+
+	out.Test.Strains = nil
+	assert.NotContains(t, summaryText(out), "strains")
+}

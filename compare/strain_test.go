@@ -1,0 +1,61 @@
+package compare
+
+import (
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+)
+
+// A nuisance parameter is strained when the fit puts it outside its
+// gaussian prior's central 95 % (|pull| > 1.96, common practice), or on a
+// bound of its range the scenario's value is not on. A node at its upper
+// bound of 1 where the scenario put it (no loss) is not strained.
+func TestStrains(t *testing.T) {
+	nu := &Nuisance{Params: []NuisanceParam{
+		{Name: "survey.color_offset_mag", Nominal: 0, Sigma: 0.03, Min: -0.1, Max: 0.1},
+		{Name: "spin.barnes2007.a", Nominal: 0.7725, Sigma: 0.011, Min: 0.7, Max: 0.85},
+		{Name: "stars.binary_fraction_scale", Nominal: 1, Min: 0, Max: 2},
+		{Name: "survey.search_by_rossby.efficiency_12d", Nominal: 1, Min: 0, Max: 1},
+		{Name: "survey.search_by_rossby.efficiency_96d", Nominal: 1, Min: 0, Max: 1},
+	}}
+	f := FitResult{
+		NuisanceNames: []string{"survey.color_offset_mag", "spin.barnes2007.a", "stars.binary_fraction_scale",
+			"survey.search_by_rossby.efficiency_12d", "survey.search_by_rossby.efficiency_96d"},
+		Nuisance: []float64{0.075, 0.7725 - 1.5*0.011, 2, 1, 1e-12},
+	}
+	got := Strains(f, nu)
+	require.Len(t, got, 3)
+	assert.Equal(t, "survey.color_offset_mag", got[0].Name)
+	assert.InDelta(t, 2.5, got[0].Pull, 1e-12)
+	assert.Equal(t, "", got[0].Bound)
+	assert.Equal(t, "stars.binary_fraction_scale", got[1].Name)
+	assert.Equal(t, "max", got[1].Bound)
+	assert.Equal(t, "survey.search_by_rossby.efficiency_96d", got[2].Name)
+	assert.Equal(t, "min", got[2].Bound)
+
+	assert.Equal(t, "survey.color_offset_mag = 0.075 (2.5σ from its prior 0 ± 0.03)", got[0].Describe())
+	assert.Equal(t, "stars.binary_fraction_scale = 2 (at the top of its range 0–2, scenario value 1)", got[1].Describe())
+
+	// Just inside 1.96σ, and a flat-prior parameter inside its range: none.
+	f.Nuisance = []float64{-1.95 * 0.03, 0.7725, 1.98, 0.5, 0.2}
+	assert.Empty(t, Strains(f, nu))
+	assert.Empty(t, StrainWarning("the with-burst fit", nil))
+	assert.Empty(t, Strains(f, nil))
+}
+
+// A verdict that claims a burst says when its fit strains nuisance
+// parameters, naming them; a verdict of no burst does not (there is no
+// age to bias).
+func TestVerdictCautionsOnStrains(t *testing.T) {
+	r := &BurstResult{Replicates: 100, PValue: 0.005, LR: 30, DeltaLogL: 15,
+		Strains: []Strain{{Name: "survey.color_offset_mag", Value: 0.075, Sigma: 0.03, Pull: 2.5}}}
+	strength, _, _, text := verdict(r)
+	require.Equal(t, "moderate", strength)
+	assert.Contains(t, text, "Caution: the fit strains survey.color_offset_mag")
+
+	r.PValue = 0.5
+	strength, _, _, text = verdict(r)
+	require.Equal(t, "none", strength)
+	assert.NotContains(t, text, "Caution")
+}
