@@ -47,6 +47,8 @@ type Bank struct {
 	BinaryFrac              []float32 // BinaryFraction of the primary's mass, before the fraction scale
 	NoisePpm                []float32 // survey noise per cadence at the star's magnitude (Noise)
 	Seed                    []uint64
+
+	memos *lawMemos // the stars' spins under the latest laws (nil: none kept)
 }
 
 // BankMargin widens the color cut (ColorMag on each side, catalog scale)
@@ -147,7 +149,7 @@ func starSeed(seed uint64, chunk, i int) uint64 {
 // Bank returns the collected bank.
 func (bb *BankBuilder) Bank() *Bank {
 	out := &Bank{Start: make([]int, len(bb.bins)+1), DrawnPerBin: append([]int64(nil), bb.drawn...), Margin: bb.margin,
-		Cuts: bb.pop.Cuts, Color: bb.pop.Survey.Color, Noise: bb.pop.Survey.Detect.Noise}
+		Cuts: bb.pop.Cuts, Color: bb.pop.Survey.Color, Noise: bb.pop.Survey.Detect.Noise, memos: &lawMemos{}}
 	for k := range bb.bins {
 		b := &bb.bins[k]
 		out.Start[k+1] = out.Start[k] + len(b.Seed)
@@ -207,6 +209,8 @@ type ObserveOptions struct {
 	// holds wherever the node is: one pass gives what a re-observation per
 	// node would by differences.
 	BandSlopes []int
+
+	noMemo bool // work every star's spin out afresh (tests of the memo)
 }
 
 // Observe returns, for every age bin k and grid bin i, the expected number
@@ -289,6 +293,12 @@ func (b *Bank) ObserveSlopes(ctx context.Context, obs *Population, g Grid, opts 
 		workers = runtime.GOMAXPROCS(0)
 	}
 	ob := newObserver(b, obs, g, opts)
+	if key, ok := keyOf(obs); ok && b.memos != nil && !opts.noMemo {
+		if ob.memo = b.memos.find(key); ob.memo == nil {
+			ob.fill = b.memos.newMemo(key, b.Len())
+		}
+		defer b.memos.release(ob.memo)
+	}
 	nk, nb := b.NumAgeBins(), g.NumBins()
 	counts = make([]float64, nk*nb)
 	vars = make([]float64, nk*nb)
@@ -335,6 +345,9 @@ func (b *Bank) ObserveSlopes(ctx context.Context, obs *Population, g Grid, opts 
 	if err := ctx.Err(); err != nil {
 		return nil, nil, nil, err
 	}
+	if ob.fill != nil {
+		b.memos.add(ob.fill)
+	}
 	return counts, vars, slopes, nil
 }
 
@@ -379,6 +392,9 @@ type observer struct {
 	baseScale  float64
 	weight     func(bin int, absZPc float64) float64 // ObserveOptions.Weight
 	slopeNodes []int                                 // ObserveOptions.BandSlopes
+	// memo holds the stars' spins under obs's law, from an earlier
+	// Observe; fill, when no memo was found, is the one this pass makes.
+	memo, fill *lawMemo
 	nC, nP, nZ int
 	// The fine grid: nF bins of fineStepDex from fineLo (log10 days).
 	nF     int
@@ -512,23 +528,41 @@ func (ob *observer) bin(k int, fine, fineVar []float64, fineSlopes [][]float64, 
 			}
 		}
 		seed := b.Seed[s]
-		lawSrc.Seed(seed, 1)
+		var sp spinState
+		lg := math.NaN() // log10 of the period, NaN until worked out
+		if m := ob.memo; m != nil && m.stars[s].known {
+			sp, lg = m.stars[s].spin, m.stars[s].log10P
+		} else {
+			lawSrc.Seed(seed, 1)
+			st := spin.Star{MassMsun: float64(b.MassMsun[s]), AgeGyr: float64(b.AgeGyr[s]), BV: float64(b.BVMain[s]), TeffK: float64(b.TeffK[s])}
+			sp = p.spinPeriod(st, comp, lawR)
+		}
 		spotSrc.Seed(seed, 2)
-		st := spin.Star{MassMsun: float64(b.MassMsun[s]), AgeGyr: float64(b.AgeGyr[s]), BV: float64(b.BVMain[s]), TeffK: float64(b.TeffK[s])}
 		var noise float64
 		if ob.sameNoise {
 			noise = float64(b.NoisePpm[s])
 		} else {
 			noise = p.Survey.Detect.Noise.PpmPerCadence(float64(b.AppMag[s]))
 		}
-		rot := p.rotate(st, comp, noise, lawR, spotR)
+		var fill *memoStar // this star's entry in the memo this pass makes
+		if ob.fill != nil {
+			fill = &ob.fill.stars[s]
+			*fill = memoStar{spin: sp, log10P: math.NaN(), known: true}
+		}
+		rot := p.observeRotation(sp, noise, spotR)
 		// A star no node value could make detectable adds nothing to any
 		// derivative either; one with a zero band factor can still add
 		// to them.
 		if !rot.ok || !(rot.prob > 0 || len(fineSlopes) > 0 && rot.preSearch > 0) {
 			continue
 		}
-		u := (math.Log10(rot.periodD) - ob.fineLo) * inv
+		if math.IsNaN(lg) {
+			lg = math.Log10(rot.periodD)
+			if fill != nil {
+				fill.log10P = lg
+			}
+		}
+		u := (lg - ob.fineLo) * inv
 		if !(u >= 0) || u >= float64(ob.nF-1) {
 			continue // too far outside the grid to reach it
 		}

@@ -427,19 +427,49 @@ type rotation struct {
 // that changing one part of the physics leaves the other's random
 // numbers where they were.
 func (p *Population) rotate(s spin.Star, comp, noisePpm float64, lawR, spotR *rand.Rand) rotation {
+	sp := p.spinPeriod(s, comp, lawR)
+	return p.observeRotation(sp, noisePpm, spotR)
+}
+
+// spinState is the part of a star's rotation that the spin-down law, the
+// tidal lock and the turnover time decide: what Bank keeps between
+// re-observations that change none of them (lawMemo).
+type spinState struct {
+	periodD, tauD float64 // the period; τ_c in days (valid when tauOK)
+	ok            bool    // false outside the law's calibrated range: no period
+	locked        bool
+	tauOK         bool
+}
+
+// spinPeriod is rotate's first part: the law's period (or the orbit's)
+// drawn from lawR, and the turnover time, which draws nothing.
+func (p *Population) spinPeriod(s spin.Star, comp float64, lawR *rand.Rand) spinState {
 	per, ok := p.Law.Period(s, lawR)
-	var rot rotation
+	var st spinState
 	if comp > 0 && p.Binaries.TidalLockFraction > 0 && lawR.Float64() < p.Binaries.TidalLockFraction {
 		per = math.Exp(lawR.Float64() * math.Log(p.Binaries.TidalLockMaxD))
 		ok = true
-		rot.locked = true
+		st.locked = true
 	}
-	rot.periodD, rot.ok = per, ok
+	st.periodD, st.ok = per, ok
 	if !ok {
+		return st
+	}
+	st.tauD, st.tauOK = p.Turnover.Days(s)
+	return st
+}
+
+// observeRotation is rotate's second part: Rossby number, spot amplitude
+// (drawn from spotR) and detection probability of a star whose spin
+// spinPeriod gave.
+func (p *Population) observeRotation(sp spinState, noisePpm float64, spotR *rand.Rand) rotation {
+	per := sp.periodD
+	rot := rotation{periodD: per, ok: sp.ok, locked: sp.locked}
+	if !sp.ok {
 		return rot
 	}
 	// τ_c once: the Rossby number and the search completeness read it.
-	tau, tauOK := p.Turnover.Days(s)
+	tau, tauOK := sp.tauD, sp.tauOK
 	rot.rossby = math.NaN()
 	if tauOK && per > 0 {
 		rot.rossby = per / tau // as TurnoverTime.Rossby

@@ -2,6 +2,7 @@ package pipeline
 
 import (
 	"context"
+	"math"
 	"sync"
 	"testing"
 
@@ -112,4 +113,51 @@ func lossyDemoValues(b *testing.B, c *Comparison) []float64 {
 	}
 	b.Fatal("example:fit does not free the 24 d node")
 	return nil
+}
+
+// BenchmarkObserveDemoRound times the re-observations of one round of a
+// joint fit's expansion on the demo: the centre, then two side points of
+// each non-linear nuisance parameter, one step away (step: a quarter of
+// the range for a flat prior, σ for a gaussian one). The centre's law
+// coefficient a moves a little every iteration, as it does from round to
+// round, so that no iteration finds the previous one's work.
+func BenchmarkObserveDemoRound(b *testing.B) {
+	c := demoComparison(b)
+	ps := c.Nuisance.Params
+	ia := -1
+	for j, p := range ps {
+		if p.Name == "spin.barnes2007.a" {
+			ia = j
+		}
+	}
+	if ia < 0 {
+		b.Fatal("example:fit does not free spin.barnes2007.a")
+	}
+	ctx := context.Background()
+	i := 0
+	for b.Loop() {
+		i++
+		centre := c.Nuisance.Nominal()
+		centre[ia] += 1e-4 * float64(i%50)
+		points := [][]float64{centre}
+		for j, p := range ps {
+			if p.Linear {
+				continue
+			}
+			step := p.Sigma
+			if step <= 0 {
+				step = (p.Max - p.Min) / 8
+			}
+			for _, d := range []float64{-step, step} {
+				v := append([]float64(nil), centre...)
+				v[j] = math.Min(p.Max, math.Max(p.Min, v[j]+d))
+				points = append(points, v)
+			}
+		}
+		for _, v := range points {
+			if _, err := c.Nuisance.Source.Observe(ctx, v); err != nil {
+				b.Fatal(err)
+			}
+		}
+	}
 }

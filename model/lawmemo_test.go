@@ -1,0 +1,105 @@
+package model
+
+import (
+	"context"
+	"math/rand/v2"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"spinpop/model/spin"
+	"spinpop/model/spots"
+)
+
+// Re-observations that read the stars' spins from the memo of an earlier
+// one give the same bits as those that work every spin out afresh, in the
+// order a fit makes them: the run's law, then the spots, the color
+// calibration (stars the first pass did not reach come in), a law with
+// scatter, the tidal lock, the run's law again. The memo is kept for the
+// laws seen last (maxLawMemos), and a law that cannot be compared is not
+// kept.
+func TestObserveLawMemoIdentical(t *testing.T) {
+	p := testPopulation(t, 4)
+	g := bankGrid()
+	_, bank := randomTemplatesAndBank(t, p, g, 300_000, BankMargin{ColorMag: 0.06, BandMag: 0.1})
+	ctx := context.Background()
+	change := func(f func(q *Population)) *Population {
+		q := *p
+		f(&q)
+		require.NoError(t, q.Prepare())
+		return &q
+	}
+	amp := spots.DefaultAmplitudeModel()
+	amp.RoSat, amp.Slope = 0.11, 1.7
+	steps := []struct {
+		name string
+		pop  *Population
+		hit  bool // the law's spins are in the memo before this pass
+	}{
+		{"as run", p, false},
+		{"spots", change(func(q *Population) { q.Spots = &amp }), true},
+		{"color offset +0.05", change(func(q *Population) { q.Survey.Color = ColorCalibration{OffsetMag: 0.05} }), true},
+		{"period scatter", change(func(q *Population) { q.Law = spin.Scattered{Law: q.Law, Dex: 0.08} }), false},
+		{"tidal lock", change(func(q *Population) { q.Binaries.TidalLockFraction = 0.2 }), false},
+		{"as run again", p, true},
+		{"search nodes", change(func(q *Population) {
+			q.Survey.Search = spots.SearchCompleteness{RossbyBands: []float64{1, 0.9, 0.7, 0.5, 0.3, 0.2}, TurnoverPower: 1}
+		}), true},
+	}
+	for _, st := range steps {
+		key, ok := keyOf(st.pop)
+		require.True(t, ok, st.name)
+		assert.Equal(t, st.hit, bank.memos.find(key) != nil, "%s: memo before the pass", st.name)
+		opts := ObserveOptions{BaseFractionScale: 1}
+		if len(st.pop.Survey.Search.RossbyBands) > 0 {
+			opts.BandSlopes = []int{1, 3}
+		}
+		got, gotVar, gotSlopes, err := bank.ObserveSlopes(ctx, st.pop, g, opts)
+		require.NoError(t, err, st.name)
+		opts.noMemo = true
+		want, wantVar, wantSlopes, err := bank.ObserveSlopes(ctx, st.pop, g, opts)
+		require.NoError(t, err, st.name)
+		assert.Equal(t, want, got, st.name)
+		assert.Equal(t, wantVar, gotVar, st.name)
+		assert.Equal(t, wantSlopes, gotSlopes, st.name)
+		assert.NotNil(t, bank.memos.find(key), "%s: memo after the pass", st.name)
+		assert.LessOrEqual(t, len(bank.memos.entries), maxLawMemos)
+	}
+
+	// More laws than the memo keeps: the oldest are dropped and their
+	// storage used again (no more buffers than the memo holds, plus one),
+	// with the same bits as ever.
+	for i, dex := range []float64{0.02, 0.04, 0.06, 0.1, 0.12} {
+		q := change(func(q *Population) { q.Law = spin.Scattered{Law: q.Law, Dex: dex} })
+		got, _, err := bank.Observe(ctx, q, g, ObserveOptions{BaseFractionScale: 1})
+		require.NoError(t, err)
+		want, _, err := bank.Observe(ctx, q, g, ObserveOptions{BaseFractionScale: 1, noMemo: true})
+		require.NoError(t, err)
+		assert.Equal(t, want, got, "scatter %g (%d)", dex, i)
+		assert.Len(t, bank.memos.entries, maxLawMemos)
+		assert.LessOrEqual(t, len(bank.memos.entries)+len(bank.memos.spare), maxLawMemos+1)
+	}
+	key, _ := keyOf(p)
+	require.Nil(t, bank.memos.find(key), "the run's law was dropped")
+	got, _, err := bank.Observe(ctx, p, g, ObserveOptions{BaseFractionScale: 1})
+	require.NoError(t, err)
+	want, _, err := bank.Observe(ctx, p, g, ObserveOptions{BaseFractionScale: 1, noMemo: true})
+	require.NoError(t, err)
+	assert.Equal(t, want, got, "on storage used again")
+
+	// A law holding functions (a pointer is compared by address; a struct
+	// with a function field cannot be compared) is worked out every time.
+	q := *p
+	q.Law = funcLaw{period: func(spin.Star) float64 { return 10 }}
+	_, ok := keyOf(&q)
+	assert.False(t, ok)
+}
+
+// funcLaw is a law whose value cannot be compared.
+type funcLaw struct{ period func(spin.Star) float64 }
+
+func (f funcLaw) Name() string { return "func" }
+func (f funcLaw) Period(s spin.Star, _ *rand.Rand) (float64, bool) {
+	return f.period(s), true
+}
