@@ -52,8 +52,10 @@ type AltFit struct {
 	LogEvidence    float64  `json:"log_evidence"`
 	EvidenceParams []string `json:"evidence_params"`
 	HasEvidence    bool     `json:"has_evidence"`
-	// Strains are the nuisance parameters this fit strains (Strains).
-	Strains []Strain `json:"-"`
+	// Strains are the nuisance parameters this fit strains (Strains), of
+	// GaussianPriors with a gaussian prior.
+	Strains        []Strain `json:"-"`
+	GaussianPriors int      `json:"-"`
 }
 
 // PairTest compares two alternatives by their likelihood ratio
@@ -131,7 +133,7 @@ func CompareAlternatives(ctx context.Context, alts []Alternative, opts AltOption
 		}
 		k := a.History.Dim() + a.Nuisance.Dim() + a.Like.NumScales()
 		af := AltFit{Name: a.Name, Fit: f, K: k, LogL: f.LogL, AIC: stats.AIC(f.LogL, k), BIC: stats.BIC(f.LogL, k, res.N), LogEvidence: math.NaN(),
-			Strains: Strains(f, a.Nuisance)}
+			Strains: Strains(f, a.Nuisance), GaussianPriors: GaussianPriors(a.Nuisance)}
 		if data[h], err = fitDeviance(a.Like, f, regs); err != nil {
 			return nil, err
 		}

@@ -112,9 +112,11 @@ type BurstResult struct {
 	// does not, and the ratio is divided by the dispersion).
 	Calibration string
 
-	// Strains are the nuisance parameters the with-burst fit strains
-	// (Strains): a verdict that claims a burst says so.
-	Strains []Strain
+	// Strains and StrainsSmooth are the nuisance parameters the with-burst
+	// and the smooth fit strain (Strains); GaussianPriors how many have a
+	// gaussian prior. A verdict that claims a burst names the first.
+	Strains, StrainsSmooth []Strain
+	GaussianPriors         int
 
 	Strength string // "strong", "moderate", "weak", "none" or "unreliable"
 	// StrengthReason says, for "unreliable", why no verdict is given.
@@ -256,7 +258,7 @@ func BurstTest(ctx context.Context, like *Likelihood, smooth, burst HistoryModel
 		}
 		res.setAgeInterval(iv, opts.AgeCalibration)
 	}
-	res.Strains = Strains(f1, nu)
+	res.Strains, res.StrainsSmooth, res.GaussianPriors = Strains(f1, nu), Strains(f0, nu), GaussianPriors(nu)
 	res.Strength, res.StrengthReason, res.Calibration, res.Verdict = verdict(res)
 	return res, nil
 }

@@ -53,9 +53,11 @@ func Strains(f FitResult, nu *Nuisance) []Strain {
 		}
 		tol := strainAtBound * (p.Max - p.Min)
 		switch {
-		case v <= p.Min+tol && p.Nominal > p.Min+tol:
+		case math.IsNaN(v) || math.IsInf(v, 0):
+			s.Bound = "not finite"
+		case v <= p.Min+tol && p.Nominal > p.Min:
 			s.Bound = "min"
-		case v >= p.Max-tol && p.Nominal < p.Max-tol:
+		case v >= p.Max-tol && p.Nominal < p.Max:
 			s.Bound = "max"
 		}
 		if s.Bound != "" || math.Abs(s.Pull) > strainPull {
@@ -81,6 +83,8 @@ func (s Strain) Describe() string {
 		why = append(why, fmt.Sprintf("%.1fσ from its prior %.4g ± %.4g", math.Abs(s.Pull), s.Nominal, s.Sigma))
 	}
 	switch s.Bound {
+	case "not finite":
+		return fmt.Sprintf("%s = %g (not a finite value: the fit failed in it)", s.Name, s.Value)
 	case "min":
 		why = append(why, fmt.Sprintf("at the bottom of its range %.4g–%.4g", s.Min, s.Max))
 	case "max":
@@ -92,17 +96,42 @@ func (s Strain) Describe() string {
 	return fmt.Sprintf("%s = %.4g (%s)", s.Name, s.Value, strings.Join(why, ", "))
 }
 
+// GaussianPriors counts nu's parameters with a gaussian prior: those a
+// pull is checked for.
+func GaussianPriors(nu *Nuisance) int {
+	if nu == nil {
+		return 0
+	}
+	k := 0
+	for _, p := range nu.Params {
+		if p.Sigma > 0 {
+			k++
+		}
+	}
+	return k
+}
+
 // StrainWarning is the sentence a report gives first when a fit strains
-// nuisance parameters ("" if none): which, and what it means for the
-// answer. fit names the fit ("the with-burst fit").
-func StrainWarning(fit string, ss []Strain) string {
+// nuisance parameters ("" if none): which, and what it may mean for the
+// answer. fit names the fit as the sentence should begin ("the
+// with-burst fit", "The fit"); gaussian is how many parameters have a
+// gaussian prior (GaussianPriors), so that a pull is weighed against how
+// often one of them lands beyond 1.96σ by chance alone.
+func StrainWarning(fit string, ss []Strain, gaussian int) string {
 	if len(ss) == 0 {
 		return ""
 	}
 	parts := make([]string, len(ss))
+	pulls := false
 	for i, s := range ss {
 		parts[i] = s.Describe()
+		pulls = pulls || math.Abs(s.Pull) > strainPull
 	}
-	return fmt.Sprintf("%s strains its nuisance parameters: %s. The model bends them to absorb something it lacks; answers that depend on them (a burst's age moves with the law's coefficients and the color zero point) may be biased beyond their intervals",
-		fit, strings.Join(parts, "; "))
+	chance := ""
+	if pulls && gaussian > 0 {
+		chance = fmt.Sprintf(" (of %d gaussian priors, one or more beyond 1.96σ by chance alone has probability %.0f %%)",
+			gaussian, 100*(1-math.Pow(0.95, float64(gaussian))))
+	}
+	return fmt.Sprintf("%s strains its nuisance parameters: %s. The model may be bending them to absorb something it lacks%s, and answers that depend on them (a burst's age moves with the law's coefficients and the color zero point) can then be biased beyond their intervals",
+		fit, strings.Join(parts, "; "), chance)
 }

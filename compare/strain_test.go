@@ -1,6 +1,8 @@
 package compare
 
 import (
+	"math"
+	"strings"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -40,8 +42,37 @@ func TestStrains(t *testing.T) {
 	// Just inside 1.96σ, and a flat-prior parameter inside its range: none.
 	f.Nuisance = []float64{-1.95 * 0.03, 0.7725, 1.98, 0.5, 0.2}
 	assert.Empty(t, Strains(f, nu))
-	assert.Empty(t, StrainWarning("the with-burst fit", nil))
+	assert.Empty(t, StrainWarning("the with-burst fit", nil, 2))
 	assert.Empty(t, Strains(f, nil))
+	assert.Equal(t, 2, GaussianPriors(nu))
+
+	// A bound the scenario's value lies next to but not on still counts
+	// (the tolerance is for the fitted value only); a value that is not
+	// finite is always reported.
+	nu.Params[2].Nominal = 1.995
+	f.Nuisance = []float64{0, 0.7725, 2, 0.5, 0.2}
+	got = Strains(f, nu)
+	require.Len(t, got, 1)
+	assert.Equal(t, "max", got[0].Bound)
+	f.Nuisance = []float64{0, 0.7725, 1, 0.5, math.NaN()}
+	got = Strains(f, nu)
+	require.Len(t, got, 1)
+	assert.Equal(t, "not finite", got[0].Bound)
+	assert.Contains(t, got[0].Describe(), "not a finite value")
+}
+
+// The warning weighs pulls against chance: with K gaussian priors, one or
+// more beyond 1.96σ has probability 1 − 0.95^K (independent pulls; 1 −
+// 0.95³ = 14.3 %, worked by hand); with only bounds strained it says
+// nothing of chance.
+func TestStrainWarningChance(t *testing.T) {
+	pull := []Strain{{Name: "survey.color_offset_mag", Value: 0.075, Sigma: 0.03, Pull: 2.5}}
+	w := StrainWarning("The with-burst fit", pull, 3)
+	assert.True(t, strings.HasPrefix(w, "The with-burst fit strains its nuisance parameters: survey.color_offset_mag = 0.075 (2.5σ from its prior 0 ± 0.03)."), w)
+	assert.Contains(t, w, "may be bending them")
+	assert.Contains(t, w, "of 3 gaussian priors, one or more beyond 1.96σ by chance alone has probability 14 %")
+	bound := []Strain{{Name: "stars.binary_fraction_scale", Value: 2, Nominal: 1, Min: 0, Max: 2, Bound: "max"}}
+	assert.NotContains(t, StrainWarning("the fit", bound, 3), "by chance")
 }
 
 // A verdict that claims a burst says when its fit strains nuisance

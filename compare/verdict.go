@@ -96,7 +96,7 @@ func verdict(r *BurstResult) (strength, reason, calibration, text string) {
 		for i, s := range r.Strains {
 			names[i] = s.Name
 		}
-		sentence += fmt.Sprintf(" Caution: the fit strains %s (see the warnings), so the burst's age may be biased beyond its interval.", strings.Join(names, ", "))
+		sentence += fmt.Sprintf(" Caution: the fit strains %s, so the burst's age may be biased beyond its interval.", strings.Join(names, ", "))
 	}
 	if !adequate {
 		return strength, "", calibration, fmt.Sprintf("The models do not describe the catalog fully: %s. Judged against that misfit (quasi-likelihood), %s", misfit, sentence)

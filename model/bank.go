@@ -530,9 +530,11 @@ func (ob *observer) bin(k int, fine, fineVar []float64, fineSlopes [][]float64, 
 		seed := b.Seed[s]
 		var sp spinState
 		lg := math.NaN() // log10 of the period, NaN until worked out
-		if m := ob.memo; m != nil && m.stars[s].known {
-			sp, lg = m.stars[s].spin, m.stars[s].log10P
-		} else {
+		known := false
+		if m := ob.memo; m != nil {
+			sp, lg, known = m.get(s)
+		}
+		if !known {
 			lawSrc.Seed(seed, 1)
 			st := spin.Star{MassMsun: float64(b.MassMsun[s]), AgeGyr: float64(b.AgeGyr[s]), BV: float64(b.BVMain[s]), TeffK: float64(b.TeffK[s])}
 			sp = p.spinPeriod(st, comp, lawR)
@@ -544,10 +546,8 @@ func (ob *observer) bin(k int, fine, fineVar []float64, fineSlopes [][]float64, 
 		} else {
 			noise = p.Survey.Detect.Noise.PpmPerCadence(float64(b.AppMag[s]))
 		}
-		var fill *memoStar // this star's entry in the memo this pass makes
 		if ob.fill != nil {
-			fill = &ob.fill.stars[s]
-			*fill = memoStar{spin: sp, log10P: math.NaN(), known: true}
+			ob.fill.put(s, sp, math.NaN())
 		}
 		rot := p.observeRotation(sp, noise, spotR)
 		// A star no node value could make detectable adds nothing to any
@@ -558,8 +558,8 @@ func (ob *observer) bin(k int, fine, fineVar []float64, fineSlopes [][]float64, 
 		}
 		if math.IsNaN(lg) {
 			lg = math.Log10(rot.periodD)
-			if fill != nil {
-				fill.log10P = lg
+			if ob.fill != nil {
+				ob.fill.log10P[s] = lg
 			}
 		}
 		u := (lg - ob.fineLo) * inv

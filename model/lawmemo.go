@@ -1,7 +1,6 @@
 package model
 
 import (
-	"math"
 	"reflect"
 	"sync"
 
@@ -9,10 +8,10 @@ import (
 )
 
 // A joint fit re-observes the bank at a dozen or more nuisance values a
-// round, and most of them leave the spin-down law alone (the spots, the
-// detection, the search, the color calibration, the binary share): every
+// round, and about half of them leave the spin-down law alone (the
+// spots, the detection, the color calibration, the binary share): every
 // stored star would get the same period again. The law's period, the
-// tidal lock and the turnover time are about a third of a re-observation's
+// tidal lock and the turnover time are a good part of a re-observation's
 // cost (two logarithms and two exponentials per star, and the logarithm
 // that places the period on the fine grid), so Bank keeps them, per star,
 // for the few laws it saw last (lawMemo). What is kept is what the same
@@ -20,41 +19,103 @@ import (
 // worked out: templates do not depend on whether the memo was used
 // (TestObserveLawMemoIdentical).
 
-// maxLawMemos is how many laws' worth of periods a Bank keeps: a fit's
-// round observes the centre, two side points for each free coefficient
-// of the law and its scatter (misses), then the side points of every other
-// parameter (hits on the centre's law). About 32 bytes a stored star each.
+// maxLawMemos is how many laws' worth of spins a Bank keeps. A fit's round
+// observes its centre, then side points of each parameter in turn: those
+// of the law's coefficients and scatter are new laws each, those of the
+// other parameters share the centre's law, which is made again (once)
+// when the law's side points have pushed it out. 25 bytes a stored star
+// each, and one spare set of storage.
 const maxLawMemos = 3
 
 // lawKey is what decides spinPeriod's answer for a stored star: the law
 // (its coefficients, scatter and scale), the turnover time, and the tidal
-// lock. Only comparable keys are kept (a law holding functions is
-// worked out every time).
+// lock.
 type lawKey struct {
 	law                spin.Law
 	turnover           spin.TurnoverTime
 	lockFrac, lockMaxD float64
 }
 
+// keyOf returns p's law key, and whether it may be kept: a key is kept
+// only when comparing it compares values. A law held by pointer (the
+// torque law, made anew for every re-observation) or holding functions,
+// slices or maps is worked out every time.
 func keyOf(p *Population) (lawKey, bool) {
 	k := lawKey{law: p.Law, turnover: p.Turnover, lockFrac: p.Binaries.TidalLockFraction, lockMaxD: p.Binaries.TidalLockMaxD}
-	return k, reflect.ValueOf(k).Comparable()
+	return k, byValue(reflect.ValueOf(k))
 }
 
-// memoStar is one stored star's spin under a law, and log10 of its
-// period (the fine grid's coordinate; NaN until a pass needs it); known
-// is false for a star the pass that made the memo did not reach (outside
-// that pass's cuts).
-type memoStar struct {
-	spin   spinState
-	log10P float64
-	known  bool
+// byValue reports whether == on v compares values only: no pointers,
+// functions, maps, channels or slices anywhere inside.
+func byValue(v reflect.Value) bool {
+	switch v.Kind() {
+	case reflect.Pointer, reflect.UnsafePointer, reflect.Func, reflect.Map, reflect.Chan, reflect.Slice:
+		return false
+	case reflect.Interface:
+		return v.IsNil() || byValue(v.Elem())
+	case reflect.Struct:
+		for i := range v.NumField() {
+			if !byValue(v.Field(i)) {
+				return false
+			}
+		}
+	case reflect.Array:
+		for i := range v.Len() {
+			if !byValue(v.Index(i)) {
+				return false
+			}
+		}
+	}
+	return true
+}
+
+// Flags of a memo's star.
+const (
+	memoKnown  uint8 = 1 << iota // the pass that made the memo reached the star
+	memoOK                       // spinState.ok
+	memoLocked                   // spinState.locked
+	memoTauOK                    // spinState.tauOK
+)
+
+// memoStore is the per-star storage of a memo: the period, τ_c, log10 of
+// the period (NaN until a pass needs it) and the flags, by stored star.
+type memoStore struct {
+	period, tau, log10P []float64
+	flags               []uint8
+}
+
+func newMemoStore(n int) memoStore {
+	return memoStore{period: make([]float64, n), tau: make([]float64, n), log10P: make([]float64, n), flags: make([]uint8, n)}
+}
+
+// get returns star s's spin and log10 P, and whether the memo has them.
+func (m *memoStore) get(s int) (spinState, float64, bool) {
+	f := m.flags[s]
+	if f&memoKnown == 0 {
+		return spinState{}, 0, false
+	}
+	return spinState{periodD: m.period[s], tauD: m.tau[s], ok: f&memoOK != 0, locked: f&memoLocked != 0, tauOK: f&memoTauOK != 0}, m.log10P[s], true
+}
+
+// put keeps star s's spin; its log10 P is NaN until setLog10.
+func (m *memoStore) put(s int, sp spinState, nan float64) {
+	f := memoKnown
+	if sp.ok {
+		f |= memoOK
+	}
+	if sp.locked {
+		f |= memoLocked
+	}
+	if sp.tauOK {
+		f |= memoTauOK
+	}
+	m.period[s], m.tau[s], m.log10P[s], m.flags[s] = sp.periodD, sp.tauD, nan, f
 }
 
 // lawMemo is every stored star's spin under one law.
 type lawMemo struct {
-	key   lawKey
-	stars []memoStar
+	key lawKey
+	memoStore
 	// users counts the Observe calls reading it; dropped is set when it
 	// left the list, so that the last reader hands its storage back.
 	users   int
@@ -63,13 +124,13 @@ type lawMemo struct {
 
 // lawMemos is a Bank's memo: the latest laws, most recent last. A memo is
 // made by one Observe (which alone writes it) and shared when that
-// Observe has finished; others only read it. The storage of dropped memos
-// is used again (spare): a fresh 40 MB for every law the fit tries costs
-// more in page faults than the memo saves.
+// Observe has finished; others only read it. One dropped memo's storage
+// is kept to be used again (spare): fresh storage for every law a fit
+// tries costs more in page faults than the memo saves.
 type lawMemos struct {
 	mu      sync.Mutex
 	entries []*lawMemo
-	spare   [][]memoStar
+	spare   *memoStore
 }
 
 // find returns the memo of key for reading, nil if none; the caller
@@ -82,8 +143,6 @@ func (m *lawMemos) find(key lawKey) *lawMemo {
 	defer m.mu.Unlock()
 	for i, e := range m.entries {
 		if e.key == key {
-			// Most recent last: the centre's law stays while side points of
-			// the law's own coefficients come and go.
 			m.entries = append(append(m.entries[:i:i], m.entries[i+1:]...), e)
 			e.users++
 			return e
@@ -101,26 +160,39 @@ func (m *lawMemos) release(e *lawMemo) {
 	defer m.mu.Unlock()
 	e.users--
 	if e.dropped && e.users == 0 {
-		m.spare = append(m.spare, e.stars)
-		e.stars = nil
+		m.keepSpare(&e.memoStore)
 	}
 }
 
-// newMemo returns a memo of key for n stars to fill, on spare storage
-// when there is some (every star unknown).
+// keepSpare keeps st's storage for the next memo if there is no spare
+// yet, and lets it go otherwise. m.mu is held.
+func (m *lawMemos) keepSpare(st *memoStore) {
+	if m.spare == nil {
+		kept := *st
+		m.spare = &kept
+	}
+	*st = memoStore{}
+}
+
+// newMemo returns a memo of key for n stars to fill, on the spare
+// storage when there is one (every star unknown).
 func (m *lawMemos) newMemo(key lawKey, n int) *lawMemo {
 	m.mu.Lock()
-	var stars []memoStar
-	if k := len(m.spare); k > 0 && len(m.spare[k-1]) == n {
-		stars, m.spare = m.spare[k-1], m.spare[:k-1]
+	sp := m.spare
+	if sp != nil && len(sp.flags) == n {
+		m.spare = nil
+	} else {
+		sp = nil
 	}
 	m.mu.Unlock()
-	if stars == nil {
-		stars = make([]memoStar, n)
+	e := &lawMemo{key: key}
+	if sp == nil {
+		e.memoStore = newMemoStore(n)
 	} else {
-		clear(stars)
+		e.memoStore = *sp
+		clear(e.flags) // every star unknown; the rest is written before it is read
 	}
-	return &lawMemo{key: key, stars: stars}
+	return e
 }
 
 // add keeps e, dropping the least recently used beyond maxLawMemos.
@@ -133,7 +205,7 @@ func (m *lawMemos) add(e *lawMemo) {
 	for _, o := range m.entries {
 		if o.key == e.key {
 			// Made by a concurrent Observe: the same numbers.
-			m.spare = append(m.spare, e.stars)
+			m.keepSpare(&e.memoStore)
 			return
 		}
 	}
@@ -143,17 +215,7 @@ func (m *lawMemos) add(e *lawMemo) {
 		m.entries = append(m.entries[:0:0], m.entries[1:]...)
 		old.dropped = true
 		if old.users == 0 {
-			m.spare = append(m.spare, old.stars)
-			old.stars = nil
+			m.keepSpare(&old.memoStore)
 		}
 	}
-}
-
-// memoLog10 is log10 of a spin's period, as the fine grid reads it (NaN
-// for a spin without one).
-func memoLog10(sp spinState) float64 {
-	if !sp.ok {
-		return math.NaN()
-	}
-	return math.Log10(sp.periodD)
 }

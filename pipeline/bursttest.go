@@ -95,7 +95,7 @@ func (r *BurstOutcome) Report(c *Comparison, outputs []string) map[string]any {
 		"strength": t.Strength, "strength_reason": t.StrengthReason, "calibration": t.Calibration, "verdict": t.Verdict,
 		"adequacy_smooth": AdequacyReport(t.AdequacySmooth), "adequacy_burst": AdequacyReport(t.AdequacyBurst),
 		"dispersion": Finite(t.Dispersion), "p_value_quasi": Finite(t.PValueQuasi),
-		"nuisance_params": c.Nuisance.Names(), "nuisance_strains": StrainsReport(t.Strains),
+		"nuisance_params": c.Nuisance.Names(), "nuisance_strains": StrainsReport(t.Strains), "nuisance_strains_smooth": StrainsReport(t.StrainsSmooth),
 		"height_check": HeightReport(r.Heights),
 		"outputs":      outputs,
 	}
@@ -128,12 +128,21 @@ func FitReport(f compare.FitResult) map[string]any {
 		"evaluations": f.Evaluations, "age_bin_weights": FiniteAll(f.Weights)}
 }
 
-// StrainsReport is a fit's strained nuisance parameters for JSON.
+// StrainsReport is a fit's strained nuisance parameters for JSON: each
+// by name (its scenario path, as in "params"), with its prior's σ and
+// pull only for a gaussian prior, and at_bound null unless it is on one.
 func StrainsReport(ss []compare.Strain) []map[string]any {
 	out := []map[string]any{}
 	for _, s := range ss {
-		out = append(out, map[string]any{"path": s.Name, "value": Finite(s.Value), "scenario_value": Finite(s.Nominal),
-			"prior_sigma": Finite(s.Sigma), "pull_sigma": Finite(s.Pull), "at_bound": s.Bound, "min": Finite(s.Min), "max": Finite(s.Max)})
+		m := map[string]any{"name": s.Name, "value": Finite(s.Value), "scenario_value": Finite(s.Nominal),
+			"min": Finite(s.Min), "max": Finite(s.Max), "prior_sigma": nil, "pull_sigma": nil, "at_bound": nil}
+		if s.Sigma > 0 {
+			m["prior_sigma"], m["pull_sigma"] = Finite(s.Sigma), Finite(s.Pull)
+		}
+		if s.Bound != "" {
+			m["at_bound"] = s.Bound
+		}
+		out = append(out, m)
 	}
 	return out
 }

@@ -108,7 +108,7 @@ func runCheck(t *testing.T, cases []checkCase, replicates int, templateStars int
 			age: tr.AgeInterval.Best, lo95: tr.AgeInterval.Lo95, hi95: tr.AgeInterval.Hi95}
 		t.Logf("%-12s truth %4.2f | %-10s age %.3f [%.3f, %.3f] | LR %.0f | deviance %.0f vs %.0f (p %.2g) | %s | %s",
 			cs.name, cs.ageGyr, r.strength, r.age, r.lo95, r.hi95, r.lr, r.deviance, r.exp, r.adequacyP, tr.Verdict,
-			compare.StrainWarning("strained", tr.Strains))
+			compare.StrainWarning("strained", tr.Strains, tr.GaussianPriors))
 		out = append(out, r)
 	}
 	return out

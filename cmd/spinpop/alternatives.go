@@ -130,9 +130,9 @@ func runTestAlternatives(args []string, stdout, stderr io.Writer) error {
 	warnRoundLimits(w, fitNames, fitResults)
 	var strainWarnings []string
 	for _, f := range res.Fits {
-		if s := compare.StrainWarning(fmt.Sprintf("the fit of %q", f.Name), f.Strains); s != "" {
+		if s := compare.StrainWarning(fmt.Sprintf("the fit of %q", f.Name), f.Strains, f.GaussianPriors); s != "" {
 			fmt.Fprintf(w, "warning: %s\n", s)
-			strainWarnings = append(strainWarnings, strings.ToUpper(s[:1])+s[1:]+".")
+			strainWarnings = append(strainWarnings, compare.StrainWarning(fmt.Sprintf("The fit of %q", f.Name), f.Strains, f.GaussianPriors)+".")
 		}
 	}
 	printDataSummary(w, comps[0].DataSummary())

@@ -98,9 +98,9 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 		fmt.Fprintf(w, "The scenario does not describe the catalog: deviance %.0f where its own replicates give %.0f ± %.0f (bootstrap p = %.3g, dispersion %.2f)%s.\n\n",
 			gof.Deviance, gof.ReplicateMean, gof.ReplicateSD, gof.PValue, gof.Dispersion, compare.WorstRegions(*gof))
 	}
-	strainWarning := compare.StrainWarning("the fit", strains)
-	if strainWarning != "" {
-		fmt.Fprintf(w, "warning: %s\n\n", strainWarning)
+	gaussian := compare.GaussianPriors(c.Nuisance)
+	if s := compare.StrainWarning("the fit", strains, gaussian); s != "" {
+		fmt.Fprintf(w, "warning: %s\n\n", s)
 	}
 	printDataSummary(w, c.DataSummary())
 	fmt.Fprintf(w, "\nhistory %s:", sc.Label)
@@ -129,8 +129,8 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	} else {
 		page.Verdict = report.Line{Text: "Goodness of fit not calibrated (--replicates 0): the numbers below say how well the scenario fits, not whether the fit is adequate.", Tone: report.Caution}
 	}
-	if strainWarning != "" {
-		page.Warnings = append(page.Warnings, "T"+strainWarning[1:]+".")
+	if s := compare.StrainWarning("The fit", strains, gaussian); s != "" {
+		page.Warnings = append(page.Warnings, s+".")
 	}
 	rows := []report.Row{
 		row("ln L", fmt.Sprintf("%.2f", sc.LogL), fmt.Sprintf("%s normalisation, template noise: %s", cmp.Normalisation, cmp.TemplateNoise)),

@@ -155,8 +155,13 @@ func writeBurstReport(out *outset.Set, prefix string, c *pipeline.Comparison, r 
 	if t.StrengthReason != "" {
 		rep.Warnings = append(rep.Warnings, t.StrengthReason)
 	}
-	if w := compare.StrainWarning("The with-burst fit", t.Strains); w != "" {
-		rep.Warnings = append(rep.Warnings, w+".")
+	for _, f := range []struct {
+		name    string
+		strains []compare.Strain
+	}{{"The with-burst fit", t.Strains}, {"The smooth-history fit", t.StrainsSmooth}} {
+		if w := compare.StrainWarning(f.name, f.strains, t.GaussianPriors); w != "" {
+			rep.Warnings = append(rep.Warnings, w+".")
+		}
 	}
 	rep.Data = reportData(c.DataSummary())
 	rows := []report.Row{
@@ -212,8 +217,13 @@ func printBurstSummary(w io.Writer, r *pipeline.BurstOutcome) {
 			t.AdequacyBurst.Deviance, t.AdequacyBurst.ReplicateMean, t.AdequacyBurst.ReplicateSD)
 	}
 	warnRoundLimits(w, []string{"smooth-history", "with-burst"}, []compare.FitResult{t.Smooth, t.Burst})
-	if s := compare.StrainWarning("the with-burst fit", t.Strains); s != "" {
-		fmt.Fprintf(w, "warning: %s\n", s)
+	for _, f := range []struct {
+		name    string
+		strains []compare.Strain
+	}{{"the with-burst fit", t.Strains}, {"the smooth-history fit", t.StrainsSmooth}} {
+		if s := compare.StrainWarning(f.name, f.strains, t.GaussianPriors); s != "" {
+			fmt.Fprintf(w, "warning: %s\n", s)
+		}
 	}
 	for _, r := range t.RivalAges() {
 		fmt.Fprintf(w, "warning: a second search of the with-burst fit ended %.2f below the best in ln L (%.2f after the dispersion; the 95 %% level is 1.92) with the burst at %.3f Gyr, outside the 95 %% interval: the data cannot tell the two apart, and the interval does not show it\n",

@@ -66,6 +66,10 @@ func TestBurstSummaryWarnsOfStrains(t *testing.T) {
 	assert.Contains(t, text, "warning: the with-burst fit strains its nuisance parameters: survey.color_offset_mag = 0.075 (2.5σ from its prior 0 ± 0.03)")
 	assert.Less(t, strings.Index(text, "warning:"), strings.Index(text, "smooth history: ln L"), "the warning comes first")
 
+	assert.NotContains(t, text, "the smooth-history fit strains")
+
 	out.Test.Strains = nil
 	assert.NotContains(t, summaryText(out), "strains")
+	out.Test.StrainsSmooth = []compare.Strain{{Name: "stars.binary_fraction_scale", Value: 2, Nominal: 1, Max: 2, Bound: "max"}}
+	assert.Contains(t, summaryText(out), "warning: the smooth-history fit strains its nuisance parameters: stars.binary_fraction_scale = 2 (at the top of its range 0–2, scenario value 1)")
 }
