@@ -532,7 +532,10 @@ func (ob *observer) bin(k int, fine, fineVar []float64, fineSlopes [][]float64, 
 		lg := math.NaN() // log10 of the period, NaN until worked out
 		known := false
 		if m := ob.memo; m != nil {
-			sp, lg, known = m.get(s)
+			var mlg float64
+			if sp, mlg, known = m.get(s); known {
+				lg = mlg
+			}
 		}
 		if !known {
 			lawSrc.Seed(seed, 1)

@@ -40,6 +40,9 @@ func TestObserveLawMemoIdentical(t *testing.T) {
 		{"as run", p, false},
 		{"spots", change(func(q *Population) { q.Spots = &amp }), true},
 		{"color offset +0.05", change(func(q *Population) { q.Survey.Color = ColorCalibration{OffsetMag: 0.05} }), true},
+		// Stretched colors bring stars across the main-sequence band's
+		// edges that no pass before reached (the memo does not know them).
+		{"color scale 1.04", change(func(q *Population) { q.Survey.Color = ColorCalibration{Scale: 1.04} }), true},
 		{"period scatter", change(func(q *Population) { q.Law = spin.Scattered{Law: q.Law, Dex: 0.08} }), false},
 		{"tidal lock", change(func(q *Population) { q.Binaries.TidalLockFraction = 0.2 }), false},
 		{"as run again", p, true},
