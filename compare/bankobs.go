@@ -46,7 +46,14 @@ type BankObserver struct {
 	// rule through the nodes.
 	SearchParams   []bool
 	SearchGradient func(values []float64, j int) ([]float64, error)
+	// Depth, when not nil, ranks each nuisance parameter by how much of a
+	// stored star's observation a change of it makes again (see
+	// SideOrderer); nil: parameter order.
+	Depth []int
 }
+
+// SideOrder implements SideOrderer.
+func (o *BankObserver) SideOrder() []int { return o.Depth }
 
 // Slopes implements SlopeObserver.
 func (o *BankObserver) Slopes(j int) bool {

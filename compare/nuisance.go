@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"sort"
 	"strconv"
 	"strings"
 	"sync"
@@ -88,6 +89,16 @@ type SlopeObserver interface {
 	// ObserveSlopes returns the templates at values and, for each j in
 	// params, ∂Counts/∂values[j] (Var nil).
 	ObserveSlopes(ctx context.Context, values []float64, params []int) (*Templates, []*Templates, error)
+}
+
+// SideOrderer is an Observer whose re-observations cost less in some
+// orders than in others (a memo of the last points' per-star work, as
+// model.Bank keeps): SideOrder ranks each parameter, and a fit's
+// expansion makes the side points of lower ranks first. The order changes
+// no number, only the time.
+type SideOrderer interface {
+	Observer
+	SideOrder() []int
 }
 
 // Nuisance is the nuisance part of a model: its parameters and where
@@ -390,6 +401,9 @@ func newMorph(ctx context.Context, like *Likelihood, nu *Nuisance, centre, steps
 	for i, j := range nu.slopeParams() {
 		slopeOf[j] = slopes[i]
 	}
+	if err := prefetchSides(ctx, nu, centre, steps, slopeOf); err != nil {
+		return nil, err
+	}
 	mo := &morph{centre: append([]float64(nil), centre...), nb: like.nb, k: like.k, exact: t0}
 	mo.t0, mo.var0, err = like.rowsOf(t0)
 	if err != nil {
@@ -488,6 +502,52 @@ func (mo *morph) compact() {
 		mo.ac[j], mo.bc[j] = pick(mo.a[j]), pick(mo.b[j])
 	}
 	mo.a, mo.b = nil, nil // the dense copies are not needed again
+}
+
+// prefetchSides makes the templates of an expansion's side points (those
+// newMorph will ask for: not the parameters in slopeOf) in the order the
+// source's SideOrder ranks them, and keeps them in nu's cache, where
+// newMorph then finds them. Without a SideOrderer it does nothing.
+func prefetchSides(ctx context.Context, nu *Nuisance, centre, steps []float64, slopeOf map[int]*Templates) error {
+	so, ok := nu.Source.(SideOrderer)
+	if !ok || len(so.SideOrder()) != nu.Dim() {
+		return nil
+	}
+	rank := so.SideOrder()
+	order := make([]int, nu.Dim())
+	for j := range order {
+		order[j] = j
+	}
+	sort.SliceStable(order, func(a, b int) bool { return rank[order[a]] < rank[order[b]] })
+	for _, j := range order {
+		if _, derived := slopeOf[j]; derived {
+			continue
+		}
+		p := nu.Params[j]
+		d := p.step()
+		if steps != nil {
+			d = steps[j]
+		}
+		c := centre[j]
+		up, down := math.Min(c+d, p.Max), math.Max(c-d, p.Min)
+		vals := []float64{}
+		if up > c {
+			vals = append(vals, up)
+		}
+		// As newMorph: a Linear parameter with an upper side point needs
+		// no lower one.
+		if down < c && !(p.Linear && up > c) {
+			vals = append(vals, down)
+		}
+		for _, v := range vals {
+			at := append([]float64(nil), centre...)
+			at[j] = v
+			if _, err := nu.Templates(ctx, at); err != nil {
+				return err
+			}
+		}
+	}
+	return nil
 }
 
 // side returns the bins-major templates with parameter j at v.

@@ -48,7 +48,8 @@ type Bank struct {
 	NoisePpm                []float32 // survey noise per cadence at the star's magnitude (Noise)
 	Seed                    []uint64
 
-	memos *lawMemos // the stars' spins under the latest laws (nil: none kept)
+	memos *lawMemos  // the stars' spins under the latest laws (nil: none kept)
+	seen  *seenMemos // the stars' rotations under the latest law, spots and detection (nil: none kept)
 }
 
 // BankMargin widens the color cut (ColorMag on each side, catalog scale)
@@ -149,7 +150,7 @@ func starSeed(seed uint64, chunk, i int) uint64 {
 // Bank returns the collected bank.
 func (bb *BankBuilder) Bank() *Bank {
 	out := &Bank{Start: make([]int, len(bb.bins)+1), DrawnPerBin: append([]int64(nil), bb.drawn...), Margin: bb.margin,
-		Cuts: bb.pop.Cuts, Color: bb.pop.Survey.Color, Noise: bb.pop.Survey.Detect.Noise, memos: &lawMemos{}}
+		Cuts: bb.pop.Cuts, Color: bb.pop.Survey.Color, Noise: bb.pop.Survey.Detect.Noise, memos: newLawMemos(), seen: newSeenMemos()}
 	for k := range bb.bins {
 		b := &bb.bins[k]
 		out.Start[k+1] = out.Start[k] + len(b.Seed)
@@ -293,8 +294,16 @@ func (b *Bank) ObserveSlopes(ctx context.Context, obs *Population, g Grid, opts 
 		workers = runtime.GOMAXPROCS(0)
 	}
 	ob := newObserver(b, obs, g, opts)
+	if key, ok := seenKeyOf(obs); ok && b.seen != nil && !opts.noMemo {
+		if ob.seen = b.seen.find(key); ob.seen == nil {
+			ob.seenFill = b.seen.newMemo(key, b.Len())
+		}
+		defer b.seen.release(ob.seen)
+	}
 	if key, ok := keyOf(obs); ok && b.memos != nil && !opts.noMemo {
-		if ob.memo = b.memos.find(key); ob.memo == nil {
+		// With the rotations known, a new law memo would hold only the
+		// few stars the seen memo lacks: none is made.
+		if ob.memo = b.memos.find(key); ob.memo == nil && ob.seen == nil {
 			ob.fill = b.memos.newMemo(key, b.Len())
 		}
 		defer b.memos.release(ob.memo)
@@ -348,6 +357,9 @@ func (b *Bank) ObserveSlopes(ctx context.Context, obs *Population, g Grid, opts 
 	if ob.fill != nil {
 		b.memos.add(ob.fill)
 	}
+	if ob.seenFill != nil {
+		b.seen.add(ob.seenFill)
+	}
 	return counts, vars, slopes, nil
 }
 
@@ -394,8 +406,10 @@ type observer struct {
 	slopeNodes []int                                 // ObserveOptions.BandSlopes
 	// memo holds the stars' spins under obs's law, from an earlier
 	// Observe; fill, when no memo was found, is the one this pass makes.
-	memo, fill *lawMemo
-	nC, nP, nZ int
+	// seen and seenFill are the same for the stars' rotations (seenMemo).
+	memo, fill     *lawMemo
+	seen, seenFill *seenMemo
+	nC, nP, nZ     int
 	// The fine grid: nF bins of fineStepDex from fineLo (log10 days).
 	nF     int
 	fineLo float64
@@ -527,32 +541,21 @@ func (ob *observer) bin(k int, fine, fineVar []float64, fineSlopes [][]float64, 
 				continue
 			}
 		}
-		seed := b.Seed[s]
-		var sp spinState
+		var rot rotation
 		lg := math.NaN() // log10 of the period, NaN until worked out
-		known := false
-		if m := ob.memo; m != nil {
+		seen := false
+		if m := ob.seen; m != nil {
 			var mlg float64
-			if sp, mlg, known = m.get(s); known {
+			if rot, mlg, seen = m.st.get(s); seen {
 				lg = mlg
 			}
 		}
-		if !known {
-			lawSrc.Seed(seed, 1)
-			st := spin.Star{MassMsun: float64(b.MassMsun[s]), AgeGyr: float64(b.AgeGyr[s]), BV: float64(b.BVMain[s]), TeffK: float64(b.TeffK[s])}
-			sp = p.spinPeriod(st, comp, lawR)
+		if !seen {
+			rot, lg = ob.rotate(s, comp, lawSrc, spotSrc, lawR, spotR)
+			if ob.seenFill != nil {
+				ob.seenFill.st.put(s, rot, lg)
+			}
 		}
-		spotSrc.Seed(seed, 2)
-		var noise float64
-		if ob.sameNoise {
-			noise = float64(b.NoisePpm[s])
-		} else {
-			noise = p.Survey.Detect.Noise.PpmPerCadence(float64(b.AppMag[s]))
-		}
-		if ob.fill != nil {
-			ob.fill.put(s, sp, math.NaN())
-		}
-		rot := p.observeRotation(sp, noise, spotR)
 		// A star no node value could make detectable adds nothing to any
 		// derivative either; one with a zero band factor can still add
 		// to them.
@@ -562,7 +565,10 @@ func (ob *observer) bin(k int, fine, fineVar []float64, fineSlopes [][]float64, 
 		if math.IsNaN(lg) {
 			lg = math.Log10(rot.periodD)
 			if ob.fill != nil {
-				ob.fill.log10P[s] = lg
+				ob.fill.st.log10P[s] = lg
+			}
+			if ob.seenFill != nil {
+				ob.seenFill.st.log10P[s] = lg
 			}
 		}
 		u := (lg - ob.fineLo) * inv
@@ -585,6 +591,39 @@ func (ob *observer) bin(k int, fine, fineVar []float64, fineSlopes [][]float64, 
 		fineVar[base] += w2 * (1 - frac)
 		fineVar[base+1] += w2 * frac
 	}
+}
+
+// rotate works out stored star s's rotation (with its companion of comp
+// solar masses) through the law memo, and returns it with log10 of its
+// period when the law memo knows it (NaN otherwise).
+func (ob *observer) rotate(s int, comp float64, lawSrc, spotSrc *rand.PCG, lawR, spotR *rand.Rand) (rotation, float64) {
+	b, p := ob.bank, ob.obs
+	seed := b.Seed[s]
+	var sp spinState
+	lg := math.NaN()
+	known := false
+	if m := ob.memo; m != nil {
+		var mlg float64
+		if sp, mlg, known = m.st.get(s); known {
+			lg = mlg
+		}
+	}
+	if !known {
+		lawSrc.Seed(seed, 1)
+		st := spin.Star{MassMsun: float64(b.MassMsun[s]), AgeGyr: float64(b.AgeGyr[s]), BV: float64(b.BVMain[s]), TeffK: float64(b.TeffK[s])}
+		sp = p.spinPeriod(st, comp, lawR)
+	}
+	spotSrc.Seed(seed, 2)
+	var noise float64
+	if ob.sameNoise {
+		noise = float64(b.NoisePpm[s])
+	} else {
+		noise = p.Survey.Detect.Noise.PpmPerCadence(float64(b.AppMag[s]))
+	}
+	if ob.fill != nil {
+		ob.fill.st.put(s, sp, math.NaN())
+	}
+	return p.observeRotation(sp, noise, spotR), lg
 }
 
 // addSlopes adds a star of weight w before the search's factor, placed

@@ -112,30 +112,48 @@ func (m *memoStore) put(s int, sp spinState, nan float64) {
 	m.period[s], m.tau[s], m.log10P[s], m.flags[s] = sp.periodD, sp.tauD, nan, f
 }
 
-// lawMemo is every stored star's spin under one law.
-type lawMemo struct {
-	key lawKey
-	memoStore
+// memo is one key's per-star storage S (a memoStore or a seenStore).
+type memo[K comparable, S any] struct {
+	key K
+	st  S
 	// users counts the Observe calls reading it; dropped is set when it
 	// left the list, so that the last reader hands its storage back.
 	users   int
 	dropped bool
 }
 
-// lawMemos is a Bank's memo: the latest laws, most recent last. A memo is
-// made by one Observe (which alone writes it) and shared when that
-// Observe has finished; others only read it. One dropped memo's storage
-// is kept to be used again (spare): fresh storage for every law a fit
-// tries costs more in page faults than the memo saves.
-type lawMemos struct {
+// memoList is a Bank's memo of one kind: the latest keys, most recent
+// last, at most max of them. A memo is made by one Observe (which alone
+// writes it) and shared when that Observe has finished; others only read
+// it. One dropped memo's storage is kept to be used again (spare): fresh
+// storage for every law a fit tries costs more in page faults than the
+// memo saves.
+type memoList[K comparable, S any] struct {
 	mu      sync.Mutex
-	entries []*lawMemo
-	spare   *memoStore
+	max     int
+	entries []*memo[K, S]
+	spare   *S
+	// alloc makes storage for n stars; stars returns how many storage
+	// holds; forget marks every star of it unknown.
+	alloc  func(n int) S
+	stars  func(st *S) int
+	forget func(st *S)
+}
+
+// lawMemos is the memo of the stars' spins (spinPeriod) by law.
+type lawMemos = memoList[lawKey, memoStore]
+
+// lawMemo is every stored star's spin under one law.
+type lawMemo = memo[lawKey, memoStore]
+
+func newLawMemos() *lawMemos {
+	return &lawMemos{max: maxLawMemos, alloc: newMemoStore,
+		stars: func(st *memoStore) int { return len(st.flags) }, forget: func(st *memoStore) { clear(st.flags) }}
 }
 
 // find returns the memo of key for reading, nil if none; the caller
 // calls release when done with it.
-func (m *lawMemos) find(key lawKey) *lawMemo {
+func (m *memoList[K, S]) find(key K) *memo[K, S] {
 	if m == nil {
 		return nil
 	}
@@ -152,7 +170,7 @@ func (m *lawMemos) find(key lawKey) *lawMemo {
 }
 
 // release ends a read of e that find began.
-func (m *lawMemos) release(e *lawMemo) {
+func (m *memoList[K, S]) release(e *memo[K, S]) {
 	if m == nil || e == nil {
 		return
 	}
@@ -160,43 +178,44 @@ func (m *lawMemos) release(e *lawMemo) {
 	defer m.mu.Unlock()
 	e.users--
 	if e.dropped && e.users == 0 {
-		m.keepSpare(&e.memoStore)
+		m.keepSpare(&e.st)
 	}
 }
 
 // keepSpare keeps st's storage for the next memo if there is no spare
 // yet, and lets it go otherwise. m.mu is held.
-func (m *lawMemos) keepSpare(st *memoStore) {
+func (m *memoList[K, S]) keepSpare(st *S) {
 	if m.spare == nil {
 		kept := *st
 		m.spare = &kept
 	}
-	*st = memoStore{}
+	var zero S
+	*st = zero
 }
 
 // newMemo returns a memo of key for n stars to fill, on the spare
 // storage when there is one (every star unknown).
-func (m *lawMemos) newMemo(key lawKey, n int) *lawMemo {
+func (m *memoList[K, S]) newMemo(key K, n int) *memo[K, S] {
 	m.mu.Lock()
 	sp := m.spare
-	if sp != nil && len(sp.flags) == n {
+	if sp != nil && m.stars(sp) == n {
 		m.spare = nil
 	} else {
 		sp = nil
 	}
 	m.mu.Unlock()
-	e := &lawMemo{key: key}
+	e := &memo[K, S]{key: key}
 	if sp == nil {
-		e.memoStore = newMemoStore(n)
+		e.st = m.alloc(n)
 	} else {
-		e.memoStore = *sp
-		clear(e.flags) // every star unknown; the rest is written before it is read
+		e.st = *sp
+		m.forget(&e.st) // every star unknown; the rest is written before it is read
 	}
 	return e
 }
 
-// add keeps e, dropping the least recently used beyond maxLawMemos.
-func (m *lawMemos) add(e *lawMemo) {
+// add keeps e, dropping the least recently used beyond max.
+func (m *memoList[K, S]) add(e *memo[K, S]) {
 	if m == nil {
 		return
 	}
@@ -205,17 +224,17 @@ func (m *lawMemos) add(e *lawMemo) {
 	for _, o := range m.entries {
 		if o.key == e.key {
 			// Made by a concurrent Observe: the same numbers.
-			m.keepSpare(&e.memoStore)
+			m.keepSpare(&e.st)
 			return
 		}
 	}
 	m.entries = append(m.entries, e)
-	for len(m.entries) > maxLawMemos {
+	for len(m.entries) > m.max {
 		old := m.entries[0]
 		m.entries = append(m.entries[:0:0], m.entries[1:]...)
 		old.dropped = true
 		if old.users == 0 {
-			m.keepSpare(&old.memoStore)
+			m.keepSpare(&old.st)
 		}
 	}
 }

@@ -463,6 +463,10 @@ func (c *Comparison) setNuisance(ctx context.Context, params []compare.NuisanceP
 			obs.SearchParams[j] = true
 		}
 	}
+	obs.Depth = make([]int, len(params))
+	for j, p := range params {
+		obs.Depth[j] = scenarios.ObservationDepth(p.Name)
+	}
 	obs.SearchGradient = func(values []float64, j int) ([]float64, error) {
 		s2, err := at(values)
 		if err != nil {

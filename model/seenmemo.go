@@ -1,0 +1,107 @@
+package model
+
+import (
+	"reflect"
+
+	"spinpop/model/spots"
+)
+
+// A fit's side points of the color calibration and of the binary share
+// (and the pattern moves that change only those) leave every stored
+// star's period, spot amplitude and detection probability where they
+// were: only which color column a star falls in, whether it passes the
+// color cuts, and its weight change. Bank keeps, per star, what
+// observeRotation returned for the latest two combinations of law, spots,
+// detection and search (seenMemo), so that such a re-observation skips
+// the spin-down law, the spot draw and the detection altogether. As with
+// the law memo, what is kept is what the same calls return, so templates
+// do not depend on whether it was used (TestObserveSeenMemoIdentical).
+
+// maxSeenMemos is how many combinations a Bank keeps: a round's color
+// side points come one after the other, so two suffice; 41 bytes a
+// stored star each, and one spare set of storage.
+const maxSeenMemos = 2
+
+// searchKey is a search completeness by value: its band efficiencies as
+// an array (a slice is not comparable).
+type searchKey struct {
+	halfPeriodD, turnoverPower, steepness float64
+	nBands                                int
+	bands                                 [len(spots.RossbyNodesD)]float64
+}
+
+// seenKey is what decides observeRotation's answer for a stored star,
+// given its noise: the law's key, the spot model, the detection (its
+// noise model decides the noise) and the search completeness.
+type seenKey struct {
+	law      lawKey
+	hasSpots bool
+	spots    spots.AmplitudeModel
+	detect   spots.Detection
+	search   searchKey
+}
+
+// seenKeyOf returns p's seen key, and whether it may be kept (as keyOf).
+func seenKeyOf(p *Population) (seenKey, bool) {
+	lk, ok := keyOf(p)
+	s := p.Survey.Search
+	if !ok || len(s.RossbyBands) > len(spots.RossbyNodesD) {
+		return seenKey{}, false
+	}
+	k := seenKey{law: lk, detect: p.Survey.Detect,
+		search: searchKey{halfPeriodD: s.HalfPeriodD, turnoverPower: s.TurnoverPower, steepness: s.Steepness, nBands: len(s.RossbyBands)}}
+	copy(k.search.bands[:], s.RossbyBands)
+	if p.Spots != nil {
+		k.hasSpots, k.spots = true, *p.Spots
+	}
+	return k, byValue(reflect.ValueOf(k))
+}
+
+// Flags of a seen memo's star.
+const (
+	seenKnown uint8 = 1 << iota // the pass that made the memo reached the star
+	seenOK                      // rotation.ok
+)
+
+// seenStore is the per-star storage of a seen memo: the parts of a
+// rotation that binning reads, and log10 of the period (NaN until a pass
+// needs it).
+type seenStore struct {
+	prob, preSearch, tauRatio, period, log10P []float64
+	flags                                     []uint8
+}
+
+func newSeenStore(n int) seenStore {
+	return seenStore{prob: make([]float64, n), preSearch: make([]float64, n), tauRatio: make([]float64, n),
+		period: make([]float64, n), log10P: make([]float64, n), flags: make([]uint8, n)}
+}
+
+// get returns star s's rotation (the fields binning reads) and log10 P,
+// and whether the memo has them.
+func (m *seenStore) get(s int) (rotation, float64, bool) {
+	f := m.flags[s]
+	if f&seenKnown == 0 {
+		return rotation{}, 0, false
+	}
+	return rotation{periodD: m.period[s], prob: m.prob[s], preSearch: m.preSearch[s], tauRatio: m.tauRatio[s], ok: f&seenOK != 0}, m.log10P[s], true
+}
+
+// put keeps star s's rotation and log10 P (NaN if not yet worked out).
+func (m *seenStore) put(s int, r rotation, lg float64) {
+	f := seenKnown
+	if r.ok {
+		f |= seenOK
+	}
+	m.period[s], m.prob[s], m.preSearch[s], m.tauRatio[s], m.log10P[s], m.flags[s] = r.periodD, r.prob, r.preSearch, r.tauRatio, lg, f
+}
+
+// seenMemos is the memo of the stars' rotations by seen key.
+type seenMemos = memoList[seenKey, seenStore]
+
+// seenMemo is every stored star's rotation under one seen key.
+type seenMemo = memo[seenKey, seenStore]
+
+func newSeenMemos() *seenMemos {
+	return &seenMemos{max: maxSeenMemos, alloc: newSeenStore,
+		stars: func(st *seenStore) int { return len(st.flags) }, forget: func(st *seenStore) { clear(st.flags) }}
+}

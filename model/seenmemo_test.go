@@ -1,0 +1,92 @@
+package model
+
+import (
+	"context"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"spinpop/model/spin"
+	"spinpop/model/spots"
+)
+
+// Re-observations that read the stars' rotations from the seen memo give
+// the same bits as those that work every star out afresh, in the order a
+// fit's round makes them: the color calibration's side points and the
+// binary share's read the memo the run's pass made; a stretched color
+// scale brings in stars no pass reached; the spots, the detection
+// threshold, the noise and the law each need their own; the search
+// nodes with their derivatives too. Only maxSeenMemos are kept.
+func TestObserveSeenMemoIdentical(t *testing.T) {
+	p := testPopulation(t, 4)
+	g := bankGrid()
+	_, bank := randomTemplatesAndBank(t, p, g, 300_000, BankMargin{ColorMag: 0.06, BandMag: 0.1})
+	ctx := context.Background()
+	change := func(f func(q *Population)) *Population {
+		q := *p
+		f(&q)
+		require.NoError(t, q.Prepare())
+		return &q
+	}
+	amp := spots.DefaultAmplitudeModel()
+	amp.RoSat, amp.Slope = 0.11, 1.7
+	noisier := p.Survey.Detect
+	noisier.Noise.FloorPpm *= 2
+	steps := []struct {
+		name string
+		pop  *Population
+		base float64 // the binary fraction scale of the bank's run to weigh against
+		hit  bool    // the rotations are in the memo before this pass
+	}{
+		{"as run", p, 1, false},
+		{"color offset +0.05", change(func(q *Population) { q.Survey.Color = ColorCalibration{OffsetMag: 0.05} }), 1, true},
+		{"color offset -0.05", change(func(q *Population) { q.Survey.Color = ColorCalibration{OffsetMag: -0.05} }), 1, true},
+		{"binary share 1.3", change(func(q *Population) { q.Binaries.FractionScale = 1.3 }), 1, true},
+		// Stretched colors bring stars across the main-sequence band's
+		// edges that no pass before reached (the memo does not know them).
+		{"color scale 1.04", change(func(q *Population) { q.Survey.Color = ColorCalibration{Scale: 1.04} }), 1, true},
+		{"spots", change(func(q *Population) { q.Spots = &amp }), 1, false},
+		{"spots, color offset", change(func(q *Population) { q.Spots = &amp; q.Survey.Color = ColorCalibration{OffsetMag: 0.03} }), 1, true},
+		{"threshold", change(func(q *Population) { q.Survey.Detect.ThresholdSNR *= 1.2 }), 1, false},
+		{"noise", change(func(q *Population) { q.Survey.Detect = noisier }), 1, false},
+		{"law", change(func(q *Population) { q.Law = spin.Scattered{Law: q.Law, Dex: 0.08} }), 1, false},
+		{"as run again (dropped)", p, 1, false},
+		{"search nodes", change(func(q *Population) {
+			q.Survey.Search = spots.SearchCompleteness{RossbyBands: []float64{1, 0.9, 0.7, 0.5, 0.3, 0.2}, TurnoverPower: 1}
+		}), 1, false},
+		{"search nodes, color offset", change(func(q *Population) {
+			q.Survey.Search = spots.SearchCompleteness{RossbyBands: []float64{1, 0.9, 0.7, 0.5, 0.3, 0.2}, TurnoverPower: 1}
+			q.Survey.Color = ColorCalibration{OffsetMag: 0.02}
+		}), 1, true},
+	}
+	has := func(key seenKey) bool {
+		e := bank.seen.find(key)
+		bank.seen.release(e)
+		return e != nil
+	}
+	for _, st := range steps {
+		key, ok := seenKeyOf(st.pop)
+		require.True(t, ok, st.name)
+		assert.Equal(t, st.hit, has(key), "%s: memo before the pass", st.name)
+		opts := ObserveOptions{BaseFractionScale: st.base}
+		if len(st.pop.Survey.Search.RossbyBands) > 0 {
+			opts.BandSlopes = []int{1, 3}
+		}
+		got, gotVar, gotSlopes, err := bank.ObserveSlopes(ctx, st.pop, g, opts)
+		require.NoError(t, err, st.name)
+		opts.noMemo = true
+		want, wantVar, wantSlopes, err := bank.ObserveSlopes(ctx, st.pop, g, opts)
+		require.NoError(t, err, st.name)
+		assert.Equal(t, want, got, st.name)
+		assert.Equal(t, wantVar, gotVar, st.name)
+		assert.Equal(t, wantSlopes, gotSlopes, st.name)
+		assert.True(t, has(key), "%s: memo after the pass", st.name)
+		assert.LessOrEqual(t, len(bank.seen.entries), maxSeenMemos)
+	}
+	// The key holds every part of the detection: two that differ in one
+	// field only are different keys.
+	k1, _ := seenKeyOf(p)
+	k2, _ := seenKeyOf(change(func(q *Population) { q.Survey.Detect.Sharpness++ }))
+	assert.NotEqual(t, k1, k2)
+}
