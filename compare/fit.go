@@ -57,6 +57,10 @@ type FitResult struct {
 	// (FitOptions.MaxRounds) with the last one still improving ln L: the answer may
 	// not be the maximum, and Converged is false.
 	RoundLimit bool
+	// LastGain is how much ln L rose in the search's last round (0 when
+	// the last round did not move the centre): with RoundLimit, how far
+	// from converged the answer is.
+	LastGain float64
 	// OtherMaxima are where FitJoint's other searches from its starting
 	// grid ended (lower ln L), best first: a maximum close in ln L but
 	// far in the answer says the answer is less certain than an interval

@@ -153,6 +153,7 @@ func searchFrom(ctx context.Context, like *Likelihood, m HistoryModel, nu *Nuisa
 	var mo *morph
 	round := 0
 	improving := false // the last round moved the centre
+	lastGain := 0.0    // what it gained
 	for round < opts.MaxRounds {
 		round++
 		if err := ctx.Err(); err != nil {
@@ -259,12 +260,13 @@ func searchFrom(ctx context.Context, like *Likelihood, m HistoryModel, nu *Nuisa
 					steps[j] = math.Min(2*steps[j], (p.Max-p.Min)/4)
 				}
 			}
+			lastGain = cand.LogL - best.LogL
 			best = cand
 			centre = append([]float64(nil), cand.Nuisance...)
 			improving = true
 			continue
 		}
-		improving = false
+		improving, lastGain = false, 0
 		if !far {
 			break // the expansion agrees: the centre is the maximum
 		}
@@ -281,6 +283,7 @@ func searchFrom(ctx context.Context, like *Likelihood, m HistoryModel, nu *Nuisa
 	}
 	best.Rounds = round
 	best.RoundLimit = round == opts.MaxRounds && improving
+	best.LastGain = lastGain
 	best.Converged = best.Converged && !best.RoundLimit
 	best.Evaluations = evals
 	return best, mo, steps, nil

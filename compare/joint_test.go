@@ -183,6 +183,7 @@ func TestFitJointRecoversNuisanceAndBurst(t *testing.T) {
 	assert.InDelta(t, trueNu[1], joint.Nuisance[1], 0.004, "color offset")
 	require.NotNil(t, joint.Templates)
 	assert.False(t, joint.RoundLimit, "converged well inside the round limit")
+	assert.Zero(t, joint.LastGain, "its last round found nothing better")
 	assert.Empty(t, joint.OtherMaxima, "no starting grid: one search")
 
 	// Stopped after one expansion, which moved the centre toward the
@@ -192,6 +193,10 @@ func TestFitJointRecoversNuisanceAndBurst(t *testing.T) {
 	assert.True(t, short.RoundLimit)
 	assert.False(t, short.Converged)
 	assert.NotEqual(t, nu.Nominal(), short.Nuisance, "the one expansion moved")
+	start, err := profileAtValues(context.Background(), like, m, nu, nu.Nominal(), FitOptions{Starts: 3})
+	require.NoError(t, err)
+	assert.Greater(t, short.LastGain, 0.0)
+	assert.InDelta(t, short.LogL-start.LogL, short.LastGain, 1e-9, "what the one round gained over the start")
 
 	// Held at the nominal values: the burst moves.
 	lnom, err := NewLikelihood(nominal, data, LikeOptions{TemplateNoise: NoiseIgnore})

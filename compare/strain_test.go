@@ -90,3 +90,30 @@ func TestVerdictCautionsOnStrains(t *testing.T) {
 	require.Equal(t, "none", strength)
 	assert.NotContains(t, text, "Caution")
 }
+
+// A claimed burst whose fits stopped at their round limit while ln L was
+// still rising by more than half a unit a round says so in the verdict;
+// one that gained less in its last round, or a verdict of no burst, does
+// not.
+func TestVerdictCautionsWhenUnconverged(t *testing.T) {
+	r := &BurstResult{Replicates: 100, PValue: 0.005, LR: 30, DeltaLogL: 15,
+		Smooth: FitResult{Rounds: 12, RoundLimit: true, LastGain: 0.3},
+		Burst:  FitResult{Rounds: 12, RoundLimit: true, LastGain: 5.07}}
+	strength, _, _, text := verdict(r)
+	require.Equal(t, "moderate", strength)
+	assert.Contains(t, text, "Caution: the with-burst fit stopped at its limit of 12 expansions with ln L still rising by 5.1 a round")
+	assert.NotContains(t, text, "smooth-history fit stopped", "0.3 a round is near enough")
+
+	r.Smooth.LastGain = 2
+	_, _, _, text = verdict(r)
+	assert.Contains(t, text, "the smooth-history fit stopped at its limit of 12 expansions with ln L still rising by 2.0 a round and the with-burst fit")
+
+	r.Smooth.RoundLimit, r.Burst.RoundLimit = false, false
+	_, _, _, text = verdict(r)
+	assert.NotContains(t, text, "Caution")
+
+	r.Burst.RoundLimit, r.PValue = true, 0.5
+	strength, _, _, text = verdict(r)
+	require.Equal(t, "none", strength)
+	assert.NotContains(t, text, "Caution")
+}

@@ -98,10 +98,35 @@ func verdict(r *BurstResult) (strength, reason, calibration, text string) {
 		}
 		sentence += fmt.Sprintf(" Caution: the fit strains %s, so the burst's age may be biased beyond its interval.", strings.Join(names, ", "))
 	}
+	if strength != "none" {
+		sentence += unconvergedCaution(r)
+	}
 	if !adequate {
 		return strength, "", calibration, fmt.Sprintf("The models do not describe the catalog fully: %s. Judged against that misfit (quasi-likelihood), %s", misfit, sentence)
 	}
 	return strength, "", calibration, strings.ToUpper(sentence[:1]) + sentence[1:] + " " + fitText
+}
+
+// unconvergedCaution is the verdict's caution when a fit stopped at its
+// round limit while ln L was still rising by more than half a unit a
+// round ("" otherwise): an unfinished smooth fit inflates the likelihood
+// ratio, an unfinished burst fit leaves the age where the search
+// stopped. Half a unit is a quarter of the 1.92 that bounds a 95 %
+// interval in one parameter.
+func unconvergedCaution(r *BurstResult) string {
+	var parts []string
+	for _, f := range []struct {
+		name string
+		fit  FitResult
+	}{{"smooth-history", r.Smooth}, {"with-burst", r.Burst}} {
+		if f.fit.RoundLimit && f.fit.LastGain > 0.5 {
+			parts = append(parts, fmt.Sprintf("the %s fit stopped at its limit of %d expansions with ln L still rising by %.1f a round", f.name, f.fit.Rounds, f.fit.LastGain))
+		}
+	}
+	if len(parts) == 0 {
+		return ""
+	}
+	return fmt.Sprintf(" Caution: %s, so the likelihood ratio and the burst's age are those of where the search stopped, not of the maximum.", strings.Join(parts, " and "))
 }
 
 // WorstRegions names, for messages, up to two regions with the largest

@@ -124,7 +124,7 @@ func FitReport(f compare.FitResult) map[string]any {
 		others = append(others, map[string]any{"params": q, "log_l": Finite(o.LogL), "stopped_at_round_limit": o.RoundLimit})
 	}
 	return map[string]any{"params": p, "log_l": Finite(f.LogL), "log_prior": Finite(f.LogPrior), "expansions": f.Rounds,
-		"converged": f.Converged, "stopped_at_round_limit": f.RoundLimit, "other_maxima": others,
+		"converged": f.Converged, "stopped_at_round_limit": f.RoundLimit, "last_round_gain": Finite(f.LastGain), "other_maxima": others,
 		"evaluations": f.Evaluations, "age_bin_weights": FiniteAll(f.Weights)}
 }
 

@@ -25,12 +25,12 @@ func TestBurstSummaryWarnsOfRoundLimit(t *testing.T) {
 	out := &pipeline.BurstOutcome{
 		Test: &compare.BurstResult{
 			Smooth: compare.FitResult{Rounds: 5, Converged: true},
-			Burst:  compare.FitResult{Rounds: 12, RoundLimit: true},
+			Burst:  compare.FitResult{Rounds: 12, RoundLimit: true, LastGain: 3.25},
 		},
 		Heights: &compare.HeightResult{SplitAgeGyr: 0.8},
 	}
 	text := summaryText(out)
-	assert.Contains(t, text, "warning: the with-burst fit stopped at its limit of 12 expansions while ln L was still rising")
+	assert.Contains(t, text, "warning: the with-burst fit stopped at its limit of 12 expansions while ln L was still rising (by 3.25 in its last)")
 	assert.NotContains(t, text, "the smooth-history fit stopped")
 	assert.Less(t, strings.Index(text, "warning:"), strings.Index(text, "smooth history: ln L"), "the warning comes first")
 
