@@ -35,6 +35,7 @@ type AltOptions struct {
 	ReplicateStarts int // starts of each replicate's refits (0: 2)
 	Progress        func(done, total int)
 	NoEvidence      bool
+	MaxRounds       int // bounds the expansions of each joint fit to the data (0: MaxRounds)
 }
 
 // AltFit is one alternative fitted to the data.
@@ -127,7 +128,7 @@ func CompareAlternatives(ctx context.Context, alts []Alternative, opts AltOption
 	regs := misfitRegions(alts[0].Like.Space())
 	data := make([]devianceRecord, len(alts))
 	for h, a := range alts {
-		f, err := FitJoint(ctx, a.Like, a.History, a.Nuisance, FitOptions{Starts: opts.FitStarts, Seed: opts.Seed})
+		f, err := FitJoint(ctx, a.Like, a.History, a.Nuisance, FitOptions{Starts: opts.FitStarts, Seed: opts.Seed, MaxRounds: opts.MaxRounds})
 		if err != nil {
 			return nil, fmt.Errorf("compare: fit of %q: %w", a.Name, err)
 		}

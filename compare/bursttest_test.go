@@ -239,3 +239,31 @@ func TestRivalAges(t *testing.T) {
 	r.Burst.OtherMaxima[0].LogL = -1211.2
 	assert.Empty(t, r.RivalAges(), "Δ 2.0 > 1.92 unscaled")
 }
+
+// TestOptions.MaxRounds bounds the joint fits of the burst test: with one
+// expansion allowed, a fit that starts away from the truth stops there
+// and says it was still rising, with what that round gained.
+func TestBurstTestMaxRounds(t *testing.T) {
+	_, smooth, burst := chernoffSetup(t)
+	obs := scatterObserver{t: t, edges: smooth.AgeEdgesGyr}
+	truth, err := obs.Observe(context.Background(), []float64{0.1})
+	require.NoError(t, err)
+	nu := &Nuisance{Source: obs, Params: []NuisanceParam{{Name: "scatter", Nominal: 0.05, Min: 0.03, Max: 0.15, Sigma: 0.05}}}
+	w, err := smooth.Weights(nil)
+	require.NoError(t, err)
+	l, err := NewLikelihood(truth, asimov(truth, w, 3000), LikeOptions{TemplateNoise: NoiseIgnore})
+	require.NoError(t, err)
+	opts := TestOptions{Replicates: 5, Seed: 1, Workers: 2, NoProfile: true, NoEvidence: true, Nuisance: nu, MaxRounds: 1}
+	res, err := BurstTest(context.Background(), l, smooth, burst, opts)
+	require.NoError(t, err)
+	assert.Equal(t, 1, res.Smooth.Rounds)
+	assert.True(t, res.Smooth.RoundLimit)
+	assert.Greater(t, res.Smooth.LastGain, 0.0)
+	assert.LessOrEqual(t, res.Burst.Rounds, 1)
+
+	opts.MaxRounds = 0 // the default lets it finish
+	res, err = BurstTest(context.Background(), l, smooth, burst, opts)
+	require.NoError(t, err)
+	assert.Greater(t, res.Smooth.Rounds, 1)
+	assert.False(t, res.Smooth.RoundLimit)
+}

@@ -30,7 +30,7 @@ type BurstOutcome struct {
 func (c *Comparison) BurstTest(ctx context.Context, replicates int, progress func(done, total int)) (*BurstOutcome, error) {
 	tr, err := compare.BurstTest(ctx, c.Likelihood, c.Smooth, c.Burst, compare.TestOptions{
 		Replicates: replicates, Seed: c.Scenario.Run.Seed, Workers: c.Workers, Progress: progress,
-		Nuisance: c.Nuisance, Stage: c.Stage, AgeCalibration: c.ageCalibration(),
+		Nuisance: c.Nuisance, Stage: c.Stage, AgeCalibration: c.ageCalibration(), MaxRounds: c.MaxRounds,
 	})
 	if err != nil {
 		if ctx.Err() != nil {

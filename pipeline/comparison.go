@@ -41,6 +41,7 @@ type Comparison struct {
 	// expansion of the templates), for progress reports.
 	Stage        func(msg string)
 	Workers      int
+	MaxRounds    int // bounds each joint fit's expansions (0: compare.MaxRounds)
 	SetupSeconds float64
 	// Data stars left out because no template star reached their
 	// (color, period) cell, and how many such cells there were.
@@ -74,6 +75,10 @@ type ComparisonOptions struct {
 	// Warn, if set, is told of trouble the run goes on without (a
 	// template cache that cannot be written, say).
 	Warn func(msg string)
+	// MaxRounds bounds the expansions of every joint fit (0:
+	// compare.MaxRounds): a fit that stops at the limit while still
+	// rising can be let run longer.
+	MaxRounds int
 }
 
 // RequireData checks that a scenario names an observed catalog and that
@@ -129,7 +134,7 @@ func SetupComparison(ctx context.Context, res *scenarios.Resolved, opts Comparis
 	if workers <= 0 {
 		workers = defaultWorkers()
 	}
-	c := &Comparison{Resolved: res, Scenario: s, Source: arg, Workers: workers}
+	c := &Comparison{Resolved: res, Scenario: s, Source: arg, Workers: workers, MaxRounds: opts.MaxRounds}
 	var err error
 	if c.Built, err = Build(s, arg); err != nil {
 		return nil, err
@@ -424,7 +429,7 @@ func (c *Comparison) perColor() bool {
 // parameters when there are any (starting from nuStart, nil for their
 // scenario values).
 func (c *Comparison) Fit(ctx context.Context, m compare.HistoryModel, nuStart []float64) (compare.FitResult, error) {
-	return compare.FitJoint(ctx, c.Likelihood, m, c.Nuisance, compare.FitOptions{Seed: c.Scenario.Run.Seed, NuisanceStart: nuStart, Stage: c.Stage})
+	return compare.FitJoint(ctx, c.Likelihood, m, c.Nuisance, compare.FitOptions{Seed: c.Scenario.Run.Seed, NuisanceStart: nuStart, MaxRounds: c.MaxRounds, Stage: c.Stage})
 }
 
 // setNuisance makes the comparison's nuisance model: the template run's

@@ -9,6 +9,7 @@ import (
 	"path/filepath"
 	"runtime"
 
+	"spinpop/compare"
 	"spinpop/internal/outset"
 	"spinpop/pipeline"
 	"spinpop/scenarios"
@@ -19,6 +20,7 @@ type compareFlags struct {
 	out, templates *string
 	force, asJSON  *bool
 	threads        *int
+	maxRounds      *int
 	sets           *stringList // --set overrides; nil for none
 }
 
@@ -34,6 +36,7 @@ func addCompareFlags(fs *flag.FlagSet) compareFlags {
 		force:     fs.Bool("force", false, "write into a non-empty folder, replacing this tool's files there"),
 		asJSON:    fs.Bool("json", false, "print every number as JSON"),
 		threads:   fs.Int("threads", runtime.GOMAXPROCS(0), "worker threads (results do not depend on it)"),
+		maxRounds: fs.Int("max-rounds", compare.MaxRounds, "most expansions a fit with nuisance parameters makes; raise it when a fit says it stopped still rising"),
 	}
 }
 
@@ -101,6 +104,9 @@ func setupResolved(ctx context.Context, res *scenarios.Resolved, arg string, f c
 	if *f.threads < 1 {
 		return nil, usageErrorf("--threads must be at least 1")
 	}
+	if *f.maxRounds < 1 || *f.maxRounds > 200 {
+		return nil, usageErrorf("--max-rounds %d: want 1 to 200 (default %d)", *f.maxRounds, compare.MaxRounds)
+	}
 	if err := pipeline.RequireData(res, arg); err != nil {
 		return nil, err
 	}
@@ -111,7 +117,7 @@ func setupResolved(ctx context.Context, res *scenarios.Resolved, arg string, f c
 	var bar *progressBar
 	defer func() { bar.Done() }()
 	c, err := pipeline.SetupComparison(ctx, res, pipeline.ComparisonOptions{
-		Source: arg, Workers: *f.threads, TemplateDir: *f.templates,
+		Source: arg, Workers: *f.threads, TemplateDir: *f.templates, MaxRounds: *f.maxRounds,
 		WriteRejected: func(write func(io.Writer) error) error {
 			return out.Write(of.sub+"rejected.csv", write)
 		},

@@ -273,7 +273,7 @@ func printBurstSummary(w io.Writer, r *pipeline.BurstOutcome) {
 func warnRoundLimits(w io.Writer, names []string, fits []compare.FitResult) {
 	for i, f := range fits {
 		if f.RoundLimit {
-			fmt.Fprintf(w, "warning: the %s fit stopped at its limit of %d expansions while ln L was still rising (by %.2f in its last): it may not be the maximum, and the test compares the fits as found\n", names[i], f.Rounds, f.LastGain)
+			fmt.Fprintf(w, "warning: the %s fit stopped at its limit of %d expansions while ln L was still rising (by %.2f in its last): it may not be the maximum (--max-rounds lets it run longer), and the test compares the fits as found\n", names[i], f.Rounds, f.LastGain)
 		}
 	}
 }
