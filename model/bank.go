@@ -548,6 +548,9 @@ func (ob *observer) bin(k int, fine, fineVar []float64, fineSlopes [][]float64, 
 			var mlg float64
 			if rot, mlg, seen = m.st.get(s); seen {
 				lg = mlg
+				if rot.ok {
+					p.searchFactor(&rot)
+				}
 			}
 		}
 		if !seen {

@@ -486,13 +486,22 @@ func (p *Population) observeRotation(sp spinState, noisePpm float64, spotR *rand
 		rot.prob = 0
 	}
 	rot.preSearch, rot.tauRatio = rot.prob, math.NaN()
-	if p.Survey.Search.Enabled() && rot.prob > 0 {
-		if p.Survey.Search.NeedsTurnover() && tauOK {
-			rot.tauRatio = tau / p.Turnover.Solar()
-		}
-		rot.prob *= p.Survey.Search.Efficiency(per, rot.tauRatio)
+	if p.Survey.Search.Enabled() && rot.prob > 0 && p.Survey.Search.NeedsTurnover() && tauOK {
+		rot.tauRatio = tau / p.Turnover.Solar()
 	}
+	p.searchFactor(&rot)
 	return rot
+}
+
+// searchFactor sets rot.prob to rot.preSearch times the search
+// completeness's efficiency at the star's period and τ_c/τ_c☉ (as
+// observeRotation does; Bank's seen memo applies it again to a star's
+// kept rotation under other nodes).
+func (p *Population) searchFactor(rot *rotation) {
+	rot.prob = rot.preSearch
+	if p.Survey.Search.Enabled() && rot.prob > 0 {
+		rot.prob *= p.Survey.Search.Efficiency(rot.periodD, rot.tauRatio)
+	}
 }
 
 // catalogCuts are the photometric catalog steps. A star that fails one

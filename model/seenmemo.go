@@ -18,39 +18,35 @@ import (
 // do not depend on whether it was used (TestObserveSeenMemoIdentical).
 
 // maxSeenMemos is how many combinations a Bank keeps: a round's color
-// side points come one after the other, so two suffice; 41 bytes a
+// side points come one after the other, so two suffice; 33 bytes a
 // stored star each, and one spare set of storage.
 const maxSeenMemos = 2
 
-// searchKey is a search completeness by value: its band efficiencies as
-// an array (a slice is not comparable).
-type searchKey struct {
-	halfPeriodD, turnoverPower, steepness float64
-	nBands                                int
-	bands                                 [len(spots.RossbyNodesD)]float64
-}
-
 // seenKey is what decides observeRotation's answer for a stored star,
-// given its noise: the law's key, the spot model, the detection (its
-// noise model decides the noise) and the search completeness.
+// given its noise, before the search completeness's factor: the law's
+// key, the spot model, the detection (its noise model decides the noise),
+// and whether the search completeness is on and reads τ_c (which decides
+// whether τ_c/τ_c☉ is worked out). The factor itself is applied again on
+// every read (searchFactor), so the search's nodes, which a fit moves
+// every round, are not part of the key, and the pass that makes a
+// centre's templates with their derivatives (every node at 1) serves the
+// side points that follow it.
 type seenKey struct {
-	law      lawKey
-	hasSpots bool
-	spots    spots.AmplitudeModel
-	detect   spots.Detection
-	search   searchKey
+	law             lawKey
+	hasSpots        bool
+	spots           spots.AmplitudeModel
+	detect          spots.Detection
+	searchOn, tauOn bool
 }
 
 // seenKeyOf returns p's seen key, and whether it may be kept (as keyOf).
 func seenKeyOf(p *Population) (seenKey, bool) {
 	lk, ok := keyOf(p)
-	s := p.Survey.Search
-	if !ok || len(s.RossbyBands) > len(spots.RossbyNodesD) {
+	if !ok {
 		return seenKey{}, false
 	}
-	k := seenKey{law: lk, detect: p.Survey.Detect,
-		search: searchKey{halfPeriodD: s.HalfPeriodD, turnoverPower: s.TurnoverPower, steepness: s.Steepness, nBands: len(s.RossbyBands)}}
-	copy(k.search.bands[:], s.RossbyBands)
+	s := p.Survey.Search
+	k := seenKey{law: lk, detect: p.Survey.Detect, searchOn: s.Enabled(), tauOn: s.NeedsTurnover()}
 	if p.Spots != nil {
 		k.hasSpots, k.spots = true, *p.Spots
 	}
@@ -64,26 +60,27 @@ const (
 )
 
 // seenStore is the per-star storage of a seen memo: the parts of a
-// rotation that binning reads, and log10 of the period (NaN until a pass
-// needs it).
+// rotation that binning reads but the search's factor, and log10 of the
+// period (NaN until a pass needs it).
 type seenStore struct {
-	prob, preSearch, tauRatio, period, log10P []float64
-	flags                                     []uint8
+	preSearch, tauRatio, period, log10P []float64
+	flags                               []uint8
 }
 
 func newSeenStore(n int) seenStore {
-	return seenStore{prob: make([]float64, n), preSearch: make([]float64, n), tauRatio: make([]float64, n),
+	return seenStore{preSearch: make([]float64, n), tauRatio: make([]float64, n),
 		period: make([]float64, n), log10P: make([]float64, n), flags: make([]uint8, n)}
 }
 
-// get returns star s's rotation (the fields binning reads) and log10 P,
-// and whether the memo has them.
+// get returns star s's rotation (the fields binning reads; prob without
+// the search's factor, which the caller applies) and log10 P, and
+// whether the memo has them.
 func (m *seenStore) get(s int) (rotation, float64, bool) {
 	f := m.flags[s]
 	if f&seenKnown == 0 {
 		return rotation{}, 0, false
 	}
-	return rotation{periodD: m.period[s], prob: m.prob[s], preSearch: m.preSearch[s], tauRatio: m.tauRatio[s], ok: f&seenOK != 0}, m.log10P[s], true
+	return rotation{periodD: m.period[s], prob: m.preSearch[s], preSearch: m.preSearch[s], tauRatio: m.tauRatio[s], ok: f&seenOK != 0}, m.log10P[s], true
 }
 
 // put keeps star s's rotation and log10 P (NaN if not yet worked out).
@@ -92,7 +89,7 @@ func (m *seenStore) put(s int, r rotation, lg float64) {
 	if r.ok {
 		f |= seenOK
 	}
-	m.period[s], m.prob[s], m.preSearch[s], m.tauRatio[s], m.log10P[s], m.flags[s] = r.periodD, r.prob, r.preSearch, r.tauRatio, lg, f
+	m.period[s], m.preSearch[s], m.tauRatio[s], m.log10P[s], m.flags[s] = r.periodD, r.preSearch, r.tauRatio, lg, f
 }
 
 // seenMemos is the memo of the stars' rotations by seen key.

@@ -59,6 +59,17 @@ func TestObserveSeenMemoIdentical(t *testing.T) {
 			q.Survey.Search = spots.SearchCompleteness{RossbyBands: []float64{1, 0.9, 0.7, 0.5, 0.3, 0.2}, TurnoverPower: 1}
 			q.Survey.Color = ColorCalibration{OffsetMag: 0.02}
 		}), 1, true},
+		// Other nodes: the kept rotations with the new nodes' factor.
+		{"other search nodes", change(func(q *Population) {
+			q.Survey.Search = spots.SearchCompleteness{RossbyBands: []float64{1, 0.2, 0.4, 0.9, 1, 0.6}, TurnoverPower: 1}
+		}), 1, true},
+		{"search nodes and a logistic loss", change(func(q *Population) {
+			q.Survey.Search = spots.SearchCompleteness{RossbyBands: []float64{1, 0.2, 0.4, 0.9, 1, 0.6}, TurnoverPower: 1, HalfPeriodD: 20, Steepness: 4}
+		}), 1, true},
+		// A search that does not read τ_c needs its own.
+		{"search nodes in period alone", change(func(q *Population) {
+			q.Survey.Search = spots.SearchCompleteness{RossbyBands: []float64{1, 0.2, 0.4, 0.9, 1, 0.6}}
+		}), 1, false},
 	}
 	has := func(key seenKey) bool {
 		e := bank.seen.find(key)
