@@ -74,7 +74,8 @@ type LocalMaximum struct {
 	LogL       float64
 	Theta      []float64 // history parameters, in FitResult.Names' order
 	Nuisance   []float64
-	RoundLimit bool // that search stopped at its round limit while improving
+	RoundLimit bool    // that search stopped at its round limit while improving
+	LastGain   float64 // what its last round gained (see FitResult.LastGain)
 }
 
 // LogLData returns the data's log-likelihood at the fit, without the

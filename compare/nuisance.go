@@ -514,6 +514,11 @@ func prefetchSides(ctx context.Context, nu *Nuisance, centre, steps []float64, s
 		return nil
 	}
 	rank := so.SideOrder()
+	if 2*(nu.Dim()-len(slopeOf))+1 > maxCachedSets {
+		// More side points than the cache keeps: the first made would be
+		// dropped before newMorph reads them, and made twice.
+		return nil
+	}
 	order := make([]int, nu.Dim())
 	for j := range order {
 		order[j] = j

@@ -11,9 +11,10 @@ import (
 // star's period, spot amplitude and detection probability where they
 // were: only which color column a star falls in, whether it passes the
 // color cuts, and its weight change. Bank keeps, per star, what
-// observeRotation returned for the latest two combinations of law, spots,
-// detection and search (seenMemo), so that such a re-observation skips
-// the spin-down law, the spot draw and the detection altogether. As with
+// observeRotation returned before the search completeness's factor for
+// the latest two combinations of law, spots and detection (seenMemo), so
+// that such a re-observation skips the spin-down law, the spot draw and
+// the detection altogether, and only applies the search's factor again. As with
 // the law memo, what is kept is what the same calls return, so templates
 // do not depend on whether it was used (TestObserveSeenMemoIdentical).
 

@@ -121,7 +121,7 @@ func FitReport(f compare.FitResult) map[string]any {
 		for i, n := range f.NuisanceNames {
 			q[n] = o.Nuisance[i]
 		}
-		others = append(others, map[string]any{"params": q, "log_l": Finite(o.LogL), "stopped_at_round_limit": o.RoundLimit})
+		others = append(others, map[string]any{"params": q, "log_l": Finite(o.LogL), "stopped_at_round_limit": o.RoundLimit, "last_round_gain": Finite(o.LastGain)})
 	}
 	return map[string]any{"params": p, "log_l": Finite(f.LogL), "log_prior": Finite(f.LogPrior), "expansions": f.Rounds,
 		"converged": f.Converged, "stopped_at_round_limit": f.RoundLimit, "last_round_gain": Finite(f.LastGain), "other_maxima": others,
@@ -178,17 +178,25 @@ func HeightReport(h *compare.HeightResult) map[string]any {
 }
 
 // Heights fits both hypotheses and checks the young fraction against
-// height at the gyrochrone of splitAgeGyr (0: see SplitAge).
-func (c *Comparison) Heights(ctx context.Context, splitAgeGyr float64) (*compare.HeightResult, error) {
+// height at the gyrochrone of splitAgeGyr (0: see SplitAge). It returns
+// the two fits too, smooth first (whether they finished: Rounds,
+// RoundLimit, LastGain).
+func (c *Comparison) Heights(ctx context.Context, splitAgeGyr float64) (*compare.HeightResult, [2]compare.FitResult, error) {
 	fs, err := c.Fit(ctx, c.Smooth, nil)
 	if err != nil {
-		return nil, err
+		return nil, [2]compare.FitResult{}, err
 	}
 	fb, err := c.Fit(ctx, c.Burst, fs.Nuisance)
 	if err != nil {
-		return nil, err
+		return nil, [2]compare.FitResult{}, err
 	}
-	return c.HeightCheck(c.SplitAge(splitAgeGyr, fb), fs, fb)
+	h, err := c.HeightCheck(c.SplitAge(splitAgeGyr, fb), fs, fb)
+	return h, [2]compare.FitResult{fs, fb}, err
+}
+
+// RoundsReport is whether a joint fit finished, for the JSON reports.
+func RoundsReport(f compare.FitResult) map[string]any {
+	return map[string]any{"rounds": f.Rounds, "stopped_at_round_limit": f.RoundLimit, "last_round_gain": Finite(f.LastGain)}
 }
 
 // ProfileZoomRange is the burst age's 95 % interval with a third of its

@@ -23,10 +23,13 @@ type Score struct {
 	// scenario values as written).
 	Nuisance      []float64
 	NuisanceNames []string
-	LogL          float64
-	Counts        []float64 // the data per comparison cell
-	Mu            []float64 // the model's expectation per cell
-	Resid         []float64 // Pearson residuals per cell
+	// Fit is the fit when ScoreOptions.Fit was set (its Rounds,
+	// RoundLimit and LastGain say whether it finished); zero otherwise.
+	Fit    compare.FitResult
+	LogL   float64
+	Counts []float64 // the data per comparison cell
+	Mu     []float64 // the model's expectation per cell
+	Resid  []float64 // Pearson residuals per cell
 	// PearsonChi2 is Σ residual² over the NumBins cells with a model
 	// expectation.
 	PearsonChi2 float64
@@ -88,6 +91,9 @@ func (c *Comparison) Score(ctx context.Context, opts ScoreOptions) (*Score, erro
 		fr = compare.FitResult{Theta: theta, Names: hm.Names(), Weights: w, LogL: c.Likelihood.LogL(w)}
 	}
 	sc := &Score{Label: label, Theta: theta, Names: hm.Names(), Nuisance: fr.Nuisance, NuisanceNames: fr.NuisanceNames, Marginals: map[string]MarginalTest{}}
+	if opts.Fit {
+		sc.Fit = fr
+	}
 	if opts.Replicates > 0 {
 		a, err := compare.GoodnessOfFit(ctx, c.Likelihood, hm, fr, compare.GoFOptions{Replicates: opts.Replicates, Seed: c.Scenario.Run.Seed,
 			Workers: c.Workers, Refit: opts.Fit, Nuisance: c.Nuisance, Progress: opts.Progress})

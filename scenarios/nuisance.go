@@ -73,11 +73,12 @@ var placementKeys = map[string]bool{"disk.sigma_10gyr_kms": true, "disk.heating_
 
 // ObservationDepth ranks a nuisance path by how much of a stored star's
 // observation a change of it makes again: 0 for the color calibration,
-// the binary share, the period recovery and the heating, which leave each
-// star's period, spots and detection probability alone (only its color
-// column, its weight or the recovery kernel change); 1 for the spots, the
-// detection, the noise and the search loss, which leave its period
-// alone; 2 for the rest (the spin-down law, the tidal lock). A fit's round
+// the binary share, the period recovery, the heating and the search loss,
+// which leave each star's period, spot amplitude and signal-to-noise
+// detection alone (only its color column, its weight, the recovery kernel
+// or the search's factor change); 1 for the spots, the detection and the
+// noise, which leave its period alone; 2 for the rest (the spin-down law,
+// the tidal lock). A fit's round
 // makes its side points in this order, so that the model's memos of the
 // centre's periods and detection probabilities (model.Bank) are still
 // there when the side points that can use them come. It changes no
@@ -86,10 +87,10 @@ func ObservationDepth(path string) int {
 	switch {
 	case path == "survey.color_offset_mag", path == "survey.color_scale", path == "stars.binary_fraction_scale",
 		path == "survey.period_scatter_rel", path == "survey.half_alias_prob", path == "survey.double_alias_prob",
-		placementKeys[path]:
+		placementKeys[path], strings.HasPrefix(path, "survey.search_"):
 		return 0
 	case strings.HasPrefix(path, "spin.spots."), strings.HasPrefix(path, "survey.detection_"),
-		strings.HasPrefix(path, "survey.search_"), strings.HasPrefix(path, "survey.noise_"):
+		strings.HasPrefix(path, "survey.noise_"):
 		return 1
 	}
 	return 2

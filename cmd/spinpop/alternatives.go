@@ -32,6 +32,7 @@ func runTestAlternatives(args []string, stdout, stderr io.Writer) error {
 			"explanation must read the same catalog with the same cuts and comparison space; their\n"+
 			"names (the name key, or the alternative's name) label them.", stdout)
 	cf := addCompareFlags(fs)
+	cf.addRoundsFlag(fs)
 	reps := fs.Int("replicates", 200, "bootstrap replicates under each explanation")
 	pos, err := parseInterleaved(fs, args)
 	if err != nil {

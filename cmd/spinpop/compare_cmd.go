@@ -20,6 +20,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 			"model per color range, and two-sample Kolmogorov–Smirnov and Anderson–Darling tests of\n"+
 			"the period, color and height distributions against a synthetic catalog of the scenario.", stdout)
 	cf := addCompareFlags(fs)
+	cf.addRoundsFlag(fs)
 	doFit := fs.Bool("fit", false, "fit the free parameters first")
 	reps := fs.Int("replicates", 200, "bootstrap replicates calibrating the goodness of fit (0: none)")
 	pos, err := parseInterleaved(fs, args)
@@ -88,6 +89,9 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	}
 	strains := compare.Strains(compare.FitResult{NuisanceNames: sc.NuisanceNames, Nuisance: sc.Nuisance}, c.Nuisance)
 	rep["nuisance_strains"] = pipeline.StrainsReport(strains)
+	if *doFit {
+		rep["fit"] = pipeline.RoundsReport(sc.Fit)
+	}
 	if err := writeJSON(out, "compare.json", rep); err != nil {
 		return err
 	}
@@ -102,6 +106,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	if s := compare.StrainWarning("the fit", strains, gaussian); s != "" {
 		fmt.Fprintf(w, "warning: %s\n\n", s)
 	}
+	warnRoundLimits(w, []string{"history"}, []compare.FitResult{sc.Fit})
 	printDataSummary(w, c.DataSummary())
 	fmt.Fprintf(w, "\nhistory %s:", sc.Label)
 	for i, n := range sc.Names {

@@ -227,3 +227,51 @@ drop = ["burst"]
 	assert.Equal(t, 2, code)
 	assert.Contains(t, errs, "names no [[compare.alternatives]]")
 }
+
+// --max-rounds reaches the fits of compare --fit and heights: allowed one
+// expansion from a color zero point set off the catalog's, each fit stops
+// still rising, and says so first, with what its round gained, in the
+// summary and the JSON. A value outside 1…200 is a usage error.
+func TestMaxRoundsReachesCompareAndHeights(t *testing.T) {
+	sc := fitScenario(t, `
+[[compare.free]]
+path = "history.burst.age_gyr"
+min = 0.1
+max = 3.0
+
+[[compare.free]]
+path = "survey.color_offset_mag"
+min = -0.1
+max = 0.1
+`)
+	common := []string{"--templates", "none", "--set", "compare.template_stars=1000000", "--set", "survey.color_offset_mag=0.06", "--max-rounds", "1"}
+	out := filepath.Join(t.TempDir(), "c")
+	code, stdout, errs := runCLI(append([]string{"compare", sc, "--fit", "--replicates", "0", "--out", out}, common...)...)
+	require.Equal(t, 0, code, errs)
+	assert.True(t, strings.HasPrefix(stdout, "warning: the history fit stopped at its limit of 1 expansions while ln L was still rising (by "), stdout)
+	var cj struct {
+		Fit struct {
+			Rounds int     `json:"rounds"`
+			Limit  bool    `json:"stopped_at_round_limit"`
+			Gain   float64 `json:"last_round_gain"`
+		} `json:"fit"`
+	}
+	b, err := os.ReadFile(filepath.Join(out, "compare.json"))
+	require.NoError(t, err)
+	require.NoError(t, json.Unmarshal(b, &cj))
+	assert.Equal(t, 1, cj.Fit.Rounds)
+	assert.True(t, cj.Fit.Limit)
+	assert.Greater(t, cj.Fit.Gain, 0.0)
+
+	out = filepath.Join(t.TempDir(), "h")
+	code, stdout, errs = runCLI(append([]string{"heights", sc, "--out", out}, common...)...)
+	require.Equal(t, 0, code, errs)
+	assert.Contains(t, stdout, "warning: the smooth-history fit stopped at its limit of 1 expansions")
+	b, err = os.ReadFile(filepath.Join(out, "heights.json"))
+	require.NoError(t, err)
+	assert.Contains(t, string(b), `"stopped_at_round_limit": true`)
+
+	code, _, errs = runCLI("test-burst", sc, "--out", filepath.Join(t.TempDir(), "t"), "--max-rounds", "0")
+	assert.Equal(t, 2, code)
+	assert.Contains(t, errs, "--max-rounds 0: want 1 to 200")
+}

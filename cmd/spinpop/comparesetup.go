@@ -36,8 +36,13 @@ func addCompareFlags(fs *flag.FlagSet) compareFlags {
 		force:     fs.Bool("force", false, "write into a non-empty folder, replacing this tool's files there"),
 		asJSON:    fs.Bool("json", false, "print every number as JSON"),
 		threads:   fs.Int("threads", runtime.GOMAXPROCS(0), "worker threads (results do not depend on it)"),
-		maxRounds: fs.Int("max-rounds", compare.MaxRounds, "most expansions a fit with nuisance parameters makes; raise it when a fit says it stopped still rising"),
 	}
+}
+
+// addRoundsFlag adds --max-rounds to a command whose fits move nuisance
+// parameters (compare --fit, test-burst, test-alternatives, heights).
+func (f *compareFlags) addRoundsFlag(fs *flag.FlagSet) {
+	f.maxRounds = fs.Int("max-rounds", compare.MaxRounds, "most expansions a fit with nuisance parameters makes; raise it when a fit says it stopped still rising")
 }
 
 func defaultTemplateDir() string {
@@ -104,8 +109,12 @@ func setupResolved(ctx context.Context, res *scenarios.Resolved, arg string, f c
 	if *f.threads < 1 {
 		return nil, usageErrorf("--threads must be at least 1")
 	}
-	if *f.maxRounds < 1 || *f.maxRounds > 200 {
-		return nil, usageErrorf("--max-rounds %d: want 1 to 200 (default %d)", *f.maxRounds, compare.MaxRounds)
+	maxRounds := 0 // the default
+	if f.maxRounds != nil {
+		if *f.maxRounds < 1 || *f.maxRounds > 200 {
+			return nil, usageErrorf("--max-rounds %d: want 1 to 200 (default %d)", *f.maxRounds, compare.MaxRounds)
+		}
+		maxRounds = *f.maxRounds
 	}
 	if err := pipeline.RequireData(res, arg); err != nil {
 		return nil, err
@@ -117,7 +126,7 @@ func setupResolved(ctx context.Context, res *scenarios.Resolved, arg string, f c
 	var bar *progressBar
 	defer func() { bar.Done() }()
 	c, err := pipeline.SetupComparison(ctx, res, pipeline.ComparisonOptions{
-		Source: arg, Workers: *f.threads, TemplateDir: *f.templates, MaxRounds: *f.maxRounds,
+		Source: arg, Workers: *f.threads, TemplateDir: *f.templates, MaxRounds: maxRounds,
 		WriteRejected: func(write func(io.Writer) error) error {
 			return out.Write(of.sub+"rejected.csv", write)
 		},

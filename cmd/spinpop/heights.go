@@ -21,6 +21,7 @@ func runHeights(args []string, stdout, stderr io.Writer) error {
 			"fitted history with a burst predict, by binomial likelihood. Young stars sit in a thinner\n"+
 			"layer than old ones, so the young fraction falls with height; a burst changes how fast.", stdout)
 	cf := addCompareFlags(fs)
+	cf.addRoundsFlag(fs)
 	split := fs.Float64("split-age-gyr", 0, "age of the splitting gyrochrone in Gyr (0: compare.split_age_gyr, else the fitted burst age)")
 	pos, err := parseInterleaved(fs, args)
 	if err != nil {
@@ -42,7 +43,7 @@ func runHeights(args []string, stdout, stderr io.Writer) error {
 		return err
 	}
 	out := of.set
-	h, err := c.Heights(ctx, *split)
+	h, fits, err := c.Heights(ctx, *split)
 	if err != nil {
 		if ctx.Err() != nil {
 			return interrupted(of.dir)
@@ -62,10 +63,12 @@ func runHeights(args []string, stdout, stderr io.Writer) error {
 		"outputs": outputs,
 	}
 	maps.Copy(rep, pipeline.HeightReport(h))
+	rep["fits"] = map[string]any{"smooth_history": pipeline.RoundsReport(fits[0]), "with_burst": pipeline.RoundsReport(fits[1])}
 	if err := writeJSON(out, "heights.json", rep); err != nil {
 		return err
 	}
 	var text strings.Builder
+	warnRoundLimits(&text, []string{"smooth-history", "with-burst"}, fits[:])
 	printDataSummary(&text, c.DataSummary())
 	printHeightTable(&text, h)
 	page := newReport("heights", "young fraction against height above the plane", c.Resolved, strings.Join(c.Resolved.Files, " ← "))

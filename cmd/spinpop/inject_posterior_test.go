@@ -353,8 +353,7 @@ func TestInjectPosteriorBadFlags(t *testing.T) {
 		{posteriorCmd, []string{sc, "--out", out, "--steps", "400", "--burn", "500"}, "--burn"},
 		{posteriorCmd, []string{sc, "--out", out, "--burn", "0"}, "--burn"},
 		{posteriorCmd, []string{sc, "--out", out, "--threads", "0"}, "--threads"},
-		{posteriorCmd, []string{sc, "--out", out, "--max-rounds", "0"}, "--max-rounds 0: want 1 to 200"},
-		{injectCmd, []string{sc, "--out", out, "--max-rounds", "500"}, "--max-rounds 500: want 1 to 200"},
+		{posteriorCmd, []string{sc, "--out", out, "--max-rounds", "20"}, "max-rounds"}, // makes no joint fit: no such flag
 		{posteriorCmd, []string{sc}, "--out DIR is required"},
 	} {
 		code, _, stderr := ipRun(ctx, c.f, c.args...)

@@ -25,6 +25,7 @@ func runTestBurst(args []string, stdout, stderr io.Writer) error {
 			"1954; Protassov et al. 2002), estimate the evidence ratio by grid integration, profile the\n"+
 			"burst age, and check the young fraction against height. Needs [data] in the scenario.", stdout)
 	cf := addCompareFlags(fs)
+	cf.addRoundsFlag(fs)
 	reps := fs.Int("replicates", -1, "bootstrap replicates (default: compare.bootstrap)")
 	pos, err := parseInterleaved(fs, args)
 	if err != nil {
@@ -273,7 +274,7 @@ func printBurstSummary(w io.Writer, r *pipeline.BurstOutcome) {
 func warnRoundLimits(w io.Writer, names []string, fits []compare.FitResult) {
 	for i, f := range fits {
 		if f.RoundLimit {
-			fmt.Fprintf(w, "warning: the %s fit stopped at its limit of %d expansions while ln L was still rising (by %.2f in its last): it may not be the maximum (--max-rounds lets it run longer), and the test compares the fits as found\n", names[i], f.Rounds, f.LastGain)
+			fmt.Fprintf(w, "warning: the %s fit stopped at its limit of %d expansions while ln L was still rising (by %.2f in its last): it may not be the maximum, and what follows is reported where the search stopped (--max-rounds lets it run longer)\n", names[i], f.Rounds, f.LastGain)
 		}
 	}
 }
