@@ -20,16 +20,8 @@ import (
 // laws seen last (maxLawMemos), and a law that cannot be compared is not
 // kept.
 func TestObserveLawMemoIdentical(t *testing.T) {
-	p := testPopulation(t, 4)
-	g := bankGrid()
-	_, bank := randomTemplatesAndBank(t, p, g, 300_000, BankMargin{ColorMag: 0.06, BandMag: 0.1})
+	p, g, bank, change := memoTestBank(t)
 	ctx := context.Background()
-	change := func(f func(q *Population)) *Population {
-		q := *p
-		f(&q)
-		require.NoError(t, q.Prepare())
-		return &q
-	}
 	amp := spots.DefaultAmplitudeModel()
 	amp.RoSat, amp.Slope = 0.11, 1.7
 	steps := []struct {
@@ -107,6 +99,22 @@ func TestObserveLawMemoIdentical(t *testing.T) {
 	q.Law = spin.Scattered{Law: &funcLaw{}, Dex: 0.05}
 	_, ok = keyOf(&q)
 	assert.False(t, ok)
+}
+
+// memoTestBank is the memo tests' population, grid and bank (with color
+// and band margins, so that color changes bring stars in), and change,
+// which returns a prepared copy of the population with f applied.
+func memoTestBank(t *testing.T) (*Population, Grid, *Bank, func(f func(q *Population)) *Population) {
+	p := testPopulation(t, 4)
+	g := bankGrid()
+	_, bank := randomTemplatesAndBank(t, p, g, 300_000, BankMargin{ColorMag: 0.06, BandMag: 0.1})
+	change := func(f func(q *Population)) *Population {
+		q := *p
+		f(&q)
+		require.NoError(t, q.Prepare())
+		return &q
+	}
+	return p, g, bank, change
 }
 
 // funcLaw is a law whose value cannot be compared.

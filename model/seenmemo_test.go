@@ -19,16 +19,8 @@ import (
 // threshold, the noise and the law each need their own; the search
 // nodes with their derivatives too. Only maxSeenMemos are kept.
 func TestObserveSeenMemoIdentical(t *testing.T) {
-	p := testPopulation(t, 4)
-	g := bankGrid()
-	_, bank := randomTemplatesAndBank(t, p, g, 300_000, BankMargin{ColorMag: 0.06, BandMag: 0.1})
+	p, g, bank, change := memoTestBank(t)
 	ctx := context.Background()
-	change := func(f func(q *Population)) *Population {
-		q := *p
-		f(&q)
-		require.NoError(t, q.Prepare())
-		return &q
-	}
 	amp := spots.DefaultAmplitudeModel()
 	amp.RoSat, amp.Slope = 0.11, 1.7
 	noisier := p.Survey.Detect
