@@ -418,7 +418,7 @@ func newMorph(ctx context.Context, like *Likelihood, nu *Nuisance, centre, steps
 			d = steps[j]
 		}
 		c := centre[j]
-		up, down := math.Min(c+d, p.Max), math.Max(c-d, p.Min)
+		up, down, makeUp, makeDown := sideValues(p, c, d)
 		mo.hi[j], mo.lo[j] = up-c, c-down
 		if ds, ok := slopeOf[j]; ok {
 			// The derivative itself: exact, as the templates are linear
@@ -438,15 +438,15 @@ func newMorph(ctx context.Context, like *Likelihood, nu *Nuisance, centre, steps
 			continue
 		}
 		var fp, fm []float64
-		if mo.hi[j] > 0 {
+		if makeUp {
 			if fp, err = mo.side(ctx, like, nu, centre, j, up); err != nil {
 				return nil, err
 			}
 		}
-		if p.Linear && fp != nil {
+		if p.Linear && makeUp {
 			mo.lo[j] = 0 // the trust region reaches as far down as up
 		}
-		if mo.lo[j] > 0 {
+		if makeDown {
 			if fm, err = mo.side(ctx, like, nu, centre, j, down); err != nil {
 				return nil, err
 			}
@@ -504,6 +504,18 @@ func (mo *morph) compact() {
 	mo.a, mo.b = nil, nil // the dense copies are not needed again
 }
 
+// sideValues returns where parameter p's side points about c lie a step d
+// away, inside its range, and which of them an expansion makes: the upper
+// one when it lies above c, the lower one when it lies below c — except
+// for a Linear parameter that has an upper one, where one side point
+// fixes the line.
+func sideValues(p NuisanceParam, c, d float64) (up, down float64, makeUp, makeDown bool) {
+	up, down = math.Min(c+d, p.Max), math.Max(c-d, p.Min)
+	makeUp = up > c
+	makeDown = down < c && !(p.Linear && makeUp)
+	return up, down, makeUp, makeDown
+}
+
 // prefetchSides makes the templates of an expansion's side points (those
 // newMorph will ask for: not the parameters in slopeOf) in the order the
 // source's SideOrder ranks them, and keeps them in nu's cache, where
@@ -534,14 +546,12 @@ func prefetchSides(ctx context.Context, nu *Nuisance, centre, steps []float64, s
 			d = steps[j]
 		}
 		c := centre[j]
-		up, down := math.Min(c+d, p.Max), math.Max(c-d, p.Min)
+		up, down, makeUp, makeDown := sideValues(p, c, d)
 		vals := []float64{}
-		if up > c {
+		if makeUp {
 			vals = append(vals, up)
 		}
-		// As newMorph: a Linear parameter with an upper side point needs
-		// no lower one.
-		if down < c && !(p.Linear && up > c) {
+		if makeDown {
 			vals = append(vals, down)
 		}
 		for _, v := range vals {
