@@ -53,18 +53,7 @@ func TestObserveLawMemoIdentical(t *testing.T) {
 		key, ok := keyOf(st.pop)
 		require.True(t, ok, st.name)
 		assert.Equal(t, st.hit, has(key), "%s: memo before the pass", st.name)
-		opts := ObserveOptions{BaseFractionScale: 1}
-		if len(st.pop.Survey.Search.RossbyBands) > 0 {
-			opts.BandSlopes = []int{1, 3}
-		}
-		got, gotVar, gotSlopes, err := bank.ObserveSlopes(ctx, st.pop, g, opts)
-		require.NoError(t, err, st.name)
-		opts.noMemo = true
-		want, wantVar, wantSlopes, err := bank.ObserveSlopes(ctx, st.pop, g, opts)
-		require.NoError(t, err, st.name)
-		assert.Equal(t, want, got, st.name)
-		assert.Equal(t, wantVar, gotVar, st.name)
-		assert.Equal(t, wantSlopes, gotSlopes, st.name)
+		sameWithAndWithoutMemo(t, bank, st.pop, g, 1, st.name)
 		assert.True(t, has(key), "%s: memo after the pass", st.name)
 		assert.LessOrEqual(t, len(bank.memos.entries), maxLawMemos)
 	}
@@ -99,6 +88,26 @@ func TestObserveLawMemoIdentical(t *testing.T) {
 	q.Law = spin.Scattered{Law: &funcLaw{}, Dex: 0.05}
 	_, ok = keyOf(&q)
 	assert.False(t, ok)
+}
+
+// sameWithAndWithoutMemo observes pop through the bank with its memos and
+// without them (with node derivatives when pop has search nodes), and
+// asserts the same bits.
+func sameWithAndWithoutMemo(t *testing.T, bank *Bank, pop *Population, g Grid, baseScale float64, name string) {
+	t.Helper()
+	ctx := context.Background()
+	opts := ObserveOptions{BaseFractionScale: baseScale}
+	if len(pop.Survey.Search.RossbyBands) > 0 {
+		opts.BandSlopes = []int{1, 3}
+	}
+	got, gotVar, gotSlopes, err := bank.ObserveSlopes(ctx, pop, g, opts)
+	require.NoError(t, err, name)
+	opts.noMemo = true
+	want, wantVar, wantSlopes, err := bank.ObserveSlopes(ctx, pop, g, opts)
+	require.NoError(t, err, name)
+	assert.Equal(t, want, got, name)
+	assert.Equal(t, wantVar, gotVar, name)
+	assert.Equal(t, wantSlopes, gotSlopes, name)
 }
 
 // memoTestBank is the memo tests' population, grid and bank (with color

@@ -1,7 +1,6 @@
 package model
 
 import (
-	"context"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -20,7 +19,6 @@ import (
 // nodes with their derivatives too. Only maxSeenMemos are kept.
 func TestObserveSeenMemoIdentical(t *testing.T) {
 	p, g, bank, change := memoTestBank(t)
-	ctx := context.Background()
 	amp := spots.DefaultAmplitudeModel()
 	amp.RoSat, amp.Slope = 0.11, 1.7
 	noisier := p.Survey.Detect
@@ -72,18 +70,7 @@ func TestObserveSeenMemoIdentical(t *testing.T) {
 		key, ok := seenKeyOf(st.pop)
 		require.True(t, ok, st.name)
 		assert.Equal(t, st.hit, has(key), "%s: memo before the pass", st.name)
-		opts := ObserveOptions{BaseFractionScale: st.base}
-		if len(st.pop.Survey.Search.RossbyBands) > 0 {
-			opts.BandSlopes = []int{1, 3}
-		}
-		got, gotVar, gotSlopes, err := bank.ObserveSlopes(ctx, st.pop, g, opts)
-		require.NoError(t, err, st.name)
-		opts.noMemo = true
-		want, wantVar, wantSlopes, err := bank.ObserveSlopes(ctx, st.pop, g, opts)
-		require.NoError(t, err, st.name)
-		assert.Equal(t, want, got, st.name)
-		assert.Equal(t, wantVar, gotVar, st.name)
-		assert.Equal(t, wantSlopes, gotSlopes, st.name)
+		sameWithAndWithoutMemo(t, bank, st.pop, g, st.base, st.name)
 		assert.True(t, has(key), "%s: memo after the pass", st.name)
 		assert.LessOrEqual(t, len(bank.seen.entries), maxSeenMemos)
 	}
