@@ -48,8 +48,9 @@ type Bank struct {
 	NoisePpm                []float32 // survey noise per cadence at the star's magnitude (Noise)
 	Seed                    []uint64
 
-	memos *lawMemos  // the stars' spins under the latest laws (nil: none kept)
-	seen  *seenMemos // the stars' rotations under the latest law, spots and detection (nil: none kept)
+	memos *lawMemos   // the stars' spins under the latest laws (nil: none kept)
+	seen  *seenMemos  // the stars' rotations under the latest law, spots and detection (nil: none kept)
+	place *placeMemos // the stars' grid columns under the latest color calibrations (nil: none kept)
 }
 
 // BankMargin widens the color cut (ColorMag on each side, catalog scale)
@@ -150,7 +151,7 @@ func starSeed(seed uint64, chunk, i int) uint64 {
 // Bank returns the collected bank.
 func (bb *BankBuilder) Bank() *Bank {
 	out := &Bank{Start: make([]int, len(bb.bins)+1), DrawnPerBin: append([]int64(nil), bb.drawn...), Margin: bb.margin,
-		Cuts: bb.pop.Cuts, Color: bb.pop.Survey.Color, Noise: bb.pop.Survey.Detect.Noise, memos: newLawMemos(), seen: newSeenMemos()}
+		Cuts: bb.pop.Cuts, Color: bb.pop.Survey.Color, Noise: bb.pop.Survey.Detect.Noise, memos: newLawMemos(), seen: newSeenMemos(), place: newPlaceMemos()}
 	for k := range bb.bins {
 		b := &bb.bins[k]
 		out.Start[k+1] = out.Start[k] + len(b.Seed)
@@ -300,6 +301,13 @@ func (b *Bank) ObserveSlopes(ctx context.Context, obs *Population, g Grid, opts 
 		}
 		defer b.seen.release(ob.seen)
 	}
+	if b.place != nil && !opts.noMemo {
+		key := placeKeyOf(ob)
+		if ob.columns = b.place.find(key); ob.columns == nil {
+			ob.columnsFill = b.place.newMemo(key, b.Len())
+		}
+		defer b.place.release(ob.columns)
+	}
 	if key, ok := keyOf(obs); ok && b.memos != nil && !opts.noMemo {
 		// With the rotations known, a new law memo would hold only the
 		// few stars the seen memo lacks: none is made.
@@ -360,6 +368,9 @@ func (b *Bank) ObserveSlopes(ctx context.Context, obs *Population, g Grid, opts 
 	if ob.seenFill != nil {
 		b.seen.add(ob.seenFill)
 	}
+	if ob.columnsFill != nil {
+		b.place.add(ob.columnsFill)
+	}
 	return counts, vars, slopes, nil
 }
 
@@ -409,7 +420,9 @@ type observer struct {
 	// seen and seenFill are the same for the stars' rotations (seenMemo).
 	memo, fill     *lawMemo
 	seen, seenFill *seenMemo
-	nC, nP, nZ     int
+	// columns and columnsFill are the same for the stars' columns (placeMemo).
+	columns, columnsFill *placeMemo
+	nC, nP, nZ           int
 	// The fine grid: nF bins of fineStepDex from fineLo (log10 days).
 	nF     int
 	fineLo float64
@@ -510,16 +523,17 @@ func (ob *observer) bin(k int, fine, fineVar []float64, fineSlopes [][]float64, 
 	inv := 1 / fineStepDex
 	place := ob.weight
 	for s := b.Start[k]; s < b.Start[k+1]; s++ {
-		bv := p.Survey.Color.Apply(float64(b.ModelBV[s]))
-		if ob.recut && (!ob.cuts.InColorRange(bv) || !ob.cuts.OnMainSequence(p.Relations, bv, float64(b.ObsAbsMag[s]))) {
-			continue
+		col := placeUnknown
+		if m := ob.columns; m != nil {
+			col = m.st.col[s]
 		}
-		c := BinIndex(ob.g.ColorEdges, bv)
-		if c < 0 {
-			continue
+		if col == placeUnknown {
+			col = ob.column(s)
+			if ob.columnsFill != nil {
+				ob.columnsFill.st.col[s] = col
+			}
 		}
-		z := BinIndex(ob.g.HeightEdgesPc, float64(b.AbsZPc[s]))
-		if z < 0 {
+		if col == placeOut {
 			continue
 		}
 		weight := 1.0
@@ -580,7 +594,7 @@ func (ob *observer) bin(k int, fine, fineVar []float64, fineSlopes [][]float64, 
 		}
 		i0 := int(u)
 		frac := u - float64(i0)
-		base := (c*ob.nZ+z)*ob.nF + i0
+		base := int(col)*ob.nF + i0
 		if len(fineSlopes) > 0 {
 			ob.addSlopes(fineSlopes, base, frac, weight*rot.preSearch, rot.periodD, rot.tauRatio)
 		}
@@ -594,6 +608,26 @@ func (ob *observer) bin(k int, fine, fineVar []float64, fineSlopes [][]float64, 
 		fineVar[base] += w2 * (1 - frac)
 		fineVar[base+1] += w2 * frac
 	}
+}
+
+// column returns stored star s's grid column c·nZ + z under obs's color
+// calibration, or placeOut when the star is outside the grid or, for a
+// bank with margins, the cuts.
+func (ob *observer) column(s int) int32 {
+	b := ob.bank
+	bv := ob.obs.Survey.Color.Apply(float64(b.ModelBV[s]))
+	if ob.recut && (!ob.cuts.InColorRange(bv) || !ob.cuts.OnMainSequence(ob.obs.Relations, bv, float64(b.ObsAbsMag[s]))) {
+		return placeOut
+	}
+	c := BinIndex(ob.g.ColorEdges, bv)
+	if c < 0 {
+		return placeOut
+	}
+	z := BinIndex(ob.g.HeightEdgesPc, float64(b.AbsZPc[s]))
+	if z < 0 {
+		return placeOut
+	}
+	return int32(c*ob.nZ + z)
 }
 
 // rotate works out stored star s's rotation (with its companion of comp
