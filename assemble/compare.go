@@ -120,6 +120,23 @@ func NuisanceParams(s *scenarios.Scenario) ([]compare.NuisanceParam, error) {
 	return out, nil
 }
 
+// WeightParamOf returns the model's parameter that a nuisance path sets
+// when that parameter only re-weights stored stars and the path's value is
+// the parameter's own (observing sets them one to one): the templates'
+// derivatives in it then come with the templates (model.WeightParam).
+// The spots' saturation is not one: see model's weightslopes.go.
+func WeightParamOf(path string) (model.WeightParam, bool) {
+	switch path {
+	case "stars.binary_fraction_scale":
+		return model.BinaryShare, true
+	case "spin.spots.slope":
+		return model.SpotSlope, true
+	case "survey.detection_snr":
+		return model.DetectionThreshold, true
+	}
+	return 0, false
+}
+
 // BankMargin returns the margins the template bank needs for the color
 // calibration to move within its free range: the largest color shift the
 // bounds of survey.color_offset_mag and survey.color_scale allow over the

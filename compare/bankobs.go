@@ -46,6 +46,11 @@ type BankObserver struct {
 	// rule through the nodes.
 	SearchParams   []bool
 	SearchGradient func(values []float64, j int) ([]float64, error)
+	// Weights, when not nil, maps nuisance parameters to the model's
+	// parameters that only re-weight stored stars (model.WeightParam),
+	// with the nuisance value the model's value itself: their derivatives,
+	// first and second, come from the pass that makes the templates too.
+	Weights map[int]model.WeightParam
 	// Depth, when not nil, ranks each nuisance parameter by how much of a
 	// stored star's observation a change of it makes again (see
 	// SideOrderer); nil: parameter order.
@@ -55,8 +60,17 @@ type BankObserver struct {
 // SideOrder implements SideOrderer.
 func (o *BankObserver) SideOrder() []int { return o.Depth }
 
+// BankObserver gives derivatives.
+var _ SlopeObserver = (*BankObserver)(nil)
+
 // Slopes implements SlopeObserver.
 func (o *BankObserver) Slopes(j int) bool {
+	_, weight := o.Weights[j]
+	return weight || o.searchSlope(j)
+}
+
+// searchSlope reports whether parameter j sets search-efficiency nodes.
+func (o *BankObserver) searchSlope(j int) bool {
 	return j >= 0 && j < len(o.SearchParams) && o.SearchParams[j] && o.SearchGradient != nil
 }
 
@@ -68,7 +82,7 @@ func (o *BankObserver) Observe(ctx context.Context, values []float64) (*Template
 
 // ObserveSlopes implements SlopeObserver: every j in params must be a
 // parameter Slopes accepts.
-func (o *BankObserver) ObserveSlopes(ctx context.Context, values []float64, params []int) (*Templates, []*Templates, error) {
+func (o *BankObserver) ObserveSlopes(ctx context.Context, values []float64, params []int) (*Templates, []Slope, error) {
 	if o.Bank == nil || o.Apply == nil {
 		return nil, nil, errors.New("compare: BankObserver needs a bank and an Apply function")
 	}
@@ -77,9 +91,20 @@ func (o *BankObserver) ObserveSlopes(ctx context.Context, values []float64, para
 	}
 	grads := make([][]float64, len(params))
 	var nodes []int // the nodes any parameter's efficiency gradient reaches
+	var weights []model.WeightSlope
+	weightAt := make([]int, len(params)) // where params[i]'s first derivative is in weights (−1: none)
 	for i, j := range params {
-		if !o.Slopes(j) {
-			return nil, nil, fmt.Errorf("compare: no derivative in nuisance parameter %d: it sets no search-efficiency node", j)
+		weightAt[i] = -1
+		if w, ok := o.Weights[j]; ok {
+			weightAt[i] = len(weights)
+			weights = append(weights, model.WeightSlope{Param: w})
+			if w != model.BinaryShare {
+				weights = append(weights, model.WeightSlope{Param: w, Second: true})
+			}
+			continue
+		}
+		if !o.searchSlope(j) {
+			return nil, nil, fmt.Errorf("compare: no derivative in nuisance parameter %d: it sets no search-efficiency node and only re-weights no star", j)
 		}
 		g, err := o.SearchGradient(values, j)
 		if err != nil {
@@ -107,20 +132,28 @@ func (o *BankObserver) ObserveSlopes(ctx context.Context, values []float64, para
 		}
 	}
 	g := model.Grid{ColorEdges: o.Space.ColorEdges, LogPeriodEdges: o.Space.LogPeriodEdges, HeightEdgesPc: o.Space.HeightEdgesPc}
-	counts, vars, slopes, err := o.Bank.ObserveSlopes(ctx, p, g, model.ObserveOptions{Workers: o.Workers, BaseFractionScale: o.BaseFractionScale, Weight: weight, BandSlopes: nodes})
+	counts, vars, slopes, err := o.Bank.ObserveSlopes(ctx, p, g, model.ObserveOptions{Workers: o.Workers, BaseFractionScale: o.BaseFractionScale, Weight: weight, BandSlopes: nodes, WeightSlopes: weights})
 	if err != nil {
 		return nil, nil, err
 	}
 	t := o.templates(counts, vars)
-	ds := make([]*Templates, len(params))
+	ds := make([]Slope, len(params))
 	for i, g := range grads {
+		if at := weightAt[i]; at >= 0 {
+			w := slopes[len(nodes)+at:]
+			ds[i].First = o.templates(w[0], nil)
+			if weights[at].Param != model.BinaryShare {
+				ds[i].Second = o.templates(w[1], nil)
+			}
+			continue
+		}
 		d := make([]float64, len(counts))
 		for q, k := range nodes {
 			if g[k] != 0 {
 				floats.AddScaled(d, g[k], slopes[q])
 			}
 		}
-		ds[i] = o.templates(d, nil)
+		ds[i].First = o.templates(d, nil)
 	}
 	return t, ds, nil
 }

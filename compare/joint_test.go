@@ -396,12 +396,12 @@ type slopeObserver struct{ linearObserver }
 
 func (o slopeObserver) Slopes(j int) bool { return j == 0 } // the first parameter only
 
-func (o slopeObserver) ObserveSlopes(ctx context.Context, v []float64, params []int) (*Templates, []*Templates, error) {
+func (o slopeObserver) ObserveSlopes(ctx context.Context, v []float64, params []int) (*Templates, []Slope, error) {
 	t, err := o.Observe(ctx, v)
 	if err != nil {
 		return nil, nil, err
 	}
-	var ds []*Templates
+	var ds []Slope
 	for _, j := range params {
 		d := *o.base
 		d.Var = nil
@@ -409,7 +409,7 @@ func (o slopeObserver) ObserveSlopes(ctx context.Context, v []float64, params []
 		for i, c := range o.base.Counts {
 			d.Counts[i] = c * (0.5 + 0.5*math.Sin(float64(i*(j+2))))
 		}
-		ds = append(ds, &d)
+		ds = append(ds, Slope{First: &d})
 	}
 	return t, ds, nil
 }
@@ -458,6 +458,109 @@ func TestMorphLinearParameterFromSlopes(t *testing.T) {
 	assert.Equal(t, []float64{1, 0.75}, hi)
 }
 
+// quadObserver makes templates quadratic in each value: the base counts
+// times 1 + Σ_j (α_j(i) v_j + β_j(i) v_j²), and gives the first and second
+// derivatives in the first value (none with noSecond).
+type quadObserver struct {
+	base     *Templates
+	calls    *int
+	noSecond bool
+}
+
+func quadCoeffs(i, j int) (alpha, beta float64) {
+	return 0.4 * math.Sin(float64(i*(j+2))), 0.3 * math.Cos(float64(i*(j+3)))
+}
+
+func (o quadObserver) Observe(_ context.Context, v []float64) (*Templates, error) {
+	*o.calls++
+	t := *o.base
+	t.Counts = append([]float64(nil), o.base.Counts...)
+	for i := range t.Counts {
+		f := 1.0
+		for j, x := range v {
+			a, b := quadCoeffs(i, j)
+			f += a*x + b*x*x
+		}
+		t.Counts[i] *= f
+	}
+	return &t, nil
+}
+
+func (o quadObserver) Slopes(j int) bool { return j == 0 }
+
+func (o quadObserver) ObserveSlopes(ctx context.Context, v []float64, params []int) (*Templates, []Slope, error) {
+	t, err := o.Observe(ctx, v)
+	if err != nil {
+		return nil, nil, err
+	}
+	var ds []Slope
+	for _, j := range params {
+		first, second := *o.base, *o.base
+		first.Var, second.Var = nil, nil
+		first.Counts, second.Counts = make([]float64, len(o.base.Counts)), make([]float64, len(o.base.Counts))
+		for i, c := range o.base.Counts {
+			a, b := quadCoeffs(i, j)
+			first.Counts[i] = c * (a + 2*b*v[j])
+			second.Counts[i] = c * 2 * b
+		}
+		d := Slope{First: &first, Second: &second}
+		if o.noSecond {
+			d.Second = nil
+		}
+		ds = append(ds, d)
+	}
+	return t, ds, nil
+}
+
+// A parameter the templates are not linear in, whose first and second
+// derivatives the source gives, costs no re-observation either: the
+// expansion is their Taylor series, exact for templates quadratic in it
+// (between the side points, where it is quadratic), and both side points
+// are made from the derivatives, with the counts a re-observation there
+// gives. A source that gives no second derivative for such a parameter is
+// refused by name.
+func TestMorphCurvedParameterFromSlopes(t *testing.T) {
+	tpl := randomTemplates(t, 6, 5, 12, 0, 50, 4)
+	data := poissonData(tpl, randomWeights(6, 5), 1, 5)
+	like, err := NewLikelihood(tpl, data, LikeOptions{})
+	require.NoError(t, err)
+	calls := 0
+	nu := &Nuisance{Source: quadObserver{base: tpl, calls: &calls}, Params: []NuisanceParam{
+		{Name: "q1", Nominal: 0.5, Min: 0, Max: 1},
+		{Name: "q2", Nominal: 0.5, Min: 0, Max: 1}}}
+	ctx := context.Background()
+	mo, err := newMorph(ctx, like, nu, nu.Nominal(), nil)
+	require.NoError(t, err)
+	assert.Equal(t, 3, calls, "the centre (with q1's derivatives) and q2's two side points")
+	require.Len(t, mo.sides, 4)
+	derived := 0
+	for _, sp := range mo.sides {
+		exact, err := quadObserver{base: tpl, calls: new(int)}.Observe(ctx, sp.values)
+		require.NoError(t, err)
+		assert.InDeltaSlice(t, exact.Counts, sp.tpl.Counts, 1e-9, "side point at %v", sp.values)
+		assert.Equal(t, sp.values[0] != 0.5, sp.derived, "q1's side points are made from its derivatives")
+		if sp.derived {
+			derived++
+		}
+	}
+	assert.Equal(t, 2, derived, "both of q1's side points")
+	rows := make([]float64, len(mo.t0))
+	for _, v := range [][]float64{{0.4, 0.5}, {0.61, 0.45}, {0.375, 0.625}} {
+		mo.apply(v, rows, make([]float64, len(rows)), nil, nil)
+		exact, err := quadObserver{base: tpl, calls: new(int)}.Observe(ctx, v)
+		require.NoError(t, err)
+		wantRows, _, err := like.rowsOf(exact)
+		require.NoError(t, err)
+		for i := range rows {
+			require.InDelta(t, wantRows[i], rows[i], 1e-9*(1+wantRows[i]), "at %v, entry %d", v, i)
+		}
+	}
+	nu.Source = quadObserver{base: tpl, calls: new(int), noSecond: true}
+	nu.ResetCache()
+	_, err = newMorph(ctx, like, nu, nu.Nominal(), nil)
+	assert.ErrorContains(t, err, "no second derivative in q1")
+}
+
 // countingBank counts a BankObserver's passes over its stars.
 type countingBank struct {
 	*BankObserver
@@ -469,7 +572,7 @@ func (c countingBank) Observe(ctx context.Context, v []float64) (*Templates, err
 	return c.BankObserver.Observe(ctx, v)
 }
 
-func (c countingBank) ObserveSlopes(ctx context.Context, v []float64, params []int) (*Templates, []*Templates, error) {
+func (c countingBank) ObserveSlopes(ctx context.Context, v []float64, params []int) (*Templates, []Slope, error) {
 	*c.passes++
 	return c.BankObserver.ObserveSlopes(ctx, v, params)
 }
@@ -567,7 +670,7 @@ func TestFitJointSearchFalloffShares(t *testing.T) {
 			var worst, scale float64
 			for i := range tpl.Counts {
 				fd := (t2.Counts[i] - tpl.Counts[i]) / 0.25
-				worst = math.Max(worst, math.Abs(fd-ds[q].Counts[i]))
+				worst = math.Max(worst, math.Abs(fd-ds[q].First.Counts[i]))
 				scale = math.Max(scale, math.Abs(fd))
 			}
 			if at[1] == 0 && j == 2 {

@@ -36,10 +36,10 @@ type NuisanceParam struct {
 	// maximum. Empty: the starting value alone.
 	Starts []float64
 	// Linear says the templates are linear in this parameter (a
-	// detection efficiency that multiplies each star's weight): the
-	// expansion's quadratic term is then zero, so it makes templates on
-	// one side of its centre only — or none, when the source gives the
-	// derivative with the centre's templates (SlopeObserver).
+	// detection efficiency or a share that multiplies each star's
+	// weight): the expansion's quadratic term is then zero, so it makes
+	// templates on one side of its centre only — or none, when the source
+	// gives the derivative with the centre's templates (SlopeObserver).
 	Linear bool
 }
 
@@ -78,17 +78,24 @@ type Observer interface {
 }
 
 // SlopeObserver is an Observer that can also give, from the same pass
-// that makes the templates, their exact derivatives in some parameters
-// they are Linear in: a fit's expansion then needs no re-observation for
-// those at all.
+// that makes the templates, their exact derivatives in some parameters —
+// the first, and the second too for a parameter they are not Linear in:
+// a fit's expansion then needs no re-observation for those at all.
 type SlopeObserver interface {
 	Observer
-	// Slopes reports whether ObserveSlopes gives the derivative in
+	// Slopes reports whether ObserveSlopes gives the derivatives in
 	// parameter j.
 	Slopes(j int) bool
 	// ObserveSlopes returns the templates at values and, for each j in
-	// params, ∂Counts/∂values[j] (Var nil).
-	ObserveSlopes(ctx context.Context, values []float64, params []int) (*Templates, []*Templates, error)
+	// params, their derivatives in values[j].
+	ObserveSlopes(ctx context.Context, values []float64, params []int) (*Templates, []Slope, error)
+}
+
+// Slope holds the templates' derivatives in one parameter (Var nil):
+// First = ∂Counts/∂ν, and Second = ∂²Counts/∂ν², nil where the templates
+// are linear in ν.
+type Slope struct {
+	First, Second *Templates
 }
 
 // SideOrderer is an Observer whose re-observations cost less in some
@@ -124,8 +131,8 @@ type Nuisance struct {
 
 	mu     sync.Mutex
 	cache  map[string]*Templates
-	slopes map[string][]*Templates // derivatives (slopeParams' order) by values
-	order  []string                // cache's keys, oldest first
+	slopes map[string][]Slope // derivatives (slopeParams' order) by values
+	order  []string           // cache's keys, oldest first
 }
 
 // maxCachedSets bounds the sets of templates a Nuisance keeps (the
@@ -232,7 +239,7 @@ func (n *Nuisance) Templates(ctx context.Context, values []float64) (*Templates,
 // store keeps templates t (and derivatives ds, when not nil) made at the
 // values of key, returning the set to use: one already kept for key has
 // the same numbers, and others may hold it.
-func (n *Nuisance) store(key string, t *Templates, ds []*Templates) (*Templates, []*Templates) {
+func (n *Nuisance) store(key string, t *Templates, ds []Slope) (*Templates, []Slope) {
 	n.mu.Lock()
 	defer n.mu.Unlock()
 	if n.cache == nil {
@@ -251,7 +258,7 @@ func (n *Nuisance) store(key string, t *Templates, ds []*Templates) (*Templates,
 	n.cache[key] = t
 	if ds != nil {
 		if n.slopes == nil {
-			n.slopes = map[string][]*Templates{}
+			n.slopes = map[string][]Slope{}
 		}
 		n.slopes[key] = ds
 	}
@@ -266,8 +273,8 @@ func (n *Nuisance) slopeParams() []int {
 		return nil
 	}
 	var out []int
-	for j, p := range n.Params {
-		if p.Linear && so.Slopes(j) {
+	for j := range n.Params {
+		if so.Slopes(j) {
 			out = append(out, j)
 		}
 	}
@@ -277,7 +284,7 @@ func (n *Nuisance) slopeParams() []int {
 // templatesAndSlopes returns the templates at values and their
 // derivatives in the parameters of slopeParams (in that order), made in
 // one pass and kept as Templates keeps its sets.
-func (n *Nuisance) templatesAndSlopes(ctx context.Context, values []float64) (*Templates, []*Templates, error) {
+func (n *Nuisance) templatesAndSlopes(ctx context.Context, values []float64) (*Templates, []Slope, error) {
 	params := n.slopeParams()
 	if len(params) == 0 {
 		t, err := n.Templates(ctx, values)
@@ -294,6 +301,14 @@ func (n *Nuisance) templatesAndSlopes(ctx context.Context, values []float64) (*T
 	t, ds, err := n.Source.(SlopeObserver).ObserveSlopes(ctx, values, params)
 	if err != nil {
 		return nil, nil, fmt.Errorf("compare: templates and their derivatives at %s: %w", n.describe(values), err)
+	}
+	if len(ds) != len(params) {
+		return nil, nil, fmt.Errorf("compare: the source gave derivatives in %d parameters at %s; %d asked", len(ds), n.describe(values), len(params))
+	}
+	for i, j := range params {
+		if ds[i].First == nil || !n.Params[j].Linear && ds[i].Second == nil {
+			return nil, nil, fmt.Errorf("compare: the source gave no %s derivative in %s, which the templates are not linear in", map[bool]string{true: "first", false: "second"}[ds[i].First == nil], n.Params[j].Name)
+		}
 	}
 	t, ds = n.store(key, t, ds)
 	return t, ds, nil
@@ -358,17 +373,19 @@ type morph struct {
 type sidePoint struct {
 	values []float64
 	tpl    *Templates
-	// derived marks templates made from the centre's and a derivative
-	// (stepped), not observed: exact in the counts, approximate in the
+	// derived marks templates made from the centre's and its derivatives
+	// (stepped), not observed: exact in the counts where they are linear
+	// in the parameter, to second order where not, and approximate in the
 	// variances.
 	derived bool
 }
 
-// stepped returns the templates t + d·ds, ds a derivative of t's counts
-// in one parameter, clamped at zero (rounding can leave −1e−17). Each
-// bin keeps t's variance per count, as the expansion does (morph.rho):
-// a count where t has none gets a variance equal to it.
-func stepped(t, ds *Templates, d float64) *Templates {
+// stepped returns the templates t + d·ds.First + ½d²·ds.Second (no
+// second term when nil), ds the derivatives of t's counts in one
+// parameter, clamped at zero (rounding can leave −1e−17). Each bin keeps
+// t's variance per count, as the expansion does (morph.rho): a count
+// where t has none gets a variance equal to it.
+func stepped(t *Templates, ds Slope, d float64) *Templates {
 	out := *t
 	out.Key = "" // made here, from no scenario's templates
 	out.Counts = make([]float64, len(t.Counts))
@@ -376,7 +393,11 @@ func stepped(t, ds *Templates, d float64) *Templates {
 		out.Var = make([]float64, len(t.Var))
 	}
 	for i, c := range t.Counts {
-		v := math.Max(c+d*ds.Counts[i], 0)
+		x := c + d*ds.First.Counts[i]
+		if ds.Second != nil {
+			x += 0.5 * d * d * ds.Second.Counts[i]
+		}
+		v := math.Max(x, 0)
 		out.Counts[i] = v
 		if t.Var == nil {
 			continue
@@ -397,7 +418,7 @@ func newMorph(ctx context.Context, like *Likelihood, nu *Nuisance, centre, steps
 	if err != nil {
 		return nil, err
 	}
-	slopeOf := map[int]*Templates{}
+	slopeOf := map[int]Slope{}
 	for i, j := range nu.slopeParams() {
 		slopeOf[j] = slopes[i]
 	}
@@ -421,20 +442,41 @@ func newMorph(ctx context.Context, like *Likelihood, nu *Nuisance, centre, steps
 		up, down, makeUp, makeDown := sideValues(p, c, d)
 		mo.hi[j], mo.lo[j] = up-c, c-down
 		if ds, ok := slopeOf[j]; ok {
-			// The derivative itself: exact, as the templates are linear
-			// here. The fit still gets a side point (it scores them and
-			// searches from them), made from the derivative.
-			if mo.a[j], _, err = like.rowsOf(ds); err != nil {
+			// The derivatives themselves: the expansion is the Taylor
+			// series to second order (exact where the templates are
+			// linear). The fit still gets side points (it scores them and
+			// searches from them), made from the derivatives: one for a
+			// linear parameter, both for another, as observed ones.
+			if mo.a[j], _, err = like.rowsOf(ds.First); err != nil {
 				return nil, err
 			}
 			mo.b[j] = make([]float64, len(mo.t0))
-			v := up
-			if mo.hi[j] == 0 {
-				v = down
+			if ds.Second != nil {
+				second, _, err := like.rowsOf(ds.Second)
+				if err != nil {
+					return nil, err
+				}
+				floats.AddScaled(mo.b[j], 0.5, second)
 			}
-			vals := append([]float64(nil), centre...)
-			vals[j] = v
-			mo.sides = append(mo.sides, sidePoint{values: vals, tpl: stepped(t0, ds, v-c), derived: true})
+			var at []float64
+			switch {
+			case ds.Second == nil && mo.hi[j] > 0:
+				at = []float64{up}
+			case ds.Second == nil:
+				at = []float64{down}
+			default:
+				if makeUp {
+					at = append(at, up)
+				}
+				if down < c {
+					at = append(at, down)
+				}
+			}
+			for _, v := range at {
+				vals := append([]float64(nil), centre...)
+				vals[j] = v
+				mo.sides = append(mo.sides, sidePoint{values: vals, tpl: stepped(t0, ds, v-c), derived: true})
+			}
 			continue
 		}
 		var fp, fm []float64
@@ -520,7 +562,7 @@ func sideValues(p NuisanceParam, c, d float64) (up, down float64, makeUp, makeDo
 // newMorph will ask for: not the parameters in slopeOf) in the order the
 // source's SideOrder ranks them, and keeps them in nu's cache, where
 // newMorph then finds them. Without a SideOrderer it does nothing.
-func prefetchSides(ctx context.Context, nu *Nuisance, centre, steps []float64, slopeOf map[int]*Templates) error {
+func prefetchSides(ctx context.Context, nu *Nuisance, centre, steps []float64, slopeOf map[int]Slope) error {
 	so, ok := nu.Source.(SideOrderer)
 	if !ok || len(so.SideOrder()) != nu.Dim() {
 		return nil

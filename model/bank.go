@@ -211,6 +211,10 @@ type ObserveOptions struct {
 	// holds wherever the node is: one pass gives what a re-observation per
 	// node would by differences.
 	BandSlopes []int
+	// WeightSlopes, when not empty, asks ObserveSlopes for the first or
+	// second derivatives of the counts in parameters that only re-weight
+	// stored stars (WeightParam), returned after those of BandSlopes.
+	WeightSlopes []WeightSlope
 
 	noMemo bool // work every star's spin out afresh (tests of the memo)
 }
@@ -242,7 +246,7 @@ type ObserveOptions struct {
 // from above. Age bins are processed whole by one worker each: the sums do
 // not depend on the number of workers.
 func (b *Bank) Observe(ctx context.Context, obs *Population, g Grid, opts ObserveOptions) (counts, vars []float64, err error) {
-	if len(opts.BandSlopes) > 0 {
+	if len(opts.BandSlopes) > 0 || len(opts.WeightSlopes) > 0 {
 		return nil, nil, errors.New("model: Bank.Observe returns no derivatives; ObserveSlopes does")
 	}
 	counts, vars, _, err = b.ObserveSlopes(ctx, obs, g, opts)
@@ -251,7 +255,8 @@ func (b *Bank) Observe(ctx context.Context, obs *Population, g Grid, opts Observ
 
 // ObserveSlopes is Observe that also returns, from the same pass,
 // slopes[i] = ∂counts/∂RossbyBands[opts.BandSlopes[i]] (k-major, as
-// counts). A completeness without RossbyBands is differentiated about
+// counts), followed by the derivatives opts.WeightSlopes asks for
+// (weightslopes.go). A completeness without RossbyBands is differentiated about
 // bands of 1 at every node (the same counts, but for stars without a
 // turnover time, which the bands then lose).
 func (b *Bank) ObserveSlopes(ctx context.Context, obs *Population, g Grid, opts ObserveOptions) (counts, vars []float64, slopes [][]float64, err error) {
@@ -276,6 +281,9 @@ func (b *Bank) ObserveSlopes(ctx context.Context, obs *Population, g Grid, opts 
 		if n := len(spots.RossbyNodesD); node < 0 || node >= n {
 			return nil, nil, nil, fmt.Errorf("model: a derivative in search-efficiency node %d asked; the nodes are 0 to %d", node, n-1)
 		}
+	}
+	if err := checkWeightSlopes(opts.WeightSlopes, opts.BaseFractionScale); err != nil {
+		return nil, nil, nil, err
 	}
 	if len(opts.BandSlopes) > 0 && len(obs.Survey.Search.RossbyBands) == 0 {
 		// No band factor is a factor of 1 at every node: the derivatives
@@ -319,7 +327,7 @@ func (b *Bank) ObserveSlopes(ctx context.Context, obs *Population, g Grid, opts 
 	nk, nb := b.NumAgeBins(), g.NumBins()
 	counts = make([]float64, nk*nb)
 	vars = make([]float64, nk*nb)
-	slopes = make([][]float64, len(opts.BandSlopes))
+	slopes = make([][]float64, len(opts.BandSlopes)+len(opts.WeightSlopes))
 	for i := range slopes {
 		slopes[i] = make([]float64, nk*nb)
 	}
@@ -415,6 +423,10 @@ type observer struct {
 	baseScale  float64
 	weight     func(bin int, absZPc float64) float64 // ObserveOptions.Weight
 	slopeNodes []int                                 // ObserveOptions.BandSlopes
+	// weightSlopes is ObserveOptions.WeightSlopes, and binarySlope
+	// whether it holds the binary share.
+	weightSlopes []WeightSlope
+	binarySlope  bool
 	// memo holds the stars' spins under obs's law, from an earlier
 	// Observe; fill, when no memo was found, is the one this pass makes.
 	// seen and seenFill are the same for the stars' rotations (seenMemo).
@@ -441,7 +453,11 @@ func newObserver(b *Bank, obs *Population, g Grid, opts ObserveOptions) *observe
 		bank: b, obs: obs, g: g, cuts: cuts, recut: b.Margin != BankMargin{},
 		sameNoise: obs.Survey.Detect.Noise == b.Noise && b.NoisePpm != nil,
 		baseScale: opts.BaseFractionScale, weight: opts.Weight, slopeNodes: opts.BandSlopes,
-		nC: len(g.ColorEdges) - 1, nP: len(g.LogPeriodEdges) - 1, nZ: len(g.HeightEdgesPc) - 1,
+		weightSlopes: opts.WeightSlopes,
+		nC:           len(g.ColorEdges) - 1, nP: len(g.LogPeriodEdges) - 1, nZ: len(g.HeightEdgesPc) - 1,
+	}
+	for _, w := range opts.WeightSlopes {
+		ob.binarySlope = ob.binarySlope || w.Param == BinaryShare
 	}
 	rec := obs.Survey.Recovery
 	delta := fineStepDex
@@ -515,7 +531,8 @@ func newObserver(b *Bank, obs *Population, g Grid, opts ObserveOptions) *observe
 //
 // fineSlopes, one per node of ob.slopeNodes, receive each star's
 // derivative in that node's value: its weight without the band factor
-// times its interpolation weight on the node.
+// times its interpolation weight on the node; then one per entry of
+// ob.weightSlopes (addWeightSlopes).
 func (ob *observer) bin(k int, fine, fineVar []float64, fineSlopes [][]float64, lawSrc, spotSrc *rand.PCG, lawR, spotR *rand.Rand) {
 	b, p := ob.bank, ob.obs
 	scale := p.Binaries.FractionScale
@@ -537,7 +554,11 @@ func (ob *observer) bin(k int, fine, fineVar []float64, fineSlopes [][]float64, 
 			continue
 		}
 		weight := 1.0
+		dWeight := 0.0 // ∂weight/∂(binary share), when asked for
 		comp := float64(b.CompanionMsun[s])
+		if ob.binarySlope {
+			dWeight = binaryWeightSlope(float64(b.BinaryFrac[s]), ob.baseScale, scale, comp > 0)
+		}
 		if reweight {
 			f := float64(b.BinaryFrac[s])
 			f0, f1 := min(1, ob.baseScale*f), min(1, scale*f)
@@ -546,12 +567,15 @@ func (ob *observer) bin(k int, fine, fineVar []float64, fineSlopes [][]float64, 
 			} else if f0 < 1 {
 				weight = (1 - f1) / (1 - f0)
 			}
-			if !(weight > 0) {
+			if !(weight > 0) && dWeight == 0 {
 				continue
 			}
 		}
 		if place != nil {
-			if weight *= place(k, float64(b.AbsZPc[s])); !(weight > 0) {
+			pw := place(k, float64(b.AbsZPc[s]))
+			weight *= pw
+			dWeight *= pw
+			if !(weight > 0) && dWeight == 0 {
 				continue
 			}
 		}
@@ -595,8 +619,11 @@ func (ob *observer) bin(k int, fine, fineVar []float64, fineSlopes [][]float64, 
 		i0 := int(u)
 		frac := u - float64(i0)
 		base := int(col)*ob.nF + i0
-		if len(fineSlopes) > 0 {
+		if len(ob.slopeNodes) > 0 {
 			ob.addSlopes(fineSlopes, base, frac, weight*rot.preSearch, rot.periodD, rot.tauRatio)
+		}
+		if len(ob.weightSlopes) > 0 {
+			ob.addWeightSlopes(fineSlopes[len(ob.slopeNodes):], base, frac, weight, dWeight, &rot)
 		}
 		w := weight * rot.prob
 		if !(w > 0) {

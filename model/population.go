@@ -413,8 +413,9 @@ type rotation struct {
 	// tauRatio the τ_c/τ_c☉ that factor read (NaN when not read): what
 	// Bank's node derivatives need to split that factor.
 	preSearch, tauRatio float64
-	locked              bool // a tidally locked binary: the period is the orbit's
-	ok                  bool // false outside the law's calibrated range: no period
+	search              float64 // the search completeness's factor (prob = preSearch·search when preSearch > 0)
+	locked              bool    // a tidally locked binary: the period is the orbit's
+	ok                  bool    // false outside the law's calibrated range: no period
 }
 
 // rotate gives star s (with a companion of comp solar masses, 0 if
@@ -498,9 +499,10 @@ func (p *Population) observeRotation(sp spinState, noisePpm float64, spotR *rand
 // observeRotation does; Bank's seen memo applies it again to a star's
 // kept rotation under other nodes).
 func (p *Population) searchFactor(rot *rotation) {
-	rot.prob = rot.preSearch
+	rot.prob, rot.search = rot.preSearch, 1
 	if p.Survey.Search.Enabled() && rot.prob > 0 {
-		rot.prob *= p.Survey.Search.Efficiency(rot.periodD, rot.tauRatio)
+		rot.search = p.Survey.Search.Efficiency(rot.periodD, rot.tauRatio)
+		rot.prob *= rot.search
 	}
 }
 

@@ -458,14 +458,20 @@ func (c *Comparison) setNuisance(ctx context.Context, params []compare.NuisanceP
 			}
 			return assemble.ObservingPopulation(s2, base)
 		}}
-	// The search loss's nodes and shares: their derivatives come with the
-	// templates.
+	// The search loss's nodes and shares, and the parameters that only
+	// re-weight stars: their derivatives come with the templates.
 	for j, p := range params {
-		if scenarios.IsLinearPath(p.Name) {
+		if scenarios.IsSearchNodePath(p.Name) {
 			if obs.SearchParams == nil {
 				obs.SearchParams = make([]bool, len(params))
 			}
 			obs.SearchParams[j] = true
+		}
+		if w, ok := assemble.WeightParamOf(p.Name); ok {
+			if obs.Weights == nil {
+				obs.Weights = map[int]model.WeightParam{}
+			}
+			obs.Weights[j] = w
 		}
 	}
 	obs.Depth = make([]int, len(params))

@@ -72,7 +72,7 @@ max = 1.0
 		var worst, scale float64
 		for i := range tpl.Counts {
 			fd := (tpl.Counts[i] - t2.Counts[i]) / 0.2
-			worst = math.Max(worst, math.Abs(fd-ds[j].Counts[i]))
+			worst = math.Max(worst, math.Abs(fd-ds[j].First.Counts[i]))
 			scale = math.Max(scale, math.Abs(fd))
 		}
 		require.Positive(t, scale, "%s moves the templates", c.Nuisance.Names()[j])

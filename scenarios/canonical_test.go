@@ -315,6 +315,11 @@ func TestSearchByRossbyIdentity(t *testing.T) {
 	assert.Equal(t, []float64{1, 1, 1, 1, 0.5, 1}, back.Scenario.Survey.SearchByRossby.Values())
 	assert.False(t, IsLinearPath("survey.search_half_period_d"), "the logistic is not linear in its half period")
 	assert.False(t, IsLinearPath("survey.search_by_rossby.efficiency_7d"), "no such node")
+	// The binary share is linear (the weights' form) but sets no node.
+	assert.True(t, IsLinearPath("stars.binary_fraction_scale"))
+	assert.False(t, IsSearchNodePath("stars.binary_fraction_scale"))
+	_, ok := SearchGradient(&lossy.Scenario, "stars.binary_fraction_scale")
+	assert.False(t, ok)
 	for i, k := range searchByRossbyKeys {
 		assert.True(t, IsNuisancePath(&lossy.Scenario, "survey.search_by_rossby."+k), k)
 		assert.True(t, IsLinearPath("survey.search_by_rossby."+k), k)

@@ -99,11 +99,20 @@ func ObservationDepth(path string) int {
 // IsLinearPath reports whether a catalog's expected counts are linear in
 // a nuisance path: the free-form search loss's nodes and shares (a star
 // counts with its detection probability, which is linear in the two nodes
-// it lies between, and each node's efficiency is linear in each share). A
-// fit's template expansion then needs one re-observation of such a
-// parameter, not two (compare.NuisanceParam.Linear), or none when the
-// derivative comes with the templates (SearchGradient).
+// it lies between, and each node's efficiency is linear in each share),
+// and the binary share (a star's weight is λf/(λ₀f) with a companion,
+// (1 − λf)/(1 − λ₀f) without, linear in λ while λf < 1 — over λ's whole
+// range [0, 2], as the binary fraction f never exceeds 0.5). A fit's
+// template expansion then needs one re-observation of such a parameter,
+// not two (compare.NuisanceParam.Linear), or none when the derivative
+// comes with the templates (SearchGradient, model.WeightParam).
 func IsLinearPath(path string) bool {
+	return IsSearchNodePath(path) || path == "stars.binary_fraction_scale"
+}
+
+// IsSearchNodePath reports whether a nuisance path sets nodes of the
+// free-form search loss (its efficiencies or shares; SearchGradient).
+func IsSearchNodePath(path string) bool {
 	_, _, ok := searchKey(path)
 	return ok
 }
@@ -131,7 +140,7 @@ func searchKey(path string) (node int, falloff, ok bool) {
 	return 0, false, false
 }
 
-// SearchGradient returns, for a path IsLinearPath accepts, the derivative
+// SearchGradient returns, for a path IsSearchNodePath accepts, the derivative
 // of each node's efficiency (Survey.SearchBands, in node order) in the
 // path's value at s, and false for any other path. The templates'
 // derivative in the path is then Σ_k grad[k]·∂templates/∂(node k's

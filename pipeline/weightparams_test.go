@@ -1,0 +1,106 @@
+package pipeline
+
+import (
+	"context"
+	"math"
+	"os"
+	"path/filepath"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"spinpop/compare"
+	"spinpop/scenarios"
+)
+
+// The parameters that only re-weight stored stars — the binary share, the
+// spots' slope, the detection threshold — freed in a scenario, get their
+// derivatives from the templates' own pass through the whole chain (the
+// scenario's keys, the observing population, the bank's closed forms):
+// each equals the central differences of re-observations, first and
+// second (a standard numerical check), and the binary share, linear, has
+// no second. The spots' saturation is left to side points.
+func TestWeightParamsThroughTheScenario(t *testing.T) {
+	if testing.Short() {
+		t.Skip("builds a template run")
+	}
+	dir := t.TempDir()
+	scen := filepath.Join(dir, "weights.toml")
+	text := `extends = "example:fit"
+name = "weights"
+
+[compare]
+template_stars = 300_000
+
+[[compare.free]]
+path = "history.burst.age_gyr"
+min = 0.2
+max = 2.0
+
+[[compare.free]]
+path = "stars.binary_fraction_scale"
+min = 0.0
+max = 2.0
+
+[[compare.free]]
+path = "spin.spots.slope"
+min = 0.3
+max = 4.0
+
+[[compare.free]]
+path = "survey.detection_snr"
+min = 3.0
+max = 30.0
+
+[[compare.free]]
+path = "spin.spots.ro_sat"
+min = 0.05
+max = 0.5
+`
+	require.NoError(t, os.WriteFile(scen, []byte(text), 0o644))
+	res, err := scenarios.Resolve(scen)
+	require.NoError(t, err)
+	ctx := context.Background()
+	c, err := SetupComparison(ctx, res, ComparisonOptions{Source: scen, TemplateDir: "none"})
+	require.NoError(t, err)
+	names := c.Nuisance.Names()
+	require.Equal(t, []string{"stars.binary_fraction_scale", "spin.spots.slope", "survey.detection_snr", "spin.spots.ro_sat"}, names)
+	so, ok := c.Nuisance.Source.(compare.SlopeObserver)
+	require.True(t, ok, "the comparison's source gives derivatives")
+	assert.False(t, so.Slopes(3), "no derivatives in the spots' saturation")
+	assert.Equal(t, []bool{true, false, false, false}, []bool{c.Nuisance.Params[0].Linear, c.Nuisance.Params[1].Linear, c.Nuisance.Params[2].Linear, c.Nuisance.Params[3].Linear})
+	at := []float64{1.2, 1.6, 11, 0.15}
+	tpl, ds, err := so.ObserveSlopes(ctx, at, []int{0, 1, 2})
+	require.NoError(t, err)
+	assert.Nil(t, ds[0].Second, "the binary share is linear")
+	for j, h := range []float64{0.1, 0.01, 0.05} {
+		moved := func(d float64) []float64 {
+			v := append([]float64(nil), at...)
+			v[j] += d
+			tp, err := so.Observe(ctx, v)
+			require.NoError(t, err)
+			return tp.Counts
+		}
+		up, down := moved(h), moved(-h)
+		var size, worst, size2, worst2 float64
+		for i, c0 := range tpl.Counts {
+			size = math.Max(size, math.Abs(ds[j].First.Counts[i]))
+			worst = math.Max(worst, math.Abs((up[i]-down[i])/(2*h)-ds[j].First.Counts[i]))
+			second := 0.0
+			if ds[j].Second != nil {
+				second = ds[j].Second.Counts[i]
+			}
+			size2 = math.Max(size2, math.Abs(second))
+			worst2 = math.Max(worst2, math.Abs((up[i]-2*c0+down[i])/(h*h)-second))
+		}
+		require.Positive(t, size, "%s moves the templates", names[j])
+		if j == 0 {
+			assert.Less(t, worst, 1e-9*size, "%s", names[j])
+			assert.Less(t, worst2, 1e-6*size, "%s: straight", names[j])
+			continue
+		}
+		assert.Less(t, worst, 2e-3*size, "%s: first derivative", names[j])
+		assert.Less(t, worst2, 2e-2*size2, "%s: second derivative", names[j])
+	}
+}
