@@ -4,7 +4,12 @@ import (
 	"context"
 	"fmt"
 	"math"
+	"runtime"
 	"sort"
+	"sync"
+	"sync/atomic"
+
+	"spinpop/internal/workerpanic"
 )
 
 // MaxRounds bounds the expansions a joint fit makes by default (see
@@ -172,11 +177,16 @@ func searchFrom(ctx context.Context, like *Likelihood, m HistoryModel, nu *Nuisa
 		// move in several parameters per round).
 		gain := make([]float64, nu.Dim())
 		combined := append([]float64(nil), centre...)
-		for _, sp := range mo.sides {
-			r, err := profileWith(like, m, nu, sp.values, sp.tpl, warm)
-			if err != nil {
-				return FitResult{}, nil, nil, err
-			}
+		profiles := make([]FitResult, len(mo.sides))
+		if err := onCopies(like, len(mo.sides), func(i int, l *Likelihood) error {
+			var err error
+			profiles[i], err = profileWith(l, m, nu, mo.sides[i].values, mo.sides[i].tpl, warm)
+			return err
+		}); err != nil {
+			return FitResult{}, nil, nil, err
+		}
+		for i, sp := range mo.sides {
+			r := profiles[i]
 			evals += r.Evaluations
 			if sp.derived && r.LogL > cand.LogL {
 				// It would win: score it on templates made there.
@@ -228,12 +238,26 @@ func searchFrom(ctx context.Context, like *Likelihood, m HistoryModel, nu *Nuisa
 		} else if cand.Nuisance != nil && !equalValues(cand.Nuisance, centre) {
 			starts = append(starts, cand.Nuisance)
 		}
-		for _, st := range starts {
-			if r, err := o.fit(m, FitOptions{Starts: 1, Init: [][]float64{cand.Theta, best.Theta}, Seed: opts.Seed}, st); err == nil && r.LogL > prop.LogL {
-				prop = r
-			}
+		fits := make([]FitResult, len(starts))
+		fitted := make([]bool, len(starts))
+		fitEvals := make([]int, len(starts))
+		if err := onCopies(like, len(starts), func(i int, l *Likelihood) error {
+			oi := newObjective(l, m, nu, mo)
+			r, err := oi.fit(m, FitOptions{Starts: 1, Init: [][]float64{cand.Theta, best.Theta}, Seed: opts.Seed}, starts[i])
+			fits[i], fitted[i], fitEvals[i] = r, err == nil, oi.evals
+			return nil // a start that fails is passed over
+		}); err != nil {
+			return FitResult{}, nil, nil, err
 		}
 		prop.Evaluations = o.evals
+		for i, r := range fits {
+			prop.Evaluations += fitEvals[i]
+			if fitted[i] && r.LogL > prop.LogL {
+				n := prop.Evaluations
+				prop = r
+				prop.Evaluations = n
+			}
+		}
 		evals += prop.Evaluations
 		far := false
 		for j := range steps {
@@ -287,6 +311,56 @@ func searchFrom(ctx context.Context, like *Likelihood, m HistoryModel, nu *Nuisa
 	best.Converged = best.Converged && !best.RoundLimit
 	best.Evaluations = evals
 	return best, mo, steps, nil
+}
+
+// onCopies runs job(i, l) for every i < n on up to GOMAXPROCS goroutines,
+// each with its own copy l of like (its data; the job sets the templates
+// it needs), and returns the first error in i's order. The round's side
+// points and proposal starts are independent fits that used to run one
+// after the other on one core while the other waited. Jobs leave like
+// itself alone and write their results by i, and a fit does not depend on
+// what its copy held before, so nothing depends on the number of
+// goroutines (TestFitJointSameOnAnyThreads).
+func onCopies(like *Likelihood, n int, job func(i int, l *Likelihood) error) error {
+	if n == 0 {
+		return nil
+	}
+	workers := min(n, runtime.GOMAXPROCS(0))
+	like.markShared() // the copies only read its templates
+	copies := make([]*Likelihood, workers)
+	for w := range copies {
+		c, err := like.withCounts(like.Counts(), false)
+		if err != nil {
+			return err
+		}
+		copies[w] = c
+	}
+	errs := make([]error, n)
+	var next atomic.Int64
+	var wg sync.WaitGroup
+	panics := workerpanic.New(nil)
+	for w := range workers {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			defer panics.Catch()
+			for {
+				i := int(next.Add(1) - 1)
+				if i >= n {
+					return
+				}
+				errs[i] = job(i, copies[w])
+			}
+		}()
+	}
+	wg.Wait()
+	panics.Repanic()
+	for _, err := range errs {
+		if err != nil {
+			return err
+		}
+	}
+	return nil
 }
 
 // profileAtValues fits the history with the templates made exactly at

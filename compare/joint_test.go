@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"math"
+	"runtime"
 	"strings"
 	"sync"
 	"testing"
@@ -206,6 +207,30 @@ func TestFitJointRecoversNuisanceAndBurst(t *testing.T) {
 	t.Logf("nominal physics: θ = %v, ln L = %.2f", fixed.Theta, fixed.LogL)
 	assert.Greater(t, math.Abs(fixed.Theta[0]-0.6), 0.04, "a fit with the wrong coefficient misplaces the burst")
 	assert.Greater(t, joint.LogLData(), fixed.LogL+20)
+}
+
+// A joint fit gives the same numbers on one core as on several: the
+// round's side points and proposal starts are fitted concurrently, each on
+// its own copy of the likelihood (onCopies), and combined in one order.
+func TestFitJointSameOnAnyThreads(t *testing.T) {
+	s := newJointSetup(t)
+	nu := s.nuisance()
+	m := s.burstModel(t)
+	like, _, _ := s.asimovLikelihood(t, m, nu, []float64{0.82, 0.015})
+	fit := func(procs int) FitResult {
+		defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(procs))
+		nu.ResetCache()
+		r, err := FitJoint(context.Background(), like, m, nu, FitOptions{Starts: 3})
+		require.NoError(t, err)
+		return r
+	}
+	one, three := fit(1), fit(3)
+	assert.Greater(t, one.Rounds, 1, "rounds with side points to fit")
+	assert.Equal(t, one.Theta, three.Theta)
+	assert.Equal(t, one.Nuisance, three.Nuisance)
+	assert.Equal(t, one.LogL, three.LogL)
+	assert.Equal(t, one.Evaluations, three.Evaluations)
+	assert.Equal(t, one.Rounds, three.Rounds)
 }
 
 func sum(x []float64) float64 {
