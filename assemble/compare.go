@@ -133,6 +133,10 @@ func WeightParamOf(path string) (model.WeightParam, bool) {
 		return model.SpotSlope, true
 	case "survey.detection_snr":
 		return model.DetectionThreshold, true
+	case "spin.spots.amp_sat_ppm":
+		return model.SpotAmplitude, true
+	case "survey.detection_sharpness":
+		return model.DetectionSharpness, true
 	}
 	return 0, false
 }

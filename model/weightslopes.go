@@ -7,7 +7,8 @@ import (
 
 // A fit's side points in the spots' slope, the detection threshold and
 // the binary share were a third of its re-observations, yet none of those
-// parameters moves a stored star: each changes only how
+// parameters (nor the spots' saturated amplitude or the detection's
+// sharpness) moves a stored star: each changes only how
 // much the star counts — its detection probability or its weight. The
 // derivatives of a star's count in them are closed forms of what the
 // centre's pass already has, so ObserveSlopes gives them from that pass
@@ -23,6 +24,10 @@ import (
 //
 //	∂P/∂T = −D/T,                 ∂²P/∂T² = (k(1 − 2P) + 1)·D/T²
 //	∂P/∂s = −D·ln(Ro/Ro_sat),     ∂²P/∂s² = k(1 − 2P)·D·ln²(Ro/Ro_sat)
+//	∂P/∂A_sat = D/A_sat,          ∂²P/∂A_sat² = (k(1 − 2P) − 1)·D/A_sat²
+//	∂P/∂k = −x·P(1 − P),          ∂²P/∂k² = x²·P(1 − P)(1 − 2P)
+//
+// with x = ln(T/S) = ln((1 − P)/P)/k, read back from P itself.
 //
 // (the slope's zero at or below saturation, where A does not depend on
 // it). The saturation Ro_sat itself is left to side points: a star's
@@ -43,6 +48,8 @@ const (
 	BinaryShare        WeightParam = iota // Binaries.FractionScale (counts are linear in it)
 	SpotSlope                             // Spots.Slope
 	DetectionThreshold                    // Survey.Detect.ThresholdSNR
+	SpotAmplitude                         // Spots.AmpSatPpm
+	DetectionSharpness                    // Survey.Detect.Sharpness
 )
 
 func (w WeightParam) String() string {
@@ -53,6 +60,10 @@ func (w WeightParam) String() string {
 		return "spot amplitude slope"
 	case DetectionThreshold:
 		return "detection threshold"
+	case SpotAmplitude:
+		return "saturated spot amplitude"
+	case DetectionSharpness:
+		return "detection sharpness"
 	}
 	return fmt.Sprintf("WeightParam(%d)", int(w))
 }
@@ -68,8 +79,8 @@ type WeightSlope struct {
 func checkWeightSlopes(ws []WeightSlope, baseScale float64) error {
 	for _, w := range ws {
 		switch {
-		case w.Param < BinaryShare || w.Param > DetectionThreshold:
-			return fmt.Errorf("model: no derivative in %v: want the binary share, the spots' slope or the detection threshold", w.Param)
+		case w.Param < BinaryShare || w.Param > DetectionSharpness:
+			return fmt.Errorf("model: no derivative in %v: want the binary share, the spots' slope or saturated amplitude, the detection threshold or sharpness", w.Param)
 		case w.Param == BinaryShare && !(baseScale > 0):
 			return fmt.Errorf("model: a derivative in the binary share needs the run's share (ObserveOptions.BaseFractionScale > 0), not %g", baseScale)
 		}
@@ -120,6 +131,25 @@ func (ob *observer) addWeightSlopes(fs [][]float64, base int, frac, weight, dWei
 				v = (k*(1-2*P) + 1) * d / (t * t)
 			} else {
 				v = -d / t
+			}
+			v *= scale
+		case SpotAmplitude:
+			a := p.Spots.AmpSatPpm
+			if ws.Second {
+				v = (k*(1-2*P) - 1) * d / (a * a)
+			} else {
+				v = d / a
+			}
+			v *= scale
+		case DetectionSharpness:
+			if d == 0 {
+				continue
+			}
+			x := math.Log((1-P)/P) / k
+			if ws.Second {
+				v = x * x * P * (1 - P) * (1 - 2*P)
+			} else {
+				v = -x * P * (1 - P)
 			}
 			v *= scale
 		case SpotSlope:

@@ -30,8 +30,10 @@ func TestWeightSlopesMatchFiniteDifferences(t *testing.T) {
 		q.Survey.Search = spots.SearchCompleteness{RossbyBands: []float64{1, 0.9, 0.7, 0.5, 0.3, 0.2}, TurnoverPower: 1}
 		q.Binaries.FractionScale = 1.3
 		q.Survey.Detect.ThresholdSNR = 12
+		q.Survey.Detect.Sharpness = 3.3
 		amp := *p.Spots
 		amp.Slope = 1.7
+		amp.AmpSatPpm = 8000
 		q.Spots = &amp
 	})
 	at := func(w WeightParam, x float64) *Population {
@@ -46,6 +48,10 @@ func TestWeightSlopesMatchFiniteDifferences(t *testing.T) {
 				q.Spots.Slope = x
 			case DetectionThreshold:
 				q.Survey.Detect.ThresholdSNR = x
+			case SpotAmplitude:
+				q.Spots.AmpSatPpm = x
+			case DetectionSharpness:
+				q.Survey.Detect.Sharpness = x
 			}
 		})
 	}
@@ -61,6 +67,8 @@ func TestWeightSlopesMatchFiniteDifferences(t *testing.T) {
 		{BinaryShare, 1.3, 0.05},
 		{SpotSlope, 1.7, 0.01},
 		{DetectionThreshold, 12, 0.05},
+		{SpotAmplitude, 8000, 20},
+		{DetectionSharpness, 3.3, 0.01},
 	} {
 		_, _, ds, err := bank.ObserveSlopes(ctx, centre, g, ObserveOptions{BaseFractionScale: 1,
 			WeightSlopes: []WeightSlope{{tc.w, false}, {tc.w, true}}})
@@ -96,7 +104,8 @@ func TestWeightSlopesWithAndWithoutMemo(t *testing.T) {
 	p, g, bank, change := memoTestBank(t)
 	ctx := context.Background()
 	q := change(func(q *Population) { q.Binaries.FractionScale = 1.2 })
-	all := []WeightSlope{{BinaryShare, false}, {SpotSlope, false}, {SpotSlope, true}, {DetectionThreshold, false}, {DetectionThreshold, true}}
+	all := []WeightSlope{{BinaryShare, false}, {SpotSlope, false}, {SpotSlope, true}, {DetectionThreshold, false}, {DetectionThreshold, true},
+		{SpotAmplitude, false}, {SpotAmplitude, true}, {DetectionSharpness, false}, {DetectionSharpness, true}}
 	// The run's pass fills the seen memo that q's pass reads.
 	_, _, err := bank.Observe(ctx, p, g, ObserveOptions{BaseFractionScale: 1})
 	require.NoError(t, err)
