@@ -137,6 +137,8 @@ func WeightParamOf(path string) (model.WeightParam, bool) {
 		return model.SpotAmplitude, true
 	case "survey.detection_sharpness":
 		return model.DetectionSharpness, true
+	case "spin.spots.scatter_dex":
+		return model.SpotScatter, true
 	}
 	return 0, false
 }

@@ -414,6 +414,7 @@ type rotation struct {
 	// Bank's node derivatives need to split that factor.
 	preSearch, tauRatio float64
 	search              float64 // the search completeness's factor (prob = preSearch·search when preSearch > 0)
+	spotZ               float64 // the normal deviate of the spot amplitude's scatter
 	locked              bool    // a tidally locked binary: the period is the orbit's
 	ok                  bool    // false outside the law's calibrated range: no period
 }
@@ -479,7 +480,7 @@ func (p *Population) observeRotation(sp spinState, noisePpm float64, spotR *rand
 	if p.Spots != nil {
 		// A star outside the turnover-time fit has no Rossby number; its
 		// NaN amplitude makes it undetectable, which the catalog flags.
-		rot.ampPpm = p.Spots.Draw(rot.rossby, spotR)
+		rot.ampPpm, rot.spotZ = p.Spots.DrawDeviate(rot.rossby, spotR)
 		rot.prob = p.Survey.Detect.ProbabilityAtNoise(rot.ampPpm, noisePpm, per)
 	} else if per < 2*p.Survey.Detect.CadenceD || p.Survey.Detect.BaselineD < p.Survey.Detect.MinCycles*per {
 		// No spot model: a period is found whenever the light curve can

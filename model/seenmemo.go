@@ -19,7 +19,7 @@ import (
 // do not depend on whether it was used (TestObserveSeenMemoIdentical).
 
 // maxSeenMemos is how many combinations a Bank keeps: a round's color
-// side points come one after the other, so two suffice; 41 bytes a
+// side points come one after the other, so two suffice; 49 bytes a
 // stored star each, and one spare set of storage.
 const maxSeenMemos = 2
 
@@ -62,16 +62,17 @@ const (
 
 // seenStore is the per-star storage of a seen memo: the parts of a
 // rotation that binning reads but the search's factor (the Rossby number
-// for the derivatives in the spots' parameters), and log10 of the period
+// and the amplitude's deviate for the derivatives in the spots'
+// parameters), and log10 of the period
 // (NaN until a pass needs it).
 type seenStore struct {
-	preSearch, tauRatio, period, rossby, log10P []float64
-	flags                                       []uint8
+	preSearch, tauRatio, period, rossby, spotZ, log10P []float64
+	flags                                              []uint8
 }
 
 func newSeenStore(n int) seenStore {
 	return seenStore{preSearch: make([]float64, n), tauRatio: make([]float64, n),
-		period: make([]float64, n), rossby: make([]float64, n), log10P: make([]float64, n), flags: make([]uint8, n)}
+		period: make([]float64, n), rossby: make([]float64, n), spotZ: make([]float64, n), log10P: make([]float64, n), flags: make([]uint8, n)}
 }
 
 // get returns star s's rotation (the fields binning reads; prob without
@@ -82,7 +83,7 @@ func (m *seenStore) get(s int) (rotation, float64, bool) {
 	if f&seenKnown == 0 {
 		return rotation{}, 0, false
 	}
-	return rotation{periodD: m.period[s], rossby: m.rossby[s], prob: m.preSearch[s], preSearch: m.preSearch[s], tauRatio: m.tauRatio[s], ok: f&seenOK != 0}, m.log10P[s], true
+	return rotation{periodD: m.period[s], rossby: m.rossby[s], spotZ: m.spotZ[s], prob: m.preSearch[s], preSearch: m.preSearch[s], tauRatio: m.tauRatio[s], ok: f&seenOK != 0}, m.log10P[s], true
 }
 
 // put keeps star s's rotation and log10 P (NaN if not yet worked out).
@@ -91,7 +92,7 @@ func (m *seenStore) put(s int, r rotation, lg float64) {
 	if r.ok {
 		f |= seenOK
 	}
-	m.period[s], m.rossby[s], m.preSearch[s], m.tauRatio[s], m.log10P[s], m.flags[s] = r.periodD, r.rossby, r.preSearch, r.tauRatio, lg, f
+	m.period[s], m.rossby[s], m.spotZ[s], m.preSearch[s], m.tauRatio[s], m.log10P[s], m.flags[s] = r.periodD, r.rossby, r.spotZ, r.preSearch, r.tauRatio, lg, f
 }
 
 // seenMemos is the memo of the stars' rotations by seen key.

@@ -7,8 +7,8 @@ import (
 
 // A fit's side points in the spots' slope, the detection threshold and
 // the binary share were a third of its re-observations, yet none of those
-// parameters (nor the spots' saturated amplitude or the detection's
-// sharpness) moves a stored star: each changes only how
+// parameters (nor the spots' saturated amplitude and scatter or the
+// detection's sharpness) moves a stored star: each changes only how
 // much the star counts — its detection probability or its weight. The
 // derivatives of a star's count in them are closed forms of what the
 // centre's pass already has, so ObserveSlopes gives them from that pass
@@ -26,8 +26,10 @@ import (
 //	∂P/∂s = −D·ln(Ro/Ro_sat),     ∂²P/∂s² = k(1 − 2P)·D·ln²(Ro/Ro_sat)
 //	∂P/∂A_sat = D/A_sat,          ∂²P/∂A_sat² = (k(1 − 2P) − 1)·D/A_sat²
 //	∂P/∂k = −x·P(1 − P),          ∂²P/∂k² = x²·P(1 − P)(1 − 2P)
+//	∂P/∂σ = D·z·ln 10,            ∂²P/∂σ² = k(1 − 2P)·D·(z·ln 10)²
 //
-// with x = ln(T/S) = ln((1 − P)/P)/k, read back from P itself.
+// with x = ln(T/S) = ln((1 − P)/P)/k, read back from P itself, and z the
+// star's deviate of the amplitude's scatter σ (dex).
 //
 // (the slope's zero at or below saturation, where A does not depend on
 // it). The saturation Ro_sat itself is left to side points: a star's
@@ -50,6 +52,7 @@ const (
 	DetectionThreshold                    // Survey.Detect.ThresholdSNR
 	SpotAmplitude                         // Spots.AmpSatPpm
 	DetectionSharpness                    // Survey.Detect.Sharpness
+	SpotScatter                           // Spots.ScatterDex
 )
 
 func (w WeightParam) String() string {
@@ -64,6 +67,8 @@ func (w WeightParam) String() string {
 		return "saturated spot amplitude"
 	case DetectionSharpness:
 		return "detection sharpness"
+	case SpotScatter:
+		return "spot amplitude scatter"
 	}
 	return fmt.Sprintf("WeightParam(%d)", int(w))
 }
@@ -79,8 +84,8 @@ type WeightSlope struct {
 func checkWeightSlopes(ws []WeightSlope, baseScale float64) error {
 	for _, w := range ws {
 		switch {
-		case w.Param < BinaryShare || w.Param > DetectionSharpness:
-			return fmt.Errorf("model: no derivative in %v: want the binary share, the spots' slope or saturated amplitude, the detection threshold or sharpness", w.Param)
+		case w.Param < BinaryShare || w.Param > SpotScatter:
+			return fmt.Errorf("model: no derivative in %v: want the binary share, the spots' slope, saturated amplitude or scatter, the detection threshold or sharpness", w.Param)
 		case w.Param == BinaryShare && !(baseScale > 0):
 			return fmt.Errorf("model: a derivative in the binary share needs the run's share (ObserveOptions.BaseFractionScale > 0), not %g", baseScale)
 		}
@@ -139,6 +144,14 @@ func (ob *observer) addWeightSlopes(fs [][]float64, base int, frac, weight, dWei
 				v = (k*(1-2*P) - 1) * d / (a * a)
 			} else {
 				v = d / a
+			}
+			v *= scale
+		case SpotScatter:
+			g := rot.spotZ * math.Ln10
+			if ws.Second {
+				v = k * (1 - 2*P) * d * g * g
+			} else {
+				v = d * g
 			}
 			v *= scale
 		case DetectionSharpness:

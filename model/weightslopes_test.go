@@ -34,6 +34,7 @@ func TestWeightSlopesMatchFiniteDifferences(t *testing.T) {
 		amp := *p.Spots
 		amp.Slope = 1.7
 		amp.AmpSatPpm = 8000
+		amp.ScatterDex = 0.25
 		q.Spots = &amp
 	})
 	at := func(w WeightParam, x float64) *Population {
@@ -52,6 +53,8 @@ func TestWeightSlopesMatchFiniteDifferences(t *testing.T) {
 				q.Spots.AmpSatPpm = x
 			case DetectionSharpness:
 				q.Survey.Detect.Sharpness = x
+			case SpotScatter:
+				q.Spots.ScatterDex = x
 			}
 		})
 	}
@@ -69,6 +72,7 @@ func TestWeightSlopesMatchFiniteDifferences(t *testing.T) {
 		{DetectionThreshold, 12, 0.05},
 		{SpotAmplitude, 8000, 20},
 		{DetectionSharpness, 3.3, 0.01},
+		{SpotScatter, 0.25, 0.002},
 	} {
 		_, _, ds, err := bank.ObserveSlopes(ctx, centre, g, ObserveOptions{BaseFractionScale: 1,
 			WeightSlopes: []WeightSlope{{tc.w, false}, {tc.w, true}}})
@@ -105,7 +109,8 @@ func TestWeightSlopesWithAndWithoutMemo(t *testing.T) {
 	ctx := context.Background()
 	q := change(func(q *Population) { q.Binaries.FractionScale = 1.2 })
 	all := []WeightSlope{{BinaryShare, false}, {SpotSlope, false}, {SpotSlope, true}, {DetectionThreshold, false}, {DetectionThreshold, true},
-		{SpotAmplitude, false}, {SpotAmplitude, true}, {DetectionSharpness, false}, {DetectionSharpness, true}}
+		{SpotAmplitude, false}, {SpotAmplitude, true}, {DetectionSharpness, false}, {DetectionSharpness, true},
+		{SpotScatter, false}, {SpotScatter, true}}
 	// The run's pass fills the seen memo that q's pass reads.
 	_, _, err := bank.Observe(ctx, p, g, ObserveOptions{BaseFractionScale: 1})
 	require.NoError(t, err)

@@ -15,8 +15,8 @@ import (
 )
 
 // The parameters that only re-weight stored stars — the binary share, the
-// spots' slope and saturated amplitude, the detection threshold and
-// sharpness — freed in a scenario, get their
+// spots' slope, saturated amplitude and scatter, the detection threshold
+// and sharpness — freed in a scenario, get their
 // derivatives from the templates' own pass through the whole chain (the
 // scenario's keys, the observing population, the bank's closed forms):
 // each equals the central differences of re-observations, first and
@@ -65,6 +65,11 @@ min = 1.0
 max = 10.0
 
 [[compare.free]]
+path = "spin.spots.scatter_dex"
+min = 0.05
+max = 0.6
+
+[[compare.free]]
 path = "spin.spots.ro_sat"
 min = 0.05
 max = 0.5
@@ -76,18 +81,18 @@ max = 0.5
 	c, err := SetupComparison(ctx, res, ComparisonOptions{Source: scen, TemplateDir: "none"})
 	require.NoError(t, err)
 	names := c.Nuisance.Names()
-	require.Equal(t, []string{"stars.binary_fraction_scale", "spin.spots.slope", "survey.detection_snr", "spin.spots.amp_sat_ppm", "survey.detection_sharpness", "spin.spots.ro_sat"}, names)
+	require.Equal(t, []string{"stars.binary_fraction_scale", "spin.spots.slope", "survey.detection_snr", "spin.spots.amp_sat_ppm", "survey.detection_sharpness", "spin.spots.scatter_dex", "spin.spots.ro_sat"}, names)
 	so, ok := c.Nuisance.Source.(compare.SlopeObserver)
 	require.True(t, ok, "the comparison's source gives derivatives")
-	assert.False(t, so.Slopes(5), "no derivatives in the spots' saturation")
+	assert.False(t, so.Slopes(6), "no derivatives in the spots' saturation")
 	for j, p := range c.Nuisance.Params {
 		assert.Equal(t, j == 0, p.Linear, "%s: linear", p.Name)
 	}
-	at := []float64{1.2, 1.6, 11, 9000, 3.5, 0.15}
-	tpl, ds, err := so.ObserveSlopes(ctx, at, []int{0, 1, 2, 3, 4})
+	at := []float64{1.2, 1.6, 11, 9000, 3.5, 0.27, 0.15}
+	tpl, ds, err := so.ObserveSlopes(ctx, at, []int{0, 1, 2, 3, 4, 5})
 	require.NoError(t, err)
 	assert.Nil(t, ds[0].Second, "the binary share is linear")
-	for j, h := range []float64{0.1, 0.01, 0.05, 20, 0.01} {
+	for j, h := range []float64{0.1, 0.01, 0.05, 20, 0.01, 0.002} {
 		moved := func(d float64) []float64 {
 			v := append([]float64(nil), at...)
 			v[j] += d

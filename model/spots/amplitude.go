@@ -68,12 +68,21 @@ func (a AmplitudeModel) MedianPpm(ro float64) float64 {
 // lognormally about MedianPpm with one normal deviate from r (drawn whatever
 // ro is).
 func (a AmplitudeModel) Draw(ro float64, r *rand.Rand) float64 {
-	amp := a.AmpSatPpm * math.Exp(math.Ln10*a.ScatterDex*r.NormFloat64())
+	amp, _ := a.DrawDeviate(ro, r)
+	return amp
+}
+
+// DrawDeviate is Draw that also returns the normal deviate z it drew: the
+// amplitude is MedianPpm(ro)·10^(ScatterDex·z), so z is what a derivative
+// in ScatterDex needs.
+func (a AmplitudeModel) DrawDeviate(ro float64, r *rand.Rand) (amp, z float64) {
+	z = r.NormFloat64()
+	amp = a.AmpSatPpm * math.Exp(math.Ln10*a.ScatterDex*z)
 	if !(ro > 0) {
-		return math.NaN()
+		return math.NaN(), z
 	}
 	if ro > a.RoSat {
 		amp /= power(ro/a.RoSat, a.Slope)
 	}
-	return amp
+	return amp, z
 }
