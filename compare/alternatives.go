@@ -128,7 +128,7 @@ func CompareAlternatives(ctx context.Context, alts []Alternative, opts AltOption
 	regs := misfitRegions(alts[0].Like.Space())
 	data := make([]devianceRecord, len(alts))
 	for h, a := range alts {
-		f, err := FitJoint(ctx, a.Like, a.History, a.Nuisance, FitOptions{Starts: opts.FitStarts, Seed: opts.Seed, MaxRounds: opts.MaxRounds})
+		f, err := FitJoint(ctx, a.Like, a.History, a.Nuisance, FitOptions{Starts: opts.FitStarts, Seed: opts.Seed, MaxRounds: opts.MaxRounds, Workers: opts.Workers})
 		if err != nil {
 			return nil, fmt.Errorf("compare: fit of %q: %w", a.Name, err)
 		}

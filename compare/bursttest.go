@@ -171,11 +171,11 @@ func BurstTest(ctx context.Context, like *Likelihood, smooth, burst HistoryModel
 		}
 		return func(msg string) { opts.Stage(prefix + msg) }
 	}
-	f0, err := FitJoint(ctx, like, smooth, nu, FitOptions{Starts: opts.FitStarts, Seed: opts.Seed, MaxRounds: opts.MaxRounds, Stage: stage("smooth history, ")})
+	f0, err := FitJoint(ctx, like, smooth, nu, FitOptions{Starts: opts.FitStarts, Seed: opts.Seed, MaxRounds: opts.MaxRounds, Workers: opts.Workers, Stage: stage("smooth history, ")})
 	if err != nil {
 		return nil, fmt.Errorf("compare: smooth fit: %w", err)
 	}
-	f1, err := FitJoint(ctx, like, burst, nu, FitOptions{Starts: opts.FitStarts, Seed: opts.Seed, MaxRounds: opts.MaxRounds, Init: nestedStarts(smooth, burst, f0.Theta), NuisanceStart: f0.Nuisance, Stage: stage("with burst, ")})
+	f1, err := FitJoint(ctx, like, burst, nu, FitOptions{Starts: opts.FitStarts, Seed: opts.Seed, MaxRounds: opts.MaxRounds, Workers: opts.Workers, Init: nestedStarts(smooth, burst, f0.Theta), NuisanceStart: f0.Nuisance, Stage: stage("with burst, ")})
 	if err != nil {
 		return nil, fmt.Errorf("compare: burst fit: %w", err)
 	}
@@ -184,7 +184,7 @@ func BurstTest(ctx context.Context, like *Likelihood, smooth, burst HistoryModel
 		// cannot have (a wide period scatter smearing a ridge, a color
 		// shift); the burst model is also fitted from the scenario's values,
 		// with its own scan of burst ages, and the better fit kept.
-		f1b, err := FitJoint(ctx, like, burst, nu, FitOptions{Starts: opts.FitStarts, Seed: opts.Seed, MaxRounds: opts.MaxRounds, Stage: stage("with burst (from the scenario's values), ")})
+		f1b, err := FitJoint(ctx, like, burst, nu, FitOptions{Starts: opts.FitStarts, Seed: opts.Seed, MaxRounds: opts.MaxRounds, Workers: opts.Workers, Stage: stage("with burst (from the scenario's values), ")})
 		if err != nil {
 			return nil, fmt.Errorf("compare: burst fit: %w", err)
 		}

@@ -28,6 +28,10 @@ type FitOptions struct {
 	NuisanceStart []float64
 	// MaxRounds, for FitJoint, bounds its expansions (0: MaxRounds).
 	MaxRounds int
+	// Workers, for FitJoint, is how many goroutines fit a round's side
+	// points and proposal starts (0: GOMAXPROCS); results do not depend
+	// on it.
+	Workers int
 	// Stage, if not nil, is told what a long fit is doing (FitJoint: one
 	// line per expansion), for progress reports.
 	Stage func(msg string)

@@ -178,7 +178,7 @@ func searchFrom(ctx context.Context, like *Likelihood, m HistoryModel, nu *Nuisa
 		gain := make([]float64, nu.Dim())
 		combined := append([]float64(nil), centre...)
 		profiles := make([]FitResult, len(mo.sides))
-		if err := onCopies(like, len(mo.sides), func(i int, l *Likelihood) error {
+		if err := onCopies(like, len(mo.sides), opts.Workers, func(i int, l *Likelihood) error {
 			var err error
 			profiles[i], err = profileWith(l, m, nu, mo.sides[i].values, mo.sides[i].tpl, warm)
 			return err
@@ -241,7 +241,7 @@ func searchFrom(ctx context.Context, like *Likelihood, m HistoryModel, nu *Nuisa
 		fits := make([]FitResult, len(starts))
 		fitted := make([]bool, len(starts))
 		fitEvals := make([]int, len(starts))
-		if err := onCopies(like, len(starts), func(i int, l *Likelihood) error {
+		if err := onCopies(like, len(starts), opts.Workers, func(i int, l *Likelihood) error {
 			oi := newObjective(l, m, nu, mo)
 			r, err := oi.fit(m, FitOptions{Starts: 1, Init: [][]float64{cand.Theta, best.Theta}, Seed: opts.Seed}, starts[i])
 			fits[i], fitted[i], fitEvals[i] = r, err == nil, oi.evals
@@ -313,7 +313,8 @@ func searchFrom(ctx context.Context, like *Likelihood, m HistoryModel, nu *Nuisa
 	return best, mo, steps, nil
 }
 
-// onCopies runs job(i, l) for every i < n on up to GOMAXPROCS goroutines,
+// onCopies runs job(i, l) for every i < n on up to workers goroutines
+// (0: GOMAXPROCS),
 // each with its own copy l of like (its data; the job sets the templates
 // it needs), and returns the first error in i's order. The round's side
 // points and proposal starts are independent fits that used to run one
@@ -321,11 +322,14 @@ func searchFrom(ctx context.Context, like *Likelihood, m HistoryModel, nu *Nuisa
 // itself alone and write their results by i, and a fit does not depend on
 // what its copy held before, so nothing depends on the number of
 // goroutines (TestFitJointSameOnAnyThreads).
-func onCopies(like *Likelihood, n int, job func(i int, l *Likelihood) error) error {
+func onCopies(like *Likelihood, n, workers int, job func(i int, l *Likelihood) error) error {
 	if n == 0 {
 		return nil
 	}
-	workers := min(n, runtime.GOMAXPROCS(0))
+	if workers <= 0 {
+		workers = runtime.GOMAXPROCS(0)
+	}
+	workers = min(n, workers)
 	like.markShared() // the copies only read its templates
 	copies := make([]*Likelihood, workers)
 	for w := range copies {

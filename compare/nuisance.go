@@ -306,8 +306,11 @@ func (n *Nuisance) templatesAndSlopes(ctx context.Context, values []float64) (*T
 		return nil, nil, fmt.Errorf("compare: the source gave derivatives in %d parameters at %s; %d asked", len(ds), n.describe(values), len(params))
 	}
 	for i, j := range params {
-		if ds[i].First == nil || !n.Params[j].Linear && ds[i].Second == nil {
-			return nil, nil, fmt.Errorf("compare: the source gave no %s derivative in %s, which the templates are not linear in", map[bool]string{true: "first", false: "second"}[ds[i].First == nil], n.Params[j].Name)
+		switch {
+		case ds[i].First == nil:
+			return nil, nil, fmt.Errorf("compare: the source gave no derivative in %s", n.Params[j].Name)
+		case !n.Params[j].Linear && ds[i].Second == nil:
+			return nil, nil, fmt.Errorf("compare: the source gave no second derivative in %s, which the templates are not linear in (mark it Linear if they are)", n.Params[j].Name)
 		}
 	}
 	t, ds = n.store(key, t, ds)

@@ -139,6 +139,9 @@ func (ob *observer) addWeightSlopes(fs [][]float64, base int, frac, weight, dWei
 			}
 			v *= scale
 		case SpotAmplitude:
+			if d == 0 { // also when there is no spot model: nothing to move
+				continue
+			}
 			a := p.Spots.AmpSatPpm
 			if ws.Second {
 				v = (k*(1-2*P) - 1) * d / (a * a)
@@ -159,6 +162,9 @@ func (ob *observer) addWeightSlopes(fs [][]float64, base int, frac, weight, dWei
 				continue
 			}
 			x := math.Log((1-P)/P) / k
+			if math.IsInf(x, 0) || math.IsNaN(x) {
+				continue // P within rounding of 0: no star to move
+			}
 			if ws.Second {
 				v = x * x * P * (1 - P) * (1 - 2*P)
 			} else {

@@ -126,6 +126,28 @@ func TestWeightSlopesWithAndWithoutMemo(t *testing.T) {
 	assert.Equal(t, want, got)
 }
 
+// Without a spot model no star's count depends on the spots' parameters:
+// their derivatives are zero (and the binary share's are not).
+func TestWeightSlopesWithoutSpots(t *testing.T) {
+	_, g, bank, change := memoTestBank(t)
+	q := change(func(q *Population) { q.Spots = nil })
+	all := []WeightSlope{{BinaryShare, false}, {SpotSlope, false}, {SpotSlope, true}, {SpotAmplitude, false}, {SpotAmplitude, true},
+		{SpotScatter, false}, {SpotScatter, true}, {DetectionThreshold, false}, {DetectionSharpness, true}}
+	_, _, ds, err := bank.ObserveSlopes(context.Background(), q, g, ObserveOptions{BaseFractionScale: 1, WeightSlopes: all})
+	require.NoError(t, err)
+	for i, w := range all {
+		size := 0.0
+		for _, v := range ds[i] {
+			size += math.Abs(v)
+		}
+		if w.Param == BinaryShare {
+			assert.Positive(t, size, "%v", w.Param)
+		} else {
+			assert.Zero(t, size, "%v", w.Param)
+		}
+	}
+}
+
 // Derivatives ObserveSlopes cannot give are refused by name.
 func TestWeightSlopesRefused(t *testing.T) {
 	p, g, bank, _ := memoTestBank(t)

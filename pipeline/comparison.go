@@ -429,7 +429,7 @@ func (c *Comparison) perColor() bool {
 // parameters when there are any (starting from nuStart, nil for their
 // scenario values).
 func (c *Comparison) Fit(ctx context.Context, m compare.HistoryModel, nuStart []float64) (compare.FitResult, error) {
-	return compare.FitJoint(ctx, c.Likelihood, m, c.Nuisance, compare.FitOptions{Seed: c.Scenario.Run.Seed, NuisanceStart: nuStart, MaxRounds: c.MaxRounds, Stage: c.Stage})
+	return compare.FitJoint(ctx, c.Likelihood, m, c.Nuisance, compare.FitOptions{Seed: c.Scenario.Run.Seed, NuisanceStart: nuStart, MaxRounds: c.MaxRounds, Workers: c.Workers, Stage: c.Stage})
 }
 
 // setNuisance makes the comparison's nuisance model: the template run's
