@@ -24,19 +24,8 @@ func TestSearchSharesThroughTheScenario(t *testing.T) {
 	if testing.Short() {
 		t.Skip("builds a template run")
 	}
-	dir := t.TempDir()
-	scen := filepath.Join(dir, "shares.toml")
-	text := `extends = "example:fit"
-name = "shares"
-
-[compare]
-template_stars = 300_000
-
-[[compare.free]]
-path = "history.burst.age_gyr"
-min = 0.2
-max = 2.0
-
+	ctx := context.Background()
+	c := fitWithFree(t, "shares", `
 [[compare.free]]
 path = "survey.search_falloff.kept_24d"
 min = 0.0
@@ -51,13 +40,7 @@ max = 1.0
 path = "survey.search_by_rossby.efficiency_24d"
 min = 0.0
 max = 1.0
-`
-	require.NoError(t, os.WriteFile(scen, []byte(text), 0o644))
-	res, err := scenarios.Resolve(scen)
-	require.NoError(t, err)
-	ctx := context.Background()
-	c, err := SetupComparison(ctx, res, ComparisonOptions{Source: scen, TemplateDir: "none"})
-	require.NoError(t, err)
+`)
 	require.Equal(t, []string{"survey.search_falloff.kept_24d", "survey.search_falloff.kept_48d", "survey.search_by_rossby.efficiency_24d"}, c.Nuisance.Names())
 	so, ok := c.Nuisance.Source.(compare.SlopeObserver)
 	require.True(t, ok, "the comparison's source gives derivatives")
@@ -78,4 +61,29 @@ max = 1.0
 		require.Positive(t, scale, "%s moves the templates", c.Nuisance.Names()[j])
 		assert.Less(t, worst, 1e-9*scale, "%s", c.Nuisance.Names()[j])
 	}
+}
+
+// fitWithFree sets up the comparison of a scenario named name that
+// extends example:fit with small templates (300,000 stars), the burst's
+// age free and the free entries given after it (TOML).
+func fitWithFree(t *testing.T, name, free string) *Comparison {
+	t.Helper()
+	scen := filepath.Join(t.TempDir(), name+".toml")
+	text := `extends = "example:fit"
+name = "` + name + `"
+
+[compare]
+template_stars = 300_000
+
+[[compare.free]]
+path = "history.burst.age_gyr"
+min = 0.2
+max = 2.0
+` + free
+	require.NoError(t, os.WriteFile(scen, []byte(text), 0o644))
+	res, err := scenarios.Resolve(scen)
+	require.NoError(t, err)
+	c, err := SetupComparison(context.Background(), res, ComparisonOptions{Source: scen, TemplateDir: "none"})
+	require.NoError(t, err)
+	return c
 }

@@ -3,15 +3,12 @@ package pipeline
 import (
 	"context"
 	"math"
-	"os"
-	"path/filepath"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
 	"spinpop/compare"
-	"spinpop/scenarios"
 )
 
 // The parameters that only re-weight stored stars — the binary share, the
@@ -26,19 +23,8 @@ func TestWeightParamsThroughTheScenario(t *testing.T) {
 	if testing.Short() {
 		t.Skip("builds a template run")
 	}
-	dir := t.TempDir()
-	scen := filepath.Join(dir, "weights.toml")
-	text := `extends = "example:fit"
-name = "weights"
-
-[compare]
-template_stars = 300_000
-
-[[compare.free]]
-path = "history.burst.age_gyr"
-min = 0.2
-max = 2.0
-
+	ctx := context.Background()
+	c := fitWithFree(t, "weights", `
 [[compare.free]]
 path = "stars.binary_fraction_scale"
 min = 0.0
@@ -73,13 +59,7 @@ max = 0.6
 path = "spin.spots.ro_sat"
 min = 0.05
 max = 0.5
-`
-	require.NoError(t, os.WriteFile(scen, []byte(text), 0o644))
-	res, err := scenarios.Resolve(scen)
-	require.NoError(t, err)
-	ctx := context.Background()
-	c, err := SetupComparison(ctx, res, ComparisonOptions{Source: scen, TemplateDir: "none"})
-	require.NoError(t, err)
+`)
 	names := c.Nuisance.Names()
 	require.Equal(t, []string{"stars.binary_fraction_scale", "spin.spots.slope", "survey.detection_snr", "spin.spots.amp_sat_ppm", "survey.detection_sharpness", "spin.spots.scatter_dex", "spin.spots.ro_sat"}, names)
 	so, ok := c.Nuisance.Source.(compare.SlopeObserver)
