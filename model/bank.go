@@ -51,6 +51,7 @@ type Bank struct {
 	memos *lawMemos   // the stars' spins under the latest laws (nil: none kept)
 	seen  *seenMemos  // the stars' rotations under the latest law, spots and detection (nil: none kept)
 	place *placeMemos // the stars' grid columns under the latest color calibrations (nil: none kept)
+	input *inputMemos // the stars' law-independent inputs (nil: none kept)
 }
 
 // BankMargin widens the color cut (ColorMag on each side, catalog scale)
@@ -151,7 +152,7 @@ func starSeed(seed uint64, chunk, i int) uint64 {
 // Bank returns the collected bank.
 func (bb *BankBuilder) Bank() *Bank {
 	out := &Bank{Start: make([]int, len(bb.bins)+1), DrawnPerBin: append([]int64(nil), bb.drawn...), Margin: bb.margin,
-		Cuts: bb.pop.Cuts, Color: bb.pop.Survey.Color, Noise: bb.pop.Survey.Detect.Noise, memos: newLawMemos(), seen: newSeenMemos(), place: newPlaceMemos()}
+		Cuts: bb.pop.Cuts, Color: bb.pop.Survey.Color, Noise: bb.pop.Survey.Detect.Noise, memos: newLawMemos(), seen: newSeenMemos(), place: newPlaceMemos(), input: newInputMemos()}
 	for k := range bb.bins {
 		b := &bb.bins[k]
 		out.Start[k+1] = out.Start[k] + len(b.Seed)
@@ -316,6 +317,13 @@ func (b *Bank) ObserveSlopes(ctx context.Context, obs *Population, g Grid, opts 
 		}
 		defer b.place.release(ob.columns)
 	}
+	if b.input != nil && ob.plan.hasLog && !opts.noMemo {
+		key := inputKeyOf(ob.plan)
+		if ob.inputs = b.input.find(key); ob.inputs == nil {
+			ob.inputsFill = b.input.newMemo(key, b.Len())
+		}
+		defer b.input.release(ob.inputs)
+	}
 	if key, ok := keyOf(obs); ok && b.memos != nil && !opts.noMemo {
 		// With the rotations known, a new law memo would hold only the
 		// few stars the seen memo lacks: none is made.
@@ -379,6 +387,9 @@ func (b *Bank) ObserveSlopes(ctx context.Context, obs *Population, g Grid, opts 
 	if ob.columnsFill != nil {
 		b.place.add(ob.columnsFill)
 	}
+	if ob.inputsFill != nil {
+		b.input.add(ob.inputsFill)
+	}
 	return counts, vars, slopes, nil
 }
 
@@ -416,6 +427,7 @@ var fineStepDex = math.Log10(2) / 32
 type observer struct {
 	bank       *Bank
 	obs        *Population
+	plan       *rotationPlan // obs's rotations
 	g          Grid
 	cuts       Cuts
 	recut      bool // the bank holds stars beyond the cuts: apply them
@@ -432,8 +444,10 @@ type observer struct {
 	// seen and seenFill are the same for the stars' rotations (seenMemo).
 	memo, fill     *lawMemo
 	seen, seenFill *seenMemo
-	// columns and columnsFill are the same for the stars' columns (placeMemo).
+	// columns and columnsFill are the same for the stars' columns (placeMemo),
+	// inputs and inputsFill for their inputs (inputMemo).
 	columns, columnsFill *placeMemo
+	inputs, inputsFill   *inputMemo
 	nC, nP, nZ           int
 	// The fine grid: nF bins of fineStepDex from fineLo (log10 days).
 	nF     int
@@ -456,6 +470,8 @@ func newObserver(b *Bank, obs *Population, g Grid, opts ObserveOptions) *observe
 		weightSlopes: opts.WeightSlopes,
 		nC:           len(g.ColorEdges) - 1, nP: len(g.LogPeriodEdges) - 1, nZ: len(g.HeightEdgesPc) - 1,
 	}
+	plan := obs.rotationPlan()
+	ob.plan = &plan
 	for _, w := range opts.WeightSlopes {
 		ob.binarySlope = ob.binarySlope || w.Param == BinaryShare
 	}
@@ -580,21 +596,16 @@ func (ob *observer) bin(k int, fine, fineVar []float64, fineSlopes [][]float64, 
 			}
 		}
 		var rot rotation
-		lg := math.NaN() // log10 of the period, NaN until worked out
 		seen := false
 		if m := ob.seen; m != nil {
-			var mlg float64
-			if rot, mlg, seen = m.st.get(s); seen {
-				lg = mlg
-				if rot.ok {
-					p.searchFactor(&rot)
-				}
+			if rot, seen = m.st.get(s); seen && rot.ok {
+				ob.plan.searchFactor(&rot)
 			}
 		}
 		if !seen {
-			rot, lg = ob.rotate(s, comp, lawSrc, spotSrc, lawR, spotR)
+			rot = ob.rotate(s, comp, lawSrc, spotSrc, lawR, spotR)
 			if ob.seenFill != nil {
-				ob.seenFill.st.put(s, rot, lg)
+				ob.seenFill.st.put(s, rot)
 			}
 		}
 		// A star no node value could make detectable adds nothing to any
@@ -603,15 +614,7 @@ func (ob *observer) bin(k int, fine, fineVar []float64, fineSlopes [][]float64, 
 		if !rot.ok || !(rot.prob > 0 || len(fineSlopes) > 0 && rot.preSearch > 0) {
 			continue
 		}
-		if math.IsNaN(lg) {
-			lg = math.Log10(rot.periodD)
-			if ob.fill != nil {
-				ob.fill.st.log10P[s] = lg
-			}
-			if ob.seenFill != nil {
-				ob.seenFill.st.log10P[s] = lg
-			}
-		}
+		lg := rot.lnP * (1 / math.Ln10) // log10 of the period
 		u := (lg - ob.fineLo) * inv
 		if !(u >= 0) || u >= float64(ob.nF-1) {
 			continue // too far outside the grid to reach it
@@ -620,7 +623,7 @@ func (ob *observer) bin(k int, fine, fineVar []float64, fineSlopes [][]float64, 
 		frac := u - float64(i0)
 		base := int(col)*ob.nF + i0
 		if len(ob.slopeNodes) > 0 {
-			ob.addSlopes(fineSlopes, base, frac, weight*rot.preSearch, rot.periodD, rot.tauRatio)
+			ob.addSlopes(fineSlopes, base, frac, weight*rot.preSearch, rot.lnP, rot.lnTauRatio)
 		}
 		if len(ob.weightSlopes) > 0 {
 			ob.addWeightSlopes(fineSlopes[len(ob.slopeNodes):], base, frac, weight, dWeight, &rot)
@@ -658,43 +661,68 @@ func (ob *observer) column(s int) int32 {
 }
 
 // rotate works out stored star s's rotation (with its companion of comp
-// solar masses) through the law memo, and returns it with log10 of its
-// period when the law memo knows it (NaN otherwise).
-func (ob *observer) rotate(s int, comp float64, lawSrc, spotSrc *rand.PCG, lawR, spotR *rand.Rand) (rotation, float64) {
+// solar masses) through the law memo; under a law with a log form,
+// through the star's inputs (inputMemo) too.
+func (ob *observer) rotate(s int, comp float64, lawSrc, spotSrc *rand.PCG, lawR, spotR *rand.Rand) rotation {
 	b, p := ob.bank, ob.obs
 	seed := b.Seed[s]
-	var sp spinState
-	lg := math.NaN()
-	known := false
-	if m := ob.memo; m != nil {
-		var mlg float64
-		if sp, mlg, known = m.st.get(s); known {
-			lg = mlg
-		}
-	}
-	if !known {
-		lawSrc.Seed(seed, 1)
-		st := spin.Star{MassMsun: float64(b.MassMsun[s]), AgeGyr: float64(b.AgeGyr[s]), BV: float64(b.BVMain[s]), TeffK: float64(b.TeffK[s])}
-		sp = p.spinPeriod(st, comp, lawR)
-	}
-	spotSrc.Seed(seed, 2)
 	var noise float64
 	if ob.sameNoise {
 		noise = float64(b.NoisePpm[s])
 	} else {
 		noise = p.Survey.Detect.Noise.PpmPerCadence(float64(b.AppMag[s]))
 	}
-	if ob.fill != nil {
-		ob.fill.st.put(s, sp, math.NaN())
+	var sp spinState
+	known := false
+	if m := ob.memo; m != nil {
+		sp, known = m.st.get(s)
 	}
-	return p.observeRotation(sp, noise, spotR), lg
+	st := spin.Star{MassMsun: float64(b.MassMsun[s]), AgeGyr: float64(b.AgeGyr[s]), BV: float64(b.BVMain[s]), TeffK: float64(b.TeffK[s])}
+	if ob.plan.hasLog {
+		in := ob.inputsOf(s, st, comp, lawSrc, spotSrc, lawR, spotR)
+		if !known {
+			sp = ob.plan.spinFromInputs(st, &in)
+			if ob.fill != nil {
+				ob.fill.st.put(s, sp)
+			}
+		}
+		z := math.NaN()
+		if sp.ok && p.Spots != nil {
+			z = in.zSpot
+		}
+		return ob.plan.observeRotationAt(sp, noise, z)
+	}
+	if !known {
+		lawSrc.Seed(seed, 1)
+		sp = ob.plan.spinPeriod(st, comp, lawR)
+		if ob.fill != nil {
+			ob.fill.st.put(s, sp)
+		}
+	}
+	spotSrc.Seed(seed, 2)
+	return ob.plan.observeRotation(sp, noise, spotR)
+}
+
+// inputsOf returns stored star s's inputs: from the input memo, or drawn
+// (and kept when this pass fills the memo).
+func (ob *observer) inputsOf(s int, st spin.Star, comp float64, lawSrc, spotSrc *rand.PCG, lawR, spotR *rand.Rand) starInputs {
+	if m := ob.inputs; m != nil {
+		if in, ok := m.st.get(s); ok {
+			return in
+		}
+	}
+	in := ob.plan.drawInputs(st, comp, ob.bank.Seed[s], lawSrc, spotSrc, lawR, spotR)
+	if ob.inputsFill != nil {
+		ob.inputsFill.st.put(s, in)
+	}
+	return in
 }
 
 // addSlopes adds a star of weight w before the search's factor, placed
 // at fine bin base with weight frac on the next, to the derivatives in
 // the nodes ob.slopeNodes.
-func (ob *observer) addSlopes(fineSlopes [][]float64, base int, frac, w, periodD, tauRatio float64) {
-	rest, k, f, banded := ob.obs.Survey.Search.SplitBands(periodD, tauRatio)
+func (ob *observer) addSlopes(fineSlopes [][]float64, base int, frac, w, lnP, lnTauRatio float64) {
+	rest, k, f, banded := ob.plan.search.SplitBands(lnP, lnTauRatio)
 	if !banded || !(rest > 0) {
 		return
 	}

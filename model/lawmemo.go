@@ -12,8 +12,9 @@ import (
 // spots, the detection, the color calibration, the binary share): every
 // stored star would get the same period again. The law's period, the
 // tidal lock and the turnover time are a good part of a re-observation's
-// cost (two logarithms and two exponentials per star, and the logarithm
-// that places the period on the fine grid), so Bank keeps them, per star,
+// cost (three logarithms and two exponentials per star, with the
+// logarithms of the period and of τ_c that the rest reads), so Bank keeps
+// them, per star,
 // for the few laws it saw last (lawMemo). What is kept is what the same
 // calls return, so a re-observation reads the same numbers it would have
 // worked out: templates do not depend on whether the memo was used
@@ -23,7 +24,7 @@ import (
 // observes its centre, then side points of each parameter in turn: those
 // of the law's coefficients and scatter are new laws each, those of the
 // other parameters share the centre's law, which is made again (once)
-// when the law's side points have pushed it out. 25 bytes a stored star
+// when the law's side points have pushed it out. 33 bytes a stored star
 // each, and one spare set of storage.
 const maxLawMemos = 3
 
@@ -77,28 +78,29 @@ const (
 	memoTauOK                    // spinState.tauOK
 )
 
-// memoStore is the per-star storage of a memo: the period, τ_c, log10 of
-// the period (NaN until a pass needs it) and the flags, by stored star.
+// memoStore is the per-star storage of a memo: the period, τ_c, their
+// logarithms and the flags, by stored star.
 type memoStore struct {
-	period, tau, log10P []float64
-	flags               []uint8
+	period, tau, lnP, lnTau []float64
+	flags                   []uint8
 }
 
 func newMemoStore(n int) memoStore {
-	return memoStore{period: make([]float64, n), tau: make([]float64, n), log10P: make([]float64, n), flags: make([]uint8, n)}
+	return memoStore{period: make([]float64, n), tau: make([]float64, n), lnP: make([]float64, n), lnTau: make([]float64, n), flags: make([]uint8, n)}
 }
 
-// get returns star s's spin and log10 P, and whether the memo has them.
-func (m *memoStore) get(s int) (spinState, float64, bool) {
+// get returns star s's spin, and whether the memo has it.
+func (m *memoStore) get(s int) (spinState, bool) {
 	f := m.flags[s]
 	if f&memoKnown == 0 {
-		return spinState{}, 0, false
+		return spinState{}, false
 	}
-	return spinState{periodD: m.period[s], tauD: m.tau[s], ok: f&memoOK != 0, locked: f&memoLocked != 0, tauOK: f&memoTauOK != 0}, m.log10P[s], true
+	return spinState{periodD: m.period[s], lnP: m.lnP[s], tauD: m.tau[s], lnTau: m.lnTau[s],
+		ok: f&memoOK != 0, locked: f&memoLocked != 0, tauOK: f&memoTauOK != 0}, true
 }
 
-// put keeps star s's spin; its log10 P is NaN until setLog10.
-func (m *memoStore) put(s int, sp spinState, nan float64) {
+// put keeps star s's spin.
+func (m *memoStore) put(s int, sp spinState) {
 	f := memoKnown
 	if sp.ok {
 		f |= memoOK
@@ -109,7 +111,7 @@ func (m *memoStore) put(s int, sp spinState, nan float64) {
 	if sp.tauOK {
 		f |= memoTauOK
 	}
-	m.period[s], m.tau[s], m.log10P[s], m.flags[s] = sp.periodD, sp.tauD, nan, f
+	m.period[s], m.lnP[s], m.tau[s], m.lnTau[s], m.flags[s] = sp.periodD, sp.lnP, sp.tauD, sp.lnTau, f
 }
 
 // memo is one key's per-star storage S (a memoStore or a seenStore).

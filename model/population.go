@@ -217,8 +217,9 @@ func (p *Population) Fill(c *Chunk, r *rand.Rand) {
 	// writes memory faster than eight scattered stores per star.
 	resetColumns(c, c.N, p.joint != nil)
 	clear(c.DetectProb[:c.N])
+	rp := p.rotationPlan()
 	for i := 0; i < c.N; i++ {
-		p.star(c, i, r)
+		p.star(c, i, r, &rp)
 	}
 }
 
@@ -239,8 +240,9 @@ func (p *Population) place(c *Chunk, i int, r *rand.Rand) {
 	c.LDeg[i], c.BDeg[i], c.DistPc[i], c.ZPc[i] = l, b, d, z
 }
 
-// star makes and observes star i, which place has put in the field.
-func (p *Population) star(c *Chunk, i int, r *rand.Rand) {
+// star makes and observes star i, which place has put in the field, with
+// the chunk's rotation plan rp.
+func (p *Population) star(c *Chunk, i int, r *rand.Rand, rp *rotationPlan) {
 	var flags Flag
 	age, d, z := c.AgeGyr[i], c.DistPc[i], c.ZPc[i]
 	var m float64
@@ -365,7 +367,7 @@ func (p *Population) star(c *Chunk, i int, r *rand.Rand) {
 	}
 
 	noise := p.Survey.Detect.Noise.PpmPerCadence(app)
-	rot := p.rotate(spinStar, comp, noise, r, r)
+	rot := rp.rotate(spinStar, comp, noise, r, r)
 	c.PeriodD[i] = rot.periodD
 	if rot.locked {
 		flags |= FlagTidalLock
@@ -409,14 +411,47 @@ func (p *Population) star(c *Chunk, i int, r *rand.Rand) {
 // passes the photometric cuts.
 type rotation struct {
 	periodD, rossby, ampPpm, prob float64
+	// lnP and lnRo are ln of the period and of the Rossby number (NaN
+	// without a turnover time): what the spots, the search and the fine
+	// grid read.
+	lnP, lnRo float64
 	// preSearch is prob before the search completeness's factor, and
-	// tauRatio the τ_c/τ_c☉ that factor read (NaN when not read): what
-	// Bank's node derivatives need to split that factor.
-	preSearch, tauRatio float64
-	search              float64 // the search completeness's factor (prob = preSearch·search when preSearch > 0)
-	spotZ               float64 // the normal deviate of the spot amplitude's scatter
-	locked              bool    // a tidally locked binary: the period is the orbit's
-	ok                  bool    // false outside the law's calibrated range: no period
+	// lnTauRatio the ln(τ_c/τ_c☉) that factor read (NaN when not read):
+	// what Bank's node derivatives need to split that factor.
+	preSearch, lnTauRatio float64
+	search                float64 // the search completeness's factor (prob = preSearch·search when preSearch > 0)
+	spotZ                 float64 // the normal deviate of the spot amplitude's scatter
+	locked                bool    // a tidally locked binary: the period is the orbit's
+	ok                    bool    // false outside the law's calibrated range: no period
+}
+
+// rotationPlan is what working out rotations needs of a Population,
+// prepared once for a pass over many stars (a chunk, a re-observation):
+// the law's log form, the spots' and the search's constants in log form.
+// The period is carried as ln P from the law on, since the Rossby
+// number's power law, the search's logistic and nodes, and the fine
+// log-period grid all read its logarithm; P itself costs one exponential.
+// A plan is read-only and may be shared by goroutines.
+type rotationPlan struct {
+	p          *Population
+	law        spin.LogForm // the law's log form, when hasLog
+	hasLog     bool
+	amp        spots.LogAmplitude // when p.Spots is set
+	search     spots.LogSearch
+	lnTauSolar float64 // ln τ_c☉
+	lnLockMaxD float64 // ln of the longest tidally locked period
+}
+
+// rotationPlan prepares p's rotations; p's law, spots, survey and
+// binaries must not change while the plan is used.
+func (p *Population) rotationPlan() rotationPlan {
+	rp := rotationPlan{p: p, search: p.Survey.Search.Log(),
+		lnTauSolar: math.Log(p.Turnover.Solar()), lnLockMaxD: math.Log(p.Binaries.TidalLockMaxD)}
+	rp.law, rp.hasLog = spin.LogFormOf(p.Law)
+	if p.Spots != nil {
+		rp.amp = p.Spots.Log()
+	}
+	return rp
 }
 
 // rotate gives star s (with a companion of comp solar masses, 0 if
@@ -428,70 +463,93 @@ type rotation struct {
 // re-observation of stored stars (Bank) a separate stream for each, so
 // that changing one part of the physics leaves the other's random
 // numbers where they were.
-func (p *Population) rotate(s spin.Star, comp, noisePpm float64, lawR, spotR *rand.Rand) rotation {
-	sp := p.spinPeriod(s, comp, lawR)
-	return p.observeRotation(sp, noisePpm, spotR)
+func (rp *rotationPlan) rotate(s spin.Star, comp, noisePpm float64, lawR, spotR *rand.Rand) rotation {
+	sp := rp.spinPeriod(s, comp, lawR)
+	return rp.observeRotation(sp, noisePpm, spotR)
 }
 
 // spinState is the part of a star's rotation that the spin-down law, the
 // tidal lock and the turnover time decide: what Bank keeps between
 // re-observations that change none of them (lawMemo).
 type spinState struct {
-	periodD, tauD float64 // the period; τ_c in days (valid when tauOK)
-	ok            bool    // false outside the law's calibrated range: no period
-	locked        bool
-	tauOK         bool
+	periodD, lnP float64 // the period and its ln
+	tauD, lnTau  float64 // τ_c in days and its ln (valid when tauOK)
+	ok           bool    // false outside the law's calibrated range: no period
+	locked       bool
+	tauOK        bool
 }
 
 // spinPeriod is rotate's first part: the law's period (or the orbit's)
 // drawn from lawR, and the turnover time, which draws nothing.
-func (p *Population) spinPeriod(s spin.Star, comp float64, lawR *rand.Rand) spinState {
-	per, ok := p.Law.Period(s, lawR)
+func (rp *rotationPlan) spinPeriod(s spin.Star, comp float64, lawR *rand.Rand) spinState {
+	p := rp.p
 	var st spinState
+	if rp.hasLog {
+		st.lnP, st.ok = rp.law.LnPeriod(s, lawR)
+		st.periodD = math.Exp(st.lnP)
+	} else {
+		st.periodD, st.ok = p.Law.Period(s, lawR)
+		st.lnP = math.Log(st.periodD)
+	}
 	if comp > 0 && p.Binaries.TidalLockFraction > 0 && lawR.Float64() < p.Binaries.TidalLockFraction {
-		per = math.Exp(lawR.Float64() * math.Log(p.Binaries.TidalLockMaxD))
-		ok = true
+		// Log-uniform between 1 d and TidalLockMaxD.
+		st.lnP = lawR.Float64() * rp.lnLockMaxD
+		st.periodD = math.Exp(st.lnP)
+		st.ok = true
 		st.locked = true
 	}
-	st.periodD, st.ok = per, ok
-	if !ok {
+	if !st.ok {
 		return st
 	}
 	st.tauD, st.tauOK = p.Turnover.Days(s)
+	st.lnTau = math.NaN()
+	if st.tauOK {
+		st.lnTau = math.Log(st.tauD)
+	}
 	return st
 }
 
 // observeRotation is rotate's second part: Rossby number, spot amplitude
 // (drawn from spotR) and detection probability of a star whose spin
 // spinPeriod gave.
-func (p *Population) observeRotation(sp spinState, noisePpm float64, spotR *rand.Rand) rotation {
+func (rp *rotationPlan) observeRotation(sp spinState, noisePpm float64, spotR *rand.Rand) rotation {
+	z := math.NaN()
+	if sp.ok && rp.p.Spots != nil {
+		z = spotR.NormFloat64() // the amplitude's scatter deviate, its only draw
+	}
+	return rp.observeRotationAt(sp, noisePpm, z)
+}
+
+// observeRotationAt is observeRotation with the spot amplitude's deviate z
+// given (read only with a spot model).
+func (rp *rotationPlan) observeRotationAt(sp spinState, noisePpm, z float64) rotation {
+	p := rp.p
 	per := sp.periodD
-	rot := rotation{periodD: per, ok: sp.ok, locked: sp.locked}
+	rot := rotation{periodD: per, lnP: sp.lnP, ok: sp.ok, locked: sp.locked}
 	if !sp.ok {
 		return rot
 	}
-	// τ_c once: the Rossby number and the search completeness read it.
-	tau, tauOK := sp.tauD, sp.tauOK
-	rot.rossby = math.NaN()
-	if tauOK && per > 0 {
-		rot.rossby = per / tau // as TurnoverTime.Rossby
+	rot.rossby, rot.lnRo = math.NaN(), math.NaN()
+	if sp.tauOK && per > 0 {
+		rot.rossby = per / sp.tauD // as TurnoverTime.Rossby
+		rot.lnRo = sp.lnP - sp.lnTau
 	}
 	rot.prob, rot.ampPpm = 1, math.NaN()
 	if p.Spots != nil {
 		// A star outside the turnover-time fit has no Rossby number; its
 		// NaN amplitude makes it undetectable, which the catalog flags.
-		rot.ampPpm, rot.spotZ = p.Spots.DrawDeviate(rot.rossby, spotR)
+		rot.ampPpm, rot.spotZ = rp.amp.FromDeviate(rot.lnRo, z), z
 		rot.prob = p.Survey.Detect.ProbabilityAtNoise(rot.ampPpm, noisePpm, per)
 	} else if per < 2*p.Survey.Detect.CadenceD || p.Survey.Detect.BaselineD < p.Survey.Detect.MinCycles*per {
 		// No spot model: a period is found whenever the light curve can
 		// hold it (Nyquist at the short end, MinCycles at the long end).
 		rot.prob = 0
 	}
-	rot.preSearch, rot.tauRatio = rot.prob, math.NaN()
-	if p.Survey.Search.Enabled() && rot.prob > 0 && p.Survey.Search.NeedsTurnover() && tauOK {
-		rot.tauRatio = tau / p.Turnover.Solar()
+	rot.preSearch, rot.lnTauRatio = rot.prob, math.NaN()
+	if p.Survey.Search.Enabled() && rot.prob > 0 && p.Survey.Search.NeedsTurnover() && sp.tauOK {
+		rot.lnTauRatio = sp.lnTau - rp.lnTauSolar
 	}
-	p.searchFactor(&rot)
+	rp.searchFactor(&rot)
 	return rot
 }
 
@@ -499,10 +557,10 @@ func (p *Population) observeRotation(sp spinState, noisePpm float64, spotR *rand
 // completeness's efficiency at the star's period and τ_c/τ_c☉ (as
 // observeRotation does; Bank's seen memo applies it again to a star's
 // kept rotation under other nodes).
-func (p *Population) searchFactor(rot *rotation) {
+func (rp *rotationPlan) searchFactor(rot *rotation) {
 	rot.prob, rot.search = rot.preSearch, 1
-	if p.Survey.Search.Enabled() && rot.prob > 0 {
-		rot.search = p.Survey.Search.Efficiency(rot.periodD, rot.tauRatio)
+	if rp.p.Survey.Search.Enabled() && rot.prob > 0 {
+		rot.search = rp.search.Efficiency(rot.lnP, rot.lnTauRatio)
 		rot.prob *= rot.search
 	}
 }

@@ -61,38 +61,37 @@ const (
 )
 
 // seenStore is the per-star storage of a seen memo: the parts of a
-// rotation that binning reads but the search's factor (the Rossby number
-// and the amplitude's deviate for the derivatives in the spots'
-// parameters), and log10 of the period
-// (NaN until a pass needs it).
+// rotation that binning reads but the search's factor (with ln Ro and the
+// amplitude's deviate for the derivatives in the spots' parameters).
 type seenStore struct {
-	preSearch, tauRatio, period, rossby, spotZ, log10P []float64
-	flags                                              []uint8
+	preSearch, lnTauRatio, period, lnP, lnRo, spotZ []float64
+	flags                                           []uint8
 }
 
 func newSeenStore(n int) seenStore {
-	return seenStore{preSearch: make([]float64, n), tauRatio: make([]float64, n),
-		period: make([]float64, n), rossby: make([]float64, n), spotZ: make([]float64, n), log10P: make([]float64, n), flags: make([]uint8, n)}
+	return seenStore{preSearch: make([]float64, n), lnTauRatio: make([]float64, n),
+		period: make([]float64, n), lnP: make([]float64, n), lnRo: make([]float64, n), spotZ: make([]float64, n), flags: make([]uint8, n)}
 }
 
 // get returns star s's rotation (the fields binning reads; prob without
-// the search's factor, which the caller applies) and log10 P, and
-// whether the memo has them.
-func (m *seenStore) get(s int) (rotation, float64, bool) {
+// the search's factor, which the caller applies), and whether the memo
+// has it.
+func (m *seenStore) get(s int) (rotation, bool) {
 	f := m.flags[s]
 	if f&seenKnown == 0 {
-		return rotation{}, 0, false
+		return rotation{}, false
 	}
-	return rotation{periodD: m.period[s], rossby: m.rossby[s], spotZ: m.spotZ[s], prob: m.preSearch[s], preSearch: m.preSearch[s], tauRatio: m.tauRatio[s], ok: f&seenOK != 0}, m.log10P[s], true
+	return rotation{periodD: m.period[s], lnP: m.lnP[s], lnRo: m.lnRo[s], spotZ: m.spotZ[s], prob: m.preSearch[s], preSearch: m.preSearch[s],
+		lnTauRatio: m.lnTauRatio[s], ok: f&seenOK != 0}, true
 }
 
-// put keeps star s's rotation and log10 P (NaN if not yet worked out).
-func (m *seenStore) put(s int, r rotation, lg float64) {
+// put keeps star s's rotation.
+func (m *seenStore) put(s int, r rotation) {
 	f := seenKnown
 	if r.ok {
 		f |= seenOK
 	}
-	m.period[s], m.rossby[s], m.spotZ[s], m.preSearch[s], m.tauRatio[s], m.log10P[s], m.flags[s] = r.periodD, r.rossby, r.spotZ, r.preSearch, r.tauRatio, lg, f
+	m.period[s], m.lnP[s], m.lnRo[s], m.spotZ[s], m.preSearch[s], m.lnTauRatio[s], m.flags[s] = r.periodD, r.lnP, r.lnRo, r.spotZ, r.preSearch, r.lnTauRatio, f
 }
 
 // seenMemos is the memo of the stars' rotations by seen key.

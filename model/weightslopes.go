@@ -172,10 +172,11 @@ func (ob *observer) addWeightSlopes(fs [][]float64, base int, frac, weight, dWei
 			}
 			v *= scale
 		case SpotSlope:
-			if d == 0 || !(rot.rossby > p.Spots.RoSat) {
+			lnRoSat := ob.plan.amp.LnRoSat()
+			if d == 0 || !(rot.lnRo > lnRoSat) { // as LogAmplitude's power law
 				continue
 			}
-			l := math.Log(rot.rossby / p.Spots.RoSat)
+			l := rot.lnRo - lnRoSat
 			if ws.Second {
 				v = k * (1 - 2*P) * d * l * l
 			} else {

@@ -74,15 +74,48 @@ func (a AmplitudeModel) Draw(ro float64, r *rand.Rand) float64 {
 
 // DrawDeviate is Draw that also returns the normal deviate z it drew: the
 // amplitude is MedianPpm(ro)·10^(ScatterDex·z), so z is what a derivative
-// in ScatterDex needs.
+// in ScatterDex needs. It is LogAmplitude's draw at ln ro, so that a star
+// gets the same amplitude whichever form its Rossby number came in.
 func (a AmplitudeModel) DrawDeviate(ro float64, r *rand.Rand) (amp, z float64) {
+	return a.Log().DrawDeviate(math.Log(ro), r)
+}
+
+// LogAmplitude is an AmplitudeModel prepared for stars whose Rossby number
+// is known by its logarithm (as the population's rotations are): its
+// constants' logarithms are worked out once, and a draw costs one normal
+// deviate and one exponential,
+//
+//	A = AmpSatPpm · exp(ln 10 · ScatterDex · z − Slope · max(0, ln Ro − ln RoSat)).
+type LogAmplitude struct {
+	ampSat, k, slope, lnRoSat float64
+}
+
+// Log returns a prepared for draws at ln Ro.
+func (a AmplitudeModel) Log() LogAmplitude {
+	return LogAmplitude{ampSat: a.AmpSatPpm, k: math.Ln10 * a.ScatterDex, slope: a.Slope, lnRoSat: math.Log(a.RoSat)}
+}
+
+// LnRoSat returns ln RoSat.
+func (l LogAmplitude) LnRoSat() float64 { return l.lnRoSat }
+
+// DrawDeviate returns one star's amplitude (ppm) at ln Ro = lnRo and the
+// normal deviate z it drew from r (drawn whatever lnRo is): FromDeviate at
+// that deviate.
+func (l LogAmplitude) DrawDeviate(lnRo float64, r *rand.Rand) (amp, z float64) {
 	z = r.NormFloat64()
-	amp = a.AmpSatPpm * math.Exp(math.Ln10*a.ScatterDex*z)
-	if !(ro > 0) {
-		return math.NaN(), z
+	return l.FromDeviate(lnRo, z), z
+}
+
+// FromDeviate returns the amplitude (ppm) at ln Ro = lnRo of a star whose
+// scatter deviate is z; NaN when lnRo is NaN or −Inf (no Rossby number, or
+// Ro = 0).
+func (l LogAmplitude) FromDeviate(lnRo, z float64) float64 {
+	if !(lnRo > math.Inf(-1)) {
+		return math.NaN()
 	}
-	if ro > a.RoSat {
-		amp /= power(ro/a.RoSat, a.Slope)
+	e := l.k * z
+	if lnRo > l.lnRoSat {
+		e -= l.slope * (lnRo - l.lnRoSat)
 	}
-	return amp, z
+	return l.ampSat * math.Exp(e)
 }

@@ -85,34 +85,11 @@ func (s SearchCompleteness) Validate() error {
 // Efficiency returns ε for a period periodD of a star whose turnover time
 // is tauRatio = τ_c/τ_c☉ (read only when NeedsTurnover). A star without a
 // turnover time (tauRatio NaN) when one is needed, or a non-positive
-// period, gives 0; a disabled completeness gives 1.
+// period, gives 0; a disabled completeness gives 1. It is LogSearch's
+// efficiency at the logarithms, so that a star gets the same factor
+// whichever form its period came in.
 func (s SearchCompleteness) Efficiency(periodD, tauRatio float64) float64 {
-	if !s.Enabled() {
-		return 1
-	}
-	if !(periodD > 0) || (s.NeedsTurnover() && !(tauRatio > 0)) {
-		return 0
-	}
-	scale := s.scale(tauRatio)
-	eff := 1.0
-	if len(s.RossbyBands) > 0 {
-		eff = s.bandEfficiency(BandNodes(periodD / scale))
-	}
-	if s.HalfPeriodD == 0 {
-		return eff
-	}
-	return eff / (1 + math.Exp(s.Steepness*math.Log(periodD/(s.HalfPeriodD*scale))))
-}
-
-// scale returns (τ_c/τ_c☉)^TurnoverPower for tauRatio = τ_c/τ_c☉.
-func (s SearchCompleteness) scale(tauRatio float64) float64 {
-	switch s.TurnoverPower {
-	case 0:
-		return 1
-	case 1:
-		return tauRatio // the default: spare an exp and a log per star
-	}
-	return math.Exp(s.TurnoverPower * math.Log(tauRatio))
+	return s.Log().Efficiency(math.Log(periodD), math.Log(tauRatio))
 }
 
 // SplitBands returns the two parts of Efficiency: rest, everything but
@@ -124,21 +101,83 @@ func (s SearchCompleteness) scale(tauRatio float64) float64 {
 // (and k, f unset) when no band factor applies — none is set, or rest is
 // already 0.
 func (s SearchCompleteness) SplitBands(periodD, tauRatio float64) (rest float64, k int, f float64, bands bool) {
-	if !s.Enabled() {
+	return s.Log().SplitBands(math.Log(periodD), math.Log(tauRatio))
+}
+
+// LogSearch is a SearchCompleteness prepared for stars whose period and
+// τ_c/τ_c☉ are known by their logarithms (as the population's rotations
+// are): ln P½ is worked out once, the nodes are placed without a
+// logarithm, and the logistic costs one exponential.
+type LogSearch struct {
+	s             SearchCompleteness
+	on, tau, half bool
+	lnHalf        float64
+}
+
+// Log returns s prepared for its log form.
+func (s SearchCompleteness) Log() LogSearch {
+	l := LogSearch{s: s, on: s.Enabled(), tau: s.NeedsTurnover(), half: s.HalfPeriodD > 0}
+	if l.half {
+		l.lnHalf = math.Log(s.HalfPeriodD)
+	}
+	return l
+}
+
+// lnScale returns ln of (τ_c/τ_c☉)^TurnoverPower, 0 for power 0 whatever
+// lnTauRatio is.
+func (l LogSearch) lnScale(lnTauRatio float64) float64 {
+	switch l.s.TurnoverPower {
+	case 0:
+		return 0
+	case 1:
+		return lnTauRatio
+	}
+	return l.s.TurnoverPower * lnTauRatio
+}
+
+// usable reports whether a star of ln P = lnP and ln τ_c/τ_c☉ = lnTauRatio
+// can be found at all: a period > 0, and a turnover time where one is read.
+func (l LogSearch) usable(lnP, lnTauRatio float64) bool {
+	return lnP > math.Inf(-1) && !math.IsNaN(lnP) && (!l.tau || lnTauRatio > math.Inf(-1) && !math.IsNaN(lnTauRatio))
+}
+
+// Efficiency is SearchCompleteness.Efficiency at ln P = lnP and
+// ln(τ_c/τ_c☉) = lnTauRatio.
+func (l LogSearch) Efficiency(lnP, lnTauRatio float64) float64 {
+	if !l.on {
+		return 1
+	}
+	if !l.usable(lnP, lnTauRatio) {
+		return 0
+	}
+	lnScale := l.lnScale(lnTauRatio)
+	eff := 1.0
+	if len(l.s.RossbyBands) > 0 {
+		eff = l.s.bandEfficiency(BandNodesLog(lnP - lnScale))
+	}
+	if !l.half {
+		return eff
+	}
+	return eff / (1 + math.Exp(l.s.Steepness*(lnP-lnScale-l.lnHalf)))
+}
+
+// SplitBands is SearchCompleteness.SplitBands at the logarithms.
+func (l LogSearch) SplitBands(lnP, lnTauRatio float64) (rest float64, k int, f float64, bands bool) {
+	if !l.on {
 		return 1, 0, 0, false
 	}
-	if !(periodD > 0) || (s.NeedsTurnover() && !(tauRatio > 0)) {
+	if !l.usable(lnP, lnTauRatio) {
 		return 0, 0, 0, false
 	}
-	scale := s.scale(tauRatio)
+	lnScale := l.lnScale(lnTauRatio)
 	rest = 1
-	if s.HalfPeriodD > 0 {
-		rest = 1 / (1 + math.Exp(s.Steepness*math.Log(periodD/(s.HalfPeriodD*scale))))
+	if l.half {
+		rest = 1 / (1 + math.Exp(l.s.Steepness*(lnP-lnScale-l.lnHalf)))
 	}
-	if len(s.RossbyBands) == 0 {
+	if len(l.s.RossbyBands) == 0 {
 		return rest, 0, 0, false
 	}
-	k, f = BandNodes(periodD / scale)
+	k, f = BandNodesLog(lnP - lnScale)
 	return rest, k, f, true
 }
 
@@ -155,17 +194,22 @@ func (s SearchCompleteness) bandEfficiency(k int, f float64) float64 {
 // lower node k of the pair it lies between and its weight f ∈ [0, 1] on
 // node k+1, linear in ln x; flat beyond the end nodes (f = 0 at the first
 // pair's lower node, 1 at the last pair's upper node).
-func BandNodes(x float64) (k int, f float64) {
+func BandNodes(x float64) (k int, f float64) { return BandNodesLog(math.Log(x)) }
+
+// lnNodeFirst and lnNodeLast are the logarithms of the end nodes.
+var lnNodeFirst, lnNodeLast = math.Log(RossbyNodesD[0]), math.Log(RossbyNodesD[len(RossbyNodesD)-1])
+
+// BandNodesLog is BandNodes at ln x = lnX. The nodes are 3·2^k d, so
+// ln x places x without a search.
+func BandNodesLog(lnX float64) (k int, f float64) {
 	last := len(RossbyNodesD) - 1
 	switch {
-	case x <= RossbyNodesD[0]:
+	case !(lnX > lnNodeFirst): // also NaN, as x ≤ 0 was
 		return 0, 0
-	case x >= RossbyNodesD[last]:
+	case lnX >= lnNodeLast:
 		return last - 1, 1
 	}
-	// The nodes are 3·2^k d: one logarithm places x (this runs for every
-	// detected star of every re-observation).
-	u := math.Log(x/RossbyNodesD[0]) * (1 / math.Ln2)
+	u := (lnX - lnNodeFirst) * (1 / math.Ln2)
 	k = min(int(u), last-1)
 	return k, min(u-float64(k), 1)
 }

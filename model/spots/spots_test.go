@@ -357,3 +357,44 @@ func TestSearchSplitBands(t *testing.T) {
 	assert.False(t, ok)
 	assert.Equal(t, 0.0, rest, "no turnover time: nothing is detected")
 }
+
+// The log forms the population uses are the models: an amplitude drawn
+// at ln Ro is the one drawn at Ro (the median times 10^(σz), worked from
+// the definition, with the same deviate), with no amplitude at Ro = 0 or
+// without a Rossby number; the search's efficiency and split at the
+// logarithms are the ones at the values.
+func TestLogFormsMatchTheModels(t *testing.T) {
+	a := AmplitudeModel{RoSat: 0.12, AmpSatPpm: 8000, Slope: 1.37, ScatterDex: 0.25}
+	l := a.Log()
+	assert.InDelta(t, math.Log(0.12), l.LnRoSat(), 1e-15)
+	for _, ro := range []float64{0.01, 0.12, 0.3, 1.1, 4} {
+		r1, r2 := rand.New(rand.NewPCG(9, 2)), rand.New(rand.NewPCG(9, 2))
+		got, z := l.DrawDeviate(math.Log(ro), r1)
+		zWant := r2.NormFloat64()
+		assert.Equal(t, zWant, z)
+		assert.InEpsilon(t, a.MedianPpm(ro)*math.Pow(10, a.ScatterDex*zWant), got, 1e-13, "ro %v", ro)
+	}
+	r := rand.New(rand.NewPCG(1, 1))
+	for _, lnRo := range []float64{math.Inf(-1), math.NaN()} {
+		amp, _ := l.DrawDeviate(lnRo, r)
+		assert.True(t, math.IsNaN(amp), "ln Ro %v", lnRo)
+	}
+
+	s := SearchCompleteness{HalfPeriodD: 18, TurnoverPower: 0.7, Steepness: 5, RossbyBands: []float64{1, 0.95, 0.7, 0.5, 0.2, 0.1}}
+	ls := s.Log()
+	for _, c := range []struct{ p, tau float64 }{{2, 1}, {7, 0.6}, {19, 1.4}, {60, 1}, {300, 2.5}} {
+		// Efficiency from its definition: the logistic in P/P½ times the
+		// bands interpolated in ln of the scaled period.
+		scale := math.Pow(c.tau, 0.7)
+		k, f := BandNodes(c.p / scale)
+		want := (s.RossbyBands[k] + f*(s.RossbyBands[k+1]-s.RossbyBands[k])) / (1 + math.Pow(c.p/(18*scale), 5))
+		assert.InEpsilon(t, want, ls.Efficiency(math.Log(c.p), math.Log(c.tau)), 1e-12, "%+v", c)
+		r1, k1, f1, ok1 := s.SplitBands(c.p, c.tau)
+		r2, k2, f2, ok2 := ls.SplitBands(math.Log(c.p), math.Log(c.tau))
+		assert.Equal(t, []any{k1, ok1}, []any{k2, ok2})
+		assert.InDelta(t, r1, r2, 1e-14)
+		assert.InDelta(t, f1, f2, 1e-14)
+	}
+	assert.Equal(t, 0.0, ls.Efficiency(math.Inf(-1), 0), "a zero period is never found")
+	assert.Equal(t, 0.0, ls.Efficiency(math.Log(10), math.NaN()), "no turnover time where one is read")
+}
