@@ -265,7 +265,11 @@ func (o *objective) eval(x []float64) {
 		o.mo.apply(o.nuVals, o.rows, o.vars, o.clamped, o.scratch)
 		o.like.setRows(o.rows, o.vars)
 	}
-	w, err := o.m.Weights(o.theta)
+	h, err := o.m.History(o.theta)
+	var w []float64
+	if err == nil {
+		w = h.BinWeights(o.m.AgeEdgesGyr)
+	}
 	if err != nil {
 		o.err = err
 		bad()
@@ -282,7 +286,7 @@ func (o *objective) eval(x []float64) {
 		bad()
 		return
 	}
-	if err := o.m.weightJacobian(o.theta, o.jac); err != nil {
+	if err := o.m.weightJacobian(h, o.theta, o.jac); err != nil {
 		o.err = err
 	}
 	o.lastF = -l

@@ -176,3 +176,72 @@ func TestWithCalibration(t *testing.T) {
 	assert.True(t, w.HiOpen)
 	assert.Equal(t, iv, WithCalibration(iv, 0), "no calibration, no change")
 }
+
+// The fit's Jacobian of the bin weights: where the history has closed
+// forms (sfh's BinWeightSlopes, checked there against the definitions) it
+// agrees with the central differences the fit takes otherwise; with a dip
+// the differences are used, and they are the slopes of BinWeights.
+func TestWeightJacobianClosedFormOrDifferences(t *testing.T) {
+	edges := []float64{0, 0.3, 0.6, 1, 1.5, 2, 3, 5, 7, 10}
+	free := []FreeParam{{Name: "burst.age_gyr", Min: 0.2, Max: 3}, {Name: "burst.width_gyr", Min: 0.05, Max: 1},
+		{Name: "burst.mass_fraction", Min: 0, Max: 0.5}, {Name: "decline.timescale_gyr", Min: 0.5, Max: 20}}
+	parts := []sfh.Part{
+		{Name: "decline", Component: sfh.Exponential{TimescaleGyr: 4}, Weight: 1},
+		{Name: "burst", Component: sfh.Burst{AgeGyr: 1.2, WidthGyr: 0.2, MassFraction: 0.15}},
+	}
+	jacOf := func(m HistoryModel, theta []float64) [][]float64 {
+		jac := make([][]float64, len(theta))
+		for j := range jac {
+			jac[j] = make([]float64, len(edges)-1)
+		}
+		h, err := m.History(theta)
+		require.NoError(t, err)
+		require.NoError(t, m.weightJacobian(h, theta, jac))
+		return jac
+	}
+	// differences of BinWeights, as the fallback takes them.
+	diffs := func(m HistoryModel, theta []float64) [][]float64 {
+		out := make([][]float64, len(theta))
+		for j, f := range m.Free {
+			step := 1e-6 * (f.Max - f.Min)
+			up, dn := append([]float64(nil), theta...), append([]float64(nil), theta...)
+			up[j] += step
+			dn[j] -= step
+			wu, err := m.Weights(up)
+			require.NoError(t, err)
+			wd, err := m.Weights(dn)
+			require.NoError(t, err)
+			out[j] = make([]float64, len(wu))
+			for k := range wu {
+				out[j][k] = (wu[k] - wd[k]) / (2 * step)
+			}
+		}
+		return out
+	}
+	base, err := sfh.New(10, parts)
+	require.NoError(t, err)
+	m := HistoryModel{Base: base, Free: free, AgeEdgesGyr: edges}
+	theta := []float64{1.3, 0.25, 0.2, 3}
+	h, err := m.History(theta)
+	require.NoError(t, err)
+	require.True(t, h.BinWeightSlopes(edges, m.Names(), jacOf(m, theta)), "this history has closed forms")
+	got, want := jacOf(m, theta), diffs(m, theta)
+	for j := range got {
+		for k := range got[j] {
+			assert.InDelta(t, want[j][k], got[j][k], 1e-6, "%s bin %d", free[j].Name, k)
+		}
+	}
+
+	dipped, err := sfh.New(10, append(parts, sfh.Part{Name: "lull", Component: sfh.Dip{AgeGyr: 4, WidthGyr: 0.5, Depth: 0.5}}))
+	require.NoError(t, err)
+	md := HistoryModel{Base: dipped, Free: free, AgeEdgesGyr: edges}
+	hd, err := md.History(theta)
+	require.NoError(t, err)
+	require.False(t, hd.BinWeightSlopes(edges, md.Names(), jacOf(md, theta)), "a dip has no closed form")
+	got, want = jacOf(md, theta), diffs(md, theta)
+	for j := range got {
+		for k := range got[j] {
+			assert.InDelta(t, want[j][k], got[j][k], 1e-5, "dipped %s bin %d", free[j].Name, k)
+		}
+	}
+}

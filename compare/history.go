@@ -176,12 +176,18 @@ func (m HistoryModel) FromInternal(x, theta, deriv []float64) {
 	}
 }
 
-// weightJacobian writes dw_k/dθ_j into jac (row j holds the k values) by
-// central finite differences of BinWeights (one-sided at a bound), with
-// steps of 1e-6 of each parameter's range: BinWeights is a closed form of
-// error functions and exponentials, smooth at that scale, so the
-// differences are accurate to ~1e-8 relative.
-func (m HistoryModel) weightJacobian(theta []float64, jac [][]float64) error {
+// weightJacobian writes dw_k/dθ_j into jac (row j holds the k values) for
+// h, the history at theta:
+// the history's closed forms where it has them (sfh's BinWeightSlopes: no
+// dips, no Piecewise rates), otherwise central finite differences of
+// BinWeights (one-sided at a bound), with steps of 1e-6 of each
+// parameter's range: BinWeights is a closed form of error functions and
+// exponentials, smooth at that scale, so the differences are accurate to
+// ~1e-8 relative.
+func (m HistoryModel) weightJacobian(h *sfh.History, theta []float64, jac [][]float64) error {
+	if len(theta) > 0 && h.BinWeightSlopes(m.AgeEdgesGyr, m.Names(), jac) {
+		return nil
+	}
 	tp := append([]float64(nil), theta...)
 	for j, f := range m.Free {
 		h := 1e-6 * (f.Max - f.Min)
