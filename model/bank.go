@@ -677,11 +677,11 @@ func (ob *observer) rotate(s int, comp float64, lawSrc, spotSrc *rand.PCG, lawR,
 	if m := ob.memo; m != nil {
 		sp, known = m.st.get(s)
 	}
-	st := spin.Star{MassMsun: float64(b.MassMsun[s]), AgeGyr: float64(b.AgeGyr[s]), BV: float64(b.BVMain[s]), TeffK: float64(b.TeffK[s])}
 	if ob.plan.hasLog {
-		in := ob.inputsOf(s, st, comp, lawSrc, spotSrc, lawR, spotR)
+		in := ob.inputsOf(s, comp, lawSrc, spotSrc, lawR, spotR)
 		if !known {
-			sp = ob.plan.spinFromInputs(st, &in)
+			// The law's range reads the color and the age alone.
+			sp = ob.plan.spinFromInputs(spin.Star{AgeGyr: float64(b.AgeGyr[s]), BV: float64(b.BVMain[s])}, &in)
 			if ob.fill != nil {
 				ob.fill.st.put(s, sp)
 			}
@@ -694,7 +694,7 @@ func (ob *observer) rotate(s int, comp float64, lawSrc, spotSrc *rand.PCG, lawR,
 	}
 	if !known {
 		lawSrc.Seed(seed, 1)
-		sp = ob.plan.spinPeriod(st, comp, lawR)
+		sp = ob.plan.spinPeriod(ob.star(s), comp, lawR)
 		if ob.fill != nil {
 			ob.fill.st.put(s, sp)
 		}
@@ -703,15 +703,21 @@ func (ob *observer) rotate(s int, comp float64, lawSrc, spotSrc *rand.PCG, lawR,
 	return ob.plan.observeRotation(sp, noise, spotR)
 }
 
+// star returns what a spin-down law may know of stored star s.
+func (ob *observer) star(s int) spin.Star {
+	b := ob.bank
+	return spin.Star{MassMsun: float64(b.MassMsun[s]), AgeGyr: float64(b.AgeGyr[s]), BV: float64(b.BVMain[s]), TeffK: float64(b.TeffK[s])}
+}
+
 // inputsOf returns stored star s's inputs: from the input memo, or drawn
 // (and kept when this pass fills the memo).
-func (ob *observer) inputsOf(s int, st spin.Star, comp float64, lawSrc, spotSrc *rand.PCG, lawR, spotR *rand.Rand) starInputs {
+func (ob *observer) inputsOf(s int, comp float64, lawSrc, spotSrc *rand.PCG, lawR, spotR *rand.Rand) starInputs {
 	if m := ob.inputs; m != nil {
 		if in, ok := m.st.get(s); ok {
 			return in
 		}
 	}
-	in := ob.plan.drawInputs(st, comp, ob.bank.Seed[s], lawSrc, spotSrc, lawR, spotR)
+	in := ob.plan.drawInputs(ob.star(s), comp, ob.bank.Seed[s], lawSrc, spotSrc, lawR, spotR)
 	if ob.inputsFill != nil {
 		ob.inputsFill.st.put(s, in)
 	}

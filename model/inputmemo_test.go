@@ -12,9 +12,9 @@ import (
 	"spinpop/model/spots"
 )
 
-// A fit's side points in the law's coefficients and scatter read the
-// stars' inputs from the memo; a new C, a law that starts or stops drawing
-// a scatter deviate, or a new tidal lock makes new ones. Whichever way,
+// A fit's side points in the law's coefficients and scatter (down to a
+// law without scatter) read the stars' inputs from the memo; a new C or a
+// new tidal lock makes new ones. Whichever way,
 // the templates are the bits worked out without any memo.
 func TestObserveInputMemoIdentical(t *testing.T) {
 	p, g, bank, change := memoTestBank(t)
@@ -38,9 +38,12 @@ func TestObserveInputMemoIdentical(t *testing.T) {
 		{"a side point", change(withLaw(b.A*1.02, b.N, b.C, 0.08)), true},
 		{"n side point", change(withLaw(b.A, b.N*0.98, b.C, 0.08)), true},
 		{"scatter side point", change(withLaw(b.A, b.N, b.C, 0.11)), true},
+		// A scatter fitted to 0 is a law without scatter, whose stream
+		// holds the tidal-lock draws first: the same memo serves it.
+		{"no scatter", change(func(q *Population) { withLaw(b.A, b.N, b.C, 0.08)(q); q.Law = spin.Barnes2007() }), true},
 		{"c side point", change(withLaw(b.A, b.N, b.C+0.01, 0.08)), false},
 		{"tidal lock", change(func(q *Population) { withLaw(b.A, b.N, b.C+0.01, 0.08)(q); q.Binaries.TidalLockFraction = 0.3 }), false},
-		{"bare law (no deviate drawn)", p, false},
+		{"the run as made", p, false},
 	}
 	has := func(key inputKey) bool {
 		e := bank.input.find(key)
@@ -63,41 +66,49 @@ type opaqueLaw struct{ spin.Law }
 
 // The log-form path (the stars' inputs, ln P by sums of products) is the
 // law's own period: templates through it and through Period agree to
-// rounding, with scatter, tidal locks, spots and a search completeness
-// that reads τ_c, and both put the same stars in the catalog.
+// rounding, with and without scatter (which moves the tidal-lock draws in
+// the stream), with tidal locks, spots and a search completeness that
+// reads τ_c, and both put the same stars in the catalog.
 func TestObserveLogFormIsThePeriod(t *testing.T) {
 	_, g, bank, change := memoTestBank(t)
 	amp := spots.DefaultAmplitudeModel()
 	amp.Slope = 1.37 // not a half-integer: the power law's general path
-	law := spin.Scattered{Law: spin.MamajekHillenbrand2008(), Dex: 0.09, Scale: 1.1}
-	set := func(l spin.Law) func(q *Population) {
-		return func(q *Population) {
-			q.Law = l
-			q.Spots = &amp
-			q.Binaries.TidalLockFraction = 0.2
-			q.Survey.Search = spots.SearchCompleteness{HalfPeriodD: 25, TurnoverPower: 0.8, Steepness: 5,
-				RossbyBands: []float64{1, 0.9, 0.8, 0.6, 0.3, 0.2}}
-		}
+	laws := map[string]spin.Law{
+		"scattered": spin.Scattered{Law: spin.MamajekHillenbrand2008(), Dex: 0.09, Scale: 1.1},
+		"bare":      spin.Barnes2007(),
 	}
-	logPop, plainPop := change(set(law)), change(set(opaqueLaw{law}))
-	lp, pp := logPop.rotationPlan(), plainPop.rotationPlan()
-	require.True(t, lp.hasLog)
-	require.False(t, pp.hasLog)
-	ctx := context.Background()
-	opts := ObserveOptions{BaseFractionScale: 1, BandSlopes: []int{2, 4}}
-	got, _, gotSlopes, err := bank.ObserveSlopes(ctx, logPop, g, opts)
-	require.NoError(t, err)
-	want, _, wantSlopes, err := bank.ObserveSlopes(ctx, plainPop, g, opts)
-	require.NoError(t, err)
-	var total float64
-	for i := range want {
-		total += want[i]
-		assert.InDelta(t, want[i], got[i], 1e-9*math.Max(1, want[i]), "cell %d", i)
-	}
-	require.Greater(t, total, 1000.0, "the test population puts stars in the catalog")
-	for j := range wantSlopes {
-		for i := range wantSlopes[j] {
-			assert.InDelta(t, wantSlopes[j][i], gotSlopes[j][i], 1e-9*math.Max(1, math.Abs(wantSlopes[j][i])), "node slope %d cell %d", j, i)
-		}
+	for name, law := range laws {
+		t.Run(name, func(t *testing.T) {
+			set := func(l spin.Law) func(q *Population) {
+				return func(q *Population) {
+					q.Law = l
+					q.Spots = &amp
+					q.Binaries.TidalLockFraction = 0.4
+					q.Survey.Search = spots.SearchCompleteness{HalfPeriodD: 25, TurnoverPower: 0.8, Steepness: 5,
+						RossbyBands: []float64{1, 0.9, 0.8, 0.6, 0.3, 0.2}}
+				}
+			}
+			logPop, plainPop := change(set(law)), change(set(opaqueLaw{law}))
+			lp, pp := logPop.rotationPlan(), plainPop.rotationPlan()
+			require.True(t, lp.hasLog)
+			require.False(t, pp.hasLog)
+			ctx := context.Background()
+			opts := ObserveOptions{BaseFractionScale: 1, BandSlopes: []int{2, 4}}
+			got, _, gotSlopes, err := bank.ObserveSlopes(ctx, logPop, g, opts)
+			require.NoError(t, err)
+			want, _, wantSlopes, err := bank.ObserveSlopes(ctx, plainPop, g, opts)
+			require.NoError(t, err)
+			var total float64
+			for i := range want {
+				total += want[i]
+				assert.InDelta(t, want[i], got[i], 1e-9*math.Max(1, want[i]), "cell %d", i)
+			}
+			require.Greater(t, total, 1000.0, "the test population puts stars in the catalog")
+			for j := range wantSlopes {
+				for i := range wantSlopes[j] {
+					assert.InDelta(t, wantSlopes[j][i], gotSlopes[j][i], 1e-9*math.Max(1, math.Abs(wantSlopes[j][i])), "node slope %d cell %d", j, i)
+				}
+			}
+		})
 	}
 }

@@ -24,7 +24,7 @@ import (
 // observes its centre, then side points of each parameter in turn: those
 // of the law's coefficients and scatter are new laws each, those of the
 // other parameters share the centre's law, which is made again (once)
-// when the law's side points have pushed it out. 33 bytes a stored star
+// when the law's side points have pushed it out. 25 bytes a stored star
 // each, and one spare set of storage.
 const maxLawMemos = 3
 
@@ -78,15 +78,17 @@ const (
 	memoTauOK                    // spinState.tauOK
 )
 
-// memoStore is the per-star storage of a memo: the period, τ_c, their
-// logarithms and the flags, by stored star.
+// memoStore is the per-star storage of a memo: the flags, and the
+// period, its logarithm and that of τ_c (one record a star).
 type memoStore struct {
-	period, tau, lnP, lnTau []float64
-	flags                   []uint8
+	flags []uint8
+	rec   []spinRecord
 }
 
+type spinRecord struct{ periodD, lnP, lnTau float64 }
+
 func newMemoStore(n int) memoStore {
-	return memoStore{period: make([]float64, n), tau: make([]float64, n), lnP: make([]float64, n), lnTau: make([]float64, n), flags: make([]uint8, n)}
+	return memoStore{flags: make([]uint8, n), rec: make([]spinRecord, n)}
 }
 
 // get returns star s's spin, and whether the memo has it.
@@ -95,7 +97,8 @@ func (m *memoStore) get(s int) (spinState, bool) {
 	if f&memoKnown == 0 {
 		return spinState{}, false
 	}
-	return spinState{periodD: m.period[s], lnP: m.lnP[s], tauD: m.tau[s], lnTau: m.lnTau[s],
+	r := &m.rec[s]
+	return spinState{periodD: r.periodD, lnP: r.lnP, lnTau: r.lnTau,
 		ok: f&memoOK != 0, locked: f&memoLocked != 0, tauOK: f&memoTauOK != 0}, true
 }
 
@@ -111,7 +114,7 @@ func (m *memoStore) put(s int, sp spinState) {
 	if sp.tauOK {
 		f |= memoTauOK
 	}
-	m.period[s], m.lnP[s], m.tau[s], m.lnTau[s], m.flags[s] = sp.periodD, sp.lnP, sp.tauD, sp.lnTau, f
+	m.rec[s], m.flags[s] = spinRecord{sp.periodD, sp.lnP, sp.lnTau}, f
 }
 
 // memo is one key's per-star storage S (a memoStore or a seenStore).

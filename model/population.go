@@ -368,7 +368,8 @@ func (p *Population) star(c *Chunk, i int, r *rand.Rand, rp *rotationPlan) {
 
 	noise := p.Survey.Detect.Noise.PpmPerCadence(app)
 	rot := rp.rotate(spinStar, comp, noise, r, r)
-	c.PeriodD[i] = rot.periodD
+	per := rot.period()
+	c.PeriodD[i] = per
 	if rot.locked {
 		flags |= FlagTidalLock
 	}
@@ -377,8 +378,8 @@ func (p *Population) star(c *Chunk, i int, r *rand.Rand, rp *rotationPlan) {
 		c.Flags[i] = flags
 		return
 	}
-	per, prob := rot.periodD, rot.prob
-	c.Rossby[i] = rot.rossby
+	prob := rot.prob
+	c.Rossby[i] = math.Exp(rot.lnRo)
 	c.NoisePpm[i] = noise
 	c.AmpPpm[i], c.DetectProb[i] = rot.ampPpm, prob
 	// Detected or not, a star consumes the same random numbers: one that
@@ -410,7 +411,9 @@ func (p *Population) star(c *Chunk, i int, r *rand.Rand, rp *rotationPlan) {
 // rotation is what the spin-down law and the spots make of a star that
 // passes the photometric cuts.
 type rotation struct {
-	periodD, rossby, ampPpm, prob float64
+	// periodD is the period as a law without a log form gave it, NaN
+	// otherwise (period works it out: only a catalog needs it).
+	periodD, ampPpm, prob float64
 	// lnP and lnRo are ln of the period and of the Rossby number (NaN
 	// without a turnover time): what the spots, the search and the fine
 	// grid read.
@@ -437,6 +440,8 @@ type rotationPlan struct {
 	law        spin.LogForm // the law's log form, when hasLog
 	hasLog     bool
 	amp        spots.LogAmplitude // when p.Spots is set
+	detect     spots.LogDetection
+	lnMinP     float64 // ln of the shortest period a light curve holds without a spot model (two cadences)
 	search     spots.LogSearch
 	lnTauSolar float64 // ln τ_c☉
 	lnLockMaxD float64 // ln of the longest tidally locked period
@@ -445,7 +450,7 @@ type rotationPlan struct {
 // rotationPlan prepares p's rotations; p's law, spots, survey and
 // binaries must not change while the plan is used.
 func (p *Population) rotationPlan() rotationPlan {
-	rp := rotationPlan{p: p, search: p.Survey.Search.Log(),
+	rp := rotationPlan{p: p, search: p.Survey.Search.Log(), detect: p.Survey.Detect.Log(), lnMinP: math.Log(2 * p.Survey.Detect.CadenceD),
 		lnTauSolar: math.Log(p.Turnover.Solar()), lnLockMaxD: math.Log(p.Binaries.TidalLockMaxD)}
 	rp.law, rp.hasLog = spin.LogFormOf(p.Law)
 	if p.Spots != nil {
@@ -472,8 +477,8 @@ func (rp *rotationPlan) rotate(s spin.Star, comp, noisePpm float64, lawR, spotR 
 // tidal lock and the turnover time decide: what Bank keeps between
 // re-observations that change none of them (lawMemo).
 type spinState struct {
-	periodD, lnP float64 // the period and its ln
-	tauD, lnTau  float64 // τ_c in days and its ln (valid when tauOK)
+	periodD, lnP float64 // the period as a law without a log form gave it (NaN otherwise), and its ln
+	lnTau        float64 // ln τ_c (τ_c in days; valid when tauOK)
 	ok           bool    // false outside the law's calibrated range: no period
 	locked       bool
 	tauOK        bool
@@ -484,9 +489,9 @@ type spinState struct {
 func (rp *rotationPlan) spinPeriod(s spin.Star, comp float64, lawR *rand.Rand) spinState {
 	p := rp.p
 	var st spinState
+	st.periodD = math.NaN()
 	if rp.hasLog {
 		st.lnP, st.ok = rp.law.LnPeriod(s, lawR)
-		st.periodD = math.Exp(st.lnP)
 	} else {
 		st.periodD, st.ok = p.Law.Period(s, lawR)
 		st.lnP = math.Log(st.periodD)
@@ -494,17 +499,17 @@ func (rp *rotationPlan) spinPeriod(s spin.Star, comp float64, lawR *rand.Rand) s
 	if comp > 0 && p.Binaries.TidalLockFraction > 0 && lawR.Float64() < p.Binaries.TidalLockFraction {
 		// Log-uniform between 1 d and TidalLockMaxD.
 		st.lnP = lawR.Float64() * rp.lnLockMaxD
-		st.periodD = math.Exp(st.lnP)
+		st.periodD = math.NaN()
 		st.ok = true
 		st.locked = true
 	}
 	if !st.ok {
 		return st
 	}
-	st.tauD, st.tauOK = p.Turnover.Days(s)
-	st.lnTau = math.NaN()
-	if st.tauOK {
-		st.lnTau = math.Log(st.tauD)
+	tau, ok := p.Turnover.Days(s)
+	st.lnTau, st.tauOK = math.NaN(), ok
+	if ok {
+		st.lnTau = math.Log(tau)
 	}
 	return st
 }
@@ -524,23 +529,22 @@ func (rp *rotationPlan) observeRotation(sp spinState, noisePpm float64, spotR *r
 // given (read only with a spot model).
 func (rp *rotationPlan) observeRotationAt(sp spinState, noisePpm, z float64) rotation {
 	p := rp.p
-	per := sp.periodD
-	rot := rotation{periodD: per, lnP: sp.lnP, ok: sp.ok, locked: sp.locked}
+	lnP := sp.lnP
+	rot := rotation{periodD: sp.periodD, lnP: lnP, ok: sp.ok, locked: sp.locked}
 	if !sp.ok {
 		return rot
 	}
-	rot.rossby, rot.lnRo = math.NaN(), math.NaN()
-	if sp.tauOK && per > 0 {
-		rot.rossby = per / sp.tauD // as TurnoverTime.Rossby
-		rot.lnRo = sp.lnP - sp.lnTau
+	rot.lnRo = math.NaN()
+	if sp.tauOK && lnP > math.Inf(-1) {
+		rot.lnRo = lnP - sp.lnTau // Ro = P/τ_c, as TurnoverTime.Rossby
 	}
 	rot.prob, rot.ampPpm = 1, math.NaN()
 	if p.Spots != nil {
 		// A star outside the turnover-time fit has no Rossby number; its
 		// NaN amplitude makes it undetectable, which the catalog flags.
 		rot.ampPpm, rot.spotZ = rp.amp.FromDeviate(rot.lnRo, z), z
-		rot.prob = p.Survey.Detect.ProbabilityAtNoise(rot.ampPpm, noisePpm, per)
-	} else if per < 2*p.Survey.Detect.CadenceD || p.Survey.Detect.BaselineD < p.Survey.Detect.MinCycles*per {
+		rot.prob = rp.detect.ProbabilityAtNoise(rot.ampPpm, noisePpm, lnP)
+	} else if lnP < rp.lnMinP || rp.detect.TooLong(lnP) {
 		// No spot model: a period is found whenever the light curve can
 		// hold it (Nyquist at the short end, MinCycles at the long end).
 		rot.prob = 0
@@ -551,6 +555,15 @@ func (rp *rotationPlan) observeRotationAt(sp spinState, noisePpm, z float64) rot
 	}
 	rp.searchFactor(&rot)
 	return rot
+}
+
+// period returns the star's period in days: the law's own number when it
+// gave one, exp(ln P) otherwise.
+func (rot *rotation) period() float64 {
+	if !math.IsNaN(rot.periodD) {
+		return rot.periodD
+	}
+	return math.Exp(rot.lnP)
 }
 
 // searchFactor sets rot.prob to rot.preSearch times the search

@@ -60,17 +60,19 @@ const (
 	seenOK                      // rotation.ok
 )
 
-// seenStore is the per-star storage of a seen memo: the parts of a
-// rotation that binning reads but the search's factor (with ln Ro and the
-// amplitude's deviate for the derivatives in the spots' parameters).
+// seenStore is the per-star storage of a seen memo: the flags, and the
+// parts of a rotation that binning reads but the search's factor (with
+// ln Ro and the amplitude's deviate for the derivatives in the spots'
+// parameters), one record a star.
 type seenStore struct {
-	preSearch, lnTauRatio, period, lnP, lnRo, spotZ []float64
-	flags                                           []uint8
+	flags []uint8
+	rec   []seenRecord
 }
 
+type seenRecord struct{ preSearch, lnTauRatio, periodD, lnP, lnRo, spotZ float64 }
+
 func newSeenStore(n int) seenStore {
-	return seenStore{preSearch: make([]float64, n), lnTauRatio: make([]float64, n),
-		period: make([]float64, n), lnP: make([]float64, n), lnRo: make([]float64, n), spotZ: make([]float64, n), flags: make([]uint8, n)}
+	return seenStore{flags: make([]uint8, n), rec: make([]seenRecord, n)}
 }
 
 // get returns star s's rotation (the fields binning reads; prob without
@@ -81,8 +83,9 @@ func (m *seenStore) get(s int) (rotation, bool) {
 	if f&seenKnown == 0 {
 		return rotation{}, false
 	}
-	return rotation{periodD: m.period[s], lnP: m.lnP[s], lnRo: m.lnRo[s], spotZ: m.spotZ[s], prob: m.preSearch[s], preSearch: m.preSearch[s],
-		lnTauRatio: m.lnTauRatio[s], ok: f&seenOK != 0}, true
+	r := &m.rec[s]
+	return rotation{periodD: r.periodD, lnP: r.lnP, lnRo: r.lnRo, spotZ: r.spotZ, prob: r.preSearch, preSearch: r.preSearch,
+		lnTauRatio: r.lnTauRatio, ok: f&seenOK != 0}, true
 }
 
 // put keeps star s's rotation.
@@ -91,7 +94,8 @@ func (m *seenStore) put(s int, r rotation) {
 	if r.ok {
 		f |= seenOK
 	}
-	m.period[s], m.lnP[s], m.lnRo[s], m.spotZ[s], m.preSearch[s], m.lnTauRatio[s], m.flags[s] = r.periodD, r.lnP, r.lnRo, r.spotZ, r.preSearch, r.lnTauRatio, f
+	m.rec[s] = seenRecord{preSearch: r.preSearch, lnTauRatio: r.lnTauRatio, periodD: r.periodD, lnP: r.lnP, lnRo: r.lnRo, spotZ: r.spotZ}
+	m.flags[s] = f
 }
 
 // seenMemos is the memo of the stars' rotations by seen key.

@@ -82,14 +82,40 @@ func (d Detection) Probability(ampPpm, mag, periodD float64) float64 {
 // Noise.PpmPerCadence(mag), is already known: a generator that records the
 // noise anyway saves working it out twice.
 func (d Detection) ProbabilityAtNoise(ampPpm, noisePpm, periodD float64) float64 {
-	if !(periodD > 0) || !(ampPpm > 0) || d.BaselineD < d.MinCycles*periodD {
+	return d.Log().ProbabilityAtNoise(ampPpm, noisePpm, math.Log(periodD))
+}
+
+// LogDetection is a Detection prepared for many stars whose periods are
+// known by their logarithm (as the population's rotations are): the
+// signal-to-noise factor √(N/2) and the longest period the baseline holds,
+// ln(BaselineD/MinCycles), are worked out once.
+type LogDetection struct {
+	threshold, sharpness float64
+	snrScale, lnMaxP     float64
+}
+
+// Log returns d prepared for periods known by their logarithm.
+func (d Detection) Log() LogDetection {
+	return LogDetection{threshold: d.ThresholdSNR, sharpness: d.Sharpness,
+		snrScale: math.Sqrt(0.5 * d.BaselineD / d.CadenceD), lnMaxP: math.Log(d.BaselineD / d.MinCycles)}
+}
+
+// TooLong reports whether a period of ln P = lnP is longer than the
+// baseline holds MinCycles times.
+func (l LogDetection) TooLong(lnP float64) bool { return lnP > l.lnMaxP }
+
+// ProbabilityAtNoise is Detection.ProbabilityAtNoise for a period of
+// ln P = lnP (days): 0 for no period (lnP NaN or −Inf), no amplitude, or a
+// period longer than the baseline holds MinCycles times.
+func (l LogDetection) ProbabilityAtNoise(ampPpm, noisePpm, lnP float64) float64 {
+	if !(lnP > math.Inf(-1)) || !(ampPpm > 0) || l.TooLong(lnP) {
 		return 0
 	}
-	snr := ampPpm / noisePpm * math.Sqrt(0.5*d.BaselineD/d.CadenceD)
+	snr := ampPpm / noisePpm * l.snrScale
 	if !(snr > 0) {
 		return 0
 	}
-	return 1 / (1 + power(d.ThresholdSNR/snr, d.Sharpness))
+	return 1 / (1 + power(l.threshold/snr, l.sharpness))
 }
 
 // power returns x^k for x ≥ 0: by repeated squaring (and one square root)
