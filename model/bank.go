@@ -319,7 +319,10 @@ func (b *Bank) ObserveSlopes(ctx context.Context, obs *Population, g Grid, opts 
 	}
 	if b.input != nil && ob.plan.hasLog && !opts.noMemo {
 		key := inputKeyOf(ob.plan)
-		if ob.inputs = b.input.find(key); ob.inputs == nil {
+		// As for the law memo: with the rotations known, new inputs would
+		// hold only the few stars the seen memo lacks, and would push out
+		// a full set.
+		if ob.inputs = b.input.find(key); ob.inputs == nil && ob.seen == nil {
 			ob.inputsFill = b.input.newMemo(key, b.Len())
 		}
 		defer b.input.release(ob.inputs)
@@ -677,7 +680,9 @@ func (ob *observer) rotate(s int, comp float64, lawSrc, spotSrc *rand.PCG, lawR,
 	if m := ob.memo; m != nil {
 		sp, known = m.st.get(s)
 	}
-	if ob.plan.hasLog {
+	if ob.plan.hasLog && (!known || ob.inputsFill != nil || ob.hasInputs(s)) {
+		// (With the spin known and no inputs kept, only the spot deviate
+		// is needed: the path below draws it alone.)
 		in := ob.inputsOf(s, comp, lawSrc, spotSrc, lawR, spotR)
 		if !known {
 			// The law's range reads the color and the age alone.
@@ -707,6 +712,12 @@ func (ob *observer) rotate(s int, comp float64, lawSrc, spotSrc *rand.PCG, lawR,
 func (ob *observer) star(s int) spin.Star {
 	b := ob.bank
 	return spin.Star{MassMsun: float64(b.MassMsun[s]), AgeGyr: float64(b.AgeGyr[s]), BV: float64(b.BVMain[s]), TeffK: float64(b.TeffK[s])}
+}
+
+// hasInputs reports whether the input memo holds stored star s.
+func (ob *observer) hasInputs(s int) bool {
+	m := ob.inputs
+	return m != nil && m.st.known[s]
 }
 
 // inputsOf returns stored star s's inputs: from the input memo, or drawn

@@ -112,3 +112,53 @@ func TestObserveLogFormIsThePeriod(t *testing.T) {
 		})
 	}
 }
+
+// A pass that finds the stars' rotations in the seen memo (a color side
+// point) makes no input memo: it would hold only the few stars the seen
+// memo lacks and push out the full one. After a side point of C (new
+// inputs) and a color side point back at the centre's law, the next law
+// side point at the centre finds a full set again.
+func TestObserveInputMemoNotEmptiedBySeenPasses(t *testing.T) {
+	_, g, bank, change := memoTestBank(t)
+	amp := spots.DefaultAmplitudeModel()
+	b := spin.Barnes2007()
+	at := func(c, a, offset float64) *Population {
+		return change(func(q *Population) {
+			law := b
+			law.C, law.A = c, a
+			q.Law = spin.Scattered{Law: law, Dex: 0.08}
+			q.Spots = &amp
+			q.Survey.Color = ColorCalibration{OffsetMag: offset}
+		})
+	}
+	known := func() int {
+		e := bank.input.find(inputKeyOf(ptr(at(b.C, b.A, 0).rotationPlan())))
+		defer bank.input.release(e)
+		if e == nil {
+			return 0
+		}
+		n := 0
+		for _, k := range e.st.known {
+			if k {
+				n++
+			}
+		}
+		return n
+	}
+	ctx := context.Background()
+	observe := func(p *Population) {
+		_, _, err := bank.Observe(ctx, p, g, ObserveOptions{BaseFractionScale: 1})
+		require.NoError(t, err)
+	}
+	observe(at(b.C, b.A, 0))
+	full := known()
+	require.Greater(t, full, 1000)
+	observe(at(b.C+0.02, b.A, 0)) // new inputs push the centre's out
+	require.Zero(t, known())
+	observe(at(b.C, b.A, 0.03)) // the centre's rotations are in the seen memo
+	observe(at(b.C, b.A*1.01, 0))
+	assert.Equal(t, full, known(), "the law side point found, or made, a full set")
+	sameWithAndWithoutMemo(t, bank, at(b.C, b.A*1.02, 0), g, 1, "after the sequence")
+}
+
+func ptr[T any](v T) *T { return &v }

@@ -544,7 +544,7 @@ func (rp *rotationPlan) observeRotationAt(sp spinState, noisePpm, z float64) rot
 		// NaN amplitude makes it undetectable, which the catalog flags.
 		rot.ampPpm, rot.spotZ = rp.amp.FromDeviate(rot.lnRo, z), z
 		rot.prob = rp.detect.ProbabilityAtNoise(rot.ampPpm, noisePpm, lnP)
-	} else if lnP < rp.lnMinP || rp.detect.TooLong(lnP) {
+	} else if !(lnP >= rp.lnMinP) || rp.detect.TooLong(lnP) { // also no period (NaN)
 		// No spot model: a period is found whenever the light curve can
 		// hold it (Nyquist at the short end, MinCycles at the long end).
 		rot.prob = 0
