@@ -100,6 +100,12 @@ func runCheck(t *testing.T, cases []checkCase, replicates int, templateStars int
 		require.NoError(t, err)
 		name := cs.name
 		c.Stage = func(msg string) { t.Logf("%s: %s", name, msg) }
+		// SPINPOP_OTHERMODEL_ROUNDS=N lets every joint fit run N
+		// expansions instead of the default 12: how far the answers move
+		// when the searches run on.
+		if v, err := strconv.Atoi(os.Getenv("SPINPOP_OTHERMODEL_ROUNDS")); err == nil && v > 0 {
+			c.MaxRounds = v
+		}
 		o, err := c.BurstTest(ctx, replicates, nil)
 		require.NoError(t, err, cs.name)
 		tr := o.Test
