@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"slices"
+	"sync"
 
 	"gonum.org/v1/gonum/floats"
 
@@ -55,10 +56,70 @@ type BankObserver struct {
 	// stored star's observation a change of it makes again (see
 	// SideOrderer); nil: parameter order.
 	Depth []int
+
+	// centres are the values of the latest passes that made derivatives:
+	// a joint fit's centres. A pass one parameter away from one of them is
+	// a side point of its expansion, made once and never again, so it
+	// keeps nothing in the bank's memos (model.ObserveOptions.NoNewMemos):
+	// filling them cost a tenth of the demo fit's time, and a side point's
+	// memo pushed out one the centre's next side points read. Made on
+	// first use; a copy of the observer made after that shares it, which
+	// changes what is kept, not what is computed.
+	centres *centreLog
 }
 
-// SideOrder implements SideOrderer.
-func (o *BankObserver) SideOrder() []int { return o.Depth }
+// centreLog is the latest centres, at most maxCentres: one a fit, with
+// room for the bootstrap's concurrent refits.
+type centreLog struct {
+	mu     sync.Mutex
+	values [][]float64
+}
+
+const maxCentres = 8
+
+// centreLogInit guards the first use of an observer's centreLog.
+var centreLogInit sync.Mutex
+
+func (o *BankObserver) centreLog() *centreLog {
+	centreLogInit.Lock()
+	defer centreLogInit.Unlock()
+	if o.centres == nil {
+		o.centres = &centreLog{}
+	}
+	return o.centres
+}
+
+// note records values as a centre.
+func (l *centreLog) note(values []float64) {
+	l.mu.Lock()
+	defer l.mu.Unlock()
+	l.values = append(l.values, slices.Clone(values))
+	if len(l.values) > maxCentres {
+		l.values = l.values[len(l.values)-maxCentres:]
+	}
+}
+
+// sidePoint reports whether values differ from a recorded centre in
+// exactly one parameter.
+func (l *centreLog) sidePoint(values []float64) bool {
+	l.mu.Lock()
+	defer l.mu.Unlock()
+	for _, c := range l.values {
+		if len(c) != len(values) {
+			continue
+		}
+		differ := 0
+		for j, v := range values {
+			if v != c[j] {
+				differ++
+			}
+		}
+		if differ == 1 {
+			return true
+		}
+	}
+	return false
+}
 
 // BankObserver gives derivatives.
 var _ SlopeObserver = (*BankObserver)(nil)
@@ -132,7 +193,14 @@ func (o *BankObserver) ObserveSlopes(ctx context.Context, values []float64, para
 		}
 	}
 	g := model.Grid{ColorEdges: o.Space.ColorEdges, LogPeriodEdges: o.Space.LogPeriodEdges, HeightEdgesPc: o.Space.HeightEdgesPc}
-	counts, vars, slopes, err := o.Bank.ObserveSlopes(ctx, p, g, model.ObserveOptions{Workers: o.Workers, BaseFractionScale: o.BaseFractionScale, Weight: weight, BandSlopes: nodes, WeightSlopes: weights})
+	side := false
+	if recent := o.centreLog(); len(params) > 0 {
+		recent.note(values)
+	} else {
+		side = recent.sidePoint(values)
+	}
+	counts, vars, slopes, err := o.Bank.ObserveSlopes(ctx, p, g, model.ObserveOptions{Workers: o.Workers, BaseFractionScale: o.BaseFractionScale, Weight: weight,
+		BandSlopes: nodes, WeightSlopes: weights, NoNewMemos: side})
 	if err != nil {
 		return nil, nil, err
 	}

@@ -173,6 +173,14 @@ func (bb *BankBuilder) Bank() *Bank {
 	return out
 }
 
+// MemoSets returns how many sets of each memo the bank keeps: the stars'
+// spins by law, their rotations by law, spots and detection, their grid
+// columns by color calibration, their law-independent inputs. For tests
+// and diagnostics: what a re-observation will find.
+func (b *Bank) MemoSets() (laws, rotations, columns, inputs int) {
+	return b.memos.size(), b.seen.size(), b.place.size(), b.input.size()
+}
+
 // Grid is the binning Observe fills: B−V edges, log10 period (days)
 // edges and |z| (pc) edges, each strictly increasing; bins are half-open
 // except the last of each axis, and are flattened as
@@ -216,6 +224,14 @@ type ObserveOptions struct {
 	// second derivatives of the counts in parameters that only re-weight
 	// stored stars (WeightParam), returned after those of BandSlopes.
 	WeightSlopes []WeightSlope
+	// NoNewMemos marks a pass whose values the caller will not observe
+	// again, nor any that shares what the memos keep of it — a fit's side
+	// point, one parameter away from the centre it expands about. The
+	// pass reads the memos but makes none: filling one costs a write of
+	// every stored star (a tenth of a side point's time), and a new memo
+	// would push out one the next passes read. Results do not depend on
+	// it.
+	NoNewMemos bool
 
 	noMemo bool // work every star's spin out afresh (tests of the memo)
 }
@@ -305,14 +321,14 @@ func (b *Bank) ObserveSlopes(ctx context.Context, obs *Population, g Grid, opts 
 	}
 	ob := newObserver(b, obs, g, opts)
 	if key, ok := seenKeyOf(obs); ok && b.seen != nil && !opts.noMemo {
-		if ob.seen = b.seen.find(key); ob.seen == nil {
+		if ob.seen = b.seen.find(key); ob.seen == nil && !opts.NoNewMemos {
 			ob.seenFill = b.seen.newMemo(key, b.Len())
 		}
 		defer b.seen.release(ob.seen)
 	}
 	if b.place != nil && !opts.noMemo {
 		key := placeKeyOf(ob)
-		if ob.columns = b.place.find(key); ob.columns == nil {
+		if ob.columns = b.place.find(key); ob.columns == nil && !opts.NoNewMemos {
 			ob.columnsFill = b.place.newMemo(key, b.Len())
 		}
 		defer b.place.release(ob.columns)
@@ -322,7 +338,7 @@ func (b *Bank) ObserveSlopes(ctx context.Context, obs *Population, g Grid, opts 
 		// As for the law memo: with the rotations known, new inputs would
 		// hold only the few stars the seen memo lacks, and would push out
 		// a full set.
-		if ob.inputs = b.input.find(key); ob.inputs == nil && ob.seen == nil {
+		if ob.inputs = b.input.find(key); ob.inputs == nil && ob.seen == nil && !opts.NoNewMemos {
 			ob.inputsFill = b.input.newMemo(key, b.Len())
 		}
 		defer b.input.release(ob.inputs)
@@ -330,7 +346,7 @@ func (b *Bank) ObserveSlopes(ctx context.Context, obs *Population, g Grid, opts 
 	if key, ok := keyOf(obs); ok && b.memos != nil && !opts.noMemo {
 		// With the rotations known, a new law memo would hold only the
 		// few stars the seen memo lacks: none is made.
-		if ob.memo = b.memos.find(key); ob.memo == nil && ob.seen == nil {
+		if ob.memo = b.memos.find(key); ob.memo == nil && ob.seen == nil && !opts.NoNewMemos {
 			ob.fill = b.memos.newMemo(key, b.Len())
 		}
 		defer b.memos.release(ob.memo)

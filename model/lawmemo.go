@@ -156,6 +156,16 @@ func newLawMemos() *lawMemos {
 		stars: func(st *memoStore) int { return len(st.flags) }, forget: func(st *memoStore) { clear(st.flags) }}
 }
 
+// size returns how many memos the list keeps.
+func (m *memoList[K, S]) size() int {
+	if m == nil {
+		return 0
+	}
+	m.mu.Lock()
+	defer m.mu.Unlock()
+	return len(m.entries)
+}
+
 // find returns the memo of key for reading, nil if none; the caller
 // calls release when done with it.
 func (m *memoList[K, S]) find(key K) *memo[K, S] {

@@ -1,6 +1,7 @@
 package model
 
 import (
+	"context"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -79,4 +80,42 @@ func TestObserveSeenMemoIdentical(t *testing.T) {
 	k1, _ := seenKeyOf(p)
 	k2, _ := seenKeyOf(change(func(q *Population) { q.Survey.Detect.Sharpness++ }))
 	assert.NotEqual(t, k1, k2)
+}
+
+// A pass with NoNewMemos reads the memos the passes before it made (a
+// side point after its centre) but makes none, and its counts are those
+// of a pass that works every star out afresh.
+func TestObserveNoNewMemos(t *testing.T) {
+	p, g, bank, change := memoTestBank(t)
+	ctx := context.Background()
+	_, _, _, err := bank.ObserveSlopes(ctx, p, g, ObserveOptions{BaseFractionScale: 1})
+	require.NoError(t, err)
+	laws, rotations, columns, inputs := bank.MemoSets()
+	require.Equal(t, [4]int{1, 1, 1, 1}, [4]int{laws, rotations, columns, inputs}, "the centre's pass keeps one set of each")
+	amp := spots.DefaultAmplitudeModel()
+	amp.Slope = 1.7
+	for _, side := range []struct {
+		name string
+		pop  *Population
+	}{
+		{"color offset", change(func(q *Population) { q.Survey.Color = ColorCalibration{OffsetMag: 0.04} })},
+		{"spots", change(func(q *Population) { q.Spots = &amp })},
+		{"law", change(func(q *Population) { q.Law = spin.Scattered{Law: q.Law, Dex: 0.05} })},
+	} {
+		opts := ObserveOptions{BaseFractionScale: 1, NoNewMemos: true}
+		got, gotVar, _, err := bank.ObserveSlopes(ctx, side.pop, g, opts)
+		require.NoError(t, err, side.name)
+		l, r, c, i := bank.MemoSets()
+		assert.Equal(t, [4]int{1, 1, 1, 1}, [4]int{l, r, c, i}, "%s: a side point adds no memo", side.name)
+		opts.noMemo = true
+		want, wantVar, _, err := bank.ObserveSlopes(ctx, side.pop, g, opts)
+		require.NoError(t, err, side.name)
+		assert.Equal(t, want, got, side.name)
+		assert.Equal(t, wantVar, gotVar, side.name)
+	}
+	// Without the option the same side point keeps its rotations.
+	_, _, _, err = bank.ObserveSlopes(ctx, change(func(q *Population) { q.Spots = &amp }), g, ObserveOptions{BaseFractionScale: 1})
+	require.NoError(t, err)
+	_, rotations, _, _ = bank.MemoSets()
+	assert.Equal(t, 2, rotations)
 }

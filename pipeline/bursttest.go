@@ -54,7 +54,7 @@ func (c *Comparison) BurstTest(ctx context.Context, replicates int, progress fun
 		if out.Profile, _, err = compare.Profile(c.Likelihood, c.Burst, tr.AgeParam, grid.Linspace(lo, hi, 61)); err != nil {
 			return nil, err
 		}
-		if zlo, zhi, ok := ProfileZoomRange(tr.AgeInterval, lo, hi); ok {
+		if zlo, zhi, ok := ProfileZoomRange(tr.AgeIntervalProfile, lo, hi); ok {
 			if out.ProfileZoom, _, err = compare.Profile(c.Likelihood, c.Burst, tr.AgeParam, grid.Linspace(zlo, zhi, 41)); err != nil {
 				return nil, err
 			}
@@ -199,9 +199,11 @@ func RoundsReport(f compare.FitResult) map[string]any {
 	return map[string]any{"rounds": f.Rounds, "stopped_at_round_limit": f.RoundLimit, "last_round_gain": Finite(f.LastGain)}
 }
 
-// ProfileZoomRange is the burst age's 95 % interval with a third of its
-// width added each side, inside [lo, hi]; ok is false when the interval
-// is empty.
+// ProfileZoomRange is a 95 % interval with a third of its width added
+// each side, inside [lo, hi]; ok is false when the interval is empty.
+// The burst test zooms on the profile's own interval, not on the one
+// widened by the law's calibration: that can be ten times wider, and a
+// grid across it would draw the profile as a spike.
 func ProfileZoomRange(iv compare.Interval, lo, hi float64) (zlo, zhi float64, ok bool) {
 	w := iv.Hi95 - iv.Lo95
 	if !(w > 0) {

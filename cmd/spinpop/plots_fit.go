@@ -176,11 +176,13 @@ func periodHistsDataModel(sp compare.Space, data []float64, models map[string][]
 }
 
 // profilePanels are the profile likelihood of a parameter in two panels:
-// zoomed to its 95 % interval on a fine grid (where the interval is read),
-// and over the whole range the fit may choose (where other peaks would
-// show), the zoom's span marked on it. The levels are Wilks' 0.5 and 1.92
+// zoomed to the profile's own 95 % interval prof on a fine grid (where
+// the interval is read), and over the whole range the fit may choose
+// (where other peaks would show), the zoom's span marked on it, and the
+// interval the verdict quotes, cal (the profile's widened by the law's
+// calibration), shaded when it differs. The levels are Wilks' 0.5 and 1.92
 // times the dispersion φ̂ when it exceeds 1, as the interval's own.
-func profilePanels(param string, whole, zoom []compare.ProfilePoint, iv compare.Interval, phi, lo, hi float64) (figure.Layout, error) {
+func profilePanels(param string, whole, zoom []compare.ProfilePoint, prof, cal compare.Interval, phi, lo, hi float64) (figure.Layout, error) {
 	label := paramLabel(param)
 	scale := math.Max(1, phi)
 	best := math.Inf(-1)
@@ -232,16 +234,24 @@ func profilePanels(param string, whole, zoom []compare.ProfilePoint, iv compare.
 		p.Y.Min, p.Y.Max = 0, ymax
 		return p, nil
 	}
-	title := fmt.Sprintf("%s: %s (68 %% interval %s–%s)", label, num(iv.Best), num(iv.Lo68), num(iv.Hi68))
+	calibrated := cal.Lo95 != prof.Lo95 || cal.Hi95 != prof.Hi95
+	title := fmt.Sprintf("%s: %s (68 %% interval %s–%s)", label, num(cal.Best), num(cal.Lo68), num(cal.Hi68))
 	var row []*figure.Panel
-	zlo, zhi, ok := pipeline.ProfileZoomRange(iv, lo, hi)
+	zlo, zhi, ok := pipeline.ProfileZoomRange(prof, lo, hi)
 	if ok && len(zoom) >= 2 {
-		zp, err := panel(title, zoom, zlo, zhi, 1.6*scale*1.92)
+		zt := title
+		if calibrated {
+			zt = fmt.Sprintf("The profile alone: %s (95 %% %s–%s)", num(prof.Best), num(prof.Lo95), num(prof.Hi95))
+		}
+		zp, err := panel(zt, zoom, zlo, zhi, 1.6*scale*1.92)
 		if err != nil {
 			return nil, err
 		}
 		row = append(row, &figure.Panel{Plot: zp})
 		title = fmt.Sprintf("The whole range of the fit, %s–%s", num(lo), num(hi))
+		if calibrated {
+			title = fmt.Sprintf("With the law's calibration: 68 %% %s–%s", num(cal.Lo68), num(cal.Hi68))
+		}
 	}
 	ymax := 4 * scale
 	for _, q := range curve(whole, lo, hi) {
@@ -261,6 +271,22 @@ func profilePanels(param string, whole, zoom []compare.ProfilePoint, iv compare.
 		box.LineStyle.Color, box.LineStyle.Width = figure.Guide, vg.Points(0.8)
 		wp.Add(box)
 		wp.Legend.Add("span of the zoom", box)
+	}
+	if calibrated && cal.Hi95 > cal.Lo95 {
+		band, err := plotter.NewPolygon(plotter.XYs{{X: max(lo, cal.Lo95), Y: 0}, {X: min(hi, cal.Hi95), Y: 0},
+			{X: min(hi, cal.Hi95), Y: 1.05 * ymax}, {X: max(lo, cal.Lo95), Y: 1.05 * ymax}})
+		if err != nil {
+			return nil, err
+		}
+		band.Color = color.NRGBA{R: 0x12, G: 0x8a, B: 0x3c, A: 0x30} // the curves' green, faint: the profile shows through
+		band.LineStyle.Width = 0
+		wp.Add(band)
+		if ok && len(zoom) >= 2 {
+			// The zoom's panel holds the shared legend.
+			row[0].Plot.Legend.Add("95 % with the law's calibration", band)
+		} else {
+			wp.Legend.Add("95 % with the law's calibration", band)
+		}
 	}
 	row = append(row, &figure.Panel{Plot: wp})
 	return figure.Layout{row}, nil
