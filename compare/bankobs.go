@@ -61,8 +61,10 @@ type BankObserver struct {
 	// a joint fit's centres. A pass one parameter away from one of them is
 	// a side point of its expansion, made once and never again, so it
 	// keeps nothing in the bank's memos (model.ObserveOptions.NoNewMemos):
-	// filling them cost a tenth of the demo fit's time, and a side point's
-	// memo pushed out one the centre's next side points read. Made on
+	// filling them cost a tenth of a side point's time, and a side point's
+	// memo pushed out one the centre's next side points read. (A side
+	// point that wins a round and becomes the next centre is then observed
+	// without its memos: a cost in time, never in numbers.) Made on
 	// first use; a copy of the observer made after that shares it, which
 	// changes what is kept, not what is computed.
 	centres *centreLog
@@ -121,8 +123,14 @@ func (l *centreLog) sidePoint(values []float64) bool {
 	return false
 }
 
-// BankObserver gives derivatives.
-var _ SlopeObserver = (*BankObserver)(nil)
+// SideOrder implements SideOrderer.
+func (o *BankObserver) SideOrder() []int { return o.Depth }
+
+// BankObserver gives derivatives, and ranks its side points.
+var (
+	_ SlopeObserver = (*BankObserver)(nil)
+	_ SideOrderer   = (*BankObserver)(nil)
+)
 
 // Slopes implements SlopeObserver.
 func (o *BankObserver) Slopes(j int) bool {

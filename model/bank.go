@@ -224,13 +224,13 @@ type ObserveOptions struct {
 	// second derivatives of the counts in parameters that only re-weight
 	// stored stars (WeightParam), returned after those of BandSlopes.
 	WeightSlopes []WeightSlope
-	// NoNewMemos marks a pass whose values the caller will not observe
-	// again, nor any that shares what the memos keep of it — a fit's side
-	// point, one parameter away from the centre it expands about. The
-	// pass reads the memos but makes none: filling one costs a write of
-	// every stored star (a tenth of a side point's time), and a new memo
-	// would push out one the next passes read. Results do not depend on
-	// it.
+	// NoNewMemos marks a pass whose values the caller does not expect to
+	// observe again, nor others that share what the memos keep of it — a
+	// fit's side point, one parameter away from the centre it expands
+	// about. The pass reads the memos but makes none: filling one costs a
+	// write of every stored star (a tenth of a side point's time), and a
+	// new memo would push out one the next passes read. Results do not
+	// depend on it; a wrong guess costs time only.
 	NoNewMemos bool
 
 	noMemo bool // work every star's spin out afresh (tests of the memo)
@@ -368,22 +368,20 @@ func (b *Bank) ObserveSlopes(ctx context.Context, obs *Population, g Grid, opts 
 			defer panics.Catch()
 			var lawSrc, spotSrc rand.PCG
 			lawR, spotR := rand.New(&lawSrc), rand.New(&spotSrc)
-			fine := make([]float64, ob.nC*ob.nZ*ob.nF)
-			fineVar := make([]float64, len(fine))
+			n := ob.nC * ob.nZ * ob.nF
+			fine, fineVar := takeGrid(n), takeGrid(n)
 			fineSlopes := make([][]float64, len(slopes))
 			for i := range fineSlopes {
-				fineSlopes[i] = make([]float64, len(fine))
+				fineSlopes[i] = takeGrid(n)
 			}
 			for {
 				k := int(next.Add(1) - 1)
 				if k >= nk || ctx.Err() != nil {
+					// Every bin taken was spread: the grids are zero.
+					giveGrids(append(fineSlopes, fine, fineVar))
 					return
 				}
-				clear(fine)
-				clear(fineVar)
-				for _, fs := range fineSlopes {
-					clear(fs)
-				}
+				// The grids are zero: made so, and spread empties them.
 				ob.bin(k, fine, fineVar, fineSlopes, &lawSrc, &spotSrc, lawR, spotR)
 				ob.spread(fine, fineVar, counts[k*nb:(k+1)*nb], vars[k*nb:(k+1)*nb])
 				for i, fs := range fineSlopes {
@@ -778,9 +776,32 @@ func (ob *observer) addSlopes(fineSlopes [][]float64, base int, frac, w, lnP, ln
 	}
 }
 
+// gridPool keeps the workers' fine grids between passes (a fit makes
+// hundreds, each with a grid per derivative, and allocating them anew
+// cost a few percent of its time in zeroing and collection). A grid goes
+// back only zero, so one taken from the pool is as good as a new one.
+var gridPool sync.Pool // of *[]float64
+
+// takeGrid returns a zero grid of n values.
+func takeGrid(n int) []float64 {
+	if g, ok := gridPool.Get().(*[]float64); ok && len(*g) == n {
+		return *g
+	}
+	return make([]float64, n)
+}
+
+// giveGrids hands zero grids back to the pool.
+func giveGrids(gs [][]float64) {
+	for _, g := range gs {
+		gridPool.Put(&g)
+	}
+}
+
 // spread maps one age bin's fine columns onto the period bins through the
 // recovery kernel, into that bin's counts and variances (fineVar and vr
-// nil: counts only).
+// nil: counts only), and leaves fine and fineVar zero for the next bin:
+// zeroing each entry as it is read costs nothing, where clearing the
+// grids apart cost a twentieth of a fit.
 func (ob *observer) spread(fine, fineVar, cnt, vr []float64) {
 	for c := range ob.nC {
 		for z := range ob.nZ {
@@ -791,16 +812,20 @@ func (ob *observer) spread(fine, fineVar, cnt, vr []float64) {
 			}
 			base := c * ob.nP * ob.nZ
 			for f, h := range col {
+				var hv float64
+				if colVar != nil {
+					hv, colVar[f] = colVar[f], 0 // zero even where h is (an overflowed w² can leave NaN)
+				}
 				if h == 0 {
 					continue
 				}
+				col[f] = 0
 				if colVar == nil {
 					for _, e := range ob.kernel[f] {
 						cnt[base+e.p*ob.nZ+z] += h * e.w
 					}
 					continue
 				}
-				hv := colVar[f]
 				for _, e := range ob.kernel[f] {
 					i := base + e.p*ob.nZ + z
 					cnt[i] += h * e.w

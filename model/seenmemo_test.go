@@ -119,3 +119,30 @@ func TestObserveNoNewMemos(t *testing.T) {
 	_, rotations, _, _ = bank.MemoSets()
 	assert.Equal(t, 2, rotations)
 }
+
+// The workers' fine grids are kept between passes (gridPool) and left
+// zero by each pass: a pass gives the same bits after any other pass as
+// before it. (A collection between passes may empty the pool, and the
+// repeat then runs on new grids; it failed with the zeroing in spread
+// taken out.)
+func TestObserveGridsReusedClean(t *testing.T) {
+	p, g, bank, change := memoTestBank(t)
+	ctx := context.Background()
+	nodes := change(func(q *Population) {
+		q.Survey.Search = spots.SearchCompleteness{RossbyBands: []float64{1, 0.9, 0.7, 0.5, 0.3, 0.2}, TurnoverPower: 1}
+	})
+	opts := ObserveOptions{BaseFractionScale: 1, BandSlopes: []int{1, 3}, WeightSlopes: []WeightSlope{{Param: BinaryShare}}, noMemo: true}
+	first, firstVar, firstSlopes, err := bank.ObserveSlopes(ctx, nodes, g, opts)
+	require.NoError(t, err)
+	// Other passes in between: other stars' weights left in a grid would
+	// show in the repeat.
+	_, _, _, err = bank.ObserveSlopes(ctx, p, g, ObserveOptions{BaseFractionScale: 1, noMemo: true})
+	require.NoError(t, err)
+	_, _, _, err = bank.ObserveSlopes(ctx, change(func(q *Population) { q.Binaries.FractionScale = 1.5 }), g, opts)
+	require.NoError(t, err)
+	again, againVar, againSlopes, err := bank.ObserveSlopes(ctx, nodes, g, opts)
+	require.NoError(t, err)
+	assert.Equal(t, first, again)
+	assert.Equal(t, firstVar, againVar)
+	assert.Equal(t, firstSlopes, againSlopes)
+}
