@@ -182,7 +182,11 @@ func periodHistsDataModel(sp compare.Space, data []float64, models map[string][]
 // interval the verdict quotes, cal (the profile's widened by the law's
 // calibration), shaded when it differs. The levels are Wilks' 0.5 and 1.92
 // times the dispersion φ̂ when it exceeds 1, as the interval's own.
-func profilePanels(param string, whole, zoom []compare.ProfilePoint, prof, cal compare.Interval, phi, lo, hi float64) (figure.Layout, error) {
+// nuisanceHeld says that the curves hold the nuisance parameters at the
+// best fit's values while prof refits them at every point: the curve is
+// then narrower than prof, which the zoom shades so that the two are not
+// read as one.
+func profilePanels(param string, whole, zoom []compare.ProfilePoint, prof, cal compare.Interval, phi, lo, hi float64, nuisanceHeld bool) (figure.Layout, error) {
 	label := paramLabel(param)
 	scale := math.Max(1, phi)
 	best := math.Inf(-1)
@@ -210,7 +214,11 @@ func profilePanels(param string, whole, zoom []compare.ProfilePoint, prof, cal c
 			l.Color, l.Width = figure.Curve(0), figure.LineWidth
 			lp.Color, lp.Shape, lp.Radius = figure.Curve(0), draw.CircleGlyph{}, vg.Points(2)
 			p.Add(l, lp)
-			p.Legend.Add("profile", l)
+			if nuisanceHeld {
+				p.Legend.Add("profile, nuisance held at the best fit", l)
+			} else {
+				p.Legend.Add("profile", l)
+			}
 		}
 		for i, lev := range []struct {
 			y    float64
@@ -240,12 +248,26 @@ func profilePanels(param string, whole, zoom []compare.ProfilePoint, prof, cal c
 	zlo, zhi, ok := pipeline.ProfileZoomRange(prof, lo, hi)
 	if ok && len(zoom) >= 2 {
 		zt := title
-		if calibrated {
+		switch {
+		case nuisanceHeld:
+			zt = fmt.Sprintf("Best %s; 95 %% refitting the nuisance %s–%s", num(prof.Best), num(prof.Lo95), num(prof.Hi95))
+		case calibrated:
 			zt = fmt.Sprintf("The profile alone: %s (95 %% %s–%s)", num(prof.Best), num(prof.Lo95), num(prof.Hi95))
 		}
 		zp, err := panel(zt, zoom, zlo, zhi, 1.6*scale*1.92)
 		if err != nil {
 			return nil, err
+		}
+		if nuisanceHeld {
+			band, err := plotter.NewPolygon(plotter.XYs{{X: prof.Lo95, Y: 0}, {X: prof.Hi95, Y: 0},
+				{X: prof.Hi95, Y: 1.6 * scale * 1.92}, {X: prof.Lo95, Y: 1.6 * scale * 1.92}})
+			if err != nil {
+				return nil, err
+			}
+			band.Color = color.NRGBA{R: 0x1f, G: 0x4e, B: 0xb4, A: 0x24} // the profile's blue, faint
+			band.LineStyle.Width = 0
+			zp.Add(band)
+			zp.Legend.Add("95 %, nuisance refitted", band)
 		}
 		row = append(row, &figure.Panel{Plot: zp})
 		title = fmt.Sprintf("The whole range of the fit, %s–%s", num(lo), num(hi))

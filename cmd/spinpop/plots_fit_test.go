@@ -30,7 +30,7 @@ func TestProfilePanelsZoomOnTheProfile(t *testing.T) {
 	cal := compare.Interval{Best: 0.75, Lo68: 0.67, Hi68: 0.84, Lo95: 0.60, Hi95: 0.94}
 	zlo, zhi, ok := pipeline.ProfileZoomRange(prof, 0.1, 3)
 	require.True(t, ok)
-	g, err := profilePanels("history.burst.age_gyr", parabola(0.1, 3, 61), parabola(zlo, zhi, 41), prof, cal, 1, 0.1, 3)
+	g, err := profilePanels("history.burst.age_gyr", parabola(0.1, 3, 61), parabola(zlo, zhi, 41), prof, cal, 1, 0.1, 3, false)
 	require.NoError(t, err)
 	require.Len(t, g, 1)
 	require.Len(t, g[0], 2, "the zoom and the whole range")
@@ -42,4 +42,24 @@ func TestProfilePanelsZoomOnTheProfile(t *testing.T) {
 	assert.Equal(t, 3.0, whole.X.Max)
 	assert.Contains(t, zoom.Title.Text, "The profile alone")
 	assert.Contains(t, whole.Title.Text, "law's calibration")
+}
+
+// When the curves hold the nuisance parameters at the best fit and the
+// quoted interval refits them, the zoom says so and shades that interval
+// (the curve alone would read narrower).
+func TestProfilePanelsNuisanceHeld(t *testing.T) {
+	pts := func(lo, hi float64) []compare.ProfilePoint {
+		var out []compare.ProfilePoint
+		for i := range 41 {
+			x := lo + (hi-lo)*float64(i)/40
+			out = append(out, compare.ProfilePoint{Value: x, LogL: -math.Pow((x-0.75)/0.003, 2) / 2})
+		}
+		return out
+	}
+	prof := compare.Interval{Best: 0.75, Lo68: 0.74, Hi68: 0.76, Lo95: 0.73, Hi95: 0.77}
+	zlo, zhi, _ := pipeline.ProfileZoomRange(prof, 0.1, 3)
+	g, err := profilePanels("history.burst.age_gyr", pts(0.1, 3), pts(zlo, zhi), prof, prof, 1, 0.1, 3, true)
+	require.NoError(t, err)
+	zoom := g[0][0].Plot
+	assert.Contains(t, zoom.Title.Text, "refitting the nuisance 0.73–0.77")
 }
