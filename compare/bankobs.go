@@ -59,8 +59,8 @@ type BankObserver struct {
 
 	// centres are the values of the latest passes that made derivatives:
 	// a joint fit's centres. A pass one parameter away from one of them is
-	// a side point of its expansion, made once and never again, so it
-	// keeps nothing in the bank's memos (model.ObserveOptions.NoNewMemos):
+	// a side point of its expansion, which a fit seldom observes again, so
+	// it keeps nothing in the bank's memos (model.ObserveOptions.NoNewMemos):
 	// filling them cost a tenth of a side point's time, and a side point's
 	// memo pushed out one the centre's next side points read. (A side
 	// point that wins a round and becomes the next centre is then observed
