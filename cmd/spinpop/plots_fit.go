@@ -259,12 +259,10 @@ func profilePanels(param string, whole, zoom []compare.ProfilePoint, prof, cal c
 			return nil, err
 		}
 		if nuisanceHeld {
-			band, err := plotter.NewPolygon(plotter.XYs{{X: prof.Lo95, Y: 0}, {X: prof.Hi95, Y: 0},
-				{X: prof.Hi95, Y: 1.6 * scale * 1.92}, {X: prof.Lo95, Y: 1.6 * scale * 1.92}})
+			band, err := xSpan(prof.Lo95, prof.Hi95, 1.6*scale*1.92, color.NRGBA{R: 0x1f, G: 0x4e, B: 0xb4, A: 0x24}) // the profile's blue, faint
 			if err != nil {
 				return nil, err
 			}
-			band.Color = color.NRGBA{R: 0x1f, G: 0x4e, B: 0xb4, A: 0x24} // the profile's blue, faint
 			band.LineStyle.Width = 0
 			zp.Add(band)
 			zp.Legend.Add("95 %, nuisance refitted", band)
@@ -285,22 +283,19 @@ func profilePanels(param string, whole, zoom []compare.ProfilePoint, prof, cal c
 	}
 	if ok && len(zoom) >= 2 {
 		figure.NoLegend(wp) // the zoom's legend serves both
-		box, err := plotter.NewPolygon(plotter.XYs{{X: zlo, Y: 0}, {X: zhi, Y: 0}, {X: zhi, Y: 1.05 * ymax}, {X: zlo, Y: 1.05 * ymax}})
+		box, err := xSpan(zlo, zhi, 1.05*ymax, color.NRGBA{R: 0x80, G: 0x80, B: 0x80, A: 0x40})
 		if err != nil {
 			return nil, err
 		}
-		box.Color = color.NRGBA{R: 0x80, G: 0x80, B: 0x80, A: 0x40}
 		box.LineStyle.Color, box.LineStyle.Width = figure.Guide, vg.Points(0.8)
 		wp.Add(box)
 		wp.Legend.Add("span of the zoom", box)
 	}
 	if calibrated && cal.Hi95 > cal.Lo95 {
-		band, err := plotter.NewPolygon(plotter.XYs{{X: max(lo, cal.Lo95), Y: 0}, {X: min(hi, cal.Hi95), Y: 0},
-			{X: min(hi, cal.Hi95), Y: 1.05 * ymax}, {X: max(lo, cal.Lo95), Y: 1.05 * ymax}})
+		band, err := xSpan(max(lo, cal.Lo95), min(hi, cal.Hi95), 1.05*ymax, color.NRGBA{R: 0x12, G: 0x8a, B: 0x3c, A: 0x30}) // the curves' green, faint: the profile shows through
 		if err != nil {
 			return nil, err
 		}
-		band.Color = color.NRGBA{R: 0x12, G: 0x8a, B: 0x3c, A: 0x30} // the curves' green, faint: the profile shows through
 		band.LineStyle.Width = 0
 		wp.Add(band)
 		if ok && len(zoom) >= 2 {
@@ -312,6 +307,17 @@ func profilePanels(param string, whole, zoom []compare.ProfilePoint, prof, cal c
 	}
 	row = append(row, &figure.Panel{Plot: wp})
 	return figure.Layout{row}, nil
+}
+
+// xSpan is a filled rectangle over [x0, x1] from 0 to top: a range of a
+// parameter marked on a profile panel.
+func xSpan(x0, x1, top float64, fill color.Color) (*plotter.Polygon, error) {
+	p, err := plotter.NewPolygon(plotter.XYs{{X: x0, Y: 0}, {X: x1, Y: 0}, {X: x1, Y: top}, {X: x0, Y: top}})
+	if err != nil {
+		return nil, err
+	}
+	p.Color = fill
+	return p, nil
 }
 
 // num writes a parameter value with three significant digits.
