@@ -45,6 +45,10 @@ type TestOptions struct {
 	// MaxRounds bounds the expansions of each joint fit to the data (0:
 	// MaxRounds).
 	MaxRounds int
+	// AgeReplicates is the number of mocks drawn from the with-burst fit
+	// and refitted under it to measure the burst age's spread and bias
+	// (BurstResult.AgeBootstrap; 0: none). Needs the profile.
+	AgeReplicates int
 }
 
 // BurstResult is the outcome of BurstTest.
@@ -101,6 +105,14 @@ type BurstResult struct {
 	AgeIntervalProfile  Interval
 	AgeCalibrationSigma float64
 	AgeInterval         Interval
+	// AgeProfileUnconfirmed is the age at which the profile, drawn on the
+	// with-burst fit's expansion, rose above the fit while a joint fit
+	// from there with exact templates found nothing better (0: none).
+	// The best age is then the fit's, and the interval reaches over it.
+	AgeProfileUnconfirmed float64
+	// AgeBootstrap is the burst age refitted on mocks of the with-burst
+	// fit (TestOptions.AgeReplicates; no Ages when none were asked for).
+	AgeBootstrap AgeBootstrap
 
 	// Adequacy of each fitted model (see Adequacy), calibrated by the same
 	// replicates.
@@ -195,7 +207,22 @@ func BurstTest(ctx context.Context, like *Likelihood, smooth, burst HistoryModel
 			return nil, err
 		}
 	}
-	res := &BurstResult{Smooth: f0, Burst: f1, N: int(math.Round(like.N())), Replicates: opts.Replicates}
+	ageParam := ""
+	for _, f := range burst.Free {
+		if strings.HasSuffix(f.Name, "age_gyr") && !slices.Contains(smooth.Names(), f.Name) {
+			ageParam = f.Name
+			break
+		}
+	}
+	if ageParam != "" && !opts.NoProfile {
+		// The burst age's profile, on the fit's expansion, may rise above
+		// the fit: a joint fit from its peak says whether a better answer
+		// lies there, before anything is computed from the fit.
+		if f1, err = confirmProfilePeak(ctx, like, burst, nu, f1, ageParam, FitOptions{Seed: opts.Seed, MaxRounds: opts.MaxRounds, Workers: opts.Workers, Stage: stage("with burst, ")}); err != nil {
+			return nil, fmt.Errorf("compare: burst fit: %w", err)
+		}
+	}
+	res := &BurstResult{Smooth: f0, Burst: f1, N: int(math.Round(like.N())), Replicates: opts.Replicates, AgeParam: ageParam}
 	res.DeltaLogL = f1.LogL - f0.LogL
 	res.LR = math.Max(0, 2*res.DeltaLogL)
 	norm := like.NumScales()
@@ -248,18 +275,29 @@ func BurstTest(ctx context.Context, like *Likelihood, smooth, burst HistoryModel
 	} else {
 		res.EvidenceNote = "not computed"
 	}
-	for _, f := range burst.Free {
-		if strings.HasSuffix(f.Name, "age_gyr") && !slices.Contains(smooth.Names(), f.Name) {
-			res.AgeParam = f.Name
-			break
-		}
-	}
 	if res.AgeParam != "" && !opts.NoProfile {
-		iv, err := profileAutoScaled(like, burst, res.AgeParam, f1, nu, res.Dispersion)
+		iv, peak, err := profileScan(like, burst, res.AgeParam, f1, nu, res.Dispersion)
 		if err != nil {
 			return nil, err
 		}
+		if age := slices.Index(burst.Names(), res.AgeParam); nu.Dim() > 0 && !math.IsNaN(peak.Value) && peak.Fit.LogL >= f1.LogL+peakTol {
+			// A peak that the joint fit from it did not confirm: the
+			// expansion misleads there. The best age is the fit's, and the
+			// interval, read from the fit's ln L, holds the ages the
+			// expansion cannot rule out.
+			res.AgeProfileUnconfirmed = peak.Value
+			iv = intervalFrom(peak.Pts, f1.LogL, f1.Theta[age], math.Max(1, res.Dispersion))
+		}
 		res.setAgeInterval(iv, opts.AgeCalibration)
+		if opts.AgeReplicates > 0 {
+			if opts.Stage != nil {
+				opts.Stage(fmt.Sprintf("burst age: %d mocks of the with-burst fit, each refitted", opts.AgeReplicates))
+			}
+			age := slices.Index(burst.Names(), res.AgeParam)
+			if res.AgeBootstrap, err = ageBootstrap(ctx, like, burst, f1, age, opts.AgeReplicates, opts); err != nil {
+				return nil, err
+			}
+		}
 	}
 	res.Strains, res.StrainsSmooth, res.GaussianPriors = Strains(f1, nu), Strains(f0, nu), GaussianPriors(nu)
 	res.Strength, res.StrengthReason, res.Calibration, res.Verdict = verdict(res)

@@ -49,11 +49,28 @@ func ProfileAuto(like *Likelihood, m HistoryModel, param string, best FitResult)
 // levels are φ̂ times the likelihood's (McCullagh & Nelder 1989, §9.2.4)
 // [memory].
 func profileAutoScaled(like *Likelihood, m HistoryModel, param string, best FitResult, nu *Nuisance, scale float64) (Interval, error) {
+	iv, _, err := profileScan(like, m, param, best, nu, scale)
+	return iv, err
+}
+
+// profilePeak is the highest point of a profile that lies above the fit
+// it was drawn about: the parameter's value there and the fit with it
+// held (history and nuisance parameters refitted); Value is NaN when no
+// point rose above the fit.
+type profilePeak struct {
+	Value float64
+	Fit   FitResult
+	Pts   []ProfilePoint
+}
+
+// profileScan is profileAutoScaled returning its points and its peak too.
+func profileScan(like *Likelihood, m HistoryModel, param string, best FitResult, nu *Nuisance, scale float64) (Interval, profilePeak, error) {
 	scale = math.Max(1, scale)
 	idx := slices.Index(m.Names(), param)
 	if idx < 0 {
-		return Interval{}, fmt.Errorf("compare: %q is not a free parameter; free are %s", param, strings.Join(m.Names(), ", "))
+		return Interval{}, profilePeak{}, fmt.Errorf("compare: %q is not a free parameter; free are %s", param, strings.Join(m.Names(), ", "))
 	}
+	peak, peakV := FitResult{LogL: best.LogL}, math.NaN()
 	f := m.Free[idx]
 	o := newObjective(like, m, nil, nil)
 	sigma := conditionalSigma(o, m, best.Theta, idx)
@@ -68,17 +85,20 @@ func profileAutoScaled(like *Likelihood, m HistoryModel, param string, best FitR
 	pts := make([]ProfilePoint, 0, len(grid)+16)
 	var prev []float64
 	eval := func(v float64) error {
-		l, th, err := profileAt(like, m, param, idx, v, best.Theta, prev, nu, best)
+		r, err := profileAt(like, m, param, idx, v, best.Theta, prev, nu, best)
 		if err != nil {
 			return err
 		}
-		prev = th
-		pts = append(pts, ProfilePoint{Value: v, LogL: l})
+		prev = r.Theta
+		pts = append(pts, ProfilePoint{Value: v, LogL: r.LogL})
+		if r.LogL > peak.LogL {
+			peak, peakV = r, v
+		}
 		return nil
 	}
 	for _, v := range grid {
 		if err := eval(v); err != nil {
-			return Interval{}, err
+			return Interval{}, profilePeak{}, err
 		}
 	}
 	// A burst narrower than the age bins it sits in makes the profile in
@@ -89,7 +109,7 @@ func profileAutoScaled(like *Likelihood, m HistoryModel, param string, best FitR
 	for k := 0; k+1 < len(e); k++ {
 		if mid := 0.5 * (e[k] + e[k+1]); mid > f.Min && mid < f.Max && math.Abs(mid-c) <= 8*sigma && !slices.Contains(grid, mid) {
 			if err := eval(mid); err != nil {
-				return Interval{}, err
+				return Interval{}, profilePeak{}, err
 			}
 		}
 	}
@@ -117,7 +137,7 @@ func profileAutoScaled(like *Likelihood, m HistoryModel, param string, best FitR
 			reach *= 2
 			v := math.Min(math.Max(c+dir*reach, f.Min), f.Max)
 			if err := eval(v); err != nil {
-				return Interval{}, err
+				return Interval{}, profilePeak{}, err
 			}
 			sort.Slice(pts, func(a, b int) bool { return pts[a].Value < pts[b].Value })
 		}
@@ -140,13 +160,13 @@ func profileAutoScaled(like *Likelihood, m HistoryModel, param string, best FitR
 		}
 		for _, v := range mids {
 			if err := eval(v); err != nil {
-				return Interval{}, err
+				return Interval{}, profilePeak{}, err
 			}
 		}
 		sort.Slice(pts, func(a, b int) bool { return pts[a].Value < pts[b].Value })
 	}
 	maxL, bestV := top()
-	return intervalFrom(pts, maxL, bestV, scale), nil
+	return intervalFrom(pts, maxL, bestV, scale), profilePeak{Value: peakV, Fit: peak, Pts: pts}, nil
 }
 
 // evidence fills the Bayes-factor fields of res.

@@ -500,12 +500,12 @@ func Profile(like *Likelihood, m HistoryModel, param string, grid []float64) ([]
 	pts := make([]ProfilePoint, len(grid))
 	var prev []float64
 	for i, v := range grid {
-		l, th, err := profileAt(like, m, param, idx, v, best.Theta, prev, nil, FitResult{})
+		r, err := profileAt(like, m, param, idx, v, best.Theta, prev, nil, FitResult{})
 		if err != nil {
 			return nil, Interval{}, err
 		}
-		prev = th
-		pts[i] = ProfilePoint{Value: v, LogL: l}
+		prev = r.Theta
+		pts[i] = ProfilePoint{Value: v, LogL: r.LogL}
 	}
 	maxL, bestV := best.LogL, best.Theta[idx]
 	for _, p := range pts {
@@ -520,10 +520,10 @@ func Profile(like *Likelihood, m HistoryModel, param string, grid []float64) ([]
 // the global best and the previous grid point. With nuisance parameters
 // (nu, and a joint fit nuFit that holds their expansion) they are refitted
 // at every point on that expansion.
-func profileAt(like *Likelihood, m HistoryModel, param string, idx int, v float64, best, prev []float64, nu *Nuisance, nuFit FitResult) (float64, []float64, error) {
+func profileAt(like *Likelihood, m HistoryModel, param string, idx int, v float64, best, prev []float64, nu *Nuisance, nuFit FitResult) (FitResult, error) {
 	fixed, err := m.WithFixed(param, v)
 	if err != nil {
-		return 0, nil, err
+		return FitResult{}, err
 	}
 	drop := func(t []float64) []float64 {
 		if t == nil {
@@ -542,9 +542,9 @@ func profileAt(like *Likelihood, m HistoryModel, param string, idx int, v float6
 		r, err = Fit(like, fixed, FitOptions{Starts: 1, Init: init})
 	}
 	if err != nil {
-		return 0, nil, err
+		return FitResult{}, err
 	}
-	return r.LogL, r.Theta, nil
+	return r, nil
 }
 
 // intervalFrom reads the interval off profile points; scale ≥ 1 widens the

@@ -115,6 +115,11 @@ func runCheck(t *testing.T, cases []checkCase, replicates int, templateStars int
 		t.Logf("%-12s truth %4.2f | %-10s age %.3f [%.3f, %.3f] | LR %.0f | deviance %.0f vs %.0f (p %.2g) | %s | %s",
 			cs.name, cs.ageGyr, r.strength, r.age, r.lo95, r.hi95, r.lr, r.deviance, r.exp, r.adequacyP, tr.Verdict,
 			compare.StrainWarning("strained", tr.Strains, tr.GaussianPriors))
+		if b := tr.AgeBootstrap; len(b.Ages) > 0 {
+			t.Logf("%-12s burst age refitted on %d mocks drawn at %.3f: median %.3f, 68 %% [%.3f, %.3f], 95 %% [%.3f, %.3f]; profile interval [%.3f, %.3f] holds %.0f %%; ages %.3f",
+				cs.name, len(b.Ages), b.Truth, b.Median, b.Lo68, b.Hi68, b.Lo95, b.Hi95,
+				tr.AgeIntervalProfile.Lo95, tr.AgeIntervalProfile.Hi95, 100*b.Holds(tr.AgeIntervalProfile.Lo95, tr.AgeIntervalProfile.Hi95), b.Ages)
+		}
 		out = append(out, r)
 	}
 	return out
