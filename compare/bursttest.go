@@ -218,8 +218,28 @@ func BurstTest(ctx context.Context, like *Likelihood, smooth, burst HistoryModel
 		// The burst age's profile, on the fit's expansion, may rise above
 		// the fit: a joint fit from its peak says whether a better answer
 		// lies there, before anything is computed from the fit.
+		before := f1.LogL
 		if f1, err = confirmProfilePeak(ctx, like, burst, nu, f1, ageParam, FitOptions{Seed: opts.Seed, MaxRounds: opts.MaxRounds, Workers: opts.Workers, Stage: stage("with burst, ")}); err != nil {
 			return nil, fmt.Errorf("compare: burst fit: %w", err)
+		}
+		if f1.LogL > before {
+			// The burst fit found a higher maximum by a second search; the
+			// smooth one gets a second search too, from the nuisance values
+			// found there, so that the ratio does not gain from a search
+			// only one hypothesis had.
+			g0, err := FitJoint(ctx, like, smooth, nu, FitOptions{Starts: 1, Seed: opts.Seed, MaxRounds: opts.MaxRounds, Workers: opts.Workers,
+				Init: sharedStarts(burst, smooth, f1.Theta), NuisanceStart: f1.Nuisance, Stage: stage("smooth history (from the with-burst fit's nuisance values), ")})
+			if err != nil {
+				return nil, fmt.Errorf("compare: smooth fit: %w", err)
+			}
+			if g0.LogL > f0.LogL {
+				g0.OtherMaxima = append(append(g0.OtherMaxima, f0.OtherMaxima...),
+					LocalMaximum{LogL: f0.LogL, Theta: f0.Theta, Nuisance: f0.Nuisance, RoundLimit: f0.RoundLimit, LastGain: f0.LastGain})
+				f0 = g0
+			}
+			if err := like.UseFit(f1); err != nil {
+				return nil, err
+			}
 		}
 	}
 	res := &BurstResult{Smooth: f0, Burst: f1, N: int(math.Round(like.N())), Replicates: opts.Replicates, AgeParam: ageParam}
@@ -360,6 +380,19 @@ func nestedStarts(smooth, burst HistoryModel, theta0 []float64) [][]float64 {
 			t[i] = theta0[j]
 		} else if strings.HasSuffix(f.Name, "mass_fraction") {
 			t[i] = f.Min
+		}
+	}
+	return [][]float64{t}
+}
+
+// sharedStarts returns a start for model to at from's parameters theta:
+// the parameters the two share at theta's values, the rest at their
+// defaults.
+func sharedStarts(from, to HistoryModel, theta []float64) [][]float64 {
+	t := to.Default()
+	for i, name := range to.Names() {
+		if j := slices.Index(from.Names(), name); j >= 0 {
+			t[i] = theta[j]
 		}
 	}
 	return [][]float64{t}

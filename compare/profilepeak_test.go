@@ -6,6 +6,8 @@ import (
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
+
+	"spinpop/sfh"
 )
 
 // A joint fit stopped after one expansion is not at the maximum; the
@@ -49,4 +51,33 @@ func abs(x float64) float64 {
 		return -x
 	}
 	return x
+}
+
+// In the burst test, a with-burst fit stopped short (one expansion) is
+// replaced by the better maximum its age profile leads to, and the smooth
+// fit, stopped short as well, gets its own second search from the nuisance
+// values found there: neither hypothesis ends below its one-expansion
+// fit, and the ratio is taken between the two second searches.
+func TestBurstTestSecondSearchForBoth(t *testing.T) {
+	s := newJointSetup(t)
+	nu := s.nuisance()
+	m := s.burstModel(t)
+	like, _, _ := s.asimovLikelihood(t, m, nu, []float64{0.82, 0.015})
+	h, err := sfh.New(10, []sfh.Part{
+		{Name: "flat", Component: sfh.Constant{}, Weight: 1},
+		{Name: "burst", Component: sfh.Burst{AgeGyr: 0.6, WidthGyr: 0.05, MassFraction: 0}},
+	})
+	require.NoError(t, err)
+	smooth := HistoryModel{Base: h, AgeEdgesGyr: jointEdges}
+	ctx := context.Background()
+	opts := FitOptions{Starts: 4, MaxRounds: 1}
+	short0, err := FitJoint(ctx, like, smooth, nu, opts)
+	require.NoError(t, err)
+	res, err := BurstTest(ctx, like, smooth, m, TestOptions{Replicates: 3, Seed: 1, Workers: 2, NoEvidence: true, Nuisance: nu, MaxRounds: 1})
+	require.NoError(t, err)
+	t.Logf("smooth: one expansion ln L %.3f, in the test %.3f; with burst %.3f at age %.4f", short0.LogL, res.Smooth.LogL, res.Burst.LogL, res.Burst.Theta[0])
+	assert.InDelta(t, 0.6, res.Burst.Theta[0], 0.005, "the confirmed burst age")
+	assert.Greater(t, res.Smooth.LogL, short0.LogL+peakTol, "the smooth fit's second search found more")
+	assert.NotEmpty(t, res.Smooth.OtherMaxima, "the first search's answer is kept")
+	assert.InDelta(t, 2*(res.Burst.LogL-res.Smooth.LogL), res.LR, 1e-9)
 }
