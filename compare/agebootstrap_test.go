@@ -50,17 +50,18 @@ func TestAgeBootstrapMatchesProfileWhenModelIsRight(t *testing.T) {
 	assert.InDelta(t, res.Burst.LogL, like.LogL(res.Burst.Weights), 1e-9)
 }
 
-// The basic bootstrap interval reflects the refits' quantiles about the
-// best value in ln(age). Source: Davison & Hinkley (1997), Bootstrap
-// Methods, eq. 5.6 [memory]; values worked by hand.
-func TestAgeBootstrapBasicInterval(t *testing.T) {
-	b := AgeBootstrap{Ages: []float64{1}, Truth: 1.0, Median: 1.05, Lo68: 0.95, Hi68: 1.1, Lo95: 0.9, Hi95: 1.25}
-	iv := b.Basic(1.0)
-	assert.InDelta(t, 0.8, iv.Lo95, 1e-12)   // 1/1.25
-	assert.InDelta(t, 1/0.9, iv.Hi95, 1e-12) // the refits' low tail sets the high side
-	assert.InDelta(t, 1/1.1, iv.Lo68, 1e-12)
-	assert.InDelta(t, 1/0.95, iv.Hi68, 1e-12)
-	assert.InDelta(t, 0.05, b.Bias(), 1e-12)
-	assert.Equal(t, Interval{}, AgeBootstrap{}.Basic(1), "no refits, no interval")
-	assert.InDelta(t, 0.5, AgeBootstrap{Ages: []float64{0.7, 0.8, 0.9, 1.2}}.Holds(0.75, 1.0), 1e-12)
+// Type-7 quantiles and the share held, worked by hand; a failed refit
+// (NaN) counts in neither. Source: Hyndman & Fan (1996), Am. Stat. 50,
+// 361, definition 7 (R's default) [memory].
+func TestAgeBootstrapQuantilesByHand(t *testing.T) {
+	s := []float64{1.06, 1.1, 1.15, 1.3}
+	assert.InDelta(t, 1.125, quantile7(s, 0.5), 1e-12)     // h = 1.5
+	assert.InDelta(t, 1.063, quantile7(s, 0.025), 1e-12)   // h = 0.075
+	assert.InDelta(t, 1.28875, quantile7(s, 0.975), 1e-12) // h = 2.925
+	assert.Equal(t, 1.3, quantile7(s, 1))
+	assert.True(t, math.IsNaN(quantile7(nil, 0.5)))
+	b := AgeBootstrap{Ages: []float64{0.7, math.NaN(), 0.8, 0.9, 1.2}}
+	assert.InDelta(t, 0.5, b.Holds(0.75, 1.0), 1e-12)
+	assert.InDelta(t, 0.05, AgeBootstrap{Truth: 1, Median: 1.05}.Bias(), 1e-12)
+	assert.True(t, math.IsNaN(AgeBootstrap{}.Holds(0, 1)))
 }

@@ -106,10 +106,14 @@ type BurstResult struct {
 	AgeCalibrationSigma float64
 	AgeInterval         Interval
 	// AgeProfileUnconfirmed is the age at which the profile, drawn on the
-	// with-burst fit's expansion, rose above the fit while a joint fit
-	// from there with exact templates found nothing better (0: none).
-	// The best age is then the fit's, and the interval reaches over it.
+	// with-burst fit's expansion, rose peakTol or more above the fit
+	// (0: nowhere); AgeProfilePeakChecked whether a joint fit from within
+	// 2 % of that age with exact templates found nothing better (false:
+	// the profile peaked where no such fit started — after two
+	// replacements, or on the final profile's wider grid). Either way the
+	// best age is the fit's and the interval is read from its ln L.
 	AgeProfileUnconfirmed float64
+	AgeProfilePeakChecked bool
 	// AgeBootstrap is the burst age refitted on mocks of the with-burst
 	// fit (TestOptions.AgeReplicates; no Ages when none were asked for).
 	AgeBootstrap AgeBootstrap
@@ -207,7 +211,7 @@ func BurstTest(ctx context.Context, like *Likelihood, smooth, burst HistoryModel
 			return nil, err
 		}
 	}
-	ageParam := ""
+	ageParam, rejected := "", []float64(nil)
 	for _, f := range burst.Free {
 		if strings.HasSuffix(f.Name, "age_gyr") && !slices.Contains(smooth.Names(), f.Name) {
 			ageParam = f.Name
@@ -219,7 +223,7 @@ func BurstTest(ctx context.Context, like *Likelihood, smooth, burst HistoryModel
 		// the fit: a joint fit from its peak says whether a better answer
 		// lies there, before anything is computed from the fit.
 		before := f1.LogL
-		if f1, err = confirmProfilePeak(ctx, like, burst, nu, f1, ageParam, FitOptions{Seed: opts.Seed, MaxRounds: opts.MaxRounds, Workers: opts.Workers, Stage: stage("with burst, ")}); err != nil {
+		if f1, rejected, err = confirmProfilePeak(ctx, like, burst, nu, f1, ageParam, FitOptions{Seed: opts.Seed, MaxRounds: opts.MaxRounds, Workers: opts.Workers, Stage: stage("with burst, ")}); err != nil {
 			return nil, fmt.Errorf("compare: burst fit: %w", err)
 		}
 		if f1.LogL > before {
@@ -233,8 +237,8 @@ func BurstTest(ctx context.Context, like *Likelihood, smooth, burst HistoryModel
 				return nil, fmt.Errorf("compare: smooth fit: %w", err)
 			}
 			if g0.LogL > f0.LogL {
-				g0.OtherMaxima = append(append(g0.OtherMaxima, f0.OtherMaxima...),
-					LocalMaximum{LogL: f0.LogL, Theta: f0.Theta, Nuisance: f0.Nuisance, RoundLimit: f0.RoundLimit, LastGain: f0.LastGain})
+				g0.OtherMaxima = append(append(g0.OtherMaxima, f0.OtherMaxima...), asLocalMaximum(f0))
+				sortMaxima(g0.OtherMaxima)
 				f0 = g0
 			}
 			if err := like.UseFit(f1); err != nil {
@@ -300,13 +304,19 @@ func BurstTest(ctx context.Context, like *Likelihood, smooth, burst HistoryModel
 		if err != nil {
 			return nil, err
 		}
-		if age := slices.Index(burst.Names(), res.AgeParam); nu.Dim() > 0 && !math.IsNaN(peak.Value) && peak.Fit.LogL >= f1.LogL+peakTol {
-			// A peak that the joint fit from it did not confirm: the
-			// expansion misleads there. The best age is the fit's, and the
-			// interval, read from the fit's ln L, holds the ages the
-			// expansion cannot rule out.
-			res.AgeProfileUnconfirmed = peak.Value
+		if age := slices.Index(burst.Names(), res.AgeParam); nu.Dim() > 0 {
+			// With nuisance parameters the profile is drawn on the fit's
+			// expansion, exact only at the fit: the best age is the fit's
+			// (made with exact templates, and the age the replicates are
+			// drawn at), and the interval is read from the fit's ln L, so
+			// that points the expansion puts above it count as inside.
 			iv = intervalFrom(peak.Pts, f1.LogL, f1.Theta[age], math.Max(1, res.Dispersion))
+			if !math.IsNaN(peak.Value) && peak.Fit.LogL >= f1.LogL+peakTol {
+				res.AgeProfileUnconfirmed = peak.Value
+				res.AgeProfilePeakChecked = slices.ContainsFunc(rejected, func(v float64) bool {
+					return math.Abs(v-peak.Value) <= 0.02*peak.Value
+				})
+			}
 		}
 		res.setAgeInterval(iv, opts.AgeCalibration)
 		if opts.AgeReplicates > 0 {

@@ -130,8 +130,10 @@ func profileScan(like *Likelihood, m HistoryModel, param string, best FitResult,
 			if dir > 0 {
 				end = pts[len(pts)-1]
 			}
-			maxL, _ := top()
-			if maxL-end.LogL >= scale*dLogL95 || (dir < 0 && end.Value <= f.Min) || (dir > 0 && end.Value >= f.Max) {
+			// Measured from the fit, not the peak: an interval read from
+			// the fit's ln L (BurstTest with nuisance parameters) needs the
+			// profile to fall that far below the fit.
+			if best.LogL-end.LogL >= scale*dLogL95 || (dir < 0 && end.Value <= f.Min) || (dir > 0 && end.Value >= f.Max) {
 				break
 			}
 			reach *= 2

@@ -1,6 +1,7 @@
 package compare
 
 import (
+	"cmp"
 	"context"
 	"fmt"
 	"math"
@@ -8,33 +9,35 @@ import (
 )
 
 // peakTol is how far in ln L a profile point must rise above the fit it
-// was drawn about before the fit is checked against it: the 68 % level,
-// so that a rise that would move the answer by less than its own 1σ does
-// not cost a joint fit (on the independent model's catalogs the rises
-// were 3–25; on the demo 0.15).
+// was drawn about before the fit is checked against it: the 68 % level of
+// ln L (of the quasi-likelihood only when φ̂ = 1), so that a rise that
+// would move the answer by less than its own 1σ does not cost a joint
+// fit (on the independent model's catalogs the first rises were 10–25,
+// later ones down to 3; on the demo 0.15).
 const peakTol = dLogL68
 
 // confirmProfilePeak checks a joint fit against the profile of param
 // drawn about it. The profile refits the nuisance parameters on the fit's
 // expansion, which is exact only at the fit's own nuisance values; where
-// the profile rises above the fit elsewhere, either the fit missed a
-// higher maximum or the expansion misleads there (as a quadratic in each
-// bin can when a ridge moves across bins). A joint fit from the profile's
-// peak, its templates made exactly, tells which: a better answer replaces
-// the fit (at most twice; the one it replaces joins OtherMaxima), and an
-// answer no better leaves the fit as it was. like is left on the result.
-func confirmProfilePeak(ctx context.Context, like *Likelihood, m HistoryModel, nu *Nuisance, f FitResult, param string, opts FitOptions) (FitResult, error) {
+// the profile's highest point rises peakTol or more above the fit, either
+// the fit missed a higher maximum or the expansion misleads there (as a
+// quadratic in each bin can when a ridge moves across bins). A joint fit
+// from that point, its templates made exactly, tells which: any better
+// answer replaces the fit (at most twice; the one it replaces joins
+// OtherMaxima), and an answer no better leaves the fit as it was and the
+// point's value in rejected. like is left on the result.
+func confirmProfilePeak(ctx context.Context, like *Likelihood, m HistoryModel, nu *Nuisance, f FitResult, param string, opts FitOptions) (_ FitResult, rejected []float64, _ error) {
 	idx := slices.Index(m.Names(), param)
 	if nu.Dim() == 0 || idx < 0 || f.morph == nil {
-		return f, nil
+		return f, nil, nil
 	}
 	for range 2 {
 		if err := useTemplates(like, f, nil); err != nil {
-			return FitResult{}, err
+			return FitResult{}, nil, err
 		}
 		_, peak, err := profileScan(like, m, param, f, nu, 1)
 		if err != nil {
-			return FitResult{}, err
+			return FitResult{}, nil, err
 		}
 		if math.IsNaN(peak.Value) || peak.Fit.LogL < f.LogL+peakTol {
 			break
@@ -47,17 +50,29 @@ func confirmProfilePeak(ctx context.Context, like *Likelihood, m HistoryModel, n
 		}
 		g, err := FitJoint(ctx, like, m, nu, o)
 		if err != nil {
-			return FitResult{}, err
+			return FitResult{}, nil, err
 		}
-		if !(g.LogL > f.LogL+peakTol) {
+		if !(g.LogL > f.LogL+1e-9) { // as searchFrom accepts a better centre
+			rejected = append(rejected, peak.Value)
 			break
 		}
-		g.OtherMaxima = append(g.OtherMaxima, f.OtherMaxima...)
-		g.OtherMaxima = append(g.OtherMaxima, LocalMaximum{LogL: f.LogL, Theta: f.Theta, Nuisance: f.Nuisance, RoundLimit: f.RoundLimit, LastGain: f.LastGain})
+		g.OtherMaxima = append(append(g.OtherMaxima, f.OtherMaxima...), asLocalMaximum(f))
+		sortMaxima(g.OtherMaxima)
 		f = g
 	}
 	if err := like.UseFit(f); err != nil {
-		return FitResult{}, err
+		return FitResult{}, nil, err
 	}
-	return f, nil
+	return f, rejected, nil
+}
+
+// asLocalMaximum is a fit kept among another's OtherMaxima.
+func asLocalMaximum(f FitResult) LocalMaximum {
+	return LocalMaximum{LogL: f.LogL, Theta: f.Theta, Nuisance: f.Nuisance, RoundLimit: f.RoundLimit, LastGain: f.LastGain}
+}
+
+// sortMaxima puts other maxima best first, as FitResult.OtherMaxima
+// promises.
+func sortMaxima(ms []LocalMaximum) {
+	slices.SortStableFunc(ms, func(a, b LocalMaximum) int { return cmp.Compare(b.LogL, a.LogL) })
 }

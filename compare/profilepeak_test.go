@@ -26,10 +26,14 @@ func TestConfirmProfilePeak(t *testing.T) {
 
 	short, err := FitJoint(ctx, like, m, nu, FitOptions{Starts: 3, MaxRounds: 1})
 	require.NoError(t, err)
-	got, err := confirmProfilePeak(ctx, like, m, nu, short, "burst.age_gyr", FitOptions{})
+	got, rejected, err := confirmProfilePeak(ctx, like, m, nu, short, "burst.age_gyr", FitOptions{})
 	require.NoError(t, err)
 	t.Logf("one expansion: age %.4f, ln L %.3f → confirmed: age %.4f, ln L %.3f", short.Theta[0], short.LogL, got.Theta[0], got.LogL)
 	assert.Greater(t, got.LogL, short.LogL+peakTol, "a better maximum was found")
+	assert.Empty(t, rejected)
+	for i := 1; i < len(got.OtherMaxima); i++ {
+		assert.GreaterOrEqual(t, got.OtherMaxima[i-1].LogL, got.OtherMaxima[i].LogL, "other maxima best first")
+	}
 	assert.Less(t, abs(got.Theta[0]-0.6), abs(short.Theta[0]-0.6), "nearer the true age")
 	kept := false
 	for _, o := range got.OtherMaxima {
@@ -39,7 +43,7 @@ func TestConfirmProfilePeak(t *testing.T) {
 	assert.InDelta(t, got.LogLData(), like.LogL(got.Weights), 1e-6, "like is left on the answer's exact templates")
 
 	// At the confirmed answer the profile rises no further: unchanged.
-	again, err := confirmProfilePeak(ctx, like, m, nu, got, "burst.age_gyr", FitOptions{})
+	again, _, err := confirmProfilePeak(ctx, like, m, nu, got, "burst.age_gyr", FitOptions{})
 	require.NoError(t, err)
 	assert.Equal(t, got.LogL, again.LogL)
 	assert.Equal(t, got.Theta, again.Theta)
@@ -80,4 +84,25 @@ func TestBurstTestSecondSearchForBoth(t *testing.T) {
 	assert.Greater(t, res.Smooth.LogL, short0.LogL+peakTol, "the smooth fit's second search found more")
 	assert.NotEmpty(t, res.Smooth.OtherMaxima, "the first search's answer is kept")
 	assert.InDelta(t, 2*(res.Burst.LogL-res.Smooth.LogL), res.LR, 1e-9)
+}
+
+// The burst-age refits on a fit with nuisance parameters (refitted on its
+// expansion) give the same ages on one worker as on two.
+func TestAgeBootstrapSameOnAnyThreadsWithNuisance(t *testing.T) {
+	s := newJointSetup(t)
+	nu := s.nuisance()
+	m := s.burstModel(t)
+	like, _, _ := s.asimovLikelihood(t, m, nu, []float64{0.82, 0.015})
+	ctx := context.Background()
+	f, err := FitJoint(ctx, like, m, nu, FitOptions{Starts: 3})
+	require.NoError(t, err)
+	opts := TestOptions{Seed: 4, Workers: 1, ReplicateStarts: 2, Nuisance: nu}
+	one, err := ageBootstrap(ctx, like, m, f, 0, 8, opts)
+	require.NoError(t, err)
+	opts.Workers = 2
+	two, err := ageBootstrap(ctx, like, m, f, 0, 8, opts)
+	require.NoError(t, err)
+	assert.Equal(t, one.Ages, two.Ages)
+	assert.Greater(t, one.Hi95-one.Lo95, 0.0, "the refits scatter")
+	assert.InDelta(t, 0.6, one.Median, 0.02)
 }

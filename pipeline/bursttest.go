@@ -74,7 +74,12 @@ func (c *Comparison) BurstTest(ctx context.Context, replicates int, progress fun
 // percentiles then rest on one or two refits each, enough to see a spread
 // or a bias the size of the profile interval; the refits cost about a
 // sixth of the test's).
-func AgeReplicates(replicates int) int { return max(20, replicates/4) }
+func AgeReplicates(replicates int) int {
+	if replicates <= 0 {
+		replicates = 1000 // compare.BurstTest's default
+	}
+	return max(20, replicates/4)
+}
 
 // Report is every number of the test, NaN-free for encoding/json, with the
 // names of the files written (outputs).
@@ -101,7 +106,7 @@ func (r *BurstOutcome) Report(c *Comparison, outputs []string) map[string]any {
 		"age_param": t.AgeParam, "age_interval": t.AgeInterval, "age_profile": prof,
 		"age_interval_profile": t.AgeIntervalProfile, "age_calibration_sigma_ln": Finite(t.AgeCalibrationSigma),
 		"age_calibration_color_bv": Finite(c.MedianColor()), "rival_ages": rivals(t.RivalAges()),
-		"age_bootstrap": ageBootstrapReport(t), "age_profile_unconfirmed_gyr": unconfirmedPeak(t),
+		"age_bootstrap": ageBootstrapReport(t), "age_profile_unconfirmed": unconfirmedPeak(t),
 		"strength": t.Strength, "strength_reason": t.StrengthReason, "calibration": t.Calibration, "verdict": t.Verdict,
 		"adequacy_smooth": AdequacyReport(t.AdequacySmooth), "adequacy_burst": AdequacyReport(t.AdequacyBurst),
 		"dispersion": Finite(t.Dispersion), "p_value_quasi": Finite(t.PValueQuasi),
@@ -176,7 +181,7 @@ func ageBootstrapReport(t *compare.BurstResult) map[string]any {
 // was then found.
 func unconfirmedPeak(t *compare.BurstResult) any {
 	if t.AgeProfileUnconfirmed > 0 {
-		return Finite(t.AgeProfileUnconfirmed)
+		return map[string]any{"age_gyr": Finite(t.AgeProfileUnconfirmed), "checked_with_exact_templates": t.AgeProfilePeakChecked}
 	}
 	return nil
 }

@@ -263,8 +263,12 @@ func printBurstSummary(w io.Writer, r *pipeline.BurstOutcome) {
 	if t.AgeParam != "" {
 		fmt.Fprintf(w, "burst age %.3f Gyr, %s\n", t.AgeInterval.Best, ageIntervalText(t))
 		if t.AgeProfileUnconfirmed > 0 {
-			fmt.Fprintf(w, "the burst age's profile, drawn on the with-burst fit's expansion, rose above the fit at %.3f Gyr; a fit from there with exact templates found nothing better, so the best age is the fit's and the interval reaches over %.3f Gyr\n",
-				t.AgeProfileUnconfirmed, t.AgeProfileUnconfirmed)
+			how := "a fit from there with exact templates found nothing better"
+			if !t.AgeProfilePeakChecked {
+				how = "no fit with exact templates was started there"
+			}
+			fmt.Fprintf(w, "the burst age's profile, drawn on the with-burst fit's expansion, rose above the fit at %.3f Gyr and %s: the best age is the fit's, and the interval is read from the fit's ln L, with ages the expansion puts above it counted inside\n",
+				t.AgeProfileUnconfirmed, how)
 		}
 		if b := t.AgeBootstrap; len(b.Ages) > 0 {
 			p := t.AgeIntervalProfile

@@ -84,13 +84,15 @@ func TestBurstSummaryAgeRefitsAndUnconfirmedPeak(t *testing.T) {
 			AgeParam: "burst.age_gyr", AgeInterval: compare.Interval{Best: 1.1, Lo95: 0.9, Hi95: 1.4},
 			AgeIntervalProfile:    compare.Interval{Best: 1.1, Lo95: 1.05, Hi95: 1.2},
 			AgeBootstrap:          compare.AgeBootstrap{Ages: []float64{1.06, 1.1, 1.15, 1.3}, Truth: 1.1, Median: 1.125, Lo95: 1.063, Hi95: 1.289},
-			AgeProfileUnconfirmed: 1.21,
+			AgeProfileUnconfirmed: 1.21, AgeProfilePeakChecked: true,
 		},
 		Heights: &compare.HeightResult{SplitAgeGyr: 0.8},
 	}
 	text := summaryText(out)
 	assert.Contains(t, text, "burst age refitted on 4 mocks of the with-burst fit (drawn at 1.100 Gyr): median 1.125 Gyr (bias +0.025), central 95% 1.063–1.289 Gyr; the profile's 95% interval holds 75% of them")
-	assert.Contains(t, text, "rose above the fit at 1.210 Gyr; a fit from there with exact templates found nothing better")
+	assert.Contains(t, text, "rose above the fit at 1.210 Gyr and a fit from there with exact templates found nothing better")
+	out.Test.AgeProfilePeakChecked = false
+	assert.Contains(t, summaryText(out), "rose above the fit at 1.210 Gyr and no fit with exact templates was started there")
 
 	out.Test.AgeBootstrap, out.Test.AgeProfileUnconfirmed = compare.AgeBootstrap{}, 0
 	text = summaryText(out)
