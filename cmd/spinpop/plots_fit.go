@@ -186,7 +186,7 @@ func periodHistsDataModel(sp compare.Space, data []float64, models map[string][]
 // best fit's values while prof refits them at every point: the curve is
 // then narrower than prof, which the zoom shades so that the two are not
 // read as one.
-func profilePanels(param string, whole, zoom []compare.ProfilePoint, prof, cal compare.Interval, phi, lo, hi float64, nuisanceHeld bool) (figure.Layout, error) {
+func profilePanels(param string, whole, zoom []compare.ProfilePoint, prof, cal compare.Interval, phi, lo, hi float64, nuisanceHeld bool, refits []float64) (figure.Layout, error) {
 	label := paramLabel(param)
 	scale := math.Max(1, phi)
 	best := math.Inf(-1)
@@ -266,6 +266,9 @@ func profilePanels(param string, whole, zoom []compare.ProfilePoint, prof, cal c
 			band.LineStyle.Width = 0
 			zp.Add(band)
 			zp.Legend.Add("95 %, nuisance refitted", band)
+		}
+		if _, _, err := addRug(zp, refits, zlo, zhi, 0.06*1.6*scale*1.92); err != nil {
+			return nil, err
 		}
 		row = append(row, &figure.Panel{Plot: zp})
 		title = fmt.Sprintf("The whole range of the fit, %s–%s", num(lo), num(hi))
@@ -485,4 +488,35 @@ func (c countsOnly) Ticks(lo, hi float64) []plot.Tick {
 		}
 	}
 	return t
+}
+
+// addRug marks each refitted value inside [xmin, xmax] by a short tick
+// rising from the axis (a rug), so that the refits' spread reads against
+// the interval drawn above it, and names them in the legend with how many
+// of the n that succeeded (not NaN) fall inside.
+func addRug(p *plot.Plot, xs []float64, xmin, xmax, height float64) (in, n int, err error) {
+	var first *plotter.Line
+	for _, x := range xs {
+		if math.IsNaN(x) {
+			continue
+		}
+		n++
+		if x < xmin || x > xmax {
+			continue
+		}
+		in++
+		l, err := plotter.NewLine(plotter.XYs{{X: x, Y: 0}, {X: x, Y: height}})
+		if err != nil {
+			return 0, 0, err
+		}
+		l.Color, l.Width = figure.Data, vg.Points(0.8)
+		p.Add(l)
+		if first == nil {
+			first = l
+		}
+	}
+	if first != nil {
+		p.Legend.Add(fmt.Sprintf("burst age refitted on mocks of the fit (%d of %d here)", in, n), first)
+	}
+	return in, n, nil
 }

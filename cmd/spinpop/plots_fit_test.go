@@ -8,6 +8,7 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"spinpop/compare"
+	"spinpop/internal/figure"
 	"spinpop/pipeline"
 )
 
@@ -30,7 +31,7 @@ func TestProfilePanelsZoomOnTheProfile(t *testing.T) {
 	cal := compare.Interval{Best: 0.75, Lo68: 0.67, Hi68: 0.84, Lo95: 0.60, Hi95: 0.94}
 	zlo, zhi, ok := pipeline.ProfileZoomRange(prof, 0.1, 3)
 	require.True(t, ok)
-	g, err := profilePanels("history.burst.age_gyr", parabola(0.1, 3, 61), parabola(zlo, zhi, 41), prof, cal, 1, 0.1, 3, false)
+	g, err := profilePanels("history.burst.age_gyr", parabola(0.1, 3, 61), parabola(zlo, zhi, 41), prof, cal, 1, 0.1, 3, false, nil)
 	require.NoError(t, err)
 	require.Len(t, g, 1)
 	require.Len(t, g[0], 2, "the zoom and the whole range")
@@ -58,8 +59,13 @@ func TestProfilePanelsNuisanceHeld(t *testing.T) {
 	}
 	prof := compare.Interval{Best: 0.75, Lo68: 0.74, Hi68: 0.76, Lo95: 0.73, Hi95: 0.77}
 	zlo, zhi, _ := pipeline.ProfileZoomRange(prof, 0.1, 3)
-	g, err := profilePanels("history.burst.age_gyr", pts(0.1, 3), pts(zlo, zhi), prof, prof, 1, 0.1, 3, true)
+	refits := []float64{0.745, 0.75, math.NaN(), 0.755, 2.0}
+	g, err := profilePanels("history.burst.age_gyr", pts(0.1, 3), pts(zlo, zhi), prof, prof, 1, 0.1, 3, true, refits)
 	require.NoError(t, err)
 	zoom := g[0][0].Plot
 	assert.Contains(t, zoom.Title.Text, "refitting the nuisance 0.73–0.77")
+	in, n, err := addRug(figure.New("", "", ""), refits, zlo, zhi, 0.1)
+	require.NoError(t, err)
+	assert.Equal(t, 3, in, "the refits inside the zoom")
+	assert.Equal(t, 4, n, "the failed refit (NaN) left out")
 }

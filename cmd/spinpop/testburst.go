@@ -112,7 +112,7 @@ func writeBurstOutputs(out *outset.Set, prefix string, c *pipeline.Comparison, r
 	}
 	if len(r.Profile) > 0 {
 		lo, hi := profileRange(c, r)
-		g, err := profilePanels(r.Test.AgeParam, r.Profile, r.ProfileZoom, r.Test.AgeIntervalProfile, r.Test.AgeInterval, r.Test.Dispersion, lo, hi, c.Nuisance.Dim() > 0)
+		g, err := profilePanels(r.Test.AgeParam, r.Profile, r.ProfileZoom, r.Test.AgeIntervalProfile, r.Test.AgeInterval, r.Test.Dispersion, lo, hi, c.Nuisance.Dim() > 0, r.Test.AgeBootstrap.Ages)
 		if err != nil {
 			return nil, err
 		}
