@@ -18,10 +18,7 @@ import (
 // a search is checked by searching again from the best point another
 // method found.
 func TestConfirmProfilePeak(t *testing.T) {
-	s := newJointSetup(t)
-	nu := s.nuisance()
-	m := s.burstModel(t)
-	like, _, _ := s.asimovLikelihood(t, m, nu, []float64{0.82, 0.015})
+	nu, m, like := offNominalBurst(t)
 	ctx := context.Background()
 
 	short, err := FitJoint(ctx, like, m, nu, FitOptions{Starts: 3, MaxRounds: 1})
@@ -63,10 +60,7 @@ func abs(x float64) float64 {
 // values found there: neither hypothesis ends below its one-expansion
 // fit, and the ratio is taken between the two second searches.
 func TestBurstTestSecondSearchForBoth(t *testing.T) {
-	s := newJointSetup(t)
-	nu := s.nuisance()
-	m := s.burstModel(t)
-	like, _, _ := s.asimovLikelihood(t, m, nu, []float64{0.82, 0.015})
+	nu, m, like := offNominalBurst(t)
 	h, err := sfh.New(10, []sfh.Part{
 		{Name: "flat", Component: sfh.Constant{}, Weight: 1},
 		{Name: "burst", Component: sfh.Burst{AgeGyr: 0.6, WidthGyr: 0.05, MassFraction: 0}},
@@ -89,10 +83,7 @@ func TestBurstTestSecondSearchForBoth(t *testing.T) {
 // The burst-age refits on a fit with nuisance parameters (refitted on its
 // expansion) give the same ages on one worker as on two.
 func TestAgeBootstrapSameOnAnyThreadsWithNuisance(t *testing.T) {
-	s := newJointSetup(t)
-	nu := s.nuisance()
-	m := s.burstModel(t)
-	like, _, _ := s.asimovLikelihood(t, m, nu, []float64{0.82, 0.015})
+	nu, m, like := offNominalBurst(t)
 	ctx := context.Background()
 	f, err := FitJoint(ctx, like, m, nu, FitOptions{Starts: 3})
 	require.NoError(t, err)
@@ -105,4 +96,15 @@ func TestAgeBootstrapSameOnAnyThreadsWithNuisance(t *testing.T) {
 	assert.Equal(t, one.Ages, two.Ages)
 	assert.Greater(t, one.Hi95-one.Lo95, 0.0, "the refits scatter")
 	assert.InDelta(t, 0.6, one.Median, 0.02)
+}
+
+// offNominalBurst is the joint setup's nuisance model, its burst model and
+// noise-free data made with a = 0.82 and a color offset of 0.015 (the
+// templates at the nominal values).
+func offNominalBurst(t *testing.T) (*Nuisance, HistoryModel, *Likelihood) {
+	s := newJointSetup(t)
+	nu := s.nuisance()
+	m := s.burstModel(t)
+	like, _, _ := s.asimovLikelihood(t, m, nu, []float64{0.82, 0.015})
+	return nu, m, like
 }
