@@ -6,6 +6,7 @@ import (
 	"math/rand/v2"
 	"slices"
 
+	"spinpop/compare/stats"
 	"spinpop/model"
 )
 
@@ -24,8 +25,7 @@ type AgeBootstrap struct {
 	// refit failed.
 	Ages []float64
 	// Median and the central 68 % and 95 % of the refits that succeeded
-	// (Hyndman & Fan 1996 type 7, R's default: linear between order
-	// statistics at h = (n−1)p) [memory].
+	// (stats.QuantileSorted, the project's one quantile rule).
 	Median     float64
 	Lo68, Hi68 float64
 	Lo95, Hi95 float64
@@ -96,23 +96,7 @@ func ageBootstrap(ctx context.Context, like *Likelihood, burst HistoryModel, f1 
 	}
 	s := slices.DeleteFunc(slices.Clone(ages), math.IsNaN)
 	slices.Sort(s)
-	q := func(p float64) float64 { return quantile7(s, p) }
+	q := func(p float64) float64 { return stats.QuantileSorted(s, p) }
 	return AgeBootstrap{Ages: ages, Truth: f1.Theta[age], Median: q(0.5),
 		Lo68: q(0.158655), Hi68: q(0.841345), Lo95: q(0.025), Hi95: q(0.975)}, nil
-}
-
-// quantile7 is the p-quantile of sorted by Hyndman & Fan's (1996) type 7:
-// h = (n−1)p, linear between the order statistics on either side of h;
-// NaN when sorted is empty.
-func quantile7(sorted []float64, p float64) float64 {
-	n := len(sorted)
-	if n == 0 {
-		return math.NaN()
-	}
-	h := float64(n-1) * p
-	lo := int(math.Floor(h))
-	if lo >= n-1 {
-		return sorted[n-1]
-	}
-	return sorted[lo] + (h-float64(lo))*(sorted[lo+1]-sorted[lo])
 }

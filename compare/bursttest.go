@@ -18,7 +18,7 @@ import (
 
 // TestOptions control BurstTest.
 type TestOptions struct {
-	Replicates int    // parametric-bootstrap replicates B (0: 1000)
+	Replicates int    // parametric-bootstrap replicates B (0: DefaultReplicates)
 	Seed       uint64 // replicate i draws from a stream of (Seed, i)
 	Workers    int    // goroutines (0: GOMAXPROCS); results do not depend on it
 	// Progress, if not nil, is called on the calling goroutine with 0 when
@@ -143,6 +143,10 @@ type BurstResult struct {
 	Verdict        string
 }
 
+// DefaultReplicates is the burst test's number of bootstrap replicates
+// when TestOptions.Replicates is 0.
+const DefaultReplicates = 1000
+
 // Verdict thresholds on the bootstrap p-value. Strength language follows
 // the common particle-physics practice of quoting one-sided normal
 // equivalents: p ≤ 0.00135 is "3σ".
@@ -172,7 +176,7 @@ const (
 // Workers. Cancelling ctx returns ctx.Err() promptly and no result.
 func BurstTest(ctx context.Context, like *Likelihood, smooth, burst HistoryModel, opts TestOptions) (*BurstResult, error) {
 	if opts.Replicates <= 0 {
-		opts.Replicates = 1000
+		opts.Replicates = DefaultReplicates
 	}
 	if opts.FitStarts <= 0 {
 		opts.FitStarts = 4
@@ -237,9 +241,7 @@ func BurstTest(ctx context.Context, like *Likelihood, smooth, burst HistoryModel
 				return nil, fmt.Errorf("compare: smooth fit: %w", err)
 			}
 			if g0.LogL > f0.LogL {
-				g0.OtherMaxima = append(append(g0.OtherMaxima, f0.OtherMaxima...), asLocalMaximum(f0))
-				sortMaxima(g0.OtherMaxima)
-				f0 = g0
+				f0 = supersede(g0, f0)
 			}
 			if err := like.UseFit(f1); err != nil {
 				return nil, err

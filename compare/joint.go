@@ -133,7 +133,7 @@ func FitJoint(ctx context.Context, like *Likelihood, m HistoryModel, nu *Nuisanc
 	best.morph = mo
 	best.Evaluations = evals
 	for _, o := range others {
-		best.OtherMaxima = append(best.OtherMaxima, LocalMaximum{LogL: o.LogL, Theta: o.Theta, Nuisance: o.Nuisance, RoundLimit: o.RoundLimit, LastGain: o.LastGain})
+		best.OtherMaxima = append(best.OtherMaxima, asLocalMaximum(o))
 	}
 	return best, nil
 }

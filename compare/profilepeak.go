@@ -56,9 +56,7 @@ func confirmProfilePeak(ctx context.Context, like *Likelihood, m HistoryModel, n
 			rejected = append(rejected, peak.Value)
 			break
 		}
-		g.OtherMaxima = append(append(g.OtherMaxima, f.OtherMaxima...), asLocalMaximum(f))
-		sortMaxima(g.OtherMaxima)
-		f = g
+		f = supersede(g, f)
 	}
 	if err := like.UseFit(f); err != nil {
 		return FitResult{}, nil, err
@@ -71,8 +69,11 @@ func asLocalMaximum(f FitResult) LocalMaximum {
 	return LocalMaximum{LogL: f.LogL, Theta: f.Theta, Nuisance: f.Nuisance, RoundLimit: f.RoundLimit, LastGain: f.LastGain}
 }
 
-// sortMaxima puts other maxima best first, as FitResult.OtherMaxima
-// promises.
-func sortMaxima(ms []LocalMaximum) {
-	slices.SortStableFunc(ms, func(a, b LocalMaximum) int { return cmp.Compare(b.LogL, a.LogL) })
+// supersede returns better, a fit that replaces old, with old and old's
+// other maxima among its own, best first (as FitResult.OtherMaxima
+// promises).
+func supersede(better, old FitResult) FitResult {
+	better.OtherMaxima = append(append(slices.Clone(better.OtherMaxima), old.OtherMaxima...), asLocalMaximum(old))
+	slices.SortStableFunc(better.OtherMaxima, func(a, b LocalMaximum) int { return cmp.Compare(b.LogL, a.LogL) })
+	return better
 }

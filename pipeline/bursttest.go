@@ -76,7 +76,7 @@ func (c *Comparison) BurstTest(ctx context.Context, replicates int, progress fun
 // sixth of the test's).
 func AgeReplicates(replicates int) int {
 	if replicates <= 0 {
-		replicates = 1000 // compare.BurstTest's default
+		replicates = compare.DefaultReplicates
 	}
 	return max(20, replicates/4)
 }
