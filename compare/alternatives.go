@@ -36,6 +36,9 @@ type AltOptions struct {
 	Progress        func(done, total int)
 	NoEvidence      bool
 	MaxRounds       int // bounds the expansions of each joint fit to the data (0: MaxRounds)
+	// Stage, if not nil, is told what the fits to the data are doing
+	// (each message prefixed with the alternative's name).
+	Stage func(msg string)
 }
 
 // AltFit is one alternative fitted to the data.
@@ -127,14 +130,16 @@ func CompareAlternatives(ctx context.Context, alts []Alternative, opts AltOption
 	res := &AltResult{N: int(math.Round(alts[0].Like.N())), Replicates: opts.Replicates}
 	regs := misfitRegions(alts[0].Like.Space())
 	data := make([]devianceRecord, len(alts))
+	fits, err := fitAlternatives(ctx, alts, opts)
+	if err != nil {
+		return nil, err
+	}
 	for h, a := range alts {
-		f, err := FitJoint(ctx, a.Like, a.History, a.Nuisance, FitOptions{Starts: opts.FitStarts, Seed: opts.Seed, MaxRounds: opts.MaxRounds, Workers: opts.Workers})
-		if err != nil {
-			return nil, fmt.Errorf("compare: fit of %q: %w", a.Name, err)
-		}
+		f := fits[h]
 		k := a.History.Dim() + a.Nuisance.Dim() + a.Like.NumScales()
 		af := AltFit{Name: a.Name, Fit: f, K: k, LogL: f.LogL, AIC: stats.AIC(f.LogL, k), BIC: stats.BIC(f.LogL, k, res.N), LogEvidence: math.NaN(),
 			Strains: Strains(f, a.Nuisance), GaussianPriors: GaussianPriors(a.Nuisance)}
+		var err error
 		if data[h], err = fitDeviance(a.Like, f, regs); err != nil {
 			return nil, err
 		}

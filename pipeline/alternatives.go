@@ -59,7 +59,7 @@ func TestAlternatives(ctx context.Context, comps []*Comparison, opts Alternative
 		out.Alternatives = append(out.Alternatives, compare.Alternative{Name: name, Like: c.Likelihood, History: hm, Nuisance: c.Nuisance})
 	}
 	res, err := compare.CompareAlternatives(ctx, out.Alternatives, compare.AltOptions{Replicates: opts.Replicates,
-		Seed: comps[0].Scenario.Run.Seed, Workers: comps[0].Workers, Progress: opts.Progress, MaxRounds: comps[0].MaxRounds})
+		Seed: comps[0].Scenario.Run.Seed, Workers: comps[0].Workers, Progress: opts.Progress, MaxRounds: comps[0].MaxRounds, Stage: comps[0].Stage})
 	if err != nil {
 		if ctx.Err() != nil {
 			return nil, fmt.Errorf("interrupted; no comparison output was written")
