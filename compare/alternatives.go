@@ -37,7 +37,7 @@ type AltOptions struct {
 	NoEvidence      bool
 	MaxRounds       int // bounds the expansions of each joint fit to the data (0: MaxRounds)
 	// Stage, if not nil, is told what the fits to the data are doing
-	// (each message prefixed with the alternative's name).
+	// (each message names the alternative).
 	Stage func(msg string)
 }
 

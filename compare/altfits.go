@@ -32,7 +32,7 @@ func fitAlternatives(ctx context.Context, alts []Alternative, opts AltOptions) (
 		if opts.Stage == nil {
 			return nil
 		}
-		return func(msg string) { opts.Stage(name + ": " + msg) }
+		return func(msg string) { opts.Stage(fmt.Sprintf("explanation %q, %s", name, msg)) }
 	}
 	fitOpts := func(a Alternative) FitOptions {
 		return FitOptions{Starts: opts.FitStarts, Seed: opts.Seed, MaxRounds: opts.MaxRounds, Workers: opts.Workers, Stage: stage(a.Name)}
@@ -64,7 +64,7 @@ func fitAlternatives(ctx context.Context, alts []Alternative, opts AltOptions) (
 		o := fitOpts(a)
 		o.Starts, o.Init, o.NuisanceStart = 1, sharedStarts(b.History, a.History, fits[best].Theta), fits[best].Nuisance
 		if o.Stage != nil {
-			o.Stage = stage(a.Name + " (from " + b.Name + "'s nuisance values)")
+			o.Stage = func(msg string) { opts.Stage(fmt.Sprintf("explanation %q (from %q's nuisance values), %s", a.Name, b.Name, msg)) }
 		}
 		g, err := FitJoint(ctx, a.Like, a.History, a.Nuisance, o)
 		if err != nil {

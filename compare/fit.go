@@ -616,3 +616,16 @@ func WithCalibration(iv Interval, sigmaLn float64) Interval {
 	out.Lo95, out.Hi95 = widen(iv.Lo95, z95, false), widen(iv.Hi95, z95, true)
 	return out
 }
+
+// stillRisingGain is the gain in ln L of a search's last round above
+// which a fit stopped at its round limit is called unfinished: half a
+// unit, a quarter of the 1.92 that bounds a 95 % interval in one
+// parameter. A last round that gained less moved the answer by less than
+// its own error.
+const stillRisingGain = 0.5
+
+// StillRising reports a fit that stopped at its round limit while ln L was
+// still rising by more than stillRisingGain a round: its answer may not be
+// the maximum. A fit stopped at the limit by a last round gaining less is
+// as good as finished, and is not called unfinished.
+func (f FitResult) StillRising() bool { return f.RoundLimit && f.LastGain > stillRisingGain }

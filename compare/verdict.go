@@ -108,18 +108,16 @@ func verdict(r *BurstResult) (strength, reason, calibration, text string) {
 }
 
 // unconvergedCaution is the verdict's caution when a fit stopped at its
-// round limit while ln L was still rising by more than half a unit a
-// round ("" otherwise): an unfinished smooth fit inflates the likelihood
-// ratio, an unfinished burst fit leaves the age where the search
-// stopped. Half a unit is a quarter of the 1.92 that bounds a 95 %
-// interval in one parameter.
+// round limit while ln L was still rising (FitResult.StillRising; ""
+// otherwise): an unfinished smooth fit inflates the likelihood ratio, an
+// unfinished burst fit leaves the age where the search stopped.
 func unconvergedCaution(r *BurstResult) string {
 	var parts []string
 	for _, f := range []struct {
 		name string
 		fit  FitResult
 	}{{"smooth-history", r.Smooth}, {"with-burst", r.Burst}} {
-		if f.fit.RoundLimit && f.fit.LastGain > 0.5 {
+		if f.fit.StillRising() {
 			parts = append(parts, fmt.Sprintf("the %s fit stopped at its limit of %d expansions with ln L still rising by %.1f a round", f.name, f.fit.Rounds, f.fit.LastGain))
 		}
 	}

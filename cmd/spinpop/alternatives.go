@@ -126,7 +126,7 @@ func runTestAlternatives(args []string, stdout, stderr io.Writer) error {
 	var fitNames []string
 	var fitResults []compare.FitResult
 	for _, f := range res.Fits {
-		fitNames, fitResults = append(fitNames, f.Name), append(fitResults, f.Fit)
+		fitNames, fitResults = append(fitNames, fmt.Sprintf("fit of %q", f.Name)), append(fitResults, f.Fit)
 	}
 	warnRoundLimits(w, fitNames, fitResults)
 	var strainWarnings []string

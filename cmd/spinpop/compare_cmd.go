@@ -106,7 +106,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	if s := compare.StrainWarning("the fit", strains, gaussian); s != "" {
 		fmt.Fprintf(w, "warning: %s\n\n", s)
 	}
-	warnRoundLimits(w, []string{"history"}, []compare.FitResult{sc.Fit})
+	warnRoundLimits(w, []string{"history fit"}, []compare.FitResult{sc.Fit})
 	printDataSummary(w, c.DataSummary())
 	fmt.Fprintf(w, "\nhistory %s:", sc.Label)
 	for i, n := range sc.Names {

@@ -68,7 +68,7 @@ func runHeights(args []string, stdout, stderr io.Writer) error {
 		return err
 	}
 	var text strings.Builder
-	warnRoundLimits(&text, []string{"smooth-history", "with-burst"}, fits[:])
+	warnRoundLimits(&text, []string{"smooth-history fit", "with-burst fit"}, fits[:])
 	printDataSummary(&text, c.DataSummary())
 	printHeightTable(&text, h)
 	page := newReport("heights", "young fraction against height above the plane", c.Resolved, strings.Join(c.Resolved.Files, " ← "))

@@ -221,7 +221,7 @@ func printBurstSummary(w io.Writer, r *pipeline.BurstOutcome) {
 		fmt.Fprintf(w, "\nwarning: the models do not describe this catalog (deviance %.0f where counting noise gives %.0f ± %.0f); read the verdict at the end first\n",
 			t.AdequacyBurst.Deviance, t.AdequacyBurst.ReplicateMean, t.AdequacyBurst.ReplicateSD)
 	}
-	warnRoundLimits(w, []string{"smooth-history", "with-burst"}, []compare.FitResult{t.Smooth, t.Burst})
+	warnRoundLimits(w, []string{"smooth-history fit", "with-burst fit"}, []compare.FitResult{t.Smooth, t.Burst})
 	for _, f := range []struct {
 		name    string
 		strains []compare.Strain
@@ -290,8 +290,8 @@ func printBurstSummary(w io.Writer, r *pipeline.BurstOutcome) {
 // while ln L was still rising: their answers may not be maxima.
 func warnRoundLimits(w io.Writer, names []string, fits []compare.FitResult) {
 	for i, f := range fits {
-		if f.RoundLimit {
-			fmt.Fprintf(w, "warning: the %s fit stopped at its limit of %d expansions while ln L was still rising (by %.2f in its last): it may not be the maximum, and what follows is reported where the search stopped (--max-rounds lets it run longer)\n", names[i], f.Rounds, f.LastGain)
+		if f.StillRising() {
+			fmt.Fprintf(w, "warning: the %s stopped at its limit of %d expansions while ln L was still rising (by %.2f in its last): it may not be the maximum, and what follows is reported where the search stopped (--max-rounds lets it run longer)\n", names[i], f.Rounds, f.LastGain)
 		}
 	}
 }

@@ -36,6 +36,12 @@ func TestBurstSummaryWarnsOfRoundLimit(t *testing.T) {
 
 	out.Test.Burst.RoundLimit = false
 	assert.NotContains(t, summaryText(out), "stopped at its limit")
+
+	// At the limit with a last round that gained less than half a unit
+	// (less than the answer's own error): as good as finished, no
+	// "still rising (by 0.00)".
+	out.Test.Burst.RoundLimit, out.Test.Burst.LastGain = true, 0.004
+	assert.NotContains(t, summaryText(out), "stopped at its limit")
 }
 
 // A second maximum the data cannot tell from the best, with the burst
