@@ -64,7 +64,9 @@ func fitAlternatives(ctx context.Context, alts []Alternative, opts AltOptions) (
 		o := fitOpts(a)
 		o.Starts, o.Init, o.NuisanceStart = 1, sharedStarts(b.History, a.History, fits[best].Theta), fits[best].Nuisance
 		if o.Stage != nil {
-			o.Stage = func(msg string) { opts.Stage(fmt.Sprintf("explanation %q (from %q's nuisance values), %s", a.Name, b.Name, msg)) }
+			o.Stage = func(msg string) {
+				opts.Stage(fmt.Sprintf("explanation %q (from %q's nuisance values), %s", a.Name, b.Name, msg))
+			}
 		}
 		g, err := FitJoint(ctx, a.Like, a.History, a.Nuisance, o)
 		if err != nil {
