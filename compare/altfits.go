@@ -19,7 +19,8 @@ import (
 //     burst test checks its burst fit (confirmProfilePeak): on the
 //     independent model's catalogs that profile rose 7–39 in ln L above
 //     the joint fit on every catalog;
-//  3. each alternative that shares its nuisance parameters with the best
+//  3. each alternative that shares its nuisance parameters (names and
+//     ranges: each alternative's come from its own scenario) with the best
 //     fitted one searched again from the best one's nuisance values, its
 //     history from the parameters the two share; the better answer kept.
 //     A ratio between a fit searched twice and a fit searched once could
@@ -58,7 +59,7 @@ func fitAlternatives(ctx context.Context, alts []Alternative, opts AltOptions) (
 	}
 	for h, a := range alts {
 		b := alts[best]
-		if h == best || a.Nuisance.Dim() == 0 || !slices.Equal(a.Nuisance.Names(), b.Nuisance.Names()) {
+		if h == best || a.Nuisance.Dim() == 0 || !sameRanges(a.Nuisance, b.Nuisance) {
 			continue
 		}
 		o := fitOpts(a)
@@ -72,7 +73,7 @@ func fitAlternatives(ctx context.Context, alts []Alternative, opts AltOptions) (
 		if err != nil {
 			return nil, fmt.Errorf("compare: fit of %q: %w", a.Name, err)
 		}
-		if g.LogL > fits[h].LogL {
+		if g.LogL > fits[h].LogL+1e-9 { // as searchFrom accepts a better centre
 			fits[h] = supersede(g, fits[h])
 		}
 		if err := a.Like.UseFit(fits[h]); err != nil {
@@ -98,4 +99,19 @@ func distinguishingAges(alts []Alternative, h int) []string {
 		}
 	}
 	return out
+}
+
+// sameRanges reports nuisance parameters with the same names and ranges,
+// in the same order: a start taken from one lies inside the other's box.
+func sameRanges(a, b *Nuisance) bool {
+	if a.Dim() != b.Dim() {
+		return false
+	}
+	for j := range a.Params {
+		p, q := a.Params[j], b.Params[j]
+		if p.Name != q.Name || p.Min != q.Min || p.Max != q.Max {
+			return false
+		}
+	}
+	return true
 }

@@ -2,6 +2,7 @@ package compare
 
 import (
 	"context"
+	"slices"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -159,4 +160,17 @@ func TestAlternativesSearchedAsThoroughlyAsTheBurstTest(t *testing.T) {
 	assert.NotEmpty(t, f0.OtherMaxima, "the first search's answer is kept")
 	require.Len(t, res.Pairs, 1)
 	assert.InDelta(t, 2*(f1.LogL-f0.LogL), res.Pairs[0].LR, 1e-9)
+}
+
+// A second search starts from another alternative's nuisance values only
+// when they lie in this one's box: the same names and ranges, in order.
+func TestSameRanges(t *testing.T) {
+	a := &Nuisance{Params: []NuisanceParam{{Name: "spin.a", Min: 0.6, Max: 0.95}, {Name: "survey.color_offset_mag", Min: -0.05, Max: 0.05}}}
+	b := &Nuisance{Params: slices.Clone(a.Params)}
+	assert.True(t, sameRanges(a, b))
+	b.Params[1].Max = 0.1
+	assert.False(t, sameRanges(a, b), "same names, another range")
+	b.Params = []NuisanceParam{a.Params[1], a.Params[0]}
+	assert.False(t, sameRanges(a, b), "another order")
+	assert.False(t, sameRanges(a, &Nuisance{Params: a.Params[:1]}))
 }
