@@ -63,18 +63,14 @@ func fitAlternatives(ctx context.Context, alts []Alternative, opts AltOptions) (
 			continue
 		}
 		o := fitOpts(a)
-		o.Starts, o.Init, o.NuisanceStart = 1, sharedStarts(b.History, a.History, fits[best].Theta), fits[best].Nuisance
 		if o.Stage != nil {
 			o.Stage = func(msg string) {
 				opts.Stage(fmt.Sprintf("explanation %q (from %q's nuisance values), %s", a.Name, b.Name, msg))
 			}
 		}
-		g, err := FitJoint(ctx, a.Like, a.History, a.Nuisance, o)
-		if err != nil {
+		var err error
+		if fits[h], err = searchAgain(ctx, a.Like, a.History, a.Nuisance, fits[h], b.History, fits[best], o); err != nil {
 			return nil, fmt.Errorf("compare: fit of %q: %w", a.Name, err)
-		}
-		if g.LogL > fits[h].LogL+1e-9 { // as searchFrom accepts a better centre
-			fits[h] = supersede(g, fits[h])
 		}
 		if err := a.Like.UseFit(fits[h]); err != nil {
 			return nil, err

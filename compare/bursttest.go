@@ -235,13 +235,9 @@ func BurstTest(ctx context.Context, like *Likelihood, smooth, burst HistoryModel
 			// smooth one gets a second search too, from the nuisance values
 			// found there, so that the ratio does not gain from a search
 			// only one hypothesis had.
-			g0, err := FitJoint(ctx, like, smooth, nu, FitOptions{Starts: 1, Seed: opts.Seed, MaxRounds: opts.MaxRounds, Workers: opts.Workers,
-				Init: sharedStarts(burst, smooth, f1.Theta), NuisanceStart: f1.Nuisance, Stage: stage("smooth history (from the with-burst fit's nuisance values), ")})
-			if err != nil {
+			if f0, err = searchAgain(ctx, like, smooth, nu, f0, burst, f1, FitOptions{Seed: opts.Seed, MaxRounds: opts.MaxRounds, Workers: opts.Workers,
+				Stage: stage("smooth history (from the with-burst fit's nuisance values), ")}); err != nil {
 				return nil, fmt.Errorf("compare: smooth fit: %w", err)
-			}
-			if g0.LogL > f0.LogL {
-				f0 = supersede(g0, f0)
 			}
 			if err := like.UseFit(f1); err != nil {
 				return nil, err

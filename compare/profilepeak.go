@@ -77,3 +77,21 @@ func supersede(better, old FitResult) FitResult {
 	slices.SortStableFunc(better.OtherMaxima, func(a, b LocalMaximum) int { return cmp.Compare(b.LogL, a.LogL) })
 	return better
 }
+
+// searchAgain searches m once more, from another fit's nuisance values
+// (other, of model from; m's history from the parameters the two share),
+// and returns the better of f and that answer, the new one superseding f.
+// A likelihood ratio between a fit searched twice and one searched once
+// can favour the one with the extra search; the burst test and the
+// comparison of alternatives give the other side this search.
+func searchAgain(ctx context.Context, like *Likelihood, m HistoryModel, nu *Nuisance, f FitResult, from HistoryModel, other FitResult, opts FitOptions) (FitResult, error) {
+	opts.Starts, opts.Init, opts.NuisanceStart = 1, sharedStarts(from, m, other.Theta), other.Nuisance
+	g, err := FitJoint(ctx, like, m, nu, opts)
+	if err != nil {
+		return FitResult{}, err
+	}
+	if g.LogL > f.LogL+1e-9 { // as searchFrom accepts a better centre
+		return supersede(g, f), nil
+	}
+	return f, nil
+}
