@@ -250,7 +250,10 @@ func profilePanels(param string, whole, zoom []compare.ProfilePoint, prof, cal c
 		zt := title
 		switch {
 		case nuisanceHeld:
-			zt = fmt.Sprintf("Best %s; 95 %% refitting the nuisance %s–%s", num(prof.Best), num(prof.Lo95), num(prof.Hi95))
+			// Short: the zoom is narrow beside its legend, and a longer
+			// title ran off the figure's left edge. The legend says how the
+			// 95 % span was made (nuisance refitted).
+			zt = fmt.Sprintf("Zoom: best %s, 95 %% %s–%s", num(prof.Best), num(prof.Lo95), num(prof.Hi95))
 		case calibrated:
 			zt = fmt.Sprintf("The profile alone: %s (95 %% %s–%s)", num(prof.Best), num(prof.Lo95), num(prof.Hi95))
 		}

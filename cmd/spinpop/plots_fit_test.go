@@ -63,7 +63,7 @@ func TestProfilePanelsNuisanceHeld(t *testing.T) {
 	g, err := profilePanels("history.burst.age_gyr", pts(0.1, 3), pts(zlo, zhi), prof, prof, 1, 0.1, 3, true, refits)
 	require.NoError(t, err)
 	zoom := g[0][0].Plot
-	assert.Contains(t, zoom.Title.Text, "refitting the nuisance 0.73–0.77")
+	assert.Contains(t, zoom.Title.Text, "95 % 0.73–0.77")
 	in, n, err := addRug(figure.New("", "", ""), refits, zlo, zhi, 0.1)
 	require.NoError(t, err)
 	assert.Equal(t, 3, in, "the refits inside the zoom")
