@@ -80,7 +80,9 @@ func fitAlternatives(ctx context.Context, alts []Alternative, opts AltOptions) (
 }
 
 // distinguishingAges are the free history parameters of alternative h
-// ending in "age_gyr" that some other alternative does not free.
+// ending in "age_gyr" that some other alternative does not free, in h's
+// order. The burst test takes its burst age from it too (the smooth
+// history and the burst model as two alternatives).
 func distinguishingAges(alts []Alternative, h int) []string {
 	var out []string
 	for _, name := range alts[h].History.Names() {

@@ -216,11 +216,8 @@ func BurstTest(ctx context.Context, like *Likelihood, smooth, burst HistoryModel
 		}
 	}
 	ageParam, rejected := "", []float64(nil)
-	for _, f := range burst.Free {
-		if strings.HasSuffix(f.Name, "age_gyr") && !slices.Contains(smooth.Names(), f.Name) {
-			ageParam = f.Name
-			break
-		}
+	if ages := distinguishingAges([]Alternative{{History: smooth}, {History: burst}}, 1); len(ages) > 0 {
+		ageParam = ages[0] // the burst's age: the first the smooth history does not free
 	}
 	if ageParam != "" && !opts.NoProfile {
 		// The burst age's profile, on the fit's expansion, may rise above
