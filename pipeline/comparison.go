@@ -46,16 +46,28 @@ type Comparison struct {
 	// Data stars left out because no template star reached their
 	// (color, period) cell, and how many such cells there were.
 	DroppedStars, DroppedBins int
-	// Mask marks the (color, period) cells left out below the gyrochrone
-	// of compare.mask_below_age_gyr (nil without a mask), in data and model
-	// alike; MaskedStars data stars fell there.
+	// Mask marks the (color, period) cells left out in data and model
+	// alike (nil without one): those below the gyrochrone of
+	// compare.mask_below_age_gyr, where MaskedStars data stars fell, and
+	// those of BlueMask.
 	Mask                    []bool
 	MaskedStars, MaskedBins int
+	// BlueMask marks the cells of the color columns that reddening can
+	// fill with stars bluer than the law's calibrated colors, left out
+	// with compare.mask_blue_of_law (nil otherwise); BlueStars data stars
+	// fell there.
+	BlueMask  []bool
+	BlueStars int
 	// OtherOut marks the cells another explanation of the same catalog
 	// leaves out (test-alternatives scores every explanation on the same
 	// stars); OtherStars data stars fell there. Nil outside such a test.
 	OtherOut   []bool
 	OtherStars int
+	// ColorReach says how far reddening carries stars bluer than the
+	// law's calibrated colors into the compared range (nil for a law
+	// without one); its Warning is printed when the comparison reaches
+	// into it.
+	ColorReach *LawColorReach
 
 	spec compare.DataSpec // how the catalog was read, for reading it again
 }
@@ -203,6 +215,18 @@ func SetupComparison(ctx context.Context, res *scenarios.Resolved, opts Comparis
 	}
 	if s.Compare.MaskAgeGyr > 0 {
 		c.Mask = compare.YoungMask(c.Space, c.GyrochroneAt(s.Compare.MaskAgeGyr), s.Compare.MaskMarginDex)
+	}
+	c.ColorReach = c.lawColorReach()
+	if s.Compare.MaskBlueOfLaw && c.ColorReach.Exposed() {
+		c.BlueMask = c.ColorReach.mask(c.Space)
+		if c.Mask == nil {
+			c.Mask = make([]bool, len(c.BlueMask))
+		}
+		for cell, out := range c.BlueMask {
+			c.Mask[cell] = c.Mask[cell] || out
+		}
+	}
+	if c.Mask != nil {
 		c.Templates.ZeroCells(c.Mask)
 	}
 	if margin != nil {
@@ -248,6 +272,8 @@ func (c *Comparison) readData(spec compare.DataSpec, writeRejected func(write fu
 	}
 	spec.LeaveOut = func(cell int) string {
 		switch {
+		case c.BlueMask != nil && c.BlueMask[cell]:
+			return LeftOutBlue
 		case c.Mask != nil && c.Mask[cell]:
 			maskedIn[cell]++
 			return LeftOutYoung
@@ -276,6 +302,10 @@ func (c *Comparison) readData(spec compare.DataSpec, writeRejected func(write fu
 	c.MaskedStars, c.MaskedBins = c.Observed.LeftOut[LeftOutYoung], nonZero(maskedIn)
 	c.DroppedStars, c.DroppedBins = c.Observed.LeftOut[LeftOutUnreached], nonZero(droppedIn)
 	c.OtherStars = c.Observed.LeftOut[LeftOutOther]
+	c.BlueStars = c.Observed.LeftOut[LeftOutBlue]
+	if c.ColorReach != nil {
+		c.ColorReach = c.ColorReach.withCatalog(c.Observed, c.BlueMask != nil, c.BlueStars)
+	}
 	if n := c.Observed.LeftOut[LeftOutUnreached]; c.Observed.N == 0 && n > 0 {
 		// The catalog has stars; the model put none where they are.
 		return InputError{fmt.Errorf("%s: the model's selection is too small or lies elsewhere: all %d catalog stars that pass the cuts lie in cells that none of the model's %.0f template stars in the comparison space reached (the catalog is not at fault; raise compare.template_stars, or compare the scenario's survey and cuts with the catalog's)",
@@ -297,6 +327,7 @@ const (
 	LeftOutYoung     = "below_young_gyrochrone"              // compare.mask_below_age_gyr
 	LeftOutUnreached = "cell_no_template_reached"            // no template star in its (color, period) cell, or in its (color, period, height) bin when heights are compared
 	LeftOutOther     = "cell_another_explanation_leaves_out" // test-alternatives: masked or unreached under another explanation
+	LeftOutBlue      = "color_bluer_than_law_reach"          // compare.mask_blue_of_law
 )
 
 func nonZero(n []int) int {
@@ -377,8 +408,10 @@ type DataSummary struct {
 	Dropped    int            `json:"stars_in_cells_no_template_reached"`
 	OtherOut   int            `json:"stars_in_cells_another_explanation_leaves_out,omitempty"`
 	Masked     int            `json:"stars_below_youngest_gyrochrone"`
+	BlueMasked int            `json:"stars_bluer_than_law_reach"`
 	MaskAgeGyr float64        `json:"mask_below_age_gyr"`
 	ScenarioSH string         `json:"scenario_sha256"`
+	ColorReach *LawColorReach `json:"law_color_reach,omitempty"`
 }
 
 // DataSummary describes the catalog as read.
@@ -389,6 +422,7 @@ func (c *Comparison) DataSummary() DataSummary {
 		Templates: c.TemplateFile, TplReused: c.TemplatesReused, TplStars: c.Templates.StarsDrawn, AgeBins: c.Templates.NumAgeBins(),
 		SpaceBins: c.Space.NumColorPeriod(), SetupSecs: c.SetupSeconds, ScenarioSH: c.Resolved.Hash(), Dropped: c.DroppedStars,
 		Masked: c.MaskedStars, MaskAgeGyr: c.Scenario.Compare.MaskAgeGyr, OtherOut: c.OtherStars,
+		ColorReach: c.ColorReach, BlueMasked: c.BlueStars,
 	}
 }
 

@@ -152,6 +152,7 @@ split_age_gyr = 0.0
 burst_part = "burst"
 mask_below_age_gyr = 0.0
 mask_margin_dex = 0.1
+mask_blue_of_law = false
 `
 
 // defaultLayer is a fresh copy of the bottom layer: builtinDefaults

@@ -110,7 +110,7 @@ func TestFitExample(t *testing.T) {
 
 	// The [compare] values written out in fit.toml are the defaults but for
 	// the robust comparison it asks for (per-color normalisation, the
-	// young mask): burst, which sets none, resolves to the same, free list
+	// young mask, the blue columns left out): burst, which sets none, resolves to the same, free list
 	// aside.
 	fc, bc := fit.Scenario.Compare, burst.Scenario.Compare
 	require.GreaterOrEqual(t, len(fc.Free), 10)
@@ -134,7 +134,8 @@ func TestFitExample(t *testing.T) {
 	require.Len(t, fc.Alternatives, 2, "fit.toml names the stall and burst-and-stall explanations")
 	fc.Alternatives = nil
 	assert.Equal(t, 200, fc.Bootstrap)
-	fc.Normalisation, fc.MaskAgeGyr, fc.Bootstrap = bc.Normalisation, bc.MaskAgeGyr, bc.Bootstrap
+	assert.True(t, fc.MaskBlueOfLaw, "fit.toml leaves out the colors reddening fills with stars bluer than the law")
+	fc.Normalisation, fc.MaskAgeGyr, fc.Bootstrap, fc.MaskBlueOfLaw = bc.Normalisation, bc.MaskAgeGyr, bc.Bootstrap, bc.MaskBlueOfLaw
 	assert.Equal(t, bc, fc)
 
 	// The catalog itself is generated later; until then opening it fails

@@ -360,6 +360,7 @@ type Compare struct {
 	BurstPart     string      `toml:"burst_part"`         // history part tested as the burst; default "burst"
 	MaskAgeGyr    float64     `toml:"mask_below_age_gyr"` // leave out cells below the gyrochrone of this age (stars younger than the law describes); 0 = none (default)
 	MaskMarginDex float64     `toml:"mask_margin_dex"`    // how far below that gyrochrone a cell must lie to be left out (dex); default 0.1
+	MaskBlueOfLaw bool        `toml:"mask_blue_of_law"`   // leave out the color columns reddening can fill with stars bluer than the law's calibrated colors; default false
 	Free          []FreeParam `toml:"free"`               // parameters fitted; default: see above
 	// Alternatives are other explanations of the same catalog, each this
 	// scenario with some keys changed; test-alternatives compares the

@@ -169,6 +169,12 @@ func printDataSummary(w io.Writer, d pipeline.DataSummary) {
 	if d.OtherOut > 0 {
 		fmt.Fprintf(w, "%d catalog stars lie in cells another explanation leaves out (below its young gyrochrone, or where its templates never reach); every explanation is scored without them\n", d.OtherOut)
 	}
+	if s := d.ColorReach.Note(); s != "" {
+		fmt.Fprintln(w, s)
+	}
+	if s := d.ColorReach.Warning(); s != "" {
+		fmt.Fprintf(w, "warning: %s\n", s)
+	}
 	if d.Dropped > 0 {
 		fmt.Fprintf(w, "warning: %d catalog stars lie in comparison cells that no template star reached; they are left out of the comparison (raise compare.template_stars or use coarser bins to keep them)\n", d.Dropped)
 	}

@@ -3,6 +3,7 @@ package main
 import (
 	"encoding/csv"
 	"encoding/json"
+	"fmt"
 	"os"
 	"path/filepath"
 	"strings"
@@ -18,7 +19,7 @@ import (
 // kind and two rows the catalog cuts remove appended, a height cut, the young-star mask and a comparison space
 // narrower than the cuts, so that each kind of rejection occurs.
 func TestRejectedCSVListsEveryRowLeftOut(t *testing.T) {
-	sc := fitScenario(t, "mask_below_age_gyr = 0.1\nperiod_max_d = 40.0\n[cuts]\nheight_max_pc = 500.0\n")
+	sc := fitScenario(t, "mask_below_age_gyr = 0.1\nmask_blue_of_law = true\nperiod_max_d = 40.0\n[cuts]\nheight_max_pc = 500.0\n")
 	cat := filepath.Join(filepath.Dir(sc), "catalog.csv")
 	f, err := os.OpenFile(cat, os.O_APPEND|os.O_WRONLY, 0)
 	require.NoError(t, err)
@@ -51,6 +52,7 @@ func TestRejectedCSVListsEveryRowLeftOut(t *testing.T) {
 			CutAway  map[string]int `json:"cut_away"`
 			Dropped  int            `json:"stars_in_cells_no_template_reached"`
 			Masked   int            `json:"stars_below_youngest_gyrochrone"`
+			Blue     int            `json:"stars_bluer_than_law_reach"`
 		} `json:"data"`
 	}
 	require.NoError(t, json.Unmarshal(b, &rep))
@@ -79,6 +81,7 @@ func TestRejectedCSVListsEveryRowLeftOut(t *testing.T) {
 		assert.Positive(t, d.CutAway[cut], "cut %s", cut)
 	}
 	assert.Positive(t, d.Masked, "the young-star mask")
+	assert.Positive(t, d.Blue, "the columns bluer than the law's reach (example:fit's mask_blue_of_law)")
 
 	// The counts add up to the rows listed, reason by reason.
 	want := map[string]int{}
@@ -96,9 +99,14 @@ func TestRejectedCSVListsEveryRowLeftOut(t *testing.T) {
 	if d.Dropped > 0 {
 		want["left out: cell_no_template_reached"] = d.Dropped
 	}
+	if d.Blue > 0 {
+		want["left out: color_bluer_than_law_reach"] = d.Blue
+	}
 	assert.Equal(t, want, listed)
 	assert.Equal(t, d.Rows-d.Compared, len(recs)-1)
 	assert.Equal(t, d.Rows-d.Compared, d.NotComp)
 	assert.Equal(t, 24000+len(bad), d.Rows, "the demo catalog's rows and the ones appended")
 	assert.Contains(t, stdout, "left out (each listed in rejected.csv with its reason)")
+	assert.Contains(t, stdout, fmt.Sprintf("%d catalog stars lie in color columns bluer than B−V", d.Blue))
+	assert.NotContains(t, stdout, "warning: the compared colors begin at", "left out, the blue columns need no warning")
 }

@@ -127,3 +127,16 @@ func (g GyroLaw) Validate() error {
 	}
 	return nil
 }
+
+// CalibratedColors returns the intrinsic B−V range law accepts, for the
+// laws that have one (the empirical ones; also through the intrinsic
+// scatter a scenario may add), and false for the others.
+func CalibratedColors(law Law) (minBV, maxBV float64, ok bool) {
+	if s, scattered := law.(Scattered); scattered {
+		law = s.Law
+	}
+	if g, gyro := law.(GyroLaw); gyro {
+		return g.MinBV, g.MaxBV, true
+	}
+	return 0, 0, false
+}

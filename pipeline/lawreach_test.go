@@ -1,0 +1,128 @@
+package pipeline
+
+import (
+	"os"
+	"path/filepath"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"spinpop/compare"
+	"spinpop/scenarios"
+)
+
+// reachOf builds the scenario example:base with extra TOML appended and
+// works out the law's color reach against a catalog of stars of these
+// colors.
+func reachOf(t *testing.T, extra string, colors ...float64) *LawColorReach {
+	t.Helper()
+	path := filepath.Join(t.TempDir(), "reach.toml")
+	require.NoError(t, os.WriteFile(path, []byte("extends = \"example:base\"\nname = \"reach\"\n"+extra), 0o644))
+	res, err := scenarios.Resolve(path)
+	require.NoError(t, err)
+	b, err := Build(&res.Scenario, path)
+	require.NoError(t, err)
+	obs := &compare.Observed{}
+	for _, bv := range colors {
+		obs.Stars = append(obs.Stars, compare.ObservedStar{BV: bv})
+	}
+	c := &Comparison{Resolved: res, Scenario: &res.Scenario, Built: b}
+	r := c.lawColorReach()
+	if r == nil {
+		return nil
+	}
+	return r.withCatalog(obs, false, 0)
+}
+
+// The reach is the law's bluest calibrated color plus the field's largest
+// reddening. Expected values: Barnes (2007)'s calibrated colors begin at
+// B−V = 0.45 (spin.Barnes2007; the edge is from memory); E(B−V) = A_V / R_V with R_V = 3.1, the
+// diffuse-ISM value (Cardelli, Clayton & Mathis 1989; common practice);
+// in a dust layer 50 kpc thick, A_V = a·d to 0.7 % over the field's
+// 1.5 kpc (a·d (1 − e^−x)/x, x = |z|/h ≤ 0.013).
+func TestLawColorReach(t *testing.T) {
+	const thick = "[dust]\nmodel = \"exponential\"\nscale_height_pc = 50000.0\nmidplane_av_per_kpc = 0.25\n"
+	// example:base's field: a cone of radius 8° about b = −34° out to
+	// 1500 pc, so its sight line nearest the plane is at b = −26°; in
+	// uniform dust the latitude does not matter.
+	ebv := 0.25 * 1.5 / 3.1
+
+	r := reachOf(t, thick, 0.46, 0.50, 0.56, 0.60, 1.2)
+	require.NotNil(t, r)
+	assert.InDelta(t, ebv, r.MaxEBV, 0.007*ebv)
+	assert.InDelta(t, 0.45+ebv, r.ReachBV, 0.001)
+	assert.True(t, r.Exposed(), "cuts.b_v_min = 0.45 lies below the reach")
+	assert.Equal(t, 3, r.StarsBelow, "the stars bluer than %.3f", r.ReachBV)
+	assert.Contains(t, r.Warning(), "or cuts.b_v_min = 0.58")
+
+	r = reachOf(t, thick+"[cuts]\nb_v_min = 0.58\n", 0.60)
+	assert.False(t, r.Exposed(), "colors from 0.58 up lie beyond the reach")
+	assert.Empty(t, r.Warning())
+
+	// A zero-point offset of the catalog's colors moves the reach with it.
+	r = reachOf(t, thick+"[survey]\ncolor_offset_mag = 0.05\n")
+	assert.InDelta(t, 0.50+ebv, r.ReachBV, 0.001)
+
+	// Without dust the reach is the law's own edge, and a cut there is safe.
+	r = reachOf(t, "[dust]\nmodel = \"none\"\n", 0.46)
+	assert.Equal(t, 0.0, r.MaxEBV)
+	assert.Equal(t, 0.45, r.ReachBV)
+	assert.False(t, r.Exposed())
+
+	r = reachOf(t, "[dust]\nmodel = \"none\"\n[spin]\nlaw = \"mamajek2008\"\n", 0.46)
+	// Their published c = 0.495, and spinpop keeps a law's colors 0.05 mag
+	// clear of c, where the relation runs to zero period (model/spin).
+	assert.InDelta(t, 0.545, r.ReachBV, 1e-12)
+	assert.True(t, r.Exposed(), "Mamajek & Hillenbrand (2008) begin redder than the cut at 0.45")
+	assert.Equal(t, 1, r.StarsBelow)
+
+	// A thin layer reddens most along the sight line nearest the plane:
+	// b = −26° gives more dust than b = −42° at the same distance.
+	thin := "[dust]\nmodel = \"exponential\"\nscale_height_pc = 110.0\nmidplane_av_per_kpc = 0.8\n"
+	r = reachOf(t, thin)
+	nearPlane := reachOf(t, thin+"[survey.field]\nb_deg = -26.0\nradius_deg = 0.01\n")
+	farFromPlane := reachOf(t, thin+"[survey.field]\nb_deg = -42.0\nradius_deg = 0.01\n")
+	assert.InDelta(t, nearPlane.MaxEBV, r.MaxEBV, 1e-4)
+	assert.Greater(t, nearPlane.MaxEBV, farFromPlane.MaxEBV)
+
+	// The torque law integrates a spin-down for any star: no color edge.
+	assert.Nil(t, reachOf(t, "[spin]\nlaw = \"torque\"\n"))
+}
+
+func TestFieldSightLines(t *testing.T) {
+	lat := func(ls []sightLine) []float64 {
+		var out []float64
+		for _, l := range ls {
+			out = append(out, l.bDeg)
+		}
+		return out
+	}
+	assert.Equal(t, []float64{-42, -26}, lat(fieldSightLines(scenarios.Field{Kind: "cone", BDeg: -34, RadiusDeg: 8, DistanceMaxPc: 1500})))
+	assert.Equal(t, []float64{-5, 15, 0}, lat(fieldSightLines(scenarios.Field{Kind: "cone", BDeg: 5, RadiusDeg: 10, DistanceMaxPc: 1500})), "a cone across the plane")
+	assert.Equal(t, []float64{-90, 90, 0}, lat(fieldSightLines(scenarios.Field{Kind: "sphere", DistanceMaxPc: 200})))
+	ls := fieldSightLines(scenarios.Field{Kind: "cones", Cones: []scenarios.Cone{{BDeg: 60, RadiusDeg: 5, DistanceMaxPc: 300}, {BDeg: -20, RadiusDeg: 5, DistanceMaxPc: 900}}})
+	assert.Equal(t, []float64{55, 65, -25, -15}, lat(ls))
+	assert.Equal(t, 900.0, ls[3].maxDistPc, "each cone keeps its own distance limit")
+}
+
+// With compare.mask_blue_of_law the columns that begin below the reach
+// are left out whole; the note replaces the warning.
+func TestLawColorReachMask(t *testing.T) {
+	sp, err := compare.NewSpace(0.45, 0.7, 5, 1, 100, 2, nil) // columns from 0.45, 0.50, 0.55, 0.60, 0.65
+	require.NoError(t, err)
+	r := &LawColorReach{Law: "barnes2007", LawMinBV: 0.45, MaxEBV: 0.121, ReachBV: 0.571, CutMinBV: 0.45}
+	want := []bool{true, true, true, true, true, true, false, false, false, false}
+	assert.Equal(t, want, r.mask(sp), "0.45, 0.50 and 0.55 begin below 0.571; 0.60 and 0.65 do not")
+
+	obs := &compare.Observed{Stars: []compare.ObservedStar{{BV: 0.5}, {BV: 0.56}, {BV: 0.58}, {BV: 0.9}}}
+	open := r.withCatalog(obs, false, 0)
+	assert.Equal(t, 2, open.StarsBelow, "stars bluer than the reach")
+	assert.NotEmpty(t, open.Warning())
+	assert.Empty(t, open.Note())
+	masked := r.withCatalog(obs, true, 3)
+	assert.Equal(t, 3, masked.StarsBelow, "stars in the columns left out")
+	assert.Empty(t, masked.Warning())
+	assert.Contains(t, masked.Note(), "3 catalog stars lie in color columns bluer than B−V = 0.571")
+	assert.Equal(t, 0, r.StarsBelow, "withCatalog leaves the comparison's own reach alone")
+}
