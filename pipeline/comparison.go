@@ -219,6 +219,10 @@ func SetupComparison(ctx context.Context, res *scenarios.Resolved, opts Comparis
 	c.ColorReach = c.lawColorReach()
 	if s.Compare.MaskBlueOfLaw && c.ColorReach.Exposed() {
 		c.BlueMask = c.ColorReach.mask(c.Space)
+		if top := c.Space.ColorEdges[c.Space.NumColor()]; c.ColorReach.ComparedFromBV >= top {
+			return nil, InputError{fmt.Errorf("%s: compare.mask_blue_of_law leaves out every color column: reddening carries stars bluer than law %q's calibrated colors up to B−V = %.3f, beyond cuts.b_v_max = %g (narrow the field's distance, or set mask_blue_of_law = false)",
+				arg, c.ColorReach.Law, c.ColorReach.ReachBV, top)}
+		}
 		if c.Mask == nil {
 			c.Mask = make([]bool, len(c.BlueMask))
 		}

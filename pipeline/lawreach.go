@@ -40,6 +40,10 @@ type LawColorReach struct {
 	// they are not.
 	Masked     bool `json:"masked"`
 	StarsBelow int  `json:"catalog_stars_below_reach"`
+	// ComparedFromBV is where the compared colors begin when the columns
+	// below the reach are left out: the lower edge of the first column
+	// kept.
+	ComparedFromBV float64 `json:"compared_from_b_v_mag,omitempty"`
 }
 
 // Exposed reports whether the compared colors begin below the reach, so
@@ -62,20 +66,23 @@ func (r *LawColorReach) Note() string {
 	if !r.Exposed() || !r.Masked {
 		return ""
 	}
-	return fmt.Sprintf("%d catalog stars lie in color columns bluer than B−V = %.3f, where reddening (up to E(B−V) = %.3f) brings stars bluer than law %q's calibrated colors (%.2f), which the model gives no period (compare.mask_blue_of_law): those columns are left out, in data and model",
-		r.StarsBelow, r.ReachBV, r.MaxEBV, r.Law, r.LawMinBV)
+	return fmt.Sprintf("%d catalog stars lie in the color columns below B−V = %.3g, which reddening (up to E(B−V) = %.3f) can fill up to %.3f with stars bluer than law %q's calibrated colors (%.2f before reddening), which the model gives no period: those columns are left out, in data and model (compare.mask_blue_of_law)",
+		r.StarsBelow, r.ComparedFromBV, r.MaxEBV, r.ReachBV, r.Law, r.LawMinBV)
 }
 
 // mask marks the cells of the color columns whose lower edge lies below
-// the reach.
+// the reach, and sets where the compared colors then begin.
 func (r *LawColorReach) mask(sp compare.Space) []bool {
 	out := make([]bool, sp.NumColorPeriod())
 	np := sp.NumLogPeriod()
-	for col := range sp.NumColor() {
-		if sp.ColorEdges[col] < r.ReachBV {
-			for q := range np {
-				out[col*np+q] = true
-			}
+	r.ComparedFromBV = sp.ColorEdges[sp.NumColor()]
+	for col := sp.NumColor() - 1; col >= 0; col-- {
+		if sp.ColorEdges[col] >= r.ReachBV {
+			r.ComparedFromBV = sp.ColorEdges[col]
+			continue
+		}
+		for q := range np {
+			out[col*np+q] = true
 		}
 	}
 	return out
@@ -95,8 +102,10 @@ func (r LawColorReach) withCatalog(obs *compare.Observed, masked bool, left int)
 	return &r
 }
 
-// lawColorReach works out the reach for a comparison; nil when the law has
-// no calibrated color range.
+// lawColorReach works out the reach for a comparison, at the scenario's
+// values (a fit that moves the color calibration or the law's c moves the
+// true reach with it; the columns left out are chosen once); nil when the
+// law has no calibrated color range.
 func (c *Comparison) lawColorReach() *LawColorReach {
 	lo, _, ok := spin.CalibratedColors(c.Built.Law)
 	if !ok {
@@ -105,42 +114,52 @@ func (c *Comparison) lawColorReach() *LawColorReach {
 	s := c.Scenario
 	maxAV := 0.0
 	if dust := c.Built.Population.Dust; dust != nil {
-		for _, sight := range fieldSightLines(s.Survey.Field) {
-			d := sight.maxDistPc
-			z := c.Built.Sun.ZPc + d*math.Sin(sight.bDeg*math.Pi/180)
-			maxAV = math.Max(maxAV, dust(d, z))
+		for _, cone := range fieldLatitudes(s.Survey.Field) {
+			maxAV = math.Max(maxAV, maxAlong(cone, func(bDeg float64) float64 {
+				d := cone.maxDistPc
+				return dust(d, c.Built.Sun.ZPc+d*math.Sin(bDeg*math.Pi/180))
+			}))
 		}
 	}
 	r := &LawColorReach{Law: s.Spin.Law, LawMinBV: lo, MaxEBV: maxAV / 3.1, CutMinBV: s.Cuts.BVMin}
-	r.ReachBV = lo + r.MaxEBV + s.Survey.ColorOffsetMag
+	// The catalog's color of a star at the law's edge reddened the most,
+	// through the survey's color calibration (zero point and scale).
+	r.ReachBV = c.Built.Population.Survey.Color.Apply(lo + r.MaxEBV)
 	return r
 }
 
-// sightLine is a latitude and the far distance limit along it.
-type sightLine struct{ bDeg, maxDistPc float64 }
+// latitudeRange is the span of latitudes of one cone of a field (the whole
+// sky for a sphere) and its far distance limit.
+type latitudeRange struct{ loDeg, hiDeg, maxDistPc float64 }
 
-// fieldSightLines returns, for each cone of a field (or the whole sky), the
-// latitudes that bound it — its edges nearest and farthest from the plane,
-// and the plane itself when it crosses it — with the cone's distance
-// limit: a plane-parallel dust layer reddens most along one of them.
-func fieldSightLines(f scenarios.Field) []sightLine {
-	cone := func(b, r, dMax float64) []sightLine {
-		lo, hi := math.Max(b-r, -90), math.Min(b+r, 90)
-		out := []sightLine{{lo, dMax}, {hi, dMax}}
-		if lo < 0 && hi > 0 {
-			out = append(out, sightLine{0, dMax})
-		}
-		return out
+// fieldLatitudes returns the latitude span of each cone of a field.
+func fieldLatitudes(f scenarios.Field) []latitudeRange {
+	cone := func(b, r, dMax float64) latitudeRange {
+		return latitudeRange{math.Max(b-r, -90), math.Min(b+r, 90), dMax}
 	}
 	switch f.Kind {
 	case "sphere":
-		return cone(0, 90, f.DistanceMaxPc)
+		return []latitudeRange{{-90, 90, f.DistanceMaxPc}}
 	case "cones":
-		var out []sightLine
+		var out []latitudeRange
 		for _, c := range f.Cones {
-			out = append(out, cone(c.BDeg, c.RadiusDeg, c.DistanceMaxPc)...)
+			out = append(out, cone(c.BDeg, c.RadiusDeg, c.DistanceMaxPc))
 		}
 		return out
 	}
-	return cone(f.BDeg, f.RadiusDeg, f.DistanceMaxPc)
+	return []latitudeRange{cone(f.BDeg, f.RadiusDeg, f.DistanceMaxPc)}
+}
+
+// maxAlong returns the largest of f over the latitudes of r, scanned every
+// 0.05° with both ends. The extinction to a fixed distance peaks not in
+// the plane but where the sight line, starting at the Sun's height, runs
+// longest near the midplane (slightly below it for a Sun above it), so
+// the ends of the span alone do not bound it.
+func maxAlong(r latitudeRange, f func(bDeg float64) float64) float64 {
+	n := int(math.Ceil((r.hiDeg-r.loDeg)/0.05)) + 1
+	best := math.Max(f(r.loDeg), f(r.hiDeg))
+	for i := 1; i < n-1; i++ {
+		best = math.Max(best, f(r.loDeg+(r.hiDeg-r.loDeg)*float64(i)/float64(n-1)))
+	}
+	return best
 }

@@ -77,8 +77,16 @@ func TestLawColorReach(t *testing.T) {
 	assert.True(t, r.Exposed(), "Mamajek & Hillenbrand (2008) begin redder than the cut at 0.45")
 	assert.Equal(t, 1, r.StarsBelow)
 
-	// A thin layer reddens most along the sight line nearest the plane:
-	// b = −26° gives more dust than b = −42° at the same distance.
+	// The color scale stretches catalog colors about B−V = 1 (README,
+	// survey.color_scale): 0.7 puts the reddened edge x = 0.45 + E at
+	// x + 0.3 (1 − x).
+	r = reachOf(t, thick+"[survey]\ncolor_scale = 0.7\n")
+	x := 0.45 + ebv
+	assert.InDelta(t, x+0.3*(1-x), r.ReachBV, 0.002)
+
+	// A thin layer reddens most along the sight lines nearest the plane:
+	// b = −26° gives more dust than b = −42° at the same distance, and the
+	// cone from −42° to −26° is bounded by its edge at −26°.
 	thin := "[dust]\nmodel = \"exponential\"\nscale_height_pc = 110.0\nmidplane_av_per_kpc = 0.8\n"
 	r = reachOf(t, thin)
 	nearPlane := reachOf(t, thin+"[survey.field]\nb_deg = -26.0\nradius_deg = 0.01\n")
@@ -86,24 +94,36 @@ func TestLawColorReach(t *testing.T) {
 	assert.InDelta(t, nearPlane.MaxEBV, r.MaxEBV, 1e-4)
 	assert.Greater(t, nearPlane.MaxEBV, farFromPlane.MaxEBV)
 
+	// The whole sky: with the Sun in the midplane the dustiest sight line
+	// runs in the plane, A_V = a·d exactly; with the Sun 20.8 pc above it
+	// (example:base), a line slightly below the plane crosses the layer's
+	// densest part obliquely and collects more than the one along b = 0,
+	// which the reach must not miss.
+	sky := thin + "[survey.field]\nkind = \"sphere\"\ndistance_max_pc = 1500.0\n"
+	r = reachOf(t, sky+"[disk]\nsun_height_pc = 0.0\n")
+	assert.InDelta(t, 0.8*1.5/3.1, r.MaxEBV, 1e-9)
+	r = reachOf(t, sky)
+	inPlane := reachOf(t, thin+"[survey.field]\nb_deg = 0.0\nradius_deg = 0.01\n")
+	assert.Greater(t, r.MaxEBV, 1.05*inPlane.MaxEBV, "the dustiest line lies below the plane, not in it")
+
 	// The torque law integrates a spin-down for any star: no color edge.
 	assert.Nil(t, reachOf(t, "[spin]\nlaw = \"torque\"\n"))
 }
 
-func TestFieldSightLines(t *testing.T) {
-	lat := func(ls []sightLine) []float64 {
-		var out []float64
-		for _, l := range ls {
-			out = append(out, l.bDeg)
-		}
-		return out
-	}
-	assert.Equal(t, []float64{-42, -26}, lat(fieldSightLines(scenarios.Field{Kind: "cone", BDeg: -34, RadiusDeg: 8, DistanceMaxPc: 1500})))
-	assert.Equal(t, []float64{-5, 15, 0}, lat(fieldSightLines(scenarios.Field{Kind: "cone", BDeg: 5, RadiusDeg: 10, DistanceMaxPc: 1500})), "a cone across the plane")
-	assert.Equal(t, []float64{-90, 90, 0}, lat(fieldSightLines(scenarios.Field{Kind: "sphere", DistanceMaxPc: 200})))
-	ls := fieldSightLines(scenarios.Field{Kind: "cones", Cones: []scenarios.Cone{{BDeg: 60, RadiusDeg: 5, DistanceMaxPc: 300}, {BDeg: -20, RadiusDeg: 5, DistanceMaxPc: 900}}})
-	assert.Equal(t, []float64{55, 65, -25, -15}, lat(ls))
-	assert.Equal(t, 900.0, ls[3].maxDistPc, "each cone keeps its own distance limit")
+func TestFieldLatitudes(t *testing.T) {
+	assert.Equal(t, []latitudeRange{{-42, -26, 1500}}, fieldLatitudes(scenarios.Field{Kind: "cone", BDeg: -34, RadiusDeg: 8, DistanceMaxPc: 1500}))
+	assert.Equal(t, []latitudeRange{{75, 90, 300}}, fieldLatitudes(scenarios.Field{Kind: "cone", BDeg: 85, RadiusDeg: 10, DistanceMaxPc: 300}), "a cone over the pole")
+	assert.Equal(t, []latitudeRange{{-90, 90, 200}}, fieldLatitudes(scenarios.Field{Kind: "sphere", DistanceMaxPc: 200}))
+	assert.Equal(t, []latitudeRange{{55, 65, 300}, {-25, -15, 900}},
+		fieldLatitudes(scenarios.Field{Kind: "cones", Cones: []scenarios.Cone{{BDeg: 60, RadiusDeg: 5, DistanceMaxPc: 300}, {BDeg: -20, RadiusDeg: 5, DistanceMaxPc: 900}}}),
+		"each cone keeps its own distance limit")
+}
+
+// maxAlong finds a maximum inside the span, not only at its ends.
+func TestMaxAlongFindsAnInteriorPeak(t *testing.T) {
+	peak := func(b float64) float64 { return -(b + 1.12) * (b + 1.12) }
+	assert.InDelta(t, 0, maxAlong(latitudeRange{-90, 90, 1}, peak), 0.03*0.03)
+	assert.Equal(t, peak(-26), maxAlong(latitudeRange{-42, -26, 1}, peak))
 }
 
 // With compare.mask_blue_of_law the columns that begin below the reach
@@ -114,6 +134,7 @@ func TestLawColorReachMask(t *testing.T) {
 	r := &LawColorReach{Law: "barnes2007", LawMinBV: 0.45, MaxEBV: 0.121, ReachBV: 0.571, CutMinBV: 0.45}
 	want := []bool{true, true, true, true, true, true, false, false, false, false}
 	assert.Equal(t, want, r.mask(sp), "0.45, 0.50 and 0.55 begin below 0.571; 0.60 and 0.65 do not")
+	assert.InDelta(t, 0.60, r.ComparedFromBV, 1e-12, "the compared colors begin at the first column kept")
 
 	obs := &compare.Observed{Stars: []compare.ObservedStar{{BV: 0.5}, {BV: 0.56}, {BV: 0.58}, {BV: 0.9}}}
 	open := r.withCatalog(obs, false, 0)
@@ -123,6 +144,6 @@ func TestLawColorReachMask(t *testing.T) {
 	masked := r.withCatalog(obs, true, 3)
 	assert.Equal(t, 3, masked.StarsBelow, "stars in the columns left out")
 	assert.Empty(t, masked.Warning())
-	assert.Contains(t, masked.Note(), "3 catalog stars lie in color columns bluer than B−V = 0.571")
+	assert.Contains(t, masked.Note(), "3 catalog stars lie in the color columns below B−V = 0.6, which reddening (up to E(B−V) = 0.121) can fill up to 0.571")
 	assert.Equal(t, 0, r.StarsBelow, "withCatalog leaves the comparison's own reach alone")
 }

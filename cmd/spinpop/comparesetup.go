@@ -167,7 +167,7 @@ func printDataSummary(w io.Writer, d pipeline.DataSummary) {
 		fmt.Fprintf(w, "%d catalog stars lie below the gyrochrone of %.3g Gyr (compare.mask_below_age_gyr): cells there hold stars younger than the model describes and are left out, in data and model\n", d.Masked, d.MaskAgeGyr)
 	}
 	if d.OtherOut > 0 {
-		fmt.Fprintf(w, "%d catalog stars lie in cells another explanation leaves out (below its young gyrochrone, or where its templates never reach); every explanation is scored without them\n", d.OtherOut)
+		fmt.Fprintf(w, "%d catalog stars lie in cells another explanation leaves out (below its young gyrochrone, in the color columns bluer than its law's reach, or where its templates never reach); every explanation is scored without them\n", d.OtherOut)
 	}
 	if s := d.ColorReach.Note(); s != "" {
 		fmt.Fprintln(w, s)

@@ -107,6 +107,6 @@ func TestRejectedCSVListsEveryRowLeftOut(t *testing.T) {
 	assert.Equal(t, d.Rows-d.Compared, d.NotComp)
 	assert.Equal(t, 24000+len(bad), d.Rows, "the demo catalog's rows and the ones appended")
 	assert.Contains(t, stdout, "left out (each listed in rejected.csv with its reason)")
-	assert.Contains(t, stdout, fmt.Sprintf("%d catalog stars lie in color columns bluer than B−V", d.Blue))
+	assert.Contains(t, stdout, fmt.Sprintf("%d catalog stars lie in the color columns below B−V", d.Blue))
 	assert.NotContains(t, stdout, "warning: the compared colors begin at", "left out, the blue columns need no warning")
 }
