@@ -188,6 +188,10 @@ const (
 	aKsPerAV = 0.114
 )
 
+// EBVPerAV is the reddening per magnitude of V extinction the model
+// applies to every star: 1/R_V, R_V = 3.1.
+const EBVPerAV = ebvPerAV
+
 // Fill makes and observes the stars of chunk c from stream r.
 //
 // It places every star of the chunk first (age bin, position, age), then

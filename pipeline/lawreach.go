@@ -5,6 +5,7 @@ import (
 	"math"
 
 	"spinpop/compare"
+	"spinpop/model"
 	"spinpop/model/spin"
 	"spinpop/scenarios"
 )
@@ -29,10 +30,11 @@ type LawColorReach struct {
 	Law      string  `json:"law"`
 	LawMinBV float64 `json:"law_min_b_v_mag"` // intrinsic: the bluest color the law gives a period
 	// MaxEBV is the largest reddening in the field: at its far distance
-	// limit, along its sight line nearest the plane.
+	// limit, along its dustiest sight line.
 	MaxEBV float64 `json:"max_e_b_v_mag"`
-	// ReachBV = LawMinBV + MaxEBV + survey.color_offset_mag: the reddest
-	// catalog color at which a star bluer than the law can appear.
+	// ReachBV is LawMinBV + MaxEBV through the survey's color calibration
+	// (zero point and scale): the reddest catalog color at which a star
+	// bluer than the law can appear.
 	ReachBV  float64 `json:"reach_b_v_mag"`
 	CutMinBV float64 `json:"cuts_b_v_min_mag"`
 	// Masked says the color columns below the reach are left out
@@ -122,7 +124,7 @@ func (c *Comparison) lawColorReach() *LawColorReach {
 			}))
 		}
 	}
-	r := &LawColorReach{Law: s.Spin.Law, LawMinBV: lo, MaxEBV: maxAV / 3.1, CutMinBV: s.Cuts.BVMin}
+	r := &LawColorReach{Law: s.Spin.Law, LawMinBV: lo, MaxEBV: maxAV * model.EBVPerAV, CutMinBV: s.Cuts.BVMin}
 	// The catalog's color of a star at the law's edge reddened the most,
 	// through the survey's color calibration (zero point and scale).
 	r.ReachBV = c.Built.Population.Survey.Color.Apply(lo + r.MaxEBV)
