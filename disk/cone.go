@@ -13,6 +13,12 @@ type Cone struct {
 	DistMinPc, DistMaxPc float64
 }
 
+// LatitudeSpans implements Field: a cone about latitude b of radius r
+// spans b − r to b + r (clipped at the poles, which it then covers).
+func (c Cone) LatitudeSpans() []LatitudeSpan {
+	return []LatitudeSpan{{math.Max(c.BDeg-c.RadiusDeg, -90), math.Min(c.BDeg+c.RadiusDeg, 90), c.DistMaxPc}}
+}
+
 // Validate reports whether the cone has a valid centre, a radius in
 // (0, 180] degrees and distances 0 ≤ DistMinPc < DistMaxPc < ∞.
 func (c Cone) Validate() error {
@@ -101,6 +107,15 @@ func (c Cone) Cells(cellDzPc float64) []Cell {
 // pointings. Cones may share directions only if their distance ranges do
 // not overlap, so no volume is counted twice.
 type ConeList []Cone
+
+// LatitudeSpans implements Field: each cone's span.
+func (cl ConeList) LatitudeSpans() []LatitudeSpan {
+	var out []LatitudeSpan
+	for _, c := range cl {
+		out = append(out, c.LatitudeSpans()...)
+	}
+	return out
+}
 
 // Validate reports whether the list is non-empty, every cone is valid and no
 // two cones overlap in both direction and distance.

@@ -17,4 +17,11 @@ type Field interface {
 	// cell's largest distance, the height z = d sin b varies by about
 	// cellDzPc across it. The cells tile the field without overlap.
 	Cells(cellDzPc float64) []Cell
+	// LatitudeSpans returns the range of Galactic latitudes each part of
+	// the field covers, with its far distance limit.
+	LatitudeSpans() []LatitudeSpan
 }
+
+// LatitudeSpan is a range of Galactic latitudes (degrees) a field covers
+// out to a distance (pc).
+type LatitudeSpan struct{ LoDeg, HiDeg, MaxDistPc float64 }

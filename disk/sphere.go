@@ -12,6 +12,9 @@ type Sphere struct {
 	DistMinPc float64
 }
 
+// LatitudeSpans implements Field: every latitude.
+func (s Sphere) LatitudeSpans() []LatitudeSpan { return []LatitudeSpan{{-90, 90, s.RadiusPc}} }
+
 // Validate reports whether 0 ≤ DistMinPc < RadiusPc < ∞.
 func (s Sphere) Validate() error {
 	if !(s.RadiusPc > 0) || math.IsInf(s.RadiusPc, 0) {

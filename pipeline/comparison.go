@@ -216,7 +216,9 @@ func SetupComparison(ctx context.Context, res *scenarios.Resolved, opts Comparis
 	if s.Compare.MaskAgeGyr > 0 {
 		c.Mask = compare.YoungMask(c.Space, c.GyrochroneAt(s.Compare.MaskAgeGyr), s.Compare.MaskMarginDex)
 	}
-	c.ColorReach = c.lawColorReach()
+	if c.ColorReach, err = c.lawColorReach(); err != nil {
+		return nil, InputError{fmt.Errorf("%s: %w", arg, err)}
+	}
 	if s.Compare.MaskBlueOfLaw && c.ColorReach.Exposed() {
 		c.BlueMask = c.ColorReach.mask(c.Space)
 		if top := c.Space.ColorEdges[c.Space.NumColor()]; c.ColorReach.ComparedFromBV >= top {

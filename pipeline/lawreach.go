@@ -4,10 +4,11 @@ import (
 	"fmt"
 	"math"
 
+	"spinpop/assemble"
 	"spinpop/compare"
+	"spinpop/disk"
 	"spinpop/model"
 	"spinpop/model/spin"
-	"spinpop/scenarios"
 )
 
 // An empirical spin-down law gives no period to a star bluer than its
@@ -109,17 +110,21 @@ func (r LawColorReach) withCatalog(obs *compare.Observed, masked bool, left int)
 // values (a fit that moves the color calibration or the law's c moves the
 // true reach with it; the columns left out are chosen once); nil when the
 // law has no calibrated color range.
-func (c *Comparison) lawColorReach() *LawColorReach {
+func (c *Comparison) lawColorReach() (*LawColorReach, error) {
 	lo, _, ok := spin.CalibratedColors(c.Built.Law)
 	if !ok {
-		return nil
+		return nil, nil
 	}
 	s := c.Scenario
 	maxAV := 0.0
 	if dust := c.Built.Population.Dust; dust != nil {
-		for _, cone := range fieldLatitudes(s.Survey.Field) {
-			maxAV = math.Max(maxAV, maxAlong(cone, func(bDeg float64) float64 {
-				d := cone.maxDistPc
+		field, err := assemble.Field(s)
+		if err != nil {
+			return nil, err
+		}
+		for _, span := range field.LatitudeSpans() {
+			maxAV = math.Max(maxAV, maxAlong(span, func(bDeg float64) float64 {
+				d := span.MaxDistPc
 				return dust(d, c.Built.Sun.ZPc+d*math.Sin(bDeg*math.Pi/180))
 			}))
 		}
@@ -128,29 +133,7 @@ func (c *Comparison) lawColorReach() *LawColorReach {
 	// The catalog's color of a star at the law's edge reddened the most,
 	// through the survey's color calibration (zero point and scale).
 	r.ReachBV = c.Built.Population.Survey.Color.Apply(lo + r.MaxEBV)
-	return r
-}
-
-// latitudeRange is the span of latitudes of one cone of a field (the whole
-// sky for a sphere) and its far distance limit.
-type latitudeRange struct{ loDeg, hiDeg, maxDistPc float64 }
-
-// fieldLatitudes returns the latitude span of each cone of a field.
-func fieldLatitudes(f scenarios.Field) []latitudeRange {
-	cone := func(b, r, dMax float64) latitudeRange {
-		return latitudeRange{math.Max(b-r, -90), math.Min(b+r, 90), dMax}
-	}
-	switch f.Kind {
-	case "sphere":
-		return []latitudeRange{{-90, 90, f.DistanceMaxPc}}
-	case "cones":
-		var out []latitudeRange
-		for _, c := range f.Cones {
-			out = append(out, cone(c.BDeg, c.RadiusDeg, c.DistanceMaxPc))
-		}
-		return out
-	}
-	return []latitudeRange{cone(f.BDeg, f.RadiusDeg, f.DistanceMaxPc)}
+	return r, nil
 }
 
 // maxAlong returns the largest of f over the latitudes of r, scanned every
@@ -158,11 +141,11 @@ func fieldLatitudes(f scenarios.Field) []latitudeRange {
 // the plane but where the sight line, starting at the Sun's height, runs
 // longest near the midplane (slightly below it for a Sun above it), so
 // the ends of the span alone do not bound it.
-func maxAlong(r latitudeRange, f func(bDeg float64) float64) float64 {
-	n := int(math.Ceil((r.hiDeg-r.loDeg)/0.05)) + 1
-	best := math.Max(f(r.loDeg), f(r.hiDeg))
+func maxAlong(r disk.LatitudeSpan, f func(bDeg float64) float64) float64 {
+	n := int(math.Ceil((r.HiDeg-r.LoDeg)/0.05)) + 1
+	best := math.Max(f(r.LoDeg), f(r.HiDeg))
 	for i := 1; i < n-1; i++ {
-		best = math.Max(best, f(r.loDeg+(r.hiDeg-r.loDeg)*float64(i)/float64(n-1)))
+		best = math.Max(best, f(r.LoDeg+(r.HiDeg-r.LoDeg)*float64(i)/float64(n-1)))
 	}
 	return best
 }

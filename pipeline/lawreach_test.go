@@ -9,6 +9,7 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"spinpop/compare"
+	"spinpop/disk"
 	"spinpop/scenarios"
 )
 
@@ -28,7 +29,8 @@ func reachOf(t *testing.T, extra string, colors ...float64) *LawColorReach {
 		obs.Stars = append(obs.Stars, compare.ObservedStar{BV: bv})
 	}
 	c := &Comparison{Resolved: res, Scenario: &res.Scenario, Built: b}
-	r := c.lawColorReach()
+	r, err := c.lawColorReach()
+	require.NoError(t, err)
 	if r == nil {
 		return nil
 	}
@@ -110,20 +112,11 @@ func TestLawColorReach(t *testing.T) {
 	assert.Nil(t, reachOf(t, "[spin]\nlaw = \"torque\"\n"))
 }
 
-func TestFieldLatitudes(t *testing.T) {
-	assert.Equal(t, []latitudeRange{{-42, -26, 1500}}, fieldLatitudes(scenarios.Field{Kind: "cone", BDeg: -34, RadiusDeg: 8, DistanceMaxPc: 1500}))
-	assert.Equal(t, []latitudeRange{{75, 90, 300}}, fieldLatitudes(scenarios.Field{Kind: "cone", BDeg: 85, RadiusDeg: 10, DistanceMaxPc: 300}), "a cone over the pole")
-	assert.Equal(t, []latitudeRange{{-90, 90, 200}}, fieldLatitudes(scenarios.Field{Kind: "sphere", DistanceMaxPc: 200}))
-	assert.Equal(t, []latitudeRange{{55, 65, 300}, {-25, -15, 900}},
-		fieldLatitudes(scenarios.Field{Kind: "cones", Cones: []scenarios.Cone{{BDeg: 60, RadiusDeg: 5, DistanceMaxPc: 300}, {BDeg: -20, RadiusDeg: 5, DistanceMaxPc: 900}}}),
-		"each cone keeps its own distance limit")
-}
-
 // maxAlong finds a maximum inside the span, not only at its ends.
 func TestMaxAlongFindsAnInteriorPeak(t *testing.T) {
 	peak := func(b float64) float64 { return -(b + 1.12) * (b + 1.12) }
-	assert.InDelta(t, 0, maxAlong(latitudeRange{-90, 90, 1}, peak), 0.03*0.03)
-	assert.Equal(t, peak(-26), maxAlong(latitudeRange{-42, -26, 1}, peak))
+	assert.InDelta(t, 0, maxAlong(disk.LatitudeSpan{LoDeg: -90, HiDeg: 90, MaxDistPc: 1}, peak), 0.03*0.03)
+	assert.Equal(t, peak(-26), maxAlong(disk.LatitudeSpan{LoDeg: -42, HiDeg: -26, MaxDistPc: 1}, peak))
 }
 
 // With compare.mask_blue_of_law the columns that begin below the reach
