@@ -763,3 +763,44 @@ func TestNuisanceCacheBounded(t *testing.T) {
 	assert.Equal(t, []float64{0}, first.Counts)
 	assert.LessOrEqual(t, len(nu.cache), maxCachedSets)
 }
+
+// The pattern move across rounds (Hooke & Jeeves 1961): after a round moved
+// the centre a fifth of the way from the nominal values toward the truth,
+// repeating that move once, twice and four times over lands on the truth
+// (nominal + 5 moves) with exact templates, and ln L rises with it; a move
+// that would leave a parameter's range stops at the range's end.
+func TestExtrapolateRepeatsAGainingMove(t *testing.T) {
+	s := newJointSetup(t)
+	nu := s.nuisance()
+	m := s.burstModel(t)
+	trueNu := []float64{0.82, 0.015}
+	like, _, _ := s.asimovLikelihood(t, m, nu, trueNu)
+	ctx := context.Background()
+	prev := nu.Nominal()
+	fifth := []float64{prev[0] + (trueNu[0]-prev[0])/5, prev[1] + (trueNu[1]-prev[1])/5}
+	best, err := profileAtValues(ctx, like, m, nu, fifth, FitOptions{Starts: 3})
+	require.NoError(t, err)
+	got, evals, err := extrapolate(ctx, like, m, nu, prev, best, FitOptions{})
+	require.NoError(t, err)
+	assert.Positive(t, evals)
+	assert.InDelta(t, trueNu[0], got.Nuisance[0], 1e-9, "a: the fifth move repeated four times over")
+	assert.InDelta(t, trueNu[1], got.Nuisance[1], 1e-9, "color offset")
+	assert.Greater(t, got.LogL, best.LogL+10, "the truth fits the noise-free data far better")
+	assert.InDelta(t, 0.6, got.Theta[0], 0.02, "the history refitted there: the burst's age")
+
+	// From the truth, moving on overshoots: nothing gains, best comes back.
+	atTruth, err := profileAtValues(ctx, like, m, nu, trueNu, FitOptions{Starts: 3})
+	require.NoError(t, err)
+	same, _, err := extrapolate(ctx, like, m, nu, fifth, atTruth, FitOptions{})
+	require.NoError(t, err)
+	assert.Equal(t, atTruth.Nuisance, same.Nuisance)
+	assert.Equal(t, atTruth.LogL, same.LogL)
+
+	// A move into the offset's upper bound (0.05) is clamped there.
+	edge, err := profileAtValues(ctx, like, m, nu, []float64{trueNu[0], 0.045}, FitOptions{Starts: 3})
+	require.NoError(t, err)
+	edge.LogL = math.Inf(-1) // so that any try gains
+	clamped, _, err := extrapolate(ctx, like, m, nu, []float64{trueNu[0], 0.035}, edge, FitOptions{})
+	require.NoError(t, err)
+	assert.Equal(t, 0.05, clamped.Nuisance[1], "stopped at the range's end")
+}
