@@ -96,6 +96,19 @@ func (s *jointSetup) asimovLikelihood(t testing.TB, m HistoryModel, nu *Nuisance
 	return like, nominal, data
 }
 
+// jointTrueNu are the nuisance values (a, color zero point) the joint
+// tests' shifted data are made at, away from the nominal (0.7725, 0).
+var jointTrueNu = []float64{0.82, 0.015}
+
+// shifted is the nuisance model, the burst model and asimovLikelihood's
+// data made at jointTrueNu: the set-up of the tests that fit their way
+// back to the truth.
+func (s *jointSetup) shifted(t testing.TB) (*Nuisance, HistoryModel, *Likelihood, *Templates, []float64) {
+	nu, m := s.nuisance(), s.burstModel(t)
+	like, nominal, data := s.asimovLikelihood(t, m, nu, jointTrueNu)
+	return nu, m, like, nominal, data
+}
+
 // The nuisance gradient of the joint objective agrees with finite
 // differences. Common practice, no source: central differences.
 func TestJointObjectiveGradient(t *testing.T) {
@@ -169,11 +182,8 @@ func TestMorphInterpolates(t *testing.T) {
 // values instead, the fit puts the burst at the wrong age — the bias that
 // freeing the coefficient removes.
 func TestFitJointRecoversNuisanceAndBurst(t *testing.T) {
-	s := newJointSetup(t)
-	nu := s.nuisance()
-	m := s.burstModel(t)
-	trueNu := []float64{0.82, 0.015}
-	like, nominal, data := s.asimovLikelihood(t, m, nu, trueNu)
+	nu, m, like, nominal, data := newJointSetup(t).shifted(t)
+	trueNu := jointTrueNu
 	joint, err := FitJoint(context.Background(), like, m, nu, FitOptions{Starts: 3})
 	require.NoError(t, err)
 	t.Logf("joint: θ = %v, ν = %v, ln L = %.2f, rounds %d, evaluations %d", joint.Theta, joint.Nuisance, joint.LogL, joint.Rounds, joint.Evaluations)
@@ -212,10 +222,7 @@ func TestFitJointRecoversNuisanceAndBurst(t *testing.T) {
 // round's side points and proposal starts are fitted concurrently, each on
 // its own copy of the likelihood (onCopies), and combined in one order.
 func TestFitJointSameOnAnyThreads(t *testing.T) {
-	s := newJointSetup(t)
-	nu := s.nuisance()
-	m := s.burstModel(t)
-	like, _, _ := s.asimovLikelihood(t, m, nu, []float64{0.82, 0.015})
+	nu, m, like, _, _ := newJointSetup(t).shifted(t)
 	fit := func(workers int) FitResult {
 		nu.ResetCache()
 		r, err := FitJoint(context.Background(), like, m, nu, FitOptions{Starts: 3, Workers: workers})
@@ -770,11 +777,8 @@ func TestNuisanceCacheBounded(t *testing.T) {
 // (nominal + 5 moves) with exact templates, and ln L rises with it; a move
 // that would leave a parameter's range stops at the range's end.
 func TestExtrapolateRepeatsAGainingMove(t *testing.T) {
-	s := newJointSetup(t)
-	nu := s.nuisance()
-	m := s.burstModel(t)
-	trueNu := []float64{0.82, 0.015}
-	like, _, _ := s.asimovLikelihood(t, m, nu, trueNu)
+	nu, m, like, _, _ := newJointSetup(t).shifted(t)
+	trueNu := jointTrueNu
 	ctx := context.Background()
 	prev := nu.Nominal()
 	fifth := []float64{prev[0] + (trueNu[0]-prev[0])/5, prev[1] + (trueNu[1]-prev[1])/5}

@@ -100,13 +100,10 @@ func TestAgeBootstrapSameOnAnyThreadsWithNuisance(t *testing.T) {
 }
 
 // offNominalBurst is the joint setup's nuisance model, its burst model and
-// noise-free data made with a = 0.82 and a color offset of 0.015 (the
-// templates at the nominal values).
+// noise-free data made at jointTrueNu (the templates at the nominal
+// values).
 func offNominalBurst(t *testing.T) (*Nuisance, HistoryModel, *Likelihood) {
-	s := newJointSetup(t)
-	nu := s.nuisance()
-	m := s.burstModel(t)
-	like, _, _ := s.asimovLikelihood(t, m, nu, []float64{0.82, 0.015})
+	nu, m, like, _, _ := newJointSetup(t).shifted(t)
 	return nu, m, like
 }
 
@@ -120,10 +117,7 @@ func offNominalBurst(t *testing.T) (*Nuisance, HistoryModel, *Likelihood) {
 // source: a maximum is checked by searching again from the best point
 // another search found.
 func TestAlternativesSearchedAsThoroughlyAsTheBurstTest(t *testing.T) {
-	s := newJointSetup(t)
-	nu := s.nuisance()
-	m := s.burstModel(t)
-	_, nominal, data := s.asimovLikelihood(t, m, nu, []float64{0.82, 0.015})
+	nu, m, _, nominal, data := newJointSetup(t).shifted(t)
 	h, err := sfh.New(10, []sfh.Part{
 		{Name: "flat", Component: sfh.Constant{}, Weight: 1},
 		{Name: "burst", Component: sfh.Burst{AgeGyr: 0.6, WidthGyr: 0.05, MassFraction: 0}},
