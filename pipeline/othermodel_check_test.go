@@ -68,12 +68,12 @@ func (r checkResult) claims() bool { return r.strength == "strong" || r.strength
 
 // runCheck makes each case's catalog with the other model, sets up one
 // comparison (templates made once) and runs the burst test on each.
-func runCheck(t *testing.T, cases []checkCase, replicates int, templateStars int64, extra string) []checkResult {
+func runCheck(t *testing.T, cases []checkCase, replicates int, templateStars int64, extra string, variant othermodel.Config) []checkResult {
 	t.Helper()
 	dir := t.TempDir()
-	cfg := othermodel.DefaultConfig()
+	cfg := variant
 	first := filepath.Join(dir, cases[0].name+".csv")
-	cfg.History = cases[0].hist
+	cfg.History = withRamp(cases[0].hist, variant.History.RampSlope)
 	_, err := othermodel.WriteCatalog(first, cfg, cases[0].seed)
 	require.NoError(t, err)
 	scen := filepath.Join(dir, "check.toml")
@@ -92,7 +92,7 @@ func runCheck(t *testing.T, cases []checkCase, replicates int, templateStars int
 		path := first
 		if i > 0 {
 			path = filepath.Join(dir, cs.name+".csv")
-			cfg.History = cs.hist
+			cfg.History = withRamp(cs.hist, variant.History.RampSlope)
 			_, err := othermodel.WriteCatalog(path, cfg, cs.seed)
 			require.NoError(t, err)
 		}
@@ -164,7 +164,7 @@ func TestOtherModelShort(t *testing.T) {
 	rs := runCheck(t, []checkCase{
 		{name: "smooth", seed: 11, hist: othermodel.SmoothHistory()},
 		{name: "burst-0.8", seed: 12, hist: othermodel.BoxBurst(0.8, 0.1, 0.15), ageGyr: 0.8},
-	}, 40, 6_000_000, fitFreeListWithout(t, `path = "survey.search_by_rossby.`))
+	}, 40, 6_000_000, fitFreeListWithout(t, `path = "survey.search_by_rossby.`), othermodel.DefaultConfig())
 	assert.False(t, rs[0].claims(), "a smooth catalog of another model must not be claimed as a burst: %s", rs[0].strength)
 	summarise(t, rs)
 }
@@ -191,10 +191,93 @@ func fitFreeListWithout(t *testing.T, prefix string) string {
 	return out.String()
 }
 
+// withRamp returns h with its smooth rate's ramp slope set to s.
+func withRamp(h othermodel.History, s float64) othermodel.History {
+	h.RampSlope = s
+	return h
+}
+
+// parseVariant reads SPINPOP_OTHERMODEL_VARIANT: the other model changed
+// further from spinpop than its defaults, so that the check also covers
+// catalogs whose smooth history is not constant, whose law is not the one
+// the scenario fits, whose scatter and loss of slow rotators differ and
+// whose disk heats otherwise — the product owner's model will differ in
+// ways we do not know. A comma-separated list of key=value:
+//
+//	ramp=s        smooth rate 1 + s τ/T (s ≥ −1; 0 constant, > 0 more stars long ago)
+//	law=name      barnes2007 (default) or mamajek2008
+//	scatter=dex   intrinsic period scatter (default 0.08)
+//	p50=days      half-detection period at B−V 0.65 (default 20)
+//	heightbeta=β  exponent of the scale height's growth with age (default 0.7)
+func parseVariant(spec string) (othermodel.Config, error) {
+	cfg := othermodel.DefaultConfig()
+	if strings.TrimSpace(spec) == "" {
+		return cfg, nil
+	}
+	for _, kv := range strings.Split(spec, ",") {
+		k, v, ok := strings.Cut(strings.TrimSpace(kv), "=")
+		if !ok {
+			return cfg, fmt.Errorf("SPINPOP_OTHERMODEL_VARIANT: %q is not key=value (keys: ramp, law, scatter, p50, heightbeta)", kv)
+		}
+		if k == "law" {
+			switch v {
+			case "barnes2007":
+				cfg.Gyro = othermodel.Barnes2007()
+			case "mamajek2008":
+				cfg.Gyro = othermodel.Mamajek2008()
+			default:
+				return cfg, fmt.Errorf("SPINPOP_OTHERMODEL_VARIANT: law=%q; want barnes2007 or mamajek2008", v)
+			}
+			continue
+		}
+		x, err := strconv.ParseFloat(v, 64)
+		if err != nil {
+			return cfg, fmt.Errorf("SPINPOP_OTHERMODEL_VARIANT: %s=%q is not a number", k, v)
+		}
+		switch k {
+		case "ramp":
+			cfg.History.RampSlope = x
+		case "scatter":
+			cfg.PeriodScatterDex = x
+		case "p50":
+			cfg.Detection.P50RefD = x
+		case "heightbeta":
+			cfg.ScaleHeightBeta = x
+		default:
+			return cfg, fmt.Errorf("SPINPOP_OTHERMODEL_VARIANT: unknown key %q (keys: ramp, law, scatter, p50, heightbeta)", k)
+		}
+	}
+	return cfg, cfg.Validate()
+}
+
+func TestParseVariant(t *testing.T) {
+	def := othermodel.DefaultConfig()
+	cfg, err := parseVariant("")
+	require.NoError(t, err)
+	assert.Equal(t, def, cfg, "no variant: the other model's defaults")
+	cfg, err = parseVariant("ramp=0.8, law=mamajek2008,scatter=0.12,p50=14,heightbeta=0.5")
+	require.NoError(t, err)
+	assert.Equal(t, 0.8, cfg.History.RampSlope)
+	assert.Equal(t, othermodel.Mamajek2008(), cfg.Gyro)
+	assert.Equal(t, []float64{0.12, 14, 0.5}, []float64{cfg.PeriodScatterDex, cfg.Detection.P50RefD, cfg.ScaleHeightBeta})
+	for spec, want := range map[string]string{
+		"ramp":          "not key=value",
+		"law=skumanich": "want barnes2007 or mamajek2008",
+		"scatter=wide":  `scatter="wide" is not a number`,
+		"tilt=3":        `unknown key "tilt"`,
+		"ramp=-2":       "RampSlope", // the other model's own check: a rate below zero
+	} {
+		_, err := parseVariant(spec)
+		require.Error(t, err, spec)
+		assert.Contains(t, err.Error(), want, spec)
+	}
+}
+
 // The long check of issue 8 (SPINPOP_OTHERMODEL_CHECK=1; about an hour on
 // two cores): 20 smooth and 10 burst catalogs (fractions 0.1–0.2, ages
 // 0.5–1.5 Gyr; SPINPOP_OTHERMODEL_CASES=k,m for other counts). Targets: claims on ≤ 5 % of smooth catalogs; the burst found
 // within ±0.1 Gyr with the truth in its 95 % interval in ≥ 90 %.
+// SPINPOP_OTHERMODEL_VARIANT changes the other model further (parseVariant).
 func TestOtherModelLong(t *testing.T) {
 	if os.Getenv("SPINPOP_OTHERMODEL_CHECK") == "" {
 		t.Skip("set SPINPOP_OTHERMODEL_CHECK=1 to run the long independent-model check (about an hour)")
@@ -234,7 +317,9 @@ func TestOtherModelLong(t *testing.T) {
 		cases = kept
 	}
 	extra := strings.ReplaceAll(os.Getenv("SPINPOP_OTHERMODEL_EXTRA"), `\n`, "\n")
-	rs := runCheck(t, cases, reps, 0, extra)
+	variant, err := parseVariant(os.Getenv("SPINPOP_OTHERMODEL_VARIANT"))
+	require.NoError(t, err)
+	rs := runCheck(t, cases, reps, 0, extra, variant)
 	falseClaims, smooth, found, covered, bursts := summarise(t, rs)
 	if fig := os.Getenv("SPINPOP_OTHERMODEL_FIGURE"); fig != "" {
 		require.NoError(t, writeCheckFigure(fig, rs))
