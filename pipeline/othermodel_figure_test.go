@@ -36,7 +36,9 @@ func writeCheckFigure(path string, rs []checkResult) error {
 	}
 	diag.Color = color.Gray{Y: 120}
 	left.Add(diag)
-	var found, missed plotter.XYs
+	// Weak apart from not claimed: with few replicates weak is the
+	// strongest verdict the bootstrap can give.
+	var found, weak, missed plotter.XYs
 	var bars plotter.YErrors
 	var barPts plotter.XYs
 	for _, r := range rs {
@@ -44,9 +46,12 @@ func writeCheckFigure(path string, rs []checkResult) error {
 			continue
 		}
 		p := plotter.XY{X: r.ageGyr, Y: r.age}
-		if r.claims() {
+		switch {
+		case r.claims():
 			found = append(found, p)
-		} else {
+		case r.strength == "weak":
+			weak = append(weak, p)
+		default:
 			missed = append(missed, p)
 		}
 		if !math.IsNaN(r.lo95) && !math.IsNaN(r.hi95) {
@@ -66,6 +71,9 @@ func writeCheckFigure(path string, rs []checkResult) error {
 	}
 	blue, orange := color.RGBA{R: 0, G: 90, B: 181, A: 255}, color.RGBA{R: 220, G: 120, B: 0, A: 255}
 	if err := addScatter(left, found, blue, draw.CircleGlyph{}, "burst claimed"); err != nil {
+		return err
+	}
+	if err := addScatter(left, weak, blue, draw.RingGlyph{}, "weak evidence"); err != nil {
 		return err
 	}
 	if err := addScatter(left, missed, orange, draw.TriangleGlyph{}, "not claimed"); err != nil {
