@@ -113,7 +113,7 @@ func runCheck(t *testing.T, cases []checkCase, replicates int, templateStars int
 		r := checkResult{checkCase: cs, strength: tr.Strength, lr: tr.LR,
 			deviance: tr.AdequacyBurst.Deviance, exp: tr.AdequacyBurst.ReplicateMean, adequacyP: tr.AdequacyBurst.PValue,
 			age: tr.AgeInterval.Best, lo95: tr.AgeInterval.Lo95, hi95: tr.AgeInterval.Hi95}
-		t.Logf("%-12s truth %4.2f | %-10s age %.3f [%.3f, %.3f] | LR %.0f | deviance %.0f vs %.0f (p %.2g) | %s | %s",
+		t.Logf(checkLineFormat+" | %s | %s",
 			cs.name, cs.ageGyr, r.strength, r.age, r.lo95, r.hi95, r.lr, r.deviance, r.exp, r.adequacyP, tr.Verdict,
 			compare.StrainWarning("strained", tr.Strains, tr.GaussianPriors))
 		if b := tr.AgeBootstrap; len(b.Ages) > 0 {
@@ -347,7 +347,10 @@ func TestOtherModelLong(t *testing.T) {
 	assert.GreaterOrEqual(t, float64(covered), 0.9*float64(bursts))
 }
 
-// checkLine matches the line runCheck logs for each catalog.
+// checkLineFormat is how runCheck logs each catalog's result (before the
+// verdict's text), and checkLine reads it back (readCheckLogs).
+const checkLineFormat = "%-12s truth %4.2f | %-10s age %.3f [%.3f, %.3f] | LR %.0f | deviance %.0f vs %.0f (p %.2g)"
+
 var checkLine = regexp.MustCompile(`(\S+)\s+truth (\S+) \| (\S+)\s+age (\S+) \[(\S+), (\S+)\] \| LR (\S+) \| deviance (\S+) vs (\S+) \(p (\S+)\)`)
 
 // readCheckLogs reads the per-catalog lines of long-check logs, a later
@@ -408,6 +411,16 @@ func TestReadCheckLogs(t *testing.T) {
 	assert.Equal(t, []float64{0.5, 0.48, 0.4, 0.6, 650}, []float64{rs[1].ageGyr, rs[1].age, rs[1].lo95, rs[1].hi95, rs[1].lr})
 	_, err = readCheckLogs([]string{filepath.Join(dir, "missing.log")})
 	assert.Error(t, err)
+
+	// What runCheck writes now reads back (the two must change together).
+	c := filepath.Join(dir, "c.log")
+	want := checkResult{checkCase: checkCase{name: "burst-1.28", ageGyr: 1.28}, strength: "moderate", age: 1.556, lo95: 1.181, hi95: 2.011, lr: 277, deviance: 352, exp: 228, adequacyP: 0.0012}
+	line := fmt.Sprintf(checkLineFormat+" | verdict | ", want.name, want.ageGyr, want.strength, want.age, want.lo95, want.hi95, want.lr, want.deviance, want.exp, want.adequacyP)
+	require.NoError(t, os.WriteFile(c, []byte("    othermodel_check_test.go:116: "+line+"\n"), 0o644))
+	rs, err = readCheckLogs([]string{c})
+	require.NoError(t, err)
+	require.Len(t, rs, 1)
+	assert.Equal(t, want, rs[0])
 }
 
 // TestOtherModelFigureFromLogs redraws the check's figure and summary from
