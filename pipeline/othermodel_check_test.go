@@ -235,7 +235,7 @@ func parseVariant(spec string) (othermodel.Config, error) {
 	for _, kv := range strings.Split(spec, ",") {
 		k, v, ok := strings.Cut(strings.TrimSpace(kv), "=")
 		if !ok {
-			return cfg, fmt.Errorf("SPINPOP_OTHERMODEL_VARIANT: %q is not key=value (keys: ramp, law, scatter, p50, heightbeta)", kv)
+			return cfg, fmt.Errorf("SPINPOP_OTHERMODEL_VARIANT: %q is not key=value (keys: ramp, law, scatter, p50, heightbeta, stall)", kv)
 		}
 		if k == "law" {
 			switch v {
@@ -246,6 +246,20 @@ func parseVariant(spec string) (othermodel.Config, error) {
 			default:
 				return cfg, fmt.Errorf("SPINPOP_OTHERMODEL_VARIANT: law=%q; want barnes2007 or mamajek2008", v)
 			}
+			continue
+		}
+		if k == "stall" {
+			// stall=START:DURATION (Gyr): othermodel.KDwarfStall's colors
+			// with another window.
+			st := othermodel.KDwarfStall()
+			a, b, ok := strings.Cut(v, ":")
+			x, errA := strconv.ParseFloat(a, 64)
+			y, errB := strconv.ParseFloat(b, 64)
+			if !ok || errA != nil || errB != nil {
+				return cfg, fmt.Errorf("SPINPOP_OTHERMODEL_VARIANT: stall=%q; want START:DURATION in Gyr, e.g. stall=%g:%g", v, st.StartGyr, st.DurationGyr)
+			}
+			st.StartGyr, st.DurationGyr = x, y
+			cfg.Stall = &st
 			continue
 		}
 		x, err := strconv.ParseFloat(v, 64)
@@ -262,7 +276,7 @@ func parseVariant(spec string) (othermodel.Config, error) {
 		case "heightbeta":
 			cfg.ScaleHeightBeta = x
 		default:
-			return cfg, fmt.Errorf("SPINPOP_OTHERMODEL_VARIANT: unknown key %q (keys: ramp, law, scatter, p50, heightbeta)", k)
+			return cfg, fmt.Errorf("SPINPOP_OTHERMODEL_VARIANT: unknown key %q (keys: ramp, law, scatter, p50, heightbeta, stall)", k)
 		}
 	}
 	return cfg, cfg.Validate()
@@ -278,12 +292,19 @@ func TestParseVariant(t *testing.T) {
 	assert.Equal(t, 0.8, cfg.History.RampSlope)
 	assert.Equal(t, othermodel.Mamajek2008(), cfg.Gyro)
 	assert.Equal(t, []float64{0.12, 14, 0.5}, []float64{cfg.PeriodScatterDex, cfg.Detection.P50RefD, cfg.ScaleHeightBeta})
+	assert.Nil(t, cfg.Stall)
+	cfg, err = parseVariant("stall=0.7:0.4")
+	require.NoError(t, err)
+	require.NotNil(t, cfg.Stall)
+	assert.Equal(t, []float64{0.7, 0.4, othermodel.KDwarfStall().FullMinBV}, []float64{cfg.Stall.StartGyr, cfg.Stall.DurationGyr, cfg.Stall.FullMinBV})
 	for spec, want := range map[string]string{
 		"ramp":          "not key=value",
 		"law=skumanich": "want barnes2007 or mamajek2008",
 		"scatter=wide":  `scatter="wide" is not a number`,
 		"tilt=3":        `unknown key "tilt"`,
 		"ramp=-2":       "RampSlope", // the other model's own check: a rate below zero
+		"stall=0.6":     "want START:DURATION",
+		"stall=0:0.5":   "StartGyr > 0",
 	} {
 		_, err := parseVariant(spec)
 		require.Error(t, err, spec)

@@ -119,6 +119,7 @@ type Config struct {
 	IMFSlope, MassMinMsun, MassMaxMsun float64
 
 	Gyro             GyroLaw
+	Stall            *Stall  // nil: the law's clock never pauses
 	PeriodScatterDex float64 // intrinsic lognormal scatter about the law
 	Detection        Detection
 
@@ -188,6 +189,8 @@ func (c Config) Validate() error {
 		return errors.New("othermodel: IMF needs 0 < MassMinMsun < MassMaxMsun and IMFSlope ≠ 1")
 	case !(c.Gyro.A > 0 && c.Gyro.N > 0):
 		return fmt.Errorf("othermodel: gyrochronology law %q needs A > 0 and N > 0", c.Gyro.Name)
+	case c.Stall != nil && c.Stall.validate() != nil:
+		return c.Stall.validate()
 	case !(c.Detection.MaxEfficiency > 0 && c.Detection.LnPWidth > 0 && c.Detection.VWidthMag > 0 && c.Detection.P50RefD > 0):
 		return errors.New("othermodel: Detection needs MaxEfficiency, P50RefD, LnPWidth and VWidthMag > 0")
 	case c.PeriodScatterDex < 0 || c.PeriodErrRel < 0 || c.ColorErrMag < 0 || c.MagErrMag < 0 || c.ParallaxErrMas < 0:

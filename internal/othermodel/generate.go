@@ -83,7 +83,11 @@ func Generate(cfg Config, seed uint64) ([]Star, Tally, error) {
 		if vMag < sv.VMinMag || vMag > sv.VMaxMag || bv < sv.BVMinMag || bv > sv.BVMaxMag {
 			continue
 		}
-		p, ok := cfg.Gyro.PeriodD(d.BV, age*1000)
+		lawAge := age
+		if cfg.Stall != nil {
+			lawAge = cfg.Stall.LawAgeGyr(d.BV, age)
+		}
+		p, ok := cfg.Gyro.PeriodD(d.BV, lawAge*1000)
 		if !ok {
 			continue // outside the law: no period, so no catalog entry
 		}
@@ -141,8 +145,8 @@ func WriteCatalog(path string, cfg Config, seed uint64) (Tally, error) {
 	defer os.Remove(tmp.Name()) // a no-op after the rename
 	w := bufio.NewWriter(tmp)
 	fmt.Fprintf(w, "# invented rotation catalog from the independent test model (internal/othermodel), seed %d\n", seed)
-	fmt.Fprintf(w, "# history: max age %g Gyr, ramp slope %g, burst %s; law %s, scatter %g dex\n",
-		cfg.History.MaxAgeGyr, cfg.History.RampSlope, describeBurst(cfg.History.Burst), cfg.Gyro.Name, cfg.PeriodScatterDex)
+	fmt.Fprintf(w, "# history: max age %g Gyr, ramp slope %g, burst %s; law %s, stall %s, scatter %g dex\n",
+		cfg.History.MaxAgeGyr, cfg.History.RampSlope, describeBurst(cfg.History.Burst), cfg.Gyro.Name, describeStall(cfg.Stall), cfg.PeriodScatterDex)
 	fmt.Fprintf(w, "# vmag includes extinction; bv_mag is reddened; true_* columns are diagnostics\n%s\n", CatalogHeader)
 	f := func(v float64, prec int) string { return strconv.FormatFloat(v, 'f', prec, 64) }
 	for i, s := range stars {
@@ -161,6 +165,13 @@ func WriteCatalog(path string, cfg Config, seed uint64) (Tally, error) {
 		return tally, fmt.Errorf("othermodel: writing %s: %w", path, err)
 	}
 	return tally, nil
+}
+
+func describeStall(s *Stall) string {
+	if s == nil {
+		return "none"
+	}
+	return fmt.Sprintf("%g Gyr from %g Gyr, full for B−V %g–%g, taper %g mag", s.DurationGyr, s.StartGyr, s.FullMinBV, s.FullMaxBV, s.TaperMag)
 }
 
 func describeBurst(b *Box) string {
