@@ -25,20 +25,21 @@ import (
 // set of storage.
 const maxInputMemos = 1
 
-// inputKey is what decides a stored star's inputs: the law's C (which
-// Terms reads), the turnover time, and the tidal lock. Whether the law
+// inputKey is what decides a stored star's inputs: the law's C and stall
+// (which Terms reads), the turnover time, and the tidal lock. Whether the law
 // draws a scatter deviate decides where the tidal-lock draws fall in the
 // star's stream; both outcomes are kept, so that a fit whose scatter sits
 // at 0 (a law without scatter, whose side point has some) reads one memo.
 type inputKey struct {
 	c                  float64
+	stall              spin.StallOptions // moves the effective age Terms reads
 	turnover           spin.TurnoverTime
 	lockFrac, lockMaxD float64
 }
 
 func inputKeyOf(rp *rotationPlan) inputKey {
 	p := rp.p
-	return inputKey{c: rp.law.C(), turnover: p.Turnover, lockFrac: p.Binaries.TidalLockFraction, lockMaxD: p.Binaries.TidalLockMaxD}
+	return inputKey{c: rp.law.C(), stall: rp.law.Stall(), turnover: p.Turnover, lockFrac: p.Binaries.TidalLockFraction, lockMaxD: p.Binaries.TidalLockMaxD}
 }
 
 // starInputs is one stored star's inputs. The tidal lock's outcome is

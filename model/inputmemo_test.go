@@ -29,6 +29,24 @@ func TestObserveInputMemoIdentical(t *testing.T) {
 		}
 	}
 	b := spin.Barnes2007()
+	withStall := func(start float64) func(q *Population) {
+		return func(q *Population) {
+			withLaw(b.A, b.N, b.C+0.01, 0.08)(q)
+			law := q.Law.(spin.Scattered)
+			g := law.Law.(spin.GyroLaw)
+			g.Stall = spin.DefaultStallOptions()
+			g.Stall.Enabled, g.Stall.StartGyrAtPivot = true, start
+			law.Law = g
+			q.Law = law
+		}
+	}
+	scaledA := func(l spin.Law, f float64) spin.Law {
+		sc := l.(spin.Scattered)
+		g := sc.Law.(spin.GyroLaw)
+		g.A *= f
+		sc.Law = g
+		return sc
+	}
 	steps := []struct {
 		name string
 		pop  *Population
@@ -43,6 +61,11 @@ func TestObserveInputMemoIdentical(t *testing.T) {
 		{"no scatter", change(func(q *Population) { withLaw(b.A, b.N, b.C, 0.08)(q); q.Law = spin.Barnes2007() }), true},
 		{"c side point", change(withLaw(b.A, b.N, b.C+0.01, 0.08)), false},
 		{"tidal lock", change(func(q *Population) { withLaw(b.A, b.N, b.C+0.01, 0.08)(q); q.Binaries.TidalLockFraction = 0.3 }), false},
+		// A stall moves the effective age Terms reads: new inputs, and
+		// another start again.
+		{"stall", change(func(q *Population) { withStall(0.65)(q); q.Binaries.TidalLockFraction = 0.3 }), false},
+		{"stall a side point", change(func(q *Population) { withStall(0.65)(q); q.Binaries.TidalLockFraction = 0.3; q.Law = scaledA(q.Law, 1.02) }), true},
+		{"stall moved", change(func(q *Population) { withStall(0.8)(q); q.Binaries.TidalLockFraction = 0.3 }), false},
 		{"the run as made", p, false},
 	}
 	has := func(key inputKey) bool {
@@ -70,12 +93,19 @@ type opaqueLaw struct{ spin.Law }
 // the stream), with tidal locks, spots and a search completeness that
 // reads τ_c, and both put the same stars in the catalog.
 func TestObserveLogFormIsThePeriod(t *testing.T) {
+	stalled := func() spin.Law {
+		g := spin.Barnes2007()
+		g.Stall = spin.DefaultStallOptions()
+		g.Stall.Enabled, g.Stall.CatchUpFraction = true, 0
+		return spin.Scattered{Law: g, Dex: 0.08}
+	}
 	_, g, bank, change := memoTestBank(t)
 	amp := spots.DefaultAmplitudeModel()
 	amp.Slope = 1.37 // not a half-integer: the power law's general path
 	laws := map[string]spin.Law{
 		"scattered": spin.Scattered{Law: spin.MamajekHillenbrand2008(), Dex: 0.09, Scale: 1.1},
 		"bare":      spin.Barnes2007(),
+		"stalled":   stalled(),
 	}
 	for name, law := range laws {
 		t.Run(name, func(t *testing.T) {

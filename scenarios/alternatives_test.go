@@ -54,7 +54,8 @@ func TestAlternativesResolveAsScenarios(t *testing.T) {
 	require.NoError(t, err)
 	s := stall.Scenario
 	assert.Equal(t, "stall", s.Name)
-	assert.Equal(t, "torque", s.Spin.Law)
+	assert.Equal(t, "barnes2007", s.Spin.Law, "the stall pauses the burst's own law")
+	assert.True(t, s.Spin.Options.Bool("stall", "enabled"))
 	assert.NotContains(t, s.History.Parts, "burst", "the dropped part is gone")
 	assert.Contains(t, s.History.Parts, "decline", "the other parts stay")
 	assert.Nil(t, s.Compare.Alternatives, "an alternative holds none of its own")
@@ -66,7 +67,7 @@ func TestAlternativesResolveAsScenarios(t *testing.T) {
 	// The same scenario written by hand, as --set settings.
 	var hand []Override
 	for _, a := range []string{"name=stall", "compare.alternatives=[]", "history.burst={kind=\"none\"}",
-		"spin.law=torque", "spin.stall.enabled=true"} {
+		"spin.stall.enabled=true"} {
 		o, err := ParseOverride(a)
 		require.NoError(t, err)
 		hand = append(hand, o)
@@ -86,7 +87,7 @@ func TestAlternativesResolveAsScenarios(t *testing.T) {
 	both, err := Resolve("example:fit", alt...)
 	require.NoError(t, err)
 	assert.Contains(t, both.Scenario.History.Parts, "burst")
-	assert.True(t, both.Scenario.Spin.Law == "torque")
+	assert.True(t, both.Scenario.Spin.Options.Bool("stall", "enabled"))
 	assert.Equal(t, fit.Scenario.Compare.Free, both.Scenario.Compare.Free, "nothing dropped: the same free list")
 
 	// Alternatives are part of the identity of a scenario that has them,

@@ -190,7 +190,7 @@ func lawOptionKey(law, path string) (spin.Key, bool) {
 	if !ok {
 		return spin.Key{}, false
 	}
-	for _, t := range spec.Tables {
+	for _, t := range spec.ReadTables() {
 		if t.Name != pieces[1] {
 			continue
 		}
@@ -212,7 +212,7 @@ func NuisancePaths(law string) []string {
 		out = append(out, k)
 	}
 	if spec, ok := spin.Lookup(law); ok {
-		for _, t := range spec.Tables {
+		for _, t := range spec.ReadTables() {
 			for _, k := range t.Keys {
 				if _, num := k.Default.(float64); num {
 					out = append(out, "spin."+t.Name+"."+k.Name)

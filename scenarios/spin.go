@@ -207,13 +207,15 @@ func lawOptionsTree(o LawOptions, out map[string]any) {
 	}
 }
 
-// SwitchedOnElsewhere lists the switched-on option tables ("spin.stall")
-// that belong to laws other than s.Spin.Law, and the laws they belong to:
-// options the scenario's law cannot use.
+// SwitchedOnElsewhere lists the switched-on option tables
+// ("spin.weakened_braking") that belong to laws other than s.Spin.Law and
+// that it does not borrow, and the laws they belong to: options the
+// scenario's law cannot use.
 func SwitchedOnElsewhere(s *Scenario) (tables []string, owners []string) {
 	all, own := spin.OptionTables()
+	spec, _ := spin.Lookup(s.Spin.Law)
 	for i, t := range all {
-		if own[i] == s.Spin.Law || t.Switch == "" {
+		if own[i] == s.Spin.Law || t.Switch == "" || slices.Contains(spec.Borrows, t.Name) {
 			continue
 		}
 		if on, _ := s.Spin.Options[t.Name][t.Switch].(bool); on {
@@ -226,12 +228,12 @@ func SwitchedOnElsewhere(s *Scenario) (tables []string, owners []string) {
 	return tables, owners
 }
 
-// SwitchableTables lists the switchable option tables of law name, as
-// "spin.stall" paths, for messages.
+// SwitchableTables lists the switchable option tables of law name (its
+// own and those it borrows), as "spin.stall" paths, for messages.
 func SwitchableTables(name string) string {
 	spec, _ := spin.Lookup(name)
 	var out []string
-	for _, t := range spec.Tables {
+	for _, t := range spec.ReadTables() {
 		if t.Switch != "" {
 			out = append(out, "spin."+t.Name)
 		}

@@ -26,6 +26,12 @@ type GyroLaw struct {
 	Uncertainty          Coefficients
 	MinBV, MaxBV         float64 // accepted Johnson B−V range (mag), inclusive
 	MinAgeGyr, MaxAgeGyr float64 // accepted age range (Gyr), inclusive
+	// Stall, when enabled, evaluates the relation at the stalled star's
+	// effective age (see StallOptions) instead of its age: the same pause
+	// as the torque law's, on the same relation as a burst is fitted
+	// with, so that a burst and a stall can be compared with nothing else
+	// changed. The calibrated age range still applies to the true age.
+	Stall StallOptions
 }
 
 // Coefficients are the four numbers of an empirical law, or their
@@ -96,10 +102,16 @@ func Angus2015() GyroLaw {
 // Name implements Law.
 func (g GyroLaw) Name() string { return g.LawName }
 
-// Period implements Law. It reads s.BV and s.AgeGyr only and draws nothing
-// from r: an empirical law is deterministic.
+// Period implements Law. It reads s.BV and s.AgeGyr (and s.MassMsun with
+// a stall) and draws nothing from r: an empirical law is deterministic.
 func (g GyroLaw) Period(s Star, _ *rand.Rand) (periodD float64, ok bool) {
-	return g.PeriodAt(s.BV, s.AgeGyr)
+	if !g.Stall.Enabled {
+		return g.PeriodAt(s.BV, s.AgeGyr)
+	}
+	if _, ok := g.PeriodAt(s.BV, s.AgeGyr); !ok {
+		return math.NaN(), false
+	}
+	return g.A * math.Exp(g.B*math.Log(s.BV-g.C)+g.N*math.Log(1000*g.Stall.effectiveAge(s.MassMsun, s.AgeGyr))), true
 }
 
 // PeriodAt evaluates the relation at a color and an age in Gyr.
@@ -125,7 +137,7 @@ func (g GyroLaw) Validate() error {
 	case !(g.MinAgeGyr > 0) || !(g.MaxAgeGyr > g.MinAgeGyr):
 		return fmt.Errorf("spin: law %q: need 0 < MinAgeGyr < MaxAgeGyr, got %g and %g", g.LawName, g.MinAgeGyr, g.MaxAgeGyr)
 	}
-	return nil
+	return g.Stall.Validate()
 }
 
 // CalibratedColors returns the intrinsic B−V range law accepts, for the

@@ -22,6 +22,7 @@ func init() {
 		MustRegister(LawSpec{
 			Name: law.LawName, Label: l.label,
 			Tables:  []OptionTable{gyroTable(law)},
+			Borrows: []string{stallTable},
 			New:     func(o Options, _ Env) (Law, error) { return law.withCoefficients(o) },
 			Caveats: youngEmpirical,
 		})
@@ -45,10 +46,11 @@ func gyroTable(g GyroLaw) OptionTable {
 }
 
 // withCoefficients returns the law with the coefficients of its option
-// table. Its accepted colors stay above c, where the relation runs to zero
-// period.
+// table, and the stall of [spin.stall] when that is switched on. Its
+// accepted colors stay above c, where the relation runs to zero period.
 func (g GyroLaw) withCoefficients(o Options) (Law, error) {
 	g.A, g.B, g.C, g.N = o.Float(g.LawName, "a"), o.Float(g.LawName, "b"), o.Float(g.LawName, "c"), o.Float(g.LawName, "n")
+	g.Stall = stallFromOptions(o)
 	if g.C+0.05 > g.MinBV {
 		g.MinBV = g.C + 0.05
 	}
@@ -94,7 +96,7 @@ var torqueSpec = LawSpec{
 			{Name: "initial_period_sigma_dex", Doc: "lognormal: width", Default: 0.3, Min: 0, Max: inf},
 			{Name: "start_age_gyr", Doc: "age the initial periods refer to", Default: 0.01, Min: 0, Max: 1, MaxOpen: true, Why: "the initial periods belong to young stars"},
 		}},
-		{Name: "stall", Doc: "a spin-down stall: braking pauses for K dwarfs of 4000-5000 K, weakening toward the G dwarfs and early M dwarfs (see spin.StallOptions); a starting point for fits, not a calibration", Switch: "enabled", SkipWhenOff: true, Keys: []Key{
+		{Name: stallTable, Doc: "a spin-down stall: braking pauses for K dwarfs of 4000-5000 K, weakening toward the G dwarfs and early M dwarfs (see spin.StallOptions); a starting point for fits, not a calibration", Switch: "enabled", SkipWhenOff: true, Keys: []Key{
 			{Name: "enabled", Default: false},
 			{Name: "start_gyr_at_0p8msun", Doc: "pause start age for 0.8 Msun", Default: 0.65, Min: 0, MinOpen: true, Max: inf, Memory: "Curtis et al. (2019)"},
 			{Name: "duration_gyr_at_0p8msun", Doc: "pause length for 0.8 Msun", Default: 0.35, Min: 0, MinOpen: true, Max: inf, Memory: "Curtis et al. (2019)"},
@@ -154,17 +156,29 @@ func newTorqueFromOptions(opt Options, env Env) (Law, error) {
 	if opt.Bool("weakened_braking", "enabled") {
 		o.RoCritOverSolar = opt.Float("weakened_braking", "ro_crit_over_solar")
 	}
-	if opt.Bool("stall", "enabled") {
-		// The scenario writes start ∝ (m/0.8)^slope; StallOptions writes
-		// (m/0.8)^(−slope).
-		o.Stall = StallOptions{Enabled: true, PivotMsun: 0.8,
-			StartGyrAtPivot: opt.Float("stall", "start_gyr_at_0p8msun"), DurationGyrAtPivot: opt.Float("stall", "duration_gyr_at_0p8msun"),
-			StartMassSlope: -opt.Float("stall", "start_mass_slope"), DurationMassSlope: -opt.Float("stall", "duration_mass_slope"),
-			MinMsun: opt.Float("stall", "mass_min_msun"), FullMinMsun: opt.Float("stall", "full_mass_min_msun"),
-			FullMaxMsun: opt.Float("stall", "full_mass_max_msun"), CutoffMsun: opt.Float("stall", "mass_max_msun"),
-			CatchUpFraction: opt.Float("stall", "catch_up_fraction")}
-	}
+	o.Stall = stallFromOptions(opt)
 	return NewTorqueLaw(o)
+}
+
+// stallTable is the option table of the stall, [spin.stall]: the torque
+// law's, borrowed by the empirical laws.
+const stallTable = "stall"
+
+// stallFromOptions returns the stall of [spin.stall], disabled when the
+// table is switched off.
+func stallFromOptions(opt Options) StallOptions {
+	if !opt.Bool(stallTable, "enabled") {
+		return StallOptions{}
+	}
+	// The scenario writes start ∝ (m/0.8)^slope; StallOptions writes
+	// (m/0.8)^(−slope).
+	f := func(key string) float64 { return opt.Float(stallTable, key) }
+	return StallOptions{Enabled: true, PivotMsun: 0.8,
+		StartGyrAtPivot: f("start_gyr_at_0p8msun"), DurationGyrAtPivot: f("duration_gyr_at_0p8msun"),
+		StartMassSlope: -f("start_mass_slope"), DurationMassSlope: -f("duration_mass_slope"),
+		MinMsun: f("mass_min_msun"), FullMinMsun: f("full_mass_min_msun"),
+		FullMaxMsun: f("full_mass_max_msun"), CutoffMsun: f("mass_max_msun"),
+		CatchUpFraction: f("catch_up_fraction")}
 }
 
 // OptionError is a bad option value, named by its table and key.

@@ -66,7 +66,8 @@ func (f *LogForm) LnPeriod(s Star, r *rand.Rand) (float64, bool) {
 // NormFloat64, the law's only draw) from the stream.
 func (f *LogForm) Draws() bool { return f.scattered }
 
-// C returns the law's color zero point, the only coefficient Terms reads.
+// C returns the law's color zero point, the only coefficient Terms reads
+// (besides the stall, Stall).
 func (f *LogForm) C() float64 { return f.g.C }
 
 // InRange reports whether s lies in the law's calibrated range.
@@ -76,11 +77,19 @@ func (f *LogForm) InRange(s Star) bool {
 }
 
 // Terms returns the star's logarithms that the law's coefficients
-// multiply, ln(B−V − C) and ln(1000 t): what a population re-observed
-// under other values of A, B, N and the scatter may keep.
+// multiply, ln(B−V − C) and ln(1000 t) (t the effective age under a
+// stall): what a population re-observed under other values of A, B, N and
+// the scatter may keep.
 func (f *LogForm) Terms(s Star) (l1, l2 float64) {
-	return math.Log(s.BV - f.g.C), math.Log(1000 * s.AgeGyr)
+	t := s.AgeGyr
+	if f.g.Stall.Enabled {
+		t = f.g.Stall.effectiveAge(s.MassMsun, t)
+	}
+	return math.Log(s.BV - f.g.C), math.Log(1000 * t)
 }
+
+// Stall returns the law's stall, which Terms reads besides C.
+func (f *LogForm) Stall() StallOptions { return f.g.Stall }
 
 // FromTerms returns ln P from a star's Terms and its scatter deviate z
 // (ignored without scatter).

@@ -25,6 +25,7 @@ func TestLogFormIsTheLaw(t *testing.T) {
 		"bare":           Barnes2007(),
 		"scattered":      Scattered{Law: MamajekHillenbrand2008(), Dex: 0.08},
 		"scaled+scatter": Scattered{Law: Angus2015(), Dex: 0.15, Scale: 1.3},
+		"stalled":        Scattered{Law: stalledBarnes(0), Dex: 0.08},
 	}
 	for name, law := range laws {
 		t.Run(name, func(t *testing.T) {
@@ -33,7 +34,8 @@ func TestLogFormIsTheLaw(t *testing.T) {
 			ra, rb := rand.New(rand.NewPCG(7, 1)), rand.New(rand.NewPCG(7, 1))
 			for i := range 2000 {
 				// Colors and ages from inside and outside every law's range.
-				s := Star{BV: 0.3 + 1.5*float64(i%97)/96, AgeGyr: 0.05 + 14*float64(i%89)/88}
+				// Masses across the stall's (0.5–1.1 M☉).
+				s := Star{BV: 0.3 + 1.5*float64(i%97)/96, AgeGyr: 0.05 + 14*float64(i%89)/88, MassMsun: 0.45 + 0.7*float64(i%83)/82}
 				p, okP := law.Period(s, ra)
 				lnP, okL := f.LnPeriod(s, rb)
 				require.Equal(t, okP, okL, "star %+v", s)

@@ -23,6 +23,10 @@ type LawSpec struct {
 	// Every scenario carries every registered table, defaults filled in,
 	// so a scenario's canonical form lists them whichever law it uses.
 	Tables []OptionTable
+	// Borrows names option tables of other laws that this law reads too
+	// (the empirical laws read the torque law's [spin.stall]): a scenario
+	// using this law may switch them on and fit their keys.
+	Borrows []string
 	// New builds the law from its options (Options.Float("torque",
 	// "solar_period_d"), ...) and what the scenario knows of the stars.
 	New func(o Options, env Env) (Law, error)
@@ -131,6 +135,21 @@ func MustRegister(spec LawSpec) {
 	if err := Register(spec); err != nil {
 		panic(err)
 	}
+}
+
+// ReadTables returns the option tables the law reads: its own, then the
+// ones it borrows from other laws.
+func (s LawSpec) ReadTables() []OptionTable {
+	out := append([]OptionTable(nil), s.Tables...)
+	all, _ := OptionTables()
+	for _, name := range s.Borrows {
+		for _, t := range all {
+			if t.Name == name {
+				out = append(out, t)
+			}
+		}
+	}
+	return out
 }
 
 // Laws returns the registered laws in registration order.
