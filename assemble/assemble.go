@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"strings"
 
 	"spinpop/disk"
 	"spinpop/model"
@@ -291,8 +292,8 @@ func plainLaw(s *scenarios.Scenario, rel *model.Relations) (spin.Law, error) {
 		return nil, fmt.Errorf("spin.law: unknown spin-down law %q; use one of %q", s.Spin.Law, spin.Names())
 	}
 	if tables, owners := scenarios.SwitchedOnElsewhere(s); len(tables) > 0 {
-		return nil, fmt.Errorf("%s are options of the %s law; spin.law = %q cannot use them (set spin.law = %q or disable them)",
-			scenarios.SwitchableTables(owners[0]), owners[0], s.Spin.Law, owners[0])
+		return nil, fmt.Errorf("%s: options of the %s law, switched on; spin.law = %q cannot use them (set spin.law = %q or switch them off)",
+			strings.Join(tables, ", "), owners[0], s.Spin.Law, owners[0])
 	}
 	turn, err := spin.TurnoverByName(s.Spin.Turnover)
 	if err != nil {

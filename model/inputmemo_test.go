@@ -64,7 +64,11 @@ func TestObserveInputMemoIdentical(t *testing.T) {
 		// A stall moves the effective age Terms reads: new inputs, and
 		// another start again.
 		{"stall", change(func(q *Population) { withStall(0.65)(q); q.Binaries.TidalLockFraction = 0.3 }), false},
-		{"stall a side point", change(func(q *Population) { withStall(0.65)(q); q.Binaries.TidalLockFraction = 0.3; q.Law = scaledA(q.Law, 1.02) }), true},
+		{"stall a side point", change(func(q *Population) {
+			withStall(0.65)(q)
+			q.Binaries.TidalLockFraction = 0.3
+			q.Law = scaledA(q.Law, 1.02)
+		}), true},
 		{"stall moved", change(func(q *Population) { withStall(0.8)(q); q.Binaries.TidalLockFraction = 0.3 }), false},
 		{"the run as made", p, false},
 	}

@@ -4,7 +4,6 @@ import (
 	"math"
 	"reflect"
 	"slices"
-	"strings"
 
 	"spinpop/model/spin"
 )
@@ -226,17 +225,4 @@ func SwitchedOnElsewhere(s *Scenario) (tables []string, owners []string) {
 		}
 	}
 	return tables, owners
-}
-
-// SwitchableTables lists the switchable option tables of law name (its
-// own and those it borrows), as "spin.stall" paths, for messages.
-func SwitchableTables(name string) string {
-	spec, _ := spin.Lookup(name)
-	var out []string
-	for _, t := range spec.ReadTables() {
-		if t.Switch != "" {
-			out = append(out, "spin."+t.Name)
-		}
-	}
-	return strings.Join(out, " / ")
 }
