@@ -105,23 +105,33 @@ func (g GyroLaw) Name() string { return g.LawName }
 // Period implements Law. It reads s.BV and s.AgeGyr (and s.MassMsun with
 // a stall) and draws nothing from r: an empirical law is deterministic.
 func (g GyroLaw) Period(s Star, _ *rand.Rand) (periodD float64, ok bool) {
-	if !g.Stall.Enabled {
-		return g.PeriodAt(s.BV, s.AgeGyr)
-	}
-	if _, ok := g.PeriodAt(s.BV, s.AgeGyr); !ok {
+	if !g.inRange(s.BV, s.AgeGyr) {
 		return math.NaN(), false
 	}
-	return g.A * math.Exp(g.B*math.Log(s.BV-g.C)+g.N*math.Log(1000*g.Stall.effectiveAge(s.MassMsun, s.AgeGyr))), true
+	age := s.AgeGyr
+	if g.Stall.Enabled {
+		age = g.Stall.effectiveAge(s.MassMsun, age)
+	}
+	return g.relation(s.BV, age), true
 }
 
-// PeriodAt evaluates the relation at a color and an age in Gyr.
+// PeriodAt evaluates the relation at a color and an age in Gyr (no stall).
 func (g GyroLaw) PeriodAt(bv, ageGyr float64) (periodD float64, ok bool) {
-	if !(bv >= g.MinBV && bv <= g.MaxBV && ageGyr >= g.MinAgeGyr && ageGyr <= g.MaxAgeGyr) {
+	if !g.inRange(bv, ageGyr) {
 		return math.NaN(), false
 	}
-	// One exp of a sum of logs instead of two Pow calls: same result to
-	// rounding, half the cost.
-	return g.A * math.Exp(g.B*math.Log(bv-g.C)+g.N*math.Log(1000*ageGyr)), true
+	return g.relation(bv, ageGyr), true
+}
+
+// inRange reports whether a color and an age lie in the calibrated range.
+func (g GyroLaw) inRange(bv, ageGyr float64) bool {
+	return bv >= g.MinBV && bv <= g.MaxBV && ageGyr >= g.MinAgeGyr && ageGyr <= g.MaxAgeGyr
+}
+
+// relation is A (B−V − C)^B (1000 t)^N: one exp of a sum of logs instead
+// of two Pow calls, the same to rounding at half the cost.
+func (g GyroLaw) relation(bv, ageGyr float64) float64 {
+	return g.A * math.Exp(g.B*math.Log(bv-g.C)+g.N*math.Log(1000*ageGyr))
 }
 
 // Validate reports coefficients or ranges that cannot describe a

@@ -71,10 +71,7 @@ func (f *LogForm) Draws() bool { return f.scattered }
 func (f *LogForm) C() float64 { return f.g.C }
 
 // InRange reports whether s lies in the law's calibrated range.
-func (f *LogForm) InRange(s Star) bool {
-	g := &f.g
-	return s.BV >= g.MinBV && s.BV <= g.MaxBV && s.AgeGyr >= g.MinAgeGyr && s.AgeGyr <= g.MaxAgeGyr
-}
+func (f *LogForm) InRange(s Star) bool { return f.g.inRange(s.BV, s.AgeGyr) }
 
 // Terms returns the star's logarithms that the law's coefficients
 // multiply, ln(B−V − C) and ln(1000 t) (t the effective age under a
