@@ -157,14 +157,25 @@ func TestAlternativesSearchedAsThoroughlyAsTheBurstTest(t *testing.T) {
 }
 
 // A second search starts from another alternative's nuisance values only
-// when they lie in this one's box: the same names and ranges, in order.
-func TestSameRanges(t *testing.T) {
-	a := &Nuisance{Params: []NuisanceParam{{Name: "spin.a", Min: 0.6, Max: 0.95}, {Name: "survey.color_offset_mag", Min: -0.05, Max: 0.05}}}
+// when they lie in this one's box and it frees all of them (by name, in
+// any order); what it frees besides starts at its scenario value.
+func TestNuisanceStartFrom(t *testing.T) {
+	a := &Nuisance{Params: []NuisanceParam{{Name: "spin.a", Min: 0.6, Max: 0.95, Nominal: 0.77}, {Name: "survey.color_offset_mag", Min: -0.05, Max: 0.05}}}
 	b := &Nuisance{Params: slices.Clone(a.Params)}
-	assert.True(t, sameRanges(a, b))
-	b.Params[1].Max = 0.1
-	assert.False(t, sameRanges(a, b), "same names, another range")
+	start, ok := nuisanceStartFrom(a, b, []float64{0.8, 0.02})
+	require.True(t, ok)
+	assert.Equal(t, []float64{0.8, 0.02}, start)
 	b.Params = []NuisanceParam{a.Params[1], a.Params[0]}
-	assert.False(t, sameRanges(a, b), "another order")
-	assert.False(t, sameRanges(a, &Nuisance{Params: a.Params[:1]}))
+	start, ok = nuisanceStartFrom(a, b, []float64{0.02, 0.8})
+	require.True(t, ok, "another order")
+	assert.Equal(t, []float64{0.8, 0.02}, start)
+	start, ok = nuisanceStartFrom(a, &Nuisance{Params: a.Params[1:]}, []float64{0.03})
+	require.True(t, ok, "a frees more: the rest at its scenario value")
+	assert.Equal(t, []float64{0.77, 0.03}, start)
+	_, ok = nuisanceStartFrom(&Nuisance{Params: a.Params[1:]}, a, []float64{0.8, 0.02})
+	assert.False(t, ok, "a frees less: the start would not be b's answer")
+	b.Params = slices.Clone(a.Params)
+	b.Params[1].Max = 0.1
+	_, ok = nuisanceStartFrom(a, b, []float64{0.8, 0.08})
+	assert.False(t, ok, "same names, another range")
 }
