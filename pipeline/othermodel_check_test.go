@@ -215,6 +215,9 @@ func withRamp(h othermodel.History, s float64) othermodel.History {
 	return h
 }
 
+// variantKeys are the keys parseVariant takes, for its errors.
+const variantKeys = "ramp, law, scatter, p50, heightbeta, stall"
+
 // parseVariant reads SPINPOP_OTHERMODEL_VARIANT: the other model changed
 // further from spinpop than its defaults, so that the check also covers
 // catalogs whose smooth history is not constant, whose law is not the one
@@ -227,6 +230,7 @@ func withRamp(h othermodel.History, s float64) othermodel.History {
 //	scatter=dex   intrinsic period scatter (default 0.08)
 //	p50=days      half-detection period at B−V 0.65 (default 20)
 //	heightbeta=β  exponent of the scale height's growth with age (default 0.7)
+//	stall=S:D     K dwarfs' spin-down paused from S Gyr for D Gyr (othermodel.Stall; default none)
 func parseVariant(spec string) (othermodel.Config, error) {
 	cfg := othermodel.DefaultConfig()
 	if strings.TrimSpace(spec) == "" {
@@ -235,7 +239,7 @@ func parseVariant(spec string) (othermodel.Config, error) {
 	for _, kv := range strings.Split(spec, ",") {
 		k, v, ok := strings.Cut(strings.TrimSpace(kv), "=")
 		if !ok {
-			return cfg, fmt.Errorf("SPINPOP_OTHERMODEL_VARIANT: %q is not key=value (keys: ramp, law, scatter, p50, heightbeta, stall)", kv)
+			return cfg, fmt.Errorf("SPINPOP_OTHERMODEL_VARIANT: %q is not key=value (keys: %s)", kv, variantKeys)
 		}
 		if k == "law" {
 			switch v {
@@ -276,7 +280,7 @@ func parseVariant(spec string) (othermodel.Config, error) {
 		case "heightbeta":
 			cfg.ScaleHeightBeta = x
 		default:
-			return cfg, fmt.Errorf("SPINPOP_OTHERMODEL_VARIANT: unknown key %q (keys: ramp, law, scatter, p50, heightbeta, stall)", k)
+			return cfg, fmt.Errorf("SPINPOP_OTHERMODEL_VARIANT: unknown key %q (keys: %s)", k, variantKeys)
 		}
 	}
 	return cfg, cfg.Validate()

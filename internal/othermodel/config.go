@@ -169,6 +169,11 @@ func DefaultConfig() Config {
 // Validate reports the first value that would make the generator fail or
 // loop forever, naming the field and what would be right.
 func (c Config) Validate() error {
+	if c.Stall != nil {
+		if err := c.Stall.validate(); err != nil {
+			return err
+		}
+	}
 	h, s := c.History, c.Survey
 	switch {
 	case c.Stars < 1:
@@ -189,8 +194,6 @@ func (c Config) Validate() error {
 		return errors.New("othermodel: IMF needs 0 < MassMinMsun < MassMaxMsun and IMFSlope ≠ 1")
 	case !(c.Gyro.A > 0 && c.Gyro.N > 0):
 		return fmt.Errorf("othermodel: gyrochronology law %q needs A > 0 and N > 0", c.Gyro.Name)
-	case c.Stall != nil && c.Stall.validate() != nil:
-		return c.Stall.validate()
 	case !(c.Detection.MaxEfficiency > 0 && c.Detection.LnPWidth > 0 && c.Detection.VWidthMag > 0 && c.Detection.P50RefD > 0):
 		return errors.New("othermodel: Detection needs MaxEfficiency, P50RefD, LnPWidth and VWidthMag > 0")
 	case c.PeriodScatterDex < 0 || c.PeriodErrRel < 0 || c.ColorErrMag < 0 || c.MagErrMag < 0 || c.ParallaxErrMas < 0:
