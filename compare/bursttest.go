@@ -101,7 +101,11 @@ type BurstResult struct {
 	// cannot calibrate the law that dates it, so the calibration enters
 	// even where the law's coefficients were fitted as nuisance
 	// parameters (conservative: the profile already holds part of it).
-	AgeParam            string
+	AgeParam string
+	// AgeBounds are the age parameter's free range, [min, max] in Gyr
+	// (zero when AgeParam is ""): a best age on either edge is the
+	// range's answer, not the catalog's (edgeCaution).
+	AgeBounds           [2]float64 `json:"-"`
 	AgeIntervalProfile  Interval
 	AgeCalibrationSigma float64
 	AgeInterval         Interval
@@ -242,6 +246,11 @@ func BurstTest(ctx context.Context, like *Likelihood, smooth, burst HistoryModel
 		}
 	}
 	res := &BurstResult{Smooth: f0, Burst: f1, N: int(math.Round(like.N())), Replicates: opts.Replicates, AgeParam: ageParam}
+	for _, f := range burst.Free {
+		if f.Name == ageParam {
+			res.AgeBounds = [2]float64{f.Min, f.Max}
+		}
+	}
 	res.DeltaLogL = f1.LogL - f0.LogL
 	res.LR = math.Max(0, 2*res.DeltaLogL)
 	norm := like.NumScales()

@@ -117,3 +117,38 @@ func TestVerdictCautionsWhenUnconverged(t *testing.T) {
 	require.Equal(t, "none", strength)
 	assert.NotContains(t, text, "Caution")
 }
+
+// A claimed burst whose best age lies on an edge of its free range says
+// so (the young edge pointing at the stars the law leaves out, as on the
+// independent model's smooth catalogs with the detection held); one
+// inside the range, or a verdict of no burst, does not.
+func TestVerdictCautionsAtRangeEdge(t *testing.T) {
+	r := &BurstResult{Replicates: 100, PValue: 0.005, LR: 30, DeltaLogL: 15,
+		AgeParam: "burst.age_gyr", AgeBounds: [2]float64{0.1, 3},
+		Burst: FitResult{Names: []string{"burst.age_gyr", "burst.mass_fraction"}, Theta: []float64{0.1, 0.2}}}
+	strength, _, _, text := verdict(r)
+	require.Equal(t, "moderate", strength)
+	assert.Contains(t, text, "Caution: the burst lies at the youngest age its range allows (0.1 Gyr)")
+	assert.Contains(t, text, "mask_below_age_gyr")
+
+	r.Burst.Theta[0] = 0.12 // 0.7 % of the range above the floor: still on it
+	_, _, _, text = verdict(r)
+	assert.Contains(t, text, "youngest age its range allows")
+
+	r.Burst.Theta[0] = 0.2 // 3.4 % of the range inside it
+	_, _, _, text = verdict(r)
+	assert.NotContains(t, text, "Caution")
+
+	r.Burst.Theta[0] = 3
+	_, _, _, text = verdict(r)
+	assert.Contains(t, text, "Caution: the burst lies at the oldest age its range allows (3 Gyr)")
+
+	r.PValue = 0.5
+	strength, _, _, text = verdict(r)
+	require.Equal(t, "none", strength)
+	assert.NotContains(t, text, "Caution")
+
+	r.PValue, r.AgeBounds = 0.005, [2]float64{} // no range known: no caution
+	_, _, _, text = verdict(r)
+	assert.NotContains(t, text, "Caution")
+}

@@ -99,12 +99,41 @@ func verdict(r *BurstResult) (strength, reason, calibration, text string) {
 		sentence += fmt.Sprintf(" Caution: the fit strains %s, so the burst's age may be biased beyond its interval.", strings.Join(names, ", "))
 	}
 	if strength != "none" {
-		sentence += unconvergedCaution(r)
+		sentence += edgeCaution(r) + unconvergedCaution(r)
 	}
 	if !adequate {
 		return strength, "", calibration, fmt.Sprintf("The models do not describe the catalog fully: %s. Judged against that misfit (quasi-likelihood), %s", misfit, sentence)
 	}
 	return strength, "", calibration, strings.ToUpper(sentence[:1]) + sentence[1:] + " " + fitText
+}
+
+// edgeTol is how near an edge of its free range, as a share of the
+// range, a best burst age counts as on that edge.
+const edgeTol = 0.01
+
+// edgeCaution is the verdict's caution when the best burst age lies on
+// an edge of its free range ("" otherwise): the fit would have moved the
+// burst further, so its age is the range's. At the young edge that is
+// what stars younger than the spin-down law describes do — the law
+// gives them no period, a real catalog (and the independent model of the
+// check) holds them, and with the detection held a burst at the youngest
+// allowed age took them on every smooth catalog tried
+// (docs/independent-check.md); at the old edge a broad burst reshapes the
+// old history rather than marking an event.
+func edgeCaution(r *BurstResult) string {
+	i := indexOf(r.Burst.Names, r.AgeParam)
+	lo, hi := r.AgeBounds[0], r.AgeBounds[1]
+	if i < 0 || !(hi > lo) {
+		return ""
+	}
+	age := r.Burst.Theta[i]
+	switch {
+	case age-lo <= edgeTol*(hi-lo):
+		return fmt.Sprintf(" Caution: the burst lies at the youngest age its range allows (%.3g Gyr), so that age is the range's, not the catalog's; stars younger than the spin-down law describes put a burst there — mask more of the young cells (mask_below_age_gyr) and test again before reading it as an event.", lo)
+	case hi-age <= edgeTol*(hi-lo):
+		return fmt.Sprintf(" Caution: the burst lies at the oldest age its range allows (%.3g Gyr), so that age is the range's, not the catalog's; a burst there reshapes the old history rather than marking an event.", hi)
+	}
+	return ""
 }
 
 // unconvergedCaution is the verdict's caution when a fit stopped at its
