@@ -318,7 +318,7 @@ func altVerdict(r *AltResult) (best, outcome, text string) {
 	for _, i := range order {
 		f := r.Fits[i]
 		a := f.Adequacy
-		ok := a.Adequate(pAdequate)
+		ok := a.Adequate(AdequacyLevel)
 		anyAdequate = anyAdequate || ok
 		desc := "describes the catalog"
 		if !ok {
@@ -347,7 +347,7 @@ func altVerdict(r *AltResult) (best, outcome, text string) {
 		return "", "neither-fits", fmt.Sprintf("Neither explanation fits: each is rejected in favour of another by the bootstrap in both directions. %s", summary)
 	}
 	lead := ""
-	if !cf.Adequacy.Adequate(pAdequate) {
+	if !cf.Adequacy.Adequate(AdequacyLevel) {
 		lead = fmt.Sprintf("The best explanation, %q, does not describe the catalog fully (dispersion φ̂ = %.2f); read the preference with that in mind. ", cf.Name, cf.Adequacy.Dispersion)
 	}
 	if beatsAll {

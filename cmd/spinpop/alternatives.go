@@ -156,7 +156,7 @@ func runTestAlternatives(args []string, stdout, stderr io.Writer) error {
 		page.Verdict.Tone = report.Neutral
 	}
 	for _, f := range res.Fits {
-		if f.Name == res.Best && page.Verdict.Tone == report.Good && !f.Adequacy.Adequate(0.01) {
+		if f.Name == res.Best && page.Verdict.Tone == report.Good && !f.Adequacy.Adequate(compare.AdequacyLevel) {
 			page.Verdict.Tone = report.Caution // preferred, but it does not describe the catalog either
 		}
 	}

@@ -98,7 +98,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	var text strings.Builder
 	w := &text
 	gof := sc.GoodnessOfFit
-	if gof != nil && !gof.Adequate(0.01) {
+	if gof != nil && !gof.Adequate(compare.AdequacyLevel) {
 		fmt.Fprintf(w, "The scenario does not describe the catalog: deviance %.0f where its own replicates give %.0f ± %.0f (bootstrap p = %.3g, dispersion %.2f)%s.\n\n",
 			gof.Deviance, gof.ReplicateMean, gof.ReplicateSD, gof.PValue, gof.Dispersion, compare.WorstRegions(*gof))
 	}

@@ -45,7 +45,7 @@ func adequacyLine(name string, a compare.Adequacy) report.Line {
 	if a.Replicates == 0 {
 		return report.Line{Text: name + ": goodness of fit not calibrated (no bootstrap replicates)", Tone: report.Caution}
 	}
-	if a.Adequate(0.01) {
+	if a.Adequate(compare.AdequacyLevel) {
 		return report.Line{Tone: report.Good, Text: fmt.Sprintf("%s describes the catalog: deviance %.1f against %.1f ± %.1f from %d replicates of itself (p = %.3g, dispersion %.2f).",
 			name, a.Deviance, a.ReplicateMean, a.ReplicateSD, a.Replicates, a.PValue, a.Dispersion)}
 	}

@@ -191,12 +191,12 @@ func (w *pointWorker) burst(ctx context.Context, c *pipeline.Comparison, reps in
 }
 
 // adequacyWord is the plain-words adequacy of a fit at the verdict's
-// level (a deviance reached by more than 1 % of its own replicates).
+// level (a deviance reached by more than compare.AdequacyLevel of its own replicates).
 func adequacyWord(a compare.Adequacy) string {
 	if a.Replicates == 0 {
 		return ""
 	}
-	if a.Adequate(0.01) {
+	if a.Adequate(compare.AdequacyLevel) {
 		return "adequate"
 	}
 	return "inadequate"
