@@ -152,3 +152,23 @@ func TestVerdictCautionsAtRangeEdge(t *testing.T) {
 	_, _, _, text = verdict(r)
 	assert.NotContains(t, text, "Caution")
 }
+
+// The adequacy level: the smooth catalog of the independent model whose
+// fit passed at p = 0.04 under the old 1 % level, its burst (2Δln L = 24)
+// then judged by the plain bootstrap and "moderate", is judged against
+// its misfit (excess deviance 43) at 5 % and refused; the same numbers
+// with a deviance its replicates reach often (p = 0.2) keep the plain
+// verdict. The numbers are that run's (docs/independent-check.md).
+func TestVerdictAdequacyLevel(t *testing.T) {
+	r := &BurstResult{Replicates: 200, PValue: 0.005, PValueQuasi: 0.005, LR: 24, DeltaLogL: 12, Dispersion: 1.19,
+		AdequacyBurst: Adequacy{Deviance: 270, ReplicateMean: 227, ReplicateSD: 19, PValue: 0.04, Dispersion: 1.19, Excess: 43, Replicates: 200}}
+	strength, reason, calibration, _ := verdict(r)
+	assert.Equal(t, "unreliable", strength)
+	assert.Equal(t, "quasi-likelihood", calibration)
+	assert.Contains(t, reason, "excess deviance 43.0")
+
+	r.AdequacyBurst.PValue = 0.2
+	strength, _, calibration, _ = verdict(r)
+	assert.Equal(t, "moderate", strength)
+	assert.Equal(t, "bootstrap", calibration)
+}
