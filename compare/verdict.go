@@ -132,13 +132,17 @@ func edgeCaution(r *BurstResult) string {
 		return ""
 	}
 	age := r.Burst.Theta[i]
+	var edge, why string
+	var at float64
 	switch {
 	case age-lo <= edgeTol*(hi-lo):
-		return fmt.Sprintf(" Caution: the burst lies at the youngest age its range allows (%.3g Gyr), so that age is the range's, not the catalog's; stars younger than the spin-down law describes put a burst there — mask more of the young cells (mask_below_age_gyr) and test again before reading it as an event.", lo)
+		edge, at, why = "youngest", lo, "stars younger than the spin-down law describes put a burst there — mask more of the young cells (mask_below_age_gyr) and test again before reading it as an event"
 	case hi-age <= edgeTol*(hi-lo):
-		return fmt.Sprintf(" Caution: the burst lies at the oldest age its range allows (%.3g Gyr), so that age is the range's, not the catalog's; a burst there reshapes the old history rather than marking an event.", hi)
+		edge, at, why = "oldest", hi, "a burst there reshapes the old history rather than marking an event"
+	default:
+		return ""
 	}
-	return ""
+	return fmt.Sprintf(" Caution: the burst lies at the %s age its range allows (%.3g Gyr), so that age is the range's, not the catalog's; %s.", edge, at, why)
 }
 
 // unconvergedCaution is the verdict's caution when a fit stopped at its

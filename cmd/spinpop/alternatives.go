@@ -42,7 +42,7 @@ func runTestAlternatives(args []string, stdout, stderr io.Writer) error {
 		return usageErrorf("test-alternatives takes the scenarios to compare, one per explanation, or one scenario with [[compare.alternatives]]; got none (see spinpop test-alternatives --help)")
 	}
 	if *reps < 20 {
-		return usageErrorf("--replicates = %d: the bootstrap needs at least 20 replicates per explanation (200 or more to judge goodness of fit at 1 %%)", *reps)
+		return usageErrorf("--replicates = %d: the bootstrap needs at least 20 replicates per explanation (200 or more for p-values of a few per cent and below)", *reps)
 	}
 	ctx, stop := signalContext()
 	defer stop()
