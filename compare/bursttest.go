@@ -104,7 +104,7 @@ type BurstResult struct {
 	AgeParam string
 	// AgeBounds are the age parameter's free range, [min, max] in Gyr
 	// (zero when AgeParam is ""): a best age on either edge is the
-	// range's answer, not the catalog's (edgeCaution).
+	// range's answer, not the catalog's, and no burst is claimed there (onRangeEdge).
 	AgeBounds           [2]float64 `json:"-"`
 	AgeIntervalProfile  Interval
 	AgeCalibrationSigma float64

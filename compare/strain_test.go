@@ -118,39 +118,56 @@ func TestVerdictCautionsWhenUnconverged(t *testing.T) {
 	assert.NotContains(t, text, "Caution")
 }
 
-// A claimed burst whose best age lies on an edge of its free range says
-// so (the young edge pointing at the stars the law leaves out, as on the
-// independent model's smooth catalogs with the detection held); one
-// inside the range, or a verdict of no burst, does not.
-func TestVerdictCautionsAtRangeEdge(t *testing.T) {
+// A claimed burst on an edge of its age range is refused: its age is the
+// range's. The numbers are of the kind the independent model's smooth
+// catalogs gave with the detection held (docs/independent-check.md): a
+// burst at the 0.1 Gyr floor, and one at the 3 Gyr edge.
+func TestVerdictRefusesBurstAtRangeEdge(t *testing.T) {
 	r := &BurstResult{Replicates: 100, PValue: 0.005, LR: 30, DeltaLogL: 15,
 		AgeParam: "burst.age_gyr", AgeBounds: [2]float64{0.1, 3},
 		Burst: FitResult{Names: []string{"burst.age_gyr", "burst.mass_fraction"}, Theta: []float64{0.1, 0.2}}}
-	strength, _, _, text := verdict(r)
-	require.Equal(t, "moderate", strength)
-	assert.Contains(t, text, "Caution: the burst lies at the youngest age its range allows (0.1 Gyr)")
+	strength, reason, _, text := verdict(r)
+	require.Equal(t, "unreliable", strength)
+	assert.Contains(t, reason, "youngest age its range allows (0.1 Gyr)")
+	assert.True(t, strings.HasPrefix(text, "No burst is claimed"), text)
 	assert.Contains(t, text, "mask_below_age_gyr")
+	assert.Contains(t, text, "favours a burst", "the ratio's own reading is kept after the refusal")
 
 	r.Burst.Theta[0] = 0.12 // 0.7 % of the range above the floor: still on it
-	_, _, _, text = verdict(r)
-	assert.Contains(t, text, "youngest age its range allows")
+	strength, _, _, _ = verdict(r)
+	assert.Equal(t, "unreliable", strength)
 
 	r.Burst.Theta[0] = 0.2 // 3.4 % of the range inside it
-	_, _, _, text = verdict(r)
-	assert.NotContains(t, text, "Caution")
+	strength, reason, _, text = verdict(r)
+	assert.Equal(t, "moderate", strength)
+	assert.Empty(t, reason)
+	assert.NotContains(t, text, "range allows")
 
 	r.Burst.Theta[0] = 3
-	_, _, _, text = verdict(r)
-	assert.Contains(t, text, "Caution: the burst lies at the oldest age its range allows (3 Gyr)")
+	strength, reason, _, _ = verdict(r)
+	assert.Equal(t, "unreliable", strength)
+	assert.Contains(t, reason, "oldest age its range allows (3 Gyr)")
 
-	r.PValue = 0.5
-	strength, _, _, text = verdict(r)
+	r.PValue = 0.03 // weak: a hint on the edge is refused too
+	strength, _, _, _ = verdict(r)
+	assert.Equal(t, "unreliable", strength)
+
+	r.PValue = 0.5 // no claim: nothing to refuse
+	strength, reason, _, _ = verdict(r)
 	require.Equal(t, "none", strength)
-	assert.NotContains(t, text, "Caution")
+	assert.Empty(t, reason)
 
-	r.PValue, r.AgeBounds = 0.005, [2]float64{} // no range known: no caution
-	_, _, _, text = verdict(r)
-	assert.NotContains(t, text, "Caution")
+	r.PValue, r.AgeBounds = 0.005, [2]float64{} // no range known
+	strength, _, _, _ = verdict(r)
+	assert.Equal(t, "moderate", strength)
+
+	// A misfit larger than the ratio is the first reason given.
+	r.AgeBounds = [2]float64{0.1, 3}
+	r.PValueQuasi = 0.005
+	r.AdequacyBurst = Adequacy{Deviance: 400, ReplicateMean: 227, ReplicateSD: 19, PValue: 0.001, Dispersion: 1.7, Excess: 173, Replicates: 100}
+	strength, reason, _, _ = verdict(r)
+	assert.Equal(t, "unreliable", strength)
+	assert.Contains(t, reason, "excess deviance 173.0")
 }
 
 // The adequacy level: the smooth catalog of the independent model whose

@@ -217,9 +217,12 @@ func profileRange(c *pipeline.Comparison, r *pipeline.BurstOutcome) (lo, hi floa
 
 func printBurstSummary(w io.Writer, r *pipeline.BurstOutcome) {
 	t := r.Test
-	if t.Calibration == "quasi-likelihood" || t.Strength == "unreliable" {
+	if t.Calibration == "quasi-likelihood" {
 		fmt.Fprintf(w, "\nwarning: the models do not describe this catalog (deviance %.0f where counting noise gives %.0f ± %.0f); read the verdict at the end first\n",
 			t.AdequacyBurst.Deviance, t.AdequacyBurst.ReplicateMean, t.AdequacyBurst.ReplicateSD)
+	}
+	if t.Strength == "unreliable" {
+		fmt.Fprintf(w, "warning: no burst is claimed: %s\n", t.StrengthReason)
 	}
 	warnRoundLimits(w, []string{"smooth-history fit", "with-burst fit"}, []compare.FitResult{t.Smooth, t.Burst})
 	for _, f := range []struct {
