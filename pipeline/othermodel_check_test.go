@@ -116,6 +116,10 @@ func runCheck(t *testing.T, cases []checkCase, replicates int, templateStars int
 		t.Logf(checkLineFormat+" | %s | %s",
 			cs.name, cs.ageGyr, r.strength, r.age, r.lo95, r.hi95, r.lr, r.deviance, r.exp, r.adequacyP, tr.Verdict,
 			compare.StrainWarning("strained", tr.Strains, tr.GaussianPriors))
+		// The fitted histories, for reading the shape a burst took
+		// (a broad one at the old end, one on a range's edge).
+		t.Logf("%-12s with burst: %s (ln L %.2f); smooth: %s (ln L %.2f)", cs.name,
+			historyText(tr.Burst), tr.Burst.LogL, historyText(tr.Smooth), tr.Smooth.LogL)
 		if b := tr.AgeBootstrap; len(b.Ages) > 0 {
 			t.Logf("%-12s burst age refitted on %d mocks drawn at %.3f: median %.3f, 68 %% [%.3f, %.3f], 95 %% [%.3f, %.3f]; profile interval [%.3f, %.3f] holds %.0f %%; ages %.3f",
 				cs.name, len(b.Ages), b.Truth, b.Median, b.Lo68, b.Hi68, b.Lo95, b.Hi95,
@@ -124,6 +128,15 @@ func runCheck(t *testing.T, cases []checkCase, replicates int, templateStars int
 		out = append(out, r)
 	}
 	return out
+}
+
+// historyText is a fit's history parameters as name = value.
+func historyText(f compare.FitResult) string {
+	parts := make([]string, len(f.Names))
+	for i, n := range f.Names {
+		parts[i] = fmt.Sprintf("%s = %.4g", n, f.Theta[i])
+	}
+	return strings.Join(parts, ", ")
 }
 
 // summarise counts false claims among smooth catalogs, and among burst
