@@ -60,6 +60,11 @@ type AltFit struct {
 	// GaussianPriors with a gaussian prior.
 	Strains        []Strain `json:"-"`
 	GaussianPriors int      `json:"-"`
+	// AgesOnEdge are the ages that set this alternative apart
+	// (distinguishingAges) which its fit put on an edge of their free
+	// range (rangeEnd), in words: such an age is the range's, not the
+	// catalog's, and the burst test refuses a burst there (onRangeEdge).
+	AgesOnEdge []string `json:"ages_on_range_edge,omitempty"`
 }
 
 // PairTest compares two alternatives by their likelihood ratio
@@ -138,7 +143,7 @@ func CompareAlternatives(ctx context.Context, alts []Alternative, opts AltOption
 		f := fits[h]
 		k := a.History.Dim() + a.Nuisance.Dim() + a.Like.NumScales()
 		af := AltFit{Name: a.Name, Fit: f, K: k, LogL: f.LogL, AIC: stats.AIC(f.LogL, k), BIC: stats.BIC(f.LogL, k, res.N), LogEvidence: math.NaN(),
-			Strains: Strains(f, a.Nuisance), GaussianPriors: GaussianPriors(a.Nuisance)}
+			Strains: Strains(f, a.Nuisance), GaussianPriors: GaussianPriors(a.Nuisance), AgesOnEdge: agesOnEdge(a.History, f, distinguishingAges(alts, h))}
 		var err error
 		if data[h], err = fitDeviance(a.Like, f, regs); err != nil {
 			return nil, err
@@ -361,7 +366,27 @@ func altVerdict(r *AltResult) (best, outcome, text string) {
 				ps = append(ps, fmt.Sprintf("%q rejected at bootstrap %s", other, pIs(pv)))
 			}
 		}
+		if len(cf.AgesOnEdge) > 0 {
+			lead = fmt.Sprintf("Caution: %q's fit puts %s, so that age is the range's, not the catalog's, and marks no event (the burst test refuses a burst there); read the preference as one for the range's end, not for an event at that age, and test again with the range widened (at the youngest edge, with more of the young cells masked). ", cf.Name, strings.Join(cf.AgesOnEdge, " and ")) + lead
+		}
 		return cf.Name, "prefers", lead + fmt.Sprintf("The catalog prefers %q (%s). %s", cf.Name, strings.Join(ps, ", "), summary)
 	}
 	return "", "cannot-tell", lead + fmt.Sprintf("The catalog cannot tell the explanations apart: %q fits best (2Δln L = %.1f over %q), but the bootstrap does not reject the others at p ≤ %.2g. %s", cf.Name, gain, second.Name, pReject, summary)
+}
+
+// agesOnEdge describes the ages among names that fit f put on an edge of
+// their free range in m (nil when none).
+func agesOnEdge(m HistoryModel, f FitResult, names []string) []string {
+	var out []string
+	for _, p := range m.Free {
+		i := indexOf(f.Names, p.Name)
+		if i < 0 || !slices.Contains(names, p.Name) {
+			continue
+		}
+		end := map[string]string{"min": "youngest", "max": "oldest"}[rangeEnd(f.Theta[i], p.Min, p.Max)]
+		if end != "" {
+			out = append(out, fmt.Sprintf("%s at %.3g Gyr, the %s age its range allows", p.Name, f.Theta[i], end))
+		}
+	}
+	return out
 }

@@ -2,6 +2,7 @@ package compare
 
 import (
 	"context"
+	"strings"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -102,4 +103,45 @@ func TestNormalUpperTail(t *testing.T) {
 	assert.InDelta(t, 0.0013499, normalUpperTail(10+3*2, 10, 2), 1e-7)
 	assert.Equal(t, 0.0, normalUpperTail(5, 4, 0))
 	assert.Equal(t, 1.0, normalUpperTail(3, 4, 0))
+}
+
+// A preferred explanation whose burst age sits on an edge of its range
+// says so first: data with a burst at 2.5 Gyr, explained by a constant
+// history or by one with a burst free only from 3 to 8 Gyr. The burst
+// alternative wins with its age pushed to 3 Gyr, the range's answer; with
+// the range opened to 1–8 Gyr it wins inside the range and no caution is
+// given.
+func TestAlternativesCautionBurstOnRangeEdge(t *testing.T) {
+	tpl, _, hist := altSetup(t, 0.06, 0.06)
+	w, err := hist.Weights([]float64{0.3})
+	require.NoError(t, err)
+	data := poissonData(tpl, w, 20000/tpl.totalStars(w), 7)
+	flat, err := sfh.New(10, []sfh.Part{{Name: "smooth", Component: sfh.Constant{}, Weight: 1}})
+	require.NoError(t, err)
+	smooth := HistoryModel{Base: flat, AgeEdgesGyr: hist.AgeEdgesGyr}
+	run := func(minAge float64) *AltResult {
+		burst := hist
+		burst.Free = []FreeParam{{Name: "burst.age_gyr", Min: minAge, Max: 8}, {Name: "burst.mass_fraction", Min: 0, Max: 0.5}}
+		l0, err := NewLikelihood(tpl, data, LikeOptions{TemplateNoise: NoiseIgnore})
+		require.NoError(t, err)
+		l1, err := NewLikelihood(tpl, data, LikeOptions{TemplateNoise: NoiseIgnore})
+		require.NoError(t, err)
+		res, err := CompareAlternatives(context.Background(), []Alternative{
+			{Name: "smooth", Like: l0, History: smooth},
+			{Name: "burst", Like: l1, History: burst},
+		}, AltOptions{Replicates: 19, Seed: 2, Workers: 2, NoEvidence: true})
+		require.NoError(t, err)
+		t.Log(res.Verdict)
+		return res
+	}
+	res := run(3)
+	require.Equal(t, "burst", res.Best)
+	require.Len(t, res.Fits[1].AgesOnEdge, 1)
+	assert.Contains(t, res.Fits[1].AgesOnEdge[0], "burst.age_gyr at 3 Gyr, the youngest age its range allows")
+	assert.True(t, strings.HasPrefix(res.Verdict, `Caution: "burst"'s fit puts burst.age_gyr at 3 Gyr`), res.Verdict)
+
+	res = run(1)
+	require.Equal(t, "burst", res.Best)
+	assert.Empty(t, res.Fits[1].AgesOnEdge)
+	assert.NotContains(t, res.Verdict, "Caution")
 }

@@ -123,6 +123,20 @@ func verdict(r *BurstResult) (strength, reason, calibration, text string) {
 // range, a best burst age counts as on that edge.
 const edgeTol = 0.01
 
+// rangeEnd says which end of the range [lo, hi] v lies on, within edgeTol
+// of the range: "min", "max", or "" (inside it, or no range).
+func rangeEnd(v, lo, hi float64) string {
+	switch {
+	case !(hi > lo):
+		return ""
+	case v-lo <= edgeTol*(hi-lo):
+		return "min"
+	case hi-v <= edgeTol*(hi-lo):
+		return "max"
+	}
+	return ""
+}
+
 // onRangeEdge gives, when the best burst age lies on an edge of its free
 // range, why no burst is claimed and what to do ("", "" otherwise). The
 // fit would have moved the burst further, so its age is the range's and
@@ -140,16 +154,15 @@ const edgeTol = 0.01
 // is not touched.
 func onRangeEdge(r *BurstResult) (reason, advice string) {
 	i := indexOf(r.Burst.Names, r.AgeParam)
-	lo, hi := r.AgeBounds[0], r.AgeBounds[1]
-	if i < 0 || !(hi > lo) {
+	if i < 0 {
 		return "", ""
 	}
-	age := r.Burst.Theta[i]
-	switch {
-	case age-lo <= edgeTol*(hi-lo):
+	lo, hi := r.AgeBounds[0], r.AgeBounds[1]
+	switch rangeEnd(r.Burst.Theta[i], lo, hi) {
+	case "min":
 		return fmt.Sprintf("the best burst lies at the youngest age its range allows (%.3g Gyr), so that age is the range's, not the catalog's, and stars younger than the spin-down law describes put a burst there", lo),
 			"Mask more of the young cells (mask_below_age_gyr) and test again."
-	case hi-age <= edgeTol*(hi-lo):
+	case "max":
 		return fmt.Sprintf("the best burst lies at the oldest age its range allows (%.3g Gyr), so that age is the range's, not the catalog's, and a burst there stands in for what the models lack among the oldest stars the range reaches — the longest periods, where the detection and the law are least certain — rather than marking an event", hi),
 			"Test again with a wider age range where the spin-down law allows it, and free the detection against period if it is held."
 	}

@@ -129,11 +129,18 @@ func runTestAlternatives(args []string, stdout, stderr io.Writer) error {
 		fitNames, fitResults = append(fitNames, fmt.Sprintf("fit of %q", f.Name)), append(fitResults, f.Fit)
 	}
 	warnRoundLimits(w, fitNames, fitResults)
-	var strainWarnings []string
+	var pageWarnings []string // strains, and the preferred fit's ages on a range's edge
 	for _, f := range res.Fits {
 		if s := compare.StrainWarning(fmt.Sprintf("the fit of %q", f.Name), f.Strains, f.GaussianPriors); s != "" {
 			fmt.Fprintf(w, "warning: %s\n", s)
-			strainWarnings = append(strainWarnings, compare.StrainWarning(fmt.Sprintf("The fit of %q", f.Name), f.Strains, f.GaussianPriors)+".")
+			pageWarnings = append(pageWarnings, compare.StrainWarning(fmt.Sprintf("The fit of %q", f.Name), f.Strains, f.GaussianPriors)+".")
+		}
+	}
+	for _, f := range res.Fits {
+		if f.Name == res.Best && len(f.AgesOnEdge) > 0 {
+			s := fmt.Sprintf("the preferred fit, %q, puts %s: that age is the range's, not the catalog's (read the verdict at the end)", f.Name, strings.Join(f.AgesOnEdge, " and "))
+			fmt.Fprintf(w, "warning: %s\n", s)
+			pageWarnings = append(pageWarnings, strings.ToUpper(s[:1])+s[1:]+".")
 		}
 	}
 	printDataSummary(w, comps[0].DataSummary())
@@ -156,11 +163,11 @@ func runTestAlternatives(args []string, stdout, stderr io.Writer) error {
 		page.Verdict.Tone = report.Neutral
 	}
 	for _, f := range res.Fits {
-		if f.Name == res.Best && page.Verdict.Tone == report.Good && !f.Adequacy.Adequate(compare.AdequacyLevel) {
-			page.Verdict.Tone = report.Caution // preferred, but it does not describe the catalog either
+		if f.Name == res.Best && page.Verdict.Tone == report.Good && (!f.Adequacy.Adequate(compare.AdequacyLevel) || len(f.AgesOnEdge) > 0) {
+			page.Verdict.Tone = report.Caution // preferred, but it does not describe the catalog, or its age is its range's
 		}
 	}
-	page.Warnings = append(page.Warnings, strainWarnings...)
+	page.Warnings = append(page.Warnings, pageWarnings...)
 	var fits, pairs []report.Row
 	for _, f := range res.Fits {
 		page.Adequacy = append(page.Adequacy, adequacyLine(fmt.Sprintf("%q", f.Name), f.Adequacy))
