@@ -366,8 +366,8 @@ func altVerdict(r *AltResult) (best, outcome, text string) {
 				ps = append(ps, fmt.Sprintf("%q rejected at bootstrap %s", other, pIs(pv)))
 			}
 		}
-		if len(cf.AgesOnEdge) > 0 {
-			lead = fmt.Sprintf("Caution: %q's fit puts %s, so that age is the range's, not the catalog's, and marks no event (the burst test refuses a burst there); read the preference as one for the range's end, not for an event at that age, and test again with the range widened (at the youngest edge, with more of the young cells masked). ", cf.Name, strings.Join(cf.AgesOnEdge, " and ")) + lead
+		if w := cf.EdgeWarning(); w != "" {
+			lead = "Caution: " + w + "; read the preference as one for the range's end, not for an event there, and test again with the range widened (or, at a youngest edge, more of the young cells masked). " + lead
 		}
 		return cf.Name, "prefers", lead + fmt.Sprintf("The catalog prefers %q (%s). %s", cf.Name, strings.Join(ps, ", "), summary)
 	}
@@ -383,10 +383,34 @@ func agesOnEdge(m HistoryModel, f FitResult, names []string) []string {
 		if i < 0 || !slices.Contains(names, p.Name) {
 			continue
 		}
-		end := map[string]string{"min": "youngest", "max": "oldest"}[rangeEnd(f.Theta[i], p.Min, p.Max)]
-		if end != "" {
-			out = append(out, fmt.Sprintf("%s at %.3g Gyr, the %s age its range allows", p.Name, f.Theta[i], end))
+		if _, where := rangeEdge(f.Theta[i], p.Min, p.Max); where != "" {
+			out = append(out, fmt.Sprintf("%s at %s", p.Name, where))
 		}
 	}
 	return out
+}
+
+// EdgeWarning says, when the fit put ages that set this alternative apart
+// on an edge of their range (AgesOnEdge), which and what that means (""
+// otherwise): such an age is the range's, not the catalog's, as the burst
+// test's refusal of a burst there says (onRangeEdge).
+func (f AltFit) EdgeWarning() string {
+	switch len(f.AgesOnEdge) {
+	case 0:
+		return ""
+	case 1:
+		return fmt.Sprintf("the fit of %q puts %s, so that age is the range's, not the catalog's, and marks no event", f.Name, f.AgesOnEdge[0])
+	}
+	return fmt.Sprintf("the fit of %q puts %s, so those ages are the ranges', not the catalog's, and mark no event", f.Name, strings.Join(f.AgesOnEdge, " and "))
+}
+
+// BestFit is the fit of the alternative the verdict prefers (false when
+// it prefers none).
+func (r *AltResult) BestFit() (AltFit, bool) {
+	for _, f := range r.Fits {
+		if r.Best != "" && f.Name == r.Best {
+			return f, true
+		}
+	}
+	return AltFit{}, false
 }

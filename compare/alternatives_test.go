@@ -137,8 +137,8 @@ func TestAlternativesCautionBurstOnRangeEdge(t *testing.T) {
 	res := run(3)
 	require.Equal(t, "burst", res.Best)
 	require.Len(t, res.Fits[1].AgesOnEdge, 1)
-	assert.Contains(t, res.Fits[1].AgesOnEdge[0], "burst.age_gyr at 3 Gyr, the youngest age its range allows")
-	assert.True(t, strings.HasPrefix(res.Verdict, `Caution: "burst"'s fit puts burst.age_gyr at 3 Gyr`), res.Verdict)
+	assert.Equal(t, "burst.age_gyr at the youngest age its range allows (3 Gyr)", res.Fits[1].AgesOnEdge[0])
+	assert.True(t, strings.HasPrefix(res.Verdict, `Caution: the fit of "burst" puts burst.age_gyr at the youngest age its range allows (3 Gyr)`), res.Verdict)
 
 	res = run(1)
 	require.Equal(t, "burst", res.Best)

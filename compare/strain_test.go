@@ -168,6 +168,7 @@ func TestVerdictRefusesBurstAtRangeEdge(t *testing.T) {
 	strength, reason, _, _ = verdict(r)
 	assert.Equal(t, "unreliable", strength)
 	assert.Contains(t, reason, "excess deviance 173.0")
+	assert.NotContains(t, reason, "range allows", "the misfit's reason, not the edge's")
 }
 
 // The adequacy level: the smooth catalog of the independent model whose

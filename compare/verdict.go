@@ -123,47 +123,49 @@ func verdict(r *BurstResult) (strength, reason, calibration, text string) {
 // range, a best burst age counts as on that edge.
 const edgeTol = 0.01
 
-// rangeEnd says which end of the range [lo, hi] v lies on, within edgeTol
-// of the range: "min", "max", or "" (inside it, or no range).
-func rangeEnd(v, lo, hi float64) string {
+// rangeEdge says where v lies against its free range [lo, hi]: on its
+// young end ("min"), its old end ("max"), within edgeTol of the range, or
+// inside it (""); and in words, "the youngest age its range allows
+// (0.1 Gyr)". No range (hi ≤ lo) is inside.
+func rangeEdge(v, lo, hi float64) (end, words string) {
 	switch {
 	case !(hi > lo):
-		return ""
+		return "", ""
 	case v-lo <= edgeTol*(hi-lo):
-		return "min"
+		return "min", fmt.Sprintf("the youngest age its range allows (%.3g Gyr)", lo)
 	case hi-v <= edgeTol*(hi-lo):
-		return "max"
+		return "max", fmt.Sprintf("the oldest age its range allows (%.3g Gyr)", hi)
 	}
-	return ""
+	return "", ""
 }
 
 // onRangeEdge gives, when the best burst age lies on an edge of its free
 // range, why no burst is claimed and what to do ("", "" otherwise). The
 // fit would have moved the burst further, so its age is the range's and
 // the burst marks no event: it is the history's family bent at its end.
-// At the young edge that is what stars younger than the spin-down law
-// describes do — the law gives them no period, a real catalog (and the
-// independent model of the check) holds them, and with the detection held
-// a burst at the youngest allowed age took them on every smooth catalog
-// tried, one of them `weak` (docs/independent-check.md); at the old edge
-// it stands in for what the models lack at the longest periods, as on
-// that check's smooth catalogs (bursts at 2.4–3.0 Gyr, the three looked
-// at closely 0.02 Gyr wide). The
-// bootstrap cannot see this: its mocks come from the model, whose young
-// and old ends are what the fit made them. A real burst inside the range
-// is not touched.
+// At the young edge the likeliest cause is stars younger than the range
+// or the spin-down law describes — the law gives them no period, a real
+// catalog (and the independent model of the check) holds them, and with
+// the detection held a burst at the youngest allowed age took them on
+// every smooth catalog tried, one of them `weak`
+// (docs/independent-check.md); at the old edge it stands in for what the
+// models lack at the longest periods, as on that check's smooth catalogs
+// (bursts at 2.4–3.0 Gyr, the three looked at closely 0.02 Gyr wide).
+// The bootstrap cannot see this: its mocks come from the model, whose
+// young and old ends are what the fit made them. A real burst inside the
+// range is not touched.
 func onRangeEdge(r *BurstResult) (reason, advice string) {
 	i := indexOf(r.Burst.Names, r.AgeParam)
 	if i < 0 {
 		return "", ""
 	}
-	lo, hi := r.AgeBounds[0], r.AgeBounds[1]
-	switch rangeEnd(r.Burst.Theta[i], lo, hi) {
+	end, where := rangeEdge(r.Burst.Theta[i], r.AgeBounds[0], r.AgeBounds[1])
+	switch end {
 	case "min":
-		return fmt.Sprintf("the best burst lies at the youngest age its range allows (%.3g Gyr), so that age is the range's, not the catalog's, and stars younger than the spin-down law describes put a burst there", lo),
-			"Mask more of the young cells (mask_below_age_gyr) and test again."
+		return fmt.Sprintf("the best burst lies at %s, so that age is the range's, not the catalog's; likely cause: stars younger than the range or the spin-down law describes", where),
+			"Widen the range downward where the law allows it, or mask more of the young cells (mask_below_age_gyr), and test again."
 	case "max":
-		return fmt.Sprintf("the best burst lies at the oldest age its range allows (%.3g Gyr), so that age is the range's, not the catalog's, and a burst there stands in for what the models lack among the oldest stars the range reaches — the longest periods, where the detection and the law are least certain — rather than marking an event", hi),
+		return fmt.Sprintf("the best burst lies at %s, so that age is the range's, not the catalog's; a burst there likely stands in for what the models lack among the oldest stars the range reaches — the longest periods, where the detection and the law are least certain — rather than marking an event", where),
 			"Test again with a wider age range where the spin-down law allows it, and free the detection against period if it is held."
 	}
 	return "", ""

@@ -123,26 +123,7 @@ func runTestAlternatives(args []string, stdout, stderr io.Writer) error {
 	if res.Outcome != "prefers" {
 		fmt.Fprintf(w, "%s\n\n", res.Verdict)
 	}
-	var fitNames []string
-	var fitResults []compare.FitResult
-	for _, f := range res.Fits {
-		fitNames, fitResults = append(fitNames, fmt.Sprintf("fit of %q", f.Name)), append(fitResults, f.Fit)
-	}
-	warnRoundLimits(w, fitNames, fitResults)
-	var pageWarnings []string // strains, and the preferred fit's ages on a range's edge
-	for _, f := range res.Fits {
-		if s := compare.StrainWarning(fmt.Sprintf("the fit of %q", f.Name), f.Strains, f.GaussianPriors); s != "" {
-			fmt.Fprintf(w, "warning: %s\n", s)
-			pageWarnings = append(pageWarnings, compare.StrainWarning(fmt.Sprintf("The fit of %q", f.Name), f.Strains, f.GaussianPriors)+".")
-		}
-	}
-	for _, f := range res.Fits {
-		if f.Name == res.Best && len(f.AgesOnEdge) > 0 {
-			s := fmt.Sprintf("the preferred fit, %q, puts %s: that age is the range's, not the catalog's (read the verdict at the end)", f.Name, strings.Join(f.AgesOnEdge, " and "))
-			fmt.Fprintf(w, "warning: %s\n", s)
-			pageWarnings = append(pageWarnings, strings.ToUpper(s[:1])+s[1:]+".")
-		}
-	}
+	pageWarnings := printAltWarnings(w, res)
 	printDataSummary(w, comps[0].DataSummary())
 	fmt.Fprintln(w)
 	for _, f := range res.Fits {
@@ -162,10 +143,8 @@ func runTestAlternatives(args []string, stdout, stderr io.Writer) error {
 	if page.Verdict.Tone == "" {
 		page.Verdict.Tone = report.Neutral
 	}
-	for _, f := range res.Fits {
-		if f.Name == res.Best && page.Verdict.Tone == report.Good && (!f.Adequacy.Adequate(compare.AdequacyLevel) || len(f.AgesOnEdge) > 0) {
-			page.Verdict.Tone = report.Caution // preferred, but it does not describe the catalog, or its age is its range's
-		}
+	if best, preferred := res.BestFit(); preferred && page.Verdict.Tone == report.Good && (!best.Adequacy.Adequate(compare.AdequacyLevel) || len(best.AgesOnEdge) > 0) {
+		page.Verdict.Tone = report.Caution // preferred, but it does not describe the catalog, or its age is its range's
 	}
 	page.Warnings = append(page.Warnings, pageWarnings...)
 	var fits, pairs []report.Row
@@ -190,6 +169,33 @@ func runTestAlternatives(args []string, stdout, stderr io.Writer) error {
 type explanation struct {
 	arg string
 	res *scenarios.Resolved
+}
+
+// printAltWarnings prints, before test-alternatives' numbers, the fits
+// that stopped still rising, the nuisance parameters each fit strains,
+// and the preferred fit's ages on an edge of their range; it returns the
+// last two as sentences for the report page.
+func printAltWarnings(w io.Writer, res *compare.AltResult) []string {
+	var fitNames []string
+	var fitResults []compare.FitResult
+	for _, f := range res.Fits {
+		fitNames, fitResults = append(fitNames, fmt.Sprintf("fit of %q", f.Name)), append(fitResults, f.Fit)
+	}
+	warnRoundLimits(w, fitNames, fitResults)
+	var page []string
+	for _, f := range res.Fits {
+		if s := compare.StrainWarning(fmt.Sprintf("the fit of %q", f.Name), f.Strains, f.GaussianPriors); s != "" {
+			fmt.Fprintf(w, "warning: %s\n", s)
+			page = append(page, strings.ToUpper(s[:1])+s[1:]+".")
+		}
+	}
+	if best, preferred := res.BestFit(); preferred {
+		if s := best.EdgeWarning(); s != "" {
+			fmt.Fprintf(w, "warning: %s (the preferred explanation; read the verdict at the end)\n", s)
+			page = append(page, strings.ToUpper(s[:1])+s[1:]+".")
+		}
+	}
+	return page
 }
 
 // explanationsOf resolves each scenario argument (with the --set

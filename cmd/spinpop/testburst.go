@@ -222,7 +222,7 @@ func printBurstSummary(w io.Writer, r *pipeline.BurstOutcome) {
 			t.AdequacyBurst.Deviance, t.AdequacyBurst.ReplicateMean, t.AdequacyBurst.ReplicateSD)
 	}
 	if t.Strength == "unreliable" {
-		fmt.Fprintf(w, "warning: no burst is claimed: %s\n", t.StrengthReason)
+		fmt.Fprintf(w, "\nwarning: no burst is claimed: %s\n", t.StrengthReason)
 	}
 	warnRoundLimits(w, []string{"smooth-history fit", "with-burst fit"}, []compare.FitResult{t.Smooth, t.Burst})
 	for _, f := range []struct {

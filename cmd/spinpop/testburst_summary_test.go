@@ -105,3 +105,23 @@ func TestBurstSummaryAgeRefitsAndUnconfirmedPeak(t *testing.T) {
 	assert.NotContains(t, text, "refitted on")
 	assert.NotContains(t, text, "rose above the fit")
 }
+
+// A burst refused for lying on an edge of its age range is said first as
+// a refusal, not as a misfit: the fit described the catalog. A refusal
+// for misfit (quasi-likelihood calibration) says both.
+func TestBurstSummaryRefusalSaysWhy(t *testing.T) {
+	out := &pipeline.BurstOutcome{
+		Test: &compare.BurstResult{Strength: "unreliable", Calibration: "bootstrap",
+			StrengthReason: "the best burst lies at the youngest age its range allows (0.1 Gyr)"},
+		Heights: &compare.HeightResult{SplitAgeGyr: 0.8},
+	}
+	text := summaryText(out)
+	assert.Contains(t, text, "warning: no burst is claimed: the best burst lies at the youngest age its range allows (0.1 Gyr)")
+	assert.NotContains(t, text, "do not describe")
+	assert.Less(t, strings.Index(text, "warning:"), strings.Index(text, "smooth history: ln L"), "the warning comes first")
+
+	out.Test.Calibration, out.Test.StrengthReason = "quasi-likelihood", "the burst improves the fit by 2Δln L = 24.0, no more than the misfit"
+	text = summaryText(out)
+	assert.Contains(t, text, "warning: the models do not describe this catalog")
+	assert.Contains(t, text, "warning: no burst is claimed: the burst improves the fit")
+}
