@@ -33,14 +33,28 @@ func altSetup(t testing.TB, scatterA, scatterB float64) (tplA, tplB *Templates, 
 
 func altRun(t *testing.T, data []float64, tplA, tplB *Templates, hist HistoryModel) *AltResult {
 	t.Helper()
-	la, err := NewLikelihood(tplA, data, LikeOptions{TemplateNoise: NoiseIgnore})
-	require.NoError(t, err)
-	lb, err := NewLikelihood(tplB, data, LikeOptions{TemplateNoise: NoiseIgnore})
-	require.NoError(t, err)
-	res, err := CompareAlternatives(context.Background(), []Alternative{
-		{Name: "narrow", Like: la, History: hist},
-		{Name: "wide", Like: lb, History: hist},
-	}, AltOptions{Replicates: 99, Seed: 4, Workers: 2})
+	return altCompare(t, data, AltOptions{Replicates: 99, Seed: 4, Workers: 2},
+		altSpec{"narrow", tplA, hist}, altSpec{"wide", tplB, hist})
+}
+
+// altSpec is one explanation of a test: its name, templates and history.
+type altSpec struct {
+	name string
+	tpl  *Templates
+	hist HistoryModel
+}
+
+// altCompare compares the explanations on data, each with its own
+// likelihood (template noise ignored).
+func altCompare(t *testing.T, data []float64, opts AltOptions, specs ...altSpec) *AltResult {
+	t.Helper()
+	alts := make([]Alternative, len(specs))
+	for i, sp := range specs {
+		l, err := NewLikelihood(sp.tpl, data, LikeOptions{TemplateNoise: NoiseIgnore})
+		require.NoError(t, err)
+		alts[i] = Alternative{Name: sp.name, Like: l, History: sp.hist}
+	}
+	res, err := CompareAlternatives(context.Background(), alts, opts)
 	require.NoError(t, err)
 	t.Log(res.Verdict)
 	return res
@@ -82,15 +96,8 @@ func TestPairPValueBeyondEveryReplicate(t *testing.T) {
 	w, err := hist.Weights([]float64{0.15})
 	require.NoError(t, err)
 	nA := poissonData(tplA, w, 20000/tplA.totalStars(w), 3)
-	la, err := NewLikelihood(tplA, nA, LikeOptions{TemplateNoise: NoiseIgnore})
-	require.NoError(t, err)
-	lb, err := NewLikelihood(tplB, nA, LikeOptions{TemplateNoise: NoiseIgnore})
-	require.NoError(t, err)
-	res, err := CompareAlternatives(context.Background(), []Alternative{
-		{Name: "narrow", Like: la, History: hist},
-		{Name: "wide", Like: lb, History: hist},
-	}, AltOptions{Replicates: 19, Seed: 4, Workers: 2, NoEvidence: true})
-	require.NoError(t, err)
+	res := altCompare(t, nA, AltOptions{Replicates: 19, Seed: 4, Workers: 2, NoEvidence: true},
+		altSpec{"narrow", tplA, hist}, altSpec{"wide", tplB, hist})
 	require.Len(t, res.Pairs, 1)
 	assert.Less(t, res.Pairs[0].PUnderB, 1.0/20, "beyond the counting floor of 19 replicates")
 	assert.Equal(t, "narrow", res.Best)
@@ -122,17 +129,8 @@ func TestAlternativesCautionBurstOnRangeEdge(t *testing.T) {
 	run := func(minAge float64) *AltResult {
 		burst := hist
 		burst.Free = []FreeParam{{Name: "burst.age_gyr", Min: minAge, Max: 8}, {Name: "burst.mass_fraction", Min: 0, Max: 0.5}}
-		l0, err := NewLikelihood(tpl, data, LikeOptions{TemplateNoise: NoiseIgnore})
-		require.NoError(t, err)
-		l1, err := NewLikelihood(tpl, data, LikeOptions{TemplateNoise: NoiseIgnore})
-		require.NoError(t, err)
-		res, err := CompareAlternatives(context.Background(), []Alternative{
-			{Name: "smooth", Like: l0, History: smooth},
-			{Name: "burst", Like: l1, History: burst},
-		}, AltOptions{Replicates: 19, Seed: 2, Workers: 2, NoEvidence: true})
-		require.NoError(t, err)
-		t.Log(res.Verdict)
-		return res
+		return altCompare(t, data, AltOptions{Replicates: 19, Seed: 2, Workers: 2, NoEvidence: true},
+			altSpec{"smooth", tpl, smooth}, altSpec{"burst", tpl, burst})
 	}
 	res := run(3)
 	require.Equal(t, "burst", res.Best)
