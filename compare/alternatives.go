@@ -62,7 +62,7 @@ type AltFit struct {
 	GaussianPriors int      `json:"-"`
 	// AgesOnEdge are the ages that set this alternative apart
 	// (distinguishingAges) which its fit put on an edge of their free
-	// range (rangeEnd), in words: such an age is the range's, not the
+	// range (rangeEdge), in words: such an age is the range's, not the
 	// catalog's, and the burst test refuses a burst there (onRangeEdge).
 	AgesOnEdge []string `json:"ages_on_range_edge,omitempty"`
 }
@@ -407,8 +407,11 @@ func (f AltFit) EdgeWarning() string {
 // BestFit is the fit of the alternative the verdict prefers (false when
 // it prefers none).
 func (r *AltResult) BestFit() (AltFit, bool) {
+	if r.Best == "" {
+		return AltFit{}, false
+	}
 	for _, f := range r.Fits {
-		if r.Best != "" && f.Name == r.Best {
+		if f.Name == r.Best {
 			return f, true
 		}
 	}

@@ -14,7 +14,7 @@ const (
 	// reached by more than 5 % of its own bootstrap replicates. At 1 %
 	// (before), a smooth catalog of the independent model fitted with its
 	// detection held at the truth passed as described (p = 0.04, excess
-	// deviance 43) and its broad burst at 2.8 Gyr, gaining 2Δln L = 24,
+	// deviance 43) and its burst at 2.8 Gyr, gaining 2Δln L = 24,
 	// came out "moderate" — judged against its misfit it is "unreliable"
 	// (docs/independent-check.md).
 	AdequacyLevel = 0.05
