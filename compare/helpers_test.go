@@ -88,8 +88,9 @@ func gyroTemplates(t testing.TB, edges []float64, nColor, nP int, starsPerBin, s
 	return tpl
 }
 
-// demoEdges are the default 40 age bins of a 10 Gyr history: 0.05 Gyr
-// wide to 1 Gyr, then log-spaced.
+// demoEdges are 40 age bins of a 10 Gyr history, 0.05 Gyr wide to 1 Gyr,
+// then log-spaced (the scenarios' default before the fine bins reached
+// 3 Gyr): a grid for these tests, not the default.
 func demoEdges() []float64 {
 	edges := make([]float64, 41)
 	for i := 0; i <= 20; i++ {

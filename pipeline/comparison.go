@@ -418,6 +418,7 @@ type DataSummary struct {
 	MaskAgeGyr float64        `json:"mask_below_age_gyr"`
 	ScenarioSH string         `json:"scenario_sha256"`
 	ColorReach *LawColorReach `json:"law_color_reach,omitempty"`
+	BurstBins  *BurstAgeBins  `json:"burst_age_bins,omitempty"`
 }
 
 // DataSummary describes the catalog as read.
@@ -429,6 +430,7 @@ func (c *Comparison) DataSummary() DataSummary {
 		SpaceBins: c.Space.NumColorPeriod(), SetupSecs: c.SetupSeconds, ScenarioSH: c.Resolved.Hash(), Dropped: c.DroppedStars,
 		Masked: c.MaskedStars, MaskAgeGyr: c.Scenario.Compare.MaskAgeGyr, OtherOut: c.OtherStars,
 		ColorReach: c.ColorReach, BlueMasked: c.BlueStars,
+		BurstBins: burstAgeBins(c.Built.AgeEdgesGyr, c.Scenario.Compare.Free, c.Scenario.Compare.BurstPart),
 	}
 }
 

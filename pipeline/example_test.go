@@ -23,6 +23,6 @@ func Example() {
 	fmt.Printf("%d of %d stars in the catalog\n", cat.N, sim.Tally.StepCounts[0])
 	fmt.Printf("first star: %.3f Msun, P = %.2f d\n", cat.MassMsun[0], cat.MeasPeriodD[0])
 	// Output:
-	// 4769 of 100000 stars in the catalog
-	// first star: 0.836 Msun, P = 48.94 d
+	// 4796 of 100000 stars in the catalog
+	// first star: 1.132 Msun, P = 17.60 d
 }

@@ -22,8 +22,8 @@ import (
 // In catalogs of another model that gives those stars periods
 // (internal/othermodel), stars of one age 1.3 Gyr old had periods 0.11 dex
 // shorter (median) than spinpop's in the column B−V 0.45–0.55 and within
-// 0.03 dex of them from 0.55 on (README, "This version: the colors the law
-// does not cover").
+// 0.03 dex of them from 0.55 on (docs/independent-check.md, "the colors
+// the law does not cover").
 
 // LawColorReach says how far reddening carries stars bluer than the law's
 // calibrated colors into the compared range.

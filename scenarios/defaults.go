@@ -170,30 +170,47 @@ func defaultLayer() (*layer, error) {
 }
 
 // DefaultAgeBinEdges returns the default population age bins for a history
-// reaching maxAgeGyr: 40 bins, 0.05 Gyr wide up to 1 Gyr (where spin-down
-// changes fastest and a burst would sit), then 20 bins evenly spaced in log
-// age up to maxAgeGyr, rounded to 1e-6 Gyr so that canonical files stay
-// readable. A history younger than 2 Gyr gets 40 equal bins instead, all
+// reaching maxAgeGyr: 0.05 Gyr wide up to 3 Gyr, then evenly spaced in log
+// age, 20 bins a decade (rounded up), up to maxAgeGyr, rounded to 1e-6 Gyr
+// so that canonical files stay readable; 71 bins for 10 Gyr. The fine bins
+// reach 3 Gyr, the oldest age example:fit seeks a burst at, because a
+// template assumes a constant rate inside its bin: a burst narrower than a
+// bin can sit anywhere in it for the same likelihood, so its fitted age is
+// only as good as the bin is narrow (with the earlier 0.12–0.2 Gyr log bins
+// from 1 Gyr, old bursts of the independent check came out 0.1–0.4 Gyr
+// off). A history younger than 2 Gyr gets 40 equal bins instead, all
 // narrower than 0.05 Gyr.
 func DefaultAgeBinEdges(maxAgeGyr float64) []float64 {
-	const bins, young = 40, 20
-	edges := make([]float64, bins+1)
+	const (
+		young     = 40 // equal bins of a history younger than 2 Gyr
+		perGyr    = 20 // fine bins per Gyr: 0.05 Gyr wide
+		fineTop   = 3  // Gyr
+		perDecade = 20 // log bins per decade above fineTop
+	)
 	if !(maxAgeGyr >= 2) {
+		edges := make([]float64, young+1)
 		for i := range edges {
-			edges[i] = maxAgeGyr * float64(i) / bins
+			edges[i] = maxAgeGyr * float64(i) / young
 		}
-		edges[bins] = maxAgeGyr
+		edges[young] = maxAgeGyr
 		return edges
 	}
-	for i := 0; i <= young; i++ {
-		edges[i] = float64(i) / young // exact: i/20 rounds like the decimal i*0.05
+	nFine := min(fineTop*perGyr, int(math.Floor(maxAgeGyr*perGyr)))
+	edges := make([]float64, 0, nFine+1+perDecade)
+	for i := 0; i <= nFine; i++ {
+		edges = append(edges, float64(i)/perGyr) // exact: i/20 rounds like the decimal i*0.05
 	}
-	for i := 1; i < bins-young; i++ {
-		e := math.Pow(maxAgeGyr, float64(i)/(bins-young))
-		edges[young+i] = math.Round(e*1e6) / 1e6 // log steps ≥ 2^(1/20): rounding cannot merge edges
+	top := edges[nFine]
+	if maxAgeGyr-top < 1e-9 {
+		edges[nFine] = maxAgeGyr
+		return edges
 	}
-	edges[bins] = maxAgeGyr
-	return edges
+	n := max(1, int(math.Ceil(perDecade*math.Log10(maxAgeGyr/top))))
+	for i := 1; i < n; i++ {
+		e := top * math.Pow(maxAgeGyr/top, float64(i)/float64(n))
+		edges = append(edges, math.Round(e*1e6)/1e6) // steps ≥ 10^(1/40) when n ≥ 2: rounding cannot merge edges
+	}
+	return append(edges, maxAgeGyr)
 }
 
 // fillDerived sets the defaults that depend on other keys, for keys no
@@ -220,7 +237,7 @@ func (d *decoder) fillDerived(s *Scenario, name string) {
 	}
 	if !d.present("disk.age_bin_edges_gyr") && s.History.MaxAgeGyr > 0 && !math.IsInf(s.History.MaxAgeGyr, 0) {
 		s.Disk.AgeBinEdgesGyr = DefaultAgeBinEdges(s.History.MaxAgeGyr)
-		d.origins["disk.age_bin_edges_gyr"] = origin{note: "default: 40 bins from 0 to history.max_age_gyr"}
+		d.origins["disk.age_bin_edges_gyr"] = origin{note: "default: 0.05 Gyr bins up to 3 Gyr, then 20 a decade in log age, up to history.max_age_gyr"}
 	}
 	d.fillData(&s.Data)
 	d.fillCompare(s)

@@ -59,7 +59,7 @@ func TestDerivedDefaultsFollowTheirSources(t *testing.T) {
 	assert.Equal(t, 1.0, s.Cuts.PeriodMinD)
 	assert.Equal(t, 25.0, s.Cuts.PeriodMaxD)
 	assert.Equal(t, DefaultAgeBinEdges(12), s.Disk.AgeBinEdgesGyr)
-	assert.Equal(t, 12.0, s.Disk.AgeBinEdgesGyr[40])
+	assert.Equal(t, 12.0, s.Disk.AgeBinEdgesGyr[len(s.Disk.AgeBinEdgesGyr)-1])
 
 	assert.Equal(t, 1.0, s.Compare.PeriodMinD, "max(cuts.period_min_d, 0.5)")
 	assert.Equal(t, 25.0, s.Compare.PeriodMaxD, "min(cuts.period_max_d, 100)")
@@ -77,15 +77,21 @@ func TestDerivedDefaultsFollowTheirSources(t *testing.T) {
 
 func TestDefaultAgeBinEdges(t *testing.T) {
 	e := DefaultAgeBinEdges(10)
-	require.Len(t, e, 41)
-	for i := 0; i <= 20; i++ {
-		assert.InDelta(t, 0.05*float64(i), e[i], 1e-15, "0.05 Gyr bins up to 1 Gyr")
+	// 60 fine bins to 3 Gyr, then ceil(20 log10(10/3)) = ceil(10.46) = 11.
+	require.Len(t, e, 72)
+	for i := 0; i <= 60; i++ {
+		assert.InDelta(t, 0.05*float64(i), e[i], 1e-15, "0.05 Gyr bins up to 3 Gyr")
 	}
-	for i := 21; i <= 40; i++ {
-		assert.InDelta(t, math.Pow(10, float64(i-20)/20), e[i], 1e-6, "log-spaced above 1 Gyr")
+	for i := 61; i <= 71; i++ {
+		assert.InDelta(t, 3*math.Pow(10.0/3, float64(i-60)/11), e[i], 1e-6, "log-spaced above 3 Gyr")
 		assert.Greater(t, e[i]-e[i-1], e[i-1]-e[i-2]-1e-9, "bins widen with age")
 	}
-	assert.Equal(t, 10.0, e[40])
+	assert.Equal(t, 10.0, e[71])
+	// The burst ages example:fit seeks (0.1–3 Gyr) lie in bins narrower
+	// than the ±0.1 Gyr of issue 8's target.
+	for i := 1; i < len(e) && e[i-1] < 3; i++ {
+		assert.LessOrEqual(t, e[i]-e[i-1], 0.05+1e-12)
+	}
 
 	for _, maxAge := range []float64{0.8, 1.000001, 1.9} {
 		e = DefaultAgeBinEdges(maxAge)
@@ -96,10 +102,22 @@ func TestDefaultAgeBinEdges(t *testing.T) {
 			assert.InDelta(t, maxAge/40, e[i]-e[i-1], 1e-12, "a young history gets equal bins")
 		}
 	}
-	// Just old enough for the split: the log bins stay distinct after rounding.
-	e = DefaultAgeBinEdges(2)
-	for i := 1; i < len(e); i++ {
-		assert.Greater(t, e[i], e[i-1])
+	// Between 2 and 3 Gyr: fine bins to the last multiple of 0.05, then
+	// whatever is left as one bin; a multiple of 0.05 ends on its own edge.
+	e = DefaultAgeBinEdges(2.5)
+	require.Len(t, e, 51)
+	assert.Equal(t, 2.5, e[50])
+	e = DefaultAgeBinEdges(2.02)
+	require.Len(t, e, 42)
+	assert.InDelta(t, 2.0, e[40], 1e-15)
+	assert.Equal(t, 2.02, e[41])
+	// Just past the fine bins' end: the log bins stay distinct after rounding.
+	for _, maxAge := range []float64{2, 3.01, 3.2, 3.6, 13.5} {
+		e = DefaultAgeBinEdges(maxAge)
+		assert.Equal(t, maxAge, e[len(e)-1])
+		for i := 1; i < len(e); i++ {
+			assert.Greater(t, e[i], e[i-1], "max age %g, edge %d", maxAge, i)
+		}
 	}
 }
 

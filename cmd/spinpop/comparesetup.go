@@ -163,6 +163,9 @@ func printDataSummary(w io.Writer, d pipeline.DataSummary) {
 		reused = "reused"
 	}
 	fmt.Fprintf(w, "templates %s: %d age bins × %d comparison bins from %d stars\n", reused, d.AgeBins, d.SpaceBins, d.TplStars)
+	if s := d.BurstBins.Line(); s != "" {
+		fmt.Fprintln(w, s)
+	}
 	if d.MaskAgeGyr > 0 {
 		fmt.Fprintf(w, "%d catalog stars lie below the gyrochrone of %.3g Gyr (compare.mask_below_age_gyr): cells there hold stars younger than the model describes and are left out, in data and model\n", d.Masked, d.MaskAgeGyr)
 	}
