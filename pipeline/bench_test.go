@@ -11,7 +11,7 @@ import (
 )
 
 // The speed targets of issue 8, on the demo (example:fit: its catalog, its
-// fourteen nuisance parameters, per-color likelihood, 40 age bins × 690
+// fourteen nuisance parameters, per-color likelihood, 71 age bins × 690
 // comparison cells). The comparison is set up once (templates and the
 // bank of template stars: not timed).
 var (
