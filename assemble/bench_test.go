@@ -55,7 +55,7 @@ func benchGenerate(b *testing.B, example string, change func(*scenarios.Scenario
 }
 
 // BenchmarkBuild measures the once-per-scenario tables (line-of-sight
-// tables for 40 age bins, relations, laws).
+// tables for the 71 age bins of base.toml, relations, laws).
 func BenchmarkBuild(b *testing.B) {
 	res, err := scenarios.LoadExample("base")
 	if err != nil {

@@ -19,7 +19,7 @@ import (
 // block: at most 257 entries of 24 bytes (and 16 more in a
 // JointSampler). The defaults keep the rate above ≈ 0.9 for vertical
 // dispersions down to ≈ 5 km/s in a 1 kpc sphere, with all tables of 40
-// bins in ≈ 0.8 MB (≈ 1.3 MB with a JointSampler; ≈ 1.8 MB for the 71
+// bins in ≈ 0.8 MB (≈ 1.3 MB with a JointSampler; ≈ 1.6 MB for the 71
 // bins of a default 10 Gyr history, by the sizes above), inside a core's
 // 2 MB level-2 cache.
 type SamplerOptions struct {

@@ -9,7 +9,7 @@ import (
 // BurstAgeBins says how finely the age bins cover the burst's free ages.
 // A template assumes a constant rate inside its age bin, so a burst
 // narrower than its bin can sit anywhere in it for the same likelihood:
-// its fitted age is no finer than the bin. With bins 0.12–0.2 Gyr wide
+// its fitted age is no finer than the bin. With bins 0.12–0.22 Gyr wide
 // from 1 to 2 Gyr (the default until issue 8 made them 0.05 Gyr up to
 // 3 Gyr) the independent check's narrow old bursts came out at either end
 // of one bin (docs/independent-check.md, trial M, and the README's check).

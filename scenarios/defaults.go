@@ -176,7 +176,7 @@ func defaultLayer() (*layer, error) {
 // reach 3 Gyr, the oldest age example:fit seeks a burst at, because a
 // template assumes a constant rate inside its bin: a burst narrower than a
 // bin can sit anywhere in it for the same likelihood, so its fitted age is
-// only as good as the bin is narrow (with the earlier 0.12–0.2 Gyr log bins
+// only as good as the bin is narrow (with the earlier 0.12–0.22 Gyr log bins
 // from 1 Gyr, old bursts of the independent check came out 0.1–0.4 Gyr
 // off). A history younger than 2 Gyr gets 40 equal bins instead, all
 // narrower than 0.05 Gyr.
@@ -201,7 +201,10 @@ func DefaultAgeBinEdges(maxAgeGyr float64) []float64 {
 		edges = append(edges, float64(i)/perGyr) // exact: i/20 rounds like the decimal i*0.05
 	}
 	top := edges[nFine]
-	if maxAgeGyr-top < 1e-9 {
+	if maxAgeGyr-top < 0.5/perGyr {
+		// Less than half a fine bin left: widen the last bin to the end
+		// rather than add a sliver, which would take a full bin's share
+		// of the template stars (every bin gets the same mass).
 		edges[nFine] = maxAgeGyr
 		return edges
 	}

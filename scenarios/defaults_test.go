@@ -103,14 +103,21 @@ func TestDefaultAgeBinEdges(t *testing.T) {
 		}
 	}
 	// Between 2 and 3 Gyr: fine bins to the last multiple of 0.05, then
-	// whatever is left as one bin; a multiple of 0.05 ends on its own edge.
+	// what is left as one bin if it is at least half a bin, else merged
+	// into the last; a multiple of 0.05 ends on its own edge.
 	e = DefaultAgeBinEdges(2.5)
 	require.Len(t, e, 51)
 	assert.Equal(t, 2.5, e[50])
-	e = DefaultAgeBinEdges(2.02)
+	e = DefaultAgeBinEdges(2.04)
 	require.Len(t, e, 42)
 	assert.InDelta(t, 2.0, e[40], 1e-15)
-	assert.Equal(t, 2.02, e[41])
+	assert.Equal(t, 2.04, e[41])
+	for _, maxAge := range []float64{2.02, 2.100001, 3.0000001, 3.02} {
+		e = DefaultAgeBinEdges(maxAge)
+		n := len(e) - 1
+		assert.Equal(t, maxAge, e[n])
+		assert.InDelta(t, 0.05, e[n]-e[n-1], 0.025+1e-9, "max age %g: no sliver of a last bin", maxAge)
+	}
 	// Just past the fine bins' end: the log bins stay distinct after rounding.
 	for _, maxAge := range []float64{2, 3.01, 3.2, 3.6, 13.5} {
 		e = DefaultAgeBinEdges(maxAge)
