@@ -172,7 +172,8 @@ func defaultLayer() (*layer, error) {
 // DefaultAgeBinEdges returns the default population age bins for a history
 // reaching maxAgeGyr: 0.05 Gyr wide up to 3 Gyr, then evenly spaced in log
 // age, 20 bins a decade (rounded up), up to maxAgeGyr, rounded to 1e-6 Gyr
-// so that canonical files stay readable; 71 bins for 10 Gyr. The fine bins
+// so that canonical files stay readable; 71 bins for 10 Gyr (a remainder
+// under half a fine bin widens the last fine bin instead). The fine bins
 // reach 3 Gyr, the oldest age example:fit seeks a burst at, because a
 // template assumes a constant rate inside its bin: a burst narrower than a
 // bin can sit anywhere in it for the same likelihood, so its fitted age is
