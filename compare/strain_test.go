@@ -190,3 +190,45 @@ func TestVerdictAdequacyLevel(t *testing.T) {
 	assert.Equal(t, "moderate", strength)
 	assert.Equal(t, "bootstrap", calibration)
 }
+
+// A claimed burst whose age's 95 % profile interval spans the whole range
+// searched is refused: placed anywhere it gains about as much. The
+// numbers are smooth-02's of the independent check with fine age bins
+// (docs/independent-check.md: 2Δln L 53, profile interval 0.100–3.000
+// Gyr), with the misfit's excess put just below the ratio (52, where the
+// run measured 54) so that the misfit rule lets it through; then the
+// same burst with burst-1.17's interval (1.202–1.441 Gyr) and with
+// smooth-01's (2.023–3.000, one end only), which are kept.
+func TestVerdictRefusesUndeterminedAge(t *testing.T) {
+	r := &BurstResult{Replicates: 200, PValue: 0.3, PValueQuasi: 0.001, LR: 53, DeltaLogL: 26.5, Dispersion: 1.2,
+		AgeParam: "burst.age_gyr", AgeBounds: [2]float64{0.1, 3},
+		AgeIntervalProfile: Interval{Best: 2.961, Lo68: 0.1, Hi68: 3, Lo95: 0.1, Hi95: 3},
+		AdequacyBurst:      Adequacy{Deviance: 314, ReplicateMean: 262, ReplicateSD: 22, PValue: 0.0029, Dispersion: 1.2, Excess: 52, Replicates: 200},
+		Burst:              FitResult{Names: []string{"burst.age_gyr", "burst.mass_fraction"}, Theta: []float64{2.961, 0.05}}}
+	strength, reason, calibration, text := verdict(r)
+	require.Equal(t, "unreliable", strength)
+	assert.Equal(t, "quasi-likelihood", calibration)
+	assert.Contains(t, reason, "the burst's age is not determined: its 95 % profile interval, 0.1–3 Gyr, spans the whole range searched")
+	assert.True(t, strings.HasPrefix(text, "No burst is claimed"), text)
+	assert.Contains(t, text, "the catalog prefers a burst", "the ratio's own reading is kept after the refusal")
+
+	r.AgeIntervalProfile = Interval{Best: 1.289, Lo68: 1.24, Hi68: 1.36, Lo95: 1.202, Hi95: 1.441}
+	r.Burst.Theta[0] = 1.289
+	strength, reason, _, _ = verdict(r)
+	assert.Equal(t, "strong", strength)
+	assert.Empty(t, reason)
+
+	r.AgeIntervalProfile = Interval{Best: 2.512, Lo68: 2.3, Hi68: 2.8, Lo95: 2.023, Hi95: 3}
+	r.Burst.Theta[0] = 2.512
+	strength, _, _, _ = verdict(r)
+	assert.Equal(t, "strong", strength, "an interval open at one end only says the age is poorly known, not undetermined")
+
+	r.AgeIntervalProfile = Interval{Best: 1.5, Lo68: 0.12, Hi68: 2.98, Lo95: 0.12, Hi95: 2.98} // within 1 % of the range of each end
+	strength, _, _, _ = verdict(r)
+	assert.Equal(t, "unreliable", strength)
+
+	r.PValueQuasi = 0.5 // no claim: nothing to refuse
+	strength, reason, _, _ = verdict(r)
+	assert.Equal(t, "none", strength)
+	assert.Empty(t, reason)
+}

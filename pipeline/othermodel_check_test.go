@@ -8,6 +8,7 @@ import (
 	"os"
 	"path/filepath"
 	"regexp"
+	"slices"
 	"strconv"
 	"strings"
 	"testing"
@@ -70,15 +71,97 @@ func (r checkResult) claims() bool { return r.strength == "strong" || r.strength
 // runCheck makes each case's catalog with the other model, sets up one
 // comparison (templates made once) and runs the burst test on each.
 func runCheck(t *testing.T, cases []checkCase, replicates int, templateStars int64, extra string, variant othermodel.Config) []checkResult {
+	return runCheckWith(t, cases, replicates, templateStars, extra, otherModelCatalogs(variant))
+}
+
+// catalogMaker writes the catalogs of a check and names the scenario
+// (a format with one %q, the catalog's path) that fits them.
+type catalogMaker struct {
+	scenario string
+	write    func(path string, cs checkCase) error
+}
+
+// otherModelCatalogs makes the check's catalogs with the other model.
+func otherModelCatalogs(variant othermodel.Config) catalogMaker {
+	return catalogMaker{scenario: checkScenario, write: func(path string, cs checkCase) error {
+		cfg := variant
+		cfg.History = withRamp(cs.hist, variant.History.RampSlope)
+		_, err := othermodel.WriteCatalog(path, cfg, cs.seed)
+		return err
+	}}
+}
+
+// ownScenario is the scenario that fits the own-model control's
+// catalogs: example:fit as shipped, with the catalog's file.
+const ownScenario = `extends = "example:fit"
+name = "ownmodel-check"
+
+[data]
+file = %q
+sha256 = ""
+`
+
+// ownTruth is the truth behind one catalog of the own-model control:
+// example:fit's physics at its scenario values (the values its fit starts
+// from) and its smooth history, with the case's burst and seed.
+const ownTruth = `extends = "example:fit"
+name = "ownmodel-truth"
+
+[run]
+seed = %d
+
+[history.burst]
+%s
+`
+
+// ownCatalogStars is the size of the control's catalogs: about the
+// number of the other model's catalog stars the check's scenario compares
+// (17,739 for the first burst catalog).
+const ownCatalogStars = 17_700
+
+// ownModelCatalogs makes the check's catalogs with spinpop's own
+// generator instead (SPINPOP_OTHERMODEL_OWN=1): the same ages and shares,
+// each box burst as the Gaussian of the same standard deviation (a box of
+// full width w has σ = w/√12). A control: where the model that fits is
+// the model that made the catalog, what is left of the age errors is the
+// method's own (counting noise, nuisance freedom, templates, search),
+// not a mismatch of physics.
+func ownModelCatalogs() catalogMaker {
+	return catalogMaker{scenario: ownScenario, write: func(path string, cs checkCase) error {
+		// A smooth case keeps the burst part with no mass: example:fit's
+		// free list and alternatives name it.
+		burst := "mass_fraction = 0"
+		if b := cs.hist.Burst; b != nil {
+			burst = fmt.Sprintf("kind = \"burst\"\nage_gyr = %g\nwidth_gyr = %g\nmass_fraction = %g",
+				(b.StartGyr+b.EndGyr)/2, (b.EndGyr-b.StartGyr)/math.Sqrt(12), b.Fraction)
+		}
+		truth := strings.TrimSuffix(path, ".csv") + "-truth.toml"
+		if err := os.WriteFile(truth, []byte(fmt.Sprintf(ownTruth, cs.seed, burst)), 0o644); err != nil {
+			return err
+		}
+		res, err := scenarios.Resolve(truth)
+		if err != nil {
+			return err
+		}
+		f, err := os.Create(path)
+		if err != nil {
+			return err
+		}
+		_, err = Mock(context.Background(), res, MockOptions{Source: truth, Stars: ownCatalogStars, ParallaxErrorMas: 0.02}, f)
+		if cerr := f.Close(); err == nil {
+			err = cerr
+		}
+		return err
+	}}
+}
+
+func runCheckWith(t *testing.T, cases []checkCase, replicates int, templateStars int64, extra string, maker catalogMaker) []checkResult {
 	t.Helper()
 	dir := t.TempDir()
-	cfg := variant
 	first := filepath.Join(dir, cases[0].name+".csv")
-	cfg.History = withRamp(cases[0].hist, variant.History.RampSlope)
-	_, err := othermodel.WriteCatalog(first, cfg, cases[0].seed)
-	require.NoError(t, err)
+	require.NoError(t, maker.write(first, cases[0]))
 	scen := filepath.Join(dir, "check.toml")
-	text := fmt.Sprintf(checkScenario, first) + extra
+	text := fmt.Sprintf(maker.scenario, first) + extra
 	if templateStars > 0 {
 		text += fmt.Sprintf("\n[compare]\ntemplate_stars = %d\n", templateStars)
 	}
@@ -93,9 +176,7 @@ func runCheck(t *testing.T, cases []checkCase, replicates int, templateStars int
 		path := first
 		if i > 0 {
 			path = filepath.Join(dir, cs.name+".csv")
-			cfg.History = withRamp(cs.hist, variant.History.RampSlope)
-			_, err := othermodel.WriteCatalog(path, cfg, cs.seed)
-			require.NoError(t, err)
+			require.NoError(t, maker.write(path, cs))
 		}
 		c, err := base.WithCatalog(path)
 		require.NoError(t, err)
@@ -333,7 +414,9 @@ func TestParseVariant(t *testing.T) {
 // two cores): 20 smooth and 10 burst catalogs (fractions 0.1–0.2, ages
 // 0.5–1.5 Gyr; SPINPOP_OTHERMODEL_CASES=k,m for other counts). Targets: claims on ≤ 5 % of smooth catalogs; the burst found
 // within ±0.1 Gyr with the truth in its 95 % interval in ≥ 90 %.
-// SPINPOP_OTHERMODEL_VARIANT changes the other model further (parseVariant).
+// SPINPOP_OTHERMODEL_VARIANT changes the other model further (parseVariant);
+// SPINPOP_OTHERMODEL_OWN=1 makes the same cases with spinpop's own
+// generator instead, as a control (ownModelCatalogs).
 func TestOtherModelLong(t *testing.T) {
 	if os.Getenv("SPINPOP_OTHERMODEL_CHECK") == "" {
 		t.Skip("set SPINPOP_OTHERMODEL_CHECK=1 to run the long independent-model check (about an hour)")
@@ -372,10 +455,21 @@ func TestOtherModelLong(t *testing.T) {
 		require.NotEmpty(t, kept, "SPINPOP_OTHERMODEL_SKIP=%q leaves no catalog", v)
 		cases = kept
 	}
+	// SPINPOP_OTHERMODEL_ONLY=name,name keeps only the catalogs named
+	// (smooth-02, burst-1.17, …): one catalog run again at more replicates.
+	if v := os.Getenv("SPINPOP_OTHERMODEL_ONLY"); v != "" {
+		names := strings.Split(v, ",")
+		cases = slices.DeleteFunc(cases, func(cs checkCase) bool { return !slices.Contains(names, cs.name) })
+		require.NotEmpty(t, cases, "SPINPOP_OTHERMODEL_ONLY=%q names no catalog of the check (smooth-01, burst-0.50, …)", v)
+	}
 	extra := strings.ReplaceAll(os.Getenv("SPINPOP_OTHERMODEL_EXTRA"), `\n`, "\n")
 	variant, err := parseVariant(os.Getenv("SPINPOP_OTHERMODEL_VARIANT"))
 	require.NoError(t, err)
-	rs := runCheck(t, cases, reps, 0, extra, variant)
+	maker := otherModelCatalogs(variant)
+	if os.Getenv("SPINPOP_OTHERMODEL_OWN") != "" {
+		maker = ownModelCatalogs()
+	}
+	rs := runCheckWith(t, cases, reps, 0, extra, maker)
 	falseClaims, smooth, found, covered, bursts := summarise(t, rs)
 	if fig := os.Getenv("SPINPOP_OTHERMODEL_FIGURE"); fig != "" {
 		require.NoError(t, writeCheckFigure(fig, rs))
@@ -474,4 +568,66 @@ func TestOtherModelFigureFromLogs(t *testing.T) {
 	require.NotEmpty(t, rs, "no check lines in %s", logs)
 	summarise(t, rs)
 	require.NoError(t, writeCheckFigure(fig, rs))
+}
+
+// TestControlFigureFromLogs draws the own-model control's figure
+// (writeControlFigure) from the logs of a check on the other model's
+// catalogs (SPINPOP_OTHERMODEL_LOGS) and of the same check on spinpop's
+// own (SPINPOP_OWNMODEL_LOGS; SPINPOP_OTHERMODEL_OWN=1).
+func TestControlFigureFromLogs(t *testing.T) {
+	other, own, fig := os.Getenv("SPINPOP_OTHERMODEL_LOGS"), os.Getenv("SPINPOP_OWNMODEL_LOGS"), os.Getenv("SPINPOP_CONTROL_FIGURE")
+	if other == "" || own == "" || fig == "" {
+		t.Skip("set SPINPOP_OTHERMODEL_LOGS, SPINPOP_OWNMODEL_LOGS and SPINPOP_CONTROL_FIGURE to draw the own-model control's figure")
+	}
+	ro, err := readCheckLogs(strings.Split(other, ","))
+	require.NoError(t, err)
+	rw, err := readCheckLogs(strings.Split(own, ","))
+	require.NoError(t, err)
+	require.NotEmpty(t, ro, "no check lines in %s", other)
+	require.NotEmpty(t, rw, "no check lines in %s", own)
+	summarise(t, ro)
+	summarise(t, rw)
+	require.NoError(t, writeControlFigure(fig, ro, rw))
+}
+
+// The own-model control makes what it says: a catalog of
+// ownCatalogStars rows from a truth that is example:fit with the case's
+// seed and the box burst's centre, share and standard deviation (w/√12, the
+// standard deviation of a uniform distribution of width w), and a smooth
+// case whose burst holds no mass.
+func TestOwnModelCatalogs(t *testing.T) {
+	if testing.Short() {
+		t.Skip("draws two mock catalogs; skipped with -short")
+	}
+	dir := t.TempDir()
+	maker := ownModelCatalogs()
+	for _, cs := range []checkCase{
+		{name: "burst", seed: 31, hist: othermodel.BoxBurst(1.2, 0.1, 0.15), ageGyr: 1.2},
+		{name: "smooth", seed: 32, hist: othermodel.SmoothHistory()},
+	} {
+		path := filepath.Join(dir, cs.name+".csv")
+		require.NoError(t, maker.write(path, cs))
+		res, err := scenarios.Resolve(filepath.Join(dir, cs.name+"-truth.toml"))
+		require.NoError(t, err)
+		s := res.Scenario
+		assert.Equal(t, cs.seed, s.Run.Seed)
+		b, ok := s.History.Parts["burst"]
+		require.True(t, ok)
+		if cs.hist.Burst == nil {
+			assert.Zero(t, b.Float("mass_fraction"), "a smooth case's burst holds no mass")
+		} else {
+			assert.InDelta(t, 1.2, b.Float("age_gyr"), 1e-12)
+			assert.InDelta(t, 0.1/math.Sqrt(12), b.Float("width_gyr"), 1e-12)
+			assert.InDelta(t, 0.15, b.Float("mass_fraction"), 1e-12)
+		}
+		data, err := os.ReadFile(path)
+		require.NoError(t, err)
+		rows := 0
+		for _, line := range strings.Split(strings.TrimSpace(string(data)), "\n") {
+			if !strings.HasPrefix(line, "#") {
+				rows++
+			}
+		}
+		assert.Equal(t, ownCatalogStars+1, rows, "header and one row per catalog star")
+	}
 }

@@ -1,6 +1,7 @@
 package pipeline
 
 import (
+	"fmt"
 	"image/color"
 	"math"
 	"os"
@@ -160,4 +161,85 @@ func writePNG(path string, img *vgimg.Canvas) error {
 		return err
 	}
 	return f.Close()
+}
+
+// writeControlFigure draws the own-model control beside the check for the
+// README: each burst catalog's age error (recovered − true, with its 95 %
+// interval) against the true age, the catalogs of the other model and
+// those of spinpop's own generator at the same ages and shares side by
+// side, the ±0.1 Gyr target as a band. Where the two differ, the physics
+// the models do not share is at work; what the own catalogs show is the
+// method's own error.
+func writeControlFigure(path string, other, own []checkResult) error {
+	p := plot.New()
+	p.Title.Text = "Burst age error: another model's catalogs and our own"
+	p.X.Label.Text = "true burst age (Gyr)"
+	p.Y.Label.Text = "recovered − true age, 95 % interval (Gyr)"
+	band, err := plotter.NewPolygon(plotter.XYs{{X: 0.3, Y: -0.1}, {X: 1.8, Y: -0.1}, {X: 1.8, Y: 0.1}, {X: 0.3, Y: 0.1}})
+	if err != nil {
+		return err
+	}
+	band.Color = color.RGBA{R: 210, G: 225, B: 240, A: 255}
+	band.LineStyle.Width = 0
+	p.Add(band)
+	zero, err := plotter.NewLine(plotter.XYs{{X: 0.3, Y: 0}, {X: 1.8, Y: 0}})
+	if err != nil {
+		return err
+	}
+	zero.Color = color.Gray{Y: 120}
+	p.Add(zero)
+	p.Y.Min, p.Y.Max = -0.3, 0.3
+	for _, set := range []struct {
+		rs     []checkResult
+		dx     float64 // side by side at each true age
+		c      color.Color
+		shape  draw.GlyphDrawer
+		legend string
+	}{
+		{other, -0.012, color.RGBA{R: 0, G: 90, B: 181, A: 255}, draw.CircleGlyph{}, "another model's catalogs"},
+		{own, 0.012, color.RGBA{R: 220, G: 120, B: 0, A: 255}, draw.BoxGlyph{}, "spinpop's own catalogs"},
+	} {
+		var pts plotter.XYs
+		var bars plotter.YErrors
+		for _, r := range set.rs {
+			if r.ageGyr == 0 || math.IsNaN(r.age) {
+				continue
+			}
+			e := r.age - r.ageGyr
+			pts = append(pts, plotter.XY{X: r.ageGyr + set.dx, Y: e})
+			bars = append(bars, struct{ Low, High float64 }{r.age - r.lo95, r.hi95 - r.age})
+			p.Y.Min = math.Min(p.Y.Min, r.lo95-r.ageGyr-0.05)
+			p.Y.Max = math.Max(p.Y.Max, r.hi95-r.ageGyr+0.05)
+		}
+		if len(pts) == 0 {
+			continue
+		}
+		eb, err := plotter.NewYErrorBars(struct {
+			plotter.XYer
+			plotter.YErrorer
+		}{pts, bars})
+		if err != nil {
+			return err
+		}
+		eb.Color = set.c
+		p.Add(eb)
+		if err := addScatter(p, pts, set.c, set.shape, set.legend); err != nil {
+			return err
+		}
+	}
+	p.X.Min, p.X.Max = 0.4, 1.6
+	// A tick every 0.2 Gyr, so that the ±0.1 band reads against them.
+	var ticks []plot.Tick
+	for v := math.Ceil(p.Y.Min*5) / 5; v <= p.Y.Max; v += 0.2 {
+		label := fmt.Sprintf("%+.1f", v)
+		if math.Abs(v) < 1e-9 {
+			label = "0"
+		}
+		ticks = append(ticks, plot.Tick{Value: v, Label: label})
+	}
+	p.Y.Tick.Marker = plot.ConstantTicks(ticks)
+	p.Legend.Top, p.Legend.Left = true, true
+	img := vgimg.New(7*vg.Inch, 4.5*vg.Inch)
+	p.Draw(draw.New(img))
+	return writePNG(path, img)
 }
