@@ -126,7 +126,12 @@ const ownCatalogStars = 17_700
 // the model that made the catalog, what is left of the age errors is the
 // method's own (counting noise, nuisance freedom, templates, search),
 // not a mismatch of physics.
-func ownModelCatalogs() catalogMaker {
+//
+// truthExtra is added to each truth's scenario (SPINPOP_OWNMODEL_TRUTH,
+// `\n` for a new line): e.g. the other model's intrinsic period scatter,
+// "[spin]\nperiod_scatter_dex = 0.08", so that the control's ridges are
+// as broad as the check's.
+func ownModelCatalogs(truthExtra string) catalogMaker {
 	return catalogMaker{scenario: ownScenario, write: func(path string, cs checkCase) error {
 		// A smooth case keeps the burst part with no mass: example:fit's
 		// free list and alternatives name it.
@@ -136,7 +141,7 @@ func ownModelCatalogs() catalogMaker {
 				(b.StartGyr+b.EndGyr)/2, (b.EndGyr-b.StartGyr)/math.Sqrt(12), b.Fraction)
 		}
 		truth := strings.TrimSuffix(path, ".csv") + "-truth.toml"
-		if err := os.WriteFile(truth, []byte(fmt.Sprintf(ownTruth, cs.seed, burst)), 0o644); err != nil {
+		if err := os.WriteFile(truth, []byte(fmt.Sprintf(ownTruth, cs.seed, burst)+truthExtra), 0o644); err != nil {
 			return err
 		}
 		res, err := scenarios.Resolve(truth)
@@ -467,7 +472,7 @@ func TestOtherModelLong(t *testing.T) {
 	require.NoError(t, err)
 	maker := otherModelCatalogs(variant)
 	if os.Getenv("SPINPOP_OTHERMODEL_OWN") != "" {
-		maker = ownModelCatalogs()
+		maker = ownModelCatalogs(strings.ReplaceAll(os.Getenv("SPINPOP_OWNMODEL_TRUTH"), `\n`, "\n"))
 	}
 	rs := runCheckWith(t, cases, reps, 0, extra, maker)
 	falseClaims, smooth, found, covered, bursts := summarise(t, rs)
@@ -571,23 +576,34 @@ func TestOtherModelFigureFromLogs(t *testing.T) {
 }
 
 // TestControlFigureFromLogs draws the own-model control's figure
-// (writeControlFigure) from the logs of a check on the other model's
+// (writeControlFigure) from the logs of the check on the other model's
 // catalogs (SPINPOP_OTHERMODEL_LOGS) and of the same check on spinpop's
-// own (SPINPOP_OWNMODEL_LOGS; SPINPOP_OTHERMODEL_OWN=1).
+// own (SPINPOP_OTHERMODEL_OWN=1), one set or more
+// (SPINPOP_OWNMODEL_LOGS=a.log;b.log, each set a comma-separated list of
+// logs), labelled by SPINPOP_OWNMODEL_LABELS (label;label).
 func TestControlFigureFromLogs(t *testing.T) {
 	other, own, fig := os.Getenv("SPINPOP_OTHERMODEL_LOGS"), os.Getenv("SPINPOP_OWNMODEL_LOGS"), os.Getenv("SPINPOP_CONTROL_FIGURE")
 	if other == "" || own == "" || fig == "" {
-		t.Skip("set SPINPOP_OTHERMODEL_LOGS, SPINPOP_OWNMODEL_LOGS and SPINPOP_CONTROL_FIGURE to draw the own-model control's figure")
+		t.Skip("set SPINPOP_OTHERMODEL_LOGS, SPINPOP_OWNMODEL_LOGS (and _LABELS) and SPINPOP_CONTROL_FIGURE to draw the own-model control's figure")
 	}
 	ro, err := readCheckLogs(strings.Split(other, ","))
 	require.NoError(t, err)
-	rw, err := readCheckLogs(strings.Split(own, ","))
-	require.NoError(t, err)
 	require.NotEmpty(t, ro, "no check lines in %s", other)
-	require.NotEmpty(t, rw, "no check lines in %s", own)
 	summarise(t, ro)
-	summarise(t, rw)
-	require.NoError(t, writeControlFigure(fig, ro, rw))
+	sets := []controlSet{{ro, "another model's catalogs"}}
+	labels := strings.Split(os.Getenv("SPINPOP_OWNMODEL_LABELS"), ";")
+	for i, logs := range strings.Split(own, ";") {
+		rs, err := readCheckLogs(strings.Split(logs, ","))
+		require.NoError(t, err)
+		require.NotEmpty(t, rs, "no check lines in %s", logs)
+		summarise(t, rs)
+		label := "spinpop's own catalogs"
+		if i < len(labels) && labels[i] != "" {
+			label = labels[i]
+		}
+		sets = append(sets, controlSet{rs, label})
+	}
+	require.NoError(t, writeControlFigure(fig, sets))
 }
 
 // The own-model control makes what it says: a catalog of
@@ -600,7 +616,7 @@ func TestOwnModelCatalogs(t *testing.T) {
 		t.Skip("draws two mock catalogs; skipped with -short")
 	}
 	dir := t.TempDir()
-	maker := ownModelCatalogs()
+	maker := ownModelCatalogs("\n[spin]\nperiod_scatter_dex = 0.08\n")
 	for _, cs := range []checkCase{
 		{name: "burst", seed: 31, hist: othermodel.BoxBurst(1.2, 0.1, 0.15), ageGyr: 1.2},
 		{name: "smooth", seed: 32, hist: othermodel.SmoothHistory()},
@@ -611,6 +627,7 @@ func TestOwnModelCatalogs(t *testing.T) {
 		require.NoError(t, err)
 		s := res.Scenario
 		assert.Equal(t, cs.seed, s.Run.Seed)
+		assert.Equal(t, 0.08, s.Spin.PeriodScatterDex, "the truth's extra lines are read")
 		b, ok := s.History.Parts["burst"]
 		require.True(t, ok)
 		if cs.hist.Burst == nil {

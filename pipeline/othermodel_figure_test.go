@@ -163,14 +163,20 @@ func writePNG(path string, img *vgimg.Canvas) error {
 	return f.Close()
 }
 
+// controlSet is one set of check results in the control's figure.
+type controlSet struct {
+	rs     []checkResult
+	legend string
+}
+
 // writeControlFigure draws the own-model control beside the check for the
 // README: each burst catalog's age error (recovered − true, with its 95 %
-// interval) against the true age, the catalogs of the other model and
-// those of spinpop's own generator at the same ages and shares side by
-// side, the ±0.1 Gyr target as a band. Where the two differ, the physics
-// the models do not share is at work; what the own catalogs show is the
-// method's own error.
-func writeControlFigure(path string, other, own []checkResult) error {
+// interval) against the true age, for the other model's catalogs and for
+// spinpop's own at the same ages and shares, side by side at each age, the
+// ±0.1 Gyr target as a band. Where they differ, the physics the models do
+// not share is at work; what the own catalogs show is the method's own
+// error.
+func writeControlFigure(path string, sets []controlSet) error {
 	p := plot.New()
 	p.Title.Text = "Burst age error: another model's catalogs and our own"
 	p.X.Label.Text = "true burst age (Gyr)"
@@ -189,24 +195,27 @@ func writeControlFigure(path string, other, own []checkResult) error {
 	zero.Color = color.Gray{Y: 120}
 	p.Add(zero)
 	p.Y.Min, p.Y.Max = -0.3, 0.3
-	for _, set := range []struct {
-		rs     []checkResult
-		dx     float64 // side by side at each true age
-		c      color.Color
-		shape  draw.GlyphDrawer
-		legend string
+	styles := []struct {
+		c     color.Color
+		shape draw.GlyphDrawer
 	}{
-		{other, -0.012, color.RGBA{R: 0, G: 90, B: 181, A: 255}, draw.CircleGlyph{}, "another model's catalogs"},
-		{own, 0.012, color.RGBA{R: 220, G: 120, B: 0, A: 255}, draw.BoxGlyph{}, "spinpop's own catalogs"},
-	} {
+		{color.RGBA{R: 0, G: 90, B: 181, A: 255}, draw.CircleGlyph{}},
+		{color.RGBA{R: 220, G: 120, B: 0, A: 255}, draw.BoxGlyph{}},
+		{color.RGBA{R: 90, G: 150, B: 60, A: 255}, draw.PyramidGlyph{}},
+	}
+	if len(sets) > len(styles) {
+		return fmt.Errorf("writeControlFigure: %d sets, at most %d", len(sets), len(styles))
+	}
+	const step = 0.018 // the sets side by side at each true age
+	for i, set := range sets {
+		dx := step * (float64(i) - float64(len(sets)-1)/2)
 		var pts plotter.XYs
 		var bars plotter.YErrors
 		for _, r := range set.rs {
 			if r.ageGyr == 0 || math.IsNaN(r.age) {
 				continue
 			}
-			e := r.age - r.ageGyr
-			pts = append(pts, plotter.XY{X: r.ageGyr + set.dx, Y: e})
+			pts = append(pts, plotter.XY{X: r.ageGyr + dx, Y: r.age - r.ageGyr})
 			bars = append(bars, struct{ Low, High float64 }{r.age - r.lo95, r.hi95 - r.age})
 			p.Y.Min = math.Min(p.Y.Min, r.lo95-r.ageGyr-0.05)
 			p.Y.Max = math.Max(p.Y.Max, r.hi95-r.ageGyr+0.05)
@@ -221,9 +230,9 @@ func writeControlFigure(path string, other, own []checkResult) error {
 		if err != nil {
 			return err
 		}
-		eb.Color = set.c
+		eb.Color = styles[i].c
 		p.Add(eb)
-		if err := addScatter(p, pts, set.c, set.shape, set.legend); err != nil {
+		if err := addScatter(p, pts, styles[i].c, styles[i].shape, set.legend); err != nil {
 			return err
 		}
 	}
