@@ -194,11 +194,13 @@ func TestVerdictAdequacyLevel(t *testing.T) {
 // A claimed burst whose age's 95 % profile interval spans the whole range
 // searched is refused: placed anywhere it gains about as much. The
 // numbers are smooth-02's of the independent check with fine age bins
-// (docs/independent-check.md: 2Δln L 53, profile interval 0.100–3.000
-// Gyr), with the misfit's excess put just below the ratio (52, where the
-// run measured 54) so that the misfit rule lets it through; then the
-// same burst with burst-1.17's interval (1.202–1.441 Gyr) and with
-// smooth-01's (2.023–3.000, one end only), which are kept.
+// (2Δln L 53 in the README's table; the profile interval 0.100–3.000 Gyr
+// from that run's log, kept outside the repository), with the misfit's
+// excess put just below the ratio (52, where the run measured 54) so that
+// the misfit rule lets it through; then the same burst with burst-1.17's
+// interval (1.202–1.441 Gyr) and with smooth-01's (2.023–3.000, one end
+// only), which are kept; then the cases the rule must leave alone or
+// word otherwise.
 func TestVerdictRefusesUndeterminedAge(t *testing.T) {
 	r := &BurstResult{Replicates: 200, PValue: 0.3, PValueQuasi: 0.001, LR: 53, DeltaLogL: 26.5, Dispersion: 1.2,
 		AgeParam: "burst.age_gyr", AgeBounds: [2]float64{0.1, 3},
@@ -227,8 +229,39 @@ func TestVerdictRefusesUndeterminedAge(t *testing.T) {
 	strength, _, _, _ = verdict(r)
 	assert.Equal(t, "unreliable", strength)
 
+	r.PValueQuasi = 0.03 // weak: a hint whose age is undetermined is refused too
+	strength, _, _, _ = verdict(r)
+	assert.Equal(t, "unreliable", strength)
+
 	r.PValueQuasi = 0.5 // no claim: nothing to refuse
 	strength, reason, _, _ = verdict(r)
 	assert.Equal(t, "none", strength)
 	assert.Empty(t, reason)
+
+	// An adequate model: judged by the plain bootstrap, the same refusal,
+	// and the advice points at the history's family, not at misfit.
+	r.PValue, r.AdequacyBurst.PValue = 0.001, 0.3
+	strength, reason, calibration, text = verdict(r)
+	require.Equal(t, "unreliable", strength)
+	assert.Equal(t, "bootstrap", calibration)
+	assert.Contains(t, reason, "not determined")
+	assert.Contains(t, text, "smooth history's family")
+	assert.NotContains(t, text, "misfit spread")
+
+	// The edge rule speaks first when the best age is on an edge too.
+	r.Burst.Theta[0] = 3
+	_, reason, _, _ = verdict(r)
+	assert.Contains(t, reason, "oldest age its range allows")
+	r.Burst.Theta[0] = 1.5
+
+	// No profile (NoProfile, or none computed), no range, or NaN bounds:
+	// nothing to judge, the claim stands.
+	for _, iv := range []Interval{{}, {Lo95: math.NaN(), Hi95: math.NaN()}} {
+		r.AgeIntervalProfile = iv
+		strength, _, _, _ = verdict(r)
+		assert.Equal(t, "strong", strength, "%+v", iv)
+	}
+	r.AgeIntervalProfile, r.AgeBounds = Interval{Best: 1.5, Lo95: 0.1, Hi95: 3}, [2]float64{}
+	strength, _, _, _ = verdict(r)
+	assert.Equal(t, "strong", strength, "no range known")
 }

@@ -119,6 +119,10 @@ seed = %d
 // (17,739 for the first burst catalog).
 const ownCatalogStars = 17_700
 
+// ownParallaxErrorMas is the control's parallax error: the demo
+// catalog's (scenarios/examples/data/README.md).
+const ownParallaxErrorMas = 0.02
+
 // ownModelCatalogs makes the check's catalogs with spinpop's own
 // generator instead (SPINPOP_OTHERMODEL_OWN=1): the same ages and shares,
 // each box burst as the Gaussian of the same standard deviation (a box of
@@ -152,9 +156,12 @@ func ownModelCatalogs(truthExtra string) catalogMaker {
 		if err != nil {
 			return err
 		}
-		_, err = Mock(context.Background(), res, MockOptions{Source: truth, Stars: ownCatalogStars, ParallaxErrorMas: 0.02}, f)
+		n, err := Mock(context.Background(), res, MockOptions{Source: truth, Stars: ownCatalogStars, ParallaxErrorMas: ownParallaxErrorMas}, f)
 		if cerr := f.Close(); err == nil {
 			err = cerr
+		}
+		if err == nil && n != ownCatalogStars {
+			err = fmt.Errorf("%s: the mock holds %d catalog stars, not %d", path, n, ownCatalogStars)
 		}
 		return err
 	}}
@@ -463,9 +470,14 @@ func TestOtherModelLong(t *testing.T) {
 	// SPINPOP_OTHERMODEL_ONLY=name,name keeps only the catalogs named
 	// (smooth-02, burst-1.17, …): one catalog run again at more replicates.
 	if v := os.Getenv("SPINPOP_OTHERMODEL_ONLY"); v != "" {
-		names := strings.Split(v, ",")
+		var names []string
+		for _, n := range strings.Split(v, ",") {
+			n = strings.TrimSpace(n)
+			require.True(t, slices.ContainsFunc(cases, func(cs checkCase) bool { return cs.name == n }),
+				"SPINPOP_OTHERMODEL_ONLY=%q: %q is no catalog of the check (smooth-01, burst-0.50, …; with SPINPOP_OTHERMODEL_CASES and _SKIP applied)", v, n)
+			names = append(names, n)
+		}
 		cases = slices.DeleteFunc(cases, func(cs checkCase) bool { return !slices.Contains(names, cs.name) })
-		require.NotEmpty(t, cases, "SPINPOP_OTHERMODEL_ONLY=%q names no catalog of the check (smooth-01, burst-0.50, …)", v)
 	}
 	extra := strings.ReplaceAll(os.Getenv("SPINPOP_OTHERMODEL_EXTRA"), `\n`, "\n")
 	variant, err := parseVariant(os.Getenv("SPINPOP_OTHERMODEL_VARIANT"))

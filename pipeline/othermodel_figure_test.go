@@ -175,7 +175,8 @@ type controlSet struct {
 // spinpop's own at the same ages and shares, side by side at each age, the
 // ±0.1 Gyr target as a band. Where they differ, the physics the models do
 // not share is at work; what the own catalogs show is the method's own
-// error.
+// error. The true ages are those of the logs' lines, rounded to 0.01 Gyr
+// (checkLineFormat): a shift of at most 0.005 Gyr, not visible here.
 func writeControlFigure(path string, sets []controlSet) error {
 	p := plot.New()
 	p.Title.Text = "Burst age error: another model's catalogs and our own"
@@ -212,7 +213,7 @@ func writeControlFigure(path string, sets []controlSet) error {
 		var pts plotter.XYs
 		var bars plotter.YErrors
 		for _, r := range set.rs {
-			if r.ageGyr == 0 || math.IsNaN(r.age) {
+			if r.ageGyr == 0 || math.IsNaN(r.age) || math.IsNaN(r.lo95) || math.IsNaN(r.hi95) {
 				continue
 			}
 			pts = append(pts, plotter.XY{X: r.ageGyr + dx, Y: r.age - r.ageGyr})
