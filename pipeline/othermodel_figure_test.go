@@ -24,19 +24,10 @@ func writeCheckFigure(path string, rs []checkResult) error {
 	left.Title.Text = "Burst catalogs: recovered age"
 	left.X.Label.Text = "true burst age (Gyr)"
 	left.Y.Label.Text = "recovered age, 95 % interval (Gyr)"
-	band, err := plotter.NewPolygon(plotter.XYs{{X: 0.3, Y: 0.2}, {X: 3, Y: 2.9}, {X: 3, Y: 3.1}, {X: 0.3, Y: 0.4}})
-	if err != nil {
+	if err := addTarget(left, plotter.XYs{{X: 0.3, Y: 0.2}, {X: 3, Y: 2.9}, {X: 3, Y: 3.1}, {X: 0.3, Y: 0.4}},
+		plotter.XYs{{X: 0.3, Y: 0.3}, {X: 3, Y: 3}}); err != nil {
 		return err
 	}
-	band.Color = color.RGBA{R: 210, G: 225, B: 240, A: 255}
-	band.LineStyle.Width = 0
-	left.Add(band)
-	diag, err := plotter.NewLine(plotter.XYs{{X: 0.3, Y: 0.3}, {X: 3, Y: 3}})
-	if err != nil {
-		return err
-	}
-	diag.Color = color.Gray{Y: 120}
-	left.Add(diag)
 	// Weak apart from not claimed: with few replicates weak is the
 	// strongest verdict the bootstrap can give.
 	var found, weak, missed plotter.XYs
@@ -163,6 +154,25 @@ func writePNG(path string, img *vgimg.Canvas) error {
 	return f.Close()
 }
 
+// addTarget draws the ±0.1 Gyr target as a pale band and the truth as a
+// grey line.
+func addTarget(p *plot.Plot, band, truth plotter.XYs) error {
+	poly, err := plotter.NewPolygon(band)
+	if err != nil {
+		return err
+	}
+	poly.Color = color.RGBA{R: 210, G: 225, B: 240, A: 255}
+	poly.LineStyle.Width = 0
+	p.Add(poly)
+	line, err := plotter.NewLine(truth)
+	if err != nil {
+		return err
+	}
+	line.Color = color.Gray{Y: 120}
+	p.Add(line)
+	return nil
+}
+
 // controlSet is one set of check results in the control's figure.
 type controlSet struct {
 	rs     []checkResult
@@ -182,19 +192,10 @@ func writeControlFigure(path string, sets []controlSet) error {
 	p.Title.Text = "Burst age error: another model's catalogs and our own"
 	p.X.Label.Text = "true burst age (Gyr)"
 	p.Y.Label.Text = "recovered − true age, 95 % interval (Gyr)"
-	band, err := plotter.NewPolygon(plotter.XYs{{X: 0.3, Y: -0.1}, {X: 1.8, Y: -0.1}, {X: 1.8, Y: 0.1}, {X: 0.3, Y: 0.1}})
-	if err != nil {
+	if err := addTarget(p, plotter.XYs{{X: 0.3, Y: -0.1}, {X: 1.8, Y: -0.1}, {X: 1.8, Y: 0.1}, {X: 0.3, Y: 0.1}},
+		plotter.XYs{{X: 0.3, Y: 0}, {X: 1.8, Y: 0}}); err != nil {
 		return err
 	}
-	band.Color = color.RGBA{R: 210, G: 225, B: 240, A: 255}
-	band.LineStyle.Width = 0
-	p.Add(band)
-	zero, err := plotter.NewLine(plotter.XYs{{X: 0.3, Y: 0}, {X: 1.8, Y: 0}})
-	if err != nil {
-		return err
-	}
-	zero.Color = color.Gray{Y: 120}
-	p.Add(zero)
 	p.Y.Min, p.Y.Max = -0.3, 0.3
 	styles := []struct {
 		c     color.Color
