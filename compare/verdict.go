@@ -112,11 +112,11 @@ func verdict(r *BurstResult) (strength, reason, calibration, text string) {
 		text = strings.ToUpper(sentence[:1]) + sentence[1:] + " " + fitText
 	}
 	if strength != "none" {
-		if reason, advice := onRangeEdge(r); reason != "" {
-			return "unreliable", reason, calibration, fmt.Sprintf("No burst is claimed: %s. %s Without that check the test would read: %s", reason, advice, text)
-		}
-		if reason, advice := ageUndetermined(r); reason != "" {
-			return "unreliable", reason, calibration, fmt.Sprintf("No burst is claimed: %s. %s Without that check the test would read: %s", reason, advice, text)
+		// Rules that refuse a burst whatever its ratio, the edge first.
+		for _, refuse := range []func(*BurstResult) (reason, advice string){onRangeEdge, ageUndetermined} {
+			if reason, advice := refuse(r); reason != "" {
+				return "unreliable", reason, calibration, fmt.Sprintf("No burst is claimed: %s. %s Without that check the test would read: %s", reason, advice, text)
+			}
 		}
 	}
 	return strength, "", calibration, text
