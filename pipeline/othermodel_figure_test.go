@@ -52,14 +52,9 @@ func writeCheckFigure(path string, rs []checkResult) error {
 		}
 	}
 	if len(barPts) > 0 {
-		eb, err := plotter.NewYErrorBars(struct {
-			plotter.XYer
-			plotter.YErrorer
-		}{barPts, bars})
-		if err != nil {
+		if err := addErrorBars(left, barPts, bars, nil); err != nil {
 			return err
 		}
-		left.Add(eb)
 	}
 	blue, orange := color.RGBA{R: 0, G: 90, B: 181, A: 255}, color.RGBA{R: 220, G: 120, B: 0, A: 255}
 	if err := addScatter(left, found, blue, draw.CircleGlyph{}, "burst claimed"); err != nil {
@@ -173,6 +168,23 @@ func addTarget(p *plot.Plot, band, truth plotter.XYs) error {
 	return nil
 }
 
+// addErrorBars draws vertical error bars at pts (bars[i] below and above
+// pts[i]), in c (nil: the plotter's default, black).
+func addErrorBars(p *plot.Plot, pts plotter.XYs, bars plotter.YErrors, c color.Color) error {
+	eb, err := plotter.NewYErrorBars(struct {
+		plotter.XYer
+		plotter.YErrorer
+	}{pts, bars})
+	if err != nil {
+		return err
+	}
+	if c != nil {
+		eb.Color = c
+	}
+	p.Add(eb)
+	return nil
+}
+
 // controlSet is one set of check results in the control's figure.
 type controlSet struct {
 	rs     []checkResult
@@ -225,15 +237,9 @@ func writeControlFigure(path string, sets []controlSet) error {
 		if len(pts) == 0 {
 			continue
 		}
-		eb, err := plotter.NewYErrorBars(struct {
-			plotter.XYer
-			plotter.YErrorer
-		}{pts, bars})
-		if err != nil {
+		if err := addErrorBars(p, pts, bars, styles[i].c); err != nil {
 			return err
 		}
-		eb.Color = styles[i].c
-		p.Add(eb)
 		if err := addScatter(p, pts, styles[i].c, styles[i].shape, set.legend); err != nil {
 			return err
 		}
