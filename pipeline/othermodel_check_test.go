@@ -213,6 +213,9 @@ func runCheckWith(t *testing.T, cases []checkCase, replicates int, templateStars
 		// (a broad one at the old end, one on a range's edge).
 		t.Logf("%-12s with burst: %s (ln L %.2f); smooth: %s (ln L %.2f)", cs.name,
 			historyText(tr.Burst), tr.Burst.LogL, historyText(tr.Smooth), tr.Smooth.LogL)
+		if line, ok := lawShareLine(c.Nuisance, tr.Burst, cs.ageGyr, r.age); ok {
+			t.Logf("%-12s %s", cs.name, line)
+		}
 		if b := tr.AgeBootstrap; len(b.Ages) > 0 {
 			t.Logf("%-12s burst age refitted on %d mocks drawn at %.3f: median %.3f, 68 %% [%.3f, %.3f], 95 %% [%.3f, %.3f]; profile interval [%.3f, %.3f] holds %.0f %%; ages %.3f",
 				cs.name, len(b.Ages), b.Truth, b.Median, b.Lo68, b.Hi68, b.Lo95, b.Hi95,
@@ -221,6 +224,44 @@ func runCheckWith(t *testing.T, cases []checkCase, replicates int, templateStars
 		out = append(out, r)
 	}
 	return out
+}
+
+// lawShareLine splits a burst catalog's age error in two when the fit
+// frees the empirical law's scale and age exponent (spin.<law>.a and .n):
+// the part the fitted coefficients account for — the age at which the
+// truth's ridge lies under them — and the rest. The check's catalogs are
+// made with the scenario's (published) coefficients, so the first part is
+// the law's calibration moving within its priors, which no field catalog
+// pins (model/spin.AgeCalibration), and the rest is what the other
+// nuisance parameters, the history and the counts did.
+func lawShareLine(nu *compare.Nuisance, fit compare.FitResult, truthGyr, bestGyr float64) (string, bool) {
+	if truthGyr == 0 || nu == nil || len(fit.Nuisance) != nu.Dim() {
+		return "", false
+	}
+	ia, in := -1, -1
+	for j, p := range nu.Params {
+		switch {
+		case strings.HasPrefix(p.Name, "spin.") && strings.HasSuffix(p.Name, ".a"):
+			ia = j
+		case strings.HasPrefix(p.Name, "spin.") && strings.HasSuffix(p.Name, ".n"):
+			in = j
+		}
+	}
+	if ia < 0 || in < 0 {
+		return "", false
+	}
+	a0, n0 := nu.Params[ia].Nominal, nu.Params[in].Nominal
+	a1, n1 := fit.Nuisance[ia], fit.Nuisance[in]
+	ridge := ridgeAgeGyr(truthGyr, a0, n0, a1, n1)
+	return fmt.Sprintf("law: a = %.4f, n = %.4f (scenario %.4g, %.4g); the truth's ridge read with them at %.3f Gyr: the law's part of the error %+.3f, the rest %+.3f",
+		a1, n1, a0, n0, ridge, ridge-truthGyr, bestGyr-ridge), true
+}
+
+// ridgeAgeGyr is the age at which an empirical law P = a (x − c)^b t^n
+// (t in Myr) with coefficients a1, n1 puts the ridge that coefficients
+// a0, n0 put at truthGyr: a1 t1^n1 = a0 t^n0, whatever the color.
+func ridgeAgeGyr(truthGyr, a0, n0, a1, n1 float64) float64 {
+	return math.Exp((math.Log(a0/a1)+n0*math.Log(1000*truthGyr))/n1) / 1000
 }
 
 // historyText is a fit's history parameters as name = value.
@@ -322,7 +363,7 @@ func withRamp(h othermodel.History, s float64) othermodel.History {
 }
 
 // variantKeys are the keys parseVariant takes, for its errors.
-const variantKeys = "ramp, law, scatter, p50, heightbeta, stall"
+const variantKeys = "ramp, law, scatter, p50, heightbeta, av, stall"
 
 // parseVariant reads SPINPOP_OTHERMODEL_VARIANT: the other model changed
 // further from spinpop than its defaults, so that the check also covers
@@ -336,6 +377,7 @@ const variantKeys = "ramp, law, scatter, p50, heightbeta, stall"
 //	scatter=dex   intrinsic period scatter (default 0.08)
 //	p50=days      half-detection period at B−V 0.65 (default 20)
 //	heightbeta=β  exponent of the scale height's growth with age (default 0.7)
+//	av=mag/kpc    the uniform extinction in V along the line of sight (default 0.25)
 //	stall=S:D     K dwarfs' spin-down paused from S Gyr for D Gyr (othermodel.Stall; default none)
 func parseVariant(spec string) (othermodel.Config, error) {
 	cfg := othermodel.DefaultConfig()
@@ -385,6 +427,8 @@ func parseVariant(spec string) (othermodel.Config, error) {
 			cfg.Detection.P50RefD = x
 		case "heightbeta":
 			cfg.ScaleHeightBeta = x
+		case "av":
+			cfg.AVPerKpc = x
 		default:
 			return cfg, fmt.Errorf("SPINPOP_OTHERMODEL_VARIANT: unknown key %q (keys: %s)", k, variantKeys)
 		}
@@ -392,16 +436,41 @@ func parseVariant(spec string) (othermodel.Config, error) {
 	return cfg, cfg.Validate()
 }
 
+// The split of an age error between the law's coefficients and the rest.
+// Expected values worked by hand from P ∝ a t^n (Barnes 2007's form):
+// n 1 % larger puts a 1 Gyr ridge at 1000^(1/1.01) Myr = 10^2.970297 Myr
+// = 0.93389 Gyr; a 2 % larger puts a 1.5 Gyr ridge at
+// 1.5 · 1.02^(−1/0.5189) = 1.5 · e^(−0.038163) = 1.44383 Gyr.
+func TestLawShareLine(t *testing.T) {
+	assert.InDelta(t, 0.93389, ridgeAgeGyr(1, 0.7725, 0.5189, 0.7725, 0.5189*1.01), 5e-5)
+	assert.InDelta(t, 1.44383, ridgeAgeGyr(1.5, 0.7725, 0.5189, 0.7725*1.02, 0.5189), 5e-5)
+	assert.InDelta(t, 1.2, ridgeAgeGyr(1.2, 0.7725, 0.5189, 0.7725, 0.5189), 1e-12, "the scenario's own coefficients move nothing")
+
+	nu := &compare.Nuisance{Params: []compare.NuisanceParam{
+		{Name: "spin.period_scatter_dex", Nominal: 0, Max: 0.3},
+		{Name: "spin.barnes2007.a", Nominal: 0.7725, Min: 0.7, Max: 0.85},
+		{Name: "spin.barnes2007.n", Nominal: 0.5189, Min: 0.48, Max: 0.56},
+	}}
+	fit := compare.FitResult{Nuisance: []float64{0.08, 0.7725 * 1.02, 0.5189}}
+	line, ok := lawShareLine(nu, fit, 1.5, 1.50)
+	require.True(t, ok)
+	assert.Contains(t, line, "at 1.444 Gyr: the law's part of the error -0.056, the rest +0.056")
+	_, ok = lawShareLine(nu, fit, 0, 1.5)
+	assert.False(t, ok, "a smooth catalog has no error to split")
+	_, ok = lawShareLine(&compare.Nuisance{Params: nu.Params[:2]}, compare.FitResult{Nuisance: fit.Nuisance[:2]}, 1.5, 1.5)
+	assert.False(t, ok, "the law's exponent held: nothing to split")
+}
+
 func TestParseVariant(t *testing.T) {
 	def := othermodel.DefaultConfig()
 	cfg, err := parseVariant("")
 	require.NoError(t, err)
 	assert.Equal(t, def, cfg, "no variant: the other model's defaults")
-	cfg, err = parseVariant("ramp=0.8, law=mamajek2008,scatter=0.12,p50=14,heightbeta=0.5")
+	cfg, err = parseVariant("ramp=0.8, law=mamajek2008,scatter=0.12,p50=14,heightbeta=0.5,av=0")
 	require.NoError(t, err)
 	assert.Equal(t, 0.8, cfg.History.RampSlope)
 	assert.Equal(t, othermodel.Mamajek2008(), cfg.Gyro)
-	assert.Equal(t, []float64{0.12, 14, 0.5}, []float64{cfg.PeriodScatterDex, cfg.Detection.P50RefD, cfg.ScaleHeightBeta})
+	assert.Equal(t, []float64{0.12, 14, 0.5, 0}, []float64{cfg.PeriodScatterDex, cfg.Detection.P50RefD, cfg.ScaleHeightBeta, cfg.AVPerKpc})
 	assert.Nil(t, cfg.Stall)
 	cfg, err = parseVariant("stall=0.7:0.4")
 	require.NoError(t, err)
