@@ -230,10 +230,12 @@ func runCheckWith(t *testing.T, cases []checkCase, replicates int, templateStars
 // frees the empirical law's scale and age exponent (spin.<law>.a and .n):
 // the part the fitted coefficients account for — the age at which the
 // truth's ridge lies under them — and the rest. The check's catalogs are
-// made with the scenario's (published) coefficients, so the first part is
-// the law's calibration moving within its priors, which no field catalog
-// pins (model/spin.AgeCalibration), and the rest is what the other
-// nuisance parameters, the history and the counts did.
+// made with the scenario's (published) coefficients (not so with the
+// variant law=mamajek2008, where the split means nothing), so the first
+// part is the law's calibration moving within its priors, which a field
+// catalog pins only partly (model/spin.AgeCalibration is the whole of it),
+// and the rest is what the other nuisance parameters, the history and the
+// counts did.
 func lawShareLine(nu *compare.Nuisance, fit compare.FitResult, truthGyr, bestGyr float64) (string, bool) {
 	if truthGyr == 0 || nu == nil || len(fit.Nuisance) != nu.Dim() {
 		return "", false
@@ -259,7 +261,8 @@ func lawShareLine(nu *compare.Nuisance, fit compare.FitResult, truthGyr, bestGyr
 
 // ridgeAgeGyr is the age at which an empirical law P = a (x − c)^b t^n
 // (t in Myr) with coefficients a1, n1 puts the ridge that coefficients
-// a0, n0 put at truthGyr: a1 t1^n1 = a0 t^n0, whatever the color.
+// a0, n0 put at truthGyr: a1 t1^n1 = a0 t^n0, whatever the color (b and c
+// the same in both).
 func ridgeAgeGyr(truthGyr, a0, n0, a1, n1 float64) float64 {
 	return math.Exp((math.Log(a0/a1)+n0*math.Log(1000*truthGyr))/n1) / 1000
 }
