@@ -30,23 +30,28 @@ import (
 // everything else — the physics, the selection, the nuisance parameters —
 // is example:fit's own.
 
-// checkScenario is the user's scenario for the other model's catalogs:
-// the other model's dust (a uniform 0.25 mag/kpc in V: an exponential
-// layer 50 kpc thick, the thickest the scenario format takes, which dims
-// a star 1.5 kpc from the plane by 3 % less than uniform dust would) and
-// its catalog file.
-const checkScenario = `extends = "example:fit"
+// checkScenario is the user's scenario for the other model's catalogs
+// made with cfg: the other model's dust (a uniform cfg.AVPerKpc in V, 0.25
+// mag/kpc by default: an exponential layer 50 kpc thick, the thickest the
+// scenario format takes, which dims a star 1.5 kpc from the plane by 3 %
+// less than uniform dust would; none when it has none) and, through the
+// one %q left in it, its catalog file.
+func checkScenario(cfg othermodel.Config) string {
+	dust := "model = \"none\""
+	if cfg.AVPerKpc > 0 {
+		dust = fmt.Sprintf("model = \"exponential\"\nscale_height_pc = 50000.0\nmidplane_av_per_kpc = %g", cfg.AVPerKpc)
+	}
+	return `extends = "example:fit"
 name = "othermodel-check"
 
 [dust]
-model = "exponential"
-scale_height_pc = 50000.0
-midplane_av_per_kpc = 0.25
+` + dust + `
 
 [data]
 file = %q
 sha256 = ""
 `
+}
 
 // checkCase is one catalog of the other model.
 type checkCase struct {
@@ -83,7 +88,7 @@ type catalogMaker struct {
 
 // otherModelCatalogs makes the check's catalogs with the other model.
 func otherModelCatalogs(variant othermodel.Config) catalogMaker {
-	return catalogMaker{scenario: checkScenario, write: func(path string, cs checkCase) error {
+	return catalogMaker{scenario: checkScenario(variant), write: func(path string, cs checkCase) error {
 		cfg := variant
 		cfg.History = withRamp(cs.hist, variant.History.RampSlope)
 		_, err := othermodel.WriteCatalog(path, cfg, cs.seed)
@@ -462,6 +467,30 @@ func TestLawShareLine(t *testing.T) {
 	assert.False(t, ok, "a smooth catalog has no error to split")
 	_, ok = lawShareLine(&compare.Nuisance{Params: nu.Params[:2]}, compare.FitResult{Nuisance: fit.Nuisance[:2]}, 1.5, 1.5)
 	assert.False(t, ok, "the law's exponent held: nothing to split")
+}
+
+// The check's scenario takes the other model's dust: its default uniform
+// 0.25 mag/kpc, another value of the variant av=, none for av=0.
+func TestCheckScenarioFollowsTheDust(t *testing.T) {
+	dir := t.TempDir()
+	for _, c := range []struct {
+		av       float64
+		model    string
+		midplane float64
+	}{{0.25, "exponential", 0.25}, {0.4, "exponential", 0.4}, {0, "none", -1}} {
+		cfg := othermodel.DefaultConfig()
+		cfg.AVPerKpc = c.av
+		path := filepath.Join(dir, fmt.Sprintf("check-%g.toml", c.av))
+		require.NoError(t, os.WriteFile(path, []byte(fmt.Sprintf(checkScenario(cfg), filepath.Join(dir, "catalog.csv"))), 0o644))
+		res, err := scenarios.Resolve(path)
+		require.NoError(t, err, "av=%g", c.av)
+		d := res.Scenario.Dust
+		assert.Equal(t, c.model, d.Model, "av=%g", c.av)
+		if c.midplane > 0 {
+			assert.Equal(t, c.midplane, d.MidplaneAvPerKpc, "av=%g", c.av)
+			assert.Equal(t, 50000.0, d.ScaleHeightPc, "av=%g: a layer thick enough to be uniform", c.av)
+		}
+	}
 }
 
 func TestParseVariant(t *testing.T) {
