@@ -18,6 +18,7 @@ import (
 
 	"spinpop/compare"
 	"spinpop/internal/othermodel"
+	"spinpop/model"
 	"spinpop/scenarios"
 )
 
@@ -371,7 +372,7 @@ func withRamp(h othermodel.History, s float64) othermodel.History {
 }
 
 // variantKeys are the keys parseVariant takes, for its errors.
-const variantKeys = "ramp, law, scatter, p50, heightbeta, av, stall"
+const variantKeys = "ramp, law, scatter, p50, heightbeta, av, stall, relations"
 
 // parseVariant reads SPINPOP_OTHERMODEL_VARIANT: the other model changed
 // further from spinpop than its defaults, so that the check also covers
@@ -387,6 +388,9 @@ const variantKeys = "ramp, law, scatter, p50, heightbeta, av, stall"
 //	heightbeta=β  exponent of the scale height's growth with age (default 0.7)
 //	av=mag/kpc    the uniform extinction in V along the line of sight (default 0.25)
 //	stall=S:D     K dwarfs' spin-down paused from S Gyr for D Gyr (othermodel.Stall; default none)
+//	relations=R   spinpop's relations instead of the other model's own (a diagnostic: what the
+//	              relations alone do to a fit): spinpop (its dwarf sequence and main-sequence
+//	              lifetimes), spinpop-sequence (the sequence alone) or spinpop-lifetimes
 func parseVariant(spec string) (othermodel.Config, error) {
 	cfg := othermodel.DefaultConfig()
 	if strings.TrimSpace(spec) == "" {
@@ -406,6 +410,14 @@ func parseVariant(spec string) (othermodel.Config, error) {
 			default:
 				return cfg, fmt.Errorf("SPINPOP_OTHERMODEL_VARIANT: law=%q; want barnes2007 or mamajek2008", v)
 			}
+			continue
+		}
+		if k == "relations" {
+			r, err := spinpopRelations(v)
+			if err != nil {
+				return cfg, err
+			}
+			cfg.Relations = r
 			continue
 		}
 		if k == "stall" {
@@ -442,6 +454,50 @@ func parseVariant(spec string) (othermodel.Config, error) {
 		}
 	}
 	return cfg, cfg.Validate()
+}
+
+// spinpopRelations hands the other model spinpop's relations (the
+// variant relations=which): its dwarf sequence (model.DwarfSequence: B−V
+// and M_V by mass), its main-sequence lifetimes (model.MSLifetimeGyr), or
+// both. The other model still removes a star at the end of its main
+// sequence, where spinpop brightens it for a further fifth of its
+// lifetime (model.EvolvedBrightening).
+func spinpopRelations(which string) (*othermodel.Relations, error) {
+	seq, life := false, false
+	switch which {
+	case "spinpop":
+		seq, life = true, true
+	case "spinpop-sequence":
+		seq = true
+	case "spinpop-lifetimes":
+		life = true
+	default:
+		return nil, fmt.Errorf("SPINPOP_OTHERMODEL_VARIANT: relations=%q; want spinpop, spinpop-sequence or spinpop-lifetimes (or leave it out: the other model's own)", which)
+	}
+	r := &othermodel.Relations{Name: "spinpop's " + strings.TrimPrefix(strings.TrimPrefix(which, "spinpop"), "-"),
+		Dwarf: func(m float64) (float64, float64, bool) {
+			d := othermodel.DwarfOfMass(m)
+			return d.BV, d.AbsMagV, true
+		},
+		LifetimeGyr: othermodel.MSLifetimeGyr,
+	}
+	if which == "spinpop" {
+		r.Name = "spinpop's dwarf sequence and main-sequence lifetimes"
+	}
+	if seq {
+		rel, err := model.DwarfSequence()
+		if err != nil {
+			return nil, err
+		}
+		r.Dwarf = func(m float64) (float64, float64, bool) {
+			p, ok := rel.At(m)
+			return p.BV, p.AbsMagV, ok
+		}
+	}
+	if life {
+		r.LifetimeGyr = model.MSLifetimeGyr
+	}
+	return r, nil
 }
 
 // The split of an age error between the law's coefficients and the rest.
@@ -508,14 +564,40 @@ func TestParseVariant(t *testing.T) {
 	require.NoError(t, err)
 	require.NotNil(t, cfg.Stall)
 	assert.Equal(t, []float64{0.7, 0.4, othermodel.KDwarfStall().FullMinBV}, []float64{cfg.Stall.StartGyr, cfg.Stall.DurationGyr, cfg.Stall.FullMinBV})
+	cfg, err = parseVariant("relations=spinpop")
+	require.NoError(t, err)
+	require.NotNil(t, cfg.Relations)
+	rel, err := model.DwarfSequence()
+	require.NoError(t, err)
+	sun, _ := rel.At(1)
+	bv, mv, ok := cfg.Relations.Dwarf(1)
+	assert.True(t, ok)
+	assert.Equal(t, []float64{sun.BV, sun.AbsMagV}, []float64{bv, mv}, "the hook reads spinpop's dwarf sequence")
+	assert.InDelta(t, 10, cfg.Relations.LifetimeGyr(1), 1e-12, "the Sun's main-sequence lifetime (common practice)")
+	// One of the two alone: spinpop's lifetime of a 1.2 M☉ star is
+	// 10 · 1.2^−2.5 = 6.339 Gyr, the other model's 10 · 1.2^−3 = 5.787 Gyr
+	// (both common practice: L ∝ M^3.5 and M^4).
+	cfg, err = parseVariant("relations=spinpop-lifetimes")
+	require.NoError(t, err)
+	assert.InDelta(t, 6.339, cfg.Relations.LifetimeGyr(1.2), 5e-4)
+	d := othermodel.DwarfOfMass(0.8)
+	bv, mv, _ = cfg.Relations.Dwarf(0.8)
+	assert.Equal(t, []float64{d.BV, d.AbsMagV}, []float64{bv, mv}, "the other model's own sequence")
+	cfg, err = parseVariant("relations=spinpop-sequence")
+	require.NoError(t, err)
+	assert.InDelta(t, 5.787, cfg.Relations.LifetimeGyr(1.2), 5e-4)
+	p8, _ := rel.At(0.8)
+	bv, mv, _ = cfg.Relations.Dwarf(0.8)
+	assert.Equal(t, []float64{p8.BV, p8.AbsMagV}, []float64{bv, mv})
 	for spec, want := range map[string]string{
-		"ramp":          "not key=value",
-		"law=skumanich": "want barnes2007 or mamajek2008",
-		"scatter=wide":  `scatter="wide" is not a number`,
-		"tilt=3":        `unknown key "tilt"`,
-		"ramp=-2":       "RampSlope", // the other model's own check: a rate below zero
-		"stall=0.6":     "want START:DURATION",
-		"stall=0:0.5":   "StartGyr > 0",
+		"relations=mist": "want spinpop, spinpop-sequence or spinpop-lifetimes",
+		"ramp":           "not key=value",
+		"law=skumanich":  "want barnes2007 or mamajek2008",
+		"scatter=wide":   `scatter="wide" is not a number`,
+		"tilt=3":         `unknown key "tilt"`,
+		"ramp=-2":        "RampSlope", // the other model's own check: a rate below zero
+		"stall=0.6":      "want START:DURATION",
+		"stall=0:0.5":    "StartGyr > 0",
 	} {
 		_, err := parseVariant(spec)
 		require.Error(t, err, spec)

@@ -109,6 +109,18 @@ func (d Detection) Efficiency(periodD, bv, v float64) float64 {
 	return d.MaxEfficiency * inP * inV
 }
 
+// Relations replaces the built-in mass relations: a diagnostic hook, so
+// that a check can hand this model another relation table and see what
+// the relations alone do to a fit, every other ingredient unchanged.
+type Relations struct {
+	Name string
+	// Dwarf gives a main-sequence star's intrinsic B−V and M_V; ok false
+	// outside the table (the star is drawn again).
+	Dwarf func(massMsun float64) (bv, absMagV float64, ok bool)
+	// LifetimeGyr is the main-sequence lifetime; older stars are removed.
+	LifetimeGyr func(massMsun float64) float64
+}
+
 // Config is every ingredient of the model. DefaultConfig fills it.
 type Config struct {
 	Stars   int // catalog rows to collect
@@ -119,8 +131,9 @@ type Config struct {
 	IMFSlope, MassMinMsun, MassMaxMsun float64
 
 	Gyro             GyroLaw
-	Stall            *Stall  // nil: the law's clock never pauses
-	PeriodScatterDex float64 // intrinsic lognormal scatter about the law
+	Stall            *Stall     // nil: the law's clock never pauses
+	Relations        *Relations // nil: the built-in relations (relations.go)
+	PeriodScatterDex float64    // intrinsic lognormal scatter about the law
 	Detection        Detection
 
 	// Measurement.
@@ -173,6 +186,9 @@ func (c Config) Validate() error {
 		if err := c.Stall.validate(); err != nil {
 			return err
 		}
+	}
+	if c.Relations != nil && (c.Relations.Dwarf == nil || c.Relations.LifetimeGyr == nil) {
+		return fmt.Errorf("othermodel: Relations %q needs both Dwarf and LifetimeGyr", c.Relations.Name)
 	}
 	h, s := c.History, c.Survey
 	switch {

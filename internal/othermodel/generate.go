@@ -72,11 +72,14 @@ func Generate(cfg Config, seed uint64) ([]Star, Tally, error) {
 		tally.Placed++
 
 		m := math.Pow(mLo+r.Float64()*(mHi-mLo), 1/g)
-		if age > MSLifetimeGyr(m) {
+		if age > cfg.lifetimeGyr(m) {
 			tally.Evolved++
 			continue
 		}
-		d := DwarfOfMass(m)
+		d, ok := cfg.dwarf(m)
+		if !ok {
+			continue
+		}
 		av := cfg.AVPerKpc * dist / 1000
 		vMag := round(d.AbsMagV+5*math.Log10(dist/10)+av+cfg.MagErrMag*r.NormFloat64(), 1e4)
 		bv := round(d.BV+av/cfg.RV+cfg.ColorErrMag*r.NormFloat64(), 1e4)
@@ -120,6 +123,23 @@ func Generate(cfg Config, seed uint64) ([]Star, Tally, error) {
 	return stars, tally, nil
 }
 
+// lifetimeGyr is the main-sequence lifetime by cfg's relations.
+func (c Config) lifetimeGyr(massMsun float64) float64 {
+	if c.Relations != nil {
+		return c.Relations.LifetimeGyr(massMsun)
+	}
+	return MSLifetimeGyr(massMsun)
+}
+
+// dwarf is the intrinsic B−V and M_V by cfg's relations.
+func (c Config) dwarf(massMsun float64) (Dwarf, bool) {
+	if c.Relations != nil {
+		bv, mv, ok := c.Relations.Dwarf(massMsun)
+		return Dwarf{BV: bv, AbsMagV: mv}, ok
+	}
+	return DwarfOfMass(massMsun), true
+}
+
 // round rounds to 1/scale, so the cuts see exactly the values written.
 func round(v, scale float64) float64 { return math.Round(v*scale) / scale }
 
@@ -147,6 +167,9 @@ func WriteCatalog(path string, cfg Config, seed uint64) (Tally, error) {
 	fmt.Fprintf(w, "# invented rotation catalog from the independent test model (internal/othermodel), seed %d\n", seed)
 	fmt.Fprintf(w, "# history: max age %g Gyr, ramp slope %g, burst %s; law %s, stall %s, scatter %g dex\n",
 		cfg.History.MaxAgeGyr, cfg.History.RampSlope, describeBurst(cfg.History.Burst), cfg.Gyro.Name, describeStall(cfg.Stall), cfg.PeriodScatterDex)
+	if cfg.Relations != nil {
+		fmt.Fprintf(w, "# relations: %s (not the model's own)\n", cfg.Relations.Name)
+	}
 	fmt.Fprintf(w, "# vmag includes extinction; bv_mag is reddened; true_* columns are diagnostics\n%s\n", CatalogHeader)
 	f := func(v float64, prec int) string { return strconv.FormatFloat(v, 'f', prec, 64) }
 	for i, s := range stars {
