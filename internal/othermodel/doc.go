@@ -20,6 +20,9 @@
 // mean dwarf sequence for B−V 0.45–1.42 and diverges redward (Ballesteros'
 // blackbody-based relation overshoots for M dwarfs), so the few stars there
 // fall outside spinpop's main-sequence band and are cut by the reader.
+// Config.Relations (nil by default) lets a test hand it other relations —
+// the check's diagnostic variant relations=spinpop gives it spinpop's —
+// as functions, so this package still imports nothing of spinpop's.
 //
 // Spin-down. An empirical law P = a (B−V − c)^b t^n (t in Myr) on the
 // intrinsic color, with coefficients chosen by the caller: Barnes (2007)
