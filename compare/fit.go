@@ -126,7 +126,20 @@ func (o *objective) fit(m HistoryModel, opts FitOptions, nuStart []float64) (Fit
 	if o.mo != nil {
 		o.setNuisance(nuStart)
 	}
-	starts := append([][]float64(nil), opts.Init...)
+	var starts [][]float64
+	for i, s := range opts.Init {
+		switch len(s) {
+		case m.Dim():
+			starts = append(starts, s)
+		case 0:
+			// A warm start from a fit that has no θ: the point where its
+			// templates cannot reach every data star (profileWith), whose
+			// fit is ln L = −∞ with no history. No start at all; the
+			// others remain.
+		default:
+			return res, fmt.Errorf("compare: starting point %d has %d values; the history model has %d free parameters (%s)", i, len(s), m.Dim(), strings.Join(m.Names(), ", "))
+		}
+	}
 	starts = append(starts, m.Default())
 	starts = append(starts, scanStarts(o, m, opts.Starts-1, opts.Seed)...)
 	var firstErr error

@@ -58,6 +58,28 @@ func TestFitRecoversBurstFromAsimovData(t *testing.T) {
 	assert.True(t, res.Converged)
 }
 
+// A warm start from a fit without θ — what a point whose templates
+// cannot reach every data star returns (ln L = −∞, no history) — is no
+// start: the fit runs from its other starts, to the same answer as
+// without it (a joint fit refitted from such a point once crashed on
+// it). A starting point of the wrong length is the caller's error.
+func TestFitSkipsAnEmptyWarmStart(t *testing.T) {
+	edges := demoEdges()
+	tpl := gyroTemplates(t, edges, 23, 30, 1e5, 0.04)
+	truth := burstHistory(t, 0.6, 0.05, 0.2)
+	like, err := NewLikelihood(tpl, asimov(tpl, truth.BinWeights(edges), 30000), LikeOptions{TemplateNoise: NoiseIgnore})
+	require.NoError(t, err)
+	_, burst := demoModels(t, edges)
+	want, err := Fit(like, burst, FitOptions{Starts: 4})
+	require.NoError(t, err)
+	got, err := Fit(like, burst, FitOptions{Starts: 4, Init: [][]float64{nil}})
+	require.NoError(t, err)
+	assert.Equal(t, want.Theta, got.Theta)
+	assert.Equal(t, want.LogL, got.LogL)
+	_, err = Fit(like, burst, FitOptions{Starts: 4, Init: [][]float64{{0.6}}})
+	assert.ErrorContains(t, err, "starting point 0 has 1 values; the history model has 2 free parameters (burst.age_gyr, burst.mass_fraction)")
+}
+
 // On a Poisson mock the 68 % profile interval of the burst age should
 // contain the truth most of the time; one mock is checked at 95 % so the
 // test fails by chance in ~5 % of seeds — the seed is fixed.
