@@ -64,12 +64,7 @@ func TestFitRecoversBurstFromAsimovData(t *testing.T) {
 // without it (a joint fit refitted from such a point once crashed on
 // it). A starting point of the wrong length is the caller's error.
 func TestFitSkipsAnEmptyWarmStart(t *testing.T) {
-	edges := demoEdges()
-	tpl := gyroTemplates(t, edges, 23, 30, 1e5, 0.04)
-	truth := burstHistory(t, 0.6, 0.05, 0.2)
-	like, err := NewLikelihood(tpl, asimov(tpl, truth.BinWeights(edges), 30000), LikeOptions{TemplateNoise: NoiseIgnore})
-	require.NoError(t, err)
-	_, burst := demoModels(t, edges)
+	like, burst := asimovBurstFit(t, 0.04, 30000)
 	want, err := Fit(like, burst, FitOptions{Starts: 4})
 	require.NoError(t, err)
 	got, err := Fit(like, burst, FitOptions{Starts: 4, Init: [][]float64{nil}})

@@ -102,3 +102,17 @@ func demoEdges() []float64 {
 	edges[40] = 10
 	return edges
 }
+
+// asimovBurstFit is the likelihood of noiseless (Asimov) data of the
+// given size from a 20 % burst at 0.6 Gyr on demo-like templates whose
+// ridges have scatterDex, with the burst model (age and share free).
+func asimovBurstFit(t testing.TB, scatterDex, stars float64) (*Likelihood, HistoryModel) {
+	t.Helper()
+	edges := demoEdges()
+	tpl := gyroTemplates(t, edges, 23, 30, 1e5, scatterDex)
+	truth := burstHistory(t, 0.6, 0.05, 0.2)
+	like, err := NewLikelihood(tpl, asimov(tpl, truth.BinWeights(edges), stars), LikeOptions{TemplateNoise: NoiseIgnore})
+	require.NoError(t, err)
+	_, burst := demoModels(t, edges)
+	return like, burst
+}

@@ -17,12 +17,7 @@ import (
 // non-Gaussianity. The chain must be long enough (≥ 50 τ) and the
 // acceptance fraction healthy (0.15–0.85: the stretch move accepts more in two dimensions than the 0.2–0.5 usually quoted; common practice).
 func TestSamplePosterior(t *testing.T) {
-	edges := demoEdges()
-	tpl := gyroTemplates(t, edges, 23, 30, 1e5, 0.08)
-	truth := burstHistory(t, 0.6, 0.05, 0.2)
-	like, err := NewLikelihood(tpl, asimov(tpl, truth.BinWeights(edges), 3000), LikeOptions{TemplateNoise: NoiseIgnore})
-	require.NoError(t, err)
-	_, burst := demoModels(t, edges)
+	like, burst := asimovBurstFit(t, 0.08, 3000)
 	post, err := SamplePosterior(context.Background(), like, burst, PosteriorOptions{Walkers: 16, Steps: 2500, Seed: 3})
 	require.NoError(t, err)
 	fit, err := Fit(like, burst, FitOptions{})
