@@ -43,6 +43,21 @@ func confirmProfilePeak(ctx context.Context, like *Likelihood, m HistoryModel, n
 			break
 		}
 		theta := slices.Insert(slices.Clone(peak.Fit.Theta), idx, peak.Value)
+		// The expansion reached every data star there; the exact
+		// templates may not (a re-observation at those values leaves
+		// some catalog cell empty). Then the point is no fit at all, and
+		// a joint fit could not even start from it.
+		at, err := profileAtValues(ctx, like, m, nu, peak.Fit.Nuisance, FitOptions{Starts: 1, Init: [][]float64{theta}, Seed: opts.Seed})
+		if err != nil {
+			return FitResult{}, nil, err
+		}
+		if math.IsInf(at.LogL, -1) {
+			if opts.Stage != nil {
+				opts.Stage(fmt.Sprintf("the profile of %s on the fit's expansion rises %.2f above the fit at %.4g, but the templates made exactly there leave data stars with no model stars: the point is set aside", param, peak.Fit.LogL-f.LogL, peak.Value))
+			}
+			rejected = append(rejected, peak.Value)
+			break
+		}
 		o := opts
 		o.Starts, o.Init, o.NuisanceStart = 1, [][]float64{theta}, peak.Fit.Nuisance
 		if opts.Stage != nil {

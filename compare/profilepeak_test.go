@@ -3,6 +3,7 @@ package compare
 import (
 	"context"
 	"slices"
+	"strings"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -46,6 +47,57 @@ func TestConfirmProfilePeak(t *testing.T) {
 	assert.Equal(t, got.LogL, again.LogL)
 	assert.Equal(t, got.Theta, again.Theta)
 	assert.Equal(t, len(got.OtherMaxima), len(again.OtherMaxima))
+}
+
+// emptyAway is an Observer whose templates, anywhere but at keep, hold
+// no model stars in catalog cell `cell`: what a re-observation far from
+// the expansion's centre can do to a cell the data fill.
+type emptyAway struct {
+	inner Observer
+	keep  []float64
+	cell  int
+}
+
+func (e emptyAway) Observe(ctx context.Context, v []float64) (*Templates, error) {
+	t, err := e.inner.Observe(ctx, v)
+	if err != nil || slices.Equal(v, e.keep) {
+		return t, err
+	}
+	c := *t
+	c.Counts = slices.Clone(t.Counts)
+	nb := t.Space.NumBins()
+	for k := range len(t.AgeEdgesGyr) - 1 {
+		c.Counts[k*nb+e.cell] = 0
+	}
+	if t.Var != nil {
+		c.Var = slices.Clone(t.Var)
+		for k := range len(t.AgeEdgesGyr) - 1 {
+			c.Var[k*nb+e.cell] = 0
+		}
+	}
+	return &c, nil
+}
+
+// A profile peak whose exact templates leave a data star with no model
+// star is set aside: the fit comes back unchanged, the peak among the
+// points rejected, and no error (a joint fit started from such a point
+// once ended a whole check run, first with a worker's panic, then with
+// "the likelihood is zero at the start").
+func TestConfirmProfilePeakSetsAsideAnUnreachablePeak(t *testing.T) {
+	nu, m, like := offNominalBurst(t)
+	ctx := context.Background()
+	short, err := FitJoint(ctx, like, m, nu, FitOptions{Starts: 3, MaxRounds: 1})
+	require.NoError(t, err)
+	cell := slices.IndexFunc(like.Counts(), func(n float64) bool { return n > 0 })
+	require.GreaterOrEqual(t, cell, 0)
+	away := &Nuisance{Params: nu.Params, Source: emptyAway{inner: nu.Source, keep: short.Nuisance, cell: cell}}
+	var stages []string
+	got, rejected, err := confirmProfilePeak(ctx, like, m, away, short, "burst.age_gyr", FitOptions{Stage: func(s string) { stages = append(stages, s) }})
+	require.NoError(t, err)
+	require.Len(t, rejected, 1, "the one peak, set aside")
+	assert.Equal(t, short.LogL, got.LogL)
+	assert.Equal(t, short.Theta, got.Theta)
+	assert.Contains(t, strings.Join(stages, "\n"), "leave data stars with no model stars: the point is set aside")
 }
 
 func abs(x float64) float64 {
