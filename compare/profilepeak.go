@@ -47,11 +47,13 @@ func confirmProfilePeak(ctx context.Context, like *Likelihood, m HistoryModel, n
 		// templates may not (a re-observation at those values leaves
 		// some catalog cell empty). Then the point is no fit at all, and
 		// a joint fit could not even start from it.
-		at, err := profileAtValues(ctx, like, m, nu, peak.Fit.Nuisance, FitOptions{Starts: 1, Init: [][]float64{theta}, Seed: opts.Seed})
+		// Only reachability is asked here: the joint fit's first step
+		// scores the point itself, on the same (cached) templates.
+		reachable, err := reachableAt(ctx, like, nu, peak.Fit.Nuisance)
 		if err != nil {
 			return FitResult{}, nil, err
 		}
-		if math.IsInf(at.LogL, -1) {
+		if !reachable {
 			if opts.Stage != nil {
 				opts.Stage(fmt.Sprintf("the profile of %s on the fit's expansion rises %.2f above the fit at %.4g, but the templates made exactly there leave data stars with no model stars: the point is set aside", param, peak.Fit.LogL-f.LogL, peak.Value))
 			}
@@ -77,6 +79,19 @@ func confirmProfilePeak(ctx context.Context, like *Likelihood, m HistoryModel, n
 		return FitResult{}, nil, err
 	}
 	return f, rejected, nil
+}
+
+// reachableAt tells whether the templates made exactly at nuisance
+// values v give every data star a model star; like is left on them.
+func reachableAt(ctx context.Context, like *Likelihood, nu *Nuisance, v []float64) (bool, error) {
+	t, _, err := nu.templatesAndSlopes(ctx, v)
+	if err != nil {
+		return false, err
+	}
+	if err := like.SetTemplates(t); err != nil {
+		return false, err
+	}
+	return like.reachable(), nil
 }
 
 // asLocalMaximum is a fit kept among another's OtherMaxima.
