@@ -374,7 +374,7 @@ func withRamp(h othermodel.History, s float64) othermodel.History {
 }
 
 // variantKeys are the keys parseVariant takes, for its errors.
-const variantKeys = "ramp, law, scatter, p50, heightbeta, av, stall, relations"
+const variantKeys = "ramp, law, scatter, p50, heightbeta, av, stall, relations, mvshift"
 
 // parseVariant reads SPINPOP_OTHERMODEL_VARIANT: the other model changed
 // further from spinpop than its defaults, so that the check also covers
@@ -393,11 +393,15 @@ const variantKeys = "ramp, law, scatter, p50, heightbeta, av, stall, relations"
 //	relations=R   spinpop's relations instead of the other model's own (a diagnostic: what the
 //	              relations alone do to a fit): spinpop (its dwarf sequence and main-sequence
 //	              lifetimes), spinpop-sequence (the sequence alone) or spinpop-lifetimes
+//	mvshift=mag   every dwarf's M_V moved by mag at its color (> 0 fainter), with whichever
+//	              relations are in use (a diagnostic: does the sequence's place in M_V, which
+//	              sets how far from the plane a magnitude-limited field reaches, move the age?)
 func parseVariant(spec string) (othermodel.Config, error) {
 	cfg := othermodel.DefaultConfig()
 	if strings.TrimSpace(spec) == "" {
 		return cfg, nil
 	}
+	mvShift := 0.0 // applied after every key: relations= may come later
 	for _, kv := range strings.Split(spec, ",") {
 		k, v, ok := strings.Cut(strings.TrimSpace(kv), "=")
 		if !ok {
@@ -451,9 +455,14 @@ func parseVariant(spec string) (othermodel.Config, error) {
 			cfg.ScaleHeightBeta = x
 		case "av":
 			cfg.AVPerKpc = x
+		case "mvshift":
+			mvShift = x
 		default:
 			return cfg, fmt.Errorf("SPINPOP_OTHERMODEL_VARIANT: unknown key %q (keys: %s)", k, variantKeys)
 		}
+	}
+	if mvShift != 0 {
+		cfg.Relations = shiftedInMV(cfg.Relations, mvShift)
 	}
 	return cfg, cfg.Validate()
 }
@@ -490,6 +499,26 @@ func spinpopRelations(which string) (*othermodel.Relations, error) {
 		r.LifetimeGyr = model.MSLifetimeGyr
 	}
 	return r, nil
+}
+
+// shiftedInMV returns rel (the other model's own relations when nil) with
+// every dwarf's M_V moved by dm.
+func shiftedInMV(rel *othermodel.Relations, dm float64) *othermodel.Relations {
+	out := othermodel.Relations{Name: "the other model's own", LifetimeGyr: othermodel.MSLifetimeGyr,
+		Dwarf: func(m float64) (float64, float64, bool) {
+			d := othermodel.DwarfOfMass(m)
+			return d.BV, d.AbsMagV, true
+		}}
+	if rel != nil {
+		out = *rel
+	}
+	dwarf := out.Dwarf
+	out.Dwarf = func(m float64) (float64, float64, bool) {
+		bv, mv, ok := dwarf(m)
+		return bv, mv + dm, ok
+	}
+	out.Name = fmt.Sprintf("%s, M_V moved by %+g mag", out.Name, dm)
+	return &out
 }
 
 // relationChoices are the values relations= takes: which of spinpop's
@@ -592,6 +621,19 @@ func TestParseVariant(t *testing.T) {
 	p8, _ := rel.At(0.8)
 	bv, mv, _ = cfg.Relations.Dwarf(0.8)
 	assert.Equal(t, []float64{p8.BV, p8.AbsMagV}, []float64{bv, mv})
+	// mvshift moves M_V alone, whichever relations come with it and in
+	// whichever order.
+	for _, spec := range []string{"mvshift=0.2", "mvshift=0.2,relations=spinpop-sequence"} {
+		cfg, err = parseVariant(spec)
+		require.NoError(t, err)
+		want := othermodel.DwarfOfMass(0.8)
+		if strings.Contains(spec, "relations") {
+			want.BV, want.AbsMagV = p8.BV, p8.AbsMagV
+		}
+		bv, mv, _ = cfg.Relations.Dwarf(0.8)
+		assert.Equal(t, want.BV, bv, spec)
+		assert.InDelta(t, want.AbsMagV+0.2, mv, 1e-12, spec)
+	}
 	for spec, want := range map[string]string{
 		"relations=mist": "want spinpop, spinpop-sequence or spinpop-lifetimes",
 		"ramp":           "not key=value",
