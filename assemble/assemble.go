@@ -256,7 +256,7 @@ func Field(s *scenarios.Scenario) (disk.Field, error) {
 func Cuts(s *scenarios.Scenario) model.Cuts {
 	c := s.Cuts
 	return model.Cuts{BVMin: c.BVMin, BVMax: c.BVMax, MSBandBrightMag: c.MSBandBrightMag, MSBandFaintMag: c.MSBandFaintMag,
-		PeriodMinD: c.PeriodMinD, PeriodMaxD: c.PeriodMaxD, HeightMaxPc: c.HeightMaxPc}
+		MSBandDereddened: c.MSBandDereddened, PeriodMinD: c.PeriodMinD, PeriodMaxD: c.PeriodMaxD, HeightMaxPc: c.HeightMaxPc}
 }
 
 // History builds the star-formation history of a scenario (see

@@ -18,6 +18,6 @@ var CutNames = []string{CutColor, CutMainSequence, CutPeriodWindow, CutHeight, C
 // very methods model.Population calls when it sets a synthetic star's
 // flags, so data and model are cut alike. It returns ok, or the name of the
 // first cut that removes the star.
-func KeepStar(cuts model.Cuts, rel *model.Relations, bv, absMagV, periodD, zPc float64) (ok bool, reason string) {
-	return cuts.Keep(rel, bv, absMagV, periodD, zPc)
+func KeepStar(cuts model.Cuts, rel *model.Relations, bv, absMagV, avMag, periodD, zPc float64) (ok bool, reason string) {
+	return cuts.Keep(rel, bv, absMagV, avMag, periodD, zPc)
 }

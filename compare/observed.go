@@ -26,6 +26,10 @@ type DataSpec struct {
 	SunZPc    float64         // z☉ added to d sin b when heights are derived from parallax
 	Cuts      model.Cuts      // the catalog cuts, the same the model applies
 	Relations *model.Relations
+	// Dust is the scenario's dust model, which a dereddened band cut
+	// (Cuts.MSBandDereddened) reads at each star's distance and height;
+	// nil: no dust.
+	Dust model.Extinction
 	// LeaveOut, if not nil, names why a star that passed the cuts is left
 	// out of the comparison for the (color, period) cell it falls in
 	// (Space.Index2D), or returns "" to keep it. Such stars stay in
@@ -97,7 +101,14 @@ func ReadObserved(spec DataSpec, space Space, rejects io.Writer) (*Observed, err
 	defer f.Close()
 	opt.Name = spec.Path
 	sum, err := catalog.Read(f, opt, func(_ int, s catalog.Star) error {
-		ok, why := KeepStar(spec.Cuts, spec.Relations, s.Color, s.AbsMag, s.PeriodD, s.ZPc)
+		av := 0.0
+		if spec.Cuts.MSBandDereddened && spec.Dust != nil {
+			if math.IsNaN(s.DistPc) {
+				return fmt.Errorf("cuts.ms_band_dereddened needs each star's distance for its extinction, and %s maps no parallax column (an absolute-magnitude column alone gives none): map data.columns.parallax_mas, or set ms_band_dereddened = false", spec.Path)
+			}
+			av = spec.Dust(s.DistPc, s.ZPc)
+		}
+		ok, why := KeepStar(spec.Cuts, spec.Relations, s.Color, s.AbsMag, av, s.PeriodD, s.ZPc)
 		if !ok {
 			obs.CutAway[why]++
 			return cutDetail(spec, space, s, why)

@@ -23,39 +23,53 @@ import (
 // KeepStar makes the same decision as the model's selection flags, star by
 // star, for every generated star within the magnitude limits that was
 // either detected or cut by color or main-sequence band (the model works out
-// no rotation for those, so they carry no period). Common practice, no
+// no rotation for those, so they carry no period); so it does with dust
+// and the band placed after the dust is taken out. Common practice, no
 // source: data and model must be cut alike.
 func TestKeepStarAgreesWithModelFlags(t *testing.T) {
 	world := newTestWorld(t, piecewiseHistory(t, []float64{2, 1, 1, 1, 1, 1, 1, 1, 1}), tplEdges)
-	pop := *world.pop
-	pop.Cuts.HeightMaxPc = 150 // exercise the height cut too
-	pop.Cuts.PeriodMinD, pop.Cuts.PeriodMaxD = 1, 40
-	pop.Cuts.BVMin, pop.Cuts.BVMax = 0.6, 1.3
-	require.NoError(t, pop.Prepare())
-	c := model.NewChunk(60000)
-	pop.Fill(c, model.ChunkStream(5, 0))
-	checked, kept := 0, 0
-	reasons := map[string]int{}
-	for i := 0; i < c.N; i++ {
-		f := c.Flags[i]
-		photometric := model.FlagInColorRange | model.FlagOnMainSeq
-		if f&model.FlagInMagRange == 0 || f&(model.FlagGone|model.FlagOutsideLaw) != 0 || (f&photometric == photometric && f&model.FlagDetected == 0) {
-			continue
+	bandCuts := map[string]int{}
+	for _, setting := range []string{"no dust", "dust", "dust, dereddened band"} {
+		pop := *world.pop
+		pop.Cuts.HeightMaxPc = 150 // exercise the height cut too
+		pop.Cuts.PeriodMinD, pop.Cuts.PeriodMaxD = 1, 40
+		pop.Cuts.BVMin, pop.Cuts.BVMax = 0.6, 1.3
+		if setting != "no dust" {
+			// 1.5 mag/kpc, uniform: up to 0.9 mag at the cone's 600 pc.
+			pop.Dust = func(dPc, _ float64) float64 { return 1.5 * dPc / 1000 }
+			pop.Cuts.MSBandDereddened = setting == "dust, dereddened band"
 		}
-		checked++
-		ok, why := KeepStar(pop.Cuts, world.rel, c.ObsBV[i], c.ObsAbsMag[i], c.MeasPeriodD[i], c.ZPc[i])
-		require.Equal(t, f.Selected(), ok, "star %d: flags %b, KeepStar says %v (%s)", i, f, ok, why)
-		if ok {
-			kept++
-		} else {
-			reasons[why]++
+		require.NoError(t, pop.Prepare())
+		c := model.NewChunk(60000)
+		pop.Fill(c, model.ChunkStream(5, 0))
+		checked, kept := 0, 0
+		reasons := map[string]int{}
+		for i := 0; i < c.N; i++ {
+			f := c.Flags[i]
+			photometric := model.FlagInColorRange | model.FlagOnMainSeq
+			if f&model.FlagInMagRange == 0 || f&(model.FlagGone|model.FlagOutsideLaw) != 0 || (f&photometric == photometric && f&model.FlagDetected == 0) {
+				continue
+			}
+			checked++
+			ok, why := KeepStar(pop.Cuts, world.rel, c.ObsBV[i], c.ObsAbsMag[i], c.AV[i], c.MeasPeriodD[i], c.ZPc[i])
+			require.Equal(t, f.Selected(), ok, "%s, star %d: flags %b, KeepStar says %v (%s)", setting, i, f, ok, why)
+			if ok {
+				kept++
+			} else {
+				reasons[why]++
+			}
 		}
+		t.Logf("%s: %d stars checked, %d kept, removed by %v", setting, checked, kept, reasons)
+		require.Greater(t, checked, 2000, setting)
+		for _, r := range []string{CutColor, CutMainSequence, CutPeriodWindow, CutHeight} {
+			assert.Positive(t, reasons[r], "%s: cut %s never exercised", setting, r)
+		}
+		bandCuts[setting] = reasons[CutMainSequence]
 	}
-	t.Logf("%d stars checked, %d kept, removed by %v", checked, kept, reasons)
-	require.Greater(t, checked, 2000)
-	for _, r := range []string{CutColor, CutMainSequence, CutPeriodWindow, CutHeight} {
-		assert.Positive(t, reasons[r], "cut %s never exercised", r)
-	}
+	// Reddening moves a star along A_V/E(B−V) = 3.1, shallower than the
+	// sequence over most of these colors, so the band as measured removes
+	// reddened single stars the dereddened band keeps.
+	assert.Greater(t, bandCuts["dust"], bandCuts["dust, dereddened band"])
 }
 
 func writeCatalog(t *testing.T, rows []string) (path, sha string) {
@@ -163,7 +177,7 @@ func TestReadObservedCutsRejectsAndHash(t *testing.T) {
 
 	// Every kept row agrees with KeepStar, and the cut-away ones do not.
 	for _, s := range obs.Stars {
-		ok, _ := KeepStar(cuts, rel, s.BV, s.AbsMagV, s.PeriodD, s.ZPc)
+		ok, _ := KeepStar(cuts, rel, s.BV, s.AbsMagV, 0, s.PeriodD, s.ZPc)
 		assert.True(t, ok)
 	}
 
@@ -259,4 +273,41 @@ func TestDropUnreachedBins(t *testing.T) {
 	assert.Equal(t, 2, cells)
 	assert.Equal(t, []float64{1, 2, 0, 0, 5, 0, 0, 0}, obs.Counts)
 	assert.Equal(t, 8, obs.N)
+}
+
+// A dereddened band reads each catalog star's extinction from the dust
+// model at its parallax distance: a reddened dwarf on the sequence is kept
+// by a tight band with the dust out, cut by the band as measured. Without
+// a parallax column there is no distance, and the reader says so. Reddening
+// by E(B−V) = A_V/3.1 (Cardelli, Clayton & Mathis 1989) [memory].
+func TestReadObservedDereddenedBand(t *testing.T) {
+	rel, err := model.DwarfSequence()
+	require.NoError(t, err)
+	mv0, ok := rel.AbsMagVAtBV(0.6)
+	require.True(t, ok)
+	const dPc, avPerKpc = 500.0, 1.24 // A_V 0.62, E(B−V) 0.2
+	av := avPerKpc * dPc / 1000
+	v := mv0 + av + 5*math.Log10(dPc/10)
+	dir := t.TempDir()
+	path := filepath.Join(dir, "reddened.csv")
+	body := fmt.Sprintf("period_d,b_v,v_mag,plx_mas,z_pc\n12,%.4f,%.4f,%.4f,40\n", 0.6+av/3.1, v, 1000/dPc)
+	require.NoError(t, os.WriteFile(path, []byte(body), 0o644))
+	sp, err := NewSpace(0.45, 1.6, 8, 1, 60, 10, []float64{0, 100, 200, 400, 800})
+	require.NoError(t, err)
+	cuts := model.Cuts{BVMin: 0.45, BVMax: 1.6, MSBandBrightMag: 0.02, MSBandFaintMag: 0.02, PeriodMinD: 0.5, PeriodMaxD: 100}
+	spec := DataSpec{Path: path, Mapping: catalog.Mapping{Period: "period_d", Color: "b_v", AppMag: "v_mag", Parallax: "plx_mas", Height: "z_pc"},
+		Cuts: cuts, Relations: rel, Dust: func(d, _ float64) float64 { return avPerKpc * d / 1000 }}
+	obs, err := ReadObserved(spec, sp, nil)
+	require.NoError(t, err)
+	assert.Equal(t, 1, obs.CutAway[CutMainSequence], "as measured, the reddened dwarf lies off a 0.02 mag band")
+	spec.Cuts.MSBandDereddened = true
+	obs, err = ReadObserved(spec, sp, nil)
+	require.NoError(t, err)
+	assert.Equal(t, 1, obs.N, "with the dust out it is on the sequence")
+
+	spec.Mapping = catalog.Mapping{Period: "period_d", Color: "b_v", AbsMag: "v_mag", Height: "z_pc"}
+	_, err = ReadObserved(spec, sp, nil)
+	require.Error(t, err)
+	assert.Contains(t, err.Error(), "reddened.csv")
+	assert.Contains(t, err.Error(), "parallax_mas")
 }

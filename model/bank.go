@@ -41,6 +41,7 @@ type Bank struct {
 	BVMain                  []float32 // single-star main-sequence B−V of the primary's mass: what a spin-down law reads
 	ModelBV                 []float32 // reddened system B−V on the model's own scale (before the color calibration)
 	ObsAbsMag               []float32 // absolute V as derived from parallax (extinction in)
+	AV                      []float32 // extinction in V, for a dereddened band cut (Cuts.MSBandDereddened)
 	AppMag                  []float32 // apparent magnitude in the survey band
 	AbsZPc                  []float32
 	CompanionMsun           []float32 // 0 when single
@@ -119,7 +120,7 @@ func (bb *BankBuilder) Add(c *Chunk) {
 			if f&catalogCuts != catalogCuts {
 				continue
 			}
-		} else if !wide.InColorRange(bv) || !wide.OnMainSequence(p.Relations, bv, absV) {
+		} else if !wide.InColorRange(bv) || !wide.OnMainSequence(p.Relations, bv, absV, c.AV[i]) {
 			continue
 		}
 		m := c.MassMsun[i]
@@ -134,6 +135,7 @@ func (bb *BankBuilder) Add(c *Chunk) {
 		b.BVMain = append(b.BVMain, float32(bvMain))
 		b.ModelBV = append(b.ModelBV, float32(p.Survey.Color.Invert(bv)))
 		b.ObsAbsMag = append(b.ObsAbsMag, float32(absV))
+		b.AV = append(b.AV, float32(c.AV[i]))
 		b.AppMag = append(b.AppMag, float32(c.AppMag[i]))
 		b.AbsZPc = append(b.AbsZPc, float32(math.Abs(c.ZPc[i])))
 		b.CompanionMsun = append(b.CompanionMsun, float32(c.CompanionMsun[i]))
@@ -162,6 +164,7 @@ func (bb *BankBuilder) Bank() *Bank {
 		out.BVMain = append(out.BVMain, b.BVMain...)
 		out.ModelBV = append(out.ModelBV, b.ModelBV...)
 		out.ObsAbsMag = append(out.ObsAbsMag, b.ObsAbsMag...)
+		out.AV = append(out.AV, b.AV...)
 		out.AppMag = append(out.AppMag, b.AppMag...)
 		out.AbsZPc = append(out.AbsZPc, b.AbsZPc...)
 		out.CompanionMsun = append(out.CompanionMsun, b.CompanionMsun...)
@@ -422,6 +425,8 @@ func (b *Bank) covers(obs *Population) error {
 		return fmt.Errorf("model: color cut [%g, %g] reaches past the stored stars' [%g, %g] (the run's cut widened by the bank's margin of %g mag)", c.BVMin, c.BVMax, b.Cuts.BVMin-m.ColorMag, b.Cuts.BVMax+m.ColorMag, m.ColorMag)
 	case c.MSBandBrightMag > b.Cuts.MSBandBrightMag+m.BandMag+tol || c.MSBandFaintMag > b.Cuts.MSBandFaintMag+m.BandMag+tol:
 		return fmt.Errorf("model: main-sequence band (−%g, +%g mag) is wider than the stored stars' (−%g, +%g)", c.MSBandBrightMag, c.MSBandFaintMag, b.Cuts.MSBandBrightMag+m.BandMag, b.Cuts.MSBandFaintMag+m.BandMag)
+	case c.MSBandDereddened != b.Cuts.MSBandDereddened:
+		return fmt.Errorf("model: the main-sequence band is dereddened (%t) where the run's was not (%t); the stored stars were kept by the run's", c.MSBandDereddened, b.Cuts.MSBandDereddened)
 	case b.Cuts.HeightMaxPc > 0 && (c.HeightMaxPc <= 0 || c.HeightMaxPc > b.Cuts.HeightMaxPc):
 		return fmt.Errorf("model: height cut %g pc is looser than the run's %g pc; the bank holds no star beyond it", c.HeightMaxPc, b.Cuts.HeightMaxPc)
 	}
@@ -663,7 +668,7 @@ func (ob *observer) bin(k int, fine, fineVar []float64, fineSlopes [][]float64, 
 func (ob *observer) column(s int) int32 {
 	b := ob.bank
 	bv := ob.obs.Survey.Color.Apply(float64(b.ModelBV[s]))
-	if ob.recut && (!ob.cuts.InColorRange(bv) || !ob.cuts.OnMainSequence(ob.obs.Relations, bv, float64(b.ObsAbsMag[s]))) {
+	if ob.recut && (!ob.cuts.InColorRange(bv) || !ob.cuts.OnMainSequence(ob.obs.Relations, bv, float64(b.ObsAbsMag[s]), float64(b.AV[s]))) {
 		return placeOut
 	}
 	c := BinIndex(ob.g.ColorEdges, bv)

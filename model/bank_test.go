@@ -187,6 +187,41 @@ func TestBankObserveDeterministicAndGuarded(t *testing.T) {
 	q.Cuts.BVMax += 0.1
 	_, _, err = bank.Observe(context.Background(), &q, g, ObserveOptions{})
 	assert.ErrorContains(t, err, "color cut")
+	q = *p
+	q.Cuts.MSBandDereddened = true
+	_, _, err = bank.Observe(context.Background(), &q, g, ObserveOptions{})
+	assert.ErrorContains(t, err, "dereddened")
+}
+
+// A bank whose band is placed with the dust taken out re-cuts its stars
+// the same way when the color calibration moves: observed at another
+// color offset it matches a run made at that offset (as
+// TestBankObserveBinariesAndColor, whose χ² bounds it shares).
+func TestBankObserveDereddenedBand(t *testing.T) {
+	p := testPopulation(t, 4)
+	p.Cuts.MSBandDereddened = true
+	require.NoError(t, p.Prepare())
+	g := bankGrid()
+	_, bank := randomTemplatesAndBank(t, p, g, 1_500_000, BankMargin{ColorMag: 0.06, BandMag: 0.1})
+	q := *p
+	q.Survey.Color = ColorCalibration{OffsetMag: 0.04}
+	require.NoError(t, q.Prepare())
+	counts, _ := randomTemplatesAndBank(t, &q, g, 1_500_000, BankMargin{})
+	exp, vars, err := bank.Observe(context.Background(), &q, g, ObserveOptions{BaseFractionScale: 1})
+	require.NoError(t, err)
+	r, dof := chi2PerBin(counts, exp, vars)
+	t.Logf("χ²/dof = %.3f over %d bins", r, dof)
+	assert.Greater(t, dof, 200)
+	assert.Less(t, r, 1.2)
+	// The band as measured (not dereddened) keeps other stars: a run
+	// with it is visibly another catalog.
+	u := q
+	u.Cuts.MSBandDereddened = false
+	require.NoError(t, u.Prepare())
+	other, _ := randomTemplatesAndBank(t, &u, g, 1_500_000, BankMargin{})
+	r2, _ := chi2PerBin(other, exp, vars)
+	t.Logf("against the band as measured: χ²/dof = %.3f", r2)
+	assert.Greater(t, r2, r+0.3, "the dereddened band must change the catalog")
 }
 
 // NormalCDF against math.Erfc. Source: Φ(x) = ½ erfc(−x/√2) (Abramowitz &

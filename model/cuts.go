@@ -9,9 +9,20 @@ type Cuts struct {
 	BVMin, BVMax    float64
 	MSBandBrightMag float64 // keep stars up to this much brighter than the single-star sequence at their color
 	MSBandFaintMag  float64 // and this much fainter
-	PeriodMinD      float64
-	PeriodMaxD      float64
-	HeightMaxPc     float64 // |z| cut; 0 = none
+	// MSBandDereddened places a star for the band test after taking the
+	// dust's reddening and extinction out (its E(B−V) and A_V from the
+	// scenario's dust model at the star's distance and height), as one
+	// places stars on a color–magnitude diagram with a dust model in hand.
+	// Without it the band sees the catalog's color and M_V as measured:
+	// reddening then moves a distant star along a line of slope
+	// A_V/E(B−V) = 3.1, shallower than the sequence at the blue end, so
+	// the band cuts distant (older, higher) stars at a rate that depends
+	// on the sequence's slope — which a catalog's real stars need not
+	// share with the model's table.
+	MSBandDereddened bool
+	PeriodMinD       float64
+	PeriodMaxD       float64
+	HeightMaxPc      float64 // |z| cut; 0 = none
 }
 
 // Cut names, in the order Keep applies them.
@@ -29,8 +40,13 @@ func (c Cuts) InColorRange(obsBV float64) bool { return obsBV >= c.BVMin && obsB
 // M_V (from parallax, extinction included) lies within the band around the
 // single-star sequence at its B−V. Unresolved binaries (up to 0.753 mag
 // brighter) and evolved stars fall out when the band is narrow, in data
-// and model alike.
-func (c Cuts) OnMainSequence(rel *Relations, obsBV, absV float64) bool {
+// and model alike. avMag is the star's extinction in V, which
+// MSBandDereddened takes out of both (E(B−V) = A_V/3.1); without it
+// avMag is not read.
+func (c Cuts) OnMainSequence(rel *Relations, obsBV, absV, avMag float64) bool {
+	if c.MSBandDereddened {
+		obsBV, absV = obsBV-ebvPerAV*avMag, absV-avMag
+	}
 	ms, ok := rel.AbsMagVAtBV(obsBV)
 	if !ok {
 		return false
@@ -58,13 +74,14 @@ func (c Cuts) HeightInRange(zPc float64) bool {
 
 // Keep applies the cuts to one star as a catalog lists it: observed B−V
 // bv, absolute V magnitude absMagV (from parallax, extinction included),
-// measured period periodD in days and height zPc above the plane. It
-// returns ok, or the name of the first cut that removes the star.
-func (c Cuts) Keep(rel *Relations, bv, absMagV, periodD, zPc float64) (ok bool, reason string) {
+// its extinction in V avMag (read only by a dereddened band), measured
+// period periodD in days and height zPc above the plane. It returns ok, or
+// the name of the first cut that removes the star.
+func (c Cuts) Keep(rel *Relations, bv, absMagV, avMag, periodD, zPc float64) (ok bool, reason string) {
 	if !c.InColorRange(bv) {
 		return false, CutColor
 	}
-	if !c.OnMainSequence(rel, bv, absMagV) {
+	if !c.OnMainSequence(rel, bv, absMagV, avMag) {
 		return false, CutMainSequence
 	}
 	if !c.PeriodInRange(periodD) {

@@ -349,7 +349,7 @@ func (p *Population) star(c *Chunk, i int, r *rand.Rand, rp *rotationPlan) {
 	}
 	// The band test is left out where the earlier cuts have already
 	// failed (see Chunk): it is the costliest of the three.
-	if flags&(FlagInMagRange|FlagInColorRange) == FlagInMagRange|FlagInColorRange && p.Cuts.OnMainSequence(p.Relations, obsBV, obsAbs) {
+	if flags&(FlagInMagRange|FlagInColorRange) == FlagInMagRange|FlagInColorRange && p.Cuts.OnMainSequence(p.Relations, obsBV, obsAbs, av) {
 		flags |= FlagOnMainSeq
 	}
 

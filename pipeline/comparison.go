@@ -242,7 +242,7 @@ func SetupComparison(ctx context.Context, res *scenarios.Resolved, opts Comparis
 	}
 
 	spec := dataSpec(res)
-	spec.Cuts, spec.Relations = assemble.Cuts(s), c.Built.Relations
+	spec.Cuts, spec.Relations, spec.Dust = assemble.Cuts(s), c.Built.Relations, c.Built.Population.Dust
 	c.DataFile = res.DataPath
 	if err := c.readData(spec, opts.WriteRejected); err != nil {
 		return nil, err
@@ -358,7 +358,7 @@ func (c *Comparison) WithCatalog(path string) (*Comparison, error) {
 	s := c.Scenario
 	spec := compare.DataSpec{
 		Path: path, Mapping: assemble.Mapping(s), SunZPc: s.Disk.SunHeightPc,
-		Format: "auto", Cuts: assemble.Cuts(s), Relations: c.Built.Relations,
+		Format: "auto", Cuts: assemble.Cuts(s), Relations: c.Built.Relations, Dust: c.Built.Population.Dust,
 	}
 	if err := d.readData(spec, nil); err != nil {
 		return nil, err

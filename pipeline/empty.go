@@ -18,7 +18,7 @@ var stepKeys = map[string]string{
 	"dwarf":           "the ages and masses that stay dwarfs (history, imf.mass_min_msun/mass_max_msun, stars.evolution)",
 	"magnitude_range": "survey.bright_limit_mag/faint_limit_mag against the field's distances (survey.field.distance_min_pc/distance_max_pc), dust",
 	"color_range":     "cuts.b_v_min/b_v_max",
-	"main_sequence":   "cuts.ms_band_bright_mag/ms_band_faint_mag",
+	"main_sequence":   "cuts.ms_band_bright_mag/ms_band_faint_mag/ms_band_dereddened",
 	"period_detected": "the survey's detection (survey.noise_*, cadence_d, baseline_d, min_cycles, detection_snr) and the spin-down law's calibrated range",
 	"period_window":   "cuts.period_min_d/period_max_d (by default 2 × survey.cadence_d and survey.baseline_d / survey.min_cycles)",
 }

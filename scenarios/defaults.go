@@ -114,6 +114,7 @@ b_v_min = 0.45
 b_v_max = 1.6
 ms_band_bright_mag = 0.4
 ms_band_faint_mag = 0.4
+ms_band_dereddened = false
 height_max_pc = 0.0
 
 [output]

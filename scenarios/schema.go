@@ -289,9 +289,12 @@ type Cuts struct {
 	BVMax           float64 `toml:"b_v_max"`            // default 1.6
 	MSBandBrightMag float64 `toml:"ms_band_bright_mag"` // keep stars up to this much brighter than the single-star sequence; default 0.4
 	MSBandFaintMag  float64 `toml:"ms_band_faint_mag"`  // and this much fainter; default 0.4
-	PeriodMinD      float64 `toml:"period_min_d"`       // default 2 × survey.cadence_d (two samples per cycle)
-	PeriodMaxD      float64 `toml:"period_max_d"`       // default survey.baseline_d / survey.min_cycles
-	HeightMaxPc     float64 `toml:"height_max_pc"`      // 0 = no cut (default)
+	// Place stars for the band after taking out the dust model's
+	// reddening and extinction (model.Cuts.MSBandDereddened); default false.
+	MSBandDereddened bool    `toml:"ms_band_dereddened"`
+	PeriodMinD       float64 `toml:"period_min_d"`  // default 2 × survey.cadence_d (two samples per cycle)
+	PeriodMaxD       float64 `toml:"period_max_d"`  // default survey.baseline_d / survey.min_cycles
+	HeightMaxPc      float64 `toml:"height_max_pc"` // 0 = no cut (default)
 }
 
 // Output chooses what a run writes.
