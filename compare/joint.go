@@ -446,10 +446,11 @@ func profileAtValues(ctx context.Context, like *Likelihood, m HistoryModel, nu *
 
 // profileWith is profileAtValues with the templates given.
 func profileWith(like *Likelihood, m HistoryModel, nu *Nuisance, v []float64, t *Templates, opts FitOptions) (FitResult, error) {
-	if err := like.SetTemplates(t); err != nil {
+	reachable, err := useAndReach(like, t)
+	if err != nil {
 		return FitResult{}, err
 	}
-	if !like.reachable() {
+	if !reachable {
 		// Data stars where these templates have none: no history fits.
 		return FitResult{Names: m.Names(), LogL: math.Inf(-1), Nuisance: append([]float64(nil), v...), NuisanceNames: nu.Names(), Templates: t}, nil
 	}

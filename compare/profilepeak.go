@@ -88,6 +88,12 @@ func reachableAt(ctx context.Context, like *Likelihood, nu *Nuisance, v []float6
 	if err != nil {
 		return false, err
 	}
+	return useAndReach(like, t)
+}
+
+// useAndReach puts like on templates t and tells whether they give every
+// data star a model star.
+func useAndReach(like *Likelihood, t *Templates) (bool, error) {
 	if err := like.SetTemplates(t); err != nil {
 		return false, err
 	}

@@ -478,13 +478,8 @@ func spinpopRelations(which string) (*othermodel.Relations, error) {
 	if !ok {
 		return nil, fmt.Errorf("SPINPOP_OTHERMODEL_VARIANT: relations=%q; want spinpop, spinpop-sequence or spinpop-lifetimes (or leave it out: the other model's own)", which)
 	}
-	r := &othermodel.Relations{Name: choice.name,
-		Dwarf: func(m float64) (float64, float64, bool) {
-			d := othermodel.DwarfOfMass(m)
-			return d.BV, d.AbsMagV, true
-		},
-		LifetimeGyr: othermodel.MSLifetimeGyr,
-	}
+	r := otherModelOwnRelations()
+	r.Name = choice.name
 	if choice.sequence {
 		rel, err := model.DwarfSequence()
 		if err != nil {
@@ -504,14 +499,10 @@ func spinpopRelations(which string) (*othermodel.Relations, error) {
 // shiftedInMV returns rel (the other model's own relations when nil) with
 // every dwarf's M_V moved by dm.
 func shiftedInMV(rel *othermodel.Relations, dm float64) *othermodel.Relations {
-	out := othermodel.Relations{Name: "the other model's own", LifetimeGyr: othermodel.MSLifetimeGyr,
-		Dwarf: func(m float64) (float64, float64, bool) {
-			d := othermodel.DwarfOfMass(m)
-			return d.BV, d.AbsMagV, true
-		}}
-	if rel != nil {
-		out = *rel
+	if rel == nil {
+		rel = otherModelOwnRelations()
 	}
+	out := *rel
 	dwarf := out.Dwarf
 	out.Dwarf = func(m float64) (float64, float64, bool) {
 		bv, mv, ok := dwarf(m)
@@ -519,6 +510,18 @@ func shiftedInMV(rel *othermodel.Relations, dm float64) *othermodel.Relations {
 	}
 	out.Name = fmt.Sprintf("%s, M_V moved by %+g mag", out.Name, dm)
 	return &out
+}
+
+// otherModelOwnRelations are the other model's built-in relations
+// written through its hook, for a variant to change one of them.
+func otherModelOwnRelations() *othermodel.Relations {
+	return &othermodel.Relations{Name: "the other model's own",
+		Dwarf: func(m float64) (float64, float64, bool) {
+			d := othermodel.DwarfOfMass(m)
+			return d.BV, d.AbsMagV, true
+		},
+		LifetimeGyr: othermodel.MSLifetimeGyr,
+	}
 }
 
 // relationChoices are the values relations= takes: which of spinpop's
