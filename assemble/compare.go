@@ -21,7 +21,7 @@ import (
 var templateSections = []string{
 	"run.seed", "run.chunk_stars", "imf", "history.max_age_gyr", "disk", "dust", "stars", "spin", "survey", "cuts",
 	"compare.color_bins", "compare.log_period_bins", "compare.period_min_d", "compare.period_max_d",
-	"compare.height_edges_pc", "compare.template_stars",
+	"compare.height_edges_pc", "compare.template_stars", "compare.color_axis",
 }
 
 // modelRevision names the state of the physics in code that the templates
@@ -49,6 +49,7 @@ func Space(s *scenarios.Scenario) (compare.Space, error) {
 	if err != nil {
 		return compare.Space{}, fmt.Errorf("compare: %w", err)
 	}
+	sp.Dereddened = c.ColorAxis == "dereddened"
 	return sp, nil
 }
 

@@ -30,4 +30,13 @@ func TestTemplateKey(t *testing.T) {
 	kc, err := TemplateKey(c)
 	require.NoError(t, err)
 	assert.NotEqual(t, ka, kc)
+
+	// Columns of dereddened color hold other stars: other templates.
+	o, err := scenarios.ParseOverride(`compare.color_axis="dereddened"`)
+	require.NoError(t, err)
+	d, err := scenarios.Resolve("example:smooth", o)
+	require.NoError(t, err)
+	kd, err := TemplateKey(d)
+	require.NoError(t, err)
+	assert.NotEqual(t, ka, kd)
 }

@@ -200,7 +200,8 @@ func (o *BankObserver) ObserveSlopes(ctx context.Context, values []float64, para
 			return nil, nil, err
 		}
 	}
-	g := model.Grid{ColorEdges: o.Space.ColorEdges, LogPeriodEdges: o.Space.LogPeriodEdges, HeightEdgesPc: o.Space.HeightEdgesPc}
+	g := model.Grid{ColorEdges: o.Space.ColorEdges, LogPeriodEdges: o.Space.LogPeriodEdges, HeightEdgesPc: o.Space.HeightEdgesPc,
+		Dereddened: o.Space.Dereddened}
 	side := false
 	if recent := o.centreLog(); len(params) > 0 {
 		recent.note(values)

@@ -27,8 +27,8 @@ type DataSpec struct {
 	Cuts      model.Cuts      // the catalog cuts, the same the model applies
 	Relations *model.Relations
 	// Dust is the scenario's dust model, which a dereddened band cut
-	// (Cuts.MSBandDereddened) reads at each star's distance and height;
-	// nil: no dust.
+	// (Cuts.MSBandDereddened) and a dereddened color axis (Space.Dereddened)
+	// read at each star's distance and height; nil: no dust.
 	Dust model.Extinction
 	// LeaveOut, if not nil, names why a star that passed the cuts is left
 	// out of the comparison for the (color, period) cell it falls in
@@ -46,6 +46,9 @@ type DataSpec struct {
 // ObservedStar is one star that passed every cut and lies in the space.
 type ObservedStar struct {
 	BV, AbsMagV, PeriodD, ZPc float64
+	// ColumnBV is the color that chose its column: BV, or BV less its
+	// reddening for a dereddened space (Space.AxisColor).
+	ColumnBV float64
 }
 
 // Observed is an observed catalog binned in a Space.
@@ -102,25 +105,26 @@ func ReadObserved(spec DataSpec, space Space, rejects io.Writer) (*Observed, err
 	opt.Name = spec.Path
 	sum, err := catalog.Read(f, opt, func(_ int, s catalog.Star) error {
 		av := 0.0
-		if spec.Cuts.MSBandDereddened && spec.Dust != nil {
+		if (spec.Cuts.MSBandDereddened || space.Dereddened) && spec.Dust != nil {
 			if math.IsNaN(s.DistPc) {
-				return fmt.Errorf("cuts.ms_band_dereddened needs each star's distance for its extinction, and %s maps no parallax column (an absolute-magnitude column alone gives none): map data.columns.parallax_mas, or set ms_band_dereddened = false", spec.Path)
+				return fmt.Errorf("%s needs each star's distance for its extinction, and %s maps no parallax column (an absolute-magnitude column alone gives none): map data.columns.parallax_mas, or set %s", dereddenedKeys(spec, space), spec.Path, dereddenedUndo(spec, space))
 			}
 			av = spec.Dust(s.DistPc, s.ZPc)
 		}
+		axisBV := space.AxisColor(s.Color, av)
 		ok, why := KeepStar(spec.Cuts, spec.Relations, s.Color, s.AbsMag, av, s.PeriodD, s.ZPc)
 		if !ok {
 			obs.CutAway[why]++
-			return cutDetail(spec, space, s, why)
+			return cutDetail(spec, space, s, axisBV, why)
 		}
-		i := space.Index(s.Color, s.PeriodD, s.ZPc)
+		i := space.Index(axisBV, s.PeriodD, s.ZPc)
 		if i < 0 {
 			obs.CutAway[CutOutsideSpace]++
-			return cutDetail(spec, space, s, CutOutsideSpace)
+			return cutDetail(spec, space, s, axisBV, CutOutsideSpace)
 		}
-		obs.Stars = append(obs.Stars, ObservedStar{BV: s.Color, AbsMagV: s.AbsMag, PeriodD: s.PeriodD, ZPc: s.ZPc})
+		obs.Stars = append(obs.Stars, ObservedStar{BV: s.Color, AbsMagV: s.AbsMag, PeriodD: s.PeriodD, ZPc: s.ZPc, ColumnBV: axisBV})
 		if spec.LeaveOut != nil {
-			if why := spec.LeaveOut(space.Index2D(s.Color, s.PeriodD)); why != "" {
+			if why := spec.LeaveOut(space.Index2D(axisBV, s.PeriodD)); why != "" {
 				obs.LeftOut[why]++
 				return &catalog.Exclude{Reason: "left out: " + why, Column: spec.Mapping.Color + ", " + spec.Mapping.Period,
 					Value: fmtValue(s.Color) + ", " + fmtValue(s.PeriodD)}
@@ -184,10 +188,34 @@ func CheckCatalog(spec DataSpec) error {
 	return nil
 }
 
+// dereddenedKeys names the settings that need each star's extinction, and
+// dereddenedUndo how to do without them, for the error of a catalog
+// without distances.
+func dereddenedKeys(spec DataSpec, space Space) string {
+	switch {
+	case spec.Cuts.MSBandDereddened && space.Dereddened:
+		return "cuts.ms_band_dereddened and compare.color_axis = \"dereddened\""
+	case space.Dereddened:
+		return "compare.color_axis = \"dereddened\""
+	}
+	return "cuts.ms_band_dereddened"
+}
+
+func dereddenedUndo(spec DataSpec, space Space) string {
+	switch {
+	case spec.Cuts.MSBandDereddened && space.Dereddened:
+		return "ms_band_dereddened = false and color_axis = \"measured\""
+	case space.Dereddened:
+		return "color_axis = \"measured\""
+	}
+	return "ms_band_dereddened = false"
+}
+
 // cutDetail says which value made a cut remove a star, for its row in
 // rejected.csv: the column as mapped, or the derived quantity (M_V from
-// apparent magnitude and parallax, z from parallax and position).
-func cutDetail(spec DataSpec, space Space, s catalog.Star, cut string) *catalog.Exclude {
+// apparent magnitude and parallax, z from parallax and position). axisBV
+// is the color its column is chosen by (Space.AxisColor).
+func cutDetail(spec DataSpec, space Space, s catalog.Star, axisBV float64, cut string) *catalog.Exclude {
 	m := spec.Mapping
 	ex := &catalog.Exclude{Reason: "cut: " + cut}
 	absMag, height := m.AbsMag, m.Height
@@ -209,7 +237,9 @@ func cutDetail(spec DataSpec, space Space, s catalog.Star, cut string) *catalog.
 	case CutOutsideSpace:
 		// The first dimension of the comparison space the star lies outside.
 		switch {
-		case binOf(space.ColorEdges, s.Color) < 0:
+		case binOf(space.ColorEdges, axisBV) < 0 && space.Dereddened:
+			ex.Column, ex.Value = m.Color+" less the dust's E(B−V)", fmtValue(axisBV)
+		case binOf(space.ColorEdges, axisBV) < 0:
 			ex.Column, ex.Value = m.Color, fmtValue(s.Color)
 		case !(s.PeriodD > 0) || binOf(space.LogPeriodEdges, math.Log10(s.PeriodD)) < 0:
 			ex.Column, ex.Value = m.Period, fmtValue(s.PeriodD)

@@ -311,3 +311,58 @@ func TestReadObservedDereddenedBand(t *testing.T) {
 	assert.Contains(t, err.Error(), "reddened.csv")
 	assert.Contains(t, err.Error(), "parallax_mas")
 }
+
+// On a dereddened color axis a star takes the column of its color less
+// the dust model's E(B−V) = A_V/3.1 (R_V = 3.1, Cardelli, Clayton & Mathis
+// 1989 [memory]) at its parallax distance: a dwarf of B−V 0.62 seen
+// through E(B−V) = 0.2 is measured at 0.82, in the 0.80–0.85 column as
+// measured and the 0.60–0.65 column dereddened. One measured at 0.50 is
+// intrinsically 0.30, bluer than the space: left out, and rejected.csv
+// says by what.
+func TestReadObservedDereddenedColorAxis(t *testing.T) {
+	const dPc, avPerKpc = 500.0, 1.24 // A_V 0.62, E(B−V) 0.2
+	ebv := avPerKpc * dPc / 1000 / 3.1
+	dir := t.TempDir()
+	path := filepath.Join(dir, "reddened.csv")
+	body := fmt.Sprintf("period_d,b_v,v_mag,plx_mas,z_pc\n12,%.4f,14,%.4f,40\n5,%.4f,14,%.4f,40\n", 0.62+ebv, 1000/dPc, 0.30+ebv, 1000/dPc)
+	require.NoError(t, os.WriteFile(path, []byte(body), 0o644))
+	sp, err := NewSpace(0.45, 1.6, 23, 1, 60, 10, nil) // 0.05 mag columns
+	require.NoError(t, err)
+	rel, err := model.DwarfSequence()
+	require.NoError(t, err)
+	// A band 10 mag wide keeps both stars: the test is of the columns.
+	cuts := model.Cuts{BVMin: 0.45, BVMax: 1.6, MSBandBrightMag: 10, MSBandFaintMag: 10, PeriodMinD: 0.5, PeriodMaxD: 100}
+	spec := DataSpec{Path: path, Mapping: catalog.Mapping{Period: "period_d", Color: "b_v", AppMag: "v_mag", Parallax: "plx_mas", Height: "z_pc"},
+		Cuts: cuts, Relations: rel, Dust: func(d, _ float64) float64 { return avPerKpc * d / 1000 }}
+	column := func(obs *Observed) []int {
+		var cols []int
+		for i, n := range obs.Counts {
+			if n > 0 {
+				cols = append(cols, i/(sp.NumLogPeriod()*sp.NumHeight()))
+			}
+		}
+		return cols
+	}
+	obs, err := ReadObserved(spec, sp, nil)
+	require.NoError(t, err)
+	assert.Equal(t, []int{1, 7}, column(obs), "as measured: 0.50–0.55 and 0.80–0.85")
+
+	sp.Dereddened = true
+	var rejects bytes.Buffer
+	obs, err = ReadObserved(spec, sp, &rejects)
+	require.NoError(t, err)
+	assert.Equal(t, []int{3}, column(obs), "dereddened: 0.60–0.65")
+	assert.Equal(t, 1, obs.CutAway[CutOutsideSpace])
+	assert.Contains(t, rejects.String(), "b_v less the dust's E(B−V)")
+	assert.Contains(t, rejects.String(), "0.3", "its color dereddened")
+	require.Len(t, obs.Stars, 1)
+	assert.InDelta(t, 0.62+ebv, obs.Stars[0].BV, 1e-4, "a star keeps its color as measured")
+	assert.InDelta(t, 0.62, obs.Stars[0].ColumnBV, 1e-4)
+
+	spec.Mapping = catalog.Mapping{Period: "period_d", Color: "b_v", AbsMag: "v_mag", Height: "z_pc"}
+	_, err = ReadObserved(spec, sp, nil)
+	require.Error(t, err)
+	assert.Contains(t, err.Error(), "reddened.csv")
+	assert.Contains(t, err.Error(), `compare.color_axis = "dereddened"`)
+	assert.Contains(t, err.Error(), "parallax_mas")
+}

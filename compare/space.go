@@ -19,6 +19,26 @@ type Space struct {
 	ColorEdges     []float64 // B−V (mag)
 	LogPeriodEdges []float64 // log10 of the period in days
 	HeightEdgesPc  []float64 // |z| (pc); one bin [0, +Inf) means no height axis
+	// Dereddened puts a star in its color column by its B−V less the
+	// dust model's reddening at its distance, E(B−V) = A_V/3.1, instead of
+	// its B−V as measured (AxisColor).
+	Dereddened bool
+}
+
+// AxisColor is the color by which a star of measured B−V bv, behind
+// avMag of extinction in V, takes its column: bv itself, or for a
+// dereddened space bv − A_V/3.1. The law, the turnover time and the
+// spots all read a star's intrinsic color, while how much reddening a
+// column's stars carry depends on how far stars of that color are seen
+// (their absolute magnitudes, the disk): columns of measured color mix
+// intrinsic colors in proportions a model with other relations gets
+// wrong, and a fit then moves the color zero point, and with it a
+// burst's age, to make up for it.
+func (s Space) AxisColor(bv, avMag float64) float64 {
+	if s.Dereddened {
+		return bv - model.EBVPerAV*avMag
+	}
+	return bv
 }
 
 // NewSpace returns a Space of nColor equal B−V bins on [bvMin, bvMax], nLogP

@@ -174,7 +174,7 @@ func (t *Templates) add(c *model.Chunk) {
 		if !c.Flags[i].Selected() {
 			continue
 		}
-		if j := t.Space.Index(c.ObsBV[i], c.MeasPeriodD[i], c.ZPc[i]); j >= 0 {
+		if j := t.Space.Index(t.Space.AxisColor(c.ObsBV[i], c.AV[i]), c.MeasPeriodD[i], c.ZPc[i]); j >= 0 {
 			t.Counts[k*nb+j]++
 		}
 	}

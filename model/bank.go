@@ -190,6 +190,10 @@ func (b *Bank) MemoSets() (laws, rotations, columns, inputs int) {
 // ((color·nP) + period)·nZ + height.
 type Grid struct {
 	ColorEdges, LogPeriodEdges, HeightEdgesPc []float64
+	// Dereddened bins a star by its B−V less its reddening (A_V·EBVPerAV)
+	// instead of its B−V as measured; the cuts still read the measured
+	// color.
+	Dereddened bool
 }
 
 // NumBins returns the number of flattened bins.
@@ -670,6 +674,9 @@ func (ob *observer) column(s int) int32 {
 	bv := ob.obs.Survey.Color.Apply(float64(b.ModelBV[s]))
 	if ob.recut && (!ob.cuts.InColorRange(bv) || !ob.cuts.OnMainSequence(ob.obs.Relations, bv, float64(b.ObsAbsMag[s]), float64(b.AV[s]))) {
 		return placeOut
+	}
+	if ob.g.Dereddened {
+		bv -= ebvPerAV * float64(b.AV[s])
 	}
 	c := BinIndex(ob.g.ColorEdges, bv)
 	if c < 0 {

@@ -35,7 +35,9 @@ type LawColorReach struct {
 	MaxEBV float64 `json:"max_e_b_v_mag"`
 	// ReachBV is LawMinBV + MaxEBV through the survey's color calibration
 	// (zero point and scale): the reddest catalog color at which a star
-	// bluer than the law can appear.
+	// bluer than the law can appear; on a dereddened color axis
+	// (compare.color_axis), the reddest column color, the reddening taken
+	// out again.
 	ReachBV  float64 `json:"reach_b_v_mag"`
 	CutMinBV float64 `json:"cuts_b_v_min_mag"`
 	// Masked says the color columns below the reach are left out
@@ -98,7 +100,7 @@ func (r LawColorReach) withCatalog(obs *compare.Observed, masked bool, left int)
 	r.Masked, r.StarsBelow = masked, left
 	if !masked {
 		for _, st := range obs.Stars {
-			if st.BV < r.ReachBV {
+			if st.ColumnBV < r.ReachBV {
 				r.StarsBelow++
 			}
 		}
@@ -132,7 +134,13 @@ func (c *Comparison) lawColorReach() (*LawColorReach, error) {
 	r := &LawColorReach{Law: s.Spin.Law, LawMinBV: lo, MaxEBV: maxAV * model.EBVPerAV, CutMinBV: s.Cuts.BVMin}
 	// The catalog's color of a star at the law's edge reddened the most,
 	// through the survey's color calibration (zero point and scale).
-	r.ReachBV = c.Built.Population.Survey.Color.Apply(lo + r.MaxEBV)
+	cal := c.Built.Population.Survey.Color
+	r.ReachBV = cal.Apply(lo + r.MaxEBV)
+	if c.Space.Dereddened {
+		// Apply(lo + E) − E is linear in E: its largest value lies at
+		// one end of [0, MaxEBV].
+		r.ReachBV = math.Max(cal.Apply(lo), cal.Apply(lo+r.MaxEBV)-r.MaxEBV)
+	}
 	return r, nil
 }
 

@@ -8,6 +8,7 @@ import (
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
+	"spinpop/assemble"
 	"spinpop/compare"
 	"spinpop/disk"
 	"spinpop/scenarios"
@@ -26,9 +27,11 @@ func reachOf(t *testing.T, extra string, colors ...float64) *LawColorReach {
 	require.NoError(t, err)
 	obs := &compare.Observed{}
 	for _, bv := range colors {
-		obs.Stars = append(obs.Stars, compare.ObservedStar{BV: bv})
+		obs.Stars = append(obs.Stars, compare.ObservedStar{BV: bv, ColumnBV: bv})
 	}
-	c := &Comparison{Resolved: res, Scenario: &res.Scenario, Built: b}
+	sp, err := assemble.Space(&res.Scenario)
+	require.NoError(t, err)
+	c := &Comparison{Resolved: res, Scenario: &res.Scenario, Built: b, Space: sp}
 	r, err := c.lawColorReach()
 	require.NoError(t, err)
 	if r == nil {
@@ -108,6 +111,23 @@ func TestLawColorReach(t *testing.T) {
 	inPlane := reachOf(t, thin+"[survey.field]\nb_deg = 0.0\nradius_deg = 0.01\n")
 	assert.Greater(t, r.MaxEBV, 1.05*inPlane.MaxEBV, "the dustiest line lies below the plane, not in it")
 
+	// On a dereddened color axis (compare.color_axis) a star takes its
+	// column by its color less the dust's E(B−V): the law's edge stays at
+	// 0.45 whatever the dust, and no column is exposed to stars bluer
+	// than the law.
+	deredden := "[compare]\ncolor_axis = \"dereddened\"\n"
+	r = reachOf(t, thick+deredden, 0.46)
+	assert.InDelta(t, ebv, r.MaxEBV, 0.007*ebv)
+	assert.InDelta(t, 0.45, r.ReachBV, 1e-12)
+	assert.False(t, r.Exposed())
+	// A zero point still moves it; a color scale of 0.7 puts the column
+	// color of the edge star at lo + 0.3 (1 − lo) − 0.3 E, largest
+	// unreddened: 0.615.
+	r = reachOf(t, thick+deredden+"[survey]\ncolor_offset_mag = 0.05\n")
+	assert.InDelta(t, 0.50, r.ReachBV, 1e-9)
+	r = reachOf(t, thick+deredden+"[survey]\ncolor_scale = 0.7\n")
+	assert.InDelta(t, 0.615, r.ReachBV, 1e-9)
+
 	// The torque law integrates a spin-down for any star: no color edge.
 	assert.Nil(t, reachOf(t, "[spin]\nlaw = \"torque\"\n"))
 }
@@ -129,7 +149,7 @@ func TestLawColorReachMask(t *testing.T) {
 	assert.Equal(t, want, r.mask(sp), "0.45, 0.50 and 0.55 begin below 0.571; 0.60 and 0.65 do not")
 	assert.InDelta(t, 0.60, r.ComparedFromBV, 1e-12, "the compared colors begin at the first column kept")
 
-	obs := &compare.Observed{Stars: []compare.ObservedStar{{BV: 0.5}, {BV: 0.56}, {BV: 0.58}, {BV: 0.9}}}
+	obs := &compare.Observed{Stars: []compare.ObservedStar{{BV: 0.5, ColumnBV: 0.5}, {BV: 0.56, ColumnBV: 0.56}, {BV: 0.58, ColumnBV: 0.58}, {BV: 0.9, ColumnBV: 0.9}}}
 	open := r.withCatalog(obs, false, 0)
 	assert.Equal(t, 2, open.StarsBelow, "stars bluer than the reach")
 	assert.NotEmpty(t, open.Warning())

@@ -167,7 +167,9 @@ func (c *Comparison) syntheticMarginals(ctx context.Context, h interface {
 	s := c.Scenario
 	err := model.RunChunks(ctx, s.Run.Seed, s.Run.StarsGenerated, s.Run.ChunkStars, c.Workers, pop.Fill, func(ch *model.Chunk) error {
 		for i := 0; i < ch.N; i++ {
-			if !ch.Flags[i].Selected() || sp.Index(ch.ObsBV[i], ch.MeasPeriodD[i], math.Abs(ch.ZPc[i])) < 0 {
+			// In the space by its column's color, compared by its color as
+			// measured, as the catalog's stars are.
+			if !ch.Flags[i].Selected() || sp.Index(sp.AxisColor(ch.ObsBV[i], ch.AV[i]), ch.MeasPeriodD[i], math.Abs(ch.ZPc[i])) < 0 {
 				continue
 			}
 			m.logP = append(m.logP, math.Log10(ch.MeasPeriodD[i]))

@@ -15,6 +15,7 @@ import (
 // Allowed values of the enumerated [compare] keys.
 var (
 	normalisations = []string{"free", "absolute", "per-color", "per-color-height"}
+	colorAxes      = []string{"measured", "dereddened"}
 	templateNoises = []string{"barlow-beeston-lite", "ignore"}
 	priors         = []string{"uniform", "log-uniform", "gaussian"}
 )
@@ -127,6 +128,7 @@ func (v *decoder) validateCompare(s *Scenario) {
 	v.inRange("compare.template_stars", float64(c.TemplateStars), minTemplateStars, true, MaxStars, true, "fewer stars make templates noisier than the data; "+maxStarsWhy)
 	v.oneOf("compare.normalisation", c.Normalisation, normalisations)
 	v.oneOf("compare.template_noise", c.TemplateNoise, templateNoises)
+	v.oneOf("compare.color_axis", c.ColorAxis, colorAxes)
 	v.inRange("compare.bootstrap", float64(c.Bootstrap), 0, true, maxBootstrap, true, "0 means no bootstrap")
 	if !v.errs.isBad("history.max_age_gyr") {
 		v.inRange("compare.split_age_gyr", c.SplitAgeGyr, 0, true, s.History.MaxAgeGyr, true,

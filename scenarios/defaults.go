@@ -154,6 +154,7 @@ burst_part = "burst"
 mask_below_age_gyr = 0.0
 mask_margin_dex = 0.1
 mask_blue_of_law = false
+color_axis = "measured"
 `
 
 // defaultLayer is a fresh copy of the bottom layer: builtinDefaults

@@ -42,7 +42,7 @@ func TestDefaultsFilled(t *testing.T) {
 	assert.Equal(t, Compare{
 		ColorBins: 23, LogPeriodBins: 30, PeriodMinD: 0.5, PeriodMaxD: 100,
 		HeightEdgesPc: []float64{0, 100, 200, 300, 450, 700, 1000, 1500},
-		TemplateStars: 20_000_000, Normalisation: "free", TemplateNoise: "barlow-beeston-lite",
+		TemplateStars: 20_000_000, Normalisation: "free", TemplateNoise: "barlow-beeston-lite", ColorAxis: "measured",
 		Bootstrap: 1000, SplitAgeGyr: 0, BurstPart: "burst", MaskAgeGyr: 0, MaskMarginDex: 0.1,
 		Free: nil, // no part named "burst": nothing to free by default
 	}, s.Compare)

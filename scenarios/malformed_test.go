@@ -534,6 +534,12 @@ var malformedCases = []malformedCase{
 		want:   []string{`compare.normalisation = "fixed" is not allowed; use one of: free, absolute`},
 	},
 	{
+		name:   "unknown color axis",
+		text:   minimal + "[compare]\ncolor_axis = \"intrinsic\"\n",
+		lineOf: "color_axis",
+		want:   []string{`compare.color_axis = "intrinsic" is not allowed; use one of: measured, dereddened`},
+	},
+	{
 		name:   "unknown template noise treatment",
 		text:   minimal + "[compare]\ntemplate_noise = \"barlow-beeston\"\n",
 		lineOf: "template_noise",

@@ -364,6 +364,7 @@ type Compare struct {
 	MaskAgeGyr    float64     `toml:"mask_below_age_gyr"` // leave out cells below the gyrochrone of this age (stars younger than the law describes); 0 = none (default)
 	MaskMarginDex float64     `toml:"mask_margin_dex"`    // how far below that gyrochrone a cell must lie to be left out (dex); default 0.1
 	MaskBlueOfLaw bool        `toml:"mask_blue_of_law"`   // leave out the color columns reddening can fill with stars bluer than the law's calibrated colors; default false
+	ColorAxis     string      `toml:"color_axis"`         // "measured" (default): columns in the catalog's B−V | "dereddened": in B−V less the dust model's E(B−V) at each star's distance
 	Free          []FreeParam `toml:"free"`               // parameters fitted; default: see above
 	// Alternatives are other explanations of the same catalog, each this
 	// scenario with some keys changed; test-alternatives compares the
