@@ -107,7 +107,8 @@ func ReadObserved(spec DataSpec, space Space, rejects io.Writer) (*Observed, err
 		av := 0.0
 		if (spec.Cuts.MSBandDereddened || space.Dereddened) && spec.Dust != nil {
 			if math.IsNaN(s.DistPc) {
-				return fmt.Errorf("%s needs each star's distance for its extinction, and %s maps no parallax column (an absolute-magnitude column alone gives none): map data.columns.parallax_mas, or set %s", dereddenedKeys(spec, space), spec.Path, dereddenedUndo(spec, space))
+				keys, undo := dereddenedSettings(spec, space)
+				return fmt.Errorf("%s needs each star's distance for its extinction, and %s maps no parallax column (an absolute-magnitude column alone gives none): map data.columns.parallax_mas, or set %s", keys, spec.Path, undo)
 			}
 			av = spec.Dust(s.DistPc, s.ZPc)
 		}
@@ -188,27 +189,18 @@ func CheckCatalog(spec DataSpec) error {
 	return nil
 }
 
-// dereddenedKeys names the settings that need each star's extinction, and
-// dereddenedUndo how to do without them, for the error of a catalog
+// dereddenedSettings names the settings that need each star's extinction
+// (keys) and how to do without them (undo), for the error of a catalog
 // without distances.
-func dereddenedKeys(spec DataSpec, space Space) string {
-	switch {
-	case spec.Cuts.MSBandDereddened && space.Dereddened:
-		return "cuts.ms_band_dereddened and compare.color_axis = \"dereddened\""
-	case space.Dereddened:
-		return "compare.color_axis = \"dereddened\""
+func dereddenedSettings(spec DataSpec, space Space) (keys, undo string) {
+	var k, u []string
+	if spec.Cuts.MSBandDereddened {
+		k, u = append(k, "cuts.ms_band_dereddened"), append(u, "ms_band_dereddened = false")
 	}
-	return "cuts.ms_band_dereddened"
-}
-
-func dereddenedUndo(spec DataSpec, space Space) string {
-	switch {
-	case spec.Cuts.MSBandDereddened && space.Dereddened:
-		return "ms_band_dereddened = false and color_axis = \"measured\""
-	case space.Dereddened:
-		return "color_axis = \"measured\""
+	if space.Dereddened {
+		k, u = append(k, `compare.color_axis = "dereddened"`), append(u, `color_axis = "measured"`)
 	}
-	return "ms_band_dereddened = false"
+	return strings.Join(k, " and "), strings.Join(u, " and ")
 }
 
 // cutDetail says which value made a cut remove a star, for its row in

@@ -206,26 +206,36 @@ func TestBankObserveDereddenedBand(t *testing.T) {
 	p.Cuts.MSBandDereddened = true
 	require.NoError(t, p.Prepare())
 	g := bankGrid()
-	_, bank := randomTemplatesAndBank(t, p, g, 1_500_000, BankMargin{ColorMag: 0.06, BandMag: 0.1})
-	q := *p
-	q.Survey.Color = ColorCalibration{OffsetMag: 0.04}
-	require.NoError(t, q.Prepare())
-	counts, _ := randomTemplatesAndBank(t, &q, g, 1_500_000, BankMargin{})
-	exp, vars, err := bank.Observe(context.Background(), &q, g, ObserveOptions{BaseFractionScale: 1})
-	require.NoError(t, err)
-	r, dof := chi2PerBin(counts, exp, vars)
-	t.Logf("χ²/dof = %.3f over %d bins", r, dof)
-	assert.Greater(t, dof, 200)
-	assert.Less(t, r, 1.2)
+	q, exp, vars, r := reobservedAtOffset(t, p, g)
 	// The band as measured (not dereddened) keeps other stars: a run
 	// with it is visibly another catalog.
-	u := q
+	u := *q
 	u.Cuts.MSBandDereddened = false
 	require.NoError(t, u.Prepare())
 	other, _ := randomTemplatesAndBank(t, &u, g, 1_500_000, BankMargin{})
 	r2, _ := chi2PerBin(other, exp, vars)
 	t.Logf("against the band as measured: χ²/dof = %.3f", r2)
 	assert.Greater(t, r2, r+0.3, "the dereddened band must change the catalog")
+}
+
+// reobservedAtOffset stores the stars of a run of p (with margins) and
+// re-observes them at a color zero point 0.04 mag off, q, asserting that
+// they fill g as a run made at q does (χ²/dof r < 1.2 over more than 200
+// bins); it returns q, the expectation and its variance, and r.
+func reobservedAtOffset(t *testing.T, p *Population, g Grid) (q *Population, exp, vars []float64, r float64) {
+	t.Helper()
+	_, bank := randomTemplatesAndBank(t, p, g, 1_500_000, BankMargin{ColorMag: 0.06, BandMag: 0.1})
+	shifted := *p
+	shifted.Survey.Color = ColorCalibration{OffsetMag: 0.04}
+	require.NoError(t, shifted.Prepare())
+	counts, _ := randomTemplatesAndBank(t, &shifted, g, 1_500_000, BankMargin{})
+	exp, vars, err := bank.Observe(context.Background(), &shifted, g, ObserveOptions{BaseFractionScale: 1})
+	require.NoError(t, err)
+	r, dof := chi2PerBin(counts, exp, vars)
+	t.Logf("χ²/dof = %.3f over %d bins", r, dof)
+	assert.Greater(t, dof, 200)
+	assert.Less(t, r, 1.2)
+	return &shifted, exp, vars, r
 }
 
 // A grid whose columns are colors less the reddening (Grid.Dereddened):
@@ -237,20 +247,10 @@ func TestBankObserveDereddenedAxis(t *testing.T) {
 	require.NoError(t, p.Prepare())
 	g := bankGrid()
 	g.Dereddened = true
-	_, bank := randomTemplatesAndBank(t, p, g, 1_500_000, BankMargin{ColorMag: 0.06, BandMag: 0.1})
-	q := *p
-	q.Survey.Color = ColorCalibration{OffsetMag: 0.04}
-	require.NoError(t, q.Prepare())
-	counts, _ := randomTemplatesAndBank(t, &q, g, 1_500_000, BankMargin{})
-	exp, vars, err := bank.Observe(context.Background(), &q, g, ObserveOptions{BaseFractionScale: 1})
-	require.NoError(t, err)
-	r, dof := chi2PerBin(counts, exp, vars)
-	t.Logf("χ²/dof = %.3f over %d bins", r, dof)
-	assert.Greater(t, dof, 200)
-	assert.Less(t, r, 1.2)
+	q, exp, vars, r := reobservedAtOffset(t, p, g)
 	measured := g
 	measured.Dereddened = false
-	other, _ := randomTemplatesAndBank(t, &q, measured, 1_500_000, BankMargin{})
+	other, _ := randomTemplatesAndBank(t, q, measured, 1_500_000, BankMargin{})
 	r2, _ := chi2PerBin(other, exp, vars)
 	t.Logf("against columns of measured color: χ²/dof = %.3f", r2)
 	assert.Greater(t, r2, r+0.3, "dereddened columns must hold other stars")
