@@ -24,13 +24,15 @@ const maxPlaceMemos = 3
 // placeKey is what decides a stored star's column: the color calibration,
 // the cuts and the relations they read (by pointer: a population's
 // relations are not changed once made), and the grid's color and height
-// edges (as their bits; the period edges play no part).
+// edges (as their bits; the period edges play no part) and whether its
+// colors are dereddened.
 type placeKey struct {
-	color     ColorCalibration
-	cuts      Cuts
-	recut     bool
-	relations *Relations
-	edges     string
+	color      ColorCalibration
+	cuts       Cuts
+	recut      bool
+	relations  *Relations
+	edges      string
+	dereddened bool
 }
 
 func placeKeyOf(ob *observer) placeKey {
@@ -42,7 +44,8 @@ func placeKeyOf(ob *observer) placeKey {
 		}
 		b.WriteByte(';')
 	}
-	return placeKey{color: ob.obs.Survey.Color, cuts: ob.cuts, recut: ob.recut, relations: ob.obs.Relations, edges: b.String()}
+	return placeKey{color: ob.obs.Survey.Color, cuts: ob.cuts, recut: ob.recut, relations: ob.obs.Relations, edges: b.String(),
+		dereddened: ob.g.Dereddened}
 }
 
 // A placeStore column: placeUnknown before the pass that makes the memo

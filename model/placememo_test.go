@@ -10,12 +10,14 @@ import (
 // Re-observations that read the stars' grid columns from the place memo
 // give the same bits as those that place every star afresh: the centre's
 // calibration serves the spots' and the threshold's side points after
-// the two color side points; a new scale, narrower cuts and another grid
-// each need their own. Only maxPlaceMemos are kept.
+// the two color side points; a new scale, narrower cuts, another grid and
+// columns of dereddened color each need their own. Only maxPlaceMemos are kept.
 func TestObservePlaceMemoIdentical(t *testing.T) {
 	p, g, bank, change := memoTestBank(t)
 	coarser := g
 	coarser.ColorEdges = []float64{g.ColorEdges[0], (g.ColorEdges[0] + g.ColorEdges[len(g.ColorEdges)-1]) / 2, g.ColorEdges[len(g.ColorEdges)-1]}
+	dereddened := g
+	dereddened.Dereddened = true
 	steps := []struct {
 		name string
 		pop  *Population
@@ -28,6 +30,7 @@ func TestObservePlaceMemoIdentical(t *testing.T) {
 		{"threshold", change(func(q *Population) { q.Survey.Detect.ThresholdSNR *= 1.2 }), g, true},
 		{"binary share 1.3", change(func(q *Population) { q.Binaries.FractionScale = 1.3 }), g, true},
 		{"color offset +0.05 again", change(func(q *Population) { q.Survey.Color = ColorCalibration{OffsetMag: 0.05} }), g, true},
+		{"dereddened columns", p, dereddened, false}, // the centre's calibration and edges, columns of another color
 		{"color scale 1.04", change(func(q *Population) { q.Survey.Color = ColorCalibration{Scale: 1.04} }), g, false},
 		{"narrower band", change(func(q *Population) { q.Cuts.MSBandFaintMag *= 0.8 }), g, false},
 		{"coarser color grid", p, coarser, false},
