@@ -18,12 +18,29 @@ import (
 
 // Figures of compare, test-burst, test-alternatives and heights.
 
+// colorLabel is the comparison plane's color axis, and colorName the
+// color in a panel's title: the catalog's B−V as observed, or less the
+// dust model's reddening (compare.color_axis = "dereddened").
+func colorLabel(sp compare.Space) string {
+	if sp.Dereddened {
+		return "B−V less the dust's E(B−V) (mag)"
+	}
+	return labelBV
+}
+
+func colorName(sp compare.Space) string {
+	if sp.Dereddened {
+		return "dereddened B−V"
+	}
+	return "B−V"
+}
+
 // planeCounts draws counts on the comparison plane (B−V × log period),
 // given color-major, cell by cell on a log scale shared up to vmax.
 func planeCounts(title string, sp compare.Space, z []float64, vmax float64) *figure.Panel {
 	np := sp.NumLogPeriod()
 	scale := figure.Density(vmax, labelStars)
-	p := figure.New(title, labelBV, labelLogPeriod)
+	p := figure.New(title, colorLabel(sp), labelLogPeriod)
 	p.Add(&figure.Cells{XEdges: sp.ColorEdges, YEdges: sp.LogPeriodEdges, Scale: scale,
 		Value: func(i, j int) float64 { return figure.LogCount(z[i*np+j]) }})
 	p.X.Min, p.X.Max = sp.ColorEdges[0], sp.ColorEdges[len(sp.ColorEdges)-1]
@@ -36,7 +53,7 @@ func planeCounts(title string, sp compare.Space, z []float64, vmax float64) *fig
 func planeSigned(title, barLabel string, sp compare.Space, z []float64, limit float64) *figure.Panel {
 	np := sp.NumLogPeriod()
 	scale := figure.Diverging(limit, barLabel)
-	p := figure.New(title, labelBV, labelLogPeriod)
+	p := figure.New(title, colorLabel(sp), labelLogPeriod)
 	p.Add(&figure.Cells{XEdges: sp.ColorEdges, YEdges: sp.LogPeriodEdges, Scale: scale,
 		Value: func(i, j int) float64 { return z[i*np+j] }})
 	p.X.Min, p.X.Max = sp.ColorEdges[0], sp.ColorEdges[len(sp.ColorEdges)-1]
@@ -106,7 +123,7 @@ func periodHistsDataModel(sp compare.Space, data []float64, models map[string][]
 	var row []*figure.Panel
 	for start := 0; start < nc; start += per {
 		end := min(start+per, nc)
-		p := figure.New(fmt.Sprintf("B−V %.2f–%.2f", sp.ColorEdges[start], sp.ColorEdges[end]), labelLogPeriod, "stars")
+		p := figure.New(fmt.Sprintf("%s %.2f–%.2f", colorName(sp), sp.ColorEdges[start], sp.ColorEdges[end]), labelLogPeriod, "stars")
 		sum := func(z []float64, j int) float64 {
 			s := 0.0
 			for c := start; c < end; c++ {
