@@ -28,11 +28,11 @@ type Space struct {
 // AxisColor is the color by which a star of measured B−V bv, behind
 // avMag of extinction in V, takes its column: bv itself, or for a
 // dereddened space bv − A_V/3.1. The law reads a star's intrinsic
-// color, while how much reddening a column's stars carry depends on how far stars of that color are seen
-// (their absolute magnitudes, the disk): columns of measured color mix
-// intrinsic colors in proportions a model with other relations gets
-// wrong, and a fit then moves the color zero point, and with it a
-// burst's age, to make up for it.
+// color, while how much reddening a column's stars carry depends on how
+// far stars of that color are seen (their absolute magnitudes, the
+// disk): columns of measured color mix intrinsic colors in proportions a
+// model with other relations gets wrong, and a fit then moves the color
+// zero point, and with it a burst's age, to make up for it.
 func (s Space) AxisColor(bv, avMag float64) float64 {
 	if s.Dereddened {
 		return bv - model.EBVPerAV*avMag
