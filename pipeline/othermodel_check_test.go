@@ -17,6 +17,7 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"spinpop/compare"
+	"spinpop/disk"
 	"spinpop/internal/othermodel"
 	"spinpop/model"
 	"spinpop/scenarios"
@@ -374,7 +375,7 @@ func withRamp(h othermodel.History, s float64) othermodel.History {
 }
 
 // variantKeys are the keys parseVariant takes, for its errors.
-const variantKeys = "ramp, law, scatter, p50, heightbeta, av, stall, relations, mvshift"
+const variantKeys = "ramp, law, scatter, p50, heightbeta, av, stall, relations, mvshift, disk"
 
 // parseVariant reads SPINPOP_OTHERMODEL_VARIANT: the other model changed
 // further from spinpop than its defaults, so that the check also covers
@@ -396,6 +397,9 @@ const variantKeys = "ramp, law, scatter, p50, heightbeta, av, stall, relations, 
 //	mvshift=mag   every dwarf's M_V moved by mag at its color (> 0 fainter), with whichever
 //	              relations are in use (a diagnostic: does the sequence's place in M_V, which
 //	              sets how far from the plane a magnitude-limited field reaches, move the age?)
+//	disk=spinpop  spinpop's disk instead of the other model's exponential layers (a diagnostic:
+//	              what the disk alone does to a fit): the example scenario's self-gravitating
+//	              sheet, heating and radial scale (spinpopDisk)
 func parseVariant(spec string) (othermodel.Config, error) {
 	cfg := othermodel.DefaultConfig()
 	if strings.TrimSpace(spec) == "" {
@@ -424,6 +428,13 @@ func parseVariant(spec string) (othermodel.Config, error) {
 				return cfg, err
 			}
 			cfg.Relations = r
+			continue
+		}
+		if k == "disk" {
+			if v != "spinpop" {
+				return cfg, fmt.Errorf("SPINPOP_OTHERMODEL_VARIANT: disk=%q; want spinpop (or leave it out: the other model's own)", v)
+			}
+			spinpopDisk(&cfg)
 			continue
 		}
 		if k == "stall" {
@@ -465,6 +476,24 @@ func parseVariant(spec string) (othermodel.Config, error) {
 		cfg.Relations = shiftedInMV(cfg.Relations, mvShift)
 	}
 	return cfg, cfg.Validate()
+}
+
+// spinpopDisk hands the other model spinpop's disk (the variant
+// disk=spinpop) at the example scenario's values (scenarios/examples/
+// base.toml [disk]): each age's stars in the self-gravitating sheet's
+// potential with the dispersion of the heating law (disk.Sheet,
+// disk.AVR), the radial scale length and the Sun's distance from the
+// centre. The acceptance is the tracer density over its peak at the
+// youngest age, the coldest and so the most concentrated.
+func spinpopDisk(cfg *othermodel.Config) {
+	sheet := disk.Sheet{SheetSigmaKms: 20, SurfaceDensityMsunPc2: 70}
+	avr := disk.AVR{Sigma10Kms: 25, Tau1Gyr: 0.5, Beta: 0.45}
+	peak := sheet.TracerDensity(0, avr.SigmaKms(0))
+	cfg.Vertical = &othermodel.Vertical{Name: "spinpop's self-gravitating sheet and heating (base.toml)",
+		Accept: func(ageGyr, zPc float64) float64 {
+			return sheet.TracerDensity(zPc, avr.SigmaKms(ageGyr)) / peak
+		}}
+	cfg.ScaleLengthKpc, cfg.SunRadiusKpc = 2.6, 8.122
 }
 
 // spinpopRelations hands the other model spinpop's relations (the
@@ -637,7 +666,20 @@ func TestParseVariant(t *testing.T) {
 		assert.Equal(t, want.BV, bv, spec)
 		assert.InDelta(t, want.AbsMagV+0.2, mv, 1e-12, spec)
 	}
+	// disk=spinpop: the sheet's tracer density over its peak at age 0. A
+	// tracer at the heating law's 10 Gyr dispersion (25 km/s in the sheet
+	// of σ_s 20 km/s, Σ 70 M☉ pc⁻²: z0 = 400/(π G 70) = 422.9 pc, n = 1.28)
+	// falls by cosh(1)^−1.28 = 0.5739 from the plane to z0 (disk.Sheet's
+	// formula, worked by hand).
+	cfg, err = parseVariant("disk=spinpop")
+	require.NoError(t, err)
+	require.NotNil(t, cfg.Vertical)
+	assert.InDelta(t, 1, cfg.Vertical.Accept(0, 0), 1e-12, "the youngest stars at the plane: the bound")
+	assert.InDelta(t, 0.5739, cfg.Vertical.Accept(10, 422.9)/cfg.Vertical.Accept(10, 0), 5e-4)
+	assert.Less(t, cfg.Vertical.Accept(10, 0), cfg.Vertical.Accept(1, 0), "hot stars are spread thinner at the plane")
+	assert.Equal(t, []float64{2.6, 8.122}, []float64{cfg.ScaleLengthKpc, cfg.SunRadiusKpc})
 	for spec, want := range map[string]string{
+		"disk=thick":     "want spinpop",
 		"relations=mist": "want spinpop, spinpop-sequence or spinpop-lifetimes",
 		"ramp":           "not key=value",
 		"law=skumanich":  "want barnes2007 or mamajek2008",

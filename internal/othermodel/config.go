@@ -121,6 +121,19 @@ type Relations struct {
 	LifetimeGyr func(massMsun float64) float64
 }
 
+// Vertical replaces the exponential layers of the disk: a diagnostic
+// hook like Relations, so that a check can hand this model another
+// vertical structure and see what the disk alone does to a fit.
+type Vertical struct {
+	Name string
+	// Accept is the probability of keeping a star of age ageGyr placed at
+	// height zPc: the vertical density at (age, z) over a bound that no age
+	// or height exceeds, so a value in [0, 1]. Its integral over z at each
+	// age must be the same for every age (the history, not the disk, sets
+	// how many stars of each age there are).
+	Accept func(ageGyr, zPc float64) float64
+}
+
 // Config is every ingredient of the model. DefaultConfig fills it.
 type Config struct {
 	Stars   int // catalog rows to collect
@@ -144,6 +157,7 @@ type Config struct {
 	ParallaxErrMas float64 // Gaussian parallax error
 
 	// Disk and dust.
+	Vertical                  *Vertical // nil: the exponential layers below
 	SunRadiusKpc, SunHeightPc float64
 	ScaleLengthKpc            float64 // radial exponential
 	ScaleHeight0Pc            float64 // h(τ) = h0 (1 + τ/τ1)^β
@@ -186,6 +200,9 @@ func (c Config) Validate() error {
 		if err := c.Stall.validate(); err != nil {
 			return err
 		}
+	}
+	if c.Vertical != nil && c.Vertical.Accept == nil {
+		return fmt.Errorf("othermodel: Vertical %q needs Accept", c.Vertical.Name)
 	}
 	if c.Relations != nil && (c.Relations.Dwarf == nil || c.Relations.LifetimeGyr == nil) {
 		return fmt.Errorf("othermodel: Relations %q needs both Dwarf and LifetimeGyr", c.Relations.Name)

@@ -66,6 +66,9 @@ func Generate(cfg Config, seed uint64) ([]Star, Tally, error) {
 		rPc, z := math.Hypot(r0Pc-dist*u[0], dist*u[1]), zSun+dist*u[2]
 		h := scaleHeight(age)
 		w := cfg.ScaleHeight0Pc / h * math.Exp(-(rPc-r0Pc)/rdPc-math.Abs(z)/h)
+		if cfg.Vertical != nil {
+			w = math.Exp(-(rPc-r0Pc)/rdPc) * cfg.Vertical.Accept(age, z)
+		}
 		if r.Float64()*radialMax >= w {
 			continue
 		}
@@ -169,6 +172,9 @@ func WriteCatalog(path string, cfg Config, seed uint64) (Tally, error) {
 		cfg.History.MaxAgeGyr, cfg.History.RampSlope, describeBurst(cfg.History.Burst), cfg.Gyro.Name, describeStall(cfg.Stall), cfg.PeriodScatterDex)
 	if cfg.Relations != nil {
 		fmt.Fprintf(w, "# relations: %s (not the model's own)\n", cfg.Relations.Name)
+	}
+	if cfg.Vertical != nil {
+		fmt.Fprintf(w, "# vertical structure: %s (not the model's own)\n", cfg.Vertical.Name)
 	}
 	fmt.Fprintf(w, "# vmag includes extinction; bv_mag is reddened; true_* columns are diagnostics\n%s\n", CatalogHeader)
 	f := func(v float64, prec int) string { return strconv.FormatFloat(v, 'f', prec, 64) }

@@ -269,6 +269,48 @@ func TestRelationsHook(t *testing.T) {
 	}
 }
 
+// The vertical hook handed the exponential layers' own acceptance draws the
+// same stars (it takes no random numbers); handed a thin layer of one
+// scale height at every age, it keeps old stars as close to the plane as
+// young ones (in the default layers they lie several times farther).
+func TestVerticalHook(t *testing.T) {
+	cfg := smallConfig(800)
+	want, _, err := Generate(cfg, 9)
+	require.NoError(t, err)
+	own := func(ageGyr, zPc float64) float64 {
+		h := cfg.ScaleHeight0Pc * math.Pow(1+ageGyr/cfg.ScaleHeightTau1Gyr, cfg.ScaleHeightBeta)
+		return cfg.ScaleHeight0Pc / h * math.Exp(-math.Abs(zPc)/h)
+	}
+	cfg.Vertical = &Vertical{Name: "the layers again", Accept: own}
+	got, _, err := Generate(cfg, 9)
+	require.NoError(t, err)
+	assert.Equal(t, want, got)
+
+	meanAbsZ := func(stars []Star, lo, hi float64) float64 {
+		sum, n := 0.0, 0
+		for _, s := range stars {
+			if s.AgeGyr >= lo && s.AgeGyr < hi {
+				sum += math.Abs(s.ZPc)
+				n++
+			}
+		}
+		require.Greater(t, n, 20, "stars aged %g–%g Gyr", lo, hi)
+		return sum / float64(n)
+	}
+	// The layers' heights at 0.5 and 8 Gyr are 70·1.5^0.7 = 93 pc and
+	// 70·9^0.7 = 327 pc: old stars reach 3.5 times higher.
+	assert.Greater(t, meanAbsZ(want, 6, 11), 1.5*meanAbsZ(want, 0, 1))
+	cfg.Vertical = &Vertical{Name: "one thin layer", Accept: func(_, zPc float64) float64 { return math.Exp(-math.Abs(zPc) / 70) }}
+	thin, _, err := Generate(cfg, 9)
+	require.NoError(t, err)
+	young, old := meanAbsZ(thin, 0, 1), meanAbsZ(thin, 6, 11)
+	assert.InDelta(t, 1, old/young, 0.25, "mean |z| %.0f pc old, %.0f pc young", old, young)
+
+	cfg.Vertical = &Vertical{Name: "no function"}
+	_, _, err = Generate(cfg, 9)
+	assert.ErrorContains(t, err, "needs Accept")
+}
+
 // The defaults must follow the example scenario the comparison extends, and
 // the catalog must carry every column its [data.columns] maps. The files
 // are read as TOML, not through spinpop's packages, which this one must not
