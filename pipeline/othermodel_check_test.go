@@ -375,7 +375,7 @@ func withRamp(h othermodel.History, s float64) othermodel.History {
 }
 
 // variantKeys are the keys parseVariant takes, for its errors.
-const variantKeys = "ramp, law, scatter, p50, heightbeta, av, stall, relations, mvshift, disk"
+const variantKeys = "ramp, law, scatter, p50, v50, imf, heightbeta, av, stall, relations, mvshift, disk"
 
 // parseVariant reads SPINPOP_OTHERMODEL_VARIANT: the other model changed
 // further from spinpop than its defaults, so that the check also covers
@@ -388,6 +388,8 @@ const variantKeys = "ramp, law, scatter, p50, heightbeta, av, stall, relations, 
 //	law=name      barnes2007 (default) or mamajek2008
 //	scatter=dex   intrinsic period scatter (default 0.08)
 //	p50=days      half-detection period at B−V 0.65 (default 20)
+//	v50=mag       V of half completeness (default 15.3; beyond the faint limit, none lost by V)
+//	imf=slope     the IMF's power-law slope dN/dM ∝ M^−slope (default 2.35, Salpeter's)
 //	heightbeta=β  exponent of the scale height's growth with age (default 0.7)
 //	av=mag/kpc    the uniform extinction in V along the line of sight (default 0.25)
 //	stall=S:D     K dwarfs' spin-down paused from S Gyr for D Gyr (othermodel.Stall; default none)
@@ -462,6 +464,10 @@ func parseVariant(spec string) (othermodel.Config, error) {
 			cfg.PeriodScatterDex = x
 		case "p50":
 			cfg.Detection.P50RefD = x
+		case "v50":
+			cfg.Detection.V50Mag = x
+		case "imf":
+			cfg.IMFSlope = x
 		case "heightbeta":
 			cfg.ScaleHeightBeta = x
 		case "av":
@@ -618,11 +624,11 @@ func TestParseVariant(t *testing.T) {
 	cfg, err := parseVariant("")
 	require.NoError(t, err)
 	assert.Equal(t, def, cfg, "no variant: the other model's defaults")
-	cfg, err = parseVariant("ramp=0.8, law=mamajek2008,scatter=0.12,p50=14,heightbeta=0.5,av=0")
+	cfg, err = parseVariant("ramp=0.8, law=mamajek2008,scatter=0.12,p50=14,v50=99,imf=1.3,heightbeta=0.5,av=0")
 	require.NoError(t, err)
 	assert.Equal(t, 0.8, cfg.History.RampSlope)
 	assert.Equal(t, othermodel.Mamajek2008(), cfg.Gyro)
-	assert.Equal(t, []float64{0.12, 14, 0.5, 0}, []float64{cfg.PeriodScatterDex, cfg.Detection.P50RefD, cfg.ScaleHeightBeta, cfg.AVPerKpc})
+	assert.Equal(t, []float64{0.12, 14, 99, 1.3, 0.5, 0}, []float64{cfg.PeriodScatterDex, cfg.Detection.P50RefD, cfg.Detection.V50Mag, cfg.IMFSlope, cfg.ScaleHeightBeta, cfg.AVPerKpc})
 	assert.Nil(t, cfg.Stall)
 	cfg, err = parseVariant("stall=0.7:0.4")
 	require.NoError(t, err)
