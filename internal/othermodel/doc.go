@@ -49,7 +49,10 @@
 // at R = 8.2 kpc and z☉ of the example scenario (the catalog reader adds
 // the scenario's z☉ to d sin b). Age and position are drawn together by
 // rejection from the survey cone's volume, so the age mix changes with
-// height. Dust: uniform 0.25 mag kpc⁻¹ in V along the line of sight,
+// height. Config.Vertical (nil by default) replaces the layers by any
+// acceptance in age and height, as Relations replaces the relations (the
+// check's variant disk=spinpop hands it spinpop's sheet). Dust: uniform
+// 0.25 mag kpc⁻¹ in V along the line of sight,
 // E(B−V) = A_V / 3.1.
 //
 // History (spinpop: constant, exponential, Gaussian bursts, bins, dips).
