@@ -436,7 +436,9 @@ func parseVariant(spec string) (othermodel.Config, error) {
 			if v != "spinpop" {
 				return cfg, fmt.Errorf("SPINPOP_OTHERMODEL_VARIANT: disk=%q; want spinpop (or leave it out: the other model's own)", v)
 			}
-			spinpopDisk(&cfg)
+			if err := spinpopDisk(&cfg); err != nil {
+				return cfg, err
+			}
 			continue
 		}
 		if k == "stall" {
@@ -486,20 +488,26 @@ func parseVariant(spec string) (othermodel.Config, error) {
 
 // spinpopDisk hands the other model spinpop's disk (the variant
 // disk=spinpop) at the example scenario's values (scenarios/examples/
-// base.toml [disk]): each age's stars in the self-gravitating sheet's
-// potential with the dispersion of the heating law (disk.Sheet,
-// disk.AVR), the radial scale length and the Sun's distance from the
-// centre. The acceptance is the tracer density over its peak at the
-// youngest age, the coldest and so the most concentrated.
-func spinpopDisk(cfg *othermodel.Config) {
-	sheet := disk.Sheet{SheetSigmaKms: 20, SurfaceDensityMsunPc2: 70}
-	avr := disk.AVR{Sigma10Kms: 25, Tau1Gyr: 0.5, Beta: 0.45}
+// base.toml [disk], read from it): each age's stars in the
+// self-gravitating sheet's potential with the dispersion of the heating
+// law (disk.Sheet, disk.AVR), the radial scale length and the Sun's
+// distance from the centre. The acceptance is the tracer density over its
+// peak at the youngest age, the coldest and so the most concentrated.
+func spinpopDisk(cfg *othermodel.Config) error {
+	res, err := scenarios.LoadExample("base")
+	if err != nil {
+		return fmt.Errorf("SPINPOP_OTHERMODEL_VARIANT: disk=spinpop reads example:base: %w", err)
+	}
+	dk := res.Scenario.Disk
+	sheet := disk.Sheet{SheetSigmaKms: dk.SheetSigmaKms, SurfaceDensityMsunPc2: dk.SurfaceDensityMsunPc2}
+	avr := disk.AVR{Sigma10Kms: dk.Sigma10GyrKms, Tau1Gyr: dk.HeatingTau1Gyr, Beta: dk.HeatingBeta}
 	peak := sheet.TracerDensity(0, avr.SigmaKms(0))
 	cfg.Vertical = &othermodel.Vertical{Name: "spinpop's self-gravitating sheet and heating (base.toml)",
 		Accept: func(ageGyr, zPc float64) float64 {
 			return sheet.TracerDensity(zPc, avr.SigmaKms(ageGyr)) / peak
 		}}
-	cfg.ScaleLengthKpc, cfg.SunRadiusKpc = 2.6, 8.122
+	cfg.ScaleLengthKpc, cfg.SunRadiusKpc = dk.ScaleLengthKpc, dk.SunRadiusKpc
+	return nil
 }
 
 // spinpopRelations hands the other model spinpop's relations (the
