@@ -189,7 +189,7 @@ func (b *Built) sampler() (*disk.Sampler, error) {
 	if err != nil {
 		return nil, err
 	}
-	sheet := disk.Sheet{SheetSigmaKms: s.Disk.SheetSigmaKms, SurfaceDensityMsunPc2: s.Disk.SurfaceDensityMsunPc2}
+	sheet := Sheet(s)
 	radial := disk.Radial{ScaleLengthKpc: s.Disk.ScaleLengthKpc}
 	smp, err := disk.NewMixtureSampler(field, b.Sun, sheet, radial, mixes, disk.SamplerOptions{})
 	if err != nil {
@@ -223,7 +223,7 @@ func samplerFastEnough(s *scenarios.Scenario, smp *disk.Sampler, prob []float64)
 	if !(num > 0) || eff >= minProposalEfficiency {
 		return nil
 	}
-	sheet := disk.Sheet{SheetSigmaKms: s.Disk.SheetSigmaKms, SurfaceDensityMsunPc2: s.Disk.SurfaceDensityMsunPc2}
+	sheet := Sheet(s)
 	return fmt.Errorf("disk.sigma_10gyr_kms = %g and disk.sheet_sigma_kms = %g make a disk so thin (sheet scale height z0 = %.3g pc) that the survey field holds almost none of its stars: the position sampler would keep 1 proposal in %.3g and a run would crawl; use dispersions near those of the Galactic thin disk (of order 20 km/s; the defaults are 25 and 20) or a field that crosses the midplane",
 		s.Disk.Sigma10GyrKms, s.Disk.SheetSigmaKms, sheet.Z0Pc(), 1/eff)
 }
@@ -315,11 +315,22 @@ func plainLaw(s *scenarios.Scenario, rel *model.Relations) (spin.Law, error) {
 	return l, nil
 }
 
+// Sheet is the scenario's self-gravitating sheet, the vertical potential
+// every age population moves in.
+func Sheet(s *scenarios.Scenario) disk.Sheet {
+	return disk.Sheet{SheetSigmaKms: s.Disk.SheetSigmaKms, SurfaceDensityMsunPc2: s.Disk.SurfaceDensityMsunPc2}
+}
+
+// Heating is the scenario's age–velocity-dispersion relation.
+func Heating(s *scenarios.Scenario) disk.AVR {
+	return disk.AVR{Sigma10Kms: s.Disk.Sigma10GyrKms, Tau1Gyr: s.Disk.HeatingTau1Gyr, Beta: s.Disk.HeatingBeta}
+}
+
 // binMixtures returns each age bin's vertical mixture: the tracer profiles
 // over the ages inside the bin, formed at a constant rate within it (four
 // sub-ages per bin).
 func binMixtures(s *scenarios.Scenario, ageEdgesGyr []float64) ([]disk.Mixture, error) {
-	avr := disk.AVR{Sigma10Kms: s.Disk.Sigma10GyrKms, Tau1Gyr: s.Disk.HeatingTau1Gyr, Beta: s.Disk.HeatingBeta}
+	avr := Heating(s)
 	mixes := make([]disk.Mixture, len(ageEdgesGyr)-1)
 	for k := range mixes {
 		m, err := avr.BinMixture(ageEdgesGyr[k], ageEdgesGyr[k+1], 4)
@@ -352,8 +363,7 @@ func HeatingWeight(run, other *scenarios.Scenario, ageEdgesGyr []float64) (func(
 	if err != nil {
 		return nil, err
 	}
-	sFrom := disk.Sheet{SheetSigmaKms: a.SheetSigmaKms, SurfaceDensityMsunPc2: a.SurfaceDensityMsunPc2}
-	sTo := disk.Sheet{SheetSigmaKms: b.SheetSigmaKms, SurfaceDensityMsunPc2: b.SurfaceDensityMsunPc2}
+	sFrom, sTo := Sheet(run), Sheet(other)
 	for _, s := range []disk.Sheet{sFrom, sTo} {
 		if err := s.Validate(); err != nil {
 			return nil, fmt.Errorf("disk: %w", err)

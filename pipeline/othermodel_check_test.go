@@ -16,8 +16,8 @@ import (
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
+	"spinpop/assemble"
 	"spinpop/compare"
-	"spinpop/disk"
 	"spinpop/internal/othermodel"
 	"spinpop/model"
 	"spinpop/scenarios"
@@ -490,7 +490,7 @@ func parseVariant(spec string) (othermodel.Config, error) {
 // disk=spinpop) at the example scenario's values (scenarios/examples/
 // base.toml [disk], read from it): each age's stars in the
 // self-gravitating sheet's potential with the dispersion of the heating
-// law (disk.Sheet, disk.AVR), the radial scale length and the Sun's
+// law (assemble.Sheet, assemble.Heating), the radial scale length and the Sun's
 // distance from the centre. The acceptance is the tracer density over its
 // peak at the youngest age, the coldest and so the most concentrated.
 func spinpopDisk(cfg *othermodel.Config) error {
@@ -498,15 +498,13 @@ func spinpopDisk(cfg *othermodel.Config) error {
 	if err != nil {
 		return fmt.Errorf("SPINPOP_OTHERMODEL_VARIANT: disk=spinpop reads example:base: %w", err)
 	}
-	dk := res.Scenario.Disk
-	sheet := disk.Sheet{SheetSigmaKms: dk.SheetSigmaKms, SurfaceDensityMsunPc2: dk.SurfaceDensityMsunPc2}
-	avr := disk.AVR{Sigma10Kms: dk.Sigma10GyrKms, Tau1Gyr: dk.HeatingTau1Gyr, Beta: dk.HeatingBeta}
+	sheet, avr := assemble.Sheet(&res.Scenario), assemble.Heating(&res.Scenario)
 	peak := sheet.TracerDensity(0, avr.SigmaKms(0))
 	cfg.Vertical = &othermodel.Vertical{Name: "spinpop's self-gravitating sheet and heating (base.toml)",
 		Accept: func(ageGyr, zPc float64) float64 {
 			return sheet.TracerDensity(zPc, avr.SigmaKms(ageGyr)) / peak
 		}}
-	cfg.ScaleLengthKpc, cfg.SunRadiusKpc = dk.ScaleLengthKpc, dk.SunRadiusKpc
+	cfg.ScaleLengthKpc, cfg.SunRadiusKpc = res.Scenario.Disk.ScaleLengthKpc, res.Scenario.Disk.SunRadiusKpc
 	return nil
 }
 
