@@ -38,7 +38,7 @@ func Build(s *scenarios.Scenario) (*Built, error) {
 	if b.History, err = History(s); err != nil {
 		return nil, err
 	}
-	if b.Relations, err = model.DwarfSequence(); err != nil {
+	if b.Relations, err = Relations(s); err != nil {
 		return nil, err
 	}
 	lo, hi := b.Relations.MassRange()
@@ -104,6 +104,24 @@ func Build(s *scenarios.Scenario) (*Built, error) {
 		return nil, err
 	}
 	return b, nil
+}
+
+// Relations is the scenario's dwarf sequence: the table, moved in M_V by
+// stars.sequence_shift_* when the scenario gives a shift.
+func Relations(s *scenarios.Scenario) (*model.Relations, error) {
+	rel, err := model.DwarfSequence()
+	if err != nil {
+		return nil, err
+	}
+	shift := model.LinearShift(s.Stars.SequenceShiftBV, s.Stars.SequenceShiftMag)
+	if shift == nil {
+		return rel, nil
+	}
+	rel, err = rel.ShiftedInMV(shift)
+	if err != nil {
+		return nil, fmt.Errorf("stars.sequence_shift_b_v/sequence_shift_mag: %w", err)
+	}
+	return rel, nil
 }
 
 // ObservingPopulation returns a copy of base (a population built from this

@@ -502,3 +502,47 @@ func BandMag(p Point, band string) (float64, error) {
 	}
 	return p.Mag(b), nil
 }
+
+// ShiftedInMV returns the relations with every star's M_V and M_Ks moved
+// by shift(B−V) (> 0 fainter) at its own color, colors, temperatures and
+// luminosities unchanged: the same table placed where a catalog's main
+// sequence lies (a metallicity other than the table's, a photometric
+// system's zero point). The shift is applied to the smoothed grid, so the
+// sequence at a color moves by exactly shift there. Rows keeps the table
+// as published. An error means the shift would make M_V rise with mass
+// somewhere: a shift steeper than the sequence.
+func (rel *Relations) ShiftedInMV(shift func(bv float64) float64) (*Relations, error) {
+	out := *rel
+	out.grid = append([]Point(nil), rel.grid...)
+	for i := range out.grid {
+		d := shift(out.grid[i].BV)
+		out.grid[i].AbsMagV += d
+		out.grid[i].AbsMagKs += d
+	}
+	if err := out.checkMonotonic(); err != nil {
+		return nil, fmt.Errorf("model: the sequence shifted in M_V: %w; the shift is steeper than the sequence", err)
+	}
+	out.indexBV()
+	return &out, nil
+}
+
+// LinearShift is the piecewise-linear function through (bv[i], mag[i]),
+// flat beyond the first and last nodes; nil when there are no nodes. bv
+// must be strictly increasing and as long as mag (scenarios checks both).
+func LinearShift(bv, mag []float64) func(float64) float64 {
+	if len(bv) == 0 {
+		return nil
+	}
+	xs, ys := append([]float64(nil), bv...), append([]float64(nil), mag...)
+	return func(x float64) float64 {
+		switch {
+		case x <= xs[0]:
+			return ys[0]
+		case x >= xs[len(xs)-1]:
+			return ys[len(ys)-1]
+		}
+		k := sort.SearchFloat64s(xs, x) // xs[k-1] < x ≤ xs[k]
+		f := (x - xs[k-1]) / (xs[k] - xs[k-1])
+		return ys[k-1] + f*(ys[k]-ys[k-1])
+	}
+}

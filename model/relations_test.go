@@ -394,3 +394,50 @@ func BenchmarkRelationsAbsMagVAtBV(b *testing.B) {
 	}
 	_ = s
 }
+
+// LinearShift: values worked by hand from the nodes (0.5, +0.1) and
+// (1.0, −0.1): −0.4 mag per mag of B−V between them, flat beyond.
+func TestLinearShift(t *testing.T) {
+	assert.Nil(t, LinearShift(nil, nil), "no nodes, no shift")
+	f := LinearShift([]float64{0.5, 1.0}, []float64{0.1, -0.1})
+	for _, c := range []struct{ bv, want float64 }{
+		{0.3, 0.1}, {0.5, 0.1}, {0.6, 0.06}, {0.75, 0}, {1.0, -0.1}, {1.4, -0.1},
+	} {
+		assert.InDelta(t, c.want, f(c.bv), 1e-12, "B−V %g", c.bv)
+	}
+}
+
+// ShiftedInMV moves M_V and M_Ks at a color by exactly the shift there and
+// leaves what the spin-down law reads (mass, color, temperature) alone.
+func TestShiftedInMV(t *testing.T) {
+	rel, err := DwarfSequence()
+	require.NoError(t, err)
+	shift := LinearShift([]float64{0.5, 1.0, 1.4}, []float64{0.2, -0.05, 0.1})
+	moved, err := rel.ShiftedInMV(shift)
+	require.NoError(t, err)
+	for _, bv := range []float64{0.5, 0.62, 0.8, 1.0, 1.2, 1.4} {
+		m0, ok0 := rel.AbsMagVAtBV(bv)
+		m1, ok1 := moved.AbsMagVAtBV(bv)
+		require.True(t, ok0 && ok1)
+		assert.InDelta(t, shift(bv), m1-m0, 2e-3, "M_V at B−V %g", bv) // the grid's linear blend between nodes 0.2 % apart in mass
+	}
+	for _, m := range []float64{0.6, 0.85, 1.0, 1.2} {
+		p0, _ := rel.At(m)
+		p1, _ := moved.At(m)
+		assert.Equal(t, p0.BV, p1.BV)
+		assert.Equal(t, p0.TeffK, p1.TeffK)
+		assert.InDelta(t, p1.AbsMagV-p0.AbsMagV, p1.AbsMagKs-p0.AbsMagKs, 1e-12, "V−Ks kept at %g M☉", m)
+		assert.InDelta(t, shift(p0.BV), p1.AbsMagV-p0.AbsMagV, 1e-3, "at %g M☉", m)
+	}
+	m0, _ := rel.AbsMagVAtBV(0.8)
+	again, _ := DwarfSequence()
+	m2, _ := again.AbsMagVAtBV(0.8)
+	assert.Equal(t, m0, m2, "the shared table is not moved")
+
+	// A shift that falls 100 mag per mag of B−V undoes the sequence's own
+	// rise (4.5–7 mag per mag over B−V 0.45–1.4 in this table): M_V would
+	// rise with mass.
+	_, err = rel.ShiftedInMV(LinearShift([]float64{0.70, 0.71}, []float64{0.5, -0.5}))
+	require.Error(t, err)
+	assert.Contains(t, err.Error(), "steeper than the sequence")
+}

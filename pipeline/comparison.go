@@ -37,6 +37,10 @@ type Comparison struct {
 	// templates re-observed at their scenario values, and every fit moves
 	// them with the history (compare.FitJoint).
 	Nuisance *compare.Nuisance
+	// Sequence is where the catalog's main sequence was measured to lie
+	// against the relation table (compare.measure_sequence), the table
+	// moved there in Scenario; nil when not measured.
+	Sequence *SequenceShift
 	// Stage, if set, is told what long fits are doing (one line per
 	// expansion of the templates), for progress reports.
 	Stage        func(msg string)
@@ -91,6 +95,9 @@ type ComparisonOptions struct {
 	// compare.MaxRounds): a fit that stops at the limit while still
 	// rising can be let run longer.
 	MaxRounds int
+	// SequenceProgress, if set, hears of each round of the sequence's
+	// measurement (compare.measure_sequence).
+	SequenceProgress func(msg string)
 }
 
 // RequireData checks that a scenario names an observed catalog and that
@@ -141,12 +148,24 @@ func SetupComparison(ctx context.Context, res *scenarios.Resolved, opts Comparis
 	if res.Scenario.Data.File == "" {
 		return nil, RequireData(res, arg)
 	}
+	var sequence *SequenceShift
+	if res.Scenario.Compare.MeasureSequence {
+		var err error
+		if sequence, err = MeasureSequenceShift(ctx, res, arg, opts.SequenceProgress); err != nil {
+			return nil, err
+		}
+		// The comparison runs on the scenario with the table moved: its
+		// templates, its mocks and the catalog's band alike.
+		moved := *res
+		moved.Scenario.Stars.SequenceShiftBV, moved.Scenario.Stars.SequenceShiftMag = sequence.BV, sequence.Mag
+		res = &moved
+	}
 	s := &res.Scenario
 	workers := opts.Workers
 	if workers <= 0 {
 		workers = defaultWorkers()
 	}
-	c := &Comparison{Resolved: res, Scenario: s, Source: arg, Workers: workers, MaxRounds: opts.MaxRounds}
+	c := &Comparison{Resolved: res, Scenario: s, Source: arg, Workers: workers, MaxRounds: opts.MaxRounds, Sequence: sequence}
 	var err error
 	if c.Built, err = Build(s, arg); err != nil {
 		return nil, err
@@ -419,6 +438,30 @@ type DataSummary struct {
 	ScenarioSH string         `json:"scenario_sha256"`
 	ColorReach *LawColorReach `json:"law_color_reach,omitempty"`
 	BurstBins  *BurstAgeBins  `json:"burst_age_bins,omitempty"`
+	Sequence   *SequencePlace `json:"sequence_shift,omitempty"`
+}
+
+// SequencePlace is the shift of the relation table a comparison measured
+// (compare.measure_sequence) and used: the [stars] keys' values.
+type SequencePlace struct {
+	BV          []float64 `json:"b_v"`
+	Mag         []float64 `json:"mag"`
+	MaxLastMove float64   `json:"max_last_move_mag"`
+	Columns     int       `json:"columns_measured"`
+	OfColumns   int       `json:"columns"`
+}
+
+// Line is the summary's line for the measured shift.
+func (p *SequencePlace) Line() string {
+	if p == nil || len(p.Mag) == 0 {
+		return ""
+	}
+	lo, hi := p.Mag[0], p.Mag[0]
+	for _, m := range p.Mag {
+		lo, hi = min(lo, m), max(hi, m)
+	}
+	return fmt.Sprintf("main sequence measured against the relation table (compare.measure_sequence): moved %+.3f to %+.3f mag in M_V (> 0 fainter) over B−V %.3f–%.3f, %d of %d color columns measured, the last round moving ≤ %.3f mag (spinpop sequence prints it column by column)",
+		lo, hi, p.BV[0], p.BV[len(p.BV)-1], p.Columns, p.OfColumns, p.MaxLastMove)
 }
 
 // DataSummary describes the catalog as read.
@@ -431,6 +474,7 @@ func (c *Comparison) DataSummary() DataSummary {
 		Masked: c.MaskedStars, MaskAgeGyr: c.Scenario.Compare.MaskAgeGyr, OtherOut: c.OtherStars,
 		ColorReach: c.ColorReach, BlueMasked: c.BlueStars,
 		BurstBins: burstAgeBins(c.Built.AgeEdgesGyr, c.Scenario.Compare.Free, c.Scenario.Compare.BurstPart),
+		Sequence:  c.Sequence.place(),
 	}
 }
 

@@ -199,6 +199,13 @@ func runCheckWith(t *testing.T, cases []checkCase, replicates int, templateStars
 		}
 		c, err := base.WithCatalog(path)
 		require.NoError(t, err)
+		// SPINPOP_OTHERMODEL_SEQUENCE=measured measures where each
+		// catalog's main sequence lies against the table
+		// (MeasureSequenceShift) and fits it with the table moved there:
+		// templates made again for every catalog.
+		if os.Getenv("SPINPOP_OTHERMODEL_SEQUENCE") == "measured" {
+			c = measuredSequenceComparison(t, maker, path, extra, cs.name)
+		}
 		name := cs.name
 		c.Stage = func(msg string) { t.Logf("%s: %s", name, msg) }
 		// SPINPOP_OTHERMODEL_ROUNDS=N lets every joint fit run N
@@ -231,6 +238,28 @@ func runCheckWith(t *testing.T, cases []checkCase, replicates int, templateStars
 		out = append(out, r)
 	}
 	return out
+}
+
+// measuredSequenceComparison sets up the comparison of one catalog with
+// the relation table moved to where the catalog's sequence lies, as
+// measured on it.
+func measuredSequenceComparison(t *testing.T, maker catalogMaker, path, extra, name string) *Comparison {
+	t.Helper()
+	scen := strings.TrimSuffix(path, ".csv") + "-sequence.toml"
+	text := fmt.Sprintf(maker.scenario, path) + extra
+	require.NoError(t, os.WriteFile(scen, []byte(text), 0o644))
+	res, err := scenarios.Resolve(scen)
+	require.NoError(t, err)
+	ctx := context.Background()
+	sh, err := MeasureSequenceShift(ctx, res, scen, nil)
+	require.NoError(t, err)
+	t.Logf("%-12s sequence: %s (last round moved ≤ %.3f mag)", name, strings.ReplaceAll(strings.TrimSpace(sh.TOML()), "\n", "; "), sh.MaxLastMove)
+	require.NoError(t, os.WriteFile(scen, []byte(text+"\n"+sh.TOML()), 0o644))
+	res, err = scenarios.Resolve(scen)
+	require.NoError(t, err)
+	c, err := SetupComparison(ctx, res, ComparisonOptions{Source: scen, TemplateDir: "none"})
+	require.NoError(t, err)
+	return c
 }
 
 // lawShareLine splits a burst catalog's age error in two when the fit

@@ -129,6 +129,9 @@ func (v *decoder) validateCompare(s *Scenario) {
 	v.oneOf("compare.normalisation", c.Normalisation, normalisations)
 	v.oneOf("compare.template_noise", c.TemplateNoise, templateNoises)
 	v.oneOf("compare.color_axis", c.ColorAxis, colorAxes)
+	if c.MeasureSequence && len(s.Stars.SequenceShiftBV) > 0 {
+		v.errAt("compare.measure_sequence", "compare.measure_sequence = true measures the sequence's shift, and stars.sequence_shift_b_v gives one: keep one of the two (set measure_sequence = false to use the shift as written)")
+	}
 	v.inRange("compare.bootstrap", float64(c.Bootstrap), 0, true, maxBootstrap, true, "0 means no bootstrap")
 	if !v.errs.isBad("history.max_age_gyr") {
 		v.inRange("compare.split_age_gyr", c.SplitAgeGyr, 0, true, s.History.MaxAgeGyr, true,

@@ -54,6 +54,8 @@ metallicity_sigma_dex = 0.0
 color_per_dex = 0.2              # [memory]
 abs_mag_per_dex = 1.0            # [memory]
 color_scatter_mag = 0.02         # common practice: B-V errors of 0.01-0.03 mag for V < 14
+sequence_shift_b_v = []           # the dwarf sequence moved in M_V at these intrinsic B-V ...
+sequence_shift_mag = []           # ... by these shifts (> 0 fainter); none by default
 
 [spin]
 law = "barnes2007"
@@ -155,6 +157,7 @@ mask_below_age_gyr = 0.0
 mask_margin_dex = 0.1
 mask_blue_of_law = false
 color_axis = "measured"
+measure_sequence = false
 `
 
 // defaultLayer is a fresh copy of the bottom layer: builtinDefaults

@@ -36,6 +36,24 @@ type malformedCase struct {
 
 var malformedCases = []malformedCase{
 	{
+		name:   "sequence shift with fewer shifts than colors",
+		text:   minimal + "[stars]\nsequence_shift_b_v = [0.5, 1.0]\nsequence_shift_mag = [0.1]\n",
+		lineOf: "sequence_shift_mag",
+		want:   []string{"stars.sequence_shift_mag has 1 values but stars.sequence_shift_b_v has 2 colors"},
+	},
+	{
+		name:   "sequence shift colors not increasing",
+		text:   minimal + "[stars]\nsequence_shift_b_v = [0.8, 0.6]\nsequence_shift_mag = [0.1, 0.2]\n",
+		lineOf: "sequence_shift_b_v",
+		want:   []string{"stars.sequence_shift_b_v must be finite and strictly increasing, but element 2 is 0.6"},
+	},
+	{
+		name:   "sequence shift beyond a magnitude",
+		text:   minimal + "[stars]\nsequence_shift_b_v = [0.6, 0.8]\nsequence_shift_mag = [0.1, -1.5]\n",
+		lineOf: "sequence_shift_mag",
+		want:   []string{"stars.sequence_shift_mag element 2 is -1.5; a shift must lie within ±1 mag"},
+	},
+	{
 		name:   "unknown key suggests the nearest",
 		text:   minimal + "[disk]\nsigma10_kms = 25.0\n",
 		lineOf: "sigma10_kms",

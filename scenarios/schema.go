@@ -116,6 +116,12 @@ type Stars struct {
 	ColorPerDex         float64 `toml:"color_per_dex"`           // B-V shift per dex [Fe/H]; default 0.2
 	AbsMagPerDex        float64 `toml:"abs_mag_per_dex"`         // M_V shift per dex [Fe/H]; default 1.0
 	ColorScatterMag     float64 `toml:"color_scatter_mag"`       // Gaussian B-V scatter about the mean sequence, cosmic + photometric; 0 = none; default 0.02
+	// SequenceShiftBV and SequenceShiftMag move the dwarf sequence in M_V
+	// (> 0 fainter) by a shift linear in intrinsic B−V between these nodes
+	// and flat beyond them: where a catalog's main sequence lies against
+	// the table's (spinpop sequence-shift measures it). Empty: none.
+	SequenceShiftBV  []float64 `toml:"sequence_shift_b_v"`
+	SequenceShiftMag []float64 `toml:"sequence_shift_mag"`
 }
 
 // Spin chooses the spin-down law and its parameters. Besides law,
@@ -350,22 +356,27 @@ type DataColumns struct {
 // the canonical form shows it; "free = []" says explicitly that nothing is
 // free.
 type Compare struct {
-	ColorBins     int         `toml:"color_bins"`         // B−V bins between cuts.b_v_min and b_v_max; default 23
-	LogPeriodBins int         `toml:"log_period_bins"`    // log10-period bins; default 30
-	PeriodMinD    float64     `toml:"period_min_d"`       // comparison range; default max(cuts.period_min_d, 0.5)
-	PeriodMaxD    float64     `toml:"period_max_d"`       // default min(cuts.period_max_d, 100)
-	HeightEdgesPc []float64   `toml:"height_edges_pc"`    // |z| edges for the height check; default [0, 100, 200, 300, 450, 700, 1000, 1500]
-	TemplateStars int64       `toml:"template_stars"`     // stars drawn to build templates; default 20_000_000
-	Normalisation string      `toml:"normalisation"`      // "free" (default: multinomial) | "absolute" | "per-color" (conditional on color) | "per-color-height"
-	TemplateNoise string      `toml:"template_noise"`     // "barlow-beeston-lite" (default) | "ignore"
-	Bootstrap     int         `toml:"bootstrap"`          // parametric-bootstrap replicates; default 1000
-	SplitAgeGyr   float64     `toml:"split_age_gyr"`      // young/old split for the height check; default 0 (the fitted burst age)
-	BurstPart     string      `toml:"burst_part"`         // history part tested as the burst; default "burst"
-	MaskAgeGyr    float64     `toml:"mask_below_age_gyr"` // leave out cells below the gyrochrone of this age (stars younger than the law describes); 0 = none (default)
-	MaskMarginDex float64     `toml:"mask_margin_dex"`    // how far below that gyrochrone a cell must lie to be left out (dex); default 0.1
-	MaskBlueOfLaw bool        `toml:"mask_blue_of_law"`   // leave out the color columns reddening can fill with stars bluer than the law's calibrated colors; default false
-	ColorAxis     string      `toml:"color_axis"`         // "measured" (default): columns in the catalog's B−V | "dereddened": in B−V less the dust model's E(B−V) at each star's distance
-	Free          []FreeParam `toml:"free"`               // parameters fitted; default: see above
+	ColorBins     int       `toml:"color_bins"`         // B−V bins between cuts.b_v_min and b_v_max; default 23
+	LogPeriodBins int       `toml:"log_period_bins"`    // log10-period bins; default 30
+	PeriodMinD    float64   `toml:"period_min_d"`       // comparison range; default max(cuts.period_min_d, 0.5)
+	PeriodMaxD    float64   `toml:"period_max_d"`       // default min(cuts.period_max_d, 100)
+	HeightEdgesPc []float64 `toml:"height_edges_pc"`    // |z| edges for the height check; default [0, 100, 200, 300, 450, 700, 1000, 1500]
+	TemplateStars int64     `toml:"template_stars"`     // stars drawn to build templates; default 20_000_000
+	Normalisation string    `toml:"normalisation"`      // "free" (default: multinomial) | "absolute" | "per-color" (conditional on color) | "per-color-height"
+	TemplateNoise string    `toml:"template_noise"`     // "barlow-beeston-lite" (default) | "ignore"
+	Bootstrap     int       `toml:"bootstrap"`          // parametric-bootstrap replicates; default 1000
+	SplitAgeGyr   float64   `toml:"split_age_gyr"`      // young/old split for the height check; default 0 (the fitted burst age)
+	BurstPart     string    `toml:"burst_part"`         // history part tested as the burst; default "burst"
+	MaskAgeGyr    float64   `toml:"mask_below_age_gyr"` // leave out cells below the gyrochrone of this age (stars younger than the law describes); 0 = none (default)
+	MaskMarginDex float64   `toml:"mask_margin_dex"`    // how far below that gyrochrone a cell must lie to be left out (dex); default 0.1
+	MaskBlueOfLaw bool      `toml:"mask_blue_of_law"`   // leave out the color columns reddening can fill with stars bluer than the law's calibrated colors; default false
+	ColorAxis     string    `toml:"color_axis"`         // "measured" (default): columns in the catalog's B−V | "dereddened": in B−V less the dust model's E(B−V) at each star's distance
+	// MeasureSequence measures where the catalog's main sequence lies
+	// against the relation table (spinpop sequence) before the templates
+	// are made, and moves the table there (stars.sequence_shift_* as
+	// measured); default false.
+	MeasureSequence bool        `toml:"measure_sequence"`
+	Free            []FreeParam `toml:"free"` // parameters fitted; default: see above
 	// Alternatives are other explanations of the same catalog, each this
 	// scenario with some keys changed; test-alternatives compares the
 	// scenario with each of them. Default: none.

@@ -2,6 +2,7 @@ package scenarios
 
 import (
 	"fmt"
+	"math"
 	"reflect"
 	"slices"
 
@@ -97,6 +98,7 @@ func (v *decoder) validate(s *Scenario) {
 	v.atLeast("stars.metallicity_sigma_dex", st.MetallicitySigmaDex, 0, "")
 	v.inRange("stars.color_scatter_mag", st.ColorScatterMag, 0, true, 0.3, true,
 		"a B-V scatter of a few hundredths of a magnitude is typical; 0 switches it off")
+	v.sequenceShift(st)
 
 	v.validateSpin(&s.Spin)
 	v.validateSurvey(&s.Survey)
@@ -279,6 +281,38 @@ func (v *decoder) binEdges(p string, edges []float64, maxAgeGyr float64, span bo
 	case first < 0 || last > maxAgeGyr:
 		v.errAt(p, "%s runs from %s to %s Gyr; it must lie within [0, history.max_age_gyr = %s]",
 			p, formatFloat(first), formatFloat(last), formatFloat(maxAgeGyr))
+	}
+}
+
+// MaxSequenceShiftMag bounds stars.sequence_shift_mag: a shift this large
+// moves the sequence by more than metallicity spreads it (a few tenths of
+// a magnitude), so the table would no longer describe the stars.
+const MaxSequenceShiftMag = 1.0
+
+// sequenceShift checks the sequence's shift in M_V: as many shifts as
+// colors, colors strictly increasing, shifts within ±MaxSequenceShiftMag.
+func (v *decoder) sequenceShift(st *Stars) {
+	const pb, pm = "stars.sequence_shift_b_v", "stars.sequence_shift_mag"
+	if v.errs.isBad(pb) || v.errs.isBad(pm) {
+		return
+	}
+	bv, mag := st.SequenceShiftBV, st.SequenceShiftMag
+	if len(bv) != len(mag) {
+		v.errAt(pm, "%s has %d values but %s has %d colors: give one shift per color", pm, len(mag), pb, len(bv))
+		return
+	}
+	for i, x := range bv {
+		if math.IsNaN(x) || math.IsInf(x, 0) || (i > 0 && !(x > bv[i-1])) {
+			v.errAt(pb, "%s must be finite and strictly increasing, but element %d is %s", pb, i+1, formatFloat(x))
+			return
+		}
+	}
+	for i, m := range mag {
+		if !(math.Abs(m) <= MaxSequenceShiftMag) {
+			v.errAt(pm, "%s element %d is %s; a shift must lie within ±%s mag (more moves the sequence further than metallicity spreads it)",
+				pm, i+1, formatFloat(m), formatFloat(MaxSequenceShiftMag))
+			return
+		}
 	}
 }
 

@@ -136,7 +136,8 @@ func setupResolved(ctx context.Context, res *scenarios.Resolved, arg string, f c
 			}
 			bar.Update(done)
 		},
-		Warn: func(msg string) { fmt.Fprintln(stderr, "warning:", msg) },
+		Warn:             func(msg string) { fmt.Fprintln(stderr, "warning:", msg) },
+		SequenceProgress: func(msg string) { fmt.Fprintln(stderr, msg) },
 	})
 	if err != nil {
 		if ctx.Err() != nil {
@@ -164,6 +165,9 @@ func printDataSummary(w io.Writer, d pipeline.DataSummary) {
 	}
 	fmt.Fprintf(w, "templates %s: %d age bins × %d comparison bins from %d stars\n", reused, d.AgeBins, d.SpaceBins, d.TplStars)
 	if s := d.BurstBins.Line(); s != "" {
+		fmt.Fprintln(w, s)
+	}
+	if s := d.Sequence.Line(); s != "" {
 		fmt.Fprintln(w, s)
 	}
 	if d.MaskAgeGyr > 0 {

@@ -9,6 +9,7 @@
 //	spinpop gyrochrones SCENARIO [--ages-gyr 0.3,0.6,1,2,4] [--csv]
 //	spinpop laws SCENARIO --out DIR
 //	spinpop mock SCENARIO --out FILE --stars N
+//	spinpop sequence SCENARIO [--json]
 //	spinpop demo --out DIR
 //
 // Exit status: 0 on success; 2 for bad input (scenario, flags, data, an
@@ -58,6 +59,7 @@ func commands() []command {
 		{"compare", "score a scenario against its observed catalog: likelihood, residuals, marginal tests", runCompare},
 		{"test-burst", "does the catalog demand a burst? likelihood ratio, bootstrap, evidence, height check", runTestBurst},
 		{"test-alternatives", "which explanation does the catalog prefer? burst, stalled spin-down, both, neither — each fitted, bootstrap in both directions", runTestAlternatives},
+		{"sequence", "where the catalog's main sequence lies against the model's relation table: the shift to fit it with", runSequence},
 		{"heights", "young fraction against height above the plane, data against each hypothesis", runHeights},
 		{"inject", "injection–recovery: how often the burst test finds bursts of each age and size in a catalog like yours", runInject},
 		{"posterior", "posterior of the burst model's free parameters: corner plot, star-formation history band, chain", runPosterior},
