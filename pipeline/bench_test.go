@@ -161,3 +161,19 @@ func BenchmarkObserveDemoRound(b *testing.B) {
 		}
 	}
 }
+
+// BenchmarkMeasureSequenceDemo times spinpop sequence on the demo catalog:
+// three rounds, each a model build, 100,000 model catalog stars and a
+// read of the catalog — what compare.measure_sequence adds before the
+// templates.
+func BenchmarkMeasureSequenceDemo(b *testing.B) {
+	res, err := scenarios.Resolve("example:fit")
+	if err != nil {
+		b.Fatal(err)
+	}
+	for b.Loop() {
+		if _, err := MeasureSequenceShift(context.Background(), res, "example:fit", nil); err != nil {
+			b.Fatal(err)
+		}
+	}
+}

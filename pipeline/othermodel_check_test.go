@@ -742,7 +742,10 @@ func TestParseVariant(t *testing.T) {
 // within ±0.1 Gyr with the truth in its 95 % interval in ≥ 90 %.
 // SPINPOP_OTHERMODEL_VARIANT changes the other model further (parseVariant);
 // SPINPOP_OTHERMODEL_OWN=1 makes the same cases with spinpop's own
-// generator instead, as a control (ownModelCatalogs).
+// generator instead, as a control (ownModelCatalogs);
+// SPINPOP_OTHERMODEL_SEQUENCE=measured fits each catalog with the relation
+// table moved to where its main sequence was measured to lie
+// (measuredSequenceComparison).
 func TestOtherModelLong(t *testing.T) {
 	if os.Getenv("SPINPOP_OTHERMODEL_CHECK") == "" {
 		t.Skip("set SPINPOP_OTHERMODEL_CHECK=1 to run the long independent-model check (about an hour)")

@@ -224,6 +224,13 @@ func MeasureSequenceShift(ctx context.Context, res *scenarios.Resolved, source s
 		}
 	}
 	out.BV, out.Mag = nodes(out.Columns, shift)
+	// To the thousandth (of a magnitude), as TOML prints them, so that the
+	// keys pasted into a scenario move the table exactly as
+	// compare.measure_sequence did (+ 0 turns −0 into 0).
+	for i := range out.Mag {
+		out.BV[i] = math.Round(out.BV[i]*1000) / 1000
+		out.Mag[i] = math.Round(out.Mag[i]*1000)/1000 + 0
+	}
 	if len(out.BV) == 0 {
 		return nil, InputError{fmt.Errorf("%s: no color column holds %d catalog and model stars inside the main-sequence band: the shift cannot be measured", source, SequenceMinStars)}
 	}

@@ -139,3 +139,18 @@ func TestComparisonMeasuresSequence(t *testing.T) {
 	require.Error(t, err)
 	assert.Contains(t, err.Error(), "keep one of the two")
 }
+
+// The [stars] lines spinpop sequence prints, pasted into a scenario, give
+// the table the shift the measurement used (its nodes are kept to the
+// thousandth, as printed).
+func TestSequenceShiftTOMLRoundTrip(t *testing.T) {
+	sh := &SequenceShift{BV: []float64{0.475, 0.525, 1.425}, Mag: []float64{0.137, -0.052, 0}}
+	dir := t.TempDir()
+	path := filepath.Join(dir, "s.toml")
+	require.NoError(t, os.WriteFile(path, []byte("extends = \"example:base\"\n\n"+sh.TOML()), 0o644))
+	res, err := scenarios.Resolve(path)
+	require.NoError(t, err)
+	assert.Equal(t, sh.BV, res.Scenario.Stars.SequenceShiftBV)
+	assert.Equal(t, sh.Mag, res.Scenario.Stars.SequenceShiftMag)
+	assert.Equal(t, "[stars]\nsequence_shift_b_v = [0.475, 0.525, 1.425]\nsequence_shift_mag = [0.137, -0.052, 0.000]\n", sh.TOML())
+}
