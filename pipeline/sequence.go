@@ -10,6 +10,7 @@ import (
 
 	"spinpop/assemble"
 	"spinpop/compare"
+	"spinpop/compare/stats"
 	"spinpop/model"
 	"spinpop/scenarios"
 )
@@ -284,16 +285,10 @@ func modelResiduals(ctx context.Context, s *scenarios.Scenario, b *assemble.Buil
 	return out, nil
 }
 
-// median is the sample median (NaN for none).
+// median is the sample median by the project's one quantile rule
+// (stats.QuantileSorted; NaN for none).
 func median(x []float64) float64 {
-	if len(x) == 0 {
-		return math.NaN()
-	}
 	s := slices.Clone(x)
 	slices.Sort(s)
-	if n := len(s); n%2 == 1 {
-		return s[n/2]
-	} else {
-		return (s[n/2-1] + s[n/2]) / 2
-	}
+	return stats.QuantileSorted(s, 0.5)
 }
